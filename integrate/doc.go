@@ -1,0 +1,56 @@
+// Package integrate solves initial value problems y' = F(t, y) with error
+// control, dense output and located crossings, and steps with fixed-step
+// methods that users audit their runs against.
+//
+// # Entry points
+//
+// Solve integrates a Problem over [T0, t1] with a Method and Settings and
+// returns a Solution: the accepted steps, a continuous extension (At),
+// samples on a grid (Settings.Every, Settings.Times), located crossings
+// (Settings.Crossings), work counts (Stats) and why it ended (Status). A
+// Stepper takes one accepted step at a time for callers that own their loop.
+// A nil Method means DormandPrince54; a nil *Settings means the documented
+// defaults.
+//
+// # Methods
+//
+//	DormandPrince54    explicit 5(4) pair, FSAL, dense output of order 4
+//	DormandPrince853   explicit 8(5,3) pair, dense output of order 7
+//	BogackiShampine32  explicit 3(2) pair, FSAL, Hermite dense output
+//	RK4(h), Euler(h)   fixed step, for step-size audits
+//
+// # Step control
+//
+// The local error of a trial step is measured in the root-mean-square norm
+//
+//	err = sqrt( (1/n) Σ (e_i / (atol_i + rtol_i·max(|y_i|, |y1_i|)))² )
+//
+// and the step is accepted when err <= 1. The next step comes from the PI
+// controller (see Controller). The first step is chosen automatically unless
+// Settings.InitialStep is set.
+//
+// # Errors
+//
+// Errors wrap the sentinels ErrSettings, ErrDimension, ErrNonFinite, ErrSpan,
+// ErrStepUnderflow, ErrStepBudget and ErrMethod (test with errors.Is); a
+// StepError says at which time and step size stepping failed; a FieldError
+// names the component of a non-finite value. Once stepping has begun, Solve
+// returns the partial Solution with the error. A step whose error estimate is
+// NaN is rejected and retried with a smaller step; if that persists, the solve
+// ends with a FieldError.
+//
+// # Allocation
+//
+// After set-up, Stepper.Next does not allocate. Solve allocates only to store
+// what the Solution keeps (steps, samples, hits).
+//
+// # Determinism
+//
+// Kernels write products as float64(x*y) so that no architecture fuses them
+// into FMA instructions: the same input gives the same bits on amd64 and arm64.
+//
+// # Notation
+//
+// t is time, y the state (length n), h the step size (negative when
+// integrating backwards), theta ∈ [0, 1] the position inside a step.
+package integrate

@@ -1,0 +1,152 @@
+package integrate
+
+import (
+	"context"
+	"errors"
+	"math"
+)
+
+// Solve integrates p from p.T0 to t1 with method m (nil: DormandPrince54) and
+// settings s (nil: defaults). t1 may be below p.T0 (backward integration).
+//
+// It returns the solution and nil, or, once stepping has begun, the partial
+// solution and an error wrapping one of the package's sentinels (or the
+// context's error). Before stepping it returns nil and the error.
+//
+// Cost: per step, the method's evaluations of F plus O(n) work; per sample or
+// probe, one evaluation of the continuous extension. With DropSteps, memory
+// is bounded by the samples and crossings requested.
+func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*Solution, error) {
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	st, err := NewStepper(p, t1, m, s)
+	if err != nil {
+		return nil, err
+	}
+	if m == nil {
+		m = DormandPrince54
+	}
+	c := st.cfg
+	n := st.n
+	sol := &Solution{Method: m.Name(), Dim: n, T0: p.T0, End: p.T0, sc: st.sc, nd: st.sc.denseSize() * n}
+	keep := !c.drop
+	if keep {
+		sol.T = append(sol.T, p.T0)
+		sol.Y = append(sol.Y, p.Y0...)
+	}
+
+	// The sampling grid: t0 + i·Every, then t1; or the caller's Times.
+	var grid gridIter
+	if c.every > 0 {
+		grid = newEveryGrid(p.T0, t1, c.every)
+	} else if c.times != nil {
+		grid = gridIter{times: c.times, n: len(c.times)}
+	}
+	if grid.n > 0 {
+		flat := make([]float64, grid.n*n)
+		sol.Samples = make([]Sample, 0, grid.n)
+		for i := 0; i < grid.n; i++ {
+			sol.Samples = append(sol.Samples, Sample{Y: flat[i*n : (i+1)*n : (i+1)*n]})
+		}
+		sol.Samples = sol.Samples[:0]
+		// Samples at t0.
+		for grid.i < grid.n && grid.at(grid.i) == p.T0 {
+			sol.Samples = sol.Samples[:len(sol.Samples)+1]
+			smp := &sol.Samples[len(sol.Samples)-1]
+			smp.T = p.T0
+			copy(smp.Y, p.Y0)
+			grid.i++
+		}
+	}
+	var cf *crossFinder
+	if len(c.crossings) > 0 {
+		cf = newCrossFinder(c.crossings, p.T0, p.Y0)
+	}
+	eval := func(theta float64, dst []float64) {
+		st.prepareDense()
+		st.sc.interp(st.coef, theta, dst)
+	}
+	for st.Next(ctx) {
+		ta, h, tb := st.tPrev, st.hLast, st.t
+		end := tb
+		stop := false
+		if cf != nil {
+			hits, stopHit := cf.scan(ta, h, st.y, eval)
+			sol.Hits = append(sol.Hits, hits...)
+			if stopHit {
+				stop = true
+				end = hits[len(hits)-1].T
+			}
+		}
+		// Samples inside (ta, end].
+		for grid.i < grid.n {
+			tg := grid.at(grid.i)
+			if (tg-end)*st.dir > 0 {
+				break
+			}
+			sol.Samples = sol.Samples[:len(sol.Samples)+1]
+			smp := &sol.Samples[len(sol.Samples)-1]
+			smp.T = tg
+			if tg == tb {
+				copy(smp.Y, st.y)
+			} else {
+				eval((tg-ta)/h, smp.Y)
+			}
+			grid.i++
+		}
+		if keep {
+			if st.sc.denseSize() > 0 {
+				st.prepareDense()
+				sol.coef = append(sol.coef, st.coef...)
+			}
+			sol.T = append(sol.T, tb)
+			sol.Y = append(sol.Y, st.y...)
+		}
+		sol.End = end
+		if stop {
+			hit := sol.Hits[len(sol.Hits)-1]
+			sol.Final = append([]float64(nil), hit.Y...)
+			sol.Status = Stopped
+			sol.Stats = st.stats
+			return sol, nil
+		}
+	}
+	sol.Stats = st.stats
+	sol.End = st.t
+	sol.Final = append([]float64(nil), st.y...)
+	if err := st.Err(); err != nil {
+		sol.Status = Failed
+		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+			sol.Status = Canceled
+		}
+		return sol, err
+	}
+	sol.Status = Completed
+	return sol, nil
+}
+
+// gridIter walks a sampling grid.
+type gridIter struct {
+	t0, t1, dt float64
+	times      []float64
+	n, i       int
+}
+
+// newEveryGrid is t0 + i·dt for i = 0, 1, ... while short of t1 by more than
+// 1e-9·dt, then t1 itself.
+func newEveryGrid(t0, t1, dt float64) gridIter {
+	span := math.Abs(t1 - t0)
+	k := int(math.Ceil(span/dt - 1e-9)) // points t0 + i·dt, i < k, lie before t1
+	return gridIter{t0: t0, t1: t1, dt: math.Copysign(dt, t1-t0), n: k + 1}
+}
+
+func (g *gridIter) at(i int) float64 {
+	if g.times != nil {
+		return g.times[i]
+	}
+	if i == g.n-1 {
+		return g.t1
+	}
+	return g.t0 + float64(i)*g.dt
+}

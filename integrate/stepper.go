@@ -1,0 +1,410 @@
+package integrate
+
+import (
+	"context"
+	"fmt"
+	"math"
+)
+
+// Stepper integrates a problem one accepted step at a time, for callers that
+// own their loop:
+//
+//	st, err := integrate.NewStepper(p, t1, integrate.DormandPrince54, nil)
+//	if err != nil { ... }
+//	for st.Next(ctx) {
+//		t, y := st.T(), st.Y()
+//		...
+//	}
+//	if err := st.Err(); err != nil { ... }
+//
+// The last step lands on t1 exactly. After set-up a Stepper does not allocate.
+type Stepper struct {
+	p      Problem
+	m      Method
+	sc     scheme
+	cfg    *config
+	n      int
+	t0, t1 float64
+	dir    float64
+
+	t, h       float64 // current time and next step size to try (signed)
+	tPrev      float64 // start of the last accepted step
+	hLast      float64 // size of the last accepted step
+	y, f0      []float64
+	y1, f1     []float64
+	yPrev      []float64
+	fPrev      []float64
+	coef       []float64 // dense output of the last accepted step
+	denseReady bool
+	wantDense  bool
+	logErrOld  float64
+	rejected   bool // the last attempt was rejected
+	stepIndex  int  // accepted steps, for fixed-step grids
+	stiffCount int
+	nonStiff   int
+	sinceTest  int
+	stats      Stats
+	err        error
+	done       bool
+	started    bool
+	lastNonFin *FieldError
+}
+
+// Stats counts the work of a solve. It holds counts only, so results are
+// deterministic.
+type Stats struct {
+	Evaluations int // calls of the vector field
+	Accepted    int // accepted steps
+	Rejected    int // rejected steps (error too large or non-finite)
+	NonFinite   int // rejected steps whose estimate was NaN or Inf
+	// Stiff reports that the stiffness test of the explicit pair fired
+	// (15 positive tests, Hairer & Wanner 1996): the step size is limited by
+	// stability, not accuracy, and an implicit method would be cheaper.
+	Stiff bool
+	// StiffAt is the time at which Stiff was first set.
+	StiffAt float64
+}
+
+// NewStepper validates p, m and s for the span [p.T0, t1] and returns a
+// Stepper positioned at (p.T0, p.Y0). A nil m means DormandPrince54; a nil s
+// means defaults. It evaluates F once (twice for the automatic initial step).
+func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) {
+	if m == nil {
+		m = DormandPrince54
+	}
+	if err := p.validate(t1); err != nil {
+		return nil, err
+	}
+	n := len(p.Y0)
+	cfg, err := resolve(s, n, p.T0, t1, m)
+	if err != nil {
+		return nil, err
+	}
+	sc, err := m.newScheme(&p, n)
+	if err != nil {
+		return nil, err
+	}
+	st := &Stepper{p: p, m: m, sc: sc, cfg: cfg, n: n, t0: p.T0, t1: t1, dir: math.Copysign(1, t1-p.T0)}
+	buf := make([]float64, 6*n+sc.denseSize()*n)
+	st.y, st.f0, st.y1, st.f1, st.yPrev, st.fPrev = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n], buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n]
+	st.coef = buf[6*n:]
+	copy(st.y, p.Y0)
+	st.t = p.T0
+	st.tPrev = p.T0
+	p.F(st.t, st.y, st.f0)
+	st.stats.Evaluations++
+	if i := firstNonFinite(st.f0); i >= 0 {
+		return nil, fmt.Errorf("integrate: %w", &FieldError{T: st.t, Index: i, Value: st.f0[i], What: "derivative"})
+	}
+	st.logErrOld = math.Log(1e-4)
+	if hf := m.fixedStep(); hf > 0 {
+		if hf > math.Abs(t1-p.T0) {
+			hf = math.Abs(t1 - p.T0)
+		}
+		st.h = st.dir * hf
+	} else {
+		h := cfg.h0
+		if h == 0 {
+			h = st.initialStep(m.Order())
+		}
+		st.h = st.dir * math.Min(h, cfg.hmax)
+	}
+	return st, nil
+}
+
+// initialStep is the starting step of Hairer, Nørsett & Wanner (1993,
+// Sect. II.4, the HINIT routine of DOPRI5). It uses one evaluation and the
+// y1/f1 buffers as scratch.
+func (st *Stepper) initialStep(order int) float64 {
+	var d0, d1 float64
+	for i := range st.y {
+		sk := st.cfg.atol[i] + float64(st.cfg.rtol[i]*math.Abs(st.y[i]))
+		a, b := st.y[i]/sk, st.f0[i]/sk
+		d0 += float64(a * a)
+		d1 += float64(b * b)
+	}
+	n := float64(st.n)
+	d0, d1 = math.Sqrt(d0/n), math.Sqrt(d1/n)
+	h0 := 1e-6
+	if d0 >= 1e-10 && d1 >= 1e-10 {
+		h0 = 0.01 * d0 / d1
+	}
+	h0 = math.Min(h0, st.cfg.hmax)
+	for i := range st.y {
+		st.y1[i] = st.y[i] + float64(st.dir*h0*st.f0[i])
+	}
+	st.p.F(st.t+st.dir*h0, st.y1, st.f1)
+	st.stats.Evaluations++
+	var d2 float64
+	for i := range st.y {
+		sk := st.cfg.atol[i] + float64(st.cfg.rtol[i]*math.Abs(st.y[i]))
+		a := (st.f1[i] - st.f0[i]) / sk
+		d2 += float64(a * a)
+	}
+	d2 = math.Sqrt(d2/n) / h0
+	if math.IsNaN(d2) || math.IsInf(d2, 0) {
+		return h0 * 1e-3
+	}
+	der := math.Max(d2, d1)
+	var h1 float64
+	if der <= 1e-15 {
+		h1 = math.Max(1e-6, h0*1e-3)
+	} else {
+		h1 = math.Pow(0.01/der, 1/float64(order))
+	}
+	return math.Min(math.Min(100*h0, h1), st.cfg.hmax)
+}
+
+// T returns the current time.
+func (st *Stepper) T() float64 { return st.t }
+
+// Y returns the current state. The slice is the Stepper's own: read it, do
+// not modify or keep it.
+func (st *Stepper) Y() []float64 { return st.y }
+
+// DYDT returns F(T(), Y()). The slice is the Stepper's own.
+func (st *Stepper) DYDT() []float64 { return st.f0 }
+
+// H returns the size (signed) of the last accepted step.
+func (st *Stepper) H() float64 { return st.hLast }
+
+// Stats returns the work counts so far.
+func (st *Stepper) Stats() Stats { return st.stats }
+
+// Err returns the error that ended stepping, or nil.
+func (st *Stepper) Err() error { return st.err }
+
+// Done reports whether t1 was reached.
+func (st *Stepper) Done() bool { return st.done }
+
+// Dense writes the continuous extension of the last accepted step at t into
+// dst and returns it (dst is grown if short). It returns nil if t is outside
+// the last step or no step was taken yet. For DormandPrince853 the first call
+// after a step costs three extra evaluations.
+func (st *Stepper) Dense(t float64, dst []float64) []float64 {
+	if !st.started || st.hLast == 0 {
+		return nil
+	}
+	theta := (t - st.tPrev) / st.hLast
+	if !(theta >= 0 && theta <= 1) {
+		return nil
+	}
+	st.prepareDense()
+	if cap(dst) < st.n {
+		dst = make([]float64, st.n)
+	}
+	dst = dst[:st.n]
+	st.sc.interp(st.coef, theta, dst)
+	return dst
+}
+
+func (st *Stepper) prepareDense() {
+	if st.denseReady {
+		return
+	}
+	st.stats.Evaluations += st.sc.dense(st.tPrev, st.hLast, st.yPrev, st.fPrev, st.y, st.f0, st.coef)
+	st.denseReady = true
+}
+
+// Next takes one accepted step. It returns false at t1 or on error (see Err).
+// It checks ctx once per call.
+func (st *Stepper) Next(ctx context.Context) bool {
+	if st.done || st.err != nil {
+		return false
+	}
+	if ctx != nil {
+		if err := ctx.Err(); err != nil {
+			st.err = fmt.Errorf("integrate: canceled at t=%g: %w", st.t, err)
+			return false
+		}
+	}
+	if st.m.fixedStep() > 0 {
+		return st.nextFixed()
+	}
+	return st.nextAdaptive()
+}
+
+func (st *Stepper) accept(h float64, tNew float64) {
+	// Keep the start of the step for dense output, then advance.
+	copy(st.yPrev, st.y)
+	copy(st.fPrev, st.f0)
+	st.y, st.y1 = st.y1, st.y
+	st.f0, st.f1 = st.f1, st.f0
+	st.tPrev = st.t
+	st.t = tNew
+	st.hLast = h
+	st.denseReady = false
+	st.started = true
+	st.stats.Accepted++
+	st.stepIndex++
+	if st.cfg.progress != nil {
+		st.cfg.progress(st.t)
+	}
+}
+
+// nonFinite records a non-finite candidate.
+func (st *Stepper) nonFinite(tt float64) {
+	st.stats.NonFinite++
+	if i := firstNonFinite(st.y1); i >= 0 {
+		st.lastNonFin = &FieldError{T: tt, Index: i, Value: st.y1[i], What: "state"}
+	} else if i := firstNonFinite(st.f1); i >= 0 && st.sc.fsal() {
+		st.lastNonFin = &FieldError{T: tt, Index: i, Value: st.f1[i], What: "derivative"}
+	} else {
+		st.lastNonFin = &FieldError{T: tt, Index: 0, Value: math.NaN(), What: "error estimate"}
+	}
+}
+
+func (st *Stepper) nextAdaptive() bool {
+	c := st.cfg
+	for {
+		if st.stats.Accepted+st.stats.Rejected >= c.maxSteps {
+			st.err = &StepError{T: st.t, H: st.h, Err: fmt.Errorf("%d steps: %w", c.maxSteps, ErrStepBudget)}
+			return false
+		}
+		h := st.h
+		if math.Abs(h) > c.hmax {
+			h = st.dir * c.hmax
+		}
+		last := false
+		if (st.t+1.01*h-st.t1)*st.dir >= 0 {
+			h = st.t1 - st.t
+			last = true
+		}
+		if math.Abs(h) < c.hmin || 0.1*math.Abs(h) <= math.Abs(st.t)*epsRound || h == 0 {
+			var cause error = ErrStepUnderflow
+			if st.lastNonFin != nil && st.rejected {
+				cause = fmt.Errorf("%w (last rejection: %v)", ErrStepUnderflow, st.lastNonFin)
+				st.err = &StepError{T: st.t, H: h, Err: st.lastNonFin}
+				return false
+			}
+			st.err = &StepError{T: st.t, H: h, Err: cause}
+			return false
+		}
+		err, ev := st.sc.attempt(st.t, h, st.y, st.f0, st.y1, st.f1, c.rtol, c.atol)
+		st.stats.Evaluations += ev
+		finite := !math.IsNaN(err) && !math.IsInf(err, 0)
+		if finite && err <= 1 && st.sc.fsal() {
+			if firstNonFinite(st.y1) >= 0 || firstNonFinite(st.f1) >= 0 {
+				finite = false
+			}
+		}
+		if !finite {
+			st.nonFinite(st.t + h)
+			st.stats.Rejected++
+			st.rejected = true
+			st.h = 0.25 * h
+			continue
+		}
+		if err > 1 {
+			// Rejected: shrink by Safety·err^(-Alpha), at least MinFactor.
+			fac := math.Max(c.facMin, c.safety*math.Exp(-c.alpha*math.Log(err)))
+			st.stats.Rejected++
+			st.rejected = true
+			st.lastNonFin = nil
+			st.h = h * fac
+			continue
+		}
+		if !st.sc.fsal() {
+			st.p.F(st.t+h, st.y1, st.f1)
+			st.stats.Evaluations++
+			if firstNonFinite(st.y1) >= 0 || firstNonFinite(st.f1) >= 0 {
+				st.nonFinite(st.t + h)
+				st.stats.Rejected++
+				st.rejected = true
+				st.h = 0.25 * h
+				continue
+			}
+		}
+		// Accepted: PI control, h_new = h·Safety·err^(-Alpha)·errold^(Beta).
+		logErr := math.Log(math.Max(err, 1e-10))
+		fac := c.safety * math.Exp(-c.alpha*logErr+c.beta*st.logErrOld)
+		fac = math.Min(c.facMax, math.Max(c.facMin, fac))
+		if st.rejected {
+			fac = math.Min(fac, 1)
+		}
+		st.logErrOld = math.Log(math.Max(err, 1e-4))
+		st.stiffTest(h)
+		tNew := st.t + h
+		if last {
+			tNew = st.t1
+		}
+		st.accept(h, tNew)
+		st.rejected = false
+		st.lastNonFin = nil
+		st.h = h * fac
+		if last {
+			st.done = true
+		}
+		return true
+	}
+}
+
+// stiffTest runs Hairer's stiffness test on the step just attempted: every
+// stiffEvery accepted steps, and at every step while suspicion lasts; 15
+// positive tests set Stats.Stiff, 6 negative ones clear the suspicion.
+func (st *Stepper) stiffTest(h float64) {
+	if st.cfg.stiffEvery < 0 || st.stats.Stiff {
+		return
+	}
+	st.sinceTest++
+	if st.stiffCount == 0 && st.sinceTest < st.cfg.stiffEvery {
+		return
+	}
+	st.sinceTest = 0
+	hl, limit, ok := st.sc.stiffness(h, st.y1, st.f1)
+	if !ok {
+		return
+	}
+	if hl > limit {
+		st.nonStiff = 0
+		st.stiffCount++
+		if st.stiffCount == 15 {
+			st.stats.Stiff = true
+			st.stats.StiffAt = st.t
+		}
+	} else if st.stiffCount > 0 {
+		st.nonStiff++
+		if st.nonStiff == 6 {
+			st.stiffCount = 0
+		}
+	}
+}
+
+// nextFixed takes one step of a fixed-step method. Step k ends at
+// t0 + k·h (by multiplication), the last one at t1.
+func (st *Stepper) nextFixed() bool {
+	if st.stats.Accepted >= st.cfg.maxSteps {
+		st.err = &StepError{T: st.t, H: st.h, Err: fmt.Errorf("%d steps: %w", st.cfg.maxSteps, ErrStepBudget)}
+		return false
+	}
+	hf := st.h
+	tNew := st.t0 + float64(st.stepIndex+1)*hf
+	last := false
+	if (tNew-st.t1)*st.dir >= -1e-12*math.Abs(hf) {
+		tNew = st.t1
+		last = true
+	}
+	h := tNew - st.t
+	_, ev := st.sc.attempt(st.t, h, st.y, st.f0, st.y1, st.f1, st.cfg.rtol, st.cfg.atol)
+	st.stats.Evaluations += ev
+	if !st.sc.fsal() {
+		st.p.F(tNew, st.y1, st.f1)
+		st.stats.Evaluations++
+	}
+	if i := firstNonFinite(st.y1); i >= 0 {
+		st.err = &StepError{T: st.t, H: h, Err: &FieldError{T: tNew, Index: i, Value: st.y1[i], What: "state"}}
+		return false
+	}
+	if i := firstNonFinite(st.f1); i >= 0 {
+		st.err = &StepError{T: st.t, H: h, Err: &FieldError{T: tNew, Index: i, Value: st.f1[i], What: "derivative"}}
+		return false
+	}
+	st.accept(h, tNew)
+	if last {
+		st.done = true
+	}
+	return true
+}
+
+// epsRound is the unit roundoff used in the step-size underflow test.
+const epsRound = 2.3e-16
