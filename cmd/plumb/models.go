@@ -1,0 +1,95 @@
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"strings"
+
+	"github.com/plumbdyn/plumb"
+)
+
+var modelsCmd = &command{
+	name:    "models",
+	summary: "list the built-in systems, their parameters and sources",
+	doc: `List the built-in systems: state names with start values, parameters with
+their defaults, and where the equations and values are published. With
+--model NAME only that system is listed, and --set shows the values it
+would run with.`,
+	formats: []string{"table", "json"},
+	setup: func(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
+		return runModels
+	},
+}
+
+// modelsJSON is the --format json result of plumb models.
+type modelsJSON struct {
+	header
+	// Models lists the systems in name order.
+	Models []systemJSON `json:"models"`
+}
+
+func runModels(_ context.Context, cl *call) error {
+	names := plumb.Models()
+	if cl.sh.model != "" || cl.sh.file != "" {
+		names = []string{cl.sh.model}
+	} else if len(cl.sh.sets) > 0 {
+		return usagef("--set %s: give --model too; parameters belong to one system", cl.sh.sets.String())
+	}
+	var systems []*plumb.System
+	for _, n := range names {
+		sys, err := cl.sh.loadSystem(n)
+		if err != nil {
+			return err
+		}
+		systems = append(systems, sys)
+	}
+	if cl.sh.format == "json" {
+		out := modelsJSON{header: newHeader("models"), Models: []systemJSON{}}
+		for _, s := range systems {
+			out.Models = append(out.Models, describe(s))
+		}
+		return writeJSON(cl.stdout, out)
+	}
+	for i, s := range systems {
+		if i > 0 {
+			fmt.Fprintln(cl.stdout)
+		}
+		if err := modelTable(cl, s); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// modelTable writes one system as a block of aligned lines.
+func modelTable(cl *call, s *plumb.System) error {
+	d := describe(s)
+	fmt.Fprintf(cl.stdout, "%s: %s\n", d.Name, d.Title)
+	tw := newTable(cl.stdout)
+	fmt.Fprintf(tw, "  state\tstart\tperiod\n")
+	for _, st := range d.States {
+		period := "-"
+		if st.Period != 0 {
+			period = formatFloat(st.Period)
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%s\n", st.Name, formatFloat(st.Start), period)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	tw = newTable(cl.stdout)
+	if len(d.Parameters) == 0 {
+		fmt.Fprintf(tw, "  (no parameters)\n")
+	} else {
+		fmt.Fprintf(tw, "  parameter\tvalue\tmeaning\n")
+	}
+	for _, p := range d.Parameters {
+		fmt.Fprintf(tw, "  %s\t%s\t%s\n", p.Name, formatFloat(p.Value), p.Doc)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	_, err := fmt.Fprintf(cl.stdout, "  source: %s\n", strings.TrimSpace(d.Source))
+	return err
+}

@@ -1,0 +1,50 @@
+package main
+
+import (
+	"encoding/json"
+	"io"
+	"runtime"
+	"strconv"
+	"text/tabwriter"
+)
+
+// goarch is written into every JSON result as "arch". A variable so that
+// golden files hold the same text on every architecture.
+var goarch = runtime.GOARCH
+
+// header opens every JSON result: which plumb, on which architecture, which
+// command. Results are deterministic, so two results with the same header and
+// settings are bit-identical; wall time is never part of them.
+type header struct {
+	// PlumbVersion is the version of the plumb that wrote the result.
+	PlumbVersion string `json:"plumb_version"`
+	// Arch is the GOARCH the result was computed on (amd64, arm64, ...).
+	Arch string `json:"arch"`
+	// Command is the plumb command that wrote the result.
+	Command string `json:"command"`
+}
+
+func newHeader(cmd string) header {
+	return header{PlumbVersion: version, Arch: goarch, Command: cmd}
+}
+
+// writeJSON writes v as indented JSON and a newline. Floats are written in
+// the shortest form that reads back to the same bits.
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
+	return enc.Encode(v)
+}
+
+// newTable returns a tabwriter for aligned, space-separated columns.
+func newTable(w io.Writer) *tabwriter.Writer {
+	return tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+}
+
+// formatFloat is the shortest decimal that reads back to the same float64,
+// for CSV and for echoing settings.
+func formatFloat(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// tableFloat is v with 10 significant digits, for tables read by people.
+func tableFloat(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }

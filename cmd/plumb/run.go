@@ -1,0 +1,161 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+	"time"
+)
+
+// Exit codes, as DESIGN.md fixes them.
+const (
+	exitOK     = 0 // done
+	exitFailed = 1 // the computation failed; the message says which step and why
+	exitUsage  = 2 // bad usage or bad input; the message names the flag or field
+)
+
+// call is what a command's work function receives once its flags are parsed.
+type call struct {
+	cmd    *command
+	sh     *shared
+	args   []string  // positional arguments (only for commands that take them)
+	stdin  io.Reader // for commands that read data
+	stdout io.Writer // buffered; results only
+	stderr io.Writer // progress, warnings, wall time; never results
+	// progress reports whether a progress bar may be drawn on stderr: it is
+	// a terminal and --quiet is not set.
+	progress bool
+}
+
+// usageError is bad usage or bad input: exit status 2.
+type usageError struct{ msg string }
+
+func (e *usageError) Error() string { return e.msg }
+
+// usagef returns a usageError; the message must name the flag or field.
+func usagef(format string, a ...any) error { return &usageError{msg: fmt.Sprintf(format, a...)} }
+
+// Hooks replaced by tests: the clock for wall times, and terminal detection.
+var (
+	now        = time.Now
+	isTerminal = fileIsTerminal
+)
+
+// fileIsTerminal reports whether w is an *os.File on a character device.
+func fileIsTerminal(w io.Writer) bool {
+	f, ok := w.(*os.File)
+	if !ok {
+		return false
+	}
+	st, err := f.Stat()
+	if err != nil {
+		return false
+	}
+	return st.Mode()&os.ModeCharDevice != 0
+}
+
+// run is plumb without the process around it: it parses args, runs the
+// command and returns the exit status. Results go to stdout; help goes to
+// stdout when asked for; diagnostics go to stderr.
+func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	if len(args) == 0 {
+		fmt.Fprint(stderr, "usage: plumb COMMAND [flags]\nrun 'plumb help' for the commands\n")
+		return exitUsage
+	}
+	switch args[0] {
+	case "-h", "-help", "--help":
+		if err := writeMainHelp(stdout); err != nil {
+			return exitFailed
+		}
+		return exitOK
+	}
+	cmd := lookup(args[0])
+	if cmd == nil {
+		fmt.Fprintf(stderr, "plumb: unknown command %q\nrun 'plumb help' for the commands\n", args[0])
+		return exitUsage
+	}
+	return execute(ctx, cmd, args[1:], stdin, stdout, stderr)
+}
+
+// execute parses the flags of cmd, runs it and maps its error to an exit status.
+func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	fs, sh, work := newFlagSet(cmd)
+	err := fs.Parse(args)
+	if errors.Is(err, flag.ErrHelp) {
+		if err := writeCommandHelp(stdout, cmd); err != nil {
+			return exitFailed
+		}
+		return exitOK
+	}
+	if err != nil {
+		return report(stderr, cmd, &usageError{msg: flagMessage(err)})
+	}
+	sh.given = map[string]bool{}
+	fs.Visit(func(f *flag.Flag) { sh.given[f.Name] = true })
+	if err := sh.check(cmd); err != nil {
+		return report(stderr, cmd, err)
+	}
+	if fs.NArg() > 0 && cmd.positional == "" {
+		return report(stderr, cmd, usagef("unexpected argument %q (flags start with --; see 'plumb help %s')", fs.Arg(0), cmd.name))
+	}
+	bw := bufio.NewWriter(stdout)
+	cl := &call{
+		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, stderr: stderr,
+		progress: !sh.quiet && isTerminal(stderr),
+	}
+	err = work(ctx, cl)
+	if ferr := bw.Flush(); ferr != nil && err == nil {
+		err = fmt.Errorf("writing the results to stdout: %w", ferr)
+	}
+	return report(stderr, cmd, err)
+}
+
+// report writes err (if any) on stderr as "plumb CMD: message" and returns
+// the exit status it calls for.
+func report(stderr io.Writer, cmd *command, err error) int {
+	if err == nil {
+		return exitOK
+	}
+	var ue *usageError
+	if errors.As(err, &ue) {
+		fmt.Fprintf(stderr, "plumb %s: %s\nrun 'plumb help %s' for usage\n", cmd.name, ue.msg, cmd.name)
+		return exitUsage
+	}
+	fmt.Fprintf(stderr, "plumb %s: %v\n", cmd.name, err)
+	return exitFailed
+}
+
+// flagMessage rewrites the flag package's messages so that flags are named
+// as users type them (--name).
+func flagMessage(err error) string {
+	msg := err.Error()
+	for _, p := range []string{"defined: -", "for flag -", "for -", "argument: -"} {
+		if i := strings.Index(msg, p); i >= 0 && !strings.HasPrefix(msg[i+len(p):], "-") {
+			msg = msg[:i+len(p)] + "-" + msg[i+len(p):]
+			break
+		}
+	}
+	return msg
+}
+
+// wallTime writes "plumb CMD: <what> in <duration>" on stderr unless --quiet.
+// Wall time never goes into results: they must be bit-identical run to run.
+func (cl *call) wallTime(start time.Time, what string) {
+	if cl.sh.quiet {
+		return
+	}
+	fmt.Fprintf(cl.stderr, "plumb %s: %s in %v\n", cl.cmd.name, what, now().Sub(start).Round(time.Microsecond))
+}
+
+// warnf writes a warning on stderr unless --quiet.
+func (cl *call) warnf(format string, a ...any) {
+	if cl.sh.quiet {
+		return
+	}
+	fmt.Fprintf(cl.stderr, "plumb %s: warning: %s\n", cl.cmd.name, fmt.Sprintf(format, a...))
+}

@@ -1,0 +1,489 @@
+package main
+
+import (
+	"context"
+	"encoding/csv"
+	"errors"
+	"flag"
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/integrate"
+)
+
+var solveCmd = &command{
+	name:    "solve",
+	summary: "integrate a system and write its samples and crossings",
+	doc: `Integrate a system from --t0 to --t1 with error control and write the
+state every --dt (or at every accepted step with --dt 0), with the times at
+which a state component crosses a value (--cross-state x=0).
+
+The table and CSV give 10 and 17 significant digits; JSON and CSV hold the
+shortest decimals that read back to the same bits. --format json writes one
+object: plumb_version, arch, command, system (parameters as used), settings
+(echoed), units, status, error, end, final, stats, samples, crossings.
+
+On Ctrl-C, or when the integration fails, the samples computed so far are
+still written; the exit status is then 1.`,
+	model:   "lorenz",
+	formats: []string{"table", "json", "csv"},
+	plots:   true,
+	setup:   setupSolve,
+}
+
+// solveFlags are the flags of plumb solve beyond the shared ones.
+type solveFlags struct {
+	t0, t1, dt float64
+	rtol, atol float64
+	method     string
+	h          float64
+	maxSteps   int
+	cross      crossList
+	sense      string
+	rows       string
+}
+
+// Defaults of plumb solve, echoed in every result.
+const (
+	solveT1   = 20    // a few dozen Lyapunov times of the convection demo
+	solveDt   = 0.01  // sampling interval
+	solveRtol = 1e-10 // tight enough that the demo's first 20 time units are converged
+	solveAtol = 1e-10
+	// maxSamples bounds the rows one solve writes; beyond it --dt is
+	// surely a typo.
+	maxSamples = 10_000_000
+)
+
+func setupSolve(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
+	f := &solveFlags{}
+	finiteVar(fs, &f.t0, "t0", 0, "start `TIME`: the start state is taken at t0")
+	finiteVar(fs, &f.t1, "t1", solveT1, "end `TIME` (may be below --t0: backwards)")
+	finiteVar(fs, &f.dt, "dt", solveDt, "sampling `INTERVAL`; 0 writes every accepted step instead")
+	finiteVar(fs, &f.rtol, "rtol", solveRtol, "relative `TOLERANCE` of the local error test")
+	finiteVar(fs, &f.atol, "atol", solveAtol, "absolute `TOLERANCE` of the local error test, in state units")
+	fs.StringVar(&f.method, "method", methods[0].name, methodHelp())
+	finiteVar(fs, &f.h, "step", 0, "step `SIZE` h of a fixed-step method (-h is help)")
+	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "`N` attempted steps at most; the run fails beyond")
+	fs.Var(&f.cross, "cross-state", "locate the times where a state crosses a value, `NAME=VALUE` (repeatable)")
+	fs.StringVar(&f.sense, "cross-sense", "either", "which crossings count: rising, falling or either")
+	fs.StringVar(&f.rows, "rows", "samples", "what --format csv writes: samples or crossings")
+	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
+}
+
+// crossSpec is one --cross-state NAME=VALUE.
+type crossSpec struct {
+	state string
+	value float64
+}
+
+// crossList is the repeatable --cross-state flag.
+type crossList []crossSpec
+
+func (l *crossList) String() string {
+	if l == nil {
+		return ""
+	}
+	parts := make([]string, len(*l))
+	for i, c := range *l {
+		parts[i] = c.label()
+	}
+	return strings.Join(parts, ",")
+}
+
+// Set parses NAME=VALUE.
+func (l *crossList) Set(s string) error {
+	name, val, ok := strings.Cut(s, "=")
+	name = strings.TrimSpace(name)
+	if !ok || name == "" {
+		return fmt.Errorf("want NAME=VALUE, e.g. x=0")
+	}
+	v, err := parseFinite(val)
+	if err != nil {
+		return fmt.Errorf("state %s: %v", name, err)
+	}
+	*l = append(*l, crossSpec{state: name, value: v})
+	return nil
+}
+
+func (c crossSpec) label() string { return c.state + "=" + formatFloat(c.value) }
+
+var senses = map[string]integrate.Sense{"either": integrate.Either, "rising": integrate.Rising, "falling": integrate.Falling}
+
+// solveJSON is the --format json result of plumb solve.
+type solveJSON struct {
+	header
+	// System is the system integrated, with the parameters as used.
+	System systemJSON `json:"system"`
+	// Settings echoes the flags that shaped the run, defaults included.
+	Settings solveSettingsJSON `json:"settings"`
+	// Units says in what units the numbers are.
+	Units solveUnitsJSON `json:"units"`
+	// Status is completed, canceled or failed.
+	Status string `json:"status"`
+	// Error says why a run that did not complete stopped.
+	Error string `json:"error,omitempty"`
+	// End is the last time reached and Final the state there.
+	End   float64   `json:"end"`
+	Final []float64 `json:"final"`
+	// Stats counts the work done.
+	Stats statsJSON `json:"stats"`
+	// Samples holds the state at the sampling times (or accepted steps).
+	Samples []sampleJSON `json:"samples"`
+	// Crossings holds the located crossings in time order.
+	Crossings []crossingJSON `json:"crossings"`
+}
+
+type solveSettingsJSON struct {
+	T0 float64 `json:"t0"`
+	T1 float64 `json:"t1"`
+	// Dt is the sampling interval; 0 means the samples are the accepted steps.
+	Dt float64 `json:"dt"`
+	// Sampling is "grid" (t0 + i*dt, and t1) or "steps".
+	Sampling string  `json:"sampling"`
+	RelTol   float64 `json:"rtol"`
+	AbsTol   float64 `json:"atol"`
+	// Method is the --method name, MethodName its published name.
+	Method     string `json:"method"`
+	MethodName string `json:"method_name"`
+	// Step is the step size h of a fixed-step method, 0 for adaptive ones.
+	Step       float64          `json:"step"`
+	MaxSteps   int              `json:"max_steps"`
+	CrossState []crossStateJSON `json:"cross_state"`
+	CrossSense string           `json:"cross_sense"`
+}
+
+type crossStateJSON struct {
+	State string  `json:"state"`
+	Value float64 `json:"value"`
+}
+
+type solveUnitsJSON struct {
+	Time  string `json:"time"`
+	State string `json:"state"`
+	RTol  string `json:"rtol"`
+	ATol  string `json:"atol"`
+}
+
+var solveUnits = solveUnitsJSON{
+	Time:  "the model's time unit (t0, t1, dt, step, end, samples[].t, crossings[].t)",
+	State: "each state component in the model's own unit (start, final, samples[].y, crossings[].y)",
+	RTol:  "dimensionless",
+	ATol:  "state units",
+}
+
+type statsJSON struct {
+	Evaluations int `json:"evaluations"`
+	Accepted    int `json:"accepted_steps"`
+	Rejected    int `json:"rejected_steps"`
+	NonFinite   int `json:"non_finite_rejections"`
+	// Stiff is true when the stiffness test fired, from StiffAt on.
+	Stiff   bool     `json:"stiff"`
+	StiffAt *float64 `json:"stiff_at,omitempty"`
+}
+
+type sampleJSON struct {
+	T float64   `json:"t"`
+	Y []float64 `json:"y"`
+}
+
+type crossingJSON struct {
+	// Crossing is the --cross-state it belongs to, e.g. "x=0".
+	Crossing string    `json:"crossing"`
+	Sense    string    `json:"sense"`
+	T        float64   `json:"t"`
+	Y        []float64 `json:"y"`
+}
+
+// solveRun is a finished (or partly finished) solve, ready to write.
+type solveRun struct {
+	f     *solveFlags
+	sys   *plumb.System
+	m     method
+	sol   *integrate.Solution
+	cross []crossSpec
+	rows  []integrate.Sample // samples, or the accepted steps with --dt 0
+	err   error              // why the run did not complete
+}
+
+func (f *solveFlags) run(ctx context.Context, cl *call) error {
+	if err := choice("cross-sense", f.sense, "either", "rising", "falling"); err != nil {
+		return err
+	}
+	if err := choice("rows", f.rows, "samples", "crossings"); err != nil {
+		return err
+	}
+	if cl.sh.given["rows"] && cl.sh.format != "csv" {
+		return usagef("--rows %s: only --format csv chooses its rows (table and json hold both)", f.rows)
+	}
+	sys, err := cl.sh.loadSystem(cl.sh.model)
+	if err != nil {
+		return err
+	}
+	m, im, err := pickMethod(f.method, f.h, cl.sh.given["step"])
+	if err != nil {
+		return err
+	}
+	if f.t1 == f.t0 {
+		return usagef("--t1 %s equals --t0: the time span is empty", formatFloat(f.t1))
+	}
+	span := math.Abs(f.t1 - f.t0)
+	if f.dt < 0 {
+		return usagef("--dt %s: must be >= 0", formatFloat(f.dt))
+	}
+	if f.dt > 0 && span/f.dt > maxSamples {
+		return usagef("--dt %s: would write %.3g samples over a span of %s (at most %d)", formatFloat(f.dt), span/f.dt, formatFloat(span), maxSamples)
+	}
+	if f.rtol <= 0 {
+		return usagef("--rtol %s: must be > 0", formatFloat(f.rtol))
+	}
+	if f.rtol < 1e-15 {
+		return usagef("--rtol %s: below 1e-15, float64 rounding decides the error, not the tolerance", formatFloat(f.rtol))
+	}
+	if f.atol <= 0 {
+		return usagef("--atol %s: must be > 0", formatFloat(f.atol))
+	}
+	if f.maxSteps <= 0 {
+		return usagef("--max-steps %d: must be > 0", f.maxSteps)
+	}
+	var crossings []integrate.Crossing
+	for _, c := range f.cross {
+		i := stateIndex(sys, c.state)
+		if i < 0 {
+			return usagef("--cross-state %s: model %s has no state %q (states: %s)", c.label(), sys.Name, c.state, strings.Join(sys.States, ", "))
+		}
+		v := c.value
+		crossings = append(crossings, integrate.Crossing{
+			Name:  c.label(),
+			G:     func(_ float64, y []float64) float64 { return y[i] - v },
+			Sense: senses[f.sense],
+		})
+	}
+
+	p := sys.Problem()
+	p.T0 = f.t0
+	s := &integrate.Settings{
+		RelTol: f.rtol, AbsTol: f.atol, MaxSteps: f.maxSteps,
+		Every: f.dt, DropSteps: f.dt > 0, Crossings: crossings,
+	}
+	var bar *progressBar
+	if cl.progress {
+		bar = newProgressBar(cl.stderr, "plumb solve", f.t0, f.t1)
+		s.Progress = bar.at
+	}
+	start := now()
+	sol, err := integrate.Solve(ctx, p, f.t1, im, s)
+	if bar != nil {
+		bar.clear()
+	}
+	if sol == nil {
+		// Nothing was stepped: the input was refused or the field failed at the start.
+		if errors.Is(err, integrate.ErrSettings) || errors.Is(err, integrate.ErrSpan) || errors.Is(err, integrate.ErrMethod) || errors.Is(err, integrate.ErrDimension) {
+			return usagef("the integrator refused the settings: %v", err)
+		}
+		return fmt.Errorf("starting the integration of %s failed: %w", sys.Name, err)
+	}
+	r := &solveRun{f: f, sys: sys, m: m, sol: sol, cross: f.cross, err: err}
+	r.rows = sol.Samples
+	if f.dt == 0 {
+		r.rows = make([]integrate.Sample, len(sol.T))
+		for i := range sol.T {
+			r.rows[i] = integrate.Sample{T: sol.T[i], Y: sol.Y[i*sol.Dim : (i+1)*sol.Dim]}
+		}
+	}
+	if werr := r.write(cl); werr != nil {
+		return fmt.Errorf("writing the results failed: %w", werr)
+	}
+	if cl.sh.plot != "" {
+		if perr := r.plot(cl.sh.plot); perr != nil {
+			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
+		}
+	}
+	if sol.Stats.Stiff {
+		cl.warnf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy", sol.Stats.StiffAt)
+	}
+	cl.wallTime(start, fmt.Sprintf("%d samples, %d crossings, %d steps", len(r.rows), len(sol.Hits), sol.Stats.Accepted))
+	if err != nil {
+		what := "failed"
+		if sol.Status == integrate.Canceled {
+			what = "was canceled"
+		}
+		return fmt.Errorf("integrating %s from t=%g to %g %s at t=%g (the %d samples up to there were written): %w",
+			sys.Name, f.t0, f.t1, what, sol.End, len(r.rows), err)
+	}
+	return nil
+}
+
+// stateIndex returns the index of the named state, or -1.
+func stateIndex(sys *plumb.System, name string) int {
+	for i, n := range sys.States {
+		if n == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// write writes the result in the chosen format.
+func (r *solveRun) write(cl *call) error {
+	switch cl.sh.format {
+	case "json":
+		return writeJSON(cl.stdout, r.json())
+	case "csv":
+		return r.csv(cl)
+	}
+	return r.table(cl)
+}
+
+func (r *solveRun) json() solveJSON {
+	sol := r.sol
+	out := solveJSON{
+		header: newHeader("solve"),
+		System: describe(r.sys),
+		Settings: solveSettingsJSON{
+			T0: r.f.t0, T1: r.f.t1, Dt: r.f.dt, Sampling: "grid",
+			RelTol: r.f.rtol, AbsTol: r.f.atol,
+			Method: r.m.name, MethodName: sol.Method, Step: r.f.h,
+			MaxSteps: r.f.maxSteps, CrossState: []crossStateJSON{}, CrossSense: r.f.sense,
+		},
+		Units:  solveUnits,
+		Status: sol.Status.String(),
+		End:    sol.End, Final: sol.Final,
+		Stats: statsJSON{
+			Evaluations: sol.Stats.Evaluations, Accepted: sol.Stats.Accepted,
+			Rejected: sol.Stats.Rejected, NonFinite: sol.Stats.NonFinite, Stiff: sol.Stats.Stiff,
+		},
+		Samples:   make([]sampleJSON, len(r.rows)),
+		Crossings: make([]crossingJSON, len(sol.Hits)),
+	}
+	if r.f.dt == 0 {
+		out.Settings.Sampling = "steps"
+	}
+	for _, c := range r.cross {
+		out.Settings.CrossState = append(out.Settings.CrossState, crossStateJSON{State: c.state, Value: c.value})
+	}
+	if r.err != nil {
+		out.Error = r.err.Error()
+	}
+	if sol.Stats.Stiff {
+		at := sol.Stats.StiffAt
+		out.Stats.StiffAt = &at
+	}
+	for i, s := range r.rows {
+		out.Samples[i] = sampleJSON{T: s.T, Y: s.Y}
+	}
+	for i, h := range sol.Hits {
+		out.Crossings[i] = crossingJSON{Crossing: r.cross[h.Which].label(), Sense: h.Sense.String(), T: h.T, Y: h.Y}
+	}
+	return out
+}
+
+func (r *solveRun) csv(cl *call) error {
+	w := csv.NewWriter(cl.stdout)
+	rec := make([]string, 0, 3+len(r.sys.States))
+	if r.f.rows == "crossings" {
+		rec = append(append(append(rec, "t"), r.sys.States...), "crossing", "sense")
+		if err := w.Write(rec); err != nil {
+			return err
+		}
+		for _, h := range r.sol.Hits {
+			rec = append(rec[:0], formatFloat(h.T))
+			for _, v := range h.Y {
+				rec = append(rec, formatFloat(v))
+			}
+			rec = append(rec, r.cross[h.Which].label(), h.Sense.String())
+			if err := w.Write(rec); err != nil {
+				return err
+			}
+		}
+	} else {
+		rec = append(append(rec, "t"), r.sys.States...)
+		if err := w.Write(rec); err != nil {
+			return err
+		}
+		for _, s := range r.rows {
+			rec = append(rec[:0], formatFloat(s.T))
+			for _, v := range s.Y {
+				rec = append(rec, formatFloat(v))
+			}
+			if err := w.Write(rec); err != nil {
+				return err
+			}
+		}
+	}
+	w.Flush()
+	return w.Error()
+}
+
+func (r *solveRun) table(cl *call) error {
+	tw := newTable(cl.stdout)
+	fmt.Fprintf(tw, "t\t%s\n", strings.Join(r.sys.States, "\t"))
+	for _, s := range r.rows {
+		fmt.Fprint(tw, tableFloat(s.T))
+		for _, v := range s.Y {
+			fmt.Fprint(tw, "\t", tableFloat(v))
+		}
+		fmt.Fprintln(tw)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	sol := r.sol
+	if len(r.cross) > 0 {
+		fmt.Fprintf(cl.stdout, "\ncrossings (%s)\n", r.f.sense)
+		tw = newTable(cl.stdout)
+		fmt.Fprintf(tw, "crossing\tsense\tt\t%s\n", strings.Join(r.sys.States, "\t"))
+		for _, h := range sol.Hits {
+			fmt.Fprintf(tw, "%s\t%s\t%s", r.cross[h.Which].label(), h.Sense, tableFloat(h.T))
+			for _, v := range h.Y {
+				fmt.Fprint(tw, "\t", tableFloat(v))
+			}
+			fmt.Fprintln(tw)
+		}
+		if len(sol.Hits) == 0 {
+			fmt.Fprintln(tw, "(none)")
+		}
+		if err := tw.Flush(); err != nil {
+			return err
+		}
+	}
+	fmt.Fprintln(cl.stdout)
+	tw = newTable(cl.stdout)
+	params := make([]string, 0)
+	for _, p := range r.sys.Params() {
+		params = append(params, p.Name+"="+formatFloat(p.Value))
+	}
+	fmt.Fprintf(tw, "system\t%s (%s) %s\n", r.sys.Name, r.sys.Title, strings.Join(params, " "))
+	meth := sol.Method
+	if r.m.fixed {
+		meth += ", step " + formatFloat(r.f.h)
+	} else {
+		meth += ", rtol " + formatFloat(r.f.rtol) + ", atol " + formatFloat(r.f.atol)
+	}
+	fmt.Fprintf(tw, "method\t%s\n", meth)
+	fmt.Fprintf(tw, "status\t%s at t=%s\n", sol.Status, tableFloat(sol.End))
+	fmt.Fprintf(tw, "work\t%d accepted steps, %d rejected, %d evaluations\n", sol.Stats.Accepted, sol.Stats.Rejected, sol.Stats.Evaluations)
+	return tw.Flush()
+}
+
+// plot draws the state components against time.
+func (r *solveRun) plot(name string) error {
+	c := &lineChart{
+		Title:  fmt.Sprintf("%s: state against time", r.sys.Title),
+		XLabel: "t",
+		YLabel: "state",
+	}
+	ts := make([]float64, len(r.rows))
+	for i, s := range r.rows {
+		ts[i] = s.T
+	}
+	for k, n := range r.sys.States {
+		ys := make([]float64, len(r.rows))
+		for i, s := range r.rows {
+			ys[i] = s.Y[k]
+		}
+		c.Series = append(c.Series, series{Name: n, X: ts, Y: ys})
+	}
+	return c.save(name)
+}

@@ -1,0 +1,76 @@
+package main
+
+import (
+	"strings"
+
+	"github.com/plumbdyn/plumb"
+)
+
+// loadSystem returns the system the shared flags name: --file, else --model
+// (name defaults to the command's own), with every --set applied in order.
+// This is the one place where a command gets its system.
+func (sh *shared) loadSystem(name string) (*plumb.System, error) {
+	if sh.file != "" {
+		// Formula-defined systems: wire plumb.LoadSystem(io.Reader) here
+		// when it lands (open sh.file, or read stdin for "-"; report parse
+		// errors as usage errors naming the file, line and position).
+		return nil, usagef("--file %s: systems defined in a file are not supported yet; use --model (see 'plumb models')", sh.file)
+	}
+	sys, err := plumb.Model(name)
+	if err != nil {
+		return nil, usagef("--model %s: unknown model (known: %s)", name, strings.Join(plumb.Models(), ", "))
+	}
+	for _, s := range sh.sets {
+		if err := sys.Set(s.name, s.value); err != nil {
+			return nil, usagef("--set %s=%s: %v", s.name, formatFloat(s.value), err)
+		}
+	}
+	return sys, nil
+}
+
+// systemJSON describes a system in JSON results.
+type systemJSON struct {
+	// Name is the catalog name (--model).
+	Name string `json:"name"`
+	// Title is a human name.
+	Title string `json:"title"`
+	// Source is where the equations and default parameters are published.
+	Source string `json:"source"`
+	// States lists the state components in order with their start values.
+	States []stateJSON `json:"states"`
+	// Parameters lists the parameters with the values used (after --set).
+	Parameters []paramJSON `json:"parameters"`
+}
+
+// stateJSON is one state component.
+type stateJSON struct {
+	Name  string  `json:"name"`
+	Start float64 `json:"start"`
+	// Period is the period of an angle component (omitted for others).
+	Period float64 `json:"period,omitempty"`
+}
+
+// paramJSON is one parameter.
+type paramJSON struct {
+	Name  string  `json:"name"`
+	Value float64 `json:"value"`
+	Doc   string  `json:"doc,omitempty"`
+}
+
+// describe returns the JSON form of sys at its current parameters and start.
+func describe(sys *plumb.System) systemJSON {
+	out := systemJSON{Name: sys.Name, Title: sys.Title, Source: sys.Source, States: []stateJSON{}, Parameters: []paramJSON{}}
+	start := sys.Start()
+	periods := sys.Periods()
+	for i, n := range sys.States {
+		st := stateJSON{Name: n, Start: start[i]}
+		if periods != nil {
+			st.Period = periods[i]
+		}
+		out.States = append(out.States, st)
+	}
+	for _, p := range sys.Params() {
+		out.Parameters = append(out.Parameters, paramJSON{Name: p.Name, Value: p.Value, Doc: p.Doc})
+	}
+	return out
+}
