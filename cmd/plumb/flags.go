@@ -30,17 +30,17 @@ var sharedNames = map[string]bool{"model": true, "file": true, "set": true, "for
 // addShared registers the shared flags on fs with the defaults of cmd.
 func addShared(fs *flag.FlagSet, cmd *command) *shared {
 	sh := &shared{}
-	modelDoc := "built-in system to use (see 'plumb models')"
+	modelDoc := "built-in system `NAME` (see 'plumb models')"
 	if cmd.model == "" {
-		modelDoc = "built-in system to use (default: all)"
+		modelDoc = "built-in system `NAME` (default: all of them)"
 	}
-	fs.StringVar(&sh.model, "model", cmd.model, "`NAME` of the "+modelDoc)
-	fs.StringVar(&sh.file, "file", "", "JSON `FILE` defining a system by formulas, instead of --model")
-	fs.Var(&sh.sets, "set", "set a parameter, `name=value` (repeatable)")
+	fs.StringVar(&sh.model, "model", cmd.model, modelDoc)
+	fs.StringVar(&sh.file, "file", "", "system defined by formulas in the JSON `FILE`, instead of --model")
+	fs.Var(&sh.sets, "set", "set a parameter, given as `NAME=VALUE` (repeatable)")
 	fs.StringVar(&sh.format, "format", "", "output `FORMAT`: "+strings.Join(cmd.formats, ", ")+" (default "+cmd.formats[0]+")")
-	plotDoc := "draw the result into `FILE`.svg or FILE.png"
+	plotDoc := "draw the result into `FILE` (.svg or .png)"
 	if !cmd.plots {
-		plotDoc = "draw into `FILE`.svg or .png (this command draws nothing)"
+		plotDoc = "draw into `FILE` (.svg or .png); this command draws nothing"
 	}
 	fs.StringVar(&sh.plot, "plot", "", plotDoc)
 	fs.BoolVar(&sh.quiet, "quiet", false, "no progress, warnings or wall time on stderr (errors still appear)")

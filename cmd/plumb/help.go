@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"strings"
+	"unicode/utf8"
 )
 
 var helpCmd = &command{
@@ -102,25 +103,58 @@ func writeCommandHelp(w io.Writer, c *command) error {
 	return err
 }
 
-// writeFlags writes one aligned line per flag: --name ARG  usage (default).
+// helpWidth is the width help text is wrapped to.
+const helpWidth = 80
+
+// writeFlags writes one entry per flag, "--name ARG  usage (default)", with
+// the usage wrapped to helpWidth and aligned after the widest flag.
 func writeFlags(w io.Writer, flags []*flag.Flag) {
-	tw := newTable(w)
+	type entry struct{ left, text string }
+	var entries []entry
+	width := 0
 	for _, f := range flags {
 		arg, usage := flag.UnquoteUsage(f)
 		switch arg {
 		case "value", "float", "int", "string":
-			arg = strings.ToUpper(arg) // a type name: flags without a `NAME` in their usage
+			arg = strings.ToUpper(arg) // a type name: the usage names no `ARG`
 		}
+		left := "--" + f.Name
 		if arg != "" {
-			arg = " " + arg
+			left += " " + arg
 		}
-		def := ""
 		switch f.DefValue {
-		case "", "0", "false", "[]":
+		case "", "0", "false":
 		default:
-			def = " (default " + f.DefValue + ")"
+			usage += " (default " + f.DefValue + ")"
 		}
-		fmt.Fprintf(tw, "  --%s%s\t%s%s\n", f.Name, arg, usage, def)
+		entries = append(entries, entry{left, usage})
+		width = max(width, utf8.RuneCountInString(left))
 	}
-	tw.Flush()
+	for _, e := range entries {
+		lines := wrap(e.text, max(helpWidth-4-width, 20))
+		pad := strings.Repeat(" ", width-utf8.RuneCountInString(e.left))
+		fmt.Fprintf(w, "  %s%s  %s\n", e.left, pad, lines[0])
+		for _, l := range lines[1:] {
+			fmt.Fprintf(w, "  %s  %s\n", strings.Repeat(" ", width), l)
+		}
+	}
+}
+
+// wrap splits text into lines of at most n runes at spaces (a longer word
+// gets a line of its own).
+func wrap(text string, n int) []string {
+	var lines []string
+	line := ""
+	for _, word := range strings.Fields(text) {
+		switch {
+		case line == "":
+			line = word
+		case utf8.RuneCountInString(line)+1+utf8.RuneCountInString(word) <= n:
+			line += " " + word
+		default:
+			lines = append(lines, line)
+			line = word
+		}
+	}
+	return append(lines, line)
 }

@@ -124,6 +124,7 @@ func TestBadFlags(t *testing.T) {
 		{"cross-sense", []string{"solve", "--cross-sense", "up"}, "--cross-sense"},
 		{"rows value", []string{"solve", "--format", "csv", "--rows", "all"}, "--rows"},
 		{"rows without csv", []string{"solve", "--rows", "crossings"}, "--rows"},
+		{"rows crossings without cross-state", []string{"solve", "--format", "csv", "--rows", "crossings"}, "--cross-state"},
 		{"positional", []string{"solve", "lorenz"}, "lorenz"},
 		{"unknown model", []string{"solve", "--model", "nope"}, "--model"},
 		{"file not yet", []string{"solve", "--file", "loop.json"}, "--file"},
@@ -185,4 +186,19 @@ func TestFixedStepNeedsStep(t *testing.T) {
 	if r.code != exitOK || !strings.Contains(r.stdout, `"step": 0.01`) {
 		t.Errorf("with --step: exit %d, stderr %q; want 0 and h echoed", r.code, r.stderr)
 	}
+}
+
+// stepCtx is a context whose Err turns to Canceled after n calls: integrate
+// checks it once per accepted step, so this cancels mid-run at a fixed step,
+// as Ctrl-C does at an arbitrary one.
+type stepCtx struct {
+	context.Context
+	n int
+}
+
+func (c *stepCtx) Err() error {
+	if c.n--; c.n < 0 {
+		return context.Canceled
+	}
+	return nil
 }

@@ -58,17 +58,17 @@ const (
 
 func setupSolve(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
 	f := &solveFlags{}
-	finiteVar(fs, &f.t0, "t0", 0, "start `TIME`: the start state is taken at t0")
-	finiteVar(fs, &f.t1, "t1", solveT1, "end `TIME` (may be below --t0: backwards)")
-	finiteVar(fs, &f.dt, "dt", solveDt, "sampling `INTERVAL`; 0 writes every accepted step instead")
-	finiteVar(fs, &f.rtol, "rtol", solveRtol, "relative `TOLERANCE` of the local error test")
-	finiteVar(fs, &f.atol, "atol", solveAtol, "absolute `TOLERANCE` of the local error test, in state units")
+	finiteVar(fs, &f.t0, "t0", 0, "start time `T0`, the time of the start state")
+	finiteVar(fs, &f.t1, "t1", solveT1, "end time `T1`; below --t0 integrates backwards")
+	finiteVar(fs, &f.dt, "dt", solveDt, "sampling interval `DT`; 0 writes every accepted step instead")
+	finiteVar(fs, &f.rtol, "rtol", solveRtol, "relative tolerance `RTOL` of the local error test")
+	finiteVar(fs, &f.atol, "atol", solveAtol, "absolute tolerance `ATOL` of the local error test, in state units")
 	fs.StringVar(&f.method, "method", methods[0].name, methodHelp())
-	finiteVar(fs, &f.h, "step", 0, "step `SIZE` h of a fixed-step method (-h is help)")
-	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "`N` attempted steps at most; the run fails beyond")
-	fs.Var(&f.cross, "cross-state", "locate the times where a state crosses a value, `NAME=VALUE` (repeatable)")
-	fs.StringVar(&f.sense, "cross-sense", "either", "which crossings count: rising, falling or either")
-	fs.StringVar(&f.rows, "rows", "samples", "what --format csv writes: samples or crossings")
+	finiteVar(fs, &f.h, "step", 0, "step size `H` of a fixed-step method (-h is help)")
+	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps; the run fails beyond them")
+	fs.Var(&f.cross, "cross-state", "find the times at which a state crosses a value, given as `NAME=VALUE` (repeatable)")
+	fs.StringVar(&f.sense, "cross-sense", "either", "`SENSE` of the crossings that count: rising, falling or either")
+	fs.StringVar(&f.rows, "rows", "samples", "`ROWS` that --format csv writes: samples or crossings")
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -135,6 +135,7 @@ type solveJSON struct {
 	Crossings []crossingJSON `json:"crossings"`
 }
 
+// solveSettingsJSON echoes the settings of a solve, defaults included.
 type solveSettingsJSON struct {
 	T0 float64 `json:"t0"`
 	T1 float64 `json:"t1"`
@@ -154,11 +155,13 @@ type solveSettingsJSON struct {
 	CrossSense string           `json:"cross_sense"`
 }
 
+// crossStateJSON is one --cross-state: the state and the value it crosses.
 type crossStateJSON struct {
 	State string  `json:"state"`
 	Value float64 `json:"value"`
 }
 
+// solveUnitsJSON says in what units the numbers of a solve result are.
 type solveUnitsJSON struct {
 	Time  string `json:"time"`
 	State string `json:"state"`
@@ -173,6 +176,7 @@ var solveUnits = solveUnitsJSON{
 	ATol:  "state units",
 }
 
+// statsJSON counts the work of a solve (counts only: deterministic).
 type statsJSON struct {
 	Evaluations int `json:"evaluations"`
 	Accepted    int `json:"accepted_steps"`
@@ -183,11 +187,13 @@ type statsJSON struct {
 	StiffAt *float64 `json:"stiff_at,omitempty"`
 }
 
+// sampleJSON is the state Y at time T.
 type sampleJSON struct {
 	T float64   `json:"t"`
 	Y []float64 `json:"y"`
 }
 
+// crossingJSON is one located crossing: the state Y at time T.
 type crossingJSON struct {
 	// Crossing is the --cross-state it belongs to, e.g. "x=0".
 	Crossing string    `json:"crossing"`
@@ -216,6 +222,9 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	}
 	if cl.sh.given["rows"] && cl.sh.format != "csv" {
 		return usagef("--rows %s: only --format csv chooses its rows (table and json hold both)", f.rows)
+	}
+	if f.rows == "crossings" && len(f.cross) == 0 {
+		return usagef("--rows crossings: give --cross-state NAME=VALUE to say which crossings")
 	}
 	sys, err := cl.sh.loadSystem(cl.sh.model)
 	if err != nil {

@@ -348,3 +348,23 @@ func TestProgressBar(t *testing.T) {
 		t.Errorf("clear left %q", b.String())
 	}
 }
+
+// TestSolveCanceledMidRun: canceling part way writes the samples so far,
+// which agree bit for bit with the same prefix of a full run.
+func TestSolveCanceledMidRun(t *testing.T) {
+	full := plumbRun(t, "solve", "--t1", "5", "--format", "csv", "--quiet")
+	r := plumbRunCtx(t, &stepCtx{Context: context.Background(), n: 200}, "solve", "--t1", "5", "--format", "csv", "--quiet")
+	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") {
+		t.Fatalf("exit %d, stderr %q; want 1 and a message that says canceled", r.code, r.stderr)
+	}
+	got := strings.Split(strings.TrimSpace(r.stdout), "\n")
+	want := strings.Split(strings.TrimSpace(full.stdout), "\n")
+	if len(got) < 10 || len(got) >= len(want) {
+		t.Fatalf("canceled run wrote %d lines, full run %d", len(got), len(want))
+	}
+	for i := range got {
+		if got[i] != want[i] {
+			t.Fatalf("line %d: canceled %q, full %q", i, got[i], want[i])
+		}
+	}
+}
