@@ -48,3 +48,11 @@ func formatFloat(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) 
 
 // tableFloat is v with 10 significant digits, for tables read by people.
 func tableFloat(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
+
+// count is "1 step", "2 steps".
+func count(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return strconv.Itoa(n) + " " + noun + "s"
+}

@@ -312,14 +312,14 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	if sol.Stats.Stiff {
 		cl.warnf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy", sol.Stats.StiffAt)
 	}
-	cl.wallTime(start, fmt.Sprintf("%d samples, %d crossings, %d steps", len(r.rows), len(sol.Hits), sol.Stats.Accepted))
+	cl.wallTime(start, count(len(r.rows), "sample")+", "+count(len(sol.Hits), "crossing")+", "+count(sol.Stats.Accepted, "step"))
 	if err != nil {
 		what := "failed"
 		if sol.Status == integrate.Canceled {
 			what = "was canceled"
 		}
-		return fmt.Errorf("integrating %s from t=%g to %g %s at t=%g (the %d samples up to there were written): %w",
-			sys.Name, f.t0, f.t1, what, sol.End, len(r.rows), err)
+		return fmt.Errorf("integrating %s from t=%g to %g %s at t=%g (%s up to there written): %w",
+			sys.Name, f.t0, f.t1, what, sol.End, count(len(r.rows), "sample"), err)
 	}
 	return nil
 }
