@@ -105,3 +105,35 @@ func TestREADMEUsage(t *testing.T) {
 		}
 	}
 }
+
+// TestREADMEExamples runs every example command line of the README ("    plumb
+// ..." lines) in process: each must succeed. Output redirections are dropped
+// and --plot files go to a temporary directory.
+func TestREADMEExamples(t *testing.T) {
+	b, err := os.ReadFile(filepath.Join("..", "..", "README.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	n := 0
+	for _, line := range strings.Split(string(b), "\n") {
+		if !strings.HasPrefix(line, "    plumb ") {
+			continue
+		}
+		cmdline, _, _ := strings.Cut(line, "#")
+		cmdline, _, _ = strings.Cut(cmdline, ">")
+		args := strings.Fields(cmdline)[1:]
+		for i := range args {
+			if i > 0 && args[i-1] == "--plot" {
+				args[i] = filepath.Join(dir, filepath.Base(args[i]))
+			}
+		}
+		n++
+		if r := plumbRun(t, append(args, "--quiet")...); r.code != exitOK || r.stdout == "" {
+			t.Errorf("README example %q: exit %d, stderr %q", strings.TrimSpace(line), r.code, r.stderr)
+		}
+	}
+	if n == 0 {
+		t.Error("README.md shows no '    plumb ...' example lines")
+	}
+}
