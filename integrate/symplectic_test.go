@@ -1,0 +1,197 @@
+package integrate
+
+import (
+	"context"
+	"errors"
+	"math"
+	"testing"
+
+	"github.com/plumbdyn/plumb/internal/models"
+)
+
+// symMethod is one entry of the table of explicit symplectic methods.
+type symMethod struct {
+	name  string
+	make  func(h float64) Method
+	order int // published order
+	// steps per unit of time at which the Kepler and oscillator order fits
+	// run (doubling three times), chosen so the errors stay between about
+	// 1e-11 (rounding) and 1e-2 (asymptotic regime).
+	keplerN, oscN int
+	// points is the number of step sizes in the fits (0 means 4). Yoshida 8
+	// reaches rounding (1e-15) within two halvings of the first step size
+	// at which its h⁸ term dominates, so it is fitted on three.
+	points int
+}
+
+func (m symMethod) npoints() int {
+	if m.points == 0 {
+		return 4
+	}
+	return m.points
+}
+
+var symMethods = []symMethod{
+	{"Verlet", Verlet, 2, 200, 20, 0},
+	{"VerletDKD", VerletDKD, 2, 200, 20, 0},
+	{"ForestRuth", ForestRuth, 4, 100, 10, 0},
+	{"Yoshida4", Yoshida4, 4, 100, 10, 0},
+	{"Yoshida6", Yoshida6, 6, 60, 4, 0},
+	{"Yoshida8", Yoshida8, 8, 200, 5, 3},
+	{"PEFRL", PEFRL, 4, 50, 5, 0},
+	{"BlanesMoan4", BlanesMoan4, 4, 320, 5, 0},
+}
+
+// oscillator is H = (p² + q²)/2 in one degree of freedom; the exact flow is
+// the rotation q(t) = q0 cos t + p0 sin t, p(t) = p0 cos t − q0 sin t.
+func oscillator() Problem {
+	return Problem{
+		F:  func(_ float64, y, d []float64) { d[0], d[1] = y[1], -y[0] },
+		Y0: []float64{1, 0.5},
+		Split: &Separable{
+			DT: func(p, d []float64) { d[0] = p[0] },
+			DV: func(q, d []float64) { d[0] = q[0] },
+			H:  func(q, p []float64) float64 { return 0.5 * (q[0]*q[0] + p[0]*p[0]) },
+		},
+	}
+}
+
+// modelProblem builds an integrate.Problem from the built-in catalog the way
+// the root package does (plumb.Model(name).Problem()).
+func modelProblem(t testing.TB, name string) Problem {
+	t.Helper()
+	f, err := models.Lookup(name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	par := f.Defaults()
+	p := Problem{F: f.Field(par), Y0: append([]float64(nil), f.Y0...)}
+	if f.Jac != nil {
+		p.Jac = f.Jac(par)
+	}
+	if f.Separable != nil {
+		parts := f.Separable(par)
+		p.Split = &Separable{DT: parts.DT, DV: parts.DV, H: parts.H}
+	}
+	return p
+}
+
+// fitSlope returns the least-squares slope of log(e) against log(h).
+func fitSlope(h, e []float64) float64 {
+	var sx, sy, sxx, sxy float64
+	for i := range h {
+		x, y := math.Log(h[i]), math.Log(e[i])
+		sx += x
+		sy += y
+		sxx += x * x
+		sxy += x * y
+	}
+	n := float64(len(h))
+	return (n*sxy - sx*sy) / (n*sxx - sx*sx)
+}
+
+func maxDiff(a, b []float64) float64 {
+	var m float64
+	for i := range a {
+		m = math.Max(m, math.Abs(a[i]-b[i]))
+	}
+	return m
+}
+
+// orderSlack is the allowed difference between the fitted and the published
+// order (REFERENCES.md §5d: "expect the observed order within about ±0.2").
+const orderSlack = 0.2
+
+// TestSymplecticOrderOscillator measures the order of every method on the
+// harmonic oscillator against its exact solution (exact identity: the flow is
+// a rotation), over t ∈ [0, 2π·3/4] (a span that is not a period, so no
+// error cancels by symmetry), with four step sizes halving each time.
+func TestSymplecticOrderOscillator(t *testing.T) {
+	ctx := context.Background()
+	t1 := 1.5 * math.Pi
+	exact := []float64{1*math.Cos(t1) + 0.5*math.Sin(t1), 0.5*math.Cos(t1) - 1*math.Sin(t1)}
+	for _, m := range symMethods {
+		t.Run(m.name, func(t *testing.T) {
+			var hs, es []float64
+			for k := 0; k < m.npoints(); k++ {
+				n := int(math.Round(t1*float64(m.oscN))) << k
+				h := t1 / float64(n)
+				sol, err := Solve(ctx, oscillator(), t1, m.make(h), &Settings{DropSteps: true})
+				if err != nil {
+					t.Fatal(err)
+				}
+				hs = append(hs, h)
+				es = append(es, maxDiff(sol.Final, exact))
+			}
+			got := fitSlope(hs, es)
+			t.Logf("errors %.3g, fitted order %.3f", es, got)
+			// Source: published order (Verlet 1967; Forest & Ruth 1990;
+			// Yoshida 1990 Tables 1–2; Omelyan et al. 2002; Blanes & Moan 2002).
+			if math.Abs(got-float64(m.order)) > orderSlack {
+				t.Errorf("fitted order %.3f, want %d ± %g", got, m.order, orderSlack)
+			}
+		})
+	}
+}
+
+// TestSymplecticOrderKepler measures the order on Kepler with e = 0.6 over one
+// period 2π, after which the exact state equals the start (Hairer, Lubich &
+// Wanner 2006, Ch. I: semi-major axis 1, period 2π).
+func TestSymplecticOrderKepler(t *testing.T) {
+	ctx := context.Background()
+	p := modelProblem(t, "kepler")
+	t1 := 2 * math.Pi
+	for _, m := range symMethods {
+		t.Run(m.name, func(t *testing.T) {
+			var hs, es []float64
+			for k := 0; k < m.npoints(); k++ {
+				n := m.keplerN << k
+				h := t1 / float64(n)
+				sol, err := Solve(ctx, p, t1, m.make(h), &Settings{DropSteps: true})
+				if err != nil {
+					t.Fatal(err)
+				}
+				hs = append(hs, h)
+				es = append(es, maxDiff(sol.Final, p.Y0))
+			}
+			got := fitSlope(hs, es)
+			t.Logf("errors %.3g, fitted order %.3f", es, got)
+			// Source: published orders, as in the oscillator test.
+			if math.Abs(got-float64(m.order)) > orderSlack {
+				t.Errorf("fitted order %.3f, want %d ± %g", got, m.order, orderSlack)
+			}
+		})
+	}
+}
+
+// TestSymplecticNeedsSplit checks the declared needs: no Split, no method.
+func TestSymplecticNeedsSplit(t *testing.T) {
+	p := oscillator()
+	p.Split = nil
+	for _, m := range symMethods {
+		_, err := Solve(context.Background(), p, 1, m.make(0.1), nil)
+		if !errors.Is(err, ErrMethod) {
+			t.Errorf("%s without Split: err = %v, want ErrMethod", m.name, err)
+		}
+	}
+	_, err := Solve(context.Background(), oscillator(), 1, Verlet(-1), nil)
+	if !errors.Is(err, ErrSettings) {
+		t.Errorf("Verlet(-1): err = %v, want ErrSettings", err)
+	}
+	_, err = Solve(context.Background(), oscillator(), 1, Verlet(math.NaN()), nil)
+	if !errors.Is(err, ErrSettings) {
+		t.Errorf("Verlet(NaN): err = %v, want ErrSettings", err)
+	}
+	// A kinetic energy that is not quadratic (relativistic T = sqrt(1+p²)):
+	// the Nyström method must refuse it.
+	rel := oscillator()
+	rel.Split.DT = func(p, d []float64) { d[0] = p[0] / math.Sqrt(1+p[0]*p[0]) }
+	_, err = Solve(context.Background(), rel, 1, BlanesMoan4(0.1), nil)
+	if !errors.Is(err, ErrMethod) {
+		t.Errorf("BlanesMoan4 with non-quadratic T: err = %v, want ErrMethod", err)
+	}
+	// The general splittings accept it.
+	if _, err := Solve(context.Background(), rel, 1, PEFRL(0.1), nil); err != nil {
+		t.Errorf("PEFRL with non-quadratic T: %v", err)
+	}
+}
