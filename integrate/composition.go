@@ -205,11 +205,12 @@ func PEFRL(h float64) Method {
 //
 // with b1 = 0.0829844064174052, b2 = 0.396309801498368,
 // b3 = −0.0390563049223486, b4 = 1 − 2(b1+b2+b3), a1 = 0.245298957184271,
-// a2 = 0.604872665711080, a3 = 1/2 − (a1+a2). Order 4 when the kinetic
-// energy is quadratic in p (T = ½pᵀM⁻¹p, constant M): the Nyström case
-// d²q/dt² = −M⁻¹∇V(q). newScheme probes DT for linearity and symmetry and
-// returns ErrMethod when T is not quadratic (the method would drop to
-// order 2 there). Six evaluations of ∇V per step.
+// a2 = 0.604872665711080, a3 = 1/2 − (a1+a2). Its free parameters minimise
+// the error of the Nyström case, kinetic energy quadratic in p
+// (T = ½pᵀM⁻¹p, d²q/dt² = −M⁻¹∇V(q)); being symmetric it satisfies the
+// order-4 conditions of any separable Hamiltonian (the even-degree terms
+// of its modified equation vanish), so it is of order 4 in general.
+// Symmetric, symplectic, six evaluations of ∇V per step.
 //
 // References:
 //
@@ -219,5 +220,5 @@ func PEFRL(h float64) Method {
 func BlanesMoan4(h float64) Method {
 	return &splitting{name: "Blanes–Moan SRKN6b", order: 4, h: h, first: kickFirst,
 		coef:      []float64{bm6B1, bm6A1, bm6B2, bm6A2, bm6B3, bm6A3, bm6B4, bm6A3, bm6B3, bm6A2, bm6B2, bm6A1, bm6B1},
-		symmetric: true, quadT: true}
+		symmetric: true}
 }

@@ -33,9 +33,6 @@ type splitting struct {
 	first     splitKind
 	coef      []float64
 	symmetric bool // coef is a palindrome: the method is time-symmetric
-	// quadT marks a Runge–Kutta–Nyström method whose order needs a kinetic
-	// energy quadratic in p (T = ½pᵀM⁻¹p with constant M).
-	quadT bool
 }
 
 func (m *splitting) Name() string           { return m.name }
@@ -81,13 +78,7 @@ func (m *splitting) newScheme(p *Problem, n int) (scheme, error) {
 	if n%2 != 0 || n == 0 {
 		return nil, fmt.Errorf("integrate: %s needs a state (q, p) of even dimension, got %d: %w", m.name, n, ErrDimension)
 	}
-	w := newSplitWork(m, p.Split, n)
-	if m.quadT {
-		if err := w.checkQuadratic(); err != nil {
-			return nil, fmt.Errorf("integrate: %s: %w", m.name, err)
-		}
-	}
-	return w, nil
+	return newSplitWork(m, p.Split, n), nil
 }
 
 // splitWork is the per-solve workspace of a splitting method.
@@ -136,53 +127,6 @@ func (w *splitWork) probeUnitT() bool {
 // linearity: no structure a user function could accidentally match).
 func probeValue(k, i int) float64 {
 	return math.Sin(float64(3*k+1)*1.234567+float64(i)*0.7071067811865476) * float64(k+1)
-}
-
-// checkQuadratic verifies that DT is linear and symmetric, DT(p) = M⁻¹p, as
-// Runge–Kutta–Nyström methods require; it returns ErrMethod otherwise.
-// It probes DT on unit vectors and on irregular vectors with a relative
-// tolerance of 1e-12 (rounding of a sum of N products, with margin).
-func (w *splitWork) checkQuadratic() error {
-	const tol = 1e-12
-	h := w.half
-	minv := make([]float64, h*h)
-	e := make([]float64, h)
-	col := make([]float64, h)
-	for j := 0; j < h; j++ {
-		clear(e)
-		e[j] = 1
-		w.dt(e, col)
-		for i := 0; i < h; i++ {
-			minv[i*h+j] = col[i]
-		}
-	}
-	for i := 0; i < h; i++ {
-		for j := 0; j < i; j++ {
-			a, b := minv[i*h+j], minv[j*h+i]
-			if math.Abs(a-b) > tol*(math.Abs(a)+math.Abs(b)+1e-300) && a != b {
-				return fmt.Errorf("the kinetic part is not quadratic in p (dT/dp is not symmetric linear): %w", ErrMethod)
-			}
-		}
-	}
-	p := make([]float64, h)
-	for k := 0; k < 3; k++ {
-		for i := range p {
-			p[i] = 3 * probeValue(k, i)
-		}
-		w.dt(p, col)
-		for i := 0; i < h; i++ {
-			var s, sa float64
-			for j := 0; j < h; j++ {
-				t := float64(minv[i*h+j] * p[j])
-				s += t
-				sa += math.Abs(t)
-			}
-			if math.IsNaN(col[i]) || math.Abs(col[i]-s) > tol*(sa+math.Abs(col[i])) {
-				return fmt.Errorf("the kinetic part is not quadratic in p (dT/dp(p) != M⁻¹p at a probe): %w", ErrMethod)
-			}
-		}
-	}
-	return nil
 }
 
 // force makes g = ∇V(q), reusing the cache when q is the cached point
