@@ -43,7 +43,7 @@ const (
 	pefrlLambda = -0.2123418310626054
 	pefrlChi    = -0.06626458266981849
 
-	// Blanes & Moan (2002), SRKN_6^b (order 4 for T quadratic in p,
+	// Blanes & Moan (2002), SRKN_6^b (order 4, optimised for T quadratic in p,
 	// 6 force evaluations): free parameters b1, b2, b3, a1, a2;
 	// b4 = 1 − 2(b1 + b2 + b3), a3 = 1/2 − (a1 + a2).
 	bm6B1 = 0.0829844064174052

@@ -1,0 +1,119 @@
+package integrate
+
+import (
+	"context"
+	"errors"
+	"math"
+	"testing"
+)
+
+// TestGaussTableau checks the exact identities of the Gauss tableaux:
+// B(2s): Σ b_i c_i^(k−1) = 1/k, k ≤ 2s; C(s): Σ_j a_ij c_j^(k−1) = c_i^k/k,
+// k ≤ s; and the symplecticity condition b_i a_ij + b_j a_ji = b_i b_j
+// (Sanz-Serna 1988). Source: Butcher 1964 (collocation at the Gauss points),
+// exact identities.
+func TestGaussTableau(t *testing.T) {
+	// The entries are computed from sqrt(3), sqrt(15) in float64: each
+	// identity holds to a few ulps of its terms.
+	const tol = 4e-16
+	for s := 1; s <= 3; s++ {
+		a, b, c := gaussTableau(s)
+		for k := 1; k <= 2*s; k++ {
+			var sum float64
+			for i := range b {
+				sum += b[i] * math.Pow(c[i], float64(k-1))
+			}
+			if d := math.Abs(sum - 1/float64(k)); d > tol {
+				t.Errorf("s=%d B(%d): Σ b c^%d = %.17g, want 1/%d (diff %.2g)", s, k, k-1, sum, k, d)
+			}
+		}
+		for i := 0; i < s; i++ {
+			for k := 1; k <= s; k++ {
+				var sum float64
+				for j := 0; j < s; j++ {
+					sum += a[i*s+j] * math.Pow(c[j], float64(k-1))
+				}
+				want := math.Pow(c[i], float64(k)) / float64(k)
+				if d := math.Abs(sum - want); d > tol {
+					t.Errorf("s=%d C(%d) row %d: %.17g, want %.17g (diff %.2g)", s, k, i, sum, want, d)
+				}
+			}
+			for j := 0; j < s; j++ {
+				if d := math.Abs(b[i]*a[i*s+j] + b[j]*a[j*s+i] - b[i]*b[j]); d > tol {
+					t.Errorf("s=%d symplecticity (%d,%d): residual %.2g", s, i, j, d)
+				}
+			}
+		}
+	}
+}
+
+// TestGaussOrder measures the order 2s on the oscillator (exact rotation) and
+// on Kepler e = 0.6 over one period (exact return to the start; Hairer,
+// Lubich & Wanner 2006, Ch. I), with F only (Split removed).
+func TestGaussOrder(t *testing.T) {
+	ctx := context.Background()
+	kep := modelProblem(t, "kepler")
+	kep.Split = nil
+	osc := oscillator()
+	osc.Split = nil
+	t1o := 1.5 * math.Pi
+	exactO := []float64{1*math.Cos(t1o) + 0.5*math.Sin(t1o), 0.5*math.Cos(t1o) - 1*math.Sin(t1o)}
+	for _, c := range []struct {
+		name  string
+		p     Problem
+		t1    float64
+		exact []float64
+		n     [3]int // first number of steps, per s
+	}{
+		{"oscillator", osc, t1o, exactO, [3]int{40, 10, 6}},
+		{"kepler", kep, 2 * math.Pi, kep.Y0, [3]int{400, 200, 100}},
+	} {
+		for s := 1; s <= 3; s++ {
+			var hs, es []float64
+			for k := 0; k < 4; k++ {
+				n := c.n[s-1] << k
+				h := c.t1 / float64(n)
+				sol, err := Solve(ctx, c.p, c.t1, GaussLegendre(s, h), &Settings{DropSteps: true})
+				if err != nil {
+					t.Fatalf("%s s=%d: %v", c.name, s, err)
+				}
+				hs = append(hs, h)
+				es = append(es, maxDiff(sol.Final, c.exact))
+			}
+			got := fitSlope(hs, es)
+			t.Logf("%s s=%d: errors %.3g, fitted order %.3f", c.name, s, es, got)
+			// Source: order 2s of s-stage Gauss collocation (Butcher 1964).
+			if math.Abs(got-float64(2*s)) > orderSlack {
+				t.Errorf("%s s=%d: fitted order %.3f, want %d ± %g", c.name, s, got, 2*s, orderSlack)
+			}
+		}
+	}
+}
+
+// TestGaussFailure: the implicit midpoint rule on y' = y², y(0) = 1 with
+// h = 2 needs Y = 1 + Y², which has no real root: the solve must fail with an
+// error, never return a state.
+func TestGaussFailure(t *testing.T) {
+	p := Problem{F: func(_ float64, y, d []float64) { d[0] = y[0] * y[0] }, Y0: []float64{1}}
+	sol, err := Solve(context.Background(), p, 2, GaussLegendre(1, 2), nil)
+	if err == nil {
+		t.Fatalf("no error; final state %v", sol.Final)
+	}
+	t.Logf("error: %v", err)
+	// The scheme itself reports the cause.
+	w := newGaussWork(1, &p, 1)
+	f0 := []float64{1}
+	y1 := make([]float64, 1)
+	if _, err := w.solve(0, 2, []float64{1}, f0, y1); !errors.Is(err, ErrNoConvergence) {
+		t.Errorf("solve: err = %v, want ErrNoConvergence", err)
+	}
+	// Bad stage counts and steps.
+	for _, m := range []Method{GaussLegendre(0, 0.1), GaussLegendre(4, 0.1)} {
+		if _, err := Solve(context.Background(), p, 1, m, nil); !errors.Is(err, ErrMethod) {
+			t.Errorf("%s: err = %v, want ErrMethod", m.Name(), err)
+		}
+	}
+	if _, err := Solve(context.Background(), p, 1, GaussLegendre(2, -1), nil); !errors.Is(err, ErrSettings) {
+		t.Errorf("h = -1: err = %v, want ErrSettings", err)
+	}
+}
