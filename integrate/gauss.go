@@ -123,6 +123,7 @@ type gaussWork struct {
 	jm     *mat.Dense
 	jraw   []float64 // n×n Jacobian, row-major
 	fd0    []float64 // forward-difference scratch
+	fpred  []float64 // F(t, y) for the predictor of stepVar
 	lu     []float64 // (sn)×(sn) Newton matrix, factored in place
 	piv    []int
 	rhs    []float64
@@ -134,11 +135,11 @@ func newGaussWork(s int, p *Problem, n int) *gaussWork {
 	a, b, c := gaussTableau(s)
 	sn := s * n
 	w := &gaussWork{f: p.F, jac: p.Jac, n: n, s: s, a: a, b: b, c: c}
-	buf := make([]float64, 4*sn+2*n+n*n+sn*sn)
+	buf := make([]float64, 4*sn+3*n+n*n+sn*sn)
 	w.z, w.fz, w.znew, w.rhs = buf[:sn:sn], buf[sn:2*sn:2*sn], buf[2*sn:3*sn:3*sn], buf[3*sn:4*sn:4*sn]
 	off := 4 * sn
-	w.ys, w.fd0 = buf[off:off+n:off+n], buf[off+n:off+2*n:off+2*n]
-	off += 2 * n
+	w.ys, w.fd0, w.fpred = buf[off:off+n:off+n], buf[off+n:off+2*n:off+2*n], buf[off+2*n:off+3*n:off+3*n]
+	off += 3 * n
 	w.jraw = buf[off : off+n*n : off+n*n]
 	off += n * n
 	w.lu = buf[off : off+sn*sn : off+sn*sn]
