@@ -30,8 +30,9 @@ var ErrNoConvergence = errors.New("stage equations did not converge")
 // matrix I − h A⊗J takes over, J from Problem.Jac when present, otherwise
 // from forward differences of F (n extra evaluations). If Newton fails too,
 // the step fails with ErrNoConvergence: never a wrong answer. (Through Solve
-// and Stepper such a failure ends the solve with a non-finite state error,
-// see doc.go; EnergyAudit and SolveReversible report ErrNoConvergence.)
+// and Stepper such a failure currently ends the solve with a FieldError
+// for the non-finite state the failed step leaves; EnergyAudit and
+// SolveReversible report ErrNoConvergence itself.)
 //
 // Cost per step: s evaluations per fixed-point iteration (typically 5–20
 // iterations at moderate h·L), plus one evaluation at the step end; Newton

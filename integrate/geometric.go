@@ -255,6 +255,15 @@ func stepperErr(st *Stepper) error {
 	return err
 }
 
+// Asymptotic reports whether the step-doubling runs behave as C·h^p, so
+// that ErrorEstimate can be read: the observed order is within 0.5 of the
+// published one (common practice; the error ratios of an orbit whose phase
+// error has saturated, or of a chaotic orbit past its predictability time,
+// give orders far from p).
+func (r *EnergyReport) Asymptotic() bool {
+	return math.Abs(r.ObservedOrder-float64(r.Order)) <= 0.5
+}
+
 // SuggestStep returns the step size at which the largest energy error is
 // expected to be target, from the measured error at h and its scaling
 // C·h^q: h·(target/MaxError)^(1/q), with q the measured EnergyOrder when it

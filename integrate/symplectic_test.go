@@ -193,3 +193,86 @@ func TestSymplecticNeedsSplit(t *testing.T) {
 		}
 	}
 }
+
+// TestSymplecticAllocs: after set-up, a step of a splitting or of a
+// Gauss–Legendre method does not allocate (STYLE.md rule 8).
+func TestSymplecticAllocs(t *testing.T) {
+	ctx := context.Background()
+	p := modelProblem(t, "henon-heiles")
+	for _, m := range []Method{Verlet(0.01), VerletDKD(0.01), Yoshida8(0.01), PEFRL(0.01), BlanesMoan4(0.01), GaussLegendre(3, 0.01)} {
+		st, err := NewStepper(p, 1e6, m, &Settings{MaxSteps: 1 << 30})
+		if err != nil {
+			t.Fatal(err)
+		}
+		st.Next(ctx)
+		if a := testing.AllocsPerRun(100, func() { st.Next(ctx) }); a != 0 {
+			t.Errorf("%s: %v allocations per step, want 0", m.Name(), a)
+		}
+	}
+}
+
+// BenchmarkSymplectic reports ns/step and allocations for Verlet and
+// Yoshida 8 (and, for scale, Gauss–Legendre 3 and DormandPrince54) on
+// Hénon–Heiles through the Stepper.
+func BenchmarkSymplectic(b *testing.B) {
+	p := modelProblem(b, "henon-heiles")
+	for _, c := range []struct {
+		name string
+		m    Method
+	}{
+		{"Verlet", Verlet(0.01)},
+		{"Yoshida8", Yoshida8(0.01)},
+		{"PEFRL", PEFRL(0.01)},
+		{"Gauss3", GaussLegendre(3, 0.01)},
+		{"DormandPrince54", DormandPrince54},
+	} {
+		b.Run(c.name, func(b *testing.B) {
+			ctx := context.Background()
+			st, err := NewStepper(p, 1e9, c.m, &Settings{MaxSteps: 1 << 40})
+			if err != nil {
+				b.Fatal(err)
+			}
+			b.ReportAllocs()
+			n := 0
+			for b.Loop() {
+				if !st.Next(ctx) {
+					b.Fatal(st.Err())
+				}
+				n++
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(n), "ns/step")
+			b.ReportMetric(float64(st.Stats().Evaluations)/float64(st.Stats().Accepted), "evals/step")
+		})
+	}
+}
+
+// TestSymplecticDense: the cubic Hermite dense output has order 3 (local
+// error O(h⁴)). With Yoshida 8 the step-end error (O(h⁸)) is negligible, so
+// the error at mid-step times on the oscillator (exact rotation) shows the
+// interpolant's h⁴. Source: Hermite interpolation error bound (Hairer,
+// Nørsett & Wanner 1993, Sect. II.6), exact solution.
+func TestSymplecticDense(t *testing.T) {
+	ctx := context.Background()
+	var hs, es []float64
+	for _, n := range []int{20, 40, 80, 160} {
+		h := 2.0 / float64(n)
+		sol, err := Solve(ctx, oscillator(), 2, Yoshida8(h), nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var worst float64
+		for k := 0; k < n; k++ {
+			tt := (float64(k) + 0.5) * h
+			y := sol.At(tt, nil)
+			ex := []float64{math.Cos(tt) + 0.5*math.Sin(tt), 0.5*math.Cos(tt) - math.Sin(tt)}
+			worst = math.Max(worst, maxDiff(y, ex))
+		}
+		hs = append(hs, h)
+		es = append(es, worst)
+	}
+	got := fitSlope(hs, es)
+	t.Logf("mid-step errors %.3g, fitted order %.3f", es, got)
+	if math.Abs(got-4) > orderSlack {
+		t.Errorf("dense output error order %.3f, want 4 (interpolant of order 3)", got)
+	}
+}
