@@ -5,6 +5,8 @@ import (
 	"errors"
 	"math"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // TestGaussTableau checks the exact identities of the Gauss tableaux:
@@ -115,5 +117,43 @@ func TestGaussFailure(t *testing.T) {
 	}
 	if _, err := Solve(context.Background(), p, 1, GaussLegendre(2, -1), nil); !errors.Is(err, ErrSettings) {
 		t.Errorf("h = -1: err = %v, want ErrSettings", err)
+	}
+}
+
+// TestGaussNewton: on y' = −100y with h = 0.1 the fixed-point map has
+// contraction factor h·100·|A| = 5 > 1 and diverges; the Newton fallback
+// must find the implicit midpoint value y1 = y0·(1 − 5)/(1 + 5) (exact
+// identity for the linear test equation: the (1,1) Padé approximant), with
+// the exact Jacobian and with forward differences.
+func TestGaussNewton(t *testing.T) {
+	f := func(_ float64, y, d []float64) { d[0] = -100 * y[0] }
+	for _, withJac := range []bool{true, false} {
+		p := Problem{F: f, Y0: []float64{1}}
+		if withJac {
+			p.Jac = func(_ float64, _ []float64, dst *mat.Dense) { dst.Set(0, 0, -100) }
+		}
+		sol, err := Solve(context.Background(), p, 0.3, GaussLegendre(1, 0.1), nil)
+		if err != nil {
+			t.Fatalf("jac=%v: %v", withJac, err)
+		}
+		want := math.Pow(-4.0/6, 3)
+		// Newton converges to rounding for the exact Jacobian; with forward
+		// differences the Jacobian is exact too (F is linear), up to
+		// rounding of the difference quotient, and the iteration still
+		// converges to rounding.
+		if d := math.Abs(sol.Final[0] - want); d > 1e-14 {
+			t.Errorf("jac=%v: y(0.3) = %.17g, want %.17g (diff %.2g)", withJac, sol.Final[0], want, d)
+		}
+	}
+	// Gauss 3 on the same: the (3,3) Padé approximant of exp(−10) per step.
+	p := Problem{F: f, Y0: []float64{1}}
+	sol, err := Solve(context.Background(), p, 0.1, GaussLegendre(3, 0.1), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	z := -10.0
+	pade := (1 + z/2 + z*z/10 + z*z*z/120) / (1 - z/2 + z*z/10 - z*z*z/120)
+	if d := math.Abs(sol.Final[0] - pade); d > 1e-14 {
+		t.Errorf("Gauss 3: %.17g, want Padé (3,3) %.17g (diff %.2g)", sol.Final[0], pade, d)
 	}
 }

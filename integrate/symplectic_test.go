@@ -276,3 +276,33 @@ func TestSymplecticDense(t *testing.T) {
 		t.Errorf("dense output error order %.3f, want 4 (interpolant of order 3)", got)
 	}
 }
+
+// TestSymplecticBadField: a force that turns non-finite ends the solve with
+// ErrNonFinite and the partial solution; a canceled context ends an energy
+// audit with the context's error and the partial report.
+func TestSymplecticBadField(t *testing.T) {
+	p := oscillator()
+	p.Split.DV = func(q, d []float64) {
+		d[0] = q[0]
+		if q[0] < 0 {
+			d[0] = math.NaN()
+		}
+	}
+	sol, err := Solve(context.Background(), p, 10, Verlet(0.01), nil)
+	if !errors.Is(err, ErrNonFinite) {
+		t.Fatalf("err = %v, want ErrNonFinite", err)
+	}
+	if sol == nil || sol.Status != Failed || sol.End <= 0 || len(sol.T) < 2 {
+		t.Errorf("partial solution missing: %+v", sol)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	n := 0
+	rep, err := EnergyAudit(ctx, oscillator(), 100, Verlet, 0.01, &EnergySettings{Progress: func(float64) {
+		if n++; n == 50 {
+			cancel()
+		}
+	}})
+	if !errors.Is(err, context.Canceled) || rep == nil || rep.Steps != 50 {
+		t.Errorf("canceled audit: err = %v, report %+v", err, rep)
+	}
+}
