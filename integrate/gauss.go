@@ -265,7 +265,7 @@ func (w *gaussWork) solve(t, h float64, y, f0, y1 []float64) (int, error) {
 		y1[l] = y[l] + float64(h*acc)
 	}
 	if firstNonFinite(y1[:n]) >= 0 {
-		return evals, fmt.Errorf("Gauss–Legendre stages: non-finite stage values: %w", ErrNoConvergence)
+		return evals, fmt.Errorf("implicit stages: non-finite stage values: %w", ErrNoConvergence)
 	}
 	return evals, nil
 }
@@ -298,7 +298,7 @@ func (w *gaussWork) newton(t, h float64, y, f0 []float64) (int, error) {
 		}
 	}
 	if firstNonFinite(w.jraw) >= 0 {
-		return evals, fmt.Errorf("Gauss–Legendre stages: non-finite Jacobian: %w", ErrNoConvergence)
+		return evals, fmt.Errorf("implicit stages: non-finite Jacobian: %w", ErrNoConvergence)
 	}
 	// M = I − h A⊗J, (sn)×(sn).
 	for i := 0; i < s; i++ {
@@ -317,7 +317,7 @@ func (w *gaussWork) newton(t, h float64, y, f0 []float64) (int, error) {
 		}
 	}
 	if !luFactor(w.lu, w.piv, sn) {
-		return evals, fmt.Errorf("Gauss–Legendre stages: singular Newton matrix: %w", ErrNoConvergence)
+		return evals, fmt.Errorf("implicit stages: singular Newton matrix: %w", ErrNoConvergence)
 	}
 	for i := 0; i < s; i++ {
 		ch := float64(w.c[i] * h)
@@ -360,7 +360,7 @@ func (w *gaussWork) newton(t, h float64, y, f0 []float64) (int, error) {
 		}
 		prev = d
 	}
-	return evals, fmt.Errorf("Gauss–Legendre stages: fixed-point and Newton iterations failed: %w", ErrNoConvergence)
+	return evals, fmt.Errorf("implicit stages: fixed-point and Newton iterations failed: %w", ErrNoConvergence)
 }
 
 // luFactor factors the m×m row-major matrix a in place by Gaussian

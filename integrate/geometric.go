@@ -466,7 +466,7 @@ func SolveReversible(ctx context.Context, p Problem, t1 float64, family func(h f
 	if err != nil {
 		return nil, err
 	}
-	rho := 1/scale.S(y) + float64(0.5*eps)*g
+	rho := 1/scale.S(y) + float64(float64(0.5*eps)*g)
 	fail := func(err error) (*Solution, error) {
 		sol.End = t
 		sol.Final = append([]float64(nil), y...)
