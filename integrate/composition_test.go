@@ -31,14 +31,14 @@ const (
 // coefficients: s[k] is the coefficient of h^k, row-major.
 type bchSeries [][]*big.Float
 
-func newBig() *big.Float { return new(big.Float).SetPrec(bchPrec) }
+func bchNewBig() *big.Float { return new(big.Float).SetPrec(bchPrec) }
 
 func bchZero(deg int) bchSeries {
 	s := make(bchSeries, deg+1)
 	for k := range s {
 		s[k] = make([]*big.Float, bchDim*bchDim)
 		for i := range s[k] {
-			s[k][i] = newBig()
+			s[k][i] = bchNewBig()
 		}
 	}
 	return s
@@ -52,8 +52,8 @@ func bchIdentity(deg int) bchSeries {
 	return s
 }
 
-// matMulAdd adds a·b to dst (all bchDim×bchDim).
-func matMulAdd(dst, a, b []*big.Float, tmp *big.Float) {
+// bchMatMulAdd adds a·b to dst (all bchDim×bchDim).
+func bchMatMulAdd(dst, a, b []*big.Float, tmp *big.Float) {
 	for i := 0; i < bchDim; i++ {
 		for k := 0; k < bchDim; k++ {
 			aik := a[i*bchDim+k]
@@ -71,10 +71,10 @@ func matMulAdd(dst, a, b []*big.Float, tmp *big.Float) {
 func bchMul(a, b bchSeries) bchSeries {
 	deg := len(a) - 1
 	c := bchZero(deg)
-	tmp := newBig()
+	tmp := bchNewBig()
 	for i := 0; i <= deg; i++ {
 		for j := 0; i+j <= deg; j++ {
-			matMulAdd(c[i+j], a[i], b[j], tmp)
+			bchMatMulAdd(c[i+j], a[i], b[j], tmp)
 		}
 	}
 	return c
@@ -84,15 +84,15 @@ func bchMul(a, b bchSeries) bchSeries {
 func bchExp(c float64, x []*big.Float, deg int) bchSeries {
 	s := bchIdentity(deg)
 	pow := s[0]
-	tmp := newBig()
+	tmp := bchNewBig()
 	ck := new(big.Float).SetPrec(bchPrec).SetInt64(1)
 	cb := new(big.Float).SetPrec(bchPrec).SetFloat64(c)
 	for k := 1; k <= deg; k++ {
 		next := make([]*big.Float, bchDim*bchDim)
 		for i := range next {
-			next[i] = newBig()
+			next[i] = bchNewBig()
 		}
-		matMulAdd(next, pow, x, tmp)
+		bchMatMulAdd(next, pow, x, tmp)
 		pow = next
 		ck.Mul(ck, cb)
 		ck.Quo(ck, new(big.Float).SetPrec(bchPrec).SetInt64(int64(k)))
@@ -116,11 +116,11 @@ func bchLog(p bchSeries) bchSeries {
 	out := bchZero(deg)
 	pow := w
 	for k := 1; k <= deg; k++ {
-		f := newBig().Quo(newBig().SetInt64(1), newBig().SetInt64(int64(k)))
+		f := bchNewBig().Quo(bchNewBig().SetInt64(1), bchNewBig().SetInt64(int64(k)))
 		if k%2 == 0 {
 			f.Neg(f)
 		}
-		tmp := newBig()
+		tmp := bchNewBig()
 		for d := range pow {
 			for i := range pow[d] {
 				tmp.Mul(pow[d][i], f)
@@ -152,15 +152,15 @@ func bchSplitting(first splitKind, coef []float64, a, b []*big.Float, deg int) b
 	return bchLog(prod)
 }
 
-func randomBigMatrix(rng *rand.Rand) []*big.Float {
+func bchRandomMatrix(rng *rand.Rand) []*big.Float {
 	x := make([]*big.Float, bchDim*bchDim)
 	for i := range x {
-		x[i] = newBig().SetFloat64(rng.NormFloat64() / math.Sqrt(bchDim))
+		x[i] = bchNewBig().SetFloat64(rng.NormFloat64() / math.Sqrt(bchDim))
 	}
 	return x
 }
 
-func frobenius(m []*big.Float) float64 {
+func bchFrobenius(m []*big.Float) float64 {
 	var s float64
 	for _, v := range m {
 		f, _ := v.Float64()
@@ -191,8 +191,8 @@ func TestSplittingOrderConditions(t *testing.T) {
 	// of palindromic sequences), far above 160-bit rounding (~1e-48).
 	const floor = 1e-35
 	rng := rand.New(rand.NewPCG(7, 11))
-	a := randomBigMatrix(rng)
-	b := randomBigMatrix(rng)
+	a := bchRandomMatrix(rng)
+	b := bchRandomMatrix(rng)
 	for _, m := range symMethods {
 		t.Run(m.name, func(t *testing.T) {
 			sp := m.make(0.1).(*splitting)
@@ -210,19 +210,19 @@ func TestSplittingOrderConditions(t *testing.T) {
 			diff := func(x, y []*big.Float) float64 {
 				d := make([]*big.Float, len(x))
 				for i := range x {
-					d[i] = newBig().Sub(x[i], y[i])
+					d[i] = bchNewBig().Sub(x[i], y[i])
 				}
-				return frobenius(d)
+				return bchFrobenius(d)
 			}
 			sum := make([]*big.Float, bchDim*bchDim)
 			for i := range sum {
-				sum[i] = newBig().Add(a[i], b[i])
+				sum[i] = bchNewBig().Add(a[i], b[i])
 			}
 			if e, noise := diff(l[1], sum), diff(lp[1], l[1]); e > noiseFactor*noise+floor {
 				t.Errorf("degree 1: |log Ψ − (A+B)| = %.3g, noise %.3g", e, noise)
 			}
 			for d := 2; d <= deg; d++ {
-				got, noise := frobenius(l[d]), diff(lp[d], l[d])
+				got, noise := bchFrobenius(l[d]), diff(lp[d], l[d])
 				t.Logf("degree %d: |coefficient| = %.3g (noise %.3g)", d, got, noise)
 				if d <= sp.order && got > noiseFactor*noise+floor {
 					t.Errorf("degree %d: |coefficient| = %.3g, noise %.3g: order condition violated", d, got, noise)

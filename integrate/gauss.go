@@ -129,7 +129,7 @@ type gaussWork struct {
 	piv    []int
 	rhs    []float64
 	failed error // the cause of the last failed attempt, nil after success
-	hermiteDense
+	symHermite
 }
 
 func newGaussWork(s int, p *Problem, n int) *gaussWork {
@@ -316,7 +316,7 @@ func (w *gaussWork) newton(t, h float64, y, f0 []float64) (int, error) {
 			}
 		}
 	}
-	if !luFactor(w.lu, w.piv, sn) {
+	if !glLUFactor(w.lu, w.piv, sn) {
 		return evals, fmt.Errorf("implicit stages: singular Newton matrix: %w", ErrNoConvergence)
 	}
 	for i := 0; i < s; i++ {
@@ -337,7 +337,7 @@ func (w *gaussWork) newton(t, h float64, y, f0 []float64) (int, error) {
 		if firstNonFinite(w.rhs) >= 0 {
 			break
 		}
-		luSolve(w.lu, w.piv, sn, w.rhs)
+		glLUSolve(w.lu, w.piv, sn, w.rhs)
 		var d float64
 		for i := 0; i < s; i++ {
 			for l := 0; l < n; l++ {
@@ -363,10 +363,10 @@ func (w *gaussWork) newton(t, h float64, y, f0 []float64) (int, error) {
 	return evals, fmt.Errorf("implicit stages: fixed-point and Newton iterations failed: %w", ErrNoConvergence)
 }
 
-// luFactor factors the m×m row-major matrix a in place by Gaussian
+// glLUFactor factors the m×m row-major matrix a in place by Gaussian
 // elimination with partial pivoting (Golub & Van Loan 2013, Alg. 3.4.1). It
 // returns false if a pivot is zero or non-finite. It does not allocate.
-func luFactor(a []float64, piv []int, m int) bool {
+func glLUFactor(a []float64, piv []int, m int) bool {
 	for k := 0; k < m; k++ {
 		p := k
 		best := math.Abs(a[k*m+k])
@@ -399,8 +399,8 @@ func luFactor(a []float64, piv []int, m int) bool {
 	return true
 }
 
-// luSolve solves a·x = b in place (b becomes x) with the factors of luFactor.
-func luSolve(a []float64, piv []int, m int, b []float64) {
+// glLUSolve solves a·x = b in place (b becomes x) with the factors of glLUFactor.
+func glLUSolve(a []float64, piv []int, m int, b []float64) {
 	for k := 0; k < m; k++ {
 		if p := piv[k]; p != k {
 			b[k], b[p] = b[p], b[k]

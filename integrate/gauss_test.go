@@ -54,9 +54,9 @@ func TestGaussTableau(t *testing.T) {
 // Lubich & Wanner 2006, Ch. I), with F only (Split removed).
 func TestGaussOrder(t *testing.T) {
 	ctx := context.Background()
-	kep := modelProblem(t, "kepler")
+	kep := symModelProblem(t, "kepler")
 	kep.Split = nil
-	osc := oscillator()
+	osc := symOscillator()
 	osc.Split = nil
 	t1o := 1.5 * math.Pi
 	exactO := []float64{1*math.Cos(t1o) + 0.5*math.Sin(t1o), 0.5*math.Cos(t1o) - 1*math.Sin(t1o)}
@@ -67,7 +67,7 @@ func TestGaussOrder(t *testing.T) {
 		exact []float64
 		n     [3]int // first number of steps, per s
 	}{
-		{"oscillator", osc, t1o, exactO, [3]int{40, 10, 6}},
+		{"symOscillator", osc, t1o, exactO, [3]int{40, 10, 6}},
 		{"kepler", kep, 2 * math.Pi, kep.Y0, [3]int{400, 200, 100}},
 	} {
 		for s := 1; s <= 3; s++ {
@@ -80,13 +80,13 @@ func TestGaussOrder(t *testing.T) {
 					t.Fatalf("%s s=%d: %v", c.name, s, err)
 				}
 				hs = append(hs, h)
-				es = append(es, maxDiff(sol.Final, c.exact))
+				es = append(es, symMaxDiff(sol.Final, c.exact))
 			}
-			got := fitSlope(hs, es)
+			got := symFitSlope(hs, es)
 			t.Logf("%s s=%d: errors %.3g, fitted order %.3f", c.name, s, es, got)
 			// Source: order 2s of s-stage Gauss collocation (Butcher 1964).
-			if math.Abs(got-float64(2*s)) > orderSlack {
-				t.Errorf("%s s=%d: fitted order %.3f, want %d ± %g", c.name, s, got, 2*s, orderSlack)
+			if math.Abs(got-float64(2*s)) > symOrderSlack {
+				t.Errorf("%s s=%d: fitted order %.3f, want %d ± %g", c.name, s, got, 2*s, symOrderSlack)
 			}
 		}
 	}

@@ -180,7 +180,7 @@ func EnergyAudit(ctx context.Context, p Problem, t1 float64, family func(h float
 	if k > 0 {
 		rep.RMSError = math.Sqrt(sumSq / float64(k))
 	}
-	if err := stepperErr(st); err != nil {
+	if err := auditStepperErr(st); err != nil {
 		rep.Steps = k
 		return rep, err
 	}
@@ -189,7 +189,7 @@ func EnergyAudit(ctx context.Context, p Problem, t1 float64, family func(h float
 	}
 
 	// Step doubling.
-	y2, e2, err := coarseRun(ctx, p, t1, family(2*h), energy, rep.E0)
+	y2, e2, err := auditCoarseRun(ctx, p, t1, family(2*h), energy, rep.E0)
 	if err != nil {
 		return rep, err
 	}
@@ -206,7 +206,7 @@ func EnergyAudit(ctx context.Context, p Problem, t1 float64, family func(h float
 	}
 	rep.ErrorNorm = d12 / den
 	if span >= 16*h {
-		y4, _, err := coarseRun(ctx, p, t1, family(4*h), energy, rep.E0)
+		y4, _, err := auditCoarseRun(ctx, p, t1, family(4*h), energy, rep.E0)
 		if err != nil {
 			return rep, err
 		}
@@ -221,9 +221,9 @@ func EnergyAudit(ctx context.Context, p Problem, t1 float64, family func(h float
 	return rep, nil
 }
 
-// coarseRun integrates with m and returns the final state and the largest
+// auditCoarseRun integrates with m and returns the final state and the largest
 // energy error.
-func coarseRun(ctx context.Context, p Problem, t1 float64, m Method, energy func([]float64) float64, e0 float64) ([]float64, float64, error) {
+func auditCoarseRun(ctx context.Context, p Problem, t1 float64, m Method, energy func([]float64) float64, e0 float64) ([]float64, float64, error) {
 	steps := int(math.Ceil(math.Abs(t1-p.T0)/m.fixedStep())) + 1
 	st, err := NewStepper(p, t1, m, &Settings{MaxSteps: steps})
 	if err != nil {
@@ -233,16 +233,16 @@ func coarseRun(ctx context.Context, p Problem, t1 float64, m Method, energy func
 	for st.Next(ctx) {
 		emax = math.Max(emax, math.Abs(energy(st.Y())-e0))
 	}
-	if err := stepperErr(st); err != nil {
+	if err := auditStepperErr(st); err != nil {
 		return nil, 0, err
 	}
 	return append([]float64(nil), st.Y()...), emax, nil
 }
 
-// stepperErr returns the stepper's error, replaced by the scheme's own cause
+// auditStepperErr returns the stepper's error, replaced by the scheme's own cause
 // when an implicit method failed to converge (the stepper sees only the
 // non-finite state such a failure leaves).
-func stepperErr(st *Stepper) error {
+func auditStepperErr(st *Stepper) error {
 	err := st.Err()
 	if err == nil {
 		return nil
@@ -327,7 +327,7 @@ func DistanceScale(alpha float64) StepScale {
 	}
 }
 
-func allZero(v []float64) bool {
+func symAllZero(v []float64) bool {
 	for _, x := range v {
 		if x != 0 {
 			return false
@@ -446,7 +446,7 @@ func SolveReversible(ctx context.Context, p Problem, t1 float64, family func(h f
 		}
 		scale.Grad(y, grad)
 		var dot float64
-		if half := n / 2; p.Split != nil && allZero(grad[half:]) {
+		if half := n / 2; p.Split != nil && symAllZero(grad[half:]) {
 			// s depends on q only: ∇s·F = ∇_q s·∂T/∂p, no force needed.
 			p.Split.DT(y[half:], f[:half])
 			for i := 0; i < half; i++ {

@@ -52,8 +52,8 @@ func henonHeilesTangent(y0 []float64) Problem {
 	}
 }
 
-// tangentMatrix reads M (4×4, column j = (δq_j, δp_j)) from the extended state.
-func tangentMatrix(Y []float64) *mat.Dense {
+// symTangentMatrix reads M (4×4, column j = (δq_j, δp_j)) from the extended state.
+func symTangentMatrix(Y []float64) *mat.Dense {
 	const n = 10
 	m := mat.NewDense(4, 4, nil)
 	for j := 0; j < 4; j++ {
@@ -93,7 +93,7 @@ func TestSymplecticity(t *testing.T) {
 	// rounding ~eps/δ ~ 1e-11; 1e-7 is a safe bound.
 	const fdTol = 1e-7
 	ctx := context.Background()
-	hh := modelProblem(t, "henon-heiles")
+	hh := symModelProblem(t, "henon-heiles")
 	const h = 0.1
 	type entry struct {
 		name string
@@ -107,7 +107,7 @@ func TestSymplecticity(t *testing.T) {
 	for s := 1; s <= 3; s++ {
 		s := s
 		list = append(list, entry{"Gauss" + string(rune('0'+s)), func(h float64) Method { return GaussLegendre(s, h) },
-			func() Problem { return variational(hh) }})
+			func() Problem { return symVariational(hh) }})
 	}
 	for _, e := range list {
 		t.Run(e.name, func(t *testing.T) {
@@ -119,7 +119,7 @@ func TestSymplecticity(t *testing.T) {
 				}
 				var m *mat.Dense
 				if len(tp.Y0) == 20 && tp.Split != nil {
-					m = tangentMatrix(sol.Final)
+					m = symTangentMatrix(sol.Final)
 				} else {
 					m = mat.NewDense(4, 4, append([]float64(nil), sol.Final[4:]...))
 				}
@@ -157,9 +157,9 @@ func TestSymplecticity(t *testing.T) {
 	}
 }
 
-// variational returns y' = f(y), Y' = J(y)Y for a 4-dimensional problem with
+// symVariational returns y' = f(y), Y' = J(y)Y for a 4-dimensional problem with
 // an exact Jacobian, Y(0) = I, state (y, Y row-major).
-func variational(p Problem) Problem {
+func symVariational(p Problem) Problem {
 	jm := mat.NewDense(4, 4, nil)
 	return Problem{
 		F: func(t float64, y, d []float64) {
@@ -191,7 +191,7 @@ func TestReversibility(t *testing.T) {
 	// sub-steps. 4·N·eps·|y| per sub-flow stage count bounds it.
 	ctx := context.Background()
 	for _, name := range []string{"kepler", "henon-heiles"} {
-		p := modelProblem(t, name)
+		p := symModelProblem(t, name)
 		scale := 0.0
 		for _, v := range p.Y0 {
 			scale = math.Max(scale, math.Abs(v))
@@ -233,7 +233,7 @@ func TestReversibility(t *testing.T) {
 				y, y1 = y1, y
 			}
 			bound := 4 * float64(nSteps*e.stages) * 0x1p-52 * scale
-			got := maxDiff(y, p.Y0)
+			got := symMaxDiff(y, p.Y0)
 			if got > bound {
 				t.Errorf("%s %s: |back − start| = %.3g, want <= %.3g", name, e.name, got, bound)
 			}
@@ -249,7 +249,7 @@ func TestReversibility(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			gotS := maxDiff(bw.Final, p.Y0)
+			gotS := symMaxDiff(bw.Final, p.Y0)
 			t.Logf("%s %s: scheme %.3g, Solve %.3g (bound %.3g)", name, e.name, got, gotS, bound)
 			if gotS > bound {
 				t.Errorf("%s %s via Solve: |back − start| = %.3g, want <= %.3g", name, e.name, gotS, bound)
@@ -271,7 +271,7 @@ func TestKeplerLongRun(t *testing.T) {
 		periods = 10000
 	}
 	ctx := context.Background()
-	p := modelProblem(t, "kepler")
+	p := symModelProblem(t, "kepler")
 	t1 := 2 * math.Pi * float64(periods)
 	// H = |p|²/2 − 1/|q| (with Sqrt rather than the catalog's Hypot: this
 	// test evaluates it 10⁸ times).
@@ -336,7 +336,7 @@ func TestKeplerLongRun(t *testing.T) {
 // history, and that the suggested step meets its target.
 func TestEnergyAudit(t *testing.T) {
 	ctx := context.Background()
-	p := modelProblem(t, "kepler")
+	p := symModelProblem(t, "kepler")
 	t1 := 2 * math.Pi
 	for _, c := range []struct {
 		name string
@@ -351,7 +351,7 @@ func TestEnergyAudit(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		trueErr := maxDiff(rep.Final, p.Y0)
+		trueErr := symMaxDiff(rep.Final, p.Y0)
 		t.Logf("%s: true %.3g, estimate %.3g, observed order %.3f, energy max %.3g rms %.3g, energy order %.3f",
 			c.name, trueErr, rep.ErrorNorm, rep.ObservedOrder, rep.MaxError, rep.RMSError, rep.EnergyOrder)
 		// Richardson: in the asymptotic regime the estimate is the error to
@@ -360,7 +360,7 @@ func TestEnergyAudit(t *testing.T) {
 			t.Errorf("%s: estimate %.3g vs true %.3g (ratio %.3g)", c.name, rep.ErrorNorm, trueErr, r)
 		}
 		// Source: published orders; ±0.2 as in REFERENCES.md §5d.
-		if math.Abs(rep.ObservedOrder-float64(rep.Order)) > orderSlack {
+		if math.Abs(rep.ObservedOrder-float64(rep.Order)) > symOrderSlack {
 			t.Errorf("%s: observed order %.3f, want %d", c.name, rep.ObservedOrder, rep.Order)
 		}
 		if len(rep.History) != 10 || rep.History[0].T0 != 0 || math.Abs(rep.History[9].T1-t1) > 1e-12 {
@@ -420,10 +420,10 @@ func TestEnergyAudit(t *testing.T) {
 	}
 }
 
-// keplerEcc returns Kepler with eccentricity e (Hairer, Lubich & Wanner 2006,
+// symKeplerEcc returns Kepler with eccentricity e (Hairer, Lubich & Wanner 2006,
 // Ch. I: q0 = (1−e, 0), p0 = (0, sqrt((1+e)/(1−e))), H = −1/2, period 2π).
-func keplerEcc(t testing.TB, e float64) Problem {
-	p := modelProblem(t, "kepler")
+func symKeplerEcc(t testing.TB, e float64) Problem {
+	p := symModelProblem(t, "kepler")
 	p.Y0 = []float64{1 - e, 0, 0, math.Sqrt((1 + e) / (1 - e))}
 	return p
 }
@@ -436,7 +436,7 @@ func keplerEcc(t testing.TB, e float64) Problem {
 // Hairer, Lubich & Wanner 2006 Sect. VIII.3; H = −1/2 exact.
 func TestSolveReversible(t *testing.T) {
 	ctx := context.Background()
-	p := keplerEcc(t, 0.9)
+	p := symKeplerEcc(t, 0.9)
 	periods := 200.0
 	t1 := 2 * math.Pi * periods
 	sol, err := SolveReversible(ctx, p, t1, Verlet, 0.02, DistanceScale(1.5), nil)
@@ -477,15 +477,15 @@ func TestSolveReversible(t *testing.T) {
 			t.Fatal(err)
 		}
 		hs = append(hs, eps)
-		es = append(es, maxDiff(s.Final, p.Y0))
+		es = append(es, symMaxDiff(s.Final, p.Y0))
 	}
-	got := fitSlope(hs, es)
+	got := symFitSlope(hs, es)
 	t.Logf("errors %.3g, order in eps %.3f", es, got)
-	if math.Abs(got-2) > orderSlack {
+	if math.Abs(got-2) > symOrderSlack {
 		t.Errorf("order in eps %.3f, want 2", got)
 	}
 	// Dense output at a step end equals the step.
-	if y := sol.At(sol.T[5], nil); maxDiff(y, sol.Y[20:24]) != 0 {
+	if y := sol.At(sol.T[5], nil); symMaxDiff(y, sol.Y[20:24]) != 0 {
 		t.Errorf("At(T[5]) = %v, want %v", y, sol.Y[20:24])
 	}
 	// Bad input.

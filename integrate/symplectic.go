@@ -91,7 +91,7 @@ type splitWork struct {
 	gValid  bool
 	v       []float64 // ∇T scratch
 	unitT   bool      // DT(p) == p exactly on every probe: drifts skip DT
-	hermiteDense
+	symHermite
 }
 
 func newSplitWork(m *splitting, s *Separable, n int) *splitWork {
@@ -111,7 +111,7 @@ func (w *splitWork) probeUnitT() bool {
 	d := make([]float64, w.half)
 	for k := 0; k < 3; k++ {
 		for i := range p {
-			p[i] = probeValue(k, i)
+			p[i] = symProbeValue(k, i)
 		}
 		w.dt(p, d)
 		for i := range p {
@@ -123,9 +123,9 @@ func (w *splitWork) probeUnitT() bool {
 	return true
 }
 
-// probeValue is a fixed, irregular test value (common practice for probing
+// symProbeValue is a fixed, irregular test value (common practice for probing
 // linearity: no structure a user function could accidentally match).
-func probeValue(k, i int) float64 {
+func symProbeValue(k, i int) float64 {
 	return math.Sin(float64(3*k+1)*1.234567+float64(i)*0.7071067811865476) * float64(k+1)
 }
 
@@ -216,7 +216,7 @@ func (*splitWork) stiffness(float64, []float64, []float64) (float64, float64, bo
 	return 0, 0, false
 }
 
-// hermiteDense is the cubic Hermite continuous extension from the states
+// symHermite is the cubic Hermite continuous extension from the states
 // and derivatives at both ends of a step:
 //
 //	u(θ) = h00(θ)·y0 + h10(θ)·h·f0 + h01(θ)·y1 + h11(θ)·h·f1
@@ -229,11 +229,11 @@ func (*splitWork) stiffness(float64, []float64, []float64) (float64, float64, bo
 //
 //	E. Hairer, S. P. Nørsett, G. Wanner, Solving Ordinary Differential
 //	  Equations I, 2nd ed., Springer 1993, Sect. II.6 (Hermite interpolation).
-type hermiteDense struct{}
+type symHermite struct{}
 
-func (hermiteDense) denseSize() int { return 4 }
+func (symHermite) denseSize() int { return 4 }
 
-func (hermiteDense) dense(_, h float64, y, f0, y1, f1, coef []float64) int {
+func (symHermite) dense(_, h float64, y, f0, y1, f1, coef []float64) int {
 	n := len(y)
 	c0, c1, c2, c3 := coef[:n], coef[n:2*n], coef[2*n:3*n], coef[3*n:4*n]
 	for i := range y {
@@ -245,7 +245,7 @@ func (hermiteDense) dense(_, h float64, y, f0, y1, f1, coef []float64) int {
 	return 0
 }
 
-func (hermiteDense) interp(coef []float64, theta float64, dst []float64) {
+func (symHermite) interp(coef []float64, theta float64, dst []float64) {
 	n := len(dst)
 	c0, c1, c2, c3 := coef[:n], coef[n:2*n], coef[2*n:3*n], coef[3*n:4*n]
 	th2 := float64(theta * theta)

@@ -42,9 +42,9 @@ var symMethods = []symMethod{
 	{"BlanesMoan4", BlanesMoan4, 4, 320, 5, 0},
 }
 
-// oscillator is H = (p² + q²)/2 in one degree of freedom; the exact flow is
+// symOscillator is H = (p² + q²)/2 in one degree of freedom; the exact flow is
 // the rotation q(t) = q0 cos t + p0 sin t, p(t) = p0 cos t − q0 sin t.
-func oscillator() Problem {
+func symOscillator() Problem {
 	return Problem{
 		F:  func(_ float64, y, d []float64) { d[0], d[1] = y[1], -y[0] },
 		Y0: []float64{1, 0.5},
@@ -56,9 +56,9 @@ func oscillator() Problem {
 	}
 }
 
-// modelProblem builds an integrate.Problem from the built-in catalog the way
+// symModelProblem builds an integrate.Problem from the built-in catalog the way
 // the root package does (plumb.Model(name).Problem()).
-func modelProblem(t testing.TB, name string) Problem {
+func symModelProblem(t testing.TB, name string) Problem {
 	t.Helper()
 	f, err := models.Lookup(name)
 	if err != nil {
@@ -76,8 +76,8 @@ func modelProblem(t testing.TB, name string) Problem {
 	return p
 }
 
-// fitSlope returns the least-squares slope of log(e) against log(h).
-func fitSlope(h, e []float64) float64 {
+// symFitSlope returns the least-squares slope of log(e) against log(h).
+func symFitSlope(h, e []float64) float64 {
 	var sx, sy, sxx, sxy float64
 	for i := range h {
 		x, y := math.Log(h[i]), math.Log(e[i])
@@ -90,7 +90,7 @@ func fitSlope(h, e []float64) float64 {
 	return (n*sxy - sx*sy) / (n*sxx - sx*sx)
 }
 
-func maxDiff(a, b []float64) float64 {
+func symMaxDiff(a, b []float64) float64 {
 	var m float64
 	for i := range a {
 		m = math.Max(m, math.Abs(a[i]-b[i]))
@@ -98,9 +98,9 @@ func maxDiff(a, b []float64) float64 {
 	return m
 }
 
-// orderSlack is the allowed difference between the fitted and the published
+// symOrderSlack is the allowed difference between the fitted and the published
 // order (REFERENCES.md §5d: "expect the observed order within about ±0.2").
-const orderSlack = 0.2
+const symOrderSlack = 0.2
 
 // TestSymplecticOrderOscillator measures the order of every method on the
 // harmonic oscillator against its exact solution (exact identity: the flow is
@@ -116,19 +116,19 @@ func TestSymplecticOrderOscillator(t *testing.T) {
 			for k := 0; k < m.npoints(); k++ {
 				n := int(math.Round(t1*float64(m.oscN))) << k
 				h := t1 / float64(n)
-				sol, err := Solve(ctx, oscillator(), t1, m.make(h), &Settings{DropSteps: true})
+				sol, err := Solve(ctx, symOscillator(), t1, m.make(h), &Settings{DropSteps: true})
 				if err != nil {
 					t.Fatal(err)
 				}
 				hs = append(hs, h)
-				es = append(es, maxDiff(sol.Final, exact))
+				es = append(es, symMaxDiff(sol.Final, exact))
 			}
-			got := fitSlope(hs, es)
+			got := symFitSlope(hs, es)
 			t.Logf("errors %.3g, fitted order %.3f", es, got)
 			// Source: published order (Verlet 1967; Forest & Ruth 1990;
 			// Yoshida 1990 Tables 1–2; Omelyan et al. 2002; Blanes & Moan 2002).
-			if math.Abs(got-float64(m.order)) > orderSlack {
-				t.Errorf("fitted order %.3f, want %d ± %g", got, m.order, orderSlack)
+			if math.Abs(got-float64(m.order)) > symOrderSlack {
+				t.Errorf("fitted order %.3f, want %d ± %g", got, m.order, symOrderSlack)
 			}
 		})
 	}
@@ -139,7 +139,7 @@ func TestSymplecticOrderOscillator(t *testing.T) {
 // Wanner 2006, Ch. I: semi-major axis 1, period 2π).
 func TestSymplecticOrderKepler(t *testing.T) {
 	ctx := context.Background()
-	p := modelProblem(t, "kepler")
+	p := symModelProblem(t, "kepler")
 	t1 := 2 * math.Pi
 	for _, m := range symMethods {
 		t.Run(m.name, func(t *testing.T) {
@@ -152,13 +152,13 @@ func TestSymplecticOrderKepler(t *testing.T) {
 					t.Fatal(err)
 				}
 				hs = append(hs, h)
-				es = append(es, maxDiff(sol.Final, p.Y0))
+				es = append(es, symMaxDiff(sol.Final, p.Y0))
 			}
-			got := fitSlope(hs, es)
+			got := symFitSlope(hs, es)
 			t.Logf("errors %.3g, fitted order %.3f", es, got)
 			// Source: published orders, as in the oscillator test.
-			if math.Abs(got-float64(m.order)) > orderSlack {
-				t.Errorf("fitted order %.3f, want %d ± %g", got, m.order, orderSlack)
+			if math.Abs(got-float64(m.order)) > symOrderSlack {
+				t.Errorf("fitted order %.3f, want %d ± %g", got, m.order, symOrderSlack)
 			}
 		})
 	}
@@ -166,7 +166,7 @@ func TestSymplecticOrderKepler(t *testing.T) {
 
 // TestSymplecticNeedsSplit checks the declared needs: no Split, no method.
 func TestSymplecticNeedsSplit(t *testing.T) {
-	p := oscillator()
+	p := symOscillator()
 	p.Split = nil
 	for _, m := range symMethods {
 		_, err := Solve(context.Background(), p, 1, m.make(0.1), nil)
@@ -174,17 +174,17 @@ func TestSymplecticNeedsSplit(t *testing.T) {
 			t.Errorf("%s without Split: err = %v, want ErrMethod", m.name, err)
 		}
 	}
-	_, err := Solve(context.Background(), oscillator(), 1, Verlet(-1), nil)
+	_, err := Solve(context.Background(), symOscillator(), 1, Verlet(-1), nil)
 	if !errors.Is(err, ErrSettings) {
 		t.Errorf("Verlet(-1): err = %v, want ErrSettings", err)
 	}
-	_, err = Solve(context.Background(), oscillator(), 1, Verlet(math.NaN()), nil)
+	_, err = Solve(context.Background(), symOscillator(), 1, Verlet(math.NaN()), nil)
 	if !errors.Is(err, ErrSettings) {
 		t.Errorf("Verlet(NaN): err = %v, want ErrSettings", err)
 	}
 	// A kinetic energy that is not quadratic (relativistic T = sqrt(1+p²)):
 	// every splitting accepts it.
-	rel := oscillator()
+	rel := symOscillator()
 	rel.Split.DT = func(p, d []float64) { d[0] = p[0] / math.Sqrt(1+p[0]*p[0]) }
 	// The general splittings accept it.
 	for _, m := range symMethods {
@@ -198,7 +198,7 @@ func TestSymplecticNeedsSplit(t *testing.T) {
 // Gauss–Legendre method does not allocate (STYLE.md rule 8).
 func TestSymplecticAllocs(t *testing.T) {
 	ctx := context.Background()
-	p := modelProblem(t, "henon-heiles")
+	p := symModelProblem(t, "henon-heiles")
 	for _, m := range []Method{Verlet(0.01), VerletDKD(0.01), Yoshida8(0.01), PEFRL(0.01), BlanesMoan4(0.01), GaussLegendre(3, 0.01)} {
 		st, err := NewStepper(p, 1e6, m, &Settings{MaxSteps: 1 << 30})
 		if err != nil {
@@ -215,7 +215,7 @@ func TestSymplecticAllocs(t *testing.T) {
 // Yoshida 8 (and, for scale, Gauss–Legendre 3 and DormandPrince54) on
 // Hénon–Heiles through the Stepper.
 func BenchmarkSymplectic(b *testing.B) {
-	p := modelProblem(b, "henon-heiles")
+	p := symModelProblem(b, "henon-heiles")
 	for _, c := range []struct {
 		name string
 		m    Method
@@ -256,7 +256,7 @@ func TestSymplecticDense(t *testing.T) {
 	var hs, es []float64
 	for _, n := range []int{20, 40, 80, 160} {
 		h := 2.0 / float64(n)
-		sol, err := Solve(ctx, oscillator(), 2, Yoshida8(h), nil)
+		sol, err := Solve(ctx, symOscillator(), 2, Yoshida8(h), nil)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -265,14 +265,14 @@ func TestSymplecticDense(t *testing.T) {
 			tt := (float64(k) + 0.5) * h
 			y := sol.At(tt, nil)
 			ex := []float64{math.Cos(tt) + 0.5*math.Sin(tt), 0.5*math.Cos(tt) - math.Sin(tt)}
-			worst = math.Max(worst, maxDiff(y, ex))
+			worst = math.Max(worst, symMaxDiff(y, ex))
 		}
 		hs = append(hs, h)
 		es = append(es, worst)
 	}
-	got := fitSlope(hs, es)
+	got := symFitSlope(hs, es)
 	t.Logf("mid-step errors %.3g, fitted order %.3f", es, got)
-	if math.Abs(got-4) > orderSlack {
+	if math.Abs(got-4) > symOrderSlack {
 		t.Errorf("dense output error order %.3f, want 4 (interpolant of order 3)", got)
 	}
 }
@@ -281,7 +281,7 @@ func TestSymplecticDense(t *testing.T) {
 // ErrNonFinite and the partial solution; a canceled context ends an energy
 // audit with the context's error and the partial report.
 func TestSymplecticBadField(t *testing.T) {
-	p := oscillator()
+	p := symOscillator()
 	p.Split.DV = func(q, d []float64) {
 		d[0] = q[0]
 		if q[0] < 0 {
@@ -297,7 +297,7 @@ func TestSymplecticBadField(t *testing.T) {
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	n := 0
-	rep, err := EnergyAudit(ctx, oscillator(), 100, Verlet, 0.01, &EnergySettings{Progress: func(float64) {
+	rep, err := EnergyAudit(ctx, symOscillator(), 100, Verlet, 0.01, &EnergySettings{Progress: func(float64) {
 		if n++; n == 50 {
 			cancel()
 		}
@@ -312,7 +312,7 @@ func TestSymplecticBadField(t *testing.T) {
 // drift-first ones need one more for the derivative at the step end).
 // Source: the coefficient sequences (exact counts).
 func TestSymplecticEvaluations(t *testing.T) {
-	p := modelProblem(t, "henon-heiles")
+	p := symModelProblem(t, "henon-heiles")
 	for _, c := range []struct {
 		m    Method
 		want int
@@ -340,7 +340,7 @@ func TestSymplecticEvaluations(t *testing.T) {
 // BenchmarkSplittingKernel times the bare step map (no Stepper), the cost a
 // caller with its own loop pays.
 func BenchmarkSplittingKernel(b *testing.B) {
-	p := modelProblem(b, "henon-heiles")
+	p := symModelProblem(b, "henon-heiles")
 	for _, mk := range []func(float64) Method{Verlet, Yoshida8} {
 		m := mk(0.01).(*splitting)
 		b.Run(m.name, func(b *testing.B) {
