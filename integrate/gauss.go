@@ -129,6 +129,12 @@ type gaussWork struct {
 	piv    []int
 	rhs    []float64
 	failed error // the cause of the last failed attempt, nil after success
+	// The previous step, for the starting guess (see predict).
+	extrap         []float64 // s×s extrapolation weights
+	prevZ          []float64 // stages of the previous step, s·n
+	prevY1, prevDy []float64 // its end state and increment, n each
+	prevH          float64
+	havePrev       bool
 	symHermite
 }
 
@@ -145,6 +151,9 @@ func newGaussWork(s int, p *Problem, n int) *gaussWork {
 	off += n * n
 	w.lu = buf[off : off+sn*sn : off+sn*sn]
 	w.piv = make([]int, sn)
+	w.extrap = gaussExtrapolation(c)
+	prev := make([]float64, sn+2*n)
+	w.prevZ, w.prevY1, w.prevDy = prev[:sn:sn], prev[sn:sn+n:sn+n], prev[sn+n:sn+2*n:sn+2*n]
 	if w.jac != nil {
 		w.jm = mat.NewDense(n, n, nil)
 	}
@@ -220,13 +229,7 @@ func (w *gaussWork) increment(h float64, y []float64) float64 {
 func (w *gaussWork) solve(t, h float64, y, f0, y1 []float64) (int, error) {
 	n, s := w.n, w.s
 	evals := 0
-	// Starting guess: Z_i = c_i h f0 (the Euler predictor).
-	for i := 0; i < s; i++ {
-		ch := float64(w.c[i] * h)
-		for l := 0; l < n; l++ {
-			w.z[i*n+l] = float64(ch * f0[l])
-		}
-	}
+	w.predict(h, y, f0)
 	prev := math.Inf(1)
 	converged := false
 	for k := 0; k < gaussMaxFixed; k++ {
@@ -265,9 +268,78 @@ func (w *gaussWork) solve(t, h float64, y, f0, y1 []float64) (int, error) {
 		y1[l] = y[l] + float64(h*acc)
 	}
 	if firstNonFinite(y1[:n]) >= 0 {
+		w.havePrev = false
 		return evals, fmt.Errorf("implicit stages: non-finite stage values: %w", ErrNoConvergence)
 	}
+	// Keep the stages for the next step's starting guess.
+	copy(w.prevZ, w.z)
+	copy(w.prevY1, y1[:n])
+	for l := 0; l < n; l++ {
+		w.prevDy[l] = y1[l] - y[l]
+	}
+	w.prevH = h
+	w.havePrev = true
 	return evals, nil
+}
+
+// predict writes the starting guess of the stages. After a step of the
+// same size (to 1e-6 relative: the fixed-step grid's steps differ by
+// rounding) ending at y, it extrapolates the previous collocation
+// polynomial u (Hairer, Lubich & Wanner 2006, Sect. VIII.6.1):
+//
+//	Z_i = u(t_n + (1 + c_i)h) − y_{n+1} = Σ_j E_ij Z_j^old − (y_{n+1} − y_n)
+//
+// with E_ij = L_j(1 + c_i), L_j the Lagrange basis on the nodes
+// {0, c_1, …, c_s}. Otherwise it takes the Euler guess Z_i = c_i h f0.
+func (w *gaussWork) predict(h float64, y, f0 []float64) {
+	n, s := w.n, w.s
+	if w.havePrev && math.Abs(h-w.prevH) <= 1e-6*math.Abs(h) {
+		same := true
+		for l := 0; l < n; l++ {
+			if y[l] != w.prevY1[l] {
+				same = false
+				break
+			}
+		}
+		if same {
+			for i := 0; i < s; i++ {
+				for l := 0; l < n; l++ {
+					var acc float64
+					for j := 0; j < s; j++ {
+						acc += float64(w.extrap[i*s+j] * w.prevZ[j*n+l])
+					}
+					w.z[i*n+l] = acc - w.prevDy[l]
+				}
+			}
+			return
+		}
+	}
+	for i := 0; i < s; i++ {
+		ch := float64(w.c[i] * h)
+		for l := 0; l < n; l++ {
+			w.z[i*n+l] = float64(ch * f0[l])
+		}
+	}
+}
+
+// gaussExtrapolation returns E_ij = L_j(1 + c_i) for the Lagrange basis L_j
+// on the nodes {0, c_1, …, c_s} belonging to c_j.
+func gaussExtrapolation(c []float64) []float64 {
+	s := len(c)
+	e := make([]float64, s*s)
+	for i := 0; i < s; i++ {
+		x := 1 + c[i]
+		for j := 0; j < s; j++ {
+			l := (x - 0) / (c[j] - 0)
+			for k := 0; k < s; k++ {
+				if k != j {
+					l *= (x - c[k]) / (c[j] - c[k])
+				}
+			}
+			e[i*s+j] = l
+		}
+	}
+	return e
 }
 
 // newton solves the stage equations by simplified Newton iteration with the
