@@ -7,7 +7,8 @@ package integrate
 // it). Stats.Evaluations counts evaluations of ∇V (Separable.DV); the
 // derivative at each step end, for dense output, costs one more ∇V for
 // methods that end with a drift, none for those that end with a kick. Dense
-// output is the cubic Hermite interpolant of the step ends (order 3).
+// output is the cubic Hermite interpolant of the step ends (order 3). With
+// Separable.DT = UnitMass the drifts need no call (Runge–Kutta–Nyström form).
 //
 // Symmetric compositions of the Störmer–Verlet step S(h) have the form
 //
@@ -120,7 +121,7 @@ func VerletDKD(h float64) Method {
 // ForestRuth returns the fourth-order method of Forest & Ruth: the triple
 // jump S(w1 h) S(w0 h) S(w1 h) of drift-kick-drift Störmer–Verlet steps with
 // w1 = 1/(2 − 2^(1/3)), w0 = 1 − 2w1. Order 4, symmetric, symplectic, three
-// evaluations of ∇V per step.
+// evaluations of ∇V per step (four through a Stepper).
 //
 // References:
 //
@@ -184,8 +185,9 @@ func Yoshida8(h float64) Method {
 //
 // with ξ = 0.1786178958448091, λ = −0.2123418310626054,
 // χ = −0.06626458266981849. Order 4, symmetric, symplectic, four evaluations
-// of ∇V per step; its error constant is much smaller than Forest–Ruth's
-// (see the package tests for the measured ratio).
+// of ∇V per step (five through a Stepper: one more for the derivative at the
+// step end). On Kepler (e = 0.6) at equal step size its error is about a
+// tenth of Forest–Ruth's (measured in the package tests).
 //
 // References:
 //
@@ -210,7 +212,9 @@ func PEFRL(h float64) Method {
 // (T = ½pᵀM⁻¹p, d²q/dt² = −M⁻¹∇V(q)); being symmetric it satisfies the
 // order-4 conditions of any separable Hamiltonian (the even-degree terms
 // of its modified equation vanish), so it is of order 4 in general.
-// Symmetric, symplectic, six evaluations of ∇V per step.
+// Symmetric, symplectic, six evaluations of ∇V per step. On Kepler
+// (e = 0.6) at equal step size its error is about 1/300 of PEFRL's
+// (measured in the package tests).
 //
 // References:
 //

@@ -28,7 +28,8 @@ type HamiltonianProblem struct {
 	Q0, P0 []float64 // initial positions and momenta, equal lengths N > 0
 
 	// DT writes ∂T/∂p at p into dst. Nil means M⁻¹p with the diagonal
-	// masses Mass (unit masses when Mass is nil too).
+	// masses Mass, or UnitMass when Mass is nil too (the splittings then
+	// run in their Runge–Kutta–Nyström form).
 	DT func(p, dst []float64)
 	// Mass holds positive diagonal masses (length N) for T = Σ p_i²/(2 m_i),
 	// used when DT is nil.
@@ -94,7 +95,7 @@ func (hp HamiltonianProblem) Problem() (Problem, error) {
 	kin := hp.Kinetic
 	if dt == nil {
 		if invMass == nil {
-			dt = func(p, dst []float64) { copy(dst, p) }
+			dt = UnitMass
 			if kin == nil {
 				kin = func(p []float64) float64 {
 					var s float64
