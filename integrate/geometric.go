@@ -142,7 +142,7 @@ func EnergyAudit(ctx context.Context, p Problem, t1 float64, family func(h float
 	rep.E0 = energy(p.Y0)
 
 	// Main run.
-	st, err := NewStepper(p, t1, m, &Settings{MaxSteps: steps + 1, Progress: s.Progress})
+	st, err := NewStepper(p, t1, m, &Settings{MaxSteps: steps + 2, Progress: s.Progress})
 	if err != nil {
 		return nil, err
 	}
@@ -175,13 +175,13 @@ func EnergyAudit(ctx context.Context, p Problem, t1 float64, family func(h float
 	if bCount > 0 {
 		rep.History[blk].RMS = math.Sqrt(bSum / float64(bCount))
 	}
+	rep.Steps = k
 	rep.Evaluations = st.Stats().Evaluations
 	rep.Final = append([]float64(nil), st.Y()...)
 	if k > 0 {
 		rep.RMSError = math.Sqrt(sumSq / float64(k))
 	}
 	if err := auditStepperErr(st); err != nil {
-		rep.Steps = k
 		return rep, err
 	}
 	if rep.History[0].Max > 0 {

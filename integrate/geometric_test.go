@@ -484,6 +484,25 @@ func TestSolveReversible(t *testing.T) {
 	if math.Abs(got-2) > symOrderSlack {
 		t.Errorf("order in eps %.3f, want 2", got)
 	}
+	// Gauss–Legendre 2 as the symmetric base method, 20 periods.
+	sg, err := SolveReversible(ctx, p, 20*2*math.Pi, func(h float64) Method { return GaussLegendre(2, h) }, 0.05, DistanceScale(1.5), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var gFirst, gLast float64
+	for i, tt := range sg.T {
+		y := sg.Y[i*4 : i*4+4]
+		e := math.Abs(p.Split.H(y[:2], y[2:]) + 0.5)
+		if tt <= 2*2*math.Pi {
+			gFirst = math.Max(gFirst, e)
+		} else if tt >= 18*2*math.Pi {
+			gLast = math.Max(gLast, e)
+		}
+	}
+	t.Logf("Gauss 2 adaptive: %d steps, energy error first tenth %.3g, last tenth %.3g", sg.Stats.Accepted, gFirst, gLast)
+	if gLast > 2*gFirst {
+		t.Errorf("Gauss 2 adaptive energy error grew: %.3g -> %.3g", gFirst, gLast)
+	}
 	// Dense output at a step end equals the step.
 	if y := sol.At(sol.T[5], nil); symMaxDiff(y, sol.Y[20:24]) != 0 {
 		t.Errorf("At(T[5]) = %v, want %v", y, sol.Y[20:24])
