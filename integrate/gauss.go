@@ -34,9 +34,12 @@ var ErrNoConvergence = errors.New("stage equations did not converge")
 // for the non-finite state the failed step leaves; EnergyAudit and
 // SolveReversible report ErrNoConvergence itself.)
 //
-// Cost per step: s evaluations per fixed-point iteration (typically 5–20
-// iterations at moderate h·L), plus one evaluation at the step end; Newton
-// adds O((sn)³) work. An invalid s gives ErrMethod when the solve starts.
+// Cost per step: s evaluations per fixed-point iteration, s more for the
+// update and one at the step end; the starting guess extrapolates the
+// previous step's collocation polynomial (on Hénon–Heiles with h = 0.01,
+// s = 3 takes about 16 evaluations per step). Newton adds O((sn)³) work and,
+// without Problem.Jac, n evaluations. An invalid s gives ErrMethod when the
+// solve starts.
 // Dense output: cubic Hermite (order 3).
 //
 // References:
