@@ -103,7 +103,7 @@ func TestRoundBitsTies(t *testing.T) {
 		p    int
 		want float64
 	}{
-		{"halfway down to even", 1 + 0x1p-24, 24, 1},          // 1.000…0|1 → 1 (last kept bit 0)
+		{"halfway down to even", 1 + 0x1p-24, 24, 1},           // 1.000…0|1 → 1 (last kept bit 0)
 		{"halfway up to even", 1 + 3*0x1p-24, 24, 1 + 0x1p-22}, // …01|1 → …10
 		{"just above halfway", 1 + 0x1p-24 + 0x1p-52, 24, 1 + 0x1p-23},
 		{"just below halfway", 1 + 0x1p-24 - 0x1p-52, 24, 1},
