@@ -59,8 +59,11 @@ type Rung struct {
 	// Fixed, with Step, makes the run's method Fixed(Step) (for RK4 and
 	// Euler); it overrides Method.
 	Fixed func(h float64) Method
-	// Step is the step size of Fixed; zero means the reference run's mean
-	// accepted step. Must be finite and >= 0.
+	// Step is the step size of Fixed; zero means an eighth of the
+	// reference run's mean accepted step (a heuristic: fine enough that a
+	// fourth-order method lands near the tolerance rungs on smooth
+	// problems, coarse enough to show the method's own error). Must be
+	// finite and >= 0.
 	Step float64
 	// RelTol and AbsTol are the run's tolerances; zero means the
 	// reference's. A KindTolerance rung must set RelTol > 0.
@@ -81,7 +84,8 @@ type Rung struct {
 
 // Ladder is the set of runs an audit compares: a Reference (the tightest
 // run) and the Rungs compared with it. The zero Reference means
-// DormandPrince54 at RelTol = AbsTol = 1e-12.
+// DormandPrince54 at RelTol = AbsTol = 1e-12 (DefaultLadder uses
+// DormandPrince853).
 type Ladder struct {
 	Reference Rung
 	Rungs     []Rung
@@ -96,8 +100,11 @@ const (
 // DefaultLadder returns the ladder the audit uses when none is given, for
 // the span [t0, t1]:
 //
-//	reference  DormandPrince54, RelTol = AbsTol = 1e-12
+//	reference  DormandPrince853, RelTol = AbsTol = 1e-12
 //	tolerance  DormandPrince54 at RelTol = AbsTol = 1e-6 (Solve's default), 1e-8, 1e-10
+//	method     DormandPrince853 at RelTol = AbsTol = 1e-8 (beside DormandPrince54
+//	           at 1e-8: the method's effect at equal tolerance); RK4 with an
+//	           eighth of the reference's mean step
 //	precision  the reference with the state stored at 24 bits (float32) and at 40 bits
 //	restart    the reference restarted at t0 + 0.8·(t1 - t0) from its state
 //	           rounded to 3 decimal places
@@ -105,11 +112,13 @@ const (
 // The two precisions let the audit extrapolate the horizon of float64
 // storage itself (53 bits), which no run here can measure directly.
 func DefaultLadder(t0, t1 float64) Ladder {
-	l := Ladder{Reference: Rung{Kind: KindReference, Method: DormandPrince54, RelTol: ReferenceRelTol, AbsTol: ReferenceAbsTol}}
+	l := Ladder{Reference: Rung{Kind: KindReference, Method: DormandPrince853, RelTol: ReferenceRelTol, AbsTol: ReferenceAbsTol}}
 	for _, tol := range []float64{1e-6, 1e-8, 1e-10} {
 		l.Rungs = append(l.Rungs, Rung{Kind: KindTolerance, Method: DormandPrince54, RelTol: tol, AbsTol: tol})
 	}
 	l.Rungs = append(l.Rungs,
+		Rung{Kind: KindMethod, Method: DormandPrince853, RelTol: 1e-8, AbsTol: 1e-8},
+		Rung{Kind: KindMethod, Fixed: RK4},
 		Rung{Kind: KindPrecision, Rounding: Bits(24)},
 		Rung{Kind: KindPrecision, Rounding: Bits(40)},
 		Rung{Kind: KindRestart, RestartAt: t0 + 0.8*(t1-t0), Restart: Places(3)},
@@ -219,7 +228,7 @@ func (r Rung) resolve(ref *resolvedRung, hRef float64) resolvedRung {
 	out.m = out.Method
 	if out.Fixed != nil {
 		if out.Step == 0 {
-			out.Step = hRef
+			out.Step = hRef / autoStepDivisor
 		}
 		out.m = out.Fixed(out.Step)
 	}
@@ -245,6 +254,10 @@ func (r resolvedRung) defaultName() string {
 	}
 	return fmt.Sprintf("%s rtol %.0e", r.m.Name(), r.RelTol)
 }
+
+// autoStepDivisor sets the automatic fixed step: the reference's mean step
+// divided by it (see Rung.Step).
+const autoStepDivisor = 8
 
 // meanStep is the mean accepted step of a solution, for automatic fixed steps.
 func meanStep(s *Solution) float64 {
