@@ -25,7 +25,7 @@ func catalogProblem(t *testing.T, name string) Problem {
 	return Problem{F: f.Field(f.Defaults()), Y0: append([]float64(nil), f.Y0...)}
 }
 
-// oscillator is y'' = -y from (1, 0): a linear, non-chaotic flow.
+// oscillator is y” = -y from (1, 0): a linear, non-chaotic flow.
 func oscillator() Problem {
 	return Problem{F: func(_ float64, y, d []float64) { d[0] = y[1]; d[1] = -y[0] }, Y0: []float64{1, 0}}
 }
