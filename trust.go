@@ -263,11 +263,16 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 		Tol: s.Tol, Relative: s.Relative, Every: s.Every, Periods: s.Periods, Reverse: !s.NoReversal,
 	}
 
-	// The exponent comes first, so the audit can set predictions beside the
-	// measured horizons. Validate the audit's own input before spending
-	// time on it.
-	if err := checkAudit(problem, t1, ladder, as); err != nil {
-		return nil, err
+	// The audit first: it validates its input before any work, so bad input
+	// costs nothing. The exponent then sets predictions beside the measured
+	// horizons.
+	res, err := integrate.Audit(ctx, problem, t1, ladder, as)
+	if res == nil {
+		return nil, fmt.Errorf("plumb: trust: %w", err)
+	}
+	if err != nil {
+		rep.fill(res)
+		return rep, fmt.Errorf("plumb: trust: %w", err)
 	}
 	lambda := s.Lambda
 	if lambda > 0 {
@@ -277,6 +282,7 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 		switch {
 		case err != nil:
 			if ctx.Err() != nil {
+				rep.fill(res)
 				return rep, fmt.Errorf("plumb: trust canceled during the exponent estimate: %w", err)
 			}
 			rep.ExponentError = err.Error()
@@ -287,37 +293,14 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 			}
 			if e.Value > 0 {
 				e.LyapunovTime = 1 / e.Value
-			}
-			rep.Exponent = e
-			if e.Value > 0 {
 				lambda = e.Value
 			}
+			rep.Exponent = e
 		}
 	}
-	as.Lambda = lambda
-
-	res, err := integrate.Audit(ctx, problem, t1, ladder, as)
-	if res != nil {
-		rep.fill(res)
-	}
-	if err != nil {
-		return rep, fmt.Errorf("plumb: trust: %w", err)
-	}
+	res.Predict(lambda)
+	rep.fill(res)
 	return rep, nil
-}
-
-// checkAudit runs the audit's entry checks cheaply: a one-rung-free probe is
-// not possible, so it validates by running Audit on a canceled context,
-// which returns the validation error if there is one and otherwise stops
-// before the first step.
-func checkAudit(p integrate.Problem, t1 float64, l integrate.Ladder, s *integrate.AuditSettings) error {
-	ctx, cancel := context.WithCancel(context.Background())
-	cancel()
-	_, err := integrate.Audit(ctx, p, t1, l, s)
-	if err == nil || errors.Is(err, context.Canceled) {
-		return nil
-	}
-	return fmt.Errorf("plumb: trust: %w", err)
 }
 
 // fill copies the audit into the report and draws the conclusions.

@@ -117,11 +117,9 @@ type RungResult struct {
 	// RelTol·magnitude + AbsTol for error-controlled methods; 0 (unknown)
 	// for fixed-step methods.
 	Delta0 float64
-	// Predicted is the horizon predicted from the largest Lyapunov exponent,
-	//
-	//	t_start + ln(tol/Delta0)/lambda   (Boffetta et al. 2002, Sect. 2.1),
-	//
-	// or 0 when there is no prediction (Lambda <= 0 or Delta0 unknown).
+	// Predicted is the horizon predicted from the largest Lyapunov exponent
+	// (see AuditResult.Predict), or 0 when there is no prediction (no
+	// exponent, or Delta0 unknown).
 	Predicted float64
 	// Growth is the fitted growth law of the divergence.
 	Growth Growth
@@ -153,7 +151,7 @@ type Reversal struct {
 // time units.
 type RoundoffFit struct {
 	Slope          float64 // fitted time units per bit
-	PredictedSlope float64 // ln 2/Lambda, 0 without Lambda
+	PredictedSlope float64 // ln 2/lambda, 0 without an exponent (see Predict)
 	Float64Horizon float64 // a + Slope·53
 	Points         int     // number of precision rungs in the fit
 }
@@ -357,7 +355,8 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 			}
 		}
 	}
-	res.Roundoff = roundoffFit(res.Rungs, s.Lambda)
+	res.Roundoff = roundoffFit(res.Rungs)
+	res.Predict(s.Lambda)
 	if s.Reverse {
 		at := s.ReverseAt
 		if at == 0 {
@@ -501,13 +500,43 @@ func (a *auditor) run(r resolvedRung, mag float64) RungResult {
 		out.Horizon = sol.End
 	}
 	out.Growth = fitGrowth(a.times[start:start+len(out.Divergence)], out.Divergence, tStart, a.ceil)
-	if a.s.Lambda > 0 && out.Delta0 > 0 {
-		out.Predicted = tStart
-		if out.Delta0 < a.tol {
-			out.Predicted = tStart + math.Log(a.tol/out.Delta0)/a.s.Lambda
+	return out
+}
+
+// Predict sets the predicted horizons of the rungs and the predicted slope of
+// the roundoff fit from the largest Lyapunov exponent lambda,
+//
+//	t_start + ln(tol/delta0)/lambda   (Boffetta et al. 2002, Sect. 2.1),
+//
+// with t_start the rung's start (the restart time for restart rungs) and
+// delta0 its a-priori perturbation (RungResult.Delta0); a delta0 at or above
+// the tolerance predicts t_start. A lambda <= 0 (or not finite) clears the
+// predictions: without exponential growth the formula says nothing. Audit
+// calls it with AuditSettings.Lambda; callers that estimate the exponent
+// after the audit call it themselves.
+func (res *AuditResult) Predict(lambda float64) {
+	ok := lambda > 0 && !math.IsInf(lambda, 0)
+	for i := range res.Rungs {
+		r := &res.Rungs[i]
+		r.Predicted = 0
+		if !ok || !(r.Delta0 > 0) {
+			continue
+		}
+		t0 := res.T0
+		if r.Rung.Kind == KindRestart {
+			t0 = r.Rung.RestartAt
+		}
+		r.Predicted = t0
+		if r.Delta0 < res.Tol {
+			r.Predicted = t0 + math.Log(res.Tol/r.Delta0)/lambda
 		}
 	}
-	return out
+	if res.Roundoff != nil {
+		res.Roundoff.PredictedSlope = 0
+		if ok {
+			res.Roundoff.PredictedSlope = math.Ln2 / lambda
+		}
+	}
 }
 
 // horizon returns the first time d exceeds the tolerance (log-linear
@@ -617,7 +646,7 @@ func lineFit(x, y []float64) (b, se, rss float64) {
 
 // roundoffFit fits the horizons of the departed BinaryBits precision rungs
 // against their bits.
-func roundoffFit(rs []RungResult, lambda float64) *RoundoffFit {
+func roundoffFit(rs []RungResult) *RoundoffFit {
 	var x, y []float64
 	for _, r := range rs {
 		if r.Rung.Kind == KindPrecision && r.Rung.Rounding.Kind == BinaryBits && r.Departed && r.Err == nil {
@@ -639,11 +668,7 @@ func roundoffFit(rs []RungResult, lambda float64) *RoundoffFit {
 	}
 	mx /= float64(len(x))
 	my /= float64(len(x))
-	f := &RoundoffFit{Slope: b, Float64Horizon: my + float64(b*(53-mx)), Points: len(x)}
-	if lambda > 0 {
-		f.PredictedSlope = math.Ln2 / lambda
-	}
-	return f
+	return &RoundoffFit{Slope: b, Float64Horizon: my + float64(b*(53-mx)), Points: len(x)}
 }
 
 // reverse integrates the reference state at T back to t0 with the
