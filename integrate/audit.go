@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 )
 
 // AuditSettings controls Audit. A nil *AuditSettings is invalid (Tol has no
@@ -34,7 +35,8 @@ type AuditSettings struct {
 	// reported.
 	Reverse bool
 	// ReverseAt is the turning time of the reversibility check; zero means
-	// the trusted horizon (AuditResult.Trusted). Must lie in (t0, t1].
+	// the trusted horizon (AuditResult.Trusted). The check turns at the last
+	// grid time at or before it. Must lie in (t0, t1].
 	ReverseAt float64
 	// MaxSteps bounds every run's attempted steps; zero means
 	// DefaultMaxSteps. Must be >= 0.
@@ -191,6 +193,10 @@ type AuditResult struct {
 	Roundoff *RoundoffFit
 }
 
+// maxGrid bounds the comparison grid: every rung keeps a curve on it and
+// every run samples its states there.
+const maxGrid = 1_000_000
+
 // Fit parameters of the growth range.
 const (
 	// minFitPoints is the least number of points for a two-parameter fit
@@ -222,8 +228,8 @@ const (
 // canceled context ends the audit with the rungs done so far.
 //
 // Cost: one solve per rung plus the reference (and one backward solve for
-// the reversibility check); memory O(grid·rungs) plus the reference's dense
-// output.
+// the reversibility check); memory O(grid·(rungs + n)), whatever the number
+// of steps.
 //
 // References:
 //
@@ -277,8 +283,8 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 	if every == 0 {
 		every = span / 1000
 	}
-	if span/every > 1e7 {
-		return nil, auditErr("Every", s.Every, fmt.Sprintf("gives more than 1e7 grid points over %g", span))
+	if span/every > maxGrid {
+		return nil, auditErr("Every", s.Every, fmt.Sprintf("gives more than %g grid points over %g", float64(maxGrid), span))
 	}
 	if len(l.Rungs) == 0 {
 		return nil, &RungError{Index: -1, Name: l.Reference.Name, Err: fmt.Errorf("no rung besides the reference: %w", ErrLadder)}
@@ -297,10 +303,16 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 	a.times = grid(p.T0, t1, every)
 	res := &AuditResult{T0: p.T0, T1: t1, Times: a.times, Limit: -1}
 
-	// The reference run keeps its dense output for restarts and reversal.
+	// The reference run keeps no steps: it is sampled on the grid and at
+	// the restart times, so memory stays O(grid) however long the span.
 	ref := refRung.resolve(nil, 0)
+	if ref.m == nil {
+		return nil, &RungError{Index: -1, Name: ref.Name, Err: fmt.Errorf("Fixed(%g) returned a nil method: %w", ref.Step, ErrLadder)}
+	}
 	res.Reference = RungResult{Rung: ref.Rung, Method: ref.m.Name()}
-	refSol, err := Solve(ctx, p, t1, ref.m, a.settings(ref, a.times, false))
+	var gridIdx []int
+	a.refT, gridIdx = mergeTimes(a.times, l.Rungs)
+	refSol, err := Solve(ctx, p, t1, ref.m, a.settings(ref, a.refT, true))
 	if refSol != nil {
 		res.Reference.Stats = refSol.Stats
 	}
@@ -308,7 +320,15 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		res.Reference.Err = err
 		return res, &RungError{Index: -1, Name: ref.Name, Err: err}
 	}
-	a.ref = refSol
+	a.refStats = refSol.Stats
+	a.refS = make([][]float64, len(refSol.Samples))
+	a.refY = make([][]float64, len(a.times))
+	for i, smp := range refSol.Samples {
+		a.refS[i] = smp.Y
+		if g := gridIdx[i]; g >= 0 {
+			a.refY[g] = smp.Y
+		}
+	}
 	res.Spread, res.Magnitude = a.spread()
 	res.Tol = s.Tol
 	if s.Relative {
@@ -323,12 +343,21 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		a.ceil = math.Inf(1)
 	}
 	hRef := meanStep(refSol)
+	if n := len(refSol.Samples); n != len(a.refT) {
+		panic(fmt.Sprintf("integrate: audit reference has %d samples for %d times", n, len(a.refT)))
+	}
 
 	for i, r := range l.Rungs {
 		if err := ctx.Err(); err != nil {
 			return res, fmt.Errorf("integrate: audit canceled before rung %d: %w", i, err)
 		}
 		rr := r.resolve(&ref, hRef)
+		if rr.m == nil {
+			res.Rungs = append(res.Rungs, RungResult{Rung: rr.Rung, Horizon: p.T0,
+				Err: &RungError{Index: i, Name: rr.Name, Err: fmt.Errorf("Fixed(%g) returned a nil method: %w", rr.Step, ErrLadder)}})
+			res.Failed++
+			continue
+		}
 		out := a.run(rr, res.Magnitude)
 		res.Rungs = append(res.Rungs, out)
 		if out.Err != nil {
@@ -362,8 +391,13 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		if at == 0 {
 			at = res.Trusted
 		}
-		if at > p.T0 {
-			res.Reversal = a.reverse(ref, at)
+		// Turn at the last grid time at or before it.
+		k := sort.SearchFloat64s(a.times, at)
+		if k == len(a.times) || a.times[k] > at {
+			k--
+		}
+		if k > 0 {
+			res.Reversal = a.reverse(ref, k)
 		}
 	}
 	return res, nil
@@ -371,6 +405,48 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 
 func auditErr(field string, v any, why string) error {
 	return fmt.Errorf("integrate: AuditSettings.%s = %v: %s: %w", field, v, why, ErrSettings)
+}
+
+// mergeTimes merges the grid with the restart times of the rungs. gridIdx[i]
+// is the grid index of times[i], or -1 for a restart time off the grid.
+func mergeTimes(grid []float64, rungs []Rung) (times []float64, gridIdx []int) {
+	var rs []float64
+	for _, r := range rungs {
+		if r.Kind == KindRestart {
+			rs = append(rs, r.RestartAt)
+		}
+	}
+	sort.Float64s(rs)
+	times = make([]float64, 0, len(grid)+len(rs))
+	gridIdx = make([]int, 0, len(grid)+len(rs))
+	i, j := 0, 0
+	for i < len(grid) || j < len(rs) {
+		switch {
+		case j < len(rs) && i < len(grid) && rs[j] == grid[i]:
+			j++ // on the grid: the grid point is taken next
+		case j < len(rs) && (i == len(grid) || rs[j] < grid[i]):
+			if len(times) == 0 || times[len(times)-1] != rs[j] {
+				times = append(times, rs[j])
+				gridIdx = append(gridIdx, -1)
+			}
+			j++
+		default:
+			times = append(times, grid[i])
+			gridIdx = append(gridIdx, i)
+			i++
+		}
+	}
+	return times, gridIdx
+}
+
+// refAt returns the reference state at a sampled time t (a grid or restart
+// time), or nil.
+func (a *auditor) refAt(t float64) []float64 {
+	k := sort.SearchFloat64s(a.refT, t)
+	if k < len(a.refT) && a.refT[k] == t {
+		return a.refS[k]
+	}
+	return nil
 }
 
 // grid is t0 + i·dt while short of t1 by more than 1e-9·dt, then t1 (the
@@ -393,9 +469,14 @@ type auditor struct {
 	s       *AuditSettings
 	periods []float64
 	times   []float64
-	ref     *Solution
-	tol     float64
-	ceil    float64
+	// The reference run: its sample times (grid and restart times), the
+	// states there, the states on the grid alone, and its work counts.
+	refT     []float64
+	refS     [][]float64
+	refY     [][]float64
+	refStats Stats
+	tol      float64
+	ceil     float64
 }
 
 func (a *auditor) settings(r resolvedRung, times []float64, drop bool) *Settings {
@@ -424,7 +505,7 @@ func (a *auditor) dist(x, y []float64) float64 {
 // their mean (circular mean for periodic components) and their
 // root-mean-square norm.
 func (a *auditor) spread() (spread, mag float64) {
-	smp := a.ref.Samples
+	smp := a.refY
 	m := float64(len(smp))
 	for i := 0; i < a.n; i++ {
 		P := 0.0
@@ -433,7 +514,7 @@ func (a *auditor) spread() (spread, mag float64) {
 		}
 		var mean, c, sn float64
 		for _, v := range smp {
-			x := v.Y[i]
+			x := v[i]
 			mag += float64(x * x)
 			if P > 0 {
 				sn0, c0 := math.Sincos(2 * math.Pi * x / P)
@@ -449,7 +530,7 @@ func (a *auditor) spread() (spread, mag float64) {
 			mean /= m
 		}
 		for _, v := range smp {
-			d := v.Y[i] - mean
+			d := v[i] - mean
 			if P > 0 {
 				d = math.Remainder(d, P)
 			}
@@ -467,7 +548,10 @@ func (a *auditor) run(r resolvedRung, mag float64) RungResult {
 	tStart := p.T0
 	switch r.Kind {
 	case KindRestart:
-		y := a.ref.At(r.RestartAt, nil)
+		y := a.refAt(r.RestartAt)
+		if y == nil {
+			panic(fmt.Sprintf("integrate: audit reference not sampled at restart time %g", r.RestartAt))
+		}
 		ry := r.Restart.Vec(nil, y)
 		out.Delta0 = a.dist(ry, y)
 		p.T0, p.Y0 = r.RestartAt, ry
@@ -493,7 +577,7 @@ func (a *auditor) run(r resolvedRung, mag float64) RungResult {
 	out.Stats = sol.Stats
 	out.Divergence = make([]float64, len(sol.Samples))
 	for k, smp := range sol.Samples {
-		out.Divergence[k] = a.dist(smp.Y, a.ref.Samples[start+k].Y)
+		out.Divergence[k] = a.dist(smp.Y, a.refY[start+k])
 	}
 	out.Horizon, out.Departed = a.horizon(out.Divergence, start, tStart)
 	if !out.Departed && err != nil {
@@ -671,21 +755,16 @@ func roundoffFit(rs []RungResult) *RoundoffFit {
 	return &RoundoffFit{Slope: b, Float64Horizon: my + float64(b*(53-mx)), Points: len(x)}
 }
 
-// reverse integrates the reference state at T back to t0 with the
-// reference's method and tolerances.
-func (a *auditor) reverse(ref resolvedRung, T float64) *Reversal {
+// reverse integrates the reference state at grid point k back to t0 with
+// the reference's method and tolerances.
+func (a *auditor) reverse(ref resolvedRung, k int) *Reversal {
+	T := a.times[k]
 	rv := &Reversal{T: T, Miss: math.Inf(1)}
-	y := a.ref.At(T, nil)
-	if y == nil {
-		rv.Reached = T
-		rv.Err = fmt.Errorf("integrate: no reference state at t=%g: %w", T, ErrNoDense)
-		return rv
-	}
-	bp := Problem{F: a.p.F, Jac: a.p.Jac, T0: T, Y0: y, Split: a.p.Split}
+	bp := Problem{F: a.p.F, Jac: a.p.Jac, T0: T, Y0: a.refY[k], Split: a.p.Split}
 	s := a.settings(ref, nil, true)
 	// The way back may explode (a dissipative flow expands volumes in
 	// reverse); bound it by twice the forward work to T.
-	fwd := float64(a.ref.Stats.Accepted) * (T - a.p.T0) / (a.t1 - a.p.T0)
+	fwd := float64(a.refStats.Accepted) * (T - a.p.T0) / (a.t1 - a.p.T0)
 	if budget := 2*int(fwd) + 1000; s.MaxSteps == 0 || s.MaxSteps > budget {
 		s.MaxSteps = budget
 	}

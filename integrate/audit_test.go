@@ -380,3 +380,63 @@ func TestAuditDeterministic(t *testing.T) {
 		}
 	}
 }
+
+// TestMergeTimes checks the merge of the grid with restart times, on and off
+// the grid (exact identities).
+func TestMergeTimes(t *testing.T) {
+	grid := []float64{0, 1, 2, 3}
+	rs := []Rung{{Kind: KindRestart, RestartAt: 2}, {Kind: KindRestart, RestartAt: 1.5}, {Kind: KindRestart, RestartAt: 1.5}, {Kind: KindTolerance}}
+	times, idx := mergeTimes(grid, rs)
+	wantT := []float64{0, 1, 1.5, 2, 3}
+	wantI := []int{0, 1, -1, 2, 3}
+	if len(times) != len(wantT) {
+		t.Fatalf("times %v, want %v", times, wantT)
+	}
+	for i := range wantT {
+		if times[i] != wantT[i] || idx[i] != wantI[i] {
+			t.Fatalf("times %v idx %v, want %v %v", times, idx, wantT, wantI)
+		}
+	}
+}
+
+// TestAuditRestartOffGrid checks that a restart between grid points starts
+// from the reference's state there, and that a nil fixed-step method is an
+// error of its rung only.
+func TestAuditRestartOffGrid(t *testing.T) {
+	l := DefaultLadder(0, 10)
+	l.Rungs = []Rung{
+		{Kind: KindRestart, RestartAt: 5.0123, Restart: Places(3)},
+		{Kind: KindMethod, Fixed: func(float64) Method { return nil }},
+	}
+	res, err := Audit(context.Background(), oscillator(), 10, l, &AuditSettings{Tol: 0.1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := res.Rungs[0]
+	if r.Err != nil || res.Times[r.Start] < 5.0123 || res.Times[r.Start-1] >= 5.0123 {
+		t.Errorf("restart rung: err %v, curve starts at %g", r.Err, res.Times[r.Start])
+	}
+	// The rounding of (cos, -sin) at 5.0123 to 3 places moves it by at most
+	// 5e-4·sqrt(2) (exact bound).
+	if !(r.Delta0 > 0 && r.Delta0 <= 5e-4*math.Sqrt2) {
+		t.Errorf("restart displacement %g", r.Delta0)
+	}
+	if !errors.Is(res.Rungs[1].Err, ErrLadder) || res.Failed != 1 {
+		t.Errorf("nil method rung: err %v, failed %d", res.Rungs[1].Err, res.Failed)
+	}
+}
+
+// BenchmarkAuditDefault times the default ladder on the convection-loop demo
+// (Lorenz, start (1,1,1)) to t=50, without the exponent estimate.
+func BenchmarkAuditDefault(b *testing.B) {
+	f, _ := models.Lookup("lorenz")
+	p := Problem{F: f.Field(f.Defaults()), Y0: f.Y0}
+	l := DefaultLadder(0, 50)
+	s := &AuditSettings{Tol: 1, Lambda: lorenzLambda1, Reverse: true}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Audit(context.Background(), p, 50, l, s); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

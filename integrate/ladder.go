@@ -235,8 +235,11 @@ func (r Rung) resolve(ref *resolvedRung, hRef float64) resolvedRung {
 	if out.Kind == KindPrecision {
 		out.m = Rounded(out.m, out.Rounding)
 	}
-	if out.Name == "" {
+	if out.Name == "" && out.m != nil {
 		out.Name = out.defaultName()
+	}
+	if out.Name == "" {
+		out.Name = fmt.Sprintf("%v rung", out.Kind)
 	}
 	return out
 }
