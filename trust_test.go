@@ -95,16 +95,21 @@ func TestTrustDefaultDemo(t *testing.T) {
 	t.Logf("summary:\n%s", out)
 }
 
-// TestTrustNonChaotic checks Kepler (Hairer, Lubich & Wanner 2006, e=0.6)
-// and the harmonic oscillator: no exponential divergence, and at a loose
+// TestTrustNonChaotic checks Kepler (Hairer, Lubich & Wanner 2006, e=0.6),
+// the harmonic oscillator and a simple pendulum (planar autonomous flows
+// cannot be chaotic: Poincaré–Bendixson theorem): no exponential divergence,
+// and at a loose
 // tolerance (5% of the orbit's size) the whole horizon is trusted.
 func TestTrustNonChaotic(t *testing.T) {
 	osc := integrate.Problem{F: func(_ float64, y, d []float64) { d[0] = y[1]; d[1] = -y[0] }, Y0: []float64{1, 0}}
+	// A simple pendulum swinging to 2.5 rad, its angle declared periodic.
+	pend := integrate.Problem{F: func(_ float64, y, d []float64) { d[0] = y[1]; d[1] = -math.Sin(y[0]) }, Y0: []float64{2.5, 0}}
 	for _, c := range []struct {
-		name string
-		p    integrate.Problem
-	}{{"kepler", model(t, "kepler").Problem()}, {"oscillator", osc}} {
-		rep, err := plumb.Trust(context.Background(), c.p, 50, &plumb.TrustSettings{Tol: 0.05, Relative: true})
+		name    string
+		p       integrate.Problem
+		periods []float64
+	}{{"kepler", model(t, "kepler").Problem(), nil}, {"oscillator", osc, nil}, {"pendulum", pend, []float64{2 * math.Pi, 0}}} {
+		rep, err := plumb.Trust(context.Background(), c.p, 50, &plumb.TrustSettings{Tol: 0.05, Relative: true, Periods: c.periods})
 		if err != nil {
 			t.Fatal(err)
 		}
