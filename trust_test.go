@@ -98,8 +98,8 @@ func TestTrustDefaultDemo(t *testing.T) {
 // TestTrustNonChaotic checks Kepler (Hairer, Lubich & Wanner 2006, e=0.6),
 // the harmonic oscillator and a simple pendulum (planar autonomous flows
 // cannot be chaotic: Poincaré–Bendixson theorem): no exponential divergence,
-// and at a loose
-// tolerance (5% of the orbit's size) the whole horizon is trusted.
+// and at a loose tolerance (5% of the orbit's size) the whole horizon is
+// trusted.
 func TestTrustNonChaotic(t *testing.T) {
 	osc := integrate.Problem{F: func(_ float64, y, d []float64) { d[0] = y[1]; d[1] = -y[0] }, Y0: []float64{1, 0}}
 	// A simple pendulum swinging to 2.5 rad, its angle declared periodic.
