@@ -491,7 +491,12 @@ func (rep *Report) Write(w io.Writer) error {
 		fmt.Fprintf(&b, "largest Lyapunov exponent (given): %.4g\n", rep.Exponent.Value)
 	case rep.Exponent != nil:
 		fmt.Fprintf(&b, "largest Lyapunov exponent: %.4g ± %.2g", rep.Exponent.Value, rep.Exponent.StdErr)
-		if rep.Exponent.LyapunovTime > 0 {
+		switch {
+		case rep.Growth != "exponential":
+			// A small positive finite-time estimate of a regular flow
+			// (it decays like ln(T)/T) is no sign of chaos.
+			b.WriteString(" (the ladder sees no exponential growth)")
+		case rep.Exponent.LyapunovTime > 0:
 			fmt.Fprintf(&b, " (Lyapunov time %.3g)", rep.Exponent.LyapunovTime)
 		}
 		b.WriteByte('\n')
