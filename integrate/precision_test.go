@@ -50,6 +50,10 @@ func testValues() []float64 {
 		}
 		v = append(v, x)
 	}
+	for range 300 {
+		// Subnormals: exponent field zero, random fraction, either sign.
+		v = append(v, math.Float64frombits(rng.Uint64()&(1<<52-1)|rng.Uint64()&(1<<63)))
+	}
 	for range 2000 {
 		// Values of everyday size, where most states live.
 		v = append(v, (rng.Float64()-0.5)*math.Pow(10, float64(rng.IntN(12)-6)))
