@@ -23,7 +23,7 @@ import (
 //	W. Kutta, Beitrag zur näherungsweisen Integration totaler
 //	  Differentialgleichungen, Z. Math. Phys. 46 (1901) 435–453.
 //	E. Hairer, S. P. Nørsett, G. Wanner, Solving Ordinary Differential
-//	  Equations I, 2nd ed., Springer 1993, Sect. II.1 (Table 1.2).
+//	  Equations I, 2nd ed., Springer 1993, Sect. II.1.
 func RK4(h float64) Method { return rk4{h: h} }
 
 // Euler returns the explicit Euler method (order 1) with the fixed step size
@@ -37,8 +37,7 @@ func RK4(h float64) Method { return rk4{h: h} }
 //
 // References:
 //
-//	L. Euler, Institutionum calculi integralis, Vol. I, St. Petersburg 1768,
-//	  Sect. II, Ch. VII.
+//	L. Euler, Institutionum calculi integralis, Vol. I, St. Petersburg 1768.
 //	E. Hairer, S. P. Nørsett, G. Wanner, Solving Ordinary Differential
 //	  Equations I, 2nd ed., Springer 1993, Sect. I.7 and II.1.
 func Euler(h float64) Method { return euler{h: h} }
