@@ -83,7 +83,7 @@ func (*rk4Work) denseSize() int { return 4 }
 
 func (w *rk4Work) attempt(t, h float64, y, k1, y1, _, _, _ []float64) (float64, int) {
 	n := len(y)
-	k1, y1 = k1[:n], y1[:n]
+	y, k1, y1 = y[:n], k1[:n], y1[:n]
 	k2, k3, k4, ys := w.k2[:n], w.k3[:n], w.k4[:n], w.ys[:n]
 	h2 := 0.5 * h
 	for i := range ys {
