@@ -26,7 +26,7 @@ import "math"
 // stiffness test is Hairer's, |h|·‖F(t+h, y1) − k12‖ / ‖y1 − Y12‖ > 6.1
 // (Y12 the argument of stage 12, also at t+h).
 //
-// The coefficients are those of dop853.f, copied digit for digit (30
+// The coefficients are those of dop853.f, copied digit for digit (up to 30
 // significant digits, rounded once to float64).
 //
 // References:

@@ -83,6 +83,12 @@ func TestLorenzDP853Reference(t *testing.T) {
 		if e > tc.boundErr {
 			t.Errorf("tol %g: error at t=%s is %.3g, want <= %.3g", tc.tol, tc.t1, e, tc.boundErr)
 		}
+		// Without kept steps, samples or crossings no dense output is
+		// formed: 2 evaluations to start, 11 per attempt, 1 per accepted step.
+		st := sol.Stats
+		if want := 2 + 11*(st.Accepted+st.Rejected) + st.Accepted; st.Evaluations != want {
+			t.Errorf("tol %g: %d evaluations, want %d", tc.tol, st.Evaluations, want)
+		}
 	}
 }
 
