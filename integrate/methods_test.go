@@ -119,3 +119,62 @@ func TestAllocsNext(t *testing.T) {
 		}
 	}
 }
+
+// TestArenstorfDP853Reference integrates one period of the Arenstorf orbit
+// (μ = 0.012277471, y0 = (0.994, 0, 0, −2.00158510637908252240537862224),
+// T = 17.0652165601579625588917206249; Hairer, Nørsett & Wanner 1993,
+// introduction to Ch. II) and compares with the 80-digit reference of
+// testdata/arenstorf_ref.json (mpmath Taylor series, testdata/make_ref.py,
+// from the same double-rounded inputs). The bounds are ten times what
+// SciPy 1.10.1's DOP853 reached (peer run of 2026-12-02: 1.28e-6 at tol
+// 1e-10, 1.45e-9 at 1e-12, max abs over components).
+func TestArenstorfDP853Reference(t *testing.T) {
+	raw, err := os.ReadFile("testdata/arenstorf_ref.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc struct {
+		Arenstorf struct {
+			Double struct {
+				Values []string `json:"values_at_T"`
+			} `json:"double_inputs"`
+		} `json:"arenstorf"`
+	}
+	if err := json.Unmarshal(raw, &doc); err != nil {
+		t.Fatal(err)
+	}
+	var ref []float64
+	for _, s := range doc.Arenstorf.Double.Values {
+		x, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ref = append(ref, x)
+	}
+	mu := 0.012277471
+	mu1 := 1 - mu // fl(1 − fl(μ)), as in the reference
+	p := integrate.Problem{
+		F: func(_ float64, y, d []float64) {
+			a := float64((y[0]+mu)*(y[0]+mu)) + float64(y[1]*y[1])
+			b := float64((y[0]-mu1)*(y[0]-mu1)) + float64(y[1]*y[1])
+			d1, d2 := float64(a*math.Sqrt(a)), float64(b*math.Sqrt(b))
+			d[0], d[1] = y[2], y[3]
+			d[2] = y[0] + float64(2*y[3]) - float64(mu1*(y[0]+mu))/d1 - float64(mu*(y[0]-mu1))/d2
+			d[3] = y[1] - float64(2*y[2]) - float64(mu1*y[1])/d1 - float64(mu*y[1])/d2
+		},
+		Y0: []float64{0.994, 0, 0, -2.00158510637908252240537862224},
+	}
+	const T = 17.0652165601579625588917206249
+	for _, tc := range []struct{ tol, bound float64 }{{1e-10, 10 * 1.28e-6}, {1e-12, 10 * 1.45e-9}} {
+		sol, err := integrate.Solve(context.Background(), p, T, integrate.DormandPrince853,
+			&integrate.Settings{RelTol: tc.tol, AbsTol: tc.tol, DropSteps: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		e := maxAbsDiff(sol.Final, ref)
+		t.Logf("tol %g: err@T = %.3g (%d accepted, %d rejected)", tc.tol, e, sol.Stats.Accepted, sol.Stats.Rejected)
+		if e > tc.bound {
+			t.Errorf("tol %g: error at T is %.3g, want <= %.3g", tc.tol, e, tc.bound)
+		}
+	}
+}
