@@ -65,7 +65,7 @@ func (*bs32Work) denseSize() int { return 4 }
 
 func (w *bs32Work) attempt(t, h float64, y, k1, y1, k4, rtol, atol []float64) (float64, int) {
 	n := len(y)
-	k1, y1, k4, rtol, atol = k1[:n], y1[:n], k4[:n], rtol[:n], atol[:n]
+	y, k1, y1, k4, rtol, atol = y[:n], k1[:n], y1[:n], k4[:n], rtol[:n], atol[:n]
 	k2, k3, ys := w.k2[:n], w.k3[:n], w.ys[:n]
 	for i := range ys {
 		ys[i] = y[i] + float64(h*float64(bsA21*k1[i]))

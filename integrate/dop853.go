@@ -26,7 +26,7 @@ import "math"
 // stiffness test is Hairer's, |h|·‖F(t+h, y1) − k12‖ / ‖y1 − Y12‖ > 6.1
 // (Y12 the argument of stage 12, also at t+h).
 //
-// The coefficients are those of dop853.f, copied digit for digit (30
+// The coefficients are those of dop853.f, copied digit for digit (up to 30
 // significant digits, rounded once to float64).
 //
 // References:
@@ -271,7 +271,7 @@ func (*dp853Work) denseSize() int { return 8 }
 // float64() so that no architecture fuses them into FMAs.
 func (w *dp853Work) attempt(t, h float64, y, k1, y1, _, rtol, atol []float64) (float64, int) {
 	n := len(y)
-	k1, y1, rtol, atol = k1[:n], y1[:n], rtol[:n], atol[:n]
+	y, k1, y1, rtol, atol = y[:n], k1[:n], y1[:n], rtol[:n], atol[:n]
 	k2, k3, k4, k5, k6, k7 := w.k2[:n], w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n], w.k7[:n]
 	k8, k9, k10, k11, k12 := w.k8[:n], w.k9[:n], w.k10[:n], w.k11[:n], w.k12[:n]
 	ys, y12 := w.ys[:n], w.y12[:n]

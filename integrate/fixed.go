@@ -23,7 +23,7 @@ import (
 //	W. Kutta, Beitrag zur näherungsweisen Integration totaler
 //	  Differentialgleichungen, Z. Math. Phys. 46 (1901) 435–453.
 //	E. Hairer, S. P. Nørsett, G. Wanner, Solving Ordinary Differential
-//	  Equations I, 2nd ed., Springer 1993, Sect. II.1 (Table 1.2).
+//	  Equations I, 2nd ed., Springer 1993, Sect. II.1.
 func RK4(h float64) Method { return rk4{h: h} }
 
 // Euler returns the explicit Euler method (order 1) with the fixed step size
@@ -37,8 +37,7 @@ func RK4(h float64) Method { return rk4{h: h} }
 //
 // References:
 //
-//	L. Euler, Institutionum calculi integralis, Vol. I, St. Petersburg 1768,
-//	  Sect. II, Ch. VII.
+//	L. Euler, Institutionum calculi integralis, Vol. I, St. Petersburg 1768.
 //	E. Hairer, S. P. Nørsett, G. Wanner, Solving Ordinary Differential
 //	  Equations I, 2nd ed., Springer 1993, Sect. I.7 and II.1.
 func Euler(h float64) Method { return euler{h: h} }
@@ -84,7 +83,7 @@ func (*rk4Work) denseSize() int { return 4 }
 
 func (w *rk4Work) attempt(t, h float64, y, k1, y1, _, _, _ []float64) (float64, int) {
 	n := len(y)
-	k1, y1 = k1[:n], y1[:n]
+	y, k1, y1 = y[:n], k1[:n], y1[:n]
 	k2, k3, k4, ys := w.k2[:n], w.k3[:n], w.k4[:n], w.ys[:n]
 	h2 := 0.5 * h
 	for i := range ys {
