@@ -110,6 +110,7 @@ type mapRun struct {
 	last    int // iteration of the last re-orthonormalisation
 	nextQR  int
 	delta   int
+	rule    intervalRule
 
 	averaging bool
 	blockLen  int
@@ -165,6 +166,7 @@ func newMapRun(m Map, x0 []float64, k int, s *Settings) (*mapRun, error) {
 		r.lu = make([]float64, n*n)
 		r.ipiv = make([]int, n)
 	}
+	r.rule.target = cfg.maxGrowthLog
 	r.qr = newQR(n, k)
 	r.bm = newBatchMeans(k)
 	r.hist = newHistory(k, cfg.Blocks)
@@ -224,7 +226,7 @@ func (r *mapRun) step(ctx context.Context) bool {
 	r.it++
 	for i, v := range r.x {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			r.err = fmt.Errorf("lyap: %w", &GrowthError{T: float64(r.it), Vector: -1, Value: v})
+			r.err = &GrowthError{T: float64(r.it), Vector: -1, Value: v}
 			_ = i
 			r.done = true
 			return false
@@ -257,9 +259,8 @@ func (r *mapRun) logAbsDet() float64 {
 }
 
 func (r *mapRun) reorth(last bool) bool {
-	k := r.k
-	if j := r.qr.factor(r.v); j >= 0 {
-		r.err = fmt.Errorf("lyap: %w", &GrowthError{T: float64(r.it), Vector: j, Value: r.qr.r[j*k+j]})
+	if j, v := r.qr.factor(r.v); j >= 0 {
+		r.err = &GrowthError{T: float64(r.it), Vector: j, Value: v}
 		return false
 	}
 	r.qrs++
@@ -297,7 +298,7 @@ func (r *mapRun) reorth(last bool) bool {
 	if r.cfg.IntervalSteps > 0 {
 		r.delta = r.cfg.IntervalSteps
 	} else if elapsed > 0 {
-		d := nextInterval(float64(elapsed), spread(r.qr.logR), r.cfg.maxGrowthLog)
+		d := r.rule.next(float64(elapsed), spread(r.qr.logR))
 		r.delta = max(1, int(d))
 	}
 	next := r.last + r.delta

@@ -88,6 +88,11 @@ type Settings struct {
 	// differences (fd.Central.Step, about 6e-6). Must be finite and >= 0.
 	FDStep float64
 
+	// Separation is the distance between the two trajectories of Largest,
+	// restored at every renormalisation, in the units of the state
+	// (Euclidean norm). Zero means 1e-8·(1 + |x0|). Must be finite and >= 0.
+	Separation float64
+
 	// Hamiltonian declares a Hamiltonian flow or a symplectic map, whose
 	// exponents come in pairs ±lambda; the spectrum then carries the
 	// pairing check. A flow with Problem.Split set is taken as Hamiltonian.
@@ -116,7 +121,7 @@ func resolve(s *Settings) (*config, error) {
 	for _, f := range []struct {
 		name string
 		v    float64
-	}{{"Duration", c.Duration}, {"Transient", c.Transient}, {"Interval", c.Interval}, {"Target", c.Target}, {"FDStep", c.FDStep}, {"MaxGrowth", c.MaxGrowth}} {
+	}{{"Duration", c.Duration}, {"Transient", c.Transient}, {"Interval", c.Interval}, {"Target", c.Target}, {"FDStep", c.FDStep}, {"MaxGrowth", c.MaxGrowth}, {"Separation", c.Separation}} {
 		if !finiteNonNeg(f.v) {
 			return nil, settingErr(f.name, f.v, "must be finite and >= 0")
 		}
