@@ -23,6 +23,8 @@ type CovariantVectors struct {
 	// Times holds the sample times (iterations for maps): the
 	// re-orthonormalisation times inside the sampled window.
 	Times []float64 `json:"times"`
+	// States[s] is the state at sample s.
+	States [][]float64 `json:"states"`
 	// Vectors[s] is the n×k matrix of sample s, row-major: column j (the
 	// entries Vectors[s][i*k+j]) is the unit vector v_j. The sign of each
 	// vector is arbitrary.
@@ -101,12 +103,14 @@ func LineAngle(u, w []float64) float64 {
 type ginelliStore struct {
 	n, k  int
 	times []float64
+	xs    []float64
 	qs    []float64
 	rs    []float64
 }
 
-func (g *ginelliStore) add(t float64, q, r []float64) {
+func (g *ginelliStore) add(t float64, x, q, r []float64) {
 	g.times = append(g.times, t)
+	g.xs = append(g.xs, x[:g.n]...)
 	g.qs = append(g.qs, q[:g.n*g.k]...)
 	g.rs = append(g.rs, r[:g.k*g.k]...)
 }
@@ -124,8 +128,8 @@ func (g *ginelliStore) backward(c *CovariantVectors, from, to float64) {
 	logs := make([]float64, k)
 	var span float64
 	type sample struct {
-		t float64
-		v []float64
+		t    float64
+		x, v []float64
 	}
 	var out []sample
 	for j := m - 1; j >= 1; j-- {
@@ -171,7 +175,7 @@ func (g *ginelliStore) backward(c *CovariantVectors, from, to float64) {
 					v[i*k+col] = s
 				}
 			}
-			out = append(out, sample{tA, v})
+			out = append(out, sample{tA, g.xs[(j-1)*n : j*n : j*n], v})
 		}
 	}
 	c.Exponents = make([]float64, k)
@@ -185,6 +189,7 @@ func (g *ginelliStore) backward(c *CovariantVectors, from, to float64) {
 	u, w := make([]float64, n), make([]float64, n)
 	for s := len(out) - 1; s >= 0; s-- {
 		c.Times = append(c.Times, out[s].t)
+		c.States = append(c.States, append([]float64(nil), out[s].x...))
 		c.Vectors = append(c.Vectors, out[s].v)
 		a := make([]float64, 0, np)
 		for i := 0; i < k; i++ {
@@ -241,7 +246,7 @@ func Covariant(ctx context.Context, p integrate.Problem, k int, s *Settings) (*C
 	g := &ginelliStore{n: n, k: k}
 	r.onQR = func(t float64, q, rm []float64) bool {
 		if t >= from {
-			g.add(t, q, rm)
+			g.add(t, r.st.Y()[:n], q, rm)
 		}
 		return true
 	}
@@ -284,9 +289,9 @@ func MapCovariant(ctx context.Context, m Map, x0 []float64, k int, s *Settings) 
 	g := &ginelliStore{n: r.n, k: k}
 	// The first sample needs the Q at the start of the window: record from
 	// the start, including the unit basis at iteration 0.
-	g.add(0, r.v, identity(k))
+	g.add(0, r.x, r.v, identity(k))
 	r.onQR = func(it int, q, rm []float64) bool {
-		g.add(float64(it), q, rm)
+		g.add(float64(it), r.x, q, rm)
 		return true
 	}
 	if ctx == nil {

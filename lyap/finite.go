@@ -10,9 +10,10 @@ import (
 
 // Windows holds finite-time Lyapunov exponents: the stretch rates of the k
 // tangent directions over consecutive windows of length Tau along one
-// trajectory, and their distribution. A window ends at the first accepted
-// step at or after its nominal end, so Length may exceed Tau by up to one
-// step; a shorter last window is dropped.
+// trajectory, and their distribution. Window w nominally spans
+// [Start+w·Tau, Start+(w+1)·Tau] after the transient; it begins and ends at
+// the first accepted steps at or after those times, so Length may differ
+// from Tau by up to one step. A last window shorter than Tau/2 is dropped.
 type Windows struct {
 	// Tau is the nominal window length; Units as in Spectrum.
 	Tau   float64 `json:"tau"`
@@ -70,7 +71,7 @@ func FiniteTime(ctx context.Context, p integrate.Problem, k int, tau float64, s 
 	r.windowSum = make([]float64, k)
 	r.onWindow = func(start, end float64, sums []float64) bool {
 		l := end - start
-		if l < tau*(1-1e-9) || len(w.Exponents) == cap(w.Exponents) || len(flat)+k > cap(flat) {
+		if l < tau/2 || len(w.Exponents) == cap(w.Exponents) || len(flat)+k > cap(flat) {
 			return true
 		}
 		off := len(flat)

@@ -106,6 +106,7 @@ type flowRun struct {
 	window       float64 // FiniteTime: window length, 0 when unused
 	windowEnd    float64
 	windowStart  float64
+	windowIx     int
 	windowSum    []float64
 	onWindow     func(start, end float64, sums []float64) bool
 	onQR         func(t float64, q, r []float64) bool
@@ -175,7 +176,7 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 			return nil, fmt.Errorf("lyap: at the start: %w: %w", ErrNonFinite, err)
 		}
 		if errors.Is(err, integrate.ErrSettings) {
-			return nil, fmt.Errorf("lyap: %w: %w", ErrSettings, err)
+			return nil, &withSentinel{err, ErrSettings}
 		}
 		return nil, fmt.Errorf("lyap: %w", err)
 	}
@@ -329,7 +330,8 @@ func (r *flowRun) reorth(t float64, last bool) bool {
 						r.windowSum[i] = 0
 					}
 					r.windowStart = t
-					r.windowEnd = t + r.window
+					r.windowIx++
+					r.windowEnd = r.avg.avgStart + float64(r.windowIx+1)*r.window
 				}
 			}
 		}

@@ -2,6 +2,7 @@ package lyap
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 
@@ -94,6 +95,9 @@ func newTwoRun(p integrate.Problem, s *Settings) (*twoRun, error) {
 	aug := integrate.Problem{F: r.field, T0: p.T0, Y0: y0}
 	st, err := integrate.NewStepper(aug, r.t1, cfg.Method, &integrate.Settings{RelTol: cfg.RelTol, AbsTol: cfg.AbsTol, MaxSteps: cfg.MaxSteps})
 	if err != nil {
+		if errors.Is(err, integrate.ErrSettings) {
+			return nil, &withSentinel{err, ErrSettings}
+		}
 		return nil, fmt.Errorf("lyap: %w", err)
 	}
 	r.st = st

@@ -147,7 +147,7 @@ func newMapRun(m Map, x0 []float64, k int, s *Settings) (*mapRun, error) {
 		return nil, err
 	}
 	if !hasJacobian(m) {
-		return nil, fmt.Errorf("lyap: the map has no Jacobian (use Largest-style estimates from data instead): %w", ErrNoJacobian)
+		return nil, fmt.Errorf("lyap: the map has no Jacobian: %w", ErrNoJacobian)
 	}
 	cfg, err := resolve(s)
 	if err != nil {
@@ -226,7 +226,7 @@ func (r *mapRun) step(ctx context.Context) bool {
 	r.it++
 	for i, v := range r.x {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			r.err = &GrowthError{T: float64(r.it), Vector: -1, Value: v}
+			r.err = &GrowthError{T: float64(r.it), Map: true, Vector: -1, Value: v}
 			_ = i
 			r.done = true
 			return false
@@ -260,7 +260,7 @@ func (r *mapRun) logAbsDet() float64 {
 
 func (r *mapRun) reorth(last bool) bool {
 	if j, v := r.qr.factor(r.v); j >= 0 {
-		r.err = &GrowthError{T: float64(r.it), Vector: j, Value: v}
+		r.err = &GrowthError{T: float64(r.it), Map: true, Vector: j, Value: v}
 		return false
 	}
 	r.qrs++

@@ -73,7 +73,7 @@ type Settings struct {
 
 	// Blocks is the number of batch-means blocks the averaging run is cut
 	// into for the standard errors. Zero means DefaultBlocks; valid range
-	// 2..1e6.
+	// 2..100000 (memory for the history grows with it).
 	Blocks int
 	// Target is the standard error the caller wants on every exponent, in
 	// the spectrum's units. When positive, the run stops as soon as every
@@ -165,8 +165,8 @@ func resolve(s *Settings) (*config, error) {
 	if c.Blocks == 0 {
 		c.Blocks = DefaultBlocks
 	}
-	if c.Blocks < 2 || c.Blocks > 1e6 {
-		return nil, settingErr("Blocks", c.Blocks, "must be in 2..1e6")
+	if c.Blocks < 2 || c.Blocks > 1e5 {
+		return nil, settingErr("Blocks", c.Blocks, "must be in 2..100000")
 	}
 	if c.Method == nil {
 		c.Method = integrate.DormandPrince54
