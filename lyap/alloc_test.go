@@ -45,6 +45,23 @@ func TestLoopsDoNotAllocate(t *testing.T) {
 			}
 			return func() bool { return r.step(ctx) }
 		}()},
+		{"map two trajectories", func() func() bool {
+			r, err := newMapTwoRun(henon{1.4, 0.3}, []float64{0.1, 0.1}, &Settings{Iterations: 1e6, Discard: 10, IntervalSteps: 1, Blocks: 1e4})
+			if err != nil {
+				t.Fatal(err)
+			}
+			return func() bool { return r.step(ctx) }
+		}()},
+		{"map finite-time windows", func() func() bool {
+			r, err := newMapRun(henon{1.4, 0.3}, []float64{0.1, 0.1}, 2, &Settings{Iterations: 1e6, Discard: 10, Blocks: 1e4})
+			if err != nil {
+				t.Fatal(err)
+			}
+			r.window = 7
+			r.windowSum = make([]float64, 2)
+			r.onWindow = func(int, int, []float64) bool { return true }
+			return func() bool { return r.step(ctx) }
+		}()},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			for range 1000 { // through the transient into averaging

@@ -2,6 +2,7 @@ package lyap
 
 import (
 	"context"
+	"errors"
 	"math"
 	"testing"
 
@@ -78,5 +79,34 @@ func TestFiniteTimeLorenz(t *testing.T) {
 		if s := row[0] + row[1] + row[2]; math.Abs(s+41.0/3) > 1e-5 {
 			t.Fatalf("window %d: sum %.8f, want −41/3", k, s)
 		}
+	}
+}
+
+// TestMapFiniteTime: for the Hénon map every window's sum of exponents is
+// ln 0.3 (exact: constant det J), and the windows tile the averaged
+// iterations.
+func TestMapFiniteTime(t *testing.T) {
+	w, err := MapFiniteTime(context.Background(), henon{1.4, 0.3}, []float64{0.1, 0.1}, 2, 10, &Settings{Iterations: 10_000, Discard: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(w.Exponents) != 1000 {
+		t.Fatalf("%d windows, want 1000", len(w.Exponents))
+	}
+	for k, row := range w.Exponents {
+		if w.Length[k] != 10 || w.Start[k] != float64(100+10*k) {
+			t.Fatalf("window %d: start %g length %g", k, w.Start[k], w.Length[k])
+		}
+		if s := row[0] + row[1]; math.Abs(s-math.Log(0.3)) > identityTol {
+			t.Fatalf("window %d: sum %.15f, want ln 0.3", k, s)
+		}
+	}
+	t.Logf("hénon, 10-iteration windows: mean %v, sd %v", w.Mean, w.StdDev)
+	// Sprott (REFERENCES.md §1b); the mean of equal windows is the overall estimate.
+	if d := math.Abs(w.Mean[0] - 0.41922); d > nSigma*w.StdDev[0]/math.Sqrt(1000) {
+		t.Errorf("mean %.5f, want 0.41922", w.Mean[0])
+	}
+	if _, err := MapFiniteTime(context.Background(), henon{1.4, 0.3}, []float64{0.1, 0.1}, 2, 0, nil); !errors.Is(err, ErrSettings) {
+		t.Errorf("tau = 0: error %v", err)
 	}
 }

@@ -126,6 +126,13 @@ type mapRun struct {
 	err       error
 
 	onQR func(it int, q, r []float64) bool
+
+	window      int // MapFiniteTime: window length in iterations, 0 when unused
+	windowIx    int
+	windowStart int
+	windowEnd   int
+	windowSum   []float64
+	onWindow    func(start, end int, sums []float64) bool
 }
 
 func newMapRun(m Map, x0 []float64, k int, s *Settings) (*mapRun, error) {
@@ -277,6 +284,22 @@ func (r *mapRun) reorth(last bool) bool {
 		r.qrAvg++
 		r.logDet += r.logDetOpen
 		r.logDetOpen = 0
+		if r.window > 0 {
+			for i, v := range r.qr.logR {
+				r.windowSum[i] += v
+			}
+			if last || r.it >= r.windowEnd {
+				if !r.onWindow(r.windowStart, r.it, r.windowSum) {
+					stop = true
+				}
+				for i := range r.windowSum {
+					r.windowSum[i] = 0
+				}
+				r.windowStart = r.it
+				r.windowIx++
+				r.windowEnd = r.avgFrom + (r.windowIx+1)*r.window
+			}
+		}
 		if last || r.it >= r.blockEnd {
 			r.bm.close(t)
 			r.hist.record(r.bm, t)
@@ -297,6 +320,8 @@ func (r *mapRun) reorth(last bool) bool {
 		r.blockLen = max(1, (r.total-r.it)/r.cfg.Blocks)
 		r.blockIx = 0
 		r.blockEnd = r.it + r.blockLen
+		r.windowStart = r.it
+		r.windowEnd = r.it + r.window
 	}
 	if r.cfg.IntervalSteps > 0 {
 		r.delta = r.cfg.IntervalSteps
@@ -310,6 +335,9 @@ func (r *mapRun) reorth(last bool) bool {
 	}
 	if r.averaging && next > r.blockEnd {
 		next = r.blockEnd
+	}
+	if r.averaging && r.window > 0 && next > r.windowEnd {
+		next = r.windowEnd
 	}
 	r.nextQR = next
 	if r.cfg.Progress != nil {

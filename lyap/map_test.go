@@ -151,3 +151,27 @@ func TestSymplecticMap(t *testing.T) {
 		t.Errorf("lambda_1 = %g, want clearly positive", sp.Exponents[0])
 	}
 }
+
+// TestMapLargest: the two-trajectory estimate needs only Next and agrees
+// with the published Hénon exponent and with ln 2 for the logistic map.
+func TestMapLargest(t *testing.T) {
+	h := henon{1.4, 0.3}
+	sp, err := MapLargest(context.Background(), MapFunc{N: 2, F: h.Next}, []float64{0.1, 0.1}, &Settings{Iterations: 500_000, Discard: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("hénon two-trajectory: %v ± %v, interval %g", sp.Exponents, sp.StdErr, sp.MeanInterval)
+	// Sprott (REFERENCES.md §1b).
+	if d := math.Abs(sp.Exponents[0] - 0.41922); d > henonTol || d > nSigma*sp.StdErr[0]+1e-4 {
+		t.Errorf("lambda_1 = %.5f ± %.5f, want 0.41922", sp.Exponents[0], sp.StdErr[0])
+	}
+	sp, err = MapLargest(context.Background(), logistic{4}, []float64{0.3}, &Settings{Iterations: 500_000, Discard: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Exact: ln 2 (REFERENCES.md §1b). The finite separation adds a bias
+	// of order d0·MaxGrowth, far below the tolerance.
+	if d := math.Abs(sp.Exponents[0] - math.Ln2); d > logistic4Tol {
+		t.Errorf("lambda = %.6f ± %.2g, want ln 2", sp.Exponents[0], sp.StdErr[0])
+	}
+}
