@@ -36,7 +36,7 @@ func (a *averager) observe(t float64, logs []float64, last bool) (started, stop 
 			a.bm.close(t)
 			a.hist.record(a.bm, t)
 			a.blockIx++
-			a.blockEnd = a.avgStart + float64(a.blockIx+1)*a.blockLen
+			a.blockEnd = a.avgStart + float64(float64(a.blockIx+1)*a.blockLen)
 			if a.cfg.Target > 0 && a.bm.blocks >= MinBlocks && a.bm.within(a.cfg.Target) {
 				a.converged = true
 				stop = true

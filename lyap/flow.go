@@ -331,7 +331,7 @@ func (r *flowRun) reorth(t float64, last bool) bool {
 					}
 					r.windowStart = t
 					r.windowIx++
-					r.windowEnd = r.avg.avgStart + float64(r.windowIx+1)*r.window
+					r.windowEnd = r.avg.avgStart + float64(float64(r.windowIx+1)*r.window)
 				}
 			}
 		}

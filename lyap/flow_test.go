@@ -315,3 +315,24 @@ func TestTarget(t *testing.T) {
 		t.Errorf("converged with std_err %v against 1e-6", sp.StdErr)
 	}
 }
+
+// TestSettingsUnchanged: settings are copied, never written back (STYLE.md
+// item 2), and a nil *Settings takes the defaults.
+func TestSettingsUnchanged(t *testing.T) {
+	p := modelProblem(t, "lorenz")
+	s := &Settings{Duration: 10}
+	before := *s
+	if _, err := Exponents(context.Background(), p, 3, s); err != nil {
+		t.Fatal(err)
+	}
+	if s.Transient != before.Transient || s.Method != nil || s.RelTol != 0 || s.Blocks != 0 {
+		t.Errorf("settings written back: %+v", *s)
+	}
+	sp, err := MapExponents(context.Background(), henon{1.4, 0.3}, []float64{0.1, 0.1}, 2, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if sp.Duration != DefaultIterations || sp.Transient != DefaultIterations/10 || sp.Blocks != DefaultBlocks {
+		t.Errorf("defaults: duration %g transient %g blocks %d", sp.Duration, sp.Transient, sp.Blocks)
+	}
+}

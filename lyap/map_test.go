@@ -124,7 +124,7 @@ type standardMap struct{ k float64 }
 
 func (standardMap) Dim() int { return 2 }
 func (m standardMap) Next(x, dst []float64) {
-	p := x[1] + m.k*math.Sin(x[0])
+	p := x[1] + float64(m.k*math.Sin(x[0]))
 	dst[0] = math.Mod(x[0]+p, 2*math.Pi)
 	dst[1] = p
 }
