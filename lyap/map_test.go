@@ -175,3 +175,57 @@ func TestMapLargest(t *testing.T) {
 		t.Errorf("lambda = %.6f ± %.2g, want ln 2", sp.Exponents[0], sp.StdErr[0])
 	}
 }
+
+// coupledStandard is a 4-dimensional symplectic kick map: p' = p + f(θ),
+// θ' = θ + p' with f = −∇V for V = −K1 cos θ1 − K2 cos θ2 − eps cos(θ1+θ2)
+// (two standard maps coupled through a potential, after C. Froeschlé,
+// Numerical study of a four-dimensional mapping, Astron. Astrophys. 16
+// (1972) 172–189). The state is (θ1, θ2, p1, p2).
+type coupledStandard struct{ k1, k2, eps float64 }
+
+func (coupledStandard) Dim() int { return 4 }
+func (m coupledStandard) Next(x, dst []float64) {
+	s12 := float64(m.eps * math.Sin(x[0]+x[1]))
+	p1 := x[2] + float64(m.k1*math.Sin(x[0])) + s12
+	p2 := x[3] + float64(m.k2*math.Sin(x[1])) + s12
+	dst[0] = math.Mod(x[0]+p1, 2*math.Pi)
+	dst[1] = math.Mod(x[1]+p2, 2*math.Pi)
+	dst[2], dst[3] = p1, p2
+}
+func (m coupledStandard) Jacobian(x []float64, dst *mat.Dense) {
+	c12 := m.eps * math.Cos(x[0]+x[1])
+	h11, h22 := float64(m.k1*math.Cos(x[0]))+c12, float64(m.k2*math.Cos(x[1]))+c12
+	for i, v := range [16]float64{
+		1 + h11, c12, 1, 0,
+		c12, 1 + h22, 0, 1,
+		h11, c12, 1, 0,
+		c12, h22, 0, 1,
+	} {
+		dst.Set(i/4, i%4, v)
+	}
+}
+
+// TestSymplecticPairing: a symplectic map's exponents pair as ±lambda
+// (exact in the limit; Benettin et al. 1980); their sum is 0 at every
+// iteration (exact: det J = 1).
+func TestSymplecticPairing(t *testing.T) {
+	sp, err := MapExponents(context.Background(), coupledStandard{3, 3, 0.5}, []float64{1, 2, 0.3, -0.2}, 4, &Settings{Iterations: 100_000, Hamiltonian: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, ok := sp.Check(CheckPairing)
+	t.Logf("coupled standard maps: %v ± %v, pairing %+v", sp.Exponents, sp.StdErr, c)
+	if !ok || c.Residual > nSigma*c.StdErr {
+		t.Errorf("pairing %+v (present %v), want within %d standard errors", c, ok, nSigma)
+	}
+	var sum float64
+	for _, v := range sp.Exponents {
+		sum += v
+	}
+	if math.Abs(sum) > identityTol {
+		t.Errorf("sum %.3g, want 0", sum)
+	}
+	if !(sp.Exponents[1] > 0.1) { // both degrees of freedom chaotic at K = 3
+		t.Errorf("lambda_2 = %g, want clearly positive", sp.Exponents[1])
+	}
+}
