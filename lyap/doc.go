@@ -12,6 +12,20 @@
 //	J        the Jacobian dF/dx of a flow or df/dx of a map
 //	V        the n×k matrix of tangent vectors, V = QR its QR factorisation
 //
+// # Entry points
+//
+//	Exponents, MapExponents   the k largest exponents by the QR method
+//	Largest, MapLargest       the largest exponent from two nearby
+//	                          trajectories, without a Jacobian
+//	FiniteTime, MapFiniteTime finite-time exponents over windows of length tau
+//	Covariant, MapCovariant   covariant Lyapunov vectors and their angles
+//	KaplanYorke, Entropy, LyapunovTime, Horizon   measures derived from exponents
+//
+// Flows are integrate.Problem values (the Jacobian Problem.Jac is used when
+// given, central differences otherwise); maps satisfy the small Map interface
+// defined here. Every entry point takes a context first and a *Settings
+// last, nil meaning the documented defaults.
+//
 // # Methods
 //
 // Exponents (flows) and MapExponents (maps) follow Benettin, Galgani,
@@ -21,6 +35,10 @@
 // interval; the exponents are the time averages of ln R_ii. For a flow the
 // trajectory and its tangent vectors form one augmented system of dimension
 // n(1+k), integrated by any method of package integrate with error control.
+// The interval adapts to the growth of the tangent vectors, keeping stretch
+// ratios far from 1/eps (Settings.MaxGrowth), unless the caller fixes it.
+// Covariant vectors follow Ginelli et al. (2007): the forward QR run is
+// stored, and upper-triangular coefficients are iterated backward.
 //
 // # Uncertainty
 //
@@ -28,7 +46,10 @@
 // blocks and StdErr is the batch-means standard error over them. The
 // Spectrum keeps the running estimate after every block (History), the
 // transient discarded, a Converged verdict against the caller's Target, and
-// sanity residuals (Checks) that vanish in exact arithmetic.
+// sanity residuals (Checks) that vanish in exact arithmetic: the sum of the
+// exponents against the mean trace of the Jacobian (flows) or mean ln|det J|
+// (maps), the exponent of the flow direction against zero, and the pairing
+// lambda_i + lambda_(n+1−i) of Hamiltonian systems against zero.
 //
 // # Errors
 //
@@ -57,4 +78,9 @@
 //	  (1980) 9–20 and 21–30.
 //	I. Shimada, T. Nagashima, A numerical approach to ergodic problem of
 //	  dissipative dynamical systems, Prog. Theor. Phys. 61 (1979) 1605–1616.
+//	F. Ginelli, P. Poggi, A. Turchi, H. Chaté, R. Livi, A. Politi,
+//	  Characterizing dynamics with covariant Lyapunov vectors, Phys. Rev.
+//	  Lett. 99 (2007) 130601.
+//	B. Schmeiser, Batch size effects in the analysis of simulation output,
+//	  Operations Research 30 (1982) 556–568.
 package lyap

@@ -32,15 +32,20 @@ var (
 // (or iteration) of the re-orthonormalisation, and which tangent vector.
 type GrowthError struct {
 	T      float64 // time (flows) or iteration (maps) of the failed step
+	Map    bool    // T counts map iterations
 	Vector int     // index of the offending tangent vector, or -1 for the state
 	Value  float64 // the offending value (a stretch factor or state component)
 }
 
 func (e *GrowthError) Error() string {
-	if e.Vector < 0 {
-		return fmt.Sprintf("lyap: state is %v at t=%g: %v", e.Value, e.T, ErrNonFinite)
+	at := fmt.Sprintf("t=%g", e.T)
+	if e.Map {
+		at = fmt.Sprintf("iteration %d", int64(e.T))
 	}
-	return fmt.Sprintf("lyap: stretch factor of tangent vector %d is %v at t=%g: %v", e.Vector, e.Value, e.T, ErrNonFinite)
+	if e.Vector < 0 {
+		return fmt.Sprintf("lyap: state is %v at %s: %v", e.Value, at, ErrNonFinite)
+	}
+	return fmt.Sprintf("lyap: stretch factor of tangent vector %d is %v at %s: %v", e.Vector, e.Value, at, ErrNonFinite)
 }
 
 // Unwrap returns ErrNonFinite.
@@ -49,3 +54,12 @@ func (e *GrowthError) Unwrap() error { return ErrNonFinite }
 func settingErr(field string, v any, why string) error {
 	return fmt.Errorf("lyap: Settings.%s = %v: %s: %w", field, v, why, ErrSettings)
 }
+
+// withSentinel prefixes an error of another package with "lyap: " and makes
+// it match a sentinel of this package as well, without repeating its text.
+type withSentinel struct {
+	err, sentinel error
+}
+
+func (e *withSentinel) Error() string   { return "lyap: " + e.err.Error() }
+func (e *withSentinel) Unwrap() []error { return []error{e.err, e.sentinel} }

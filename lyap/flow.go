@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 
 	"github.com/plumbdyn/plumb/integrate"
 	"gonum.org/v1/gonum/diff/fd"
@@ -87,24 +88,17 @@ type flowRun struct {
 	fdSet *fd.JacobianSettings
 	st    *integrate.Stepper
 	qr    *qrWork
-	bm    *batchMeans
-	hist  *history
+	avg   *averager
 
-	t0, tAvg, t1 float64
-	lastQR       float64
-	nextQR       float64
-	delta        float64
+	t0, t1 float64
+	lastQR float64
+	nextQR float64
+	delta  float64
+	rule   intervalRule
 
-	averaging    bool
-	avgStart     float64
-	blockLen     float64
-	blockIx      int
-	blockEnd     float64
-	qrAvg        int
 	volStart     float64
 	volEnd       float64
 	maxF, maxX   float64
-	converged    bool
 	evals, jacs  int
 	qrs          int
 	done         bool
@@ -112,6 +106,7 @@ type flowRun struct {
 	window       float64 // FiniteTime: window length, 0 when unused
 	windowEnd    float64
 	windowStart  float64
+	windowIx     int
 	windowSum    []float64
 	onWindow     func(start, end float64, sums []float64) bool
 	onQR         func(t float64, q, r []float64) bool
@@ -172,8 +167,8 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 		y0[n+j*k+j] = 1
 	}
 	r.t0 = p.T0
-	r.tAvg = p.T0 + cfg.Transient
-	r.t1 = r.tAvg + cfg.Duration
+	r.avg = newAverager(cfg, k, p.T0)
+	r.t1 = r.avg.t1
 	aug := integrate.Problem{F: r.field, T0: p.T0, Y0: y0}
 	st, err := integrate.NewStepper(aug, r.t1, cfg.Method, &integrate.Settings{RelTol: cfg.RelTol, AbsTol: cfg.AbsTol, MaxSteps: cfg.MaxSteps})
 	if err != nil {
@@ -181,14 +176,13 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 			return nil, fmt.Errorf("lyap: at the start: %w: %w", ErrNonFinite, err)
 		}
 		if errors.Is(err, integrate.ErrSettings) {
-			return nil, fmt.Errorf("lyap: %w: %w", ErrSettings, err)
+			return nil, &withSentinel{err, ErrSettings}
 		}
 		return nil, fmt.Errorf("lyap: %w", err)
 	}
 	r.st = st
+	r.rule.target = cfg.maxGrowthLog
 	r.qr = newQR(n, k)
-	r.bm = newBatchMeans(k)
-	r.hist = newHistory(k, cfg.Blocks)
 	r.lastQR = p.T0
 	r.nextQR = p.T0 // first re-orthonormalisation after the first step
 	if cfg.Interval > 0 {
@@ -275,15 +269,15 @@ func (r *flowRun) step(ctx context.Context) bool {
 	return true
 }
 
-func (r *flowRun) fail(err error) {
-	switch {
-	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
-		r.err = fmt.Errorf("lyap: %w", err)
-	case errors.Is(err, integrate.ErrNonFinite):
-		r.err = fmt.Errorf("lyap: %w: %w", ErrNonFinite, err)
-	default:
-		r.err = fmt.Errorf("lyap: %w", err)
+func (r *flowRun) fail(err error) { r.err = wrapStepErr(err) }
+
+// wrapStepErr wraps an error of the integrator, adding ErrNonFinite to a
+// non-finite state (overflowing tangent vectors show up that way).
+func wrapStepErr(err error) error {
+	if errors.Is(err, integrate.ErrNonFinite) {
+		return fmt.Errorf("lyap: %w: %w", ErrNonFinite, err)
 	}
+	return fmt.Errorf("lyap: %w", err)
 }
 
 // reorth re-orthonormalises the tangent vectors of the stepper's state at t.
@@ -296,12 +290,8 @@ func (r *flowRun) reorth(t float64, last bool) bool {
 	n, k := r.n, r.k
 	y := r.st.Y()
 	dy := r.st.DYDT()
-	if j := r.qr.factor(y[n : n+n*k]); j >= 0 {
-		r.err = &GrowthError{T: t, Vector: j, Value: r.qr.r[j*k+j]}
-		if math.IsNaN(y[n+j]) || math.IsInf(y[n+j], 0) {
-			r.err = &GrowthError{T: t, Vector: j, Value: y[n+j]}
-		}
-		r.err = fmt.Errorf("lyap: %w", r.err)
+	if j, v := r.qr.factor(y[n : n+n*k]); j >= 0 {
+		r.err = &GrowthError{T: t, Vector: j, Value: v}
 		return false
 	}
 	r.field(t, y, dy)
@@ -312,68 +302,47 @@ func (r *flowRun) reorth(t float64, last bool) bool {
 	if r.onQR != nil && !r.onQR(t, y[n:n+n*k], r.qr.r) {
 		stop = true
 	}
-	if r.averaging {
-		r.bm.add(r.qr.logR)
-		r.qrAvg++
+	started, stopAvg := r.avg.observe(t, r.qr.logR, last)
+	if stopAvg {
+		stop = true
+	}
+	if r.avg.averaging {
 		if r.vol {
+			if started {
+				r.volStart = y[r.volIx]
+			}
 			r.volEnd = y[r.volIx]
 		}
 		r.track(y[:n], dy[:n])
 		if r.window > 0 {
-			for i, v := range r.qr.logR {
-				r.windowSum[i] += v
-			}
-			if last || t >= r.windowEnd {
-				if !r.onWindow(r.windowStart, t, r.windowSum) {
-					stop = true
-				}
-				for i := range r.windowSum {
-					r.windowSum[i] = 0
-				}
+			if started {
 				r.windowStart = t
 				r.windowEnd = t + r.window
+			} else {
+				for i, v := range r.qr.logR {
+					r.windowSum[i] += v
+				}
+				if last || t >= r.windowEnd {
+					if !r.onWindow(r.windowStart, t, r.windowSum) {
+						stop = true
+					}
+					for i := range r.windowSum {
+						r.windowSum[i] = 0
+					}
+					r.windowStart = t
+					r.windowIx++
+					r.windowEnd = r.avg.avgStart + float64(float64(r.windowIx+1)*r.window)
+				}
 			}
-		}
-		if last || t >= r.blockEnd {
-			r.bm.close(t)
-			r.hist.record(r.bm, t)
-			r.blockIx++
-			r.blockEnd = r.avgStart + float64(r.blockIx+1)*r.blockLen
-			if r.cfg.Target > 0 && r.bm.blocks >= MinBlocks && r.bm.within(r.cfg.Target) {
-				r.converged = true
-				stop = true
-			}
-		}
-	} else if t >= r.tAvg {
-		r.averaging = true
-		r.avgStart = t
-		r.bm.start(t)
-		r.blockLen = (r.t1 - t) / float64(r.cfg.Blocks)
-		r.blockIx = 0
-		r.blockEnd = t + r.blockLen
-		if r.vol {
-			r.volStart = y[r.volIx]
-			r.volEnd = r.volStart
-		}
-		r.track(y[:n], dy[:n])
-		if r.window > 0 {
-			r.windowStart = t
-			r.windowEnd = t + r.window
 		}
 	}
 	if r.cfg.Interval > 0 {
 		r.delta = r.cfg.Interval
 	} else if elapsed > 0 {
-		r.delta = nextInterval(elapsed, spread(r.qr.logR), r.cfg.maxGrowthLog)
+		r.delta = r.rule.next(elapsed, spread(r.qr.logR))
 	}
-	next := r.lastQR + r.delta
-	if !r.averaging && next > r.tAvg {
-		next = r.tAvg
-	}
-	if r.averaging && next > r.blockEnd {
-		next = r.blockEnd
-	}
-	if r.averaging && r.window > 0 && next > r.windowEnd {
+	next := r.avg.limit(r.lastQR + r.delta)
+	if r.avg.averaging && r.window > 0 && next > r.windowEnd {
 		next = r.windowEnd
 	}
 	r.nextQR = next
@@ -402,32 +371,11 @@ const fixedPointTol = 1e-8
 
 func (r *flowRun) spectrum() *Spectrum {
 	n, k := r.n, r.k
-	sp := &Spectrum{
-		Units: UnitsFlow, Kind: "flow", Method: r.cfg.Method.Name(), Jacobian: "exact",
-		Target: r.cfg.Target, BlockLength: r.blockLen,
-	}
+	sp := &Spectrum{Units: UnitsFlow, Kind: "flow", Method: r.cfg.Method.Name(), Jacobian: "exact"}
 	if !r.exact {
 		sp.Jacobian = "finite-difference"
 	}
-	sp.Exponents = make([]float64, k)
-	if r.averaging {
-		r.bm.estimate(sp.Exponents, r.lastQR, true)
-		sp.Start = r.avgStart
-		sp.Duration = r.lastQR - r.avgStart
-		sp.Transient = r.avgStart - r.t0
-	} else {
-		sp.Transient = r.lastQR - r.t0
-	}
-	se := make([]float64, k)
-	if r.bm.stderr(se) {
-		sp.StdErr = se
-	}
-	sp.Blocks = r.bm.blocks
-	sp.Converged = r.cfg.Target > 0 && r.bm.blocks >= MinBlocks && r.bm.within(r.cfg.Target)
-	if r.qrAvg > 0 {
-		sp.MeanInterval = sp.Duration / float64(r.qrAvg)
-	}
-	sp.History = r.hist.points
+	r.avg.fill(sp, k, r.lastQR)
 	sp.Final = append([]float64(nil), r.st.Y()[:n]...)
 	ist := r.st.Stats()
 	sp.Stats = Stats{Steps: ist.Accepted, Rejected: ist.Rejected, Evaluations: r.evals, Jacobians: r.jacs, QR: r.qrs}
@@ -462,18 +410,23 @@ func zeroCheck(sp *Spectrum) Check {
 	return c
 }
 
-// pairingCheck is CheckPairing: the worst |lambda_i + lambda_(n+1−i)|.
+// pairingCheck is CheckPairing: the worst |lambda_i + lambda_(n+1−i)|, the
+// exponents sorted in decreasing order (near zero the QR order need not be).
 func pairingCheck(sp *Spectrum) Check {
-	e := sp.Exponents
-	n := len(e)
+	n := len(sp.Exponents)
+	idx := make([]int, n)
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return sp.Exponents[idx[a]] > sp.Exponents[idx[b]] })
 	c := Check{Name: CheckPairing}
 	for i := 0; i < n/2; i++ {
-		j := n - 1 - i
-		d := math.Abs(e[i] + e[j])
+		a, b := idx[i], idx[n-1-i]
+		d := math.Abs(sp.Exponents[a] + sp.Exponents[b])
 		if d >= c.Residual {
 			c.Residual = d
 			if sp.StdErr != nil {
-				c.StdErr = math.Hypot(sp.StdErr[i], sp.StdErr[j])
+				c.StdErr = math.Hypot(sp.StdErr[a], sp.StdErr[b])
 			}
 		}
 	}

@@ -94,22 +94,24 @@ type mapRun struct {
 	n, k int
 	det  bool
 
-	x, xn   []float64
-	v, vn   []float64
-	J       *mat.Dense
-	jd      []float64
-	lu      []float64
-	ipiv    []int
-	qr      *qrWork
-	bm      *batchMeans
-	hist    *history
-	logDet  float64
-	it      int // iterations done
-	total   int
-	avgFrom int
-	last    int // iteration of the last re-orthonormalisation
-	nextQR  int
-	delta   int
+	x, xn      []float64
+	v, vn      []float64
+	J          *mat.Dense
+	jd         []float64
+	lu         []float64
+	ipiv       []int
+	qr         *qrWork
+	bm         *batchMeans
+	hist       *history
+	logDet     float64 // sum of ln|det J| up to the last re-orthonormalisation
+	logDetOpen float64 // since then
+	it         int     // iterations done
+	total      int
+	avgFrom    int
+	last       int // iteration of the last re-orthonormalisation
+	nextQR     int
+	delta      int
+	rule       intervalRule
 
 	averaging bool
 	blockLen  int
@@ -124,6 +126,13 @@ type mapRun struct {
 	err       error
 
 	onQR func(it int, q, r []float64) bool
+
+	window      int // MapFiniteTime: window length in iterations, 0 when unused
+	windowIx    int
+	windowStart int
+	windowEnd   int
+	windowSum   []float64
+	onWindow    func(start, end int, sums []float64) bool
 }
 
 func newMapRun(m Map, x0 []float64, k int, s *Settings) (*mapRun, error) {
@@ -146,7 +155,7 @@ func newMapRun(m Map, x0 []float64, k int, s *Settings) (*mapRun, error) {
 		return nil, err
 	}
 	if !hasJacobian(m) {
-		return nil, fmt.Errorf("lyap: the map has no Jacobian (use Largest-style estimates from data instead): %w", ErrNoJacobian)
+		return nil, fmt.Errorf("lyap: the map has no Jacobian: %w", ErrNoJacobian)
 	}
 	cfg, err := resolve(s)
 	if err != nil {
@@ -165,6 +174,7 @@ func newMapRun(m Map, x0 []float64, k int, s *Settings) (*mapRun, error) {
 		r.lu = make([]float64, n*n)
 		r.ipiv = make([]int, n)
 	}
+	r.rule.target = cfg.maxGrowthLog
 	r.qr = newQR(n, k)
 	r.bm = newBatchMeans(k)
 	r.hist = newHistory(k, cfg.Blocks)
@@ -215,7 +225,7 @@ func (r *mapRun) step(ctx context.Context) bool {
 		}
 	}
 	if r.det && r.averaging {
-		r.logDet += r.logAbsDet()
+		r.logDetOpen += r.logAbsDet()
 	}
 	r.m.Next(r.x, r.xn)
 	r.evals++
@@ -224,7 +234,7 @@ func (r *mapRun) step(ctx context.Context) bool {
 	r.it++
 	for i, v := range r.x {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			r.err = fmt.Errorf("lyap: %w", &GrowthError{T: float64(r.it), Vector: -1, Value: v})
+			r.err = &GrowthError{T: float64(r.it), Map: true, Vector: -1, Value: v}
 			_ = i
 			r.done = true
 			return false
@@ -257,9 +267,8 @@ func (r *mapRun) logAbsDet() float64 {
 }
 
 func (r *mapRun) reorth(last bool) bool {
-	k := r.k
-	if j := r.qr.factor(r.v); j >= 0 {
-		r.err = fmt.Errorf("lyap: %w", &GrowthError{T: float64(r.it), Vector: j, Value: r.qr.r[j*k+j]})
+	if j, v := r.qr.factor(r.v); j >= 0 {
+		r.err = &GrowthError{T: float64(r.it), Map: true, Vector: j, Value: v}
 		return false
 	}
 	r.qrs++
@@ -273,6 +282,24 @@ func (r *mapRun) reorth(last bool) bool {
 	if r.averaging {
 		r.bm.add(r.qr.logR)
 		r.qrAvg++
+		r.logDet += r.logDetOpen
+		r.logDetOpen = 0
+		if r.window > 0 {
+			for i, v := range r.qr.logR {
+				r.windowSum[i] += v
+			}
+			if last || r.it >= r.windowEnd {
+				if !r.onWindow(r.windowStart, r.it, r.windowSum) {
+					stop = true
+				}
+				for i := range r.windowSum {
+					r.windowSum[i] = 0
+				}
+				r.windowStart = r.it
+				r.windowIx++
+				r.windowEnd = r.avgFrom + (r.windowIx+1)*r.window
+			}
+		}
 		if last || r.it >= r.blockEnd {
 			r.bm.close(t)
 			r.hist.record(r.bm, t)
@@ -293,11 +320,13 @@ func (r *mapRun) reorth(last bool) bool {
 		r.blockLen = max(1, (r.total-r.it)/r.cfg.Blocks)
 		r.blockIx = 0
 		r.blockEnd = r.it + r.blockLen
+		r.windowStart = r.it
+		r.windowEnd = r.it + r.window
 	}
 	if r.cfg.IntervalSteps > 0 {
 		r.delta = r.cfg.IntervalSteps
 	} else if elapsed > 0 {
-		d := nextInterval(float64(elapsed), spread(r.qr.logR), r.cfg.maxGrowthLog)
+		d := r.rule.next(float64(elapsed), spread(r.qr.logR))
 		r.delta = max(1, int(d))
 	}
 	next := r.last + r.delta
@@ -306,6 +335,9 @@ func (r *mapRun) reorth(last bool) bool {
 	}
 	if r.averaging && next > r.blockEnd {
 		next = r.blockEnd
+	}
+	if r.averaging && r.window > 0 && next > r.windowEnd {
+		next = r.windowEnd
 	}
 	r.nextQR = next
 	if r.cfg.Progress != nil {
@@ -339,14 +371,17 @@ func (r *mapRun) spectrum() *Spectrum {
 	sp.Final = append([]float64(nil), r.x[:n]...)
 	sp.Stats = Stats{Steps: r.it, Evaluations: r.evals, Jacobians: r.jacs, QR: r.qrs}
 	if sp.Duration > 0 && k == n {
-		// The determinant sum covers the iterations since averaging began,
-		// up to the last one done; the exponents, up to the last
-		// re-orthonormalisation. They agree unless the run stopped early.
+		// Both sums cover the iterations from the start of averaging to
+		// the last re-orthonormalisation.
 		sum := 0.0
 		for _, v := range sp.Exponents {
 			sum += v
 		}
-		sp.Checks = append(sp.Checks, Check{Name: CheckLogDet, Residual: math.Abs(sum - r.logDet/float64(r.it-r.avgFrom))})
+		// A singular Jacobian on the orbit makes ln|det J| −Inf: no
+		// finite residual exists, and the check is left out.
+		if res := math.Abs(sum - r.logDet/sp.Duration); !math.IsInf(res, 0) && !math.IsNaN(res) {
+			sp.Checks = append(sp.Checks, Check{Name: CheckLogDet, Residual: res})
+		}
 		if r.cfg.Hamiltonian {
 			sp.Checks = append(sp.Checks, pairingCheck(sp))
 		}

@@ -34,13 +34,13 @@ func newQR(n, k int) *qrWork {
 
 // factor replaces v (n×k, row-major) by the orthonormal factor Q of v = QR,
 // keeps R in w.r and ln R_ii in w.logR. It returns the index of the first
-// tangent vector whose stretch is zero or not finite (v is then left as it
-// was), or -1.
-func (w *qrWork) factor(v []float64) int {
+// tangent vector whose stretch is zero or not finite, with the offending
+// value (v is then left as it was), or -1.
+func (w *qrWork) factor(v []float64) (int, float64) {
 	n, k := w.n, w.k
 	for i, x := range v[:n*k] {
 		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return i % k
+			return i % k, x
 		}
 	}
 	copy(w.a, v[:n*k])
@@ -58,7 +58,7 @@ func (w *qrWork) factor(v []float64) int {
 	for j := 0; j < k; j++ {
 		d := w.r[j*k+j]
 		if d == 0 || math.IsNaN(d) || math.IsInf(d, 0) {
-			return j
+			return j, d
 		}
 	}
 	lapack64.Orgqr(g, w.tau, w.work, len(w.work))
@@ -76,7 +76,7 @@ func (w *qrWork) factor(v []float64) int {
 		w.logR[j] = math.Log(d)
 	}
 	copy(v[:n*k], w.a)
-	return -1
+	return -1, 0
 }
 
 // spread is the growth measure the adaptive interval steers by: the largest
@@ -91,12 +91,29 @@ func spread(logR []float64) float64 {
 	return math.Max(big, hi-lo)
 }
 
-// nextInterval rescales the elapsed interval so that the growth measure s
-// approaches target, by a factor in [1/2, 2].
-func nextInterval(elapsed, s, target float64) float64 {
+// intervalRule chooses the next re-orthonormalisation interval from the
+// growth measured over the last one: the elapsed interval is rescaled so
+// that the growth measure approaches the target, by a factor in [1/2, 2],
+// and capped by target / (the fastest growth rate seen so far), so that a
+// burst of stretching like the worst one met cannot push the basis near
+// 1/eps. The rate memory makes the interval conservative, never unsafe.
+type intervalRule struct {
+	target  float64 // ln MaxGrowth
+	maxRate float64 // the largest growth measure per unit interval seen
+}
+
+func (ir *intervalRule) next(elapsed, s float64) float64 {
+	if !(elapsed > 0) {
+		return 0
+	}
+	ir.maxRate = math.Max(ir.maxRate, s/elapsed)
 	f := 2.0
 	if s > 0 {
-		f = math.Min(2, math.Max(0.5, target/s))
+		f = math.Min(2, math.Max(0.5, ir.target/s))
 	}
-	return elapsed * f
+	d := elapsed * f
+	if ir.maxRate > 0 {
+		d = math.Min(d, ir.target/ir.maxRate)
+	}
+	return d
 }

@@ -73,7 +73,7 @@ type Settings struct {
 
 	// Blocks is the number of batch-means blocks the averaging run is cut
 	// into for the standard errors. Zero means DefaultBlocks; valid range
-	// 2..1e6.
+	// 2..100000 (memory for the history grows with it).
 	Blocks int
 	// Target is the standard error the caller wants on every exponent, in
 	// the spectrum's units. When positive, the run stops as soon as every
@@ -87,6 +87,11 @@ type Settings struct {
 	// flow has no Problem.Jac. Zero means the gonum default for central
 	// differences (fd.Central.Step, about 6e-6). Must be finite and >= 0.
 	FDStep float64
+
+	// Separation is the distance between the two trajectories of Largest,
+	// restored at every renormalisation, in the units of the state
+	// (Euclidean norm). Zero means 1e-8·(1 + |x0|). Must be finite and >= 0.
+	Separation float64
 
 	// Hamiltonian declares a Hamiltonian flow or a symplectic map, whose
 	// exponents come in pairs ±lambda; the spectrum then carries the
@@ -116,7 +121,7 @@ func resolve(s *Settings) (*config, error) {
 	for _, f := range []struct {
 		name string
 		v    float64
-	}{{"Duration", c.Duration}, {"Transient", c.Transient}, {"Interval", c.Interval}, {"Target", c.Target}, {"FDStep", c.FDStep}, {"MaxGrowth", c.MaxGrowth}} {
+	}{{"Duration", c.Duration}, {"Transient", c.Transient}, {"Interval", c.Interval}, {"Target", c.Target}, {"FDStep", c.FDStep}, {"MaxGrowth", c.MaxGrowth}, {"Separation", c.Separation}} {
 		if !finiteNonNeg(f.v) {
 			return nil, settingErr(f.name, f.v, "must be finite and >= 0")
 		}
@@ -160,8 +165,8 @@ func resolve(s *Settings) (*config, error) {
 	if c.Blocks == 0 {
 		c.Blocks = DefaultBlocks
 	}
-	if c.Blocks < 2 || c.Blocks > 1e6 {
-		return nil, settingErr("Blocks", c.Blocks, "must be in 2..1e6")
+	if c.Blocks < 2 || c.Blocks > 1e5 {
+		return nil, settingErr("Blocks", c.Blocks, "must be in 2..100000")
 	}
 	if c.Method == nil {
 		c.Method = integrate.DormandPrince54
