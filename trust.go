@@ -45,6 +45,9 @@ const (
 	// NotTrusted: some rung departs from the reference before the requested
 	// horizon; the run is believed only up to Report.TrustedUntil.
 	NotTrusted Verdict = "not_trusted"
+	// Incomplete: the audit was canceled or its reference run failed; the
+	// report holds what was done and answers nothing.
+	Incomplete Verdict = "incomplete"
 )
 
 // marginFactor: a divergence at most tol/marginFactor over the whole horizon
@@ -77,6 +80,11 @@ type TrustSettings struct {
 	Lambda float64
 	// NoReversal skips the reversibility check.
 	NoReversal bool
+	// Progress, if not nil, is called as work completes with the stage
+	// ("audit" with runs done and total, then "exponent" with 0 and 1, and 1
+	// and 1 when done). It must not block for long; the CLI draws its
+	// progress bar from it.
+	Progress func(stage string, done, total int)
 }
 
 // Report is the outcome of Trust. Its JSON form (snake_case fields) is the
@@ -262,6 +270,12 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	as := &integrate.AuditSettings{
 		Tol: s.Tol, Relative: s.Relative, Every: s.Every, Periods: s.Periods, Reverse: !s.NoReversal,
 	}
+	progress := func(stage string, done, total int) {
+		if s.Progress != nil {
+			s.Progress(stage, done, total)
+		}
+	}
+	as.Progress = func(done, total int) { progress("audit", done, total) }
 
 	// The audit first: it validates its input before any work, so bad input
 	// costs nothing. The exponent then sets predictions beside the measured
@@ -272,17 +286,21 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	}
 	if err != nil {
 		rep.fill(res)
+		rep.Verdict = Incomplete
 		return rep, fmt.Errorf("plumb: trust: %w", err)
 	}
 	lambda := s.Lambda
 	if lambda > 0 {
 		rep.Exponent = &ExponentEstimate{Value: lambda, LyapunovTime: 1 / lambda, Source: "given"}
 	} else {
+		progress("exponent", 0, 1)
 		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
+		progress("exponent", 1, 1)
 		switch {
 		case err != nil:
 			if ctx.Err() != nil {
 				rep.fill(res)
+				rep.Verdict = Incomplete
 				return rep, fmt.Errorf("plumb: trust canceled during the exponent estimate: %w", err)
 			}
 			rep.ExponentError = err.Error()
@@ -538,6 +556,7 @@ func (rep *Report) Write(w io.Writer) error {
 		TrustedWithMargin: "trusted with margin",
 		Trusted:           "trusted",
 		NotTrusted:        "not trusted",
+		Incomplete:        "incomplete (the audit did not finish)",
 	}[rep.Verdict]
 	fmt.Fprintf(&b, "verdict for t = %.4g: %s (largest divergence %.2g of the tolerance)\n", rep.T0+rep.Horizon, verdict, rep.TolUsed)
 	fmt.Fprintf(&b, "caution: %s\n", rep.Caution)

@@ -243,3 +243,26 @@ func ExampleTrust() {
 	// growth: exponential
 	// limited before t=30: true
 }
+
+// TestTrustCanceled checks that a canceled audit returns the context's error
+// with the partial report, and that progress is reported while it runs.
+func TestTrustCanceled(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	p := model(t, "lorenz").Problem()
+	var stages []string
+	rep, err := plumb.Trust(ctx, p, 20, &plumb.TrustSettings{Tol: 1, Lambda: lorenzLambda1, Progress: func(stage string, done, total int) {
+		stages = append(stages, fmt.Sprintf("%s %d/%d", stage, done, total))
+		if done == 3 {
+			cancel()
+		}
+	}})
+	if !errors.Is(err, context.Canceled) || rep == nil {
+		t.Fatalf("got (%v, %v), want a partial report and context.Canceled", rep, err)
+	}
+	if len(rep.Rungs) != 2 || rep.Caution == "" || rep.Verdict != plumb.Incomplete {
+		t.Errorf("partial report has %d rungs (want the 2 done before the cancel), caution %q, verdict %s", len(rep.Rungs), rep.Caution, rep.Verdict)
+	}
+	if len(stages) == 0 || stages[0] != "audit 1/10" {
+		t.Errorf("progress %v, want it to start with audit 1/10", stages)
+	}
+}

@@ -41,6 +41,10 @@ type AuditSettings struct {
 	// MaxSteps bounds every run's attempted steps; zero means
 	// DefaultMaxSteps. Must be >= 0.
 	MaxSteps int
+	// Progress, if not nil, is called after each run (the reference first)
+	// with the number of runs done and the total (rungs + 1, and one more
+	// for the reversibility check). It must not block for long.
+	Progress func(done, total int)
 }
 
 // GrowthKind names the law that fits a divergence curve best.
@@ -321,6 +325,16 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		return res, &RungError{Index: -1, Name: ref.Name, Err: err}
 	}
 	a.refStats = refSol.Stats
+	total := len(l.Rungs) + 1
+	if s.Reverse {
+		total++
+	}
+	progress := func(done int) {
+		if s.Progress != nil {
+			s.Progress(done, total)
+		}
+	}
+	progress(1)
 	a.refS = make([][]float64, len(refSol.Samples))
 	a.refY = make([][]float64, len(a.times))
 	for i, smp := range refSol.Samples {
@@ -360,6 +374,7 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		}
 		out := a.run(rr, res.Magnitude)
 		res.Rungs = append(res.Rungs, out)
+		progress(i + 2)
 		if out.Err != nil {
 			res.Failed++
 			if errors.Is(out.Err, context.Canceled) || errors.Is(out.Err, context.DeadlineExceeded) {
@@ -399,6 +414,7 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		if k > 0 {
 			res.Reversal = a.reverse(ref, k)
 		}
+		progress(total)
 	}
 	return res, nil
 }
