@@ -471,7 +471,7 @@ func grid(t0, t1, dt float64) []float64 {
 	k := int(math.Ceil((t1-t0)/dt - 1e-9))
 	g := make([]float64, k+1)
 	for i := range k {
-		g[i] = t0 + float64(i)*dt
+		g[i] = t0 + float64(float64(i)*dt)
 	}
 	g[k] = t1
 	return g

@@ -121,7 +121,7 @@ func DefaultLadder(t0, t1 float64) Ladder {
 		Rung{Kind: KindMethod, Fixed: RK4},
 		Rung{Kind: KindPrecision, Rounding: Bits(24)},
 		Rung{Kind: KindPrecision, Rounding: Bits(40)},
-		Rung{Kind: KindRestart, RestartAt: t0 + 0.8*(t1-t0), Restart: Places(3)},
+		Rung{Kind: KindRestart, RestartAt: t0 + float64(0.8*(t1-t0)), Restart: Places(3)},
 	)
 	return l
 }
