@@ -12,6 +12,7 @@ import (
 
 	"github.com/plumbdyn/plumb"
 	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/lyap"
 )
 
 // lorenzLambda1 is the largest Lyapunov exponent of the Lorenz system at
@@ -55,6 +56,20 @@ func TestTrustDefaultDemo(t *testing.T) {
 	}
 	if rep.PredictedHorizon <= 0 || rep.Float64Horizon <= rep.TrustedUntil {
 		t.Errorf("predicted %g, float64 horizon %g (trusted %g)", rep.PredictedHorizon, rep.Float64Horizon, rep.TrustedUntil)
+	}
+	// Each prediction is lyap.Horizon after the rung's start (the same
+	// formula, Boffetta et al. 2002, computed by package lyap).
+	for _, r := range rep.Rungs {
+		if r.Predicted == 0 {
+			continue
+		}
+		start := rep.T0
+		if r.Effect == "restart" {
+			start = r.RestartAt
+		}
+		if want := start + lyap.Horizon(e.Value, r.Delta0, rep.TolAbs); math.Abs(r.Predicted-want) > 1e-12*want {
+			t.Errorf("%s: predicted %v, want %v (lyap.Horizon)", r.Name, r.Predicted, want)
+		}
 	}
 	if rep.Caution == "" || !strings.Contains(rep.Caution, "not a safety certificate") {
 		t.Errorf("caution %q", rep.Caution)
