@@ -19,6 +19,17 @@
 //	BogackiShampine32  explicit 3(2) pair, FSAL, Hermite dense output
 //	RK4(h), Euler(h)   fixed step, for step-size audits
 //
+// # Precision and audits
+//
+// Rounded wraps any method so that its state (and, with Rounding.Stages,
+// every stage value) is stored at an emulated precision: Bits(p) rounds the
+// significand to p bits exactly (p = 24: float32), Digits and Places round as
+// a printout does. Audit re-runs a problem on a Ladder of rungs (tolerances,
+// methods, precisions, restarts from rounded states), compares every run with
+// the tightest one on a common grid, and reports per rung the divergence
+// curve, the agreement horizon at the user's tolerance, the fitted growth law
+// and the horizon predicted from the largest Lyapunov exponent.
+//
 // # Step control
 //
 // The local error of a trial step is measured in the root-mean-square norm

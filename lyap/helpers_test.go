@@ -1,0 +1,28 @@
+package lyap
+
+import (
+	"testing"
+
+	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/models"
+)
+
+// modelProblem returns the built-in flow name at its published parameters,
+// with its exact Jacobian.
+func modelProblem(t testing.TB, name string) integrate.Problem {
+	t.Helper()
+	f, err := models.Lookup(name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := f.Defaults()
+	pr := integrate.Problem{F: f.Field(p), Y0: append([]float64(nil), f.Y0...)}
+	if f.Jac != nil {
+		pr.Jac = f.Jac(p)
+	}
+	if f.Separable != nil {
+		parts := f.Separable(p)
+		pr.Split = &integrate.Separable{DT: parts.DT, DV: parts.DV, H: parts.H}
+	}
+	return pr
+}
