@@ -60,6 +60,12 @@ const (
 	// (REFERENCES.md §5d: "expect the observed order within about ±0.2 of
 	// p"; common practice).
 	orderBand = 0.2
+	// stepBand: the one-step error order of an adaptive pair, h^(p+1),
+	// must lie within ±0.3. For p = 8 only two halvings fit between the
+	// onset of the asymptotic regime and the rounding floor of one step,
+	// and the next term of the error still tilts the fit by up to 0.2
+	// there (measured 8.85 on this problem, 8.8–9.2 on others).
+	stepBand = 0.3
 	// denseBand: the fitted one-step error order of the continuous
 	// extension must lie within ±0.3 of q+1. Its error mixes several terms
 	// of similar size (it is a polynomial in θ fitted to stages), so it
@@ -304,10 +310,14 @@ func checkOrder(t *testing.T, m integrate.Method, c Case) {
 		t.Fatalf("only %d step sizes above the rounding floor: h=%v err=%v", len(wh), hs, errs)
 	}
 	slope := fit(wh, we)
-	t.Logf("%s: %s ∝ h^%.3f (want %v) over h %.3g..%.3g (err %.2e..%.2e)",
-		m.Name(), what, slope, want, wh[0], wh[len(wh)-1], we[0], we[len(we)-1])
-	if math.Abs(slope-want) > orderBand {
-		t.Errorf("%s: fitted order %.3f, want %v ± %g (h=%v, err=%v)", what, slope, want, orderBand, wh, we)
+	band := orderBand
+	if !c.fixed() {
+		band = stepBand
+	}
+	t.Logf("%s: %s ∝ h^%.3f (want %v ± %g) over h %.3g..%.3g (err %.2e..%.2e)",
+		m.Name(), what, slope, want, band, wh[0], wh[len(wh)-1], we[0], we[len(we)-1])
+	if math.Abs(slope-want) > band {
+		t.Errorf("%s: fitted order %.3f, want %v ± %g (h=%v, err=%v)", what, slope, want, band, wh, we)
 	}
 }
 
