@@ -133,7 +133,7 @@ func (c Case) accurate(m integrate.Method) (integrate.Method, *integrate.Setting
 }
 
 // Kepler is the plane two-body problem, y = (q1, q2, p1, p2),
-// q” = −q/|q|³, starting at pericentre with eccentricity e: q(0) = (1−e, 0),
+// d²q/dt² = −q/|q|³, starting at pericentre with eccentricity e: q(0) = (1−e, 0),
 // p(0) = (0, √((1+e)/(1−e))); the period is 2π (Hairer, Lubich & Wanner,
 // Geometric Numerical Integration, 2nd ed., Springer 2006, Ch. I).
 func Kepler(e float64) integrate.Problem {
@@ -176,7 +176,7 @@ func KeplerExact(e, t float64, dst []float64) []float64 {
 	return dst
 }
 
-// oscillator is y” = −y as a system, y(0) = (1, 0): y = (cos t, −sin t).
+// oscillator is d²y/dt² = −y as a system, y(0) = (1, 0): y = (cos t, −sin t).
 func oscillator() integrate.Problem {
 	return integrate.Problem{
 		F:  func(_ float64, y, d []float64) { d[0], d[1] = y[1], -y[0] },
