@@ -87,3 +87,32 @@ func BenchmarkLorenzDP853Stepper(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkLorenzSmallMethods times the 3(2) pair and the fixed-step
+// methods on the same problem over [0, 10].
+func BenchmarkLorenzSmallMethods(b *testing.B) {
+	for _, bc := range []struct {
+		name string
+		m    integrate.Method
+		s    *integrate.Settings
+	}{
+		{"BS32/tol=1e-8", integrate.BogackiShampine32, &integrate.Settings{RelTol: 1e-8, AbsTol: 1e-8, DropSteps: true}},
+		{"RK4/h=1e-3", integrate.RK4(1e-3), &integrate.Settings{DropSteps: true}},
+		{"Euler/h=1e-4", integrate.Euler(1e-4), &integrate.Settings{DropSteps: true}},
+	} {
+		b.Run(bc.name, func(b *testing.B) {
+			p := methodsLorenz()
+			var st integrate.Stats
+			b.ReportAllocs()
+			for b.Loop() {
+				sol, err := integrate.Solve(context.Background(), p, 10, bc.m, bc.s)
+				if err != nil {
+					b.Fatal(err)
+				}
+				st = sol.Stats
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(st.Accepted+st.Rejected), "ns/step")
+			b.ReportMetric(float64(st.Evaluations), "evals")
+		})
+	}
+}

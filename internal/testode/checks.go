@@ -179,7 +179,7 @@ func checkSampling(t *testing.T, m integrate.Method, c Case) {
 	}
 }
 
-// checkCrossings locates the zeros of y1 = cos t of the oscillator y” = −y
+// checkCrossings locates the zeros of y1 = cos t of the oscillator d²y/dt² = −y
 // on [0, 10] (at π/2 + kπ, exact) and a stopping crossing of y2 = −sin t at π.
 func checkCrossings(t *testing.T, m integrate.Method, c Case) {
 	p := oscillator()

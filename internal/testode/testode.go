@@ -60,6 +60,12 @@ const (
 	// (REFERENCES.md §5d: "expect the observed order within about ±0.2 of
 	// p"; common practice).
 	orderBand = 0.2
+	// stepBand: the one-step error order of an adaptive pair, h^(p+1),
+	// must lie within ±0.3. For p = 8 only two halvings fit between the
+	// onset of the asymptotic regime and the rounding floor of one step,
+	// and the next term of the error still tilts the fit by up to 0.2
+	// there (measured 8.85 on this problem, 8.8–9.2 on others).
+	stepBand = 0.3
 	// denseBand: the fitted one-step error order of the continuous
 	// extension must lie within ±0.3 of q+1. Its error mixes several terms
 	// of similar size (it is a polynomial in θ fitted to stages), so it
@@ -127,7 +133,7 @@ func (c Case) accurate(m integrate.Method) (integrate.Method, *integrate.Setting
 }
 
 // Kepler is the plane two-body problem, y = (q1, q2, p1, p2),
-// q” = −q/|q|³, starting at pericentre with eccentricity e: q(0) = (1−e, 0),
+// d²q/dt² = −q/|q|³, starting at pericentre with eccentricity e: q(0) = (1−e, 0),
 // p(0) = (0, √((1+e)/(1−e))); the period is 2π (Hairer, Lubich & Wanner,
 // Geometric Numerical Integration, 2nd ed., Springer 2006, Ch. I).
 func Kepler(e float64) integrate.Problem {
@@ -170,7 +176,7 @@ func KeplerExact(e, t float64, dst []float64) []float64 {
 	return dst
 }
 
-// oscillator is y” = −y as a system, y(0) = (1, 0): y = (cos t, −sin t).
+// oscillator is d²y/dt² = −y as a system, y(0) = (1, 0): y = (cos t, −sin t).
 func oscillator() integrate.Problem {
 	return integrate.Problem{
 		F:  func(_ float64, y, d []float64) { d[0], d[1] = y[1], -y[0] },
@@ -304,10 +310,14 @@ func checkOrder(t *testing.T, m integrate.Method, c Case) {
 		t.Fatalf("only %d step sizes above the rounding floor: h=%v err=%v", len(wh), hs, errs)
 	}
 	slope := fit(wh, we)
-	t.Logf("%s: %s ∝ h^%.3f (want %v) over h %.3g..%.3g (err %.2e..%.2e)",
-		m.Name(), what, slope, want, wh[0], wh[len(wh)-1], we[0], we[len(we)-1])
-	if math.Abs(slope-want) > orderBand {
-		t.Errorf("%s: fitted order %.3f, want %v ± %g (h=%v, err=%v)", what, slope, want, orderBand, wh, we)
+	band := orderBand
+	if !c.fixed() {
+		band = stepBand
+	}
+	t.Logf("%s: %s ∝ h^%.3f (want %v ± %g) over h %.3g..%.3g (err %.2e..%.2e)",
+		m.Name(), what, slope, want, band, wh[0], wh[len(wh)-1], we[0], we[len(we)-1])
+	if math.Abs(slope-want) > band {
+		t.Errorf("%s: fitted order %.3f, want %v ± %g (h=%v, err=%v)", what, slope, want, band, wh, we)
 	}
 }
 
