@@ -46,8 +46,8 @@ import (
 // are reported before any work, with a nil Spectrum. Once stepping began, a
 // failure (a stretch factor that is zero or not finite, a failing step, a
 // canceled ctx) returns the partial Spectrum, history included, with the
-// error. Only the estimate's block structure is lost: StdErr is nil with
-// fewer than two complete blocks.
+// error. StdErr is nil with fewer than two complete blocks; a run that
+// completes that way returns its estimate with ErrTooShort.
 //
 // Cost: per step, the method's evaluations of the augmented system, each one
 // evaluation of F and of the Jacobian plus O(n²k); per re-orthonormalisation
@@ -69,7 +69,8 @@ func Exponents(ctx context.Context, p integrate.Problem, k int, s *Settings) (*S
 		return nil, err
 	}
 	err = r.run(ctx)
-	return r.spectrum(), err
+	sp := r.spectrum()
+	return sp, needErrorBars(sp, err)
 }
 
 // flowRun is the workspace and state of one tangent-space run of a flow.
