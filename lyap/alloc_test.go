@@ -2,6 +2,7 @@ package lyap
 
 import (
 	"context"
+	"math"
 	"testing"
 )
 
@@ -77,5 +78,56 @@ func TestLoopsDoNotAllocate(t *testing.T) {
 				t.Error("run ended while measuring")
 			}
 		})
+	}
+}
+
+// TestStepperStateReset guards the in-place reset of the tangent vectors
+// (flowRun.reorth): after a re-orthonormalisation the stepper's own state
+// holds an orthonormal basis and its derivative is F at that state, so the
+// next step starts from them (common practice for restarting one-step
+// methods).
+func TestStepperStateReset(t *testing.T) {
+	p := modelProblem(t, "lorenz")
+	r, err := newFlowRun(p, 3, &Settings{Duration: 100, Transient: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx := context.Background()
+	n, k := 3, 3
+	want := make([]float64, n+n*k+1)
+	for range 2000 {
+		qrs := r.qrs
+		if !r.step(ctx) {
+			t.Fatal(r.err)
+		}
+		if r.qrs == qrs {
+			continue
+		}
+		y, dy := r.st.Y(), r.st.DYDT()
+		v := y[n : n+n*k]
+		for a := 0; a < k; a++ {
+			for b := 0; b < k; b++ {
+				var s float64
+				for i := 0; i < n; i++ {
+					s += v[i*k+a] * v[i*k+b]
+				}
+				e := 0.0
+				if a == b {
+					e = 1
+				}
+				if math.Abs(s-e) > 1e-13 { // orthonormal to rounding
+					t.Fatalf("t=%g: basis not orthonormal: <v%d,v%d> = %g", r.st.T(), a, b, s)
+				}
+			}
+		}
+		r.field(r.st.T(), y, want)
+		for i := range want {
+			if dy[i] != want[i] {
+				t.Fatalf("t=%g: derivative component %d is %g, F gives %g", r.st.T(), i, dy[i], want[i])
+			}
+		}
+	}
+	if r.qrs < 10 {
+		t.Errorf("only %d re-orthonormalisations", r.qrs)
 	}
 }

@@ -35,8 +35,11 @@ type CovariantVectors struct {
 	Angles [][]float64 `json:"angles"`
 	// Exponents are the growth rates of the covariant vectors over the
 	// sampled window, from the backward iteration; they estimate the same
-	// exponents as the QR method.
+	// exponents as the QR method. StdErr are their batch-means standard
+	// errors over Settings.Blocks blocks of the window (nil with fewer than
+	// two).
 	Exponents []float64 `json:"exponents"`
+	StdErr    []float64 `json:"std_err"`
 	// Stats counts the forward work.
 	Stats Stats `json:"stats"`
 }
@@ -117,7 +120,7 @@ func (g *ginelliStore) add(t float64, x, q, r []float64) {
 
 // backward runs the backward iteration of Ginelli et al. over the stored
 // data and fills the samples with times in [from, to].
-func (g *ginelliStore) backward(c *CovariantVectors, from, to float64) {
+func (g *ginelliStore) backward(c *CovariantVectors, from, to float64, blocks int) {
 	n, k := g.n, g.k
 	m := len(g.times)
 	cm := make([]float64, k*k) // the coefficients C, upper triangular
@@ -132,6 +135,9 @@ func (g *ginelliStore) backward(c *CovariantVectors, from, to float64) {
 		x, v []float64
 	}
 	var out []sample
+	// Per interval inside the window, backwards: its end and the k logs.
+	var ivEnd, ivLogs []float64
+	first := from
 	for j := m - 1; j >= 1; j-- {
 		r := g.rs[j*k*k : (j+1)*k*k]
 		// x = R⁻¹ C by back substitution, column by column.
@@ -158,10 +164,13 @@ func (g *ginelliStore) backward(c *CovariantVectors, from, to float64) {
 			}
 			if inWindow {
 				logs[col] -= math.Log(nu)
+				ivLogs = append(ivLogs, -math.Log(nu))
 			}
 		}
 		if inWindow {
 			span += tB - tA
+			ivEnd = append(ivEnd, tB)
+			first = tA
 		}
 		if tA >= from && tA <= to {
 			q := g.qs[(j-1)*n*k : j*n*k]
@@ -183,6 +192,21 @@ func (g *ginelliStore) backward(c *CovariantVectors, from, to float64) {
 		for i := range logs {
 			c.Exponents[i] = logs[i] / span
 		}
+	}
+	// Batch means over the window, in forward order.
+	bm := newBatchMeans(k)
+	bm.start(first)
+	blockLen := span / float64(blocks)
+	ib := 1
+	for iv := len(ivEnd) - 1; iv >= 0; iv-- {
+		bm.add(ivLogs[iv*k : (iv+1)*k])
+		if iv == 0 || ivEnd[iv] >= first+float64(float64(ib)*blockLen) {
+			bm.close(ivEnd[iv])
+			ib++
+		}
+	}
+	if se := make([]float64, k); bm.stderr(se) {
+		c.StdErr = se
 	}
 	// Samples were found backwards; store them forwards.
 	np := k * (k - 1) / 2
@@ -254,7 +278,7 @@ func Covariant(ctx context.Context, p integrate.Problem, k int, s *Settings) (*C
 		return nil, err
 	}
 	c := &CovariantVectors{Dim: n, Count: k, Units: UnitsFlow, Stats: r.spectrum().Stats}
-	g.backward(c, from, to)
+	g.backward(c, from, to, cfg.Blocks)
 	return c, nil
 }
 
@@ -301,7 +325,7 @@ func MapCovariant(ctx context.Context, m Map, x0 []float64, k int, s *Settings) 
 		return nil, fmt.Errorf("lyap: covariant vectors: %w", err)
 	}
 	c := &CovariantVectors{Dim: r.n, Count: k, Units: UnitsMap, Stats: r.spectrum().Stats}
-	g.backward(c, from, to)
+	g.backward(c, from, to, cfg.Blocks)
 	return c, nil
 }
 

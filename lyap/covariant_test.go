@@ -121,11 +121,11 @@ func TestCovariantLorenz(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	t.Logf("lorenz covariant exponents %v, %d samples", c.Exponents, len(c.Times))
-	// Sprott 1998/2004 for the spectrum; 50 time units give about ±0.05.
+	t.Logf("lorenz covariant exponents %v ± %v, %d samples", c.Exponents, c.StdErr, len(c.Times))
+	// Sprott 1998/2004 (REFERENCES.md §1a).
 	for i, want := range lorenzSprott {
-		if math.Abs(c.Exponents[i]-want) > 0.1 {
-			t.Errorf("covariant exponent %d = %.4f, want %.4f within 0.1", i, c.Exponents[i], want)
+		if d := math.Abs(c.Exponents[i] - want); d > nSigma*c.StdErr[i]+1e-4 {
+			t.Errorf("covariant exponent %d = %.4f ± %.4f, want %.4f", i, c.Exponents[i], c.StdErr[i], want)
 		}
 	}
 	f := make([]float64, 3)

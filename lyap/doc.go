@@ -54,7 +54,7 @@
 // # Errors
 //
 // Sentinels usable with errors.Is: ErrSettings, ErrCount, ErrDimension,
-// ErrNoJacobian, ErrNonFinite, ErrSystem; GrowthError says where a tangent
+// ErrNoJacobian, ErrNonFinite, ErrSystem, ErrTooShort; GrowthError says where a tangent
 // growth stopped being finite. Once work began, errors come with the partial
 // result.
 //

@@ -26,6 +26,10 @@ var (
 	// ErrSystem reports a system that cannot be used: a nil vector field or
 	// map.
 	ErrSystem = errors.New("unusable system")
+	// ErrTooShort reports an averaging run that completed fewer than two
+	// blocks (steps longer than a block, or fewer iterations than two), so
+	// that no standard error exists. The estimate is returned with it.
+	ErrTooShort = errors.New("averaging run too short")
 )
 
 // GrowthError says where the tangent growth stopped being finite: the time
@@ -63,3 +67,12 @@ type withSentinel struct {
 
 func (e *withSentinel) Error() string   { return "lyap: " + e.err.Error() }
 func (e *withSentinel) Unwrap() []error { return []error{e.err, e.sentinel} }
+
+// needErrorBars turns a completed run without standard errors into
+// ErrTooShort, so that no estimate leaves without its error bar unnoticed.
+func needErrorBars(sp *Spectrum, err error) error {
+	if err != nil || sp == nil || sp.StdErr != nil {
+		return err
+	}
+	return fmt.Errorf("lyap: %d block(s) completed over a length of %g, need 2 for a standard error (lengthen the run or lower Settings.Blocks): %w", sp.Blocks, sp.Duration, ErrTooShort)
+}

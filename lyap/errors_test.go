@@ -188,3 +188,17 @@ func TestFiniteTimeErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestTooShort: a completed run with fewer than two blocks has no standard
+// error; it says so with ErrTooShort and still returns the estimate.
+func TestTooShort(t *testing.T) {
+	sp, err := MapExponents(context.Background(), henon{1.4, 0.3}, []float64{0.1, 0.1}, 2, &Settings{Iterations: 1, Discard: 10})
+	if !errors.Is(err, ErrTooShort) || sp == nil || sp.StdErr != nil || sp.Duration != 1 {
+		t.Fatalf("error %v, spectrum %+v", err, sp)
+	}
+	p := modelProblem(t, "lorenz")
+	sp, err = Largest(context.Background(), p, &Settings{Duration: 1e-4, Transient: 1})
+	if !errors.Is(err, ErrTooShort) || sp == nil {
+		t.Fatalf("flow: error %v, spectrum %+v", err, sp)
+	}
+}

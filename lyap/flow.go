@@ -46,8 +46,8 @@ import (
 // are reported before any work, with a nil Spectrum. Once stepping began, a
 // failure (a stretch factor that is zero or not finite, a failing step, a
 // canceled ctx) returns the partial Spectrum, history included, with the
-// error. Only the estimate's block structure is lost: StdErr is nil with
-// fewer than two complete blocks.
+// error. StdErr is nil with fewer than two complete blocks; a run that
+// completes that way returns its estimate with ErrTooShort.
 //
 // Cost: per step, the method's evaluations of the augmented system, each one
 // evaluation of F and of the Jacobian plus O(n²k); per re-orthonormalisation
@@ -69,7 +69,8 @@ func Exponents(ctx context.Context, p integrate.Problem, k int, s *Settings) (*S
 		return nil, err
 	}
 	err = r.run(ctx)
-	return r.spectrum(), err
+	sp := r.spectrum()
+	return sp, needErrorBars(sp, err)
 }
 
 // flowRun is the workspace and state of one tangent-space run of a flow.
@@ -96,21 +97,20 @@ type flowRun struct {
 	delta  float64
 	rule   intervalRule
 
-	volStart     float64
-	volEnd       float64
-	maxF, maxX   float64
-	evals, jacs  int
-	qrs          int
-	done         bool
-	err          error
-	window       float64 // FiniteTime: window length, 0 when unused
-	windowEnd    float64
-	windowStart  float64
-	windowIx     int
-	windowSum    []float64
-	onWindow     func(start, end float64, sums []float64) bool
-	onQR         func(t float64, q, r []float64) bool
-	forceEveryQR bool
+	volStart    float64
+	volEnd      float64
+	maxF, maxX  float64
+	evals, jacs int
+	qrs         int
+	done        bool
+	err         error
+	window      float64 // FiniteTime: window length, 0 when unused
+	windowEnd   float64
+	windowStart float64
+	windowIx    int
+	windowSum   []float64
+	onWindow    func(start, end float64, sums []float64) bool
+	onQR        func(t float64, q, r []float64) bool
 }
 
 func validateProblem(p integrate.Problem) error {
@@ -256,7 +256,7 @@ func (r *flowRun) step(ctx context.Context) bool {
 	}
 	t := st.T()
 	last := st.Done()
-	if last || t >= r.nextQR || r.forceEveryQR {
+	if last || t >= r.nextQR {
 		if !r.reorth(t, last) {
 			r.done = true
 			return false
@@ -285,7 +285,12 @@ func wrapStepErr(err error) error {
 // It writes the stepper's current state and derivative in place (Y and DYDT):
 // the tangent part of the state becomes Q, and the derivative is evaluated
 // afresh at the new state, so the next step starts from a consistent pair.
-// The trajectory components are not touched.
+// The trajectory components are not touched. This relies on Y and DYDT being
+// the stepper's own slices, from which its next step starts (true of every
+// one-step method of package integrate); integrate.Stepper documents them
+// as read-only, and a method there to replace the current state would
+// remove the reliance. The continuous extension of the last step is stale
+// afterwards and is never used here.
 func (r *flowRun) reorth(t float64, last bool) bool {
 	n, k := r.n, r.k
 	y := r.st.Y()

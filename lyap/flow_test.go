@@ -17,15 +17,15 @@ import (
 var lorenzSprott = []float64{0.9056, 0, -14.5723}
 
 const (
-	// lorenzDuration is long enough for a standard error near 0.005 on
-	// lambda_1 (measured 0.0049 at T = 2000) and short enough to run in a
-	// fraction of a second.
+	// lorenzDuration is long enough for a standard error near 0.006 on
+	// lambda_1 (measured 0.0060, 0.0027, 0.0043 at T = 2000) and short
+	// enough to run in a fraction of a second.
 	lorenzDuration  = 2000
 	lorenzTransient = 50
-	// lorenzAbsTol bounds |estimate − published|: three times the standard
-	// error expected at lorenzDuration, plus the 1e-4 uncertainty of the
-	// published last digit.
-	lorenzAbsTol = 0.015
+	// lorenzAbsTol bounds |estimate − published| whatever the error bars
+	// say: about 3.3 times the largest standard error measured at
+	// lorenzDuration, plus the 1e-4 uncertainty of the published last digit.
+	lorenzAbsTol = 0.02
 	// sumRelTol: the sum of the exponents equals the constant trace
 	// −(sigma+1+beta) up to the integration error of the tangent dynamics
 	// (measured 5e-9 relative at RelTol 1e-9); REFERENCES.md §9 asks 1e-6.

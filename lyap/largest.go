@@ -44,7 +44,8 @@ func Largest(ctx context.Context, p integrate.Problem, s *Settings) (*Spectrum, 
 	}
 	for r.step(ctx) {
 	}
-	return r.spectrum(), r.err
+	sp := r.spectrum()
+	return sp, needErrorBars(sp, r.err)
 }
 
 type twoRun struct {
@@ -215,7 +216,8 @@ func MapLargest(ctx context.Context, m Map, x0 []float64, s *Settings) (*Spectru
 	}
 	for r.step(ctx) {
 	}
-	return r.spectrum(), r.err
+	sp := r.spectrum()
+	return sp, needErrorBars(sp, r.err)
 }
 
 type mapTwoRun struct {

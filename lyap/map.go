@@ -67,7 +67,8 @@ func hasJacobian(m Map) bool {
 // (ErrSettings). Later failures (a non-finite state, a stretch factor that is
 // zero or not finite — e.g. an orbit through a critical point — or a
 // canceled ctx, checked every 1024 iterations) return the partial Spectrum
-// with the error.
+// with the error. A run that completes fewer than two blocks returns its
+// estimate with ErrTooShort.
 //
 // Cost: per iteration one Next, one Jacobian and O(n²k) (O(n³) more for the
 // determinant when k = n); per re-orthonormalisation O(nk²). No allocation
@@ -84,7 +85,8 @@ func MapExponents(ctx context.Context, m Map, x0 []float64, k int, s *Settings) 
 		return nil, err
 	}
 	err = r.run(ctx)
-	return r.spectrum(), err
+	sp := r.spectrum()
+	return sp, needErrorBars(sp, err)
 }
 
 // mapRun is the workspace and state of one tangent-space run of a map.
