@@ -66,7 +66,7 @@ func FromBig(z *big.Float) Float {
 	if math.IsInf(hi, 0) {
 		return Float{hi, 0}
 	}
-	r := new(big.Float).SetPrec(z.Prec() + 64).Sub(z, new(big.Float).SetFloat64(hi))
+	r := new(big.Float).SetPrec(z.Prec()+64).Sub(z, new(big.Float).SetFloat64(hi))
 	lo, _ := r.Float64()
 	return Float{hi, lo}
 }
