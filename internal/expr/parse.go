@@ -29,7 +29,7 @@ import (
 
 // maxDepth bounds the nesting of parentheses and unary operators, so that
 // hostile input cannot exhaust the stack.
-const maxDepth = 500
+const maxDepth = 1000
 
 type parser struct {
 	g     *Graph
