@@ -7,7 +7,7 @@
 // subexpressions. Parse reads a formula (grammar at Graph.Parse's source,
 // summarized here):
 //
-//	+ - * / ^ (right-associative), unary minus (-x^2 = -(x^2)), parentheses,
+//	operators + - * / ^ (right-associative), unary minus (-x^2 = -(x^2)), parentheses,
 //	numbers such as 2, 0.5, .5, 1e-3, 6.02E+23, the constant pi, variables,
 //	sin cos tan exp log sqrt abs tanh sinh cosh atan sign step,
 //	atan2(y, x) pow(x, y) min(x, y) max(x, y).
