@@ -103,7 +103,8 @@ type Graph struct {
 }
 
 // NewGraph returns an empty graph whose formulas may use the named variables;
-// variable i is slot i of every evaluator compiled from the graph.
+// variable i is slot i of every evaluator compiled from the graph. An empty
+// name reserves a slot that formulas cannot mention.
 func NewGraph(vars []string) *Graph {
 	return &Graph{
 		vars:  append([]string(nil), vars...),
@@ -274,13 +275,23 @@ func (g *Graph) Mul(a, b Expr) Expr {
 	return g.intern(node{op: OpMul, a: a, b: b})
 }
 
-// Div returns a/b, with constants folded, a/1 = a, 0/b = 0 and a/(-1) = -a.
+// Div returns a/b, with constants folded, a/1 = a, 0/b = 0, a/(-1) = -a,
+// and (c·x)/d = (c/d)·x for constants c and d when d is a power of two and
+// c/d is a normal number (then both round alike: scaling by a power of two
+// commutes with rounding, barring overflow of c·x).
 func (g *Graph) Div(a, b Expr) Expr {
 	ca, oka := g.Value(a)
 	cb, okb := g.Value(b)
 	if oka && okb {
 		if e, ok := g.fold(ca / cb); ok {
 			return e
+		}
+	}
+	if n := g.nodes[a]; okb && n.op == OpMul && isPow2(cb) {
+		if c, ok := g.Value(n.a); ok {
+			if q := c / cb; q != 0 && math.Abs(q) >= 0x1p-1000 && math.Abs(q) <= 0x1p1000 {
+				return g.Mul(g.Const(q), n.b)
+			}
 		}
 	}
 	switch {
@@ -292,6 +303,12 @@ func (g *Graph) Div(a, b Expr) Expr {
 		return g.Const(0)
 	}
 	return g.intern(node{op: OpDiv, a: a, b: b})
+}
+
+// isPow2 reports whether |c| is a power of two (in the normal range).
+func isPow2(c float64) bool {
+	frac, exp := math.Frexp(math.Abs(c))
+	return frac == 0.5 && exp > -1000 && exp < 1000
 }
 
 // Pow returns a^b, with constants folded, a^1 = a, a^0 = 1 and 1^b = 1.

@@ -221,7 +221,13 @@ func (p *parser) primary() (Expr, error) {
 	if _, ok := lookupFunc(name); ok {
 		return 0, p.errAt(start, ErrSyntax, "function %s needs its arguments in parentheses", name)
 	}
-	return 0, p.errAt(start, ErrUnknown, "unknown name %q (variables: %v)", name, p.g.vars)
+	var known []string
+	for _, v := range p.g.vars {
+		if v != "" {
+			known = append(known, v)
+		}
+	}
+	return 0, p.errAt(start, ErrUnknown, "unknown name %q (variables: %v)", name, known)
 }
 
 func (p *parser) name() string {
