@@ -434,3 +434,28 @@ func FuzzLoadSystem(f *testing.F) {
 		}
 	})
 }
+
+// BenchmarkSolveLorenz integrates the convection loop to t = 20 with the
+// built-in Go field and with the same equations read from a file; the
+// ratio of the two ns/op is the end-to-end cost of the formula field.
+func BenchmarkSolveLorenz(b *testing.B) {
+	s, err := LoadSystem(strings.NewReader(docExamples(b)[0]))
+	if err != nil {
+		b.Fatal(err)
+	}
+	m, _ := Model("lorenz")
+	set := &integrate.Settings{RelTol: 1e-9, AbsTol: 1e-9}
+	for _, c := range []struct {
+		name string
+		p    integrate.Problem
+	}{{"go", m.Problem()}, {"formula", s.Problem()}} {
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := integrate.Solve(b.Context(), c.p, 20, nil, set); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}

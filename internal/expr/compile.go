@@ -28,11 +28,13 @@ type instr struct {
 // A Program is immutable and safe for concurrent use; each evaluator made
 // from it (NewFloat64, NewDD, NewBig) owns its registers and is not.
 type Program struct {
-	nvar   int
-	nreg   int
-	consts []float64 // values of registers nvar .. nvar+len(consts)-1
-	code   []instr
-	outs   []int32
+	nvar     int
+	nreg     int
+	consts   []float64 // values of registers nvar .. nvar+len(consts)-1
+	code     []instr
+	fast     []finstr // the fused byte-indexed tape, when nreg <= 256
+	fastOuts []uint8
+	outs     []int32
 }
 
 // NumVars returns the number of variable slots.
@@ -109,7 +111,112 @@ func (g *Graph) Compile(outs []Expr) *Program {
 	for i, e := range outs {
 		p.outs[i] = reg[e]
 	}
+	if p.nreg <= 256 {
+		p.fast = fuseCode(p.code, p.outs, p.nreg)
+		for _, o := range p.outs {
+			p.fastOuts = append(p.fastOuts, uint8(o))
+		}
+	}
 	return p
+}
+
+// finstr is an instruction of the fast path: reg[dst] = op(reg[a], reg[b],
+// reg[c], reg[d]) with byte indices (for opPowi, c holds the exponent as
+// an int8).
+type finstr struct {
+	op              Op
+	dst, a, b, c, d uint8
+}
+
+// opIndex returns 0, 1, 2 for add, sub, mul and -1 otherwise.
+func opIndex(op Op) int {
+	switch op {
+	case OpAdd:
+		return 0
+	case OpSub:
+		return 1
+	case OpMul:
+		return 2
+	}
+	return -1
+}
+
+// fuseCode builds the fast path's tape: each + - * instruction absorbs the
+// + - * instructions computing its operands when they are used nowhere
+// else, so up to three operations take one dispatch. Registers are
+// assigned once (the tape is in single-assignment form), so an absorbed
+// instruction's operands still hold their values where it is absorbed.
+// Instructions are visited from the last, so roots absorb first.
+func fuseCode(code []instr, outs []int32, nreg int) []finstr {
+	uses := make([]int, nreg)
+	prod := make([]int, nreg) // instruction index producing a register, or -1
+	for i := range prod {
+		prod[i] = -1
+	}
+	for i, in := range code {
+		prod[in.dst] = i
+		uses[in.a]++
+		if in.op.arity() == 2 && in.op != opPowi && in.op != opSq {
+			uses[in.b]++
+		}
+	}
+	for _, o := range outs {
+		uses[o] += 2 // outputs are never absorbed
+	}
+	absorbed := make([]bool, len(code))
+	fused := make([]finstr, len(code))
+	// absorbable returns the instruction computing register r if it can be
+	// absorbed by its only user.
+	absorbable := func(r int32) (instr, bool) {
+		j := prod[r]
+		if j < 0 || uses[r] != 1 || absorbed[j] || opIndex(code[j].op) < 0 {
+			return instr{}, false
+		}
+		return code[j], true
+	}
+	for i := len(code) - 1; i >= 0; i-- {
+		if absorbed[i] {
+			continue
+		}
+		in := code[i]
+		f := finstr{op: in.op, dst: uint8(in.dst), a: uint8(in.a), b: uint8(in.b)}
+		switch in.op {
+		case opPowi:
+			f.b, f.c = 0, uint8(int8(in.b))
+		case opSq:
+			f.b = 0
+		}
+		if outer := opIndex(in.op); outer >= 0 {
+			l, okl := absorbable(in.a)
+			r, okr := absorbable(in.b)
+			if in.a == in.b {
+				okr = false // x op x: one producer, used twice
+				okl = false
+			}
+			switch {
+			case okl && okr:
+				f = finstr{op: fusedLR[opIndex(l.op)][outer][opIndex(r.op)], dst: uint8(in.dst),
+					a: uint8(l.a), b: uint8(l.b), c: uint8(r.a), d: uint8(r.b)}
+				absorbed[prod[in.a]], absorbed[prod[in.b]] = true, true
+			case okl:
+				f = finstr{op: fusedL[opIndex(l.op)][outer], dst: uint8(in.dst),
+					a: uint8(l.a), b: uint8(l.b), c: uint8(in.b)}
+				absorbed[prod[in.a]] = true
+			case okr:
+				f = finstr{op: fusedR[opIndex(r.op)][outer], dst: uint8(in.dst),
+					a: uint8(in.a), b: uint8(r.a), c: uint8(r.b)}
+				absorbed[prod[in.b]] = true
+			}
+		}
+		fused[i] = f
+	}
+	var out []finstr
+	for i, f := range fused {
+		if !absorbed[i] {
+			out = append(out, f)
+		}
+	}
+	return out
 }
 
 // intExponent reports whether e is an integer constant small enough for
@@ -124,15 +231,22 @@ func (g *Graph) intExponent(e Expr) bool {
 // every architecture; integer powers are computed by repeated squaring.
 // A Float64 does not allocate when run and is not safe for concurrent use.
 type Float64 struct {
-	p *Program
-	r []float64
+	p  *Program
+	r  []float64
+	rs *[256]float64 // the registers of the fast path, r's backing array
 }
 
 // NewFloat64 returns a float64 evaluator with its variables set to 0.
 func (p *Program) NewFloat64() *Float64 {
-	r := make([]float64, p.nreg)
-	copy(r[p.nvar:], p.consts)
-	return &Float64{p: p, r: r}
+	e := &Float64{p: p}
+	if p.fast != nil {
+		e.rs = new([256]float64)
+		e.r = e.rs[:p.nreg]
+	} else {
+		e.r = make([]float64, p.nreg)
+	}
+	copy(e.r[p.nvar:], p.consts)
+	return e
 }
 
 // Vars returns the evaluator's variable slots, to be written before Run.
@@ -143,6 +257,15 @@ func (e *Float64) Vars() []float64 { return e.r[:e.p.nvar:e.p.nvar] }
 func (e *Float64) Run(dst []float64) error {
 	if len(dst) < len(e.p.outs) {
 		return fmt.Errorf("expr: output has length %d, the program has %d outputs", len(dst), len(e.p.outs))
+	}
+	if rs := e.rs; rs != nil {
+		runFast(rs, e.p.fast)
+		outs := e.p.fastOuts
+		dst = dst[:len(outs)]
+		for i, o := range outs {
+			dst[i] = rs[o]
+		}
+		return nil
 	}
 	e.run()
 	r := e.r

@@ -27,7 +27,9 @@
 //
 //	Float64  float64; products rounded before sums (no fused multiply-add),
 //	         integer powers by repeated squaring: bit-identical on amd64
-//	         and arm64; Run does not allocate.
+//	         and arm64; Run does not allocate. Programs of up to 256
+//	         registers run on a byte-indexed tape where chains of up to
+//	         three + - * operations take one dispatch (same bits).
 //	DD       double-double, about 32 digits; Run does not allocate.
 //	Big      math/big.Float at any precision, with the elementary functions
 //	         of this package (BigExp, BigLog, BigSin, ...).

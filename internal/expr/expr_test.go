@@ -316,3 +316,52 @@ func TestNoAllocs(t *testing.T) {
 		t.Errorf("Lorenz formula field allocates %v times", n)
 	}
 }
+
+// TestFusedLorenz checks the fusion of the Lorenz rates: 8 operations in 4
+// dispatches (σ·(y-x); x·(ρ-z) then -y; x·y - β·z).
+func TestFusedLorenz(t *testing.T) {
+	g := NewGraph(lorenzVars)
+	var outs []Expr
+	for _, s := range lorenzRates {
+		e, _ := g.Parse(s)
+		outs = append(outs, e)
+	}
+	p := g.Compile(outs)
+	if len(p.code) != 8 || len(p.fast) != 4 {
+		t.Errorf("Lorenz: %d plain and %d fused instructions, want 8 and 4", len(p.code), len(p.fast))
+	}
+}
+
+// TestFusedBits checks that the fused fast path gives the same bits as the
+// plain tape (exact identity: fusion keeps every rounding).
+func TestFusedBits(t *testing.T) {
+	g := NewGraph(testVars)
+	outs := make([]Expr, 0, len(formulas)*len(testVars))
+	for _, s := range formulas {
+		e, _ := g.Parse(s)
+		outs = append(outs, e)
+		for v := range testVars {
+			outs = append(outs, g.Diff(e, v))
+		}
+	}
+	for start := 0; start < len(outs); start += 7 {
+		p := g.Compile(outs[start:min(start+7, len(outs))])
+		if p.fast == nil {
+			continue
+		}
+		fast, plain := p.NewFloat64(), p.NewFloat64()
+		plain.rs = nil // force the plain tape
+		rng := rand.New(rand.NewPCG(17, 18))
+		a, b := make([]float64, p.NumOut()), make([]float64, p.NumOut())
+		for range 20 {
+			x := samplePoint(rng)
+			fast.Eval(x, a)
+			plain.Eval(x, b)
+			for i := range a {
+				if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
+					t.Fatalf("output %d: fused %v, plain %v", start+i, a[i], b[i])
+				}
+			}
+		}
+	}
+}
