@@ -33,6 +33,9 @@
 //	DD       double-double, about 32 digits; Run does not allocate.
 //	Big      math/big.Float at any precision, with the elementary functions
 //	         of this package (BigExp, BigLog, BigSin, ...).
+//	Taylor   truncated Taylor series by the recurrences of Taylor-mode
+//	         differentiation; ODE gives the Taylor coefficients of the
+//	         solution of y' = f(t, y) and Step a fixed-step Taylor method.
 //
 // The constants of a program are float64 values in every evaluator, so all
 // three compute the same model and differ only in the rounding of their
