@@ -228,27 +228,30 @@ type MapSystem struct {
 	n    int
 	next *expr.Float64
 	jac  *expr.Float64
+	buf  []float64
 	jbuf []float64
 }
 
 // Dim returns the dimension of the state.
 func (m *MapSystem) Dim() int { return m.n }
 
-// Next writes f(x) into dst. Both have length Dim; wrong lengths panic, as
-// for the other fixed-dimension callbacks (the caller's invariant).
+// Next writes f(x) into dst. Both should have length Dim: Next reads the
+// first Dim components of x (missing ones keep the previous call's values)
+// and writes at most len(dst) components. It does not allocate.
 func (m *MapSystem) Next(x, dst []float64) {
 	copy(m.next.Vars()[1:1+m.n], x)
-	if err := m.next.Run(dst); err != nil {
-		panic("plumb: MapSystem.Next: " + err.Error())
-	}
+	m.next.Run(m.buf)
+	copy(dst, m.buf)
 }
 
-// Jacobian writes df/dx at x into dst, a Dim×Dim matrix.
+// Jacobian writes df/dx at x into dst, which should be Dim×Dim (a matrix of
+// another size gets the overlapping block). It does not allocate.
 func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
 	copy(m.jac.Vars()[1:1+m.n], x)
 	m.jac.Run(m.jbuf)
-	for i := 0; i < m.n; i++ {
-		for j := 0; j < m.n; j++ {
+	r, c := dst.Dims()
+	for i := 0; i < min(m.n, r); i++ {
+		for j := 0; j < min(m.n, c); j++ {
 			dst.Set(i, j, m.jbuf[i*m.n+j])
 		}
 	}
@@ -261,7 +264,8 @@ func (s *System) Map() (*MapSystem, error) {
 		return nil, fmt.Errorf("plumb: %s is a %s, not a map: %w", s.Name, s.kind, ErrKind)
 	}
 	f := s.form
-	m := &MapSystem{n: f.n, next: f.fieldProg.NewFloat64(), jac: f.jacProg.NewFloat64(), jbuf: make([]float64, f.n*f.n)}
+	m := &MapSystem{n: f.n, next: f.fieldProg.NewFloat64(), jac: f.jacProg.NewFloat64(),
+		buf: make([]float64, f.n), jbuf: make([]float64, f.n*f.n)}
 	f.setParams(m.next.Vars(), s.params)
 	f.setParams(m.jac.Vars(), s.params)
 	return m, nil
@@ -419,14 +423,8 @@ func (f *formulaSystem) setParams(vars, params []float64) {
 // fieldFunc returns the vector field at the parameters (copied now).
 func (f *formulaSystem) fieldFunc(params []float64) integrate.Func {
 	ev := f.fieldProg.NewFloat64()
-	vars := ev.Vars()
-	f.setParams(vars, params)
-	state := vars[1 : 1+f.n]
-	return func(t float64, y, dydt []float64) {
-		vars[0] = t
-		copy(state, y)
-		ev.Run(dydt)
-	}
+	f.setParams(ev.Vars(), params)
+	return ev.Field
 }
 
 // jacFunc returns the symbolic Jacobian at the parameters (copied now).

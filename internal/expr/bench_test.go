@@ -2,6 +2,7 @@ package expr
 
 import (
 	"testing"
+	"time"
 
 	"github.com/plumbdyn/plumb/internal/models"
 )
@@ -22,13 +23,8 @@ func lorenzField(tb testing.TB) func(t float64, y, dydt []float64) {
 		outs[i] = e
 	}
 	ev := g.Compile(outs).NewFloat64()
-	v := ev.Vars()
-	v[4], v[5], v[6] = 10, 28, 8.0/3
-	return func(t float64, y, dydt []float64) {
-		v[0] = t
-		v[1], v[2], v[3] = y[0], y[1], y[2]
-		ev.Run(dydt)
-	}
+	copy(ev.Vars()[4:], []float64{10, 28, 8.0 / 3})
+	return ev.Field
 }
 
 // BenchmarkLorenz compares the compiled formula field with the hand-written
@@ -53,4 +49,32 @@ func BenchmarkLorenz(b *testing.B) {
 			f(0, y, d)
 		}
 	})
+}
+
+// BenchmarkLorenzRatio times the formula field and the Go field in the same
+// run, alternating blocks of calls, and reports their ratio (the noise of a
+// shared machine affects both alike).
+func BenchmarkLorenzRatio(b *testing.B) {
+	m, err := models.Lookup("lorenz")
+	if err != nil {
+		b.Fatal(err)
+	}
+	goField, formula := m.Field(m.Defaults()), lorenzField(b)
+	y, d := []float64{1, 2, 3}, make([]float64, 3)
+	const block = 1000
+	var tGo, tFormula time.Duration
+	b.ReportAllocs()
+	for b.Loop() {
+		t0 := time.Now()
+		for range block {
+			goField(0, y, d)
+		}
+		t1 := time.Now()
+		for range block {
+			formula(0, y, d)
+		}
+		tGo += t1.Sub(t0)
+		tFormula += time.Since(t1)
+	}
+	b.ReportMetric(float64(tFormula)/float64(tGo), "formula/go")
 }

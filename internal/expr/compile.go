@@ -316,3 +316,38 @@ func (e *Float64) run() {
 		r[in.dst] = v
 	}
 }
+
+// Field evaluates a program laid out as a vector field: it sets slot 0 to
+// t and slots 1..len(y) to y, runs, and writes the outputs into dydt (at
+// most len(dydt) of them). Other slots (parameters) keep their values. It
+// does not allocate; y longer than the program's variables is cut short.
+func (e *Float64) Field(t float64, y, dydt []float64) {
+	r := e.r
+	n := min(len(y), e.p.nvar-1)
+	if n < 0 {
+		return
+	}
+	r[0] = t
+	for i, x := range y[:n] {
+		r[1+i] = x
+	}
+	if rs := e.rs; rs != nil {
+		runFast(rs, e.p.fast)
+		outs := e.p.fastOuts
+		if len(dydt) < len(outs) {
+			outs = outs[:len(dydt)]
+		}
+		for i, o := range outs {
+			dydt[i] = rs[o]
+		}
+		return
+	}
+	e.run()
+	outs := e.p.outs
+	if len(dydt) < len(outs) {
+		outs = outs[:len(dydt)]
+	}
+	for i, o := range outs {
+		dydt[i] = r[o]
+	}
+}
