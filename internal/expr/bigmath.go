@@ -222,8 +222,12 @@ func bigSinCos(x *big.Float, prec uint) (sin, cos *big.Float) {
 	halfPi := BigPi(w)
 	halfPi.SetMantExp(halfPi, -1)
 	q := newF(w).Quo(x, halfPi)
-	kf, _ := q.Float64()
-	kInt, _ := new(big.Float).SetFloat64(math.Round(kf)).Int(nil)
+	// k = round(q), exactly: w has room for all of q's integer bits.
+	half := big.NewFloat(0.5)
+	if q.Sign() < 0 {
+		half.Neg(half)
+	}
+	kInt, _ := newF(w).Add(q, half).Int(nil)
 	r := newF(w).Sub(x, newF(w).Mul(halfPi, newF(w).SetInt(kInt)))
 	quad := new(big.Int).Mod(kInt, big.NewInt(4)).Int64()
 	// Extra precision for small r (relative accuracy of sin near 0).
