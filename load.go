@@ -332,7 +332,7 @@ func buildSystem(f *fileSystem) (*System, error) {
 			return nil, fileErr(path+".value", "missing: give the value of %s", p.Name)
 		}
 		names = append(names, p.Name)
-		s.pinfo = append(s.pinfo, Param{Name: p.Name, Value: *p.Value, Doc: p.Description})
+		s.pinfo = append(s.pinfo, Param{Name: p.Name, Value: *p.Value, Doc: p.Description, Unit: p.Unit})
 		s.params = append(s.params, *p.Value)
 	}
 

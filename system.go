@@ -102,15 +102,25 @@ func builtinFormulas(f *models.Flow, rates []string) (*formulaSystem, error) {
 // Models returns the names of the built-in systems, sorted.
 func Models() []string { return models.Names() }
 
-// Param is a parameter's name, current value and description.
+// Param is a parameter's name, current value, description and unit (the
+// unit only for systems from files; "" when not given).
 type Param struct {
 	Name  string
 	Value float64
 	Doc   string
+	Unit  string
 }
 
 // Kind returns whether the system is a flow, a map or a Hamiltonian.
 func (s *System) Kind() Kind { return s.kind }
+
+// TimeUnit returns the unit of time given in a system file, or "".
+func (s *System) TimeUnit() string {
+	if s.form == nil {
+		return ""
+	}
+	return s.form.timeUnit
+}
 
 // Units returns the unit of each state component as given in a system file
 // ("" where none was given), or nil for built-ins.
@@ -120,7 +130,7 @@ func (s *System) Units() []string { return append([]string(nil), s.units...) }
 func (s *System) Params() []Param {
 	out := make([]Param, len(s.pinfo))
 	for i, p := range s.pinfo {
-		out[i] = Param{Name: p.Name, Value: s.params[i], Doc: p.Doc}
+		out[i] = Param{Name: p.Name, Value: s.params[i], Doc: p.Doc, Unit: p.Unit}
 	}
 	return out
 }
@@ -384,6 +394,62 @@ func (s *System) Formulas() []string {
 		out[i] = s.form.g.Format(e)
 	}
 	return out
+}
+
+// TaylorStepper advances a flow by fixed steps of the Taylor method of a
+// chosen order, with Taylor coefficients from the recurrences of Taylor-mode
+// differentiation of the system's formulas (Jorba & Zou, Experimental
+// Mathematics 14, 2005). Not safe for concurrent use; Step does not
+// allocate.
+type TaylorStepper struct {
+	n  int
+	ty *expr.Taylor
+}
+
+// Taylor returns a Taylor stepper of the given order (1 to 1000) at the
+// current parameters, for flows and Hamiltonians (maps get an error
+// wrapping ErrKind). Built-in models use their catalog formulas.
+func (s *System) Taylor(order int) (*TaylorStepper, error) {
+	if s.form == nil || s.kind == KindMap {
+		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor method: %w", s.Name, ErrKind)
+	}
+	if order < 1 {
+		return nil, fmt.Errorf("plumb: Taylor order %d, want at least 1: %w", order, integrate.ErrSettings)
+	}
+	ty, err := s.form.fieldProg.NewTaylor(order)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: %w: %w", err, integrate.ErrSettings)
+	}
+	for i, p := range s.params {
+		ty.SetParam(1+s.form.n+i, p)
+	}
+	return &TaylorStepper{n: s.form.n, ty: ty}, nil
+}
+
+// Order returns the stepper's order.
+func (ts *TaylorStepper) Order() int { return ts.ty.Order() }
+
+// Step writes the Taylor polynomial's value at t+h, from y at t, into dst
+// (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
+func (ts *TaylorStepper) Step(t float64, y []float64, h float64, dst []float64) error {
+	if len(y) != ts.n || len(dst) != ts.n {
+		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
+	}
+	return ts.ty.Step(t, y, h, dst)
+}
+
+// Coefficients writes the Taylor coefficients of the solution through
+// (t, y): dst[i][k] is the coefficient of h^k of component i, k = 0..Order.
+func (ts *TaylorStepper) Coefficients(t float64, y []float64, dst [][]float64) error {
+	if len(y) != ts.n || len(dst) != ts.n {
+		return fmt.Errorf("plumb: Taylor coefficients with %d states and %d rows, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
+	}
+	for i := range dst {
+		if len(dst[i]) < ts.Order()+1 {
+			return fmt.Errorf("plumb: row %d has %d coefficients, want %d: %w", i, len(dst[i]), ts.Order()+1, integrate.ErrDimension)
+		}
+	}
+	return ts.ty.ODE(t, y, dst)
 }
 
 // formulaSystem is a system given by formulas over the slots

@@ -19,15 +19,14 @@ import (
 //	v = exp u     v_k = (1/k) Σ_{1..k} j u_j v_{k-j}
 //	v = log u     v_k = (u_k - (1/k) Σ_{1..k-1} j v_j u_{k-j}) / u_0
 //	v = sqrt u    v_k = (u_k - Σ_{1..k-1} v_j v_{k-j}) / (2 v_0)
-//	v = u^c       v_k = (1/(k u_0)) Σ_{0..k-1} (c(k-j) - j) u_{k-j} v_j   (constant c)
 //	sin, cos      s_k = (1/k) Σ j u_j c_{k-j},  c_k = -(1/k) Σ j u_j s_{k-j}
 //	sinh, cosh    as sin, cos with the minus sign dropped
 //	tan, tanh     v_k = (1/k) Σ j u_j (1 ± v²)_{k-j}
 //	atan u        from (1+u²)·v' = u'
 //	atan2(u, w)   from (u²+w²)·v' = w u' - u w'
 //
-// Integer powers use repeated series multiplication (valid at u_0 = 0); a
-// general power u^w is exp(w·log u). abs, min, max, sign and step follow
+// Integer powers use repeated series multiplication (valid at u_0 = 0); any
+// other power u^w is exp(w·log u), which needs u_0 > 0. abs, min, max, sign and step follow
 // the branch taken at the expansion point (the convention of Diff at
 // kinks). The arithmetic is float64 with products rounded before sums.
 //
