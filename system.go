@@ -490,7 +490,7 @@ func (f *formulaSystem) setParams(vars, params []float64) {
 func (f *formulaSystem) fieldFunc(params []float64) integrate.Func {
 	ev := f.fieldProg.NewFloat64()
 	f.setParams(ev.Vars(), params)
-	return ev.Field
+	return ev.FieldFunc()
 }
 
 // jacFunc returns the symbolic Jacobian at the parameters (copied now).

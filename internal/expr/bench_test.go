@@ -24,7 +24,7 @@ func lorenzField(tb testing.TB) func(t float64, y, dydt []float64) {
 	}
 	ev := g.Compile(outs).NewFloat64()
 	copy(ev.Vars()[4:], []float64{10, 28, 8.0 / 3})
-	return ev.Field
+	return ev.FieldFunc()
 }
 
 // BenchmarkLorenz compares the compiled formula field with the hand-written

@@ -32,7 +32,7 @@ type Program struct {
 	nreg     int
 	consts   []float64 // values of registers nvar .. nvar+len(consts)-1
 	code     []instr
-	fast     []finstr // the fused byte-indexed tape, when nreg <= 256
+	fast     []uint64 // the fused byte-indexed tape (packed finstr values), when nreg <= 256
 	fastOuts []uint8
 	outs     []int32
 }
@@ -128,6 +128,12 @@ type finstr struct {
 	dst, a, b, c, d uint8
 }
 
+// pack returns the instruction as one word: op, dst, a, b, c, d in bytes 0
+// to 5.
+func (f finstr) pack() uint64 {
+	return uint64(f.op) | uint64(f.dst)<<8 | uint64(f.a)<<16 | uint64(f.b)<<24 | uint64(f.c)<<32 | uint64(f.d)<<40
+}
+
 // opIndex returns 0, 1, 2 for add, sub, mul and -1 otherwise.
 func opIndex(op Op) int {
 	switch op {
@@ -147,7 +153,7 @@ func opIndex(op Op) int {
 // assigned once (the tape is in single-assignment form), so an absorbed
 // instruction's operands still hold their values where it is absorbed.
 // Instructions are visited from the last, so roots absorb first.
-func fuseCode(code []instr, outs []int32, nreg int) []finstr {
+func fuseCode(code []instr, outs []int32, nreg int) []uint64 {
 	uses := make([]int, nreg)
 	prod := make([]int, nreg) // instruction index producing a register, or -1
 	for i := range prod {
@@ -210,10 +216,10 @@ func fuseCode(code []instr, outs []int32, nreg int) []finstr {
 		}
 		fused[i] = f
 	}
-	var out []finstr
+	var out []uint64
 	for i, f := range fused {
 		if !absorbed[i] {
-			out = append(out, f)
+			out = append(out, f.pack())
 		}
 	}
 	return out
@@ -349,5 +355,31 @@ func (e *Float64) Field(t float64, y, dydt []float64) {
 	}
 	for i, o := range outs {
 		dydt[i] = r[o]
+	}
+}
+
+// FieldFunc returns Field as a function value that holds the evaluator's
+// registers and tape directly (one call less per evaluation than the
+// method value e.Field).
+func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
+	rs, code, fastOuts := e.rs, e.p.fast, e.p.fastOuts
+	nstate := e.p.nvar - 1
+	if rs == nil || nstate < 0 {
+		return e.Field
+	}
+	return func(t float64, y, dydt []float64) {
+		rs[0] = t
+		n := min(len(y), nstate)
+		for i, x := range y[:n] {
+			rs[1+i] = x
+		}
+		runFast(rs, code)
+		outs := fastOuts
+		if len(dydt) < len(outs) {
+			outs = outs[:len(dydt)]
+		}
+		for i, o := range outs {
+			dydt[i] = rs[o]
+		}
 	}
 }

@@ -66,123 +66,134 @@ var (
 )
 
 // runFast is the interpreter loop of the fast path: registers in a fixed
-// array indexed by bytes, so no bounds checks are needed.
-func runFast(r *[256]float64, code []finstr) {
-	for _, in := range code {
+// array indexed by bytes, so no bounds checks are needed, and each
+// instruction packed in one word (see finstr.pack), so it stays in a
+// register.
+func runFast(r *[256]float64, code []uint64) {
+	for _, w := range code {
 		var v float64
-		switch in.op {
+		switch Op(w) {
 		case fAddAddL:
-			v = (r[in.a] + r[in.b]) + r[in.c]
+			v = (r[uint8(w>>16)] + r[uint8(w>>24)]) + r[uint8(w>>32)]
 		case fAddAddR:
-			v = r[in.a] + (r[in.b] + r[in.c])
+			v = r[uint8(w>>16)] + (r[uint8(w>>24)] + r[uint8(w>>32)])
 		case fAddSubL:
-			v = (r[in.a] + r[in.b]) - r[in.c]
+			v = (r[uint8(w>>16)] + r[uint8(w>>24)]) - r[uint8(w>>32)]
 		case fSubAddR:
-			v = r[in.a] - (r[in.b] + r[in.c])
+			v = r[uint8(w>>16)] - (r[uint8(w>>24)] + r[uint8(w>>32)])
 		case fAddMulL:
-			v = float64((r[in.a] + r[in.b]) * r[in.c])
+			v = float64((r[uint8(w>>16)] + r[uint8(w>>24)]) * r[uint8(w>>32)])
 		case fMulAddR:
-			v = float64(r[in.a] * (r[in.b] + r[in.c]))
+			v = float64(r[uint8(w>>16)] * (r[uint8(w>>24)] + r[uint8(w>>32)]))
 		case fSubAddL:
-			v = (r[in.a] - r[in.b]) + r[in.c]
+			v = (r[uint8(w>>16)] - r[uint8(w>>24)]) + r[uint8(w>>32)]
 		case fAddSubR:
-			v = r[in.a] + (r[in.b] - r[in.c])
+			v = r[uint8(w>>16)] + (r[uint8(w>>24)] - r[uint8(w>>32)])
 		case fSubSubL:
-			v = (r[in.a] - r[in.b]) - r[in.c]
+			v = (r[uint8(w>>16)] - r[uint8(w>>24)]) - r[uint8(w>>32)]
 		case fSubSubR:
-			v = r[in.a] - (r[in.b] - r[in.c])
+			v = r[uint8(w>>16)] - (r[uint8(w>>24)] - r[uint8(w>>32)])
 		case fSubMulL:
-			v = float64((r[in.a] - r[in.b]) * r[in.c])
+			v = float64((r[uint8(w>>16)] - r[uint8(w>>24)]) * r[uint8(w>>32)])
 		case fMulSubR:
-			v = float64(r[in.a] * (r[in.b] - r[in.c]))
+			v = float64(r[uint8(w>>16)] * (r[uint8(w>>24)] - r[uint8(w>>32)]))
 		case fMulAddL:
-			v = float64(r[in.a]*r[in.b]) + r[in.c]
+			v = float64(r[uint8(w>>16)]*r[uint8(w>>24)]) + r[uint8(w>>32)]
 		case fAddMulR:
-			v = r[in.a] + float64(r[in.b]*r[in.c])
+			v = r[uint8(w>>16)] + float64(r[uint8(w>>24)]*r[uint8(w>>32)])
 		case fMulSubL:
-			v = float64(r[in.a]*r[in.b]) - r[in.c]
+			v = float64(r[uint8(w>>16)]*r[uint8(w>>24)]) - r[uint8(w>>32)]
 		case fSubMulR:
-			v = r[in.a] - float64(r[in.b]*r[in.c])
+			v = r[uint8(w>>16)] - float64(r[uint8(w>>24)]*r[uint8(w>>32)])
 		case fMulMulL:
-			v = float64(float64(r[in.a]*r[in.b]) * r[in.c])
+			v = float64(float64(r[uint8(w>>16)]*r[uint8(w>>24)]) * r[uint8(w>>32)])
 		case fMulMulR:
-			v = float64(r[in.a] * float64(r[in.b]*r[in.c]))
+			v = float64(r[uint8(w>>16)] * float64(r[uint8(w>>24)]*r[uint8(w>>32)]))
 		case fAddAddAddLR:
-			v = (r[in.a] + r[in.b]) + (r[in.c] + r[in.d])
+			v = (r[uint8(w>>16)] + r[uint8(w>>24)]) + (r[uint8(w>>32)] + r[uint8(w>>40)])
 		case fAddAddSubLR:
-			v = (r[in.a] + r[in.b]) + (r[in.c] - r[in.d])
+			v = (r[uint8(w>>16)] + r[uint8(w>>24)]) + (r[uint8(w>>32)] - r[uint8(w>>40)])
 		case fAddAddMulLR:
-			v = (r[in.a] + r[in.b]) + float64(r[in.c]*r[in.d])
+			v = (r[uint8(w>>16)] + r[uint8(w>>24)]) + float64(r[uint8(w>>32)]*r[uint8(w>>40)])
 		case fAddSubAddLR:
-			v = (r[in.a] + r[in.b]) - (r[in.c] + r[in.d])
+			v = (r[uint8(w>>16)] + r[uint8(w>>24)]) - (r[uint8(w>>32)] + r[uint8(w>>40)])
 		case fAddSubSubLR:
-			v = (r[in.a] + r[in.b]) - (r[in.c] - r[in.d])
+			v = (r[uint8(w>>16)] + r[uint8(w>>24)]) - (r[uint8(w>>32)] - r[uint8(w>>40)])
 		case fAddSubMulLR:
-			v = (r[in.a] + r[in.b]) - float64(r[in.c]*r[in.d])
+			v = (r[uint8(w>>16)] + r[uint8(w>>24)]) - float64(r[uint8(w>>32)]*r[uint8(w>>40)])
 		case fAddMulAddLR:
-			v = float64((r[in.a] + r[in.b]) * (r[in.c] + r[in.d]))
+			v = float64((r[uint8(w>>16)] + r[uint8(w>>24)]) * (r[uint8(w>>32)] + r[uint8(w>>40)]))
 		case fAddMulSubLR:
-			v = float64((r[in.a] + r[in.b]) * (r[in.c] - r[in.d]))
+			v = float64((r[uint8(w>>16)] + r[uint8(w>>24)]) * (r[uint8(w>>32)] - r[uint8(w>>40)]))
 		case fAddMulMulLR:
-			v = float64((r[in.a] + r[in.b]) * float64(r[in.c]*r[in.d]))
+			v = float64((r[uint8(w>>16)] + r[uint8(w>>24)]) * float64(r[uint8(w>>32)]*r[uint8(w>>40)]))
 		case fSubAddAddLR:
-			v = (r[in.a] - r[in.b]) + (r[in.c] + r[in.d])
+			v = (r[uint8(w>>16)] - r[uint8(w>>24)]) + (r[uint8(w>>32)] + r[uint8(w>>40)])
 		case fSubAddSubLR:
-			v = (r[in.a] - r[in.b]) + (r[in.c] - r[in.d])
+			v = (r[uint8(w>>16)] - r[uint8(w>>24)]) + (r[uint8(w>>32)] - r[uint8(w>>40)])
 		case fSubAddMulLR:
-			v = (r[in.a] - r[in.b]) + float64(r[in.c]*r[in.d])
+			v = (r[uint8(w>>16)] - r[uint8(w>>24)]) + float64(r[uint8(w>>32)]*r[uint8(w>>40)])
 		case fSubSubAddLR:
-			v = (r[in.a] - r[in.b]) - (r[in.c] + r[in.d])
+			v = (r[uint8(w>>16)] - r[uint8(w>>24)]) - (r[uint8(w>>32)] + r[uint8(w>>40)])
 		case fSubSubSubLR:
-			v = (r[in.a] - r[in.b]) - (r[in.c] - r[in.d])
+			v = (r[uint8(w>>16)] - r[uint8(w>>24)]) - (r[uint8(w>>32)] - r[uint8(w>>40)])
 		case fSubSubMulLR:
-			v = (r[in.a] - r[in.b]) - float64(r[in.c]*r[in.d])
+			v = (r[uint8(w>>16)] - r[uint8(w>>24)]) - float64(r[uint8(w>>32)]*r[uint8(w>>40)])
 		case fSubMulAddLR:
-			v = float64((r[in.a] - r[in.b]) * (r[in.c] + r[in.d]))
+			v = float64((r[uint8(w>>16)] - r[uint8(w>>24)]) * (r[uint8(w>>32)] + r[uint8(w>>40)]))
 		case fSubMulSubLR:
-			v = float64((r[in.a] - r[in.b]) * (r[in.c] - r[in.d]))
+			v = float64((r[uint8(w>>16)] - r[uint8(w>>24)]) * (r[uint8(w>>32)] - r[uint8(w>>40)]))
 		case fSubMulMulLR:
-			v = float64((r[in.a] - r[in.b]) * float64(r[in.c]*r[in.d]))
+			v = float64((r[uint8(w>>16)] - r[uint8(w>>24)]) * float64(r[uint8(w>>32)]*r[uint8(w>>40)]))
 		case fMulAddAddLR:
-			v = float64(r[in.a]*r[in.b]) + (r[in.c] + r[in.d])
+			v = float64(r[uint8(w>>16)]*r[uint8(w>>24)]) + (r[uint8(w>>32)] + r[uint8(w>>40)])
 		case fMulAddSubLR:
-			v = float64(r[in.a]*r[in.b]) + (r[in.c] - r[in.d])
+			v = float64(r[uint8(w>>16)]*r[uint8(w>>24)]) + (r[uint8(w>>32)] - r[uint8(w>>40)])
 		case fMulAddMulLR:
-			v = float64(r[in.a]*r[in.b]) + float64(r[in.c]*r[in.d])
+			v = float64(r[uint8(w>>16)]*r[uint8(w>>24)]) + float64(r[uint8(w>>32)]*r[uint8(w>>40)])
 		case fMulSubAddLR:
-			v = float64(r[in.a]*r[in.b]) - (r[in.c] + r[in.d])
+			v = float64(r[uint8(w>>16)]*r[uint8(w>>24)]) - (r[uint8(w>>32)] + r[uint8(w>>40)])
 		case fMulSubSubLR:
-			v = float64(r[in.a]*r[in.b]) - (r[in.c] - r[in.d])
+			v = float64(r[uint8(w>>16)]*r[uint8(w>>24)]) - (r[uint8(w>>32)] - r[uint8(w>>40)])
 		case fMulSubMulLR:
-			v = float64(r[in.a]*r[in.b]) - float64(r[in.c]*r[in.d])
+			v = float64(r[uint8(w>>16)]*r[uint8(w>>24)]) - float64(r[uint8(w>>32)]*r[uint8(w>>40)])
 		case fMulMulAddLR:
-			v = float64(float64(r[in.a]*r[in.b]) * (r[in.c] + r[in.d]))
+			v = float64(float64(r[uint8(w>>16)]*r[uint8(w>>24)]) * (r[uint8(w>>32)] + r[uint8(w>>40)]))
 		case fMulMulSubLR:
-			v = float64(float64(r[in.a]*r[in.b]) * (r[in.c] - r[in.d]))
+			v = float64(float64(r[uint8(w>>16)]*r[uint8(w>>24)]) * (r[uint8(w>>32)] - r[uint8(w>>40)]))
 		case fMulMulMulLR:
-			v = float64(float64(r[in.a]*r[in.b]) * float64(r[in.c]*r[in.d]))
+			v = float64(float64(r[uint8(w>>16)]*r[uint8(w>>24)]) * float64(r[uint8(w>>32)]*r[uint8(w>>40)]))
 		case OpAdd:
-			v = r[in.a] + r[in.b]
+			v = r[uint8(w>>16)] + r[uint8(w>>24)]
 		case OpSub:
-			v = r[in.a] - r[in.b]
+			v = r[uint8(w>>16)] - r[uint8(w>>24)]
 		case OpMul:
-			v = float64(r[in.a] * r[in.b])
+			v = float64(r[uint8(w>>16)] * r[uint8(w>>24)])
 		case OpDiv:
-			v = r[in.a] / r[in.b]
+			v = r[uint8(w>>16)] / r[uint8(w>>24)]
 		case OpNeg:
-			v = -r[in.a]
+			v = -r[uint8(w>>16)]
 		case opSq:
-			x := r[in.a]
+			x := r[uint8(w>>16)]
 			v = float64(x * x)
-		case opPowi:
-			v = powi(r[in.a], int(int8(in.c)))
-		case OpPow:
-			v = pow(r[in.a], r[in.b])
-		case OpAtan2, OpMin, OpMax:
-			v = eval2(in.op, r[in.a], r[in.b])
 		default:
-			v = eval1(in.op, r[in.a])
+			v = slowOp(r, w)
 		}
-		r[in.dst] = v
+		r[uint8(w>>8)] = v
+	}
+}
+
+// slowOp computes an instruction that calls a function.
+func slowOp(r *[256]float64, w uint64) float64 {
+	x := r[uint8(w>>16)]
+	switch op := Op(w); op {
+	case opPowi:
+		return powi(x, int(int8(w>>32)))
+	case OpPow:
+		return pow(x, r[uint8(w>>24)])
+	case OpAtan2, OpMin, OpMax:
+		return eval2(op, x, r[uint8(w>>24)])
+	default:
+		return eval1(op, x)
 	}
 }
