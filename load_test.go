@@ -523,3 +523,39 @@ func TestTaylorStepper(t *testing.T) {
 		t.Errorf("short state: %v", err)
 	}
 }
+
+// TestConcurrentModels builds and evaluates built-ins from several
+// goroutines (they share the compiled catalog formulas); run with -race.
+func TestConcurrentModels(t *testing.T) {
+	done := make(chan error, 4)
+	for g := range 4 {
+		go func() {
+			s, err := Model([]string{"lorenz", "kepler", "double-pendulum", "lorenz"}[g])
+			if err != nil {
+				done <- err
+				return
+			}
+			p := s.Problem()
+			n := len(p.Y0)
+			d := make([]float64, n)
+			j := mat.NewDense(n, n, nil)
+			p.F(0, p.Y0, d)
+			p.Jac(0, p.Y0, j)
+			_ = s.Formulas()
+			be, err := s.Evaluator(128)
+			if err == nil {
+				y := make([]*big.Float, n)
+				for i, v := range p.Y0 {
+					y[i] = big.NewFloat(v)
+				}
+				err = be.Eval(new(big.Float), y, make([]*big.Float, n))
+			}
+			done <- err
+		}()
+	}
+	for range 4 {
+		if err := <-done; err != nil {
+			t.Error(err)
+		}
+	}
+}

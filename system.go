@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/big"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -65,15 +66,40 @@ func Model(name string) (*System, error) {
 	if f.Period != nil {
 		s.periods = append([]float64(nil), f.Period...)
 	}
+	s.form = cachedFormulas(f)
+	return s, nil
+}
+
+// builtinCache holds the compiled formulas of each built-in, made once: a
+// formulaSystem is read-only after construction (its programs are
+// immutable, evaluators are made per use), so systems can share it.
+var builtinCache struct {
+	sync.Mutex
+	m map[string]*formulaSystem
+}
+
+// cachedFormulas returns the compiled catalog formulas of f, or nil when the
+// catalog has none.
+func cachedFormulas(f *models.Flow) *formulaSystem {
+	builtinCache.Lock()
+	defer builtinCache.Unlock()
+	if fs, ok := builtinCache.m[f.Name]; ok {
+		return fs
+	}
+	var fs *formulaSystem
 	if rates, ok := models.Formulas[f.Name]; ok {
-		fs, err := builtinFormulas(f, rates)
+		var err error
+		fs, err = builtinFormulas(f, rates)
 		if err != nil {
 			// The catalog's formulas are tested; a failure is a broken invariant.
 			panic("plumb: built-in formulas of " + f.Name + ": " + err.Error())
 		}
-		s.form = fs
 	}
-	return s, nil
+	if builtinCache.m == nil {
+		builtinCache.m = make(map[string]*formulaSystem)
+	}
+	builtinCache.m[f.Name] = fs
+	return fs
 }
 
 // builtinFormulas compiles a catalog entry's formulas over t, the states and
