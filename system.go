@@ -478,6 +478,45 @@ func (ts *TaylorStepper) Coefficients(t float64, y []float64, dst [][]float64) e
 	return ts.ty.ODE(t, y, dst)
 }
 
+// TaylorDDStepper is TaylorStepper in double-double arithmetic (about 32
+// significant digits), for reference solutions. Not safe for concurrent
+// use; Step does not allocate.
+type TaylorDDStepper struct {
+	n  int
+	ty *expr.TaylorDD
+}
+
+// TaylorDD returns a double-double Taylor stepper of the given order (1 to
+// 1000) at the current parameters; see Taylor.
+func (s *System) TaylorDD(order int) (*TaylorDDStepper, error) {
+	if s.form == nil || s.kind == KindMap {
+		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor method: %w", s.Name, ErrKind)
+	}
+	if order < 1 {
+		return nil, fmt.Errorf("plumb: Taylor order %d, want at least 1: %w", order, integrate.ErrSettings)
+	}
+	ty, err := s.form.fieldProg.NewTaylorDD(order)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: %w: %w", err, integrate.ErrSettings)
+	}
+	for i, p := range s.params {
+		ty.SetParam(1+s.form.n+i, dd.From(p))
+	}
+	return &TaylorDDStepper{n: s.form.n, ty: ty}, nil
+}
+
+// Order returns the stepper's order.
+func (ts *TaylorDDStepper) Order() int { return ts.ty.Order() }
+
+// Step writes the Taylor polynomial's value at t+h, from y at t, into dst
+// (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
+func (ts *TaylorDDStepper) Step(t DoubleDouble, y []DoubleDouble, h DoubleDouble, dst []DoubleDouble) error {
+	if len(y) != ts.n || len(dst) != ts.n {
+		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
+	}
+	return ts.ty.Step(t, y, h, dst)
+}
+
 // formulaSystem is a system given by formulas over the slots
 // (t, y_1..y_n, p_1..p_k).
 type formulaSystem struct {

@@ -2,8 +2,11 @@ package expr
 
 import (
 	"math"
+	"math/big"
 	"math/rand/v2"
 	"testing"
+
+	"github.com/plumbdyn/plumb/internal/dd"
 )
 
 // TestTaylorSeries checks each formula's Taylor series along the line
@@ -209,5 +212,67 @@ func TestTaylorStepOrder(t *testing.T) {
 		if math.Abs(got-float64(order)) > 0.15 {
 			t.Errorf("order %d: measured %.3f (errors %g, %g)", order, got, e1, e2)
 		}
+	}
+}
+
+// TestTaylorDDMatchesFloat64 checks that the double-double recurrences give
+// the float64 ones' coefficients to float64 accuracy on every formula
+// (same recurrences, different rounding: 1e-12 relative to max(1, |c_k|)
+// after the float64 recurrences' error growth).
+func TestTaylorDDMatchesFloat64(t *testing.T) {
+	const K, tol = 12, 1e-12
+	g := NewGraph(testVars)
+	rng := rand.New(rand.NewPCG(23, 24))
+	for _, src := range formulas {
+		e, _ := g.Parse(src)
+		p := g.Compile([]Expr{e})
+		t64, _ := p.NewTaylor(K)
+		tdd, _ := p.NewTaylorDD(K)
+		x0 := samplePoint(rng)
+		for i := range x0 {
+			a, b := t64.Var(i), tdd.Var(i)
+			clear(a)
+			clear(b)
+			a[0], a[1] = x0[i], 0.25
+			b[0], b[1] = dd.From(x0[i]), dd.From(0.25)
+		}
+		t64.Run()
+		tdd.Run()
+		for k := 0; k <= K; k++ {
+			f, d := t64.Out(0)[k], tdd.Out(0)[k].Float64()
+			if math.Abs(f-d) > tol*math.Max(1, math.Abs(d)) {
+				t.Errorf("%s: coefficient %d: float64 %.16g, double-double %.16g", src, k, f, d)
+			}
+		}
+	}
+}
+
+// TestTaylorDDExact checks the double-double coefficients of y' = -y²,
+// y(0) = 1, against y_k = (-1)^k (exact identity), and a step of
+// y' = y·cos t against exp(sin h) computed in math/big at 200 bits.
+func TestTaylorDDExact(t *testing.T) {
+	const K = 30
+	// The recurrences add a few double-double roundings per coefficient.
+	const tol = 1e-30
+	g := NewGraph([]string{"t", "y"})
+	e, _ := g.Parse("-y^2")
+	ty, _ := g.Compile([]Expr{e}).NewTaylorDD(K)
+	dst := [][]dd.Float{make([]dd.Float, K+1)}
+	ty.ODE(dd.Float{}, []dd.Float{dd.From(1)}, dst)
+	for k, c := range dst[0] {
+		if w := math.Pow(-1, float64(k)); math.Abs(dd.Sub(c, dd.From(w)).Float64()) > tol {
+			t.Errorf("y_%d = %v, want %v", k, c, w)
+		}
+	}
+	e2, _ := g.Parse("y*cos(t)")
+	ty2, _ := g.Compile([]Expr{e2}).NewTaylorDD(K)
+	y := []dd.Float{dd.From(1)}
+	h := dd.From(0.0625)
+	ty2.Step(dd.Float{}, y, h, y)
+	// Truncation: 0.0625^31 ~ 5e-38; reference exp(sin h) at 200 bits.
+	ref := BigExp(new(big.Float).SetPrec(200), BigSin(new(big.Float).SetPrec(200), h.Big()))
+	diff, _ := new(big.Float).Sub(y[0].Big(), ref).Float64()
+	if math.Abs(diff) > 1e-30 {
+		t.Errorf("exp(sin 0.0625): Taylor step off by %g", diff)
 	}
 }
