@@ -39,6 +39,11 @@ func FuzzParse(f *testing.F) {
 		if err != nil || e2 != e {
 			t.Fatalf("Parse(%q) printed as %q, which reads back as %v (%v)", src, out, e2, err)
 		}
+		// A fresh graph reads the printed text to a node that prints the same.
+		g2 := NewGraph(testVars)
+		if e3, err := g2.Parse(out); err != nil || g2.Format(e3) != out {
+			t.Fatalf("Parse(%q) printed as %q; a fresh graph prints it as %q (%v)", src, out, g2.Format(e3), err)
+		}
 		if g.Len() > 2000 {
 			return // keep derivatives of huge inputs out of the fuzzer's time
 		}
