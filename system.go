@@ -4,26 +4,47 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/big"
+	"sync"
+
+	"gonum.org/v1/gonum/mat"
 
 	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/internal/expr"
 	"github.com/plumbdyn/plumb/internal/models"
 )
 
 // ErrUnknown reports an unknown model or parameter name.
 var ErrUnknown = errors.New("unknown name")
 
-// System is a dynamical system ready to integrate: a built-in model (Model)
-// with its parameters, which can be changed with Set.
+// ErrKind reports a request that does not fit the system's kind, such as the
+// vector field of a map.
+var ErrKind = errors.New("wrong kind of system")
+
+// System is a dynamical system ready to integrate or iterate: a built-in
+// model (Model) or a system read from formulas (LoadSystem), with its
+// parameters, which can be changed with Set.
+//
+// A System is not safe for concurrent use; the functions it returns (in
+// Problem, Evaluator, DoubleDoubleEvaluator, Map) each own their workspace
+// and are not safe for concurrent use either: call the method once per
+// goroutine.
 type System struct {
 	// Name is the catalog name, Title a human name, Source where the
-	// equations and parameters are published.
+	// equations and parameters are published ("system file" for files).
 	Name, Title, Source string
 	// States names the state components in order.
 	States []string
 
-	flow   *models.Flow
-	params []float64
-	y0     []float64
+	kind    Kind
+	flow    *models.Flow   // built-in, or nil
+	form    *formulaSystem // formulas: the file's, or the built-in's catalog entry; may be nil for a built-in
+	pinfo   []Param
+	params  []float64
+	y0      []float64
+	periods []float64
+	units   []string
 }
 
 // Model returns the built-in system with the given name, at its published
@@ -33,38 +54,124 @@ func Model(name string) (*System, error) {
 	if err != nil {
 		return nil, fmt.Errorf("plumb: %w: %w", ErrUnknown, err)
 	}
-	return &System{
+	s := &System{
 		Name: f.Name, Title: f.Title, Source: f.Source,
 		States: append([]string(nil), f.States...),
+		kind:   KindFlow,
 		flow:   f, params: f.Defaults(), y0: append([]float64(nil), f.Y0...),
-	}, nil
+	}
+	for _, p := range f.Params {
+		s.pinfo = append(s.pinfo, Param{Name: p.Name, Value: p.Value, Doc: p.Doc})
+	}
+	if f.Period != nil {
+		s.periods = append([]float64(nil), f.Period...)
+	}
+	s.form = cachedFormulas(f)
+	return s, nil
+}
+
+// builtinCache holds the compiled formulas of each built-in, made once: a
+// formulaSystem is read-only after construction (its programs are
+// immutable, evaluators are made per use), so systems can share it.
+var builtinCache struct {
+	sync.Mutex
+	m map[string]*formulaSystem
+}
+
+// cachedFormulas returns the compiled catalog formulas of f, or nil when the
+// catalog has none.
+func cachedFormulas(f *models.Flow) *formulaSystem {
+	builtinCache.Lock()
+	defer builtinCache.Unlock()
+	if fs, ok := builtinCache.m[f.Name]; ok {
+		return fs
+	}
+	var fs *formulaSystem
+	if rates, ok := models.Formulas[f.Name]; ok {
+		var err error
+		fs, err = builtinFormulas(f, rates)
+		if err != nil {
+			// The catalog's formulas are tested; a failure is a broken invariant.
+			panic("plumb: built-in formulas of " + f.Name + ": " + err.Error())
+		}
+	}
+	if builtinCache.m == nil {
+		builtinCache.m = make(map[string]*formulaSystem)
+	}
+	builtinCache.m[f.Name] = fs
+	return fs
+}
+
+// builtinFormulas compiles a catalog entry's formulas over t, the states and
+// the parameters.
+func builtinFormulas(f *models.Flow, rates []string) (*formulaSystem, error) {
+	names := append([]string{"t"}, f.States...)
+	for _, p := range f.Params {
+		names = append(names, p.Name)
+	}
+	g := expr.NewGraph(names)
+	fs := &formulaSystem{kind: KindFlow, g: g, n: len(f.States)}
+	if len(rates) != len(f.States) {
+		return nil, fmt.Errorf("%d formulas for %d states", len(rates), len(f.States))
+	}
+	for _, r := range rates {
+		e, err := g.Parse(r)
+		if err != nil {
+			return nil, err
+		}
+		fs.rates = append(fs.rates, e)
+	}
+	fs.finish()
+	return fs, nil
 }
 
 // Models returns the names of the built-in systems, sorted.
 func Models() []string { return models.Names() }
 
-// Param is a parameter's name, current value and description.
+// Param is a parameter's name, current value, description and unit (the
+// unit only for systems from files; "" when not given).
 type Param struct {
 	Name  string
 	Value float64
 	Doc   string
+	Unit  string
 }
+
+// Kind returns whether the system is a flow, a map or a Hamiltonian.
+func (s *System) Kind() Kind { return s.kind }
+
+// TimeUnit returns the unit of time given in a system file, or "".
+func (s *System) TimeUnit() string {
+	if s.form == nil {
+		return ""
+	}
+	return s.form.timeUnit
+}
+
+// Units returns the unit of each state component as given in a system file
+// ("" where none was given), or nil for built-ins.
+func (s *System) Units() []string { return append([]string(nil), s.units...) }
 
 // Params returns the parameters with their current values.
 func (s *System) Params() []Param {
-	out := make([]Param, len(s.flow.Params))
-	for i, p := range s.flow.Params {
-		out[i] = Param{Name: p.Name, Value: s.params[i], Doc: p.Doc}
+	out := make([]Param, len(s.pinfo))
+	for i, p := range s.pinfo {
+		out[i] = Param{Name: p.Name, Value: s.params[i], Doc: p.Doc, Unit: p.Unit}
 	}
 	return out
 }
 
 // Set changes a parameter. Unknown names and non-finite values are errors.
 func (s *System) Set(name string, v float64) error {
-	i := s.flow.ParamIndex(name)
+	i := -1
+	for k, p := range s.pinfo {
+		if p.Name == name {
+			i = k
+		}
+	}
 	if i < 0 {
-		known := make([]string, len(s.flow.Params))
-		for k, p := range s.flow.Params {
+		known := make([]string, len(s.pinfo))
+		for k, p := range s.pinfo {
 			known[k] = p.Name
 		}
 		return fmt.Errorf("plumb: model %s has no parameter %q (parameters: %v): %w", s.Name, name, known, ErrUnknown)
@@ -92,30 +199,461 @@ func (s *System) SetStart(y0 []float64) error {
 // nil when no component is periodic. Distances between states use the
 // wrapped difference on periodic components.
 func (s *System) Periods() []float64 {
-	if s.flow.Period == nil {
+	if s.periods == nil {
 		return nil
 	}
-	return append([]float64(nil), s.flow.Period...)
+	return append([]float64(nil), s.periods...)
 }
 
 // Known returns a published fact of the default configuration (e.g.
-// "period", "energy"), and whether it exists.
+// "period", "energy"), and whether it exists. Systems from files have none.
 func (s *System) Known(key string) (float64, bool) {
+	if s.flow == nil {
+		return 0, false
+	}
 	v, ok := s.flow.Known[key]
 	return v, ok
 }
 
-// Problem returns the initial value problem at the current parameters and
-// start, with T0 = 0, the exact Jacobian when the model has one, and the
-// separable Hamiltonian parts when it has them.
-func (s *System) Problem() integrate.Problem {
-	p := integrate.Problem{F: s.flow.Field(s.params), Y0: append([]float64(nil), s.y0...)}
-	if s.flow.Jac != nil {
-		p.Jac = s.flow.Jac(s.params)
+// Separable reports whether the system is a Hamiltonian H = T(p) + V(q), so
+// that Problem carries the parts symplectic methods need.
+func (s *System) Separable() bool {
+	if s.flow != nil {
+		return s.flow.Separable != nil
 	}
-	if s.flow.Separable != nil {
-		parts := s.flow.Separable(s.params)
-		p.Split = &integrate.Separable{DT: parts.DT, DV: parts.DV, H: parts.H}
+	return s.form.ham != nil && s.form.ham.separable
+}
+
+// Problem returns the initial value problem at the current parameters and
+// start, with T0 = 0, the exact Jacobian (hand-written for built-ins where
+// the catalog has one, symbolic otherwise), and the separable Hamiltonian
+// parts when the system has them. Later calls to Set do not change a
+// returned Problem.
+//
+// A map has no vector field: its Problem has a nil F (which the integrators
+// reject with integrate.ErrSettings); use Map instead.
+func (s *System) Problem() integrate.Problem {
+	p := integrate.Problem{Y0: append([]float64(nil), s.y0...)}
+	if s.flow != nil {
+		p.F = s.flow.Field(append([]float64(nil), s.params...))
+		if s.flow.Jac != nil {
+			p.Jac = s.flow.Jac(append([]float64(nil), s.params...))
+		} else if s.form != nil {
+			p.Jac = s.form.jacFunc(s.params)
+		}
+		if s.flow.Separable != nil {
+			parts := s.flow.Separable(append([]float64(nil), s.params...))
+			p.Split = &integrate.Separable{DT: parts.DT, DV: parts.DV, H: parts.H}
+		}
+		return p
+	}
+	if s.kind == KindMap {
+		return p
+	}
+	p.F = s.form.fieldFunc(s.params)
+	p.Jac = s.form.jacFunc(s.params)
+	if h := s.form.ham; h != nil && h.separable {
+		p.Split = h.split(s.params)
 	}
 	return p
+}
+
+// MapSystem is a map x -> f(x) from a system file, with its exact Jacobian.
+// It satisfies the lyap.Map interface. Not safe for concurrent use.
+type MapSystem struct {
+	n    int
+	next *expr.Float64
+	jac  *expr.Float64
+	buf  []float64
+	jbuf []float64
+}
+
+// Dim returns the dimension of the state.
+func (m *MapSystem) Dim() int { return m.n }
+
+// Next writes f(x) into dst. Both should have length Dim: Next reads the
+// first Dim components of x (missing ones keep the previous call's values)
+// and writes at most len(dst) components. It does not allocate.
+func (m *MapSystem) Next(x, dst []float64) {
+	copy(m.next.Vars()[1:1+m.n], x)
+	m.next.Run(m.buf)
+	copy(dst, m.buf)
+}
+
+// Jacobian writes df/dx at x into dst, which should be Dim×Dim (a matrix of
+// another size gets the overlapping block). It does not allocate.
+func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
+	copy(m.jac.Vars()[1:1+m.n], x)
+	m.jac.Run(m.jbuf)
+	r, c := dst.Dims()
+	for i := 0; i < min(m.n, r); i++ {
+		for j := 0; j < min(m.n, c); j++ {
+			dst.Set(i, j, m.jbuf[i*m.n+j])
+		}
+	}
+}
+
+// Map returns the map of a system of kind map at the current parameters, or
+// an error wrapping ErrKind for flows and Hamiltonians.
+func (s *System) Map() (*MapSystem, error) {
+	if s.kind != KindMap {
+		return nil, fmt.Errorf("plumb: %s is a %s, not a map: %w", s.Name, s.kind, ErrKind)
+	}
+	f := s.form
+	m := &MapSystem{n: f.n, next: f.fieldProg.NewFloat64(), jac: f.jacProg.NewFloat64(),
+		buf: make([]float64, f.n), jbuf: make([]float64, f.n*f.n)}
+	f.setParams(m.next.Vars(), s.params)
+	f.setParams(m.jac.Vars(), s.params)
+	return m, nil
+}
+
+// DoubleDouble is a double-double number Hi + Lo (about 32 significant
+// digits), the arithmetic of DoubleDoubleEvaluator. Its operations are
+// those of plumb's internal double-double package; see DDEvaluator.
+type DoubleDouble = dd.Float
+
+// BigEvaluator computes a system's right-hand side (the vector field of a
+// flow or Hamiltonian, the next state of a map) in math/big.Float arithmetic
+// at a fixed precision, for reference-precision runs. Not safe for
+// concurrent use.
+type BigEvaluator struct {
+	n  int
+	ev *expr.Big
+}
+
+// Evaluator returns the right-hand side at prec bits of precision (for
+// instance 256 for a reference run to compare with float64). The formulas'
+// numbers and the parameters are the float64 values the float64 field uses,
+// so both compute the same model and differ only in rounding. Each
+// operation rounds to prec bits; the elementary functions are accurate to a
+// few ulps (Brent & Zimmermann, Modern Computer Arithmetic, 2010, ch. 4).
+//
+// Built-in models use their catalog formulas. prec must be in [2,
+// big.MaxPrec].
+func (s *System) Evaluator(prec uint) (*BigEvaluator, error) {
+	if s.form == nil {
+		return nil, fmt.Errorf("plumb: model %s has no formulas for multiprecision evaluation: %w", s.Name, ErrKind)
+	}
+	ev, err := s.form.fieldProg.NewBig(prec)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: %w", err)
+	}
+	vars := ev.Vars()
+	for i, p := range s.params {
+		vars[1+s.form.n+i].SetFloat64(p)
+	}
+	return &BigEvaluator{n: s.form.n, ev: ev}, nil
+}
+
+// Prec returns the evaluator's precision in bits.
+func (e *BigEvaluator) Prec() uint { return e.ev.Prec() }
+
+// Eval writes the right-hand side at (t, y) into dydt (t is ignored for
+// maps). Nil entries of dydt are allocated at the evaluator's precision.
+// Wrong lengths are errors wrapping integrate.ErrDimension; a value that
+// is not a real number (0/0, log of a negative number) is an error
+// wrapping expr's ErrNaN.
+func (e *BigEvaluator) Eval(t *big.Float, y, dydt []*big.Float) error {
+	if len(y) != e.n || len(dydt) != e.n {
+		return fmt.Errorf("plumb: Eval with %d states and %d outputs, system has %d: %w", len(y), len(dydt), e.n, integrate.ErrDimension)
+	}
+	vars := e.ev.Vars()
+	if t != nil {
+		vars[0].Set(t)
+	}
+	for i, v := range y {
+		vars[1+i].Set(v)
+	}
+	if err := e.ev.Run(dydt); err != nil {
+		return fmt.Errorf("plumb: %w", err)
+	}
+	return nil
+}
+
+// DDEvaluator computes a system's right-hand side in double-double
+// arithmetic: about 32 significant digits at a few times the cost of
+// float64, for reference runs cheaper than big.Float. + - * / have relative
+// error below 2e-31 (Joldes, Muller & Popescu, ACM TOMS 44, 2017); the
+// elementary functions about 1e-31 (see internal/dd). Not safe for
+// concurrent use; Eval does not allocate.
+type DDEvaluator struct {
+	n  int
+	ev *expr.DD
+}
+
+// DoubleDoubleEvaluator returns the right-hand side in double-double
+// arithmetic at the current parameters (see Evaluator for the model's
+// numbers). Built-in models use their catalog formulas.
+func (s *System) DoubleDoubleEvaluator() (*DDEvaluator, error) {
+	if s.form == nil {
+		return nil, fmt.Errorf("plumb: model %s has no formulas for double-double evaluation: %w", s.Name, ErrKind)
+	}
+	ev := s.form.fieldProg.NewDD()
+	vars := ev.Vars()
+	for i, p := range s.params {
+		vars[1+s.form.n+i] = dd.From(p)
+	}
+	return &DDEvaluator{n: s.form.n, ev: ev}, nil
+}
+
+// Eval writes the right-hand side at (t, y) into dydt (t is ignored for
+// maps). Wrong lengths are errors wrapping integrate.ErrDimension.
+func (e *DDEvaluator) Eval(t DoubleDouble, y, dydt []DoubleDouble) error {
+	if len(y) != e.n || len(dydt) != e.n {
+		return fmt.Errorf("plumb: Eval with %d states and %d outputs, system has %d: %w", len(y), len(dydt), e.n, integrate.ErrDimension)
+	}
+	vars := e.ev.Vars()
+	vars[0] = t
+	copy(vars[1:], y)
+	return e.ev.Run(dydt)
+}
+
+// Formulas returns the right-hand sides as formulas (rates of a flow, next
+// values of a map; for a Hamiltonian, Hamilton's equations derived from H),
+// or nil when the system has none.
+func (s *System) Formulas() []string {
+	if s.form == nil {
+		return nil
+	}
+	out := make([]string, len(s.form.rates))
+	for i, e := range s.form.rates {
+		out[i] = s.form.g.Format(e)
+	}
+	return out
+}
+
+// TaylorStepper advances a flow by fixed steps of the Taylor method of a
+// chosen order, with Taylor coefficients from the recurrences of Taylor-mode
+// differentiation of the system's formulas (Jorba & Zou, Experimental
+// Mathematics 14, 2005). Not safe for concurrent use; Step does not
+// allocate.
+type TaylorStepper struct {
+	n  int
+	ty *expr.Taylor
+}
+
+// Taylor returns a Taylor stepper of the given order (1 to 1000) at the
+// current parameters, for flows and Hamiltonians (maps get an error
+// wrapping ErrKind). Built-in models use their catalog formulas.
+func (s *System) Taylor(order int) (*TaylorStepper, error) {
+	if s.form == nil || s.kind == KindMap {
+		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor method: %w", s.Name, ErrKind)
+	}
+	if order < 1 {
+		return nil, fmt.Errorf("plumb: Taylor order %d, want at least 1: %w", order, integrate.ErrSettings)
+	}
+	ty, err := s.form.fieldProg.NewTaylor(order)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: %w: %w", err, integrate.ErrSettings)
+	}
+	for i, p := range s.params {
+		ty.SetParam(1+s.form.n+i, p)
+	}
+	return &TaylorStepper{n: s.form.n, ty: ty}, nil
+}
+
+// Order returns the stepper's order.
+func (ts *TaylorStepper) Order() int { return ts.ty.Order() }
+
+// Step writes the Taylor polynomial's value at t+h, from y at t, into dst
+// (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
+func (ts *TaylorStepper) Step(t float64, y []float64, h float64, dst []float64) error {
+	if len(y) != ts.n || len(dst) != ts.n {
+		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
+	}
+	return ts.ty.Step(t, y, h, dst)
+}
+
+// Coefficients writes the Taylor coefficients of the solution through
+// (t, y): dst[i][k] is the coefficient of h^k of component i, k = 0..Order.
+func (ts *TaylorStepper) Coefficients(t float64, y []float64, dst [][]float64) error {
+	if len(y) != ts.n || len(dst) != ts.n {
+		return fmt.Errorf("plumb: Taylor coefficients with %d states and %d rows, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
+	}
+	for i := range dst {
+		if len(dst[i]) < ts.Order()+1 {
+			return fmt.Errorf("plumb: row %d has %d coefficients, want %d: %w", i, len(dst[i]), ts.Order()+1, integrate.ErrDimension)
+		}
+	}
+	return ts.ty.ODE(t, y, dst)
+}
+
+// TaylorDDStepper is TaylorStepper in double-double arithmetic (about 32
+// significant digits), for reference solutions. Not safe for concurrent
+// use; Step does not allocate.
+type TaylorDDStepper struct {
+	n  int
+	ty *expr.TaylorDD
+}
+
+// TaylorDD returns a double-double Taylor stepper of the given order (1 to
+// 1000) at the current parameters; see Taylor.
+func (s *System) TaylorDD(order int) (*TaylorDDStepper, error) {
+	if s.form == nil || s.kind == KindMap {
+		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor method: %w", s.Name, ErrKind)
+	}
+	if order < 1 {
+		return nil, fmt.Errorf("plumb: Taylor order %d, want at least 1: %w", order, integrate.ErrSettings)
+	}
+	ty, err := s.form.fieldProg.NewTaylorDD(order)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: %w: %w", err, integrate.ErrSettings)
+	}
+	for i, p := range s.params {
+		ty.SetParam(1+s.form.n+i, dd.From(p))
+	}
+	return &TaylorDDStepper{n: s.form.n, ty: ty}, nil
+}
+
+// Order returns the stepper's order.
+func (ts *TaylorDDStepper) Order() int { return ts.ty.Order() }
+
+// Step writes the Taylor polynomial's value at t+h, from y at t, into dst
+// (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
+func (ts *TaylorDDStepper) Step(t DoubleDouble, y []DoubleDouble, h DoubleDouble, dst []DoubleDouble) error {
+	if len(y) != ts.n || len(dst) != ts.n {
+		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
+	}
+	return ts.ty.Step(t, y, h, dst)
+}
+
+// formulaSystem is a system given by formulas over the slots
+// (t, y_1..y_n, p_1..p_k).
+type formulaSystem struct {
+	kind      Kind
+	g         *expr.Graph
+	n         int
+	rates     []expr.Expr
+	jac       []expr.Expr // row-major n×n
+	fieldProg *expr.Program
+	jacProg   *expr.Program
+	ham       *hamiltonian
+	timeUnit  string
+}
+
+// finish derives the Jacobian and compiles the programs.
+func (f *formulaSystem) finish() {
+	f.jac = make([]expr.Expr, 0, f.n*f.n)
+	for _, r := range f.rates {
+		for j := 0; j < f.n; j++ {
+			f.jac = append(f.jac, f.g.Diff(r, 1+j))
+		}
+	}
+	f.fieldProg = f.g.Compile(f.rates)
+	f.jacProg = f.g.Compile(f.jac)
+	if f.ham != nil {
+		f.ham.compile(f.g)
+	}
+}
+
+// setParams writes the parameter values into an evaluator's slots.
+func (f *formulaSystem) setParams(vars, params []float64) {
+	copy(vars[1+f.n:], params)
+}
+
+// fieldFunc returns the vector field at the parameters (copied now).
+func (f *formulaSystem) fieldFunc(params []float64) integrate.Func {
+	ev := f.fieldProg.NewFloat64()
+	f.setParams(ev.Vars(), params)
+	return ev.FieldFunc()
+}
+
+// jacFunc returns the symbolic Jacobian at the parameters (copied now).
+func (f *formulaSystem) jacFunc(params []float64) func(float64, []float64, *mat.Dense) {
+	ev := f.jacProg.NewFloat64()
+	vars := ev.Vars()
+	f.setParams(vars, params)
+	state := vars[1 : 1+f.n]
+	buf := make([]float64, f.n*f.n)
+	n := f.n
+	return func(t float64, y []float64, dst *mat.Dense) {
+		vars[0] = t
+		copy(state, y)
+		ev.Run(buf)
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				dst.Set(i, j, buf[i*n+j])
+			}
+		}
+	}
+}
+
+// hamiltonian holds H and its derived parts; the state is (q, p), each of
+// length m = n/2.
+type hamiltonian struct {
+	h         expr.Expr
+	dHdq      []expr.Expr
+	dHdp      []expr.Expr
+	separable bool
+	hProg     *expr.Program
+	dtProg    *expr.Program // dH/dp
+	dvProg    *expr.Program // dH/dq
+	m         int
+}
+
+// setHamiltonian derives Hamilton's equations q' = ∂H/∂p, p' = -∂H/∂q from H
+// and decides separability: H = T(p) + V(q) exactly when no ∂H/∂p depends
+// on q or t and no ∂H/∂q depends on p or t (a structural test on the
+// derivative graphs, so it never claims separability falsely).
+func (f *formulaSystem) setHamiltonian(h expr.Expr) {
+	m := f.n / 2
+	hm := &hamiltonian{h: h, m: m}
+	for i := 0; i < m; i++ {
+		hm.dHdq = append(hm.dHdq, f.g.Diff(h, 1+i))
+		hm.dHdp = append(hm.dHdp, f.g.Diff(h, 1+m+i))
+	}
+	f.rates = nil
+	f.rates = append(f.rates, hm.dHdp...)
+	for _, d := range hm.dHdq {
+		f.rates = append(f.rates, f.g.Neg(d))
+	}
+	hm.separable = true
+	for i := 0; i < m; i++ {
+		up, uq := f.g.Uses(hm.dHdp[i]), f.g.Uses(hm.dHdq[i])
+		if up[0] || uq[0] {
+			hm.separable = false
+		}
+		for j := 0; j < m; j++ {
+			if up[1+j] || uq[1+m+j] {
+				hm.separable = false
+			}
+		}
+	}
+	f.ham = hm
+}
+
+func (h *hamiltonian) compile(g *expr.Graph) {
+	h.hProg = g.Compile([]expr.Expr{h.h})
+	h.dtProg = g.Compile(h.dHdp)
+	h.dvProg = g.Compile(h.dHdq)
+}
+
+// split returns the separable parts at the parameters (copied now).
+func (h *hamiltonian) split(params []float64) *integrate.Separable {
+	m := h.m
+	mk := func(p *expr.Program) (*expr.Float64, []float64) {
+		ev := p.NewFloat64()
+		copy(ev.Vars()[1+2*m:], params)
+		return ev, ev.Vars()
+	}
+	dt, dtv := mk(h.dtProg)
+	dv, dvv := mk(h.dvProg)
+	he, hv := mk(h.hProg)
+	hout := make([]float64, 1)
+	return &integrate.Separable{
+		DT: func(p, dst []float64) {
+			copy(dtv[1+m:1+2*m], p)
+			dt.Run(dst)
+		},
+		DV: func(q, dst []float64) {
+			copy(dvv[1:1+m], q)
+			dv.Run(dst)
+		},
+		H: func(q, p []float64) float64 {
+			copy(hv[1:1+m], q)
+			copy(hv[1+m:1+2*m], p)
+			he.Run(hout)
+			return hout[0]
+		},
+	}
 }
