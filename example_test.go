@@ -32,7 +32,7 @@ func ExampleLoadSystem() {
 		return
 	}
 	fmt.Println(s.Name, s.Kind(), s.States)
-	sol, err := integrate.Solve(context(), s.Problem(), 1, nil, &integrate.Settings{RelTol: 1e-10, AbsTol: 1e-10})
+	sol, err := integrate.Solve(ctx.Background(), s.Problem(), 1, nil, &integrate.Settings{RelTol: 1e-10, AbsTol: 1e-10})
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -78,5 +78,3 @@ func ExampleSystem_Formulas() {
 	// dswing/dt = g*L*(-sin(angle))
 	// separable: true
 }
-
-func context() ctx.Context { return ctx.Background() }
