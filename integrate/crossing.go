@@ -196,8 +196,8 @@ func brent(g func(float64) float64, a, b, fa, fb, ta, h float64) float64 {
 			a, b, c = b, c, b
 			fa, fb, fc = fb, fc, fb
 		}
-		tol1 := float64(2*eps*math.Abs(b)) + 0.5*tol
-		xm := 0.5 * (c - b)
+		tol1 := float64(2*eps*math.Abs(b)) + float64(0.5*tol)
+		xm := float64(0.5 * (c - b))
 		if math.Abs(xm) <= tol1 || fb == 0 {
 			return b
 		}
@@ -205,19 +205,19 @@ func brent(g func(float64) float64, a, b, fa, fb, ta, h float64) float64 {
 			s := fb / fa
 			var p, q float64
 			if a == c {
-				p = 2 * xm * s
+				p = float64(float64(2*xm) * s)
 				q = 1 - s
 			} else {
 				q0 := fa / fc
 				r := fb / fc
-				p = s * (2*xm*q0*(q0-r) - (b-a)*(r-1))
-				q = (q0 - 1) * (r - 1) * (s - 1)
+				p = float64(s * (float64(float64(float64(2*xm)*q0)*(q0-r)) - float64((b-a)*(r-1))))
+				q = float64(float64((q0-1)*(r-1)) * (s - 1))
 			}
 			if p > 0 {
 				q = -q
 			}
 			p = math.Abs(p)
-			if 2*p < math.Min(3*xm*q-math.Abs(tol1*q), math.Abs(e*q)) {
+			if float64(2*p) < math.Min(float64(float64(3*xm)*q)-math.Abs(float64(tol1*q)), math.Abs(float64(e*q))) {
 				e = d
 				d = p / q
 			} else {

@@ -127,7 +127,11 @@ func (w *dp54Work) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (f
 	var sum float64
 	for i := range y1 {
 		e := float64(h * (float64(dpE1*k1[i]) + float64(dpE3*k3[i]) + float64(dpE4*k4[i]) + float64(dpE5*k5[i]) + float64(dpE6*k6[i]) + float64(dpE7*k7[i])))
-		sk := atol[i] + float64(rtol[i]*math.Max(math.Abs(y[i]), math.Abs(y1[i])))
+		ay, ay1 := math.Abs(y[i]), math.Abs(y1[i])
+		if ay1 > ay {
+			ay = ay1 // max without math.Max, which is a call on amd64
+		}
+		sk := atol[i] + float64(rtol[i]*ay)
 		r := e / sk
 		sum += float64(r * r)
 	}

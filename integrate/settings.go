@@ -247,7 +247,7 @@ func resolve(s *Settings, n int, t0, t1 float64, m Method) (*config, error) {
 		if u.Beta != 0 {
 			d.Beta = u.Beta
 			if u.Alpha == 0 {
-				d.Alpha = 1/float64(m.errOrder()+1) - 0.75*d.Beta
+				d.Alpha = 1/float64(m.errOrder()+1) - float64(0.75*d.Beta)
 			}
 		}
 		if u.Alpha != 0 {

@@ -148,5 +148,5 @@ func (g *gridIter) at(i int) float64 {
 	if i == g.n-1 {
 		return g.t1
 	}
-	return g.t0 + float64(i)*g.dt
+	return g.t0 + float64(float64(i)*g.dt)
 }
