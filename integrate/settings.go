@@ -30,9 +30,11 @@ type Settings struct {
 	// InitialStep is the first step size tried (its sign is ignored). Zero
 	// means an automatic choice (Hairer, Nørsett & Wanner 1993, Sect. II.4).
 	InitialStep float64
-	// MinStep is the smallest step size allowed (absolute value). Zero means
-	// only the rounding limit 16·eps·|t| applies. A step that must shrink
-	// below it ends the solve with ErrStepUnderflow.
+	// MinStep is the smallest step size allowed (absolute value); only the
+	// last step, which lands on t1, may be shorter. A step of MinStep that
+	// fails the error test ends the solve with ErrStepUnderflow. Zero means
+	// only the rounding limit applies: a step with 0.1·|h| <= 2.3e-16·|t|
+	// (Hairer's test in DOPRI5) ends the solve with ErrStepUnderflow.
 	MinStep float64
 	// MaxStep bounds the step size (absolute value). Zero means |t1 - t0|.
 	MaxStep float64

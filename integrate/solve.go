@@ -68,7 +68,12 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 		st.sc.interp(st.coef, theta, dst)
 	}
 	for st.Next(ctx) {
-		ta, h, tb := st.tPrev, st.hLast, st.t
+		// The step as stored: theta = (t - ta)/(tb - ta) here, in
+		// Stepper.Dense and in Solution.At, so samples, crossings and At
+		// agree bit for bit. (tb - ta is exact, and differs from the h the
+		// method used only by the rounding of ta + h.)
+		ta, tb := st.tPrev, st.t
+		h := tb - ta
 		end := tb
 		stop := false
 		if cf != nil {
