@@ -32,7 +32,7 @@ func (dopri54) controller() Controller {
 }
 
 func (dopri54) newScheme(p *Problem, n int) (scheme, error) {
-	w := &dp54Work{f: p.F}
+	w := &dp54Work{f: p.F, invN: 1 / float64(n)}
 	buf := make([]float64, 7*n)
 	w.k2, w.k3, w.k4, w.k5, w.k6, w.ys, w.ysti = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n],
 		buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n], buf[6*n:7*n:7*n]
@@ -88,17 +88,26 @@ type dp54Work struct {
 	f                      Func
 	k2, k3, k4, k5, k6, ys []float64
 	ysti                   []float64 // the argument of stage 6, for the stiffness test
+	invN                   float64   // 1/n, for the mean of squares
 }
 
 func (*dp54Work) fsal() bool     { return true }
 func (*dp54Work) denseSize() int { return 5 }
 
-// attempt is the hot loop. Products are wrapped in float64() so that no
-// architecture fuses them into FMAs (results must be bit-identical).
 func (w *dp54Work) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
+	e2, ev := w.attemptSq(t, h, y, k1, y1, k7, rtol, atol)
+	return math.Sqrt(e2), ev
+}
+
+// attemptSq is the hot loop: one trial step and its squared error norm.
+// Products are wrapped in float64() so that no architecture fuses them into
+// FMAs, and sums of three or more terms are added pairwise (a shorter
+// dependency chain between the stages); both are fixed orders, so results
+// are bit-identical everywhere.
+func (w *dp54Work) attemptSq(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
 	n := len(y)
 	k2, k3, k4, k5, k6, ys, ysti := w.k2[:n], w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n], w.ys[:n], w.ysti[:n]
-	k1, y1, k7 = k1[:n], y1[:n], k7[:n]
+	k1, y1, k7, rtol, atol = k1[:n], y1[:n], k7[:n], rtol[:n], atol[:n]
 	for i := range ys {
 		ys[i] = y[i] + float64(h*float64(dpA21*k1[i]))
 	}
@@ -108,25 +117,25 @@ func (w *dp54Work) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (f
 	}
 	w.f(t+float64(dpC3*h), ys, k3)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(dpA41*k1[i])+float64(dpA42*k2[i])+float64(dpA43*k3[i])))
+		ys[i] = y[i] + float64(h*((float64(dpA41*k1[i])+float64(dpA42*k2[i]))+float64(dpA43*k3[i])))
 	}
 	w.f(t+float64(dpC4*h), ys, k4)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(dpA51*k1[i])+float64(dpA52*k2[i])+float64(dpA53*k3[i])+float64(dpA54*k4[i])))
+		ys[i] = y[i] + float64(h*((float64(dpA51*k1[i])+float64(dpA52*k2[i]))+(float64(dpA53*k3[i])+float64(dpA54*k4[i]))))
 	}
 	w.f(t+float64(dpC5*h), ys, k5)
 	for i := range ysti {
-		ysti[i] = y[i] + float64(h*(float64(dpA61*k1[i])+float64(dpA62*k2[i])+float64(dpA63*k3[i])+float64(dpA64*k4[i])+float64(dpA65*k5[i])))
+		ysti[i] = y[i] + float64(h*(((float64(dpA61*k1[i])+float64(dpA62*k2[i]))+(float64(dpA63*k3[i])+float64(dpA64*k4[i])))+float64(dpA65*k5[i])))
 	}
 	th := t + h
 	w.f(th, ysti, k6)
 	for i := range y1 {
-		y1[i] = y[i] + float64(h*(float64(dpA71*k1[i])+float64(dpA73*k3[i])+float64(dpA74*k4[i])+float64(dpA75*k5[i])+float64(dpA76*k6[i])))
+		y1[i] = y[i] + float64(h*(((float64(dpA71*k1[i])+float64(dpA73*k3[i]))+(float64(dpA74*k4[i])+float64(dpA75*k5[i])))+float64(dpA76*k6[i])))
 	}
 	w.f(th, y1, k7)
-	var sum float64
+	var sum, bad float64
 	for i := range y1 {
-		e := float64(h * (float64(dpE1*k1[i]) + float64(dpE3*k3[i]) + float64(dpE4*k4[i]) + float64(dpE5*k5[i]) + float64(dpE6*k6[i]) + float64(dpE7*k7[i])))
+		e := float64(h * (((float64(dpE1*k1[i]) + float64(dpE3*k3[i])) + (float64(dpE4*k4[i]) + float64(dpE5*k5[i]))) + (float64(dpE6*k6[i]) + float64(dpE7*k7[i]))))
 		ay, ay1 := math.Abs(y[i]), math.Abs(y1[i])
 		if ay1 > ay {
 			ay = ay1 // max without math.Max, which is a call on amd64
@@ -134,8 +143,10 @@ func (w *dp54Work) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (f
 		sk := atol[i] + float64(rtol[i]*ay)
 		r := e / sk
 		sum += float64(r * r)
+		// x - x is 0 for finite x and NaN for NaN and ±Inf.
+		bad += (y1[i] - y1[i]) + (k7[i] - k7[i])
 	}
-	return math.Sqrt(sum / float64(n)), 6
+	return float64(sum*w.invN) + bad, 6
 }
 
 func (w *dp54Work) stiffness(h float64, y1, k7 []float64) (float64, float64, bool) {

@@ -36,11 +36,13 @@ type Stepper struct {
 	fPrev      []float64
 	coef       []float64 // dense output of the last accepted step
 	denseReady bool
-	wantDense  bool
 	logErrOld  float64
-	rejected   bool    // the last attempt was rejected
-	hTried     float64 // the step size of the last attempt
-	stepIndex  int     // accepted steps, for fixed-step grids
+	rejected   bool        // the last attempt was rejected
+	hTried     float64     // the step size of the last attempt
+	fixed      bool        // m.fixedStep() > 0, cached off the per-step path
+	fsal       bool        // sc.fsal(), cached
+	sq         sqAttempter // sc, when it offers the squared norm
+	stepIndex  int         // accepted steps, for fixed-step grids
 	stiffCount int
 	nonStiff   int
 	sinceTest  int
@@ -85,7 +87,9 @@ func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) 
 	if err != nil {
 		return nil, err
 	}
-	st := &Stepper{p: p, m: m, sc: sc, cfg: cfg, n: n, t0: p.T0, t1: t1, dir: math.Copysign(1, t1-p.T0)}
+	st := &Stepper{p: p, m: m, sc: sc, cfg: cfg, n: n, t0: p.T0, t1: t1, dir: math.Copysign(1, t1-p.T0),
+		fixed: m.fixedStep() > 0, fsal: sc.fsal()}
+	st.sq, _ = sc.(sqAttempter)
 	buf := make([]float64, 6*n+sc.denseSize()*n)
 	st.y, st.f0, st.y1, st.f1, st.yPrev, st.fPrev = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n], buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n]
 	st.coef = buf[6*n:]
@@ -97,7 +101,7 @@ func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) 
 	if i := firstNonFinite(st.f0); i >= 0 {
 		return nil, fmt.Errorf("integrate: %w", &FieldError{T: st.t, Index: i, Value: st.f0[i], What: "derivative"})
 	}
-	st.logErrOld = log2Ctl(1e-4) // Hairer's FACOLD starts at 1e-4
+	st.logErrOld = log2ErrOldMin // Hairer's FACOLD starts at 1e-4
 	if hf := m.fixedStep(); hf > 0 {
 		if hf > math.Abs(t1-p.T0) {
 			hf = math.Abs(t1 - p.T0)
@@ -221,7 +225,7 @@ func (st *Stepper) Next(ctx context.Context) bool {
 			return false
 		}
 	}
-	if st.m.fixedStep() > 0 {
+	if st.fixed {
 		return st.nextFixed()
 	}
 	return st.nextAdaptive()
@@ -288,12 +292,35 @@ func (st *Stepper) nextAdaptive() bool {
 			return st.underflow(h)
 		}
 		st.hTried = h
-		err, ev := st.sc.attempt(st.t, h, st.y, st.f0, st.y1, st.f1, c.rtol, c.atol)
-		st.stats.Evaluations += ev
-		finite := !math.IsNaN(err) && !math.IsInf(err, 0)
-		if finite && err <= 1 && st.sc.fsal() {
-			if firstNonFinite(st.y1) >= 0 || firstNonFinite(st.f1) >= 0 {
+		// The error test works on log2(err): from the squared norm when the
+		// scheme offers it (no square root on the path from one step to the
+		// next), else from err.
+		var accepted, finite bool
+		var logErr float64
+		if st.sq != nil {
+			e2, ev := st.sq.attemptSq(st.t, h, st.y, st.f0, st.y1, st.f1, c.rtol, c.atol)
+			st.stats.Evaluations += ev
+			finite = e2 <= math.MaxFloat64 // false for NaN and +Inf
+			accepted = e2 <= 1
+			if finite {
+				if e2 < 1e-20 {
+					e2 = 1e-20 // err = 0 (an exact step) would give log2 = -Inf
+				}
+				logErr = 0.5 * log2Ctl(e2)
+			}
+		} else {
+			err, ev := st.sc.attempt(st.t, h, st.y, st.f0, st.y1, st.f1, c.rtol, c.atol)
+			st.stats.Evaluations += ev
+			finite = err <= math.MaxFloat64
+			accepted = err <= 1
+			if finite && accepted && st.fsal && (firstNonFinite(st.y1) >= 0 || firstNonFinite(st.f1) >= 0) {
 				finite = false
+			}
+			if finite {
+				if err < 1e-10 {
+					err = 1e-10
+				}
+				logErr = log2Ctl(err)
 			}
 		}
 		if !finite {
@@ -303,9 +330,9 @@ func (st *Stepper) nextAdaptive() bool {
 			st.h = 0.25 * h
 			continue
 		}
-		if err > 1 {
+		if !accepted {
 			// Rejected: shrink by Safety·err^(-Alpha), at least MinFactor.
-			fac := float64(c.safety * exp2Ctl(-float64(c.alpha*log2Ctl(err))))
+			fac := float64(c.safety * exp2Ctl(-float64(c.alpha*logErr)))
 			if fac < c.facMin {
 				fac = c.facMin
 			}
@@ -315,7 +342,7 @@ func (st *Stepper) nextAdaptive() bool {
 			st.h = h * fac
 			continue
 		}
-		if !st.sc.fsal() {
+		if !st.fsal {
 			st.p.F(st.t+h, st.y1, st.f1)
 			st.stats.Evaluations++
 			if firstNonFinite(st.y1) >= 0 || firstNonFinite(st.f1) >= 0 {
@@ -328,11 +355,6 @@ func (st *Stepper) nextAdaptive() bool {
 		}
 		// Accepted: PI control, h_new = h·Safety·err^(-Alpha)·errold^(Beta),
 		// evaluated as Safety·2^(-Alpha·log2(err) + Beta·log2(errold)).
-		e := err
-		if e < 1e-10 {
-			e = 1e-10 // err = 0 (an exact step) would give log2 = -Inf
-		}
-		logErr := log2Ctl(e)
 		fac := float64(c.safety * exp2Ctl(-float64(c.alpha*logErr)+float64(c.beta*st.logErrOld)))
 		if fac > c.facMax {
 			fac = c.facMax
@@ -343,8 +365,8 @@ func (st *Stepper) nextAdaptive() bool {
 		if st.rejected && fac > 1 {
 			fac = 1
 		}
-		if e < 1e-4 {
-			logErr = log2Ctl(1e-4)
+		if logErr < log2ErrOldMin {
+			logErr = log2ErrOldMin
 		}
 		st.logErrOld = logErr // log2(max(err, 1e-4)), as Hairer's FACOLD
 		st.stiffTest(h)
@@ -440,6 +462,18 @@ func (st *Stepper) nextFixed() bool {
 		st.done = true
 	}
 	return true
+}
+
+// log2ErrOldMin is log2(1e-4): Hairer's FACOLD starts at 1e-4 and never
+// falls below it.
+var log2ErrOldMin = log2Ctl(1e-4)
+
+// sqAttempter is implemented by schemes whose trial step can return the
+// squared error norm err² (NaN when y1 or f1 holds a NaN or Inf): the
+// stepper then needs no square root and no scan for non-finite values per
+// step. attempt must return the square root of the same value.
+type sqAttempter interface {
+	attemptSq(t, h float64, y, f0, y1, f1, rtol, atol []float64) (errSq float64, evals int)
 }
 
 // epsRound is the unit roundoff used in the step-size underflow test.
