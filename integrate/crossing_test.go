@@ -262,3 +262,31 @@ func TestCrossingLargeTime(t *testing.T) {
 		t.Errorf("Brent used %d evaluations of G, want <= 30", extra)
 	}
 }
+
+// TestCrossingSeveralFunctions: hits of several functions come in time
+// order with the index of their function. For x = cos t, v = -sin t the
+// zeros of x are pi/2 + k·pi and those of v are k·pi (exact identities).
+func TestCrossingSeveralFunctions(t *testing.T) {
+	p := Problem{F: harmonic, Y0: []float64{1, 0}}
+	cs := []Crossing{
+		{Name: "x", G: func(_ float64, y []float64) float64 { return y[0] }},
+		{Name: "v", G: func(_ float64, y []float64) float64 { return y[1] }},
+	}
+	sol, err := Solve(context.Background(), p, 7, nil, &Settings{RelTol: tightTol, AbsTol: tightTol, Crossings: cs})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// In (0, 7]: x at pi/2, 3pi/2, 5pi/2 (7.85 > 7: no); v at pi, 2pi.
+	want := []struct {
+		which int
+		t     float64
+	}{{0, math.Pi / 2}, {1, math.Pi}, {0, 3 * math.Pi / 2}, {1, 2 * math.Pi}}
+	if len(sol.Hits) != len(want) {
+		t.Fatalf("%d hits, want %d: %+v", len(sol.Hits), len(want), sol.Hits)
+	}
+	for i, w := range want {
+		if h := sol.Hits[i]; h.Which != w.which || math.Abs(h.T-w.t) > zeroTol {
+			t.Errorf("hit %d: function %d at %.17g, want function %d at %.17g", i, h.Which, h.T, w.which, w.t)
+		}
+	}
+}

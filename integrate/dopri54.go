@@ -33,9 +33,10 @@ func (dopri54) controller() Controller {
 
 func (dopri54) newScheme(p *Problem, n int) (scheme, error) {
 	w := &dp54Work{f: p.F, invN: 1 / float64(n)}
-	buf := make([]float64, 7*n)
+	buf := make([]float64, 8*n)
 	w.k2, w.k3, w.k4, w.k5, w.k6, w.ys, w.ysti = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n],
 		buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n], buf[6*n:7*n:7*n]
+	w.wt = buf[7*n : 8*n : 8*n]
 	return w, nil
 }
 
@@ -89,6 +90,7 @@ type dp54Work struct {
 	k2, k3, k4, k5, k6, ys []float64
 	ysti                   []float64 // the argument of stage 6, for the stiffness test
 	invN                   float64   // 1/n, for the mean of squares
+	wt                     []float64 // h/sk_i of the current attempt
 }
 
 func (*dp54Work) fsal() bool     { return true }
@@ -129,19 +131,24 @@ func (w *dp54Work) attemptSq(t, h float64, y, k1, y1, k7, rtol, atol []float64) 
 	}
 	th := t + h
 	w.f(th, ysti, k6)
+	// y1, and everything of the error estimate that does not need k7:
+	// pre = Σ_{j<7} e_j·k_j and wt = h/sk (the division), both computed before
+	// F(t+h, y1) so that they overlap with it instead of following it.
+	pre, wt := ys, w.wt[:n]
 	for i := range y1 {
-		y1[i] = y[i] + float64(h*(((float64(dpA71*k1[i])+float64(dpA73*k3[i]))+(float64(dpA74*k4[i])+float64(dpA75*k5[i])))+float64(dpA76*k6[i])))
+		yn := y[i] + float64(h*(((float64(dpA71*k1[i])+float64(dpA73*k3[i]))+(float64(dpA74*k4[i])+float64(dpA75*k5[i])))+float64(dpA76*k6[i])))
+		y1[i] = yn
+		pre[i] = ((float64(dpE1*k1[i]) + float64(dpE3*k3[i])) + (float64(dpE4*k4[i]) + float64(dpE5*k5[i]))) + float64(dpE6*k6[i])
+		ay, ay1 := math.Abs(y[i]), math.Abs(yn)
+		if ay1 > ay {
+			ay = ay1 // max without math.Max, which is a call on amd64
+		}
+		wt[i] = h / (atol[i] + float64(rtol[i]*ay))
 	}
 	w.f(th, y1, k7)
 	var sum, bad float64
 	for i := range y1 {
-		e := float64(h * (((float64(dpE1*k1[i]) + float64(dpE3*k3[i])) + (float64(dpE4*k4[i]) + float64(dpE5*k5[i]))) + (float64(dpE6*k6[i]) + float64(dpE7*k7[i]))))
-		ay, ay1 := math.Abs(y[i]), math.Abs(y1[i])
-		if ay1 > ay {
-			ay = ay1 // max without math.Max, which is a call on amd64
-		}
-		sk := atol[i] + float64(rtol[i]*ay)
-		r := e / sk
+		r := float64((pre[i] + float64(dpE7*k7[i])) * wt[i]) // e_i/sk_i
 		sum += float64(r * r)
 		// x - x is 0 for finite x and NaN for NaN and ±Inf.
 		bad += (y1[i] - y1[i]) + (k7[i] - k7[i])

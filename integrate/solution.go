@@ -52,7 +52,9 @@ type Solution struct {
 
 	// T holds the times of the initial point and of every accepted step;
 	// Y their states, row after row (Y[i*Dim:(i+1)*Dim] is the state at
-	// T[i]). Both are empty with Settings.DropSteps.
+	// T[i]). Both are empty with Settings.DropSteps. After a stopping
+	// crossing the last stored step is the whole step that contains it, so
+	// T's last entry may lie beyond End; At answers only up to End.
 	T []float64
 	Y []float64
 

@@ -3,6 +3,7 @@ package integrate
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -338,5 +339,22 @@ func TestPerComponentTolerances(t *testing.T) {
 	}
 	if errB(mixed) > 10*errB(tight)+1e-15 {
 		t.Errorf("error in the tight component %.2g, tight run %.2g", errB(mixed), errB(tight))
+	}
+}
+
+// refusing is a Method that declines every problem, to check that a
+// method's refusal reaches the caller before any step.
+type refusing struct{ dopri54 }
+
+func (refusing) newScheme(*Problem, int) (scheme, error) {
+	return nil, fmt.Errorf("integrate: refusing needs a Jacobian: %w", ErrMethod)
+}
+
+func TestMethodRefusal(t *testing.T) {
+	calls := 0
+	p := Problem{F: func(_ float64, _, d []float64) { calls++; d[0] = 1 }, Y0: []float64{0}}
+	sol, err := Solve(context.Background(), p, 1, refusing{}, nil)
+	if !errors.Is(err, ErrMethod) || sol != nil || calls != 0 {
+		t.Fatalf("err = %v, solution %v, %d calls: want ErrMethod before any evaluation", err, sol, calls)
 	}
 }
