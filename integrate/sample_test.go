@@ -279,3 +279,55 @@ func TestControllerExponents(t *testing.T) {
 		t.Errorf("exp2Ctl out of range")
 	}
 }
+
+// TestPowTable checks the controller's table power x^(-a) against
+// math.Pow (standard library: reference) on the whole table range, for the
+// default exponents of DormandPrince54 (a = Alpha/2 = 0.085 and
+// a = -Beta/2 = -0.02) and for others a user may set.
+func TestPowTable(t *testing.T) {
+	cases := []struct{ a float64 }{{0.085}, {-0.02}, {0}, {0.0625}, {0.25}, {0.5}, {1}, {-0.5}}
+	for _, c := range cases {
+		tb := newPowTable(c.a)
+		var worst float64
+		check := func(x float64) {
+			got, want := tb.pow(x), math.Pow(x, -c.a)
+			if d := math.Abs(got-want) / want; d > worst {
+				worst = d
+			}
+		}
+		for i := 0; i <= 100000; i++ {
+			check(math.Exp2(ptKMin + float64(ptKMax+1-ptKMin)*float64(i)/100001))
+		}
+		for k := ptKMin; k <= ptKMax; k++ {
+			for j := 0; j <= ptJ; j++ {
+				x := math.Ldexp(1+float64(j)/ptJ, k)
+				if k == ptKMax && j == ptJ {
+					x = math.Nextafter(x, 0)
+				}
+				check(x)
+				if k > ptKMin || j > 0 {
+					check(math.Nextafter(x, 0))
+				}
+			}
+		}
+		// Truncation bound |a(a+1)(a+2)/6|·|r|³ with |r| <= 1/65 (see
+		// powTable), 5% for the rounding of the table entries, plus ulps.
+		relTol := 1.05*math.Abs(c.a*(c.a+1)*(c.a+2)/6)/(65*65*65) + 1e-15
+		t.Logf("a = %g: worst relative error %.3g (bound %.3g)", c.a, worst, relTol)
+		if worst > relTol {
+			t.Errorf("a = %g: worst relative error %.3g, want <= %.3g", c.a, worst, relTol)
+		}
+	}
+	// The set-up helpers are accurate to a few ulps (standard library as
+	// reference).
+	for i := 0; i <= 1000; i++ {
+		m := 1 + float64(i)/1000
+		if d := math.Abs(log2Prec(m) - math.Log2(m)); d > 4e-16 {
+			t.Errorf("log2Prec(%v) off by %.2g", m, d)
+		}
+		x := -1000 + 2*float64(i)
+		if d := math.Abs(exp2Prec(x)-math.Exp2(x)) / math.Exp2(x); d > 1e-15 {
+			t.Errorf("exp2Prec(%v) off by %.2g relative", x, d)
+		}
+	}
+}
