@@ -2,7 +2,9 @@ package integrate
 
 import (
 	"context"
+	"errors"
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -288,5 +290,32 @@ func TestCrossingSeveralFunctions(t *testing.T) {
 		if h := sol.Hits[i]; h.Which != w.which || math.Abs(h.T-w.t) > zeroTol {
 			t.Errorf("hit %d: function %d at %.17g, want function %d at %.17g", i, h.Which, h.T, w.which, w.t)
 		}
+	}
+}
+
+// TestCrossingNaN: a crossing function that returns NaN has no sign to
+// compare; the solve must end with ErrNonFinite naming the crossing, not
+// report a crossing there. At t0 it fails before any step.
+func TestCrossingNaN(t *testing.T) {
+	p := Problem{F: harmonic, Y0: []float64{1, 0}}
+	late := Crossing{G: func(t float64, y []float64) float64 {
+		if t > 2 {
+			return math.NaN()
+		}
+		return y[0]
+	}}
+	sol, err := Solve(context.Background(), p, 5, nil, &Settings{Crossings: []Crossing{late}})
+	if !errors.Is(err, ErrNonFinite) || !strings.Contains(err.Error(), "Crossings[0].G") {
+		t.Fatalf("err = %v, want ErrNonFinite naming Crossings[0].G", err)
+	}
+	if sol == nil || sol.Status != Failed || sol.End > 2 || len(sol.Hits) != 1 {
+		t.Fatalf("partial solution %+v, want failed before t = 2 with the zero at pi/2", sol)
+	}
+	if sol.T[len(sol.T)-1] != sol.End || sol.Final[0] != sol.Y[len(sol.Y)-2] {
+		t.Errorf("End %v / Final %v do not match the last stored step %v", sol.End, sol.Final, sol.T[len(sol.T)-1])
+	}
+	first := Crossing{G: func(float64, []float64) float64 { return math.NaN() }}
+	if sol, err := Solve(context.Background(), p, 5, nil, &Settings{Crossings: []Crossing{first}}); !errors.Is(err, ErrNonFinite) || sol != nil {
+		t.Errorf("NaN at t0: err = %v, solution %v; want ErrNonFinite and no solution", err, sol)
 	}
 }

@@ -62,6 +62,9 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 	var cf *crossFinder
 	if len(c.crossings) > 0 {
 		cf = newCrossFinder(c.crossings, p.T0, p.Y0)
+		if cf.err != nil {
+			return nil, cf.err
+		}
 	}
 	eval := func(theta float64, dst []float64) {
 		st.prepareDense()
@@ -78,6 +81,15 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 		stop := false
 		if cf != nil {
 			hits, stopHit := cf.scan(ta, h, st.y, eval)
+			if cf.err != nil {
+				// The solution ends at the start of this step, the last
+				// point whose crossings are all known.
+				sol.Stats = st.stats
+				sol.End = ta
+				sol.Final = append([]float64(nil), st.yPrev...)
+				sol.Status = Failed
+				return sol, cf.err
+			}
 			sol.Hits = append(sol.Hits, hits...)
 			if stopHit {
 				stop = true
