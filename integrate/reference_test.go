@@ -201,6 +201,7 @@ func TestArenstorfReturn(t *testing.T) {
 	const lo, hi = 1.5e3, 4e5
 	tols := []float64{1e-7, 1e-8, 1e-9, 1e-10, 1e-11, 1e-12}
 	errs := make([]float64, len(tols))
+	prevRet := math.Inf(1)
 	for i, tol := range tols {
 		sol, err := Solve(context.Background(), p, T, DormandPrince54, &Settings{RelTol: tol, AbsTol: tol, DropSteps: true})
 		if err != nil {
@@ -222,6 +223,10 @@ func TestArenstorfReturn(t *testing.T) {
 		if i > 0 && errs[i] >= errs[i-1] {
 			t.Errorf("tol %g: err %.3g did not fall below %.3g", tol, errs[i], errs[i-1])
 		}
+		if ret >= prevRet {
+			t.Errorf("tol %g: |y(T)-y0| = %.3g did not fall below %.3g", tol, ret, prevRet)
+		}
+		prevRet = ret
 	}
 	if s := fitSlope(tols, errs); s < 0.8 || s > 1.2 {
 		t.Errorf("slope of log err vs log tol = %.3f, want in [0.8, 1.2] (tolerance proportionality)", s)

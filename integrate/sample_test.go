@@ -168,8 +168,8 @@ func TestDeterminism(t *testing.T) {
 	}
 }
 
-// TestStepperAllocs: after set-up, Stepper.Next and Stepper.Dense (with a
-// dst of the right size) do not allocate.
+// TestStepperAllocs: after set-up, Stepper.Next, Stepper.Dense and
+// Solution.At (with a dst of the right size) do not allocate.
 func TestStepperAllocs(t *testing.T) {
 	st, err := NewStepper(Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, 1e6, DormandPrince54, &Settings{RelTol: 1e-8, AbsTol: 1e-8})
 	if err != nil {
@@ -185,6 +185,13 @@ func TestStepperAllocs(t *testing.T) {
 		st.Dense(st.T()-0.5*st.H(), dst)
 	}); a != 0 {
 		t.Errorf("Stepper.Next+Dense: %v allocations per step, want 0", a)
+	}
+	sol, err := Solve(ctx, Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, 5, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a := testing.AllocsPerRun(100, func() { sol.At(2.5, dst) }); a != 0 {
+		t.Errorf("Solution.At: %v allocations per call, want 0", a)
 	}
 	if st.Err() != nil || st.Stats().Accepted < 200 {
 		t.Fatalf("stepper stopped: %v after %d steps", st.Err(), st.Stats().Accepted)
