@@ -67,8 +67,76 @@ type Solution struct {
 	Status Status
 
 	sc   scheme
-	coef []float64 // dense output per step, denseSize*Dim each
-	nd   int       // denseSize*Dim
+	coef chunks // dense output, denseSize*Dim per step
+	// During a solve the times and states go to chunks (no copying as the
+	// solution grows); seal copies them into T and Y once at the end.
+	tBuf, yBuf chunks
+}
+
+// chunks stores a growing sequence of fixed-size records in blocks that
+// never move once written. The first block grows by append up to a full
+// block, so short solves stay small.
+type chunks struct {
+	per   int // floats per record
+	block int // records per block
+	b     [][]float64
+	n     int // records stored
+}
+
+// maxBlockFloats bounds a block to 512 KiB.
+const maxBlockFloats = 1 << 16
+
+func newChunks(per int) chunks {
+	per = max(1, per)
+	return chunks{per: per, block: max(1, min(4096, maxBlockFloats/per))}
+}
+
+// add appends one record (len(v) == per).
+func (c *chunks) add(v []float64) {
+	if k := len(c.b); k == 0 || len(c.b[k-1]) == c.block*c.per {
+		var buf []float64
+		if k > 0 {
+			buf = make([]float64, 0, c.block*c.per) // later blocks: full size at once
+		}
+		c.b = append(c.b, buf)
+	}
+	last := &c.b[len(c.b)-1]
+	if l := len(*last); cap(*last)-l >= len(v) {
+		// A loop, not append or copy: records are short, and the
+		// runtime's memmove costs more than the copy itself.
+		dst := (*last)[l : l+len(v)]
+		for i, x := range v {
+			dst[i] = x
+		}
+		*last = (*last)[:l+len(v)]
+	} else {
+		*last = append(*last, v...)
+	}
+	c.n++
+}
+
+// at returns record k.
+func (c *chunks) at(k int) []float64 {
+	b := c.b[k/c.block]
+	o := (k % c.block) * c.per
+	return b[o : o+c.per : o+c.per]
+}
+
+// flat returns all records in one slice of exactly the right length.
+func (c *chunks) flat() []float64 {
+	out := make([]float64, 0, c.n*c.per)
+	for _, b := range c.b {
+		out = append(out, b...)
+	}
+	return out
+}
+
+// seal moves the stored steps into T and Y.
+func (s *Solution) seal() {
+	if s.tBuf.n > 0 {
+		s.T, s.Y = s.tBuf.flat(), s.yBuf.flat()
+		s.tBuf, s.yBuf = chunks{}, chunks{}
+	}
 }
 
 // State returns the state at T[i] in dst (grown if short).
@@ -125,6 +193,6 @@ func (s *Solution) At(t float64, dst []float64) []float64 {
 	}
 	dst = dst[:s.Dim]
 	theta := (t - s.T[k]) / (s.T[k+1] - s.T[k])
-	s.sc.interp(s.coef[k*s.nd:(k+1)*s.nd], theta, dst)
+	s.sc.interp(s.coef.at(k), theta, dst)
 	return dst
 }

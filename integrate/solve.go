@@ -29,11 +29,14 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 	}
 	c := st.cfg
 	n := st.n
-	sol := &Solution{Method: m.Name(), Dim: n, T0: p.T0, End: p.T0, sc: st.sc, nd: st.sc.denseSize() * n}
+	sol := &Solution{Method: m.Name(), Dim: n, T0: p.T0, End: p.T0, sc: st.sc,
+		coef: newChunks(st.sc.denseSize() * n), tBuf: newChunks(1), yBuf: newChunks(n)}
+	defer sol.seal()
 	keep := !c.drop
+	var tbv [1]float64
 	if keep {
-		sol.T = append(sol.T, p.T0)
-		sol.Y = append(sol.Y, p.Y0...)
+		sol.tBuf.add([]float64{p.T0})
+		sol.yBuf.add(p.Y0)
 	}
 
 	// The sampling grid: t0 + i·Every, then t1; or the caller's Times.
@@ -115,10 +118,11 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 		if keep {
 			if st.sc.denseSize() > 0 {
 				st.prepareDense()
-				sol.coef = append(sol.coef, st.coef...)
+				sol.coef.add(st.coef)
 			}
-			sol.T = append(sol.T, tb)
-			sol.Y = append(sol.Y, st.y...)
+			tbv[0] = tb
+			sol.tBuf.add(tbv[:])
+			sol.yBuf.add(st.y)
 		}
 		sol.End = end
 		if stop {
