@@ -32,11 +32,11 @@ func (dopri54) controller() Controller {
 }
 
 func (dopri54) newScheme(p *Problem, n int) (scheme, error) {
-	w := &dp54Work{f: p.F, invN: 1 / float64(n)}
-	buf := make([]float64, 8*n)
+	w := &dp54Work{f: p.F, sqrtInvN: math.Sqrt(1 / float64(n))}
+	buf := make([]float64, 9*n)
 	w.k2, w.k3, w.k4, w.k5, w.k6, w.ys, w.ysti = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n],
 		buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n], buf[6*n:7*n:7*n]
-	w.wt = buf[7*n : 8*n : 8*n]
+	w.pw, w.ew = buf[7*n:8*n:8*n], buf[8*n:9*n:9*n]
 	return w, nil
 }
 
@@ -89,8 +89,8 @@ type dp54Work struct {
 	f                      Func
 	k2, k3, k4, k5, k6, ys []float64
 	ysti                   []float64 // the argument of stage 6, for the stiffness test
-	invN                   float64   // 1/n, for the mean of squares
-	wt                     []float64 // h/sk_i of the current attempt
+	sqrtInvN               float64   // 1/√n, for the mean of squares
+	pw, ew                 []float64 // error terms without k7, and e_7 weights
 }
 
 func (*dp54Work) fsal() bool     { return true }
@@ -102,58 +102,73 @@ func (w *dp54Work) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (f
 }
 
 // attemptSq is the hot loop: one trial step and its squared error norm.
-// Products are wrapped in float64() so that no architecture fuses them into
-// FMAs, and sums of three or more terms are added pairwise (a shorter
-// dependency chain between the stages); both are fixed orders, so results
-// are bit-identical everywhere.
+//
+// Its speed on a cheap field is the latency of the chain from one stage
+// to the next, so the arithmetic is arranged for it: the products h·a_ij
+// are formed once, and each stage adds the newest k last,
+//
+//	Y_s = (y + Σ_{j<s-1} (h·a_sj)·k_j) + (h·a_s,s-1)·k_s-1,
+//
+// so that only one product and one addition wait for F. The error weights
+// h/(sk·√n) and the part of the error without k7 are formed before
+// F(t+h, y1), which leaves one product and one addition per component
+// between k7 and err². Products are wrapped in float64() so that no
+// architecture fuses them into FMAs, and every sum has a fixed order:
+// results are bit-identical everywhere. A NaN or Inf in y1 or k7 makes err²
+// NaN or Inf (y1 - y1 is NaN exactly then; k7 enters every term).
 func (w *dp54Work) attemptSq(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
 	n := len(y)
 	k2, k3, k4, k5, k6, ys, ysti := w.k2[:n], w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n], w.ys[:n], w.ysti[:n]
+	pw, ew := w.pw[:n], w.ew[:n]
 	k1, y1, k7, rtol, atol = k1[:n], y1[:n], k7[:n], rtol[:n], atol[:n]
+	ha21 := float64(h * dpA21)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*float64(dpA21*k1[i]))
+		ys[i] = y[i] + float64(ha21*k1[i])
 	}
+	ha31, ha32 := float64(h*dpA31), float64(h*dpA32)
 	w.f(t+float64(dpC2*h), ys, k2)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(dpA31*k1[i])+float64(dpA32*k2[i])))
+		ys[i] = (y[i] + float64(ha31*k1[i])) + float64(ha32*k2[i])
 	}
+	ha41, ha42, ha43 := float64(h*dpA41), float64(h*dpA42), float64(h*dpA43)
 	w.f(t+float64(dpC3*h), ys, k3)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*((float64(dpA41*k1[i])+float64(dpA42*k2[i]))+float64(dpA43*k3[i])))
+		ys[i] = (y[i] + (float64(ha41*k1[i]) + float64(ha42*k2[i]))) + float64(ha43*k3[i])
 	}
+	ha51, ha52, ha53, ha54 := float64(h*dpA51), float64(h*dpA52), float64(h*dpA53), float64(h*dpA54)
 	w.f(t+float64(dpC4*h), ys, k4)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*((float64(dpA51*k1[i])+float64(dpA52*k2[i]))+(float64(dpA53*k3[i])+float64(dpA54*k4[i]))))
+		ys[i] = (y[i] + ((float64(ha51*k1[i]) + float64(ha52*k2[i])) + float64(ha53*k3[i]))) + float64(ha54*k4[i])
 	}
+	ha61, ha62, ha63, ha64, ha65 := float64(h*dpA61), float64(h*dpA62), float64(h*dpA63), float64(h*dpA64), float64(h*dpA65)
 	w.f(t+float64(dpC5*h), ys, k5)
 	for i := range ysti {
-		ysti[i] = y[i] + float64(h*(((float64(dpA61*k1[i])+float64(dpA62*k2[i]))+(float64(dpA63*k3[i])+float64(dpA64*k4[i])))+float64(dpA65*k5[i])))
+		ysti[i] = (y[i] + ((float64(ha61*k1[i]) + float64(ha62*k2[i])) + (float64(ha63*k3[i]) + float64(ha64*k4[i])))) + float64(ha65*k5[i])
 	}
+	ha71, ha73, ha74, ha75, ha76 := float64(h*dpA71), float64(h*dpA73), float64(h*dpA74), float64(h*dpA75), float64(h*dpA76)
 	th := t + h
 	w.f(th, ysti, k6)
-	// y1, and everything of the error estimate that does not need k7:
-	// pre = Σ_{j<7} e_j·k_j and wt = h/sk (the division), both computed before
-	// F(t+h, y1) so that they overlap with it instead of following it.
-	pre, wt := ys, w.wt[:n]
+	hs := float64(h * w.sqrtInvN)
+	var sum float64
 	for i := range y1 {
-		yn := y[i] + float64(h*(((float64(dpA71*k1[i])+float64(dpA73*k3[i]))+(float64(dpA74*k4[i])+float64(dpA75*k5[i])))+float64(dpA76*k6[i])))
+		yn := (y[i] + ((float64(ha71*k1[i]) + float64(ha73*k3[i])) + (float64(ha74*k4[i]) + float64(ha75*k5[i])))) + float64(ha76*k6[i])
 		y1[i] = yn
-		pre[i] = ((float64(dpE1*k1[i]) + float64(dpE3*k3[i])) + (float64(dpE4*k4[i]) + float64(dpE5*k5[i]))) + float64(dpE6*k6[i])
+		sum += yn - yn // 0, or NaN for a NaN or Inf in y1
 		ay, ay1 := math.Abs(y[i]), math.Abs(yn)
 		if ay1 > ay {
 			ay = ay1 // max without math.Max, which is a call on amd64
 		}
-		wt[i] = h / (atol[i] + float64(rtol[i]*ay))
+		wt := hs / (atol[i] + float64(rtol[i]*ay)) // h/(sk·√n)
+		pe := ((float64(dpE1*k1[i]) + float64(dpE3*k3[i])) + (float64(dpE4*k4[i]) + float64(dpE5*k5[i]))) + float64(dpE6*k6[i])
+		pw[i] = float64(pe * wt)
+		ew[i] = float64(dpE7 * wt)
 	}
 	w.f(th, y1, k7)
-	var sum, bad float64
 	for i := range y1 {
-		r := float64((pre[i] + float64(dpE7*k7[i])) * wt[i]) // e_i/sk_i
+		r := pw[i] + float64(ew[i]*k7[i]) // e_i/(sk_i·√n)
 		sum += float64(r * r)
-		// x - x is 0 for finite x and NaN for NaN and ±Inf.
-		bad += (y1[i] - y1[i]) + (k7[i] - k7[i])
 	}
-	return float64(sum*w.invN) + bad, 6
+	return sum, 6
 }
 
 func (w *dp54Work) stiffness(h float64, y1, k7 []float64) (float64, float64, bool) {
