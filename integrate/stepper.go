@@ -38,6 +38,7 @@ type Stepper struct {
 	denseReady bool
 	tA, tB     *powTable   // x^(-alpha/2) and x^(beta/2), x = err²
 	sB         float64     // Safety·errold^Beta
+	sB0        float64     // Safety·(1e-4)^Beta, the start of sB
 	rejected   bool        // the last attempt was rejected
 	hTried     float64     // the step size of the last attempt
 	fixed      bool        // m.fixedStep() > 0, cached off the per-step path
@@ -102,9 +103,10 @@ func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) 
 	if i := firstNonFinite(st.f0); i >= 0 {
 		return nil, fmt.Errorf("integrate: %w", &FieldError{T: st.t, Index: i, Value: st.f0[i], What: "derivative"})
 	}
-	st.tA = newPowTable(0.5 * cfg.alpha)          // err^(-alpha) = x^(-alpha/2)
-	st.tB = newPowTable(-0.5 * cfg.beta)          // errold^beta = x^(beta/2)
-	st.sB = float64(cfg.safety * st.tB.pow(1e-8)) // Hairer's FACOLD starts at 1e-4
+	st.tA = newPowTable(0.5 * cfg.alpha)           // err^(-alpha) = x^(-alpha/2)
+	st.tB = newPowTable(-0.5 * cfg.beta)           // errold^beta = x^(beta/2)
+	st.sB0 = float64(cfg.safety * st.tB.pow(1e-8)) // Hairer's FACOLD starts at 1e-4
+	st.sB = st.sB0
 	if hf := m.fixedStep(); hf > 0 {
 		if hf > math.Abs(t1-p.T0) {
 			hf = math.Abs(t1 - p.T0)
@@ -305,7 +307,7 @@ func (st *Stepper) nextAdaptive() bool {
 		// from the scheme when it offers it (no square root on the path from
 		// one step to the next). pA = err^(-Alpha).
 		var accepted, finite bool
-		var x, pA float64
+		var x, pA, sBNext float64
 		if st.sq != nil {
 			e2, ev := st.sq.attemptSq(st.t, h, st.y, st.f0, st.y1, st.f1, c.rtol, c.atol)
 			st.stats.Evaluations += ev
@@ -313,7 +315,7 @@ func (st *Stepper) nextAdaptive() bool {
 			accepted = e2 <= 1
 			if finite {
 				x = max(e2, errSqFloor)
-				pA = st.errPow(x, 0)
+				pA, sBNext = st.errPow(x, 0)
 			}
 		} else {
 			err, ev := st.sc.attempt(st.t, h, st.y, st.f0, st.y1, st.f1, c.rtol, c.atol)
@@ -325,7 +327,7 @@ func (st *Stepper) nextAdaptive() bool {
 			}
 			if finite {
 				x = max(float64(err*err), errSqFloor) // +Inf for err > 1e154: errPow then uses err
-				pA = st.errPow(x, err)
+				pA, sBNext = st.errPow(x, err)
 			}
 		}
 		if !finite {
@@ -380,9 +382,10 @@ func (st *Stepper) nextAdaptive() bool {
 		if st.rejected && fac > 1 {
 			fac = 1
 		}
-		// errold = max(err, 1e-4), as Hairer's FACOLD: x >= 1e-8.
-		st.sB = float64(c.safety * st.tB.pow(max(x, 1e-8)))
-		st.stiffTest(h)
+		st.sB = sBNext // errold = max(err, 1e-4), as Hairer's FACOLD
+		if st.cfg.stiffEvery >= 0 && !st.stats.Stiff {
+			st.stiffTest(h)
+		}
 		tNew := st.t + h
 		if last {
 			tNew = st.t1
@@ -481,17 +484,23 @@ func (st *Stepper) nextFixed() bool {
 // must still give a finite factor, clamped to MaxFactor.
 const errSqFloor = 1e-20
 
-// errPow returns err^(-Alpha) from x = err² (x >= errSqFloor). Past the
-// table (x >= 2^65, a rejected step with err > 2^32.5) it uses log2Ctl and
-// exp2Ctl, of err when given (x may have overflowed), else of x.
-func (st *Stepper) errPow(x, err float64) float64 {
-	if x < 0x1p65 {
-		return st.tA.pow(x)
+// errPow returns err^(-Alpha) and Safety·max(err, 1e-4)^Beta (the sB of
+// the next step, should this one be accepted) from x = err² (x >=
+// errSqFloor). Past the table (x >= 2^65, a rejected step with err >
+// 2^32.5) it uses log2Ctl and exp2Ctl, of err when given (x may have
+// overflowed), else of x.
+func (st *Stepper) errPow(x, err float64) (pA, sB float64) {
+	if x >= 1e-8 && x < 0x1p65 {
+		pA, pB := st.tA.pow2(st.tB, x)
+		return pA, float64(st.cfg.safety * pB)
+	}
+	if x < 1e-8 {
+		return st.tA.pow(x), st.sB0
 	}
 	if err > 0 {
-		return exp2Ctl(-float64(st.cfg.alpha * log2Ctl(err)))
+		return exp2Ctl(-float64(st.cfg.alpha * log2Ctl(err))), st.sB0
 	}
-	return exp2Ctl(-float64(float64(0.5*st.cfg.alpha) * log2Ctl(x)))
+	return exp2Ctl(-float64(float64(0.5*st.cfg.alpha) * log2Ctl(x))), st.sB0
 }
 
 // powTable evaluates x^(-a) for x in [2^ptKMin, 2^(ptKMax+1)), the
@@ -550,6 +559,19 @@ func (t *powTable) pow(x float64) float64 {
 	r := float64(m*t.inv[j]) - 1
 	q := 1 + float64(r*(float64(t.c2*r)-t.a))
 	return float64(float64(t.k[k]*t.p[j]) * q)
+}
+
+// pow2 returns x^(-t.a) and x^(-u.a) for the same x, sharing the range
+// reduction (both tables have the same layout and mantissa centres).
+func (t *powTable) pow2(u *powTable, x float64) (float64, float64) {
+	b := math.Float64bits(x)
+	k := int(b>>52&0x7ff) - 1023 - ptKMin
+	j := int(b>>(52-5)) & (ptJ - 1)
+	m := math.Float64frombits(b&(1<<52-1) | 1023<<52)
+	r := float64(m*t.inv[j]) - 1
+	q := 1 + float64(r*(float64(t.c2*r)-t.a))
+	qu := 1 + float64(r*(float64(u.c2*r)-u.a))
+	return float64(float64(t.k[k]*t.p[j]) * q), float64(float64(u.k[k]*u.p[j]) * qu)
 }
 
 // log2Prec returns log2(m) for m in [1, 2] to about 1e-16, from
