@@ -202,6 +202,29 @@ func (w *dp54Work) dense(t, h float64, y, k1, y1, k7, coef []float64) int {
 	return 0
 }
 
+// compactSize is the number of floats per step a Solution keeps: r3, r4,
+// r5 (r1 = y and r2 = y1 - y are rebuilt from the stored states).
+func (w *dp54Work) compactSize(n int) int { return 3 * n }
+
+// compact copies r3..r5 of a full dense record into dst.
+func (w *dp54Work) compact(full, dst []float64) {
+	n := len(full) / 5
+	copy(dst, full[2*n:5*n])
+}
+
+// interpCompact is interp with r1 = y0 and r2 = y1 - y0 rebuilt from the
+// step's end states (the same operations as dense, so the same bits).
+func (w *dp54Work) interpCompact(y0, y1, c []float64, theta float64, dst []float64) {
+	n := len(dst)
+	y0, y1 = y0[:n], y1[:n]
+	r3, r4, r5 := c[:n], c[n:2*n], c[2*n:3*n]
+	t1 := 1 - theta
+	for i := range dst {
+		r2 := y1[i] - y0[i]
+		dst[i] = y0[i] + float64(theta*(r2+float64(t1*(r3[i]+float64(theta*(r4[i]+float64(t1*r5[i])))))))
+	}
+}
+
 func (w *dp54Work) interp(coef []float64, theta float64, dst []float64) {
 	n := len(dst)
 	r1, r2, r3, r4, r5 := coef[:n], coef[n:2*n], coef[2*n:3*n], coef[3*n:4*n], coef[4*n:5*n]

@@ -67,10 +67,21 @@ type Solution struct {
 	Status Status
 
 	sc   scheme
-	coef chunks // dense output, denseSize*Dim per step
+	cd   compactDense // sc, when it rebuilds part of its dense output from T, Y
+	coef chunks       // dense output per step (full, or compact when cd != nil)
 	// During a solve the times and states go to chunks (no copying as the
 	// solution grows); seal copies them into T and Y once at the end.
 	tBuf, yBuf chunks
+}
+
+// compactDense is implemented by schemes whose continuous extension
+// partly consists of the step's end states: a Solution then keeps only the
+// rest (for DormandPrince54, 3 of 5 vectors per step), and rebuilds the
+// same bits from T and Y.
+type compactDense interface {
+	compactSize(n int) int
+	compact(full, dst []float64)
+	interpCompact(y0, y1, c []float64, theta float64, dst []float64)
 }
 
 // chunks stores a growing sequence of fixed-size records in blocks that
@@ -193,6 +204,11 @@ func (s *Solution) At(t float64, dst []float64) []float64 {
 	}
 	dst = dst[:s.Dim]
 	theta := (t - s.T[k]) / (s.T[k+1] - s.T[k])
+	if s.cd != nil {
+		d := s.Dim
+		s.cd.interpCompact(s.Y[k*d:(k+1)*d], s.Y[(k+1)*d:(k+2)*d], s.coef.at(k), theta, dst)
+		return dst
+	}
 	s.sc.interp(s.coef.at(k), theta, dst)
 	return dst
 }
