@@ -2,7 +2,12 @@ package integrate
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/binary"
+	"encoding/hex"
+	"fmt"
 	"math"
+	"runtime"
 	"testing"
 )
 
@@ -336,5 +341,57 @@ func TestPowTable(t *testing.T) {
 		if d := math.Abs(exp2Prec(x)-math.Exp2(x)) / math.Exp2(x); d > 1e-15 {
 			t.Errorf("exp2Prec(%v) off by %.2g relative", x, d)
 		}
+	}
+}
+
+// goldenLorenzBits is the SHA-256 of every bit of a Lorenz run (steps,
+// samples, crossings, At, counts; see lorenzBits). It is the same on amd64
+// and arm64, checked with
+//
+//	GOARCH=arm64 go test -c -o /tmp/i.test ./integrate
+//	qemu-aarch64 /tmp/i.test -test.run GoldenBits
+//
+// (removing one float64() from the first stage of DormandPrince54 makes the
+// arm64 hash differ and leaves amd64's unchanged). A change means the
+// arithmetic changed: on purpose (update the constant, and say why in the
+// commit) or by accident (a fused multiply-add, a new summation order).
+const goldenLorenzBits = "9705f460f4a7eb52a69a78a5e0302ca2855d801f8005b4567fd6bbb1037f1e4d"
+
+// lorenzBits hashes a Lorenz solve on [0, 30] at tol 1e-9 with samples
+// every 0.01 and the crossings of x = 0.
+func lorenzBits(t *testing.T) string {
+	cr := Crossing{G: func(_ float64, y []float64) float64 { return y[0] }}
+	sol, err := Solve(context.Background(), Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, 30, nil, &Settings{RelTol: 1e-9, AbsTol: 1e-9, Every: 0.01, Crossings: []Crossing{cr}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := sha256.New()
+	put := func(v ...float64) {
+		for _, x := range v {
+			_ = binary.Write(h, binary.LittleEndian, math.Float64bits(x))
+		}
+	}
+	put(sol.T...)
+	put(sol.Y...)
+	for _, s := range sol.Samples {
+		put(s.T)
+		put(s.Y...)
+	}
+	for _, c := range sol.Hits {
+		put(c.T)
+		put(c.Y...)
+	}
+	for _, tt := range []float64{0.123, 7.77, 29.9} {
+		put(sol.At(tt, nil)...)
+	}
+	fmt.Fprintf(h, "%d %d %d", sol.Stats.Evaluations, sol.Stats.Accepted, sol.Stats.Rejected)
+	return hex.EncodeToString(h.Sum(nil))
+}
+
+// TestGoldenBits: same input, same bits, on every architecture (DESIGN.md
+// determinism policy; the golden value was computed on amd64).
+func TestGoldenBits(t *testing.T) {
+	if got := lorenzBits(t); got != goldenLorenzBits {
+		t.Errorf("Lorenz run hashes to %s, golden %s (%s/%s)", got, goldenLorenzBits, runtime.GOOS, runtime.GOARCH)
 	}
 }
