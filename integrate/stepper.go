@@ -267,7 +267,9 @@ func (st *Stepper) nonFinite(tt float64) {
 	} else if i := firstNonFinite(st.f1); i >= 0 && st.sc.fsal() {
 		st.lastNonFin = &FieldError{T: tt, Index: i, Value: st.f1[i], What: "derivative"}
 	} else {
-		st.lastNonFin = &FieldError{T: tt, Index: 0, Value: math.NaN(), What: "error estimate"}
+		// An intermediate stage was non-finite but y1 and F(t+h, y1) are
+		// not: no single component to name.
+		st.lastNonFin = &FieldError{T: tt, Index: -1, Value: math.NaN(), What: "error estimate"}
 	}
 }
 
