@@ -358,3 +358,82 @@ func TestMethodRefusal(t *testing.T) {
 		t.Fatalf("err = %v, solution %v, %d calls: want ErrMethod before any evaluation", err, sol, calls)
 	}
 }
+
+// plainDP is DormandPrince54 seen only through the scheme interface: no
+// squared norm, no compact dense output. It runs the stepper's and the
+// Solution's generic paths, the ones the other methods take.
+type plainDP struct{ dopri54 }
+
+type plainScheme struct{ w *dp54Work }
+
+func (plainDP) newScheme(p *Problem, n int) (scheme, error) {
+	sc, err := dopri54{}.newScheme(p, n)
+	if err != nil {
+		return nil, err
+	}
+	return plainScheme{sc.(*dp54Work)}, nil
+}
+
+func (s plainScheme) attempt(t, h float64, y, f0, y1, f1, rtol, atol []float64) (float64, int) {
+	return s.w.attempt(t, h, y, f0, y1, f1, rtol, atol)
+}
+func (s plainScheme) fsal() bool     { return s.w.fsal() }
+func (s plainScheme) denseSize() int { return s.w.denseSize() }
+func (s plainScheme) stiffness(h float64, y1, f1 []float64) (float64, float64, bool) {
+	return s.w.stiffness(h, y1, f1)
+}
+func (s plainScheme) dense(t, h float64, y, f0, y1, f1, coef []float64) int {
+	return s.w.dense(t, h, y, f0, y1, f1, coef)
+}
+func (s plainScheme) interp(coef []float64, theta float64, dst []float64) {
+	s.w.interp(coef, theta, dst)
+}
+
+// TestGenericPath: the generic paths give the same accuracy as the fast
+// ones (Lorenz at t = 10 against the mpmath reference, testdata), the same
+// step counts within 1% (the squared norm is rounded differently, and the
+// flow is chaotic), samples equal to At bit for bit, and the same handling
+// of non-finite values.
+func TestGenericPath(t *testing.T) {
+	var ref refLorenz
+	readJSON(t, "lorenz.json", &ref)
+	want := parseVec(t, ref.Lorenz.BetaDouble.Values["10"])
+	p := Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}
+	s := &Settings{RelTol: 1e-10, AbsTol: 1e-10, Every: 0.25}
+	fast, err := Solve(context.Background(), p, 10, DormandPrince54, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	gen, err := Solve(context.Background(), p, 10, plainDP{}, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ef, eg := maxAbsDiff(fast.Final, want), maxAbsDiff(gen.Final, want)
+	t.Logf("err at t=10: fast %.3g, generic %.3g; steps %d, %d", ef, eg, fast.Stats.Accepted, gen.Stats.Accepted)
+	if eg > 1.5*ef || ef > 1.5*eg {
+		t.Errorf("errors differ: fast %.3g, generic %.3g", ef, eg)
+	}
+	if d := math.Abs(float64(gen.Stats.Accepted-fast.Stats.Accepted)) / float64(fast.Stats.Accepted); d > 0.01 {
+		t.Errorf("steps: fast %d, generic %d", fast.Stats.Accepted, gen.Stats.Accepted)
+	}
+	for i, smp := range gen.Samples {
+		y := gen.At(smp.T, nil)
+		for j := range y {
+			if y[j] != smp.Y[j] {
+				t.Fatalf("generic path: sample %d %v differs from At %v", i, smp.Y, y)
+			}
+		}
+	}
+	bad := Problem{F: func(_ float64, y, d []float64) {
+		d[0] = 1
+		d[1] = 0
+		if y[0] > 1 {
+			d[1] = math.NaN()
+		}
+	}, Y0: []float64{0, 0}}
+	_, err = Solve(context.Background(), bad, 2, plainDP{}, nil)
+	var fe *FieldError
+	if !errors.As(err, &fe) || fe.Index != 1 || math.Abs(fe.T-1) > 1e-9 {
+		t.Errorf("generic path, NaN region: err = %v, want a FieldError for component 1 near t = 1", err)
+	}
+}
