@@ -625,20 +625,17 @@ type sqAttempter interface {
 // epsRound is the unit roundoff used in the step-size underflow test.
 const epsRound = 2.3e-16
 
-// log2Ctl and exp2Ctl evaluate the exponents of the step-size controller.
-// On a cheap vector field (Lorenz: about 90 ns per step) the library's
-// math.Log and math.Exp took about a third of the time of a step, and their
-// latency sits on the critical path from one step to the next. These
-// versions reduce the argument with bit manipulation and evaluate short
-// polynomials (Estrin's scheme, for a short dependency chain); products are
-// rounded explicitly (float64(x*y)), so the result is the same on every
-// architecture. Their errors, absolute below 2e-6 for log2Ctl on [1e-20,
-// 1e300] and relative below 3.5e-6 for exp2Ctl on [-200, 200] (checked
-// against math.Log2 and math.Exp2 in TestControllerExponents), put the
-// step-size factor within 4e-6 (relative) of Safety·err^(-Alpha)·
-// errold^Beta: far below what a heuristic factor with Safety = 0.9 needs.
-// Degree 4 and 7 polynomials (errors 1e-9) cost about 8 ns more per step
-// on Lorenz and gave the same accuracy at t = 20 for the same tolerance.
+// log2Ctl and exp2Ctl evaluate the controller's power where powTable's
+// range ends (a rejected step with err > 2^32.5). They reduce the argument
+// with bit manipulation and evaluate short polynomials (Estrin's scheme);
+// products are rounded explicitly (float64(x*y)), so the result is the same
+// on every architecture. Their errors, absolute below 2e-6 for log2Ctl on
+// [1e-20, 1e300] and relative below 3.5e-6 for exp2Ctl on [-200, 200]
+// (checked against math.Log2 and math.Exp2 in TestControllerExponents), put
+// the step-size factor within 4e-6 (relative) of Safety·err^(-Alpha): far
+// below what a heuristic factor with Safety = 0.9 needs. (They were the
+// controller's main path before powTable, and replaced math.Log and
+// math.Exp, which took about a third of a Lorenz step.)
 //
 // References:
 //
