@@ -81,7 +81,10 @@ type Settings struct {
 // (Gustafsson, Lundh & Söderlind 1988; the parameterisation of Hairer & Wanner
 // 1996, Sect. IV.2). Zero fields take the method's defaults: Safety 0.9,
 // Alpha = 1/(q+1) - 0.75·Beta with q the lower order of the pair, Beta 0.04 for
-// DormandPrince54, 0 for DormandPrince853.
+// DormandPrince54, 0 for DormandPrince853. The powers are evaluated with
+// tables and a short polynomial, deterministically and to a relative error
+// below 1.2e-7 for the defaults (below 4e-6 for Alpha <= 2); errold is
+// max(err, 1e-4), as in Hairer & Wanner's codes.
 type Controller struct {
 	Safety               float64
 	Alpha, Beta          float64
