@@ -408,12 +408,20 @@ func TestGenericPath(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	const (
+		// The two paths round err² differently (e2 versus sqrt(e2)²), so
+		// step sizes differ in the last bits and the chaotic flow spreads
+		// that: errors within 50% and step counts within 1% (measured: equal
+		// to 3 digits and equal counts).
+		errRatio  = 1.5
+		stepsFrac = 0.01
+	)
 	ef, eg := maxAbsDiff(fast.Final, want), maxAbsDiff(gen.Final, want)
 	t.Logf("err at t=10: fast %.3g, generic %.3g; steps %d, %d", ef, eg, fast.Stats.Accepted, gen.Stats.Accepted)
-	if eg > 1.5*ef || ef > 1.5*eg {
+	if eg > errRatio*ef || ef > errRatio*eg {
 		t.Errorf("errors differ: fast %.3g, generic %.3g", ef, eg)
 	}
-	if d := math.Abs(float64(gen.Stats.Accepted-fast.Stats.Accepted)) / float64(fast.Stats.Accepted); d > 0.01 {
+	if d := math.Abs(float64(gen.Stats.Accepted-fast.Stats.Accepted)) / float64(fast.Stats.Accepted); d > stepsFrac {
 		t.Errorf("steps: fast %d, generic %d", fast.Stats.Accepted, gen.Stats.Accepted)
 	}
 	for i, smp := range gen.Samples {
