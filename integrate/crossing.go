@@ -1,6 +1,7 @@
 package integrate
 
 import (
+	"fmt"
 	"math"
 )
 
@@ -33,7 +34,8 @@ func (s Sense) String() string {
 // of every step so that two sign changes inside one step are not missed, and
 // refined by Brent's method on the continuous extension until the bracket in t
 // is below 4·eps·max(|t|, |h|). A zero exactly at a step end is reported once;
-// a zero at t0 is not reported.
+// a zero at t0 is not reported. A G that returns NaN ends the solve with an
+// error wrapping ErrNonFinite (at t0: before any step).
 type Crossing struct {
 	// Name labels the crossing in reports. Optional.
 	Name string
@@ -68,6 +70,7 @@ type crossFinder struct {
 	tmp   []float64
 	hits  []Hit
 	found []Hit // scratch for one step
+	err   error // a crossing function returned NaN
 }
 
 func newCrossFinder(cs []Crossing, t0 float64, y0 []float64) *crossFinder {
@@ -77,6 +80,9 @@ func newCrossFinder(cs []Crossing, t0 float64, y0 []float64) *crossFinder {
 			c.Probes = 3
 		}
 		g := c.G(t0, y0)
+		if g != g && f.err == nil {
+			f.err = fmt.Errorf("integrate: Crossings[%d].G is NaN at t0=%g: %w", i, t0, ErrNonFinite)
+		}
 		f.st[i] = crossState{c: c, prev: sign(g), gEnd: g}
 	}
 	return f
@@ -110,6 +116,10 @@ func (f *crossFinder) scan(ta, h float64, yEnd []float64, eval func(theta float6
 			} else {
 				eval(th, f.tmp)
 				g = s.c.G(ta+float64(th*h), f.tmp)
+			}
+			if g != g { // NaN: no sign to compare; the solve ends with an error
+				f.err = fmt.Errorf("integrate: Crossings[%d].G is NaN at t=%g: %w", w, ta+float64(th*h), ErrNonFinite)
+				return nil, false
 			}
 			sg := sign(g)
 			switch {
@@ -196,8 +206,8 @@ func brent(g func(float64) float64, a, b, fa, fb, ta, h float64) float64 {
 			a, b, c = b, c, b
 			fa, fb, fc = fb, fc, fb
 		}
-		tol1 := float64(2*eps*math.Abs(b)) + 0.5*tol
-		xm := 0.5 * (c - b)
+		tol1 := float64(2*eps*math.Abs(b)) + float64(0.5*tol)
+		xm := float64(0.5 * (c - b))
 		if math.Abs(xm) <= tol1 || fb == 0 {
 			return b
 		}
@@ -205,19 +215,19 @@ func brent(g func(float64) float64, a, b, fa, fb, ta, h float64) float64 {
 			s := fb / fa
 			var p, q float64
 			if a == c {
-				p = 2 * xm * s
+				p = float64(float64(2*xm) * s)
 				q = 1 - s
 			} else {
 				q0 := fa / fc
 				r := fb / fc
-				p = s * (2*xm*q0*(q0-r) - (b-a)*(r-1))
-				q = (q0 - 1) * (r - 1) * (s - 1)
+				p = float64(s * (float64(float64(float64(2*xm)*q0)*(q0-r)) - float64((b-a)*(r-1))))
+				q = float64(float64((q0-1)*(r-1)) * (s - 1))
 			}
 			if p > 0 {
 				q = -q
 			}
 			p = math.Abs(p)
-			if 2*p < math.Min(3*xm*q-math.Abs(tol1*q), math.Abs(e*q)) {
+			if float64(2*p) < math.Min(float64(float64(3*xm)*q)-math.Abs(float64(tol1*q)), math.Abs(float64(e*q))) {
 				e = d
 				d = p / q
 			} else {

@@ -32,10 +32,11 @@ func (dopri54) controller() Controller {
 }
 
 func (dopri54) newScheme(p *Problem, n int) (scheme, error) {
-	w := &dp54Work{f: p.F}
-	buf := make([]float64, 7*n)
+	w := &dp54Work{f: p.F, sqrtInvN: math.Sqrt(1 / float64(n))}
+	buf := make([]float64, 9*n)
 	w.k2, w.k3, w.k4, w.k5, w.k6, w.ys, w.ysti = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n],
 		buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n], buf[6*n:7*n:7*n]
+	w.pw, w.ew = buf[7*n:8*n:8*n], buf[8*n:9*n:9*n]
 	return w, nil
 }
 
@@ -88,50 +89,86 @@ type dp54Work struct {
 	f                      Func
 	k2, k3, k4, k5, k6, ys []float64
 	ysti                   []float64 // the argument of stage 6, for the stiffness test
+	sqrtInvN               float64   // 1/√n, for the mean of squares
+	pw, ew                 []float64 // error terms without k7, and e_7 weights
 }
 
 func (*dp54Work) fsal() bool     { return true }
 func (*dp54Work) denseSize() int { return 5 }
 
-// attempt is the hot loop. Products are wrapped in float64() so that no
-// architecture fuses them into FMAs (results must be bit-identical).
 func (w *dp54Work) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
+	e2, ev := w.attemptSq(t, h, y, k1, y1, k7, rtol, atol)
+	return math.Sqrt(e2), ev
+}
+
+// attemptSq is the hot loop: one trial step and its squared error norm.
+//
+// Its speed on a cheap field is the latency of the chain from one stage
+// to the next, so the arithmetic is arranged for it: the products h·a_ij
+// are formed once, and each stage adds the newest k last,
+//
+//	Y_s = (y + Σ_{j<s-1} (h·a_sj)·k_j) + (h·a_s,s-1)·k_s-1,
+//
+// so that only one product and one addition wait for F. The error weights
+// h/(sk·√n) and the part of the error without k7 are formed before
+// F(t+h, y1), which leaves one product and one addition per component
+// between k7 and err². Products are wrapped in float64() so that no
+// architecture fuses them into FMAs, and every sum has a fixed order:
+// results are bit-identical everywhere. A NaN or Inf in y1 or k7 makes err²
+// NaN or Inf (y1 - y1 is NaN exactly then; k7 enters every term).
+func (w *dp54Work) attemptSq(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
 	n := len(y)
 	k2, k3, k4, k5, k6, ys, ysti := w.k2[:n], w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n], w.ys[:n], w.ysti[:n]
-	k1, y1, k7 = k1[:n], y1[:n], k7[:n]
+	pw, ew := w.pw[:n], w.ew[:n]
+	k1, y1, k7, rtol, atol = k1[:n], y1[:n], k7[:n], rtol[:n], atol[:n]
+	ha21 := float64(h * dpA21)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*float64(dpA21*k1[i]))
+		ys[i] = y[i] + float64(ha21*k1[i])
 	}
+	ha31, ha32 := float64(h*dpA31), float64(h*dpA32)
 	w.f(t+float64(dpC2*h), ys, k2)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(dpA31*k1[i])+float64(dpA32*k2[i])))
+		ys[i] = (y[i] + float64(ha31*k1[i])) + float64(ha32*k2[i])
 	}
+	ha41, ha42, ha43 := float64(h*dpA41), float64(h*dpA42), float64(h*dpA43)
 	w.f(t+float64(dpC3*h), ys, k3)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(dpA41*k1[i])+float64(dpA42*k2[i])+float64(dpA43*k3[i])))
+		ys[i] = (y[i] + (float64(ha41*k1[i]) + float64(ha42*k2[i]))) + float64(ha43*k3[i])
 	}
+	ha51, ha52, ha53, ha54 := float64(h*dpA51), float64(h*dpA52), float64(h*dpA53), float64(h*dpA54)
 	w.f(t+float64(dpC4*h), ys, k4)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(dpA51*k1[i])+float64(dpA52*k2[i])+float64(dpA53*k3[i])+float64(dpA54*k4[i])))
+		ys[i] = (y[i] + ((float64(ha51*k1[i]) + float64(ha52*k2[i])) + float64(ha53*k3[i]))) + float64(ha54*k4[i])
 	}
+	ha61, ha62, ha63, ha64, ha65 := float64(h*dpA61), float64(h*dpA62), float64(h*dpA63), float64(h*dpA64), float64(h*dpA65)
 	w.f(t+float64(dpC5*h), ys, k5)
 	for i := range ysti {
-		ysti[i] = y[i] + float64(h*(float64(dpA61*k1[i])+float64(dpA62*k2[i])+float64(dpA63*k3[i])+float64(dpA64*k4[i])+float64(dpA65*k5[i])))
+		ysti[i] = (y[i] + ((float64(ha61*k1[i]) + float64(ha62*k2[i])) + (float64(ha63*k3[i]) + float64(ha64*k4[i])))) + float64(ha65*k5[i])
 	}
+	ha71, ha73, ha74, ha75, ha76 := float64(h*dpA71), float64(h*dpA73), float64(h*dpA74), float64(h*dpA75), float64(h*dpA76)
 	th := t + h
 	w.f(th, ysti, k6)
-	for i := range y1 {
-		y1[i] = y[i] + float64(h*(float64(dpA71*k1[i])+float64(dpA73*k3[i])+float64(dpA74*k4[i])+float64(dpA75*k5[i])+float64(dpA76*k6[i])))
-	}
-	w.f(th, y1, k7)
+	hs := float64(h * w.sqrtInvN)
 	var sum float64
 	for i := range y1 {
-		e := float64(h * (float64(dpE1*k1[i]) + float64(dpE3*k3[i]) + float64(dpE4*k4[i]) + float64(dpE5*k5[i]) + float64(dpE6*k6[i]) + float64(dpE7*k7[i])))
-		sk := atol[i] + float64(rtol[i]*math.Max(math.Abs(y[i]), math.Abs(y1[i])))
-		r := e / sk
+		yn := (y[i] + ((float64(ha71*k1[i]) + float64(ha73*k3[i])) + (float64(ha74*k4[i]) + float64(ha75*k5[i])))) + float64(ha76*k6[i])
+		y1[i] = yn
+		sum += yn - yn // 0, or NaN for a NaN or Inf in y1
+		ay, ay1 := math.Abs(y[i]), math.Abs(yn)
+		if ay1 > ay {
+			ay = ay1 // max without math.Max, which is a call on amd64
+		}
+		wt := hs / (atol[i] + float64(rtol[i]*ay)) // h/(sk·√n)
+		pe := ((float64(dpE1*k1[i]) + float64(dpE3*k3[i])) + (float64(dpE4*k4[i]) + float64(dpE5*k5[i]))) + float64(dpE6*k6[i])
+		pw[i] = float64(pe * wt)
+		ew[i] = float64(dpE7 * wt)
+	}
+	w.f(th, y1, k7)
+	for i := range y1 {
+		r := pw[i] + float64(ew[i]*k7[i]) // e_i/(sk_i·√n)
 		sum += float64(r * r)
 	}
-	return math.Sqrt(sum / float64(n)), 6
+	return sum, 6
 }
 
 func (w *dp54Work) stiffness(h float64, y1, k7 []float64) (float64, float64, bool) {
@@ -163,6 +200,29 @@ func (w *dp54Work) dense(t, h float64, y, k1, y1, k7, coef []float64) int {
 		r5[i] = float64(h * (float64(dpD1*k1[i]) + float64(dpD3*w.k3[i]) + float64(dpD4*w.k4[i]) + float64(dpD5*w.k5[i]) + float64(dpD6*w.k6[i]) + float64(dpD7*k7[i])))
 	}
 	return 0
+}
+
+// compactSize is the number of floats per step a Solution keeps: r3, r4,
+// r5 (r1 = y and r2 = y1 - y are rebuilt from the stored states).
+func (w *dp54Work) compactSize(n int) int { return 3 * n }
+
+// compact copies r3..r5 of a full dense record into dst.
+func (w *dp54Work) compact(full, dst []float64) {
+	n := len(full) / 5
+	copy(dst, full[2*n:5*n])
+}
+
+// interpCompact is interp with r1 = y0 and r2 = y1 - y0 rebuilt from the
+// step's end states (the same operations as dense, so the same bits).
+func (w *dp54Work) interpCompact(y0, y1, c []float64, theta float64, dst []float64) {
+	n := len(dst)
+	y0, y1 = y0[:n], y1[:n]
+	r3, r4, r5 := c[:n], c[n:2*n], c[2*n:3*n]
+	t1 := 1 - theta
+	for i := range dst {
+		r2 := y1[i] - y0[i]
+		dst[i] = y0[i] + float64(theta*(r2+float64(t1*(r3[i]+float64(theta*(r4[i]+float64(t1*r5[i])))))))
+	}
 }
 
 func (w *dp54Work) interp(coef []float64, theta float64, dst []float64) {

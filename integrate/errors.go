@@ -49,12 +49,15 @@ func (e *StepError) Unwrap() error { return e.Err }
 // in the state) at time T in component Index.
 type FieldError struct {
 	T     float64 // time at which the value was produced
-	Index int     // component index
+	Index int     // component index; -1 when no single component is known
 	Value float64 // the offending value (NaN or ±Inf)
-	What  string  // "initial state", "derivative", "state"
+	What  string  // "initial state", "derivative", "state", "error estimate"
 }
 
 func (e *FieldError) Error() string {
+	if e.Index < 0 {
+		return fmt.Sprintf("%s is %v at t=%g", e.What, e.Value, e.T)
+	}
 	return fmt.Sprintf("%s component %d is %v at t=%g", e.What, e.Index, e.Value, e.T)
 }
 

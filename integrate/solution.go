@@ -52,7 +52,9 @@ type Solution struct {
 
 	// T holds the times of the initial point and of every accepted step;
 	// Y their states, row after row (Y[i*Dim:(i+1)*Dim] is the state at
-	// T[i]). Both are empty with Settings.DropSteps.
+	// T[i]). Both are empty with Settings.DropSteps. After a stopping
+	// crossing the last stored step is the whole step that contains it, so
+	// T's last entry may lie beyond End; At answers only up to End.
 	T []float64
 	Y []float64
 
@@ -65,8 +67,87 @@ type Solution struct {
 	Status Status
 
 	sc   scheme
-	coef []float64 // dense output per step, denseSize*Dim each
-	nd   int       // denseSize*Dim
+	cd   compactDense // sc, when it rebuilds part of its dense output from T, Y
+	coef chunks       // dense output per step (full, or compact when cd != nil)
+	// During a solve the times and states go to chunks (no copying as the
+	// solution grows); seal copies them into T and Y once at the end.
+	tBuf, yBuf chunks
+}
+
+// compactDense is implemented by schemes whose continuous extension
+// partly consists of the step's end states: a Solution then keeps only the
+// rest (for DormandPrince54, 3 of 5 vectors per step), and rebuilds the
+// same bits from T and Y.
+type compactDense interface {
+	compactSize(n int) int
+	compact(full, dst []float64)
+	interpCompact(y0, y1, c []float64, theta float64, dst []float64)
+}
+
+// chunks stores a growing sequence of fixed-size records in blocks that
+// never move once written. The first block grows by append up to a full
+// block, so short solves stay small.
+type chunks struct {
+	per   int // floats per record
+	block int // records per block
+	b     [][]float64
+	n     int // records stored
+}
+
+// maxBlockFloats bounds a block to 512 KiB.
+const maxBlockFloats = 1 << 16
+
+func newChunks(per int) chunks {
+	per = max(1, per)
+	return chunks{per: per, block: max(1, min(4096, maxBlockFloats/per))}
+}
+
+// add appends one record (len(v) == per).
+func (c *chunks) add(v []float64) {
+	if k := len(c.b); k == 0 || len(c.b[k-1]) == c.block*c.per {
+		var buf []float64
+		if k > 0 {
+			buf = make([]float64, 0, c.block*c.per) // later blocks: full size at once
+		}
+		c.b = append(c.b, buf)
+	}
+	last := &c.b[len(c.b)-1]
+	if l := len(*last); cap(*last)-l >= len(v) {
+		// A loop, not append or copy: records are short, and the
+		// runtime's memmove costs more than the copy itself.
+		dst := (*last)[l : l+len(v)]
+		for i, x := range v {
+			dst[i] = x
+		}
+		*last = (*last)[:l+len(v)]
+	} else {
+		*last = append(*last, v...)
+	}
+	c.n++
+}
+
+// at returns record k.
+func (c *chunks) at(k int) []float64 {
+	b := c.b[k/c.block]
+	o := (k % c.block) * c.per
+	return b[o : o+c.per : o+c.per]
+}
+
+// flat returns all records in one slice of exactly the right length.
+func (c *chunks) flat() []float64 {
+	out := make([]float64, 0, c.n*c.per)
+	for _, b := range c.b {
+		out = append(out, b...)
+	}
+	return out
+}
+
+// seal moves the stored steps into T and Y.
+func (s *Solution) seal() {
+	if s.tBuf.n > 0 {
+		s.T, s.Y = s.tBuf.flat(), s.yBuf.flat()
+		s.tBuf, s.yBuf = chunks{}, chunks{}
+	}
 }
 
 // State returns the state at T[i] in dst (grown if short).
@@ -123,6 +204,11 @@ func (s *Solution) At(t float64, dst []float64) []float64 {
 	}
 	dst = dst[:s.Dim]
 	theta := (t - s.T[k]) / (s.T[k+1] - s.T[k])
-	s.sc.interp(s.coef[k*s.nd:(k+1)*s.nd], theta, dst)
+	if s.cd != nil {
+		d := s.Dim
+		s.cd.interpCompact(s.Y[k*d:(k+1)*d], s.Y[(k+1)*d:(k+2)*d], s.coef.at(k), theta, dst)
+		return dst
+	}
+	s.sc.interp(s.coef.at(k), theta, dst)
 	return dst
 }

@@ -29,11 +29,20 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 	}
 	c := st.cfg
 	n := st.n
-	sol := &Solution{Method: m.Name(), Dim: n, T0: p.T0, End: p.T0, sc: st.sc, nd: st.sc.denseSize() * n}
+	sol := &Solution{Method: m.Name(), Dim: n, T0: p.T0, End: p.T0, sc: st.sc,
+		coef: newChunks(st.sc.denseSize() * n), tBuf: newChunks(1), yBuf: newChunks(n)}
+	var compactBuf []float64
+	if cd, ok := st.sc.(compactDense); ok {
+		sol.cd = cd
+		sol.coef = newChunks(cd.compactSize(n))
+		compactBuf = make([]float64, cd.compactSize(n))
+	}
+	defer sol.seal()
 	keep := !c.drop
+	var tbv [1]float64
 	if keep {
-		sol.T = append(sol.T, p.T0)
-		sol.Y = append(sol.Y, p.Y0...)
+		sol.tBuf.add([]float64{p.T0})
+		sol.yBuf.add(p.Y0)
 	}
 
 	// The sampling grid: t0 + i·Every, then t1; or the caller's Times.
@@ -62,17 +71,34 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 	var cf *crossFinder
 	if len(c.crossings) > 0 {
 		cf = newCrossFinder(c.crossings, p.T0, p.Y0)
+		if cf.err != nil {
+			return nil, cf.err
+		}
 	}
 	eval := func(theta float64, dst []float64) {
 		st.prepareDense()
 		st.sc.interp(st.coef, theta, dst)
 	}
 	for st.Next(ctx) {
-		ta, h, tb := st.tPrev, st.hLast, st.t
+		// The step as stored: theta = (t - ta)/(tb - ta) here, in
+		// Stepper.Dense and in Solution.At, so samples, crossings and At
+		// agree bit for bit. (tb - ta is exact, and differs from the h the
+		// method used only by the rounding of ta + h.)
+		ta, tb := st.tPrev, st.t
+		h := tb - ta
 		end := tb
 		stop := false
 		if cf != nil {
 			hits, stopHit := cf.scan(ta, h, st.y, eval)
+			if cf.err != nil {
+				// The solution ends at the start of this step, the last
+				// point whose crossings are all known.
+				sol.Stats = st.stats
+				sol.End = ta
+				sol.Final = append([]float64(nil), st.yPrev...)
+				sol.Status = Failed
+				return sol, cf.err
+			}
 			sol.Hits = append(sol.Hits, hits...)
 			if stopHit {
 				stop = true
@@ -98,10 +124,16 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 		if keep {
 			if st.sc.denseSize() > 0 {
 				st.prepareDense()
-				sol.coef = append(sol.coef, st.coef...)
+				if sol.cd != nil {
+					sol.cd.compact(st.coef, compactBuf)
+					sol.coef.add(compactBuf)
+				} else {
+					sol.coef.add(st.coef)
+				}
 			}
-			sol.T = append(sol.T, tb)
-			sol.Y = append(sol.Y, st.y...)
+			tbv[0] = tb
+			sol.tBuf.add(tbv[:])
+			sol.yBuf.add(st.y)
 		}
 		sol.End = end
 		if stop {
@@ -148,5 +180,5 @@ func (g *gridIter) at(i int) float64 {
 	if i == g.n-1 {
 		return g.t1
 	}
-	return g.t0 + float64(i)*g.dt
+	return g.t0 + float64(float64(i)*g.dt)
 }

@@ -36,10 +36,15 @@ type Stepper struct {
 	fPrev      []float64
 	coef       []float64 // dense output of the last accepted step
 	denseReady bool
-	wantDense  bool
-	logErrOld  float64
-	rejected   bool // the last attempt was rejected
-	stepIndex  int  // accepted steps, for fixed-step grids
+	tA, tB     *powTable   // x^(-alpha/2) and x^(beta/2), x = err²
+	sB         float64     // Safety·errold^Beta
+	sB0        float64     // Safety·(1e-4)^Beta, the start of sB
+	rejected   bool        // the last attempt was rejected
+	hTried     float64     // the step size of the last attempt
+	fixed      bool        // m.fixedStep() > 0, cached off the per-step path
+	fsal       bool        // sc.fsal(), cached
+	sq         sqAttempter // sc, when it offers the squared norm
+	stepIndex  int         // accepted steps, for fixed-step grids
 	stiffCount int
 	nonStiff   int
 	sinceTest  int
@@ -84,7 +89,9 @@ func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) 
 	if err != nil {
 		return nil, err
 	}
-	st := &Stepper{p: p, m: m, sc: sc, cfg: cfg, n: n, t0: p.T0, t1: t1, dir: math.Copysign(1, t1-p.T0)}
+	st := &Stepper{p: p, m: m, sc: sc, cfg: cfg, n: n, t0: p.T0, t1: t1, dir: math.Copysign(1, t1-p.T0),
+		fixed: m.fixedStep() > 0, fsal: sc.fsal()}
+	st.sq, _ = sc.(sqAttempter)
 	buf := make([]float64, 6*n+sc.denseSize()*n)
 	st.y, st.f0, st.y1, st.f1, st.yPrev, st.fPrev = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n], buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n]
 	st.coef = buf[6*n:]
@@ -96,7 +103,10 @@ func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) 
 	if i := firstNonFinite(st.f0); i >= 0 {
 		return nil, fmt.Errorf("integrate: %w", &FieldError{T: st.t, Index: i, Value: st.f0[i], What: "derivative"})
 	}
-	st.logErrOld = math.Log(1e-4)
+	st.tA = newPowTable(0.5 * cfg.alpha)           // err^(-alpha) = x^(-alpha/2)
+	st.tB = newPowTable(-0.5 * cfg.beta)           // errold^beta = x^(beta/2)
+	st.sB0 = float64(cfg.safety * st.tB.pow(1e-8)) // Hairer's FACOLD starts at 1e-4
+	st.sB = st.sB0
 	if hf := m.fixedStep(); hf > 0 {
 		if hf > math.Abs(t1-p.T0) {
 			hf = math.Abs(t1 - p.T0)
@@ -133,7 +143,7 @@ func (st *Stepper) initialStep(order int) float64 {
 	for i := range st.y {
 		st.y1[i] = st.y[i] + float64(st.dir*h0*st.f0[i])
 	}
-	st.p.F(st.t+st.dir*h0, st.y1, st.f1)
+	st.p.F(st.t+float64(st.dir*h0), st.y1, st.f1)
 	st.stats.Evaluations++
 	var d2 float64
 	for i := range st.y {
@@ -185,7 +195,9 @@ func (st *Stepper) Dense(t float64, dst []float64) []float64 {
 	if !st.started || st.hLast == 0 {
 		return nil
 	}
-	theta := (t - st.tPrev) / st.hLast
+	// theta maps the stored step [tPrev, t] onto [0, 1], as Solution.At
+	// does, so both give the same bits.
+	theta := (t - st.tPrev) / (st.t - st.tPrev)
 	if !(theta >= 0 && theta <= 1) {
 		return nil
 	}
@@ -213,23 +225,28 @@ func (st *Stepper) Next(ctx context.Context) bool {
 		return false
 	}
 	if ctx != nil {
-		if err := ctx.Err(); err != nil {
-			st.err = fmt.Errorf("integrate: canceled at t=%g: %w", st.t, err)
-			return false
+		// Watch ctx.Done (nil for a context that is never canceled): an
+		// atomic load, where ctx.Err may take a lock.
+		if done := ctx.Done(); done != nil {
+			select {
+			case <-done:
+				st.err = fmt.Errorf("integrate: canceled at t=%g: %w", st.t, ctx.Err())
+				return false
+			default:
+			}
 		}
 	}
-	if st.m.fixedStep() > 0 {
+	if st.fixed {
 		return st.nextFixed()
 	}
 	return st.nextAdaptive()
 }
 
 func (st *Stepper) accept(h float64, tNew float64) {
-	// Keep the start of the step for dense output, then advance.
-	copy(st.yPrev, st.y)
-	copy(st.fPrev, st.f0)
-	st.y, st.y1 = st.y1, st.y
-	st.f0, st.f1 = st.f1, st.f0
+	// Keep the start of the step for dense output, then advance: rotate
+	// the buffers (yPrev <- y <- y1 <- old yPrev) instead of copying.
+	st.yPrev, st.y, st.y1 = st.y, st.y1, st.yPrev
+	st.fPrev, st.f0, st.f1 = st.f0, st.f1, st.fPrev
 	st.tPrev = st.t
 	st.t = tNew
 	st.hLast = h
@@ -250,7 +267,9 @@ func (st *Stepper) nonFinite(tt float64) {
 	} else if i := firstNonFinite(st.f1); i >= 0 && st.sc.fsal() {
 		st.lastNonFin = &FieldError{T: tt, Index: i, Value: st.f1[i], What: "derivative"}
 	} else {
-		st.lastNonFin = &FieldError{T: tt, Index: 0, Value: math.NaN(), What: "error estimate"}
+		// An intermediate stage was non-finite but y1 and F(t+h, y1) are
+		// not: no single component to name.
+		st.lastNonFin = &FieldError{T: tt, Index: -1, Value: math.NaN(), What: "error estimate"}
 	}
 }
 
@@ -266,26 +285,64 @@ func (st *Stepper) nextAdaptive() bool {
 			h = st.dir * c.hmax
 		}
 		last := false
-		if (st.t+1.01*h-st.t1)*st.dir >= 0 {
+		if (st.t+float64(1.01*h)-st.t1)*st.dir >= 0 {
 			h = st.t1 - st.t
 			last = true
 		}
-		if math.Abs(h) < c.hmin || 0.1*math.Abs(h) <= math.Abs(st.t)*epsRound || h == 0 {
-			var cause error = ErrStepUnderflow
-			if st.lastNonFin != nil && st.rejected {
-				cause = fmt.Errorf("%w (last rejection: %v)", ErrStepUnderflow, st.lastNonFin)
-				st.err = &StepError{T: st.t, H: h, Err: st.lastNonFin}
-				return false
+		if math.Abs(h) < c.hmin && !last {
+			// Below MinStep: try MinStep itself, and give up only when a
+			// step of that size was rejected.
+			if st.rejected && math.Abs(st.hTried) <= c.hmin {
+				return st.underflow(h)
 			}
-			st.err = &StepError{T: st.t, H: h, Err: cause}
-			return false
+			h = st.dir * c.hmin
+			if (st.t+float64(1.01*h)-st.t1)*st.dir >= 0 {
+				h = st.t1 - st.t
+				last = true
+			}
 		}
-		err, ev := st.sc.attempt(st.t, h, st.y, st.f0, st.y1, st.f1, c.rtol, c.atol)
-		st.stats.Evaluations += ev
-		finite := !math.IsNaN(err) && !math.IsInf(err, 0)
-		if finite && err <= 1 && st.sc.fsal() {
-			if firstNonFinite(st.y1) >= 0 || firstNonFinite(st.f1) >= 0 {
+		if 0.1*math.Abs(h) <= math.Abs(st.t)*epsRound || h == 0 {
+			return st.underflow(h)
+		}
+		st.hTried = h
+		// The error test works on x = err²: the squared norm comes straight
+		// from the scheme when it offers it (no square root on the path from
+		// one step to the next). pA = err^(-Alpha).
+		var accepted, finite bool
+		var x, pA, sBNext float64
+		if st.sq != nil {
+			e2, ev := st.sq.attemptSq(st.t, h, st.y, st.f0, st.y1, st.f1, c.rtol, c.atol)
+			st.stats.Evaluations += ev
+			finite = e2 <= math.MaxFloat64 // false for NaN and +Inf
+			accepted = e2 <= 1
+			if e2 >= 1e-8 && e2 < 0x1p65 {
+				// powTable.pow2, written out: this is the critical path.
+				x = e2
+				ta, tb := st.tA, st.tB
+				b := math.Float64bits(x)
+				k := int(b>>52&0x7ff) - 1023 - ptKMin
+				j := int(b>>(52-5)) & (ptJ - 1)
+				m := math.Float64frombits(b&(1<<52-1) | 1023<<52)
+				r := float64(m*ta.inv[j]) - 1
+				q := 1 + float64(r*(float64(ta.c2*r)-ta.a))
+				qb := 1 + float64(r*(float64(tb.c2*r)-tb.a))
+				pA = float64(float64(ta.k[k]*ta.p[j]) * q)
+				sBNext = float64(c.safety * float64(float64(tb.k[k]*tb.p[j])*qb))
+			} else if finite {
+				x = max(e2, errSqFloor)
+				pA, sBNext = st.errPow(x, 0)
+			}
+		} else {
+			err, ev := st.sc.attempt(st.t, h, st.y, st.f0, st.y1, st.f1, c.rtol, c.atol)
+			st.stats.Evaluations += ev
+			finite = err <= math.MaxFloat64
+			accepted = err <= 1
+			if finite && accepted && st.fsal && (firstNonFinite(st.y1) >= 0 || firstNonFinite(st.f1) >= 0) {
 				finite = false
+			}
+			if finite {
+				x = max(float64(err*err), errSqFloor) // +Inf for err > 1e154: errPow then uses err
+				pA, sBNext = st.errPow(x, err)
 			}
 		}
 		if !finite {
@@ -295,16 +352,19 @@ func (st *Stepper) nextAdaptive() bool {
 			st.h = 0.25 * h
 			continue
 		}
-		if err > 1 {
+		if !accepted {
 			// Rejected: shrink by Safety·err^(-Alpha), at least MinFactor.
-			fac := math.Max(c.facMin, c.safety*math.Exp(-c.alpha*math.Log(err)))
+			fac := float64(c.safety * pA)
+			if fac < c.facMin {
+				fac = c.facMin
+			}
 			st.stats.Rejected++
 			st.rejected = true
 			st.lastNonFin = nil
 			st.h = h * fac
 			continue
 		}
-		if !st.sc.fsal() {
+		if !st.fsal {
 			st.p.F(st.t+h, st.y1, st.f1)
 			st.stats.Evaluations++
 			if firstNonFinite(st.y1) >= 0 || firstNonFinite(st.f1) >= 0 {
@@ -315,15 +375,32 @@ func (st *Stepper) nextAdaptive() bool {
 				continue
 			}
 		}
-		// Accepted: PI control, h_new = h·Safety·err^(-Alpha)·errold^(Beta).
-		logErr := math.Log(math.Max(err, 1e-10))
-		fac := c.safety * math.Exp(-c.alpha*logErr+c.beta*st.logErrOld)
-		fac = math.Min(c.facMax, math.Max(c.facMin, fac))
-		if st.rejected {
-			fac = math.Min(fac, 1)
+		// Accepted: PI control, h_new = h·Safety·err^(-Alpha)·errold^Beta,
+		// with sB = Safety·errold^Beta kept from the previous step, so that
+		// only err^(-Alpha) (a table look-up and a quadratic, see powTable)
+		// lies between this step's error and the next step.
+		//
+		// A dead band (keep h when 0.5 <= err <= 1 and skip the power, as
+		// Boost.Odeint and GSL do) was measured on Lorenz to t = 100 against
+		// the error at t = 20: with polynomial log2/exp2 it saved 5% at tol
+		// 1e-12, broke even at 1e-10 and lost 4% at 1e-8 (more rejections,
+		// larger errors); with the table power below it saves nothing (same
+		// time, 10-20% larger errors at 1e-8 and 1e-10). It is not used: the
+		// controller stays that of Hairer & Wanner's DOPRI5.
+		fac := float64(pA * st.sB)
+		if fac > c.facMax {
+			fac = c.facMax
 		}
-		st.logErrOld = math.Log(math.Max(err, 1e-4))
-		st.stiffTest(h)
+		if fac < c.facMin {
+			fac = c.facMin
+		}
+		if st.rejected && fac > 1 {
+			fac = 1
+		}
+		st.sB = sBNext // errold = max(err, 1e-4), as Hairer's FACOLD
+		if st.cfg.stiffEvery >= 0 && !st.stats.Stiff {
+			st.stiffTest(h)
+		}
 		tNew := st.t + h
 		if last {
 			tNew = st.t1
@@ -337,6 +414,18 @@ func (st *Stepper) nextAdaptive() bool {
 		}
 		return true
 	}
+}
+
+// underflow ends stepping with ErrStepUnderflow at step size h; when the
+// rejections that shrank the step were non-finite values, the error also
+// wraps the FieldError that says where and which component.
+func (st *Stepper) underflow(h float64) bool {
+	var cause error = ErrStepUnderflow
+	if st.lastNonFin != nil && st.rejected {
+		cause = fmt.Errorf("%w: %w", ErrStepUnderflow, st.lastNonFin)
+	}
+	st.err = &StepError{T: st.t, H: h, Err: cause}
+	return false
 }
 
 // stiffTest runs Hairer's stiffness test on the step just attempted: every
@@ -378,7 +467,7 @@ func (st *Stepper) nextFixed() bool {
 		return false
 	}
 	hf := st.h
-	tNew := st.t0 + float64(st.stepIndex+1)*hf
+	tNew := st.t0 + float64(float64(st.stepIndex+1)*hf)
 	last := false
 	if (tNew-st.t1)*st.dir >= -1e-12*math.Abs(hf) {
 		tNew = st.t1
@@ -406,5 +495,193 @@ func (st *Stepper) nextFixed() bool {
 	return true
 }
 
+// errSqFloor bounds err² from below (err = 1e-10): an exact step (err = 0)
+// must still give a finite factor, clamped to MaxFactor.
+const errSqFloor = 1e-20
+
+// errPow returns err^(-Alpha) and Safety·max(err, 1e-4)^Beta (the sB of
+// the next step, should this one be accepted) from x = err² (x >=
+// errSqFloor). Past the table (x >= 2^65, a rejected step with err >
+// 2^32.5) it uses log2Ctl and exp2Ctl, of err when given (x may have
+// overflowed), else of x.
+func (st *Stepper) errPow(x, err float64) (pA, sB float64) {
+	if x >= 1e-8 && x < 0x1p65 {
+		pA, pB := st.tA.pow2(st.tB, x)
+		return pA, float64(st.cfg.safety * pB)
+	}
+	if x < 1e-8 {
+		return st.tA.pow(x), st.sB0
+	}
+	if err > 0 {
+		return exp2Ctl(-float64(st.cfg.alpha * log2Ctl(err))), st.sB0
+	}
+	return exp2Ctl(-float64(float64(0.5*st.cfg.alpha) * log2Ctl(x))), st.sB0
+}
+
+// powTable evaluates x^(-a) for x in [2^ptKMin, 2^(ptKMax+1)), the
+// step-size controller's power of the squared error norm, with a table
+// look-up on the exponent and on the leading mantissa bits and a quadratic
+// for the rest. Writing x = 2^k·c_j·(1+r), with c_j = 1 + (j+1/2)/32 the
+// centre of the mantissa interval j and |r| < 1/65,
+//
+//	x^(-a) = 2^(-a·k) · c_j^(-a) · (1+r)^(-a),
+//	(1+r)^(-a) ≈ 1 - a·r + a(a+1)/2·r²,
+//
+// whose truncation error |a(a+1)(a+2)/6|·|r|³ is below 1.2e-7 for the
+// default Alpha = 0.17 (a = 0.085) and below 3.7e-6 for |a| <= 1 (checked
+// against math.Pow in TestPowTable). On a cheap vector field (Lorenz, about
+// 80 ns per step) this power sits on the critical path from one step to the
+// next: the library's math.Log and math.Exp took a third of a step; this
+// takes a few multiplications. The tables are filled at set-up with
+// log2Prec and exp2Prec (IEEE arithmetic only), so the factor has the same
+// bits on every architecture.
+//
+// References:
+//
+//	J.-M. Muller, Elementary Functions: Algorithms and Implementation, 3rd
+//	  ed., Birkhäuser 2016 (table-based range reduction).
+type powTable struct {
+	a, c2  float64                      // a and a(a+1)/2
+	k      [ptKMax - ptKMin + 1]float64 // 2^(-a·k)
+	inv, p [ptJ]float64                 // 1/c_j and c_j^(-a)
+}
+
+const (
+	ptKMin = -67 // 2^-67 < 1e-20 = errSqFloor
+	ptKMax = 64
+	ptJ    = 32 // mantissa intervals (5 leading bits)
+)
+
+func newPowTable(a float64) *powTable {
+	t := &powTable{a: a, c2: float64(0.5 * float64(a*(a+1)))}
+	for i := range t.k {
+		t.k[i] = exp2Prec(-float64(a * float64(i+ptKMin)))
+	}
+	for j := range t.inv {
+		c := 1 + float64((float64(j)+0.5)/ptJ)
+		t.inv[j] = 1 / c
+		t.p[j] = exp2Prec(-float64(a * log2Prec(c)))
+	}
+	return t
+}
+
+// pow returns x^(-a) for a normal x in [2^ptKMin, 2^(ptKMax+1)).
+func (t *powTable) pow(x float64) float64 {
+	b := math.Float64bits(x)
+	k := int(b>>52&0x7ff) - 1023 - ptKMin
+	j := int(b>>(52-5)) & (ptJ - 1)
+	m := math.Float64frombits(b&(1<<52-1) | 1023<<52) // in [1, 2)
+	r := float64(m*t.inv[j]) - 1
+	q := 1 + float64(r*(float64(t.c2*r)-t.a))
+	return float64(float64(t.k[k]*t.p[j]) * q)
+}
+
+// pow2 returns x^(-t.a) and x^(-u.a) for the same x, sharing the range
+// reduction (both tables have the same layout and mantissa centres).
+func (t *powTable) pow2(u *powTable, x float64) (float64, float64) {
+	b := math.Float64bits(x)
+	k := int(b>>52&0x7ff) - 1023 - ptKMin
+	j := int(b>>(52-5)) & (ptJ - 1)
+	m := math.Float64frombits(b&(1<<52-1) | 1023<<52)
+	r := float64(m*t.inv[j]) - 1
+	q := 1 + float64(r*(float64(t.c2*r)-t.a))
+	qu := 1 + float64(r*(float64(u.c2*r)-u.a))
+	return float64(float64(t.k[k]*t.p[j]) * q), float64(float64(u.k[k]*u.p[j]) * qu)
+}
+
+// log2Prec returns log2(m) for m in [1, 2] to about 1e-16, from
+// ln m = 2·atanh(s), s = (m-1)/(m+1) <= 1/3, summed to s^31. For set-up only.
+func log2Prec(m float64) float64 {
+	s := (m - 1) / (m + 1)
+	z := float64(s * s)
+	var p float64
+	for i := 31; i >= 1; i -= 2 {
+		p = float64(p*z) + 1/float64(i)
+	}
+	return float64(float64(2*math.Log2E*s) * p)
+}
+
+// exp2Prec returns 2^x for |x| <= 1000 to about 1e-16: 2^k by the exponent
+// field and e^u, |u| <= ln(2)/2, by its Taylor series to u^20. For set-up only.
+func exp2Prec(x float64) float64 {
+	const shift = 0x1.8p52
+	kf := (x + shift) - shift
+	u := float64((x - kf) * math.Ln2)
+	p := 1.0
+	for i := 20; i >= 1; i-- {
+		p = 1 + float64(float64(p*u)/float64(i))
+	}
+	return p * math.Float64frombits(uint64(int(kf)+1023)<<52)
+}
+
+// sqAttempter is implemented by schemes whose trial step can return the
+// squared error norm err² (NaN when y1 or f1 holds a NaN or Inf): the
+// stepper then needs no square root and no scan for non-finite values per
+// step. attempt must return the square root of the same value.
+type sqAttempter interface {
+	attemptSq(t, h float64, y, f0, y1, f1, rtol, atol []float64) (errSq float64, evals int)
+}
+
 // epsRound is the unit roundoff used in the step-size underflow test.
 const epsRound = 2.3e-16
+
+// log2Ctl and exp2Ctl evaluate the controller's power where powTable's
+// range ends (a rejected step with err > 2^32.5). They reduce the argument
+// with bit manipulation and evaluate short polynomials (Estrin's scheme);
+// products are rounded explicitly (float64(x*y)), so the result is the same
+// on every architecture. Their errors, absolute below 2e-6 for log2Ctl on
+// [1e-20, 1e300] and relative below 3.5e-6 for exp2Ctl on [-200, 200]
+// (checked against math.Log2 and math.Exp2 in TestControllerExponents), put
+// the step-size factor within 4e-6 (relative) of Safety·err^(-Alpha): far
+// below what a heuristic factor with Safety = 0.9 needs. (They were the
+// controller's main path before powTable, and replaced math.Log and
+// math.Exp, which took about a third of a Lorenz step.)
+//
+// References:
+//
+//	J.-M. Muller, Elementary Functions: Algorithms and Implementation, 3rd
+//	  ed., Birkhäuser 2016 (range reduction x = 2^k·m; the series
+//	  ln m = 2·atanh((m-1)/(m+1)); 2^f = e^(f·ln 2) on |f| <= 1/2;
+//	  Estrin's scheme).
+
+// log2Ctl returns log2(x) for a positive, normal, finite x.
+func log2Ctl(x float64) float64 {
+	b := math.Float64bits(x)
+	k := int(b>>52&0x7ff) - 1023
+	m := math.Float64frombits(b&(1<<52-1) | 1023<<52) // x = 2^k·m, m in [1, 2)
+	if m > math.Sqrt2 {
+		m = 0.5 * m
+		k++
+	}
+	// m in [1/√2, √2]: s = (m-1)/(m+1) has |s| <= 0.1716, z = s² <= 0.0295,
+	// and ln m = 2s(1 + z/3 + z²/5) leaves a relative error below
+	// z³/(7(1-z)) < 3.7e-6, so log2 m is off by less than 1.9e-6.
+	s := (m - 1) / (m + 1)
+	z := float64(s * s)
+	p := (1 + float64(z*(1.0/3))) + float64(float64(z*z)*(1.0/5))
+	return float64(k) + float64(float64(2*math.Log2E*s)*p)
+}
+
+// exp2Ctl returns 2^x for x in [-1000, 1000]; below it returns 0.
+func exp2Ctl(x float64) float64 {
+	if x < -1000 {
+		return 0
+	}
+	if x > 1000 {
+		return math.Inf(1)
+	}
+	// Round to the nearest integer k (adding and subtracting 1.5·2^52 is
+	// exact IEEE rounding for |x| < 2^51); f = x - k is in [-1/2, 1/2].
+	const shift = 0x1.8p52
+	kf := (x + shift) - shift
+	f := x - kf
+	// 2^f = e^u, u = f·ln 2 in [-0.3466, 0.3466]; the Taylor polynomial of
+	// degree 5 leaves a relative error below e^|u|·u⁶/6! < 3.4e-6.
+	u := float64(f * math.Ln2)
+	u2 := float64(u * u)
+	lo := (1 + u) + float64(u2*(0.5+float64(u*(1.0/6))))
+	hi := (1.0 / 24) + float64(u*(1.0/120))
+	p := lo + float64(float64(u2*u2)*hi)
+	// 2^k is a normal number for |k| <= 1000.
+	return p * math.Float64frombits(uint64(int(kf)+1023)<<52)
+}

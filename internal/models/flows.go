@@ -145,8 +145,8 @@ func init() {
 			return func(_ float64, y []float64, j *mat.Dense) {
 				j.Set(0, 0, 0)
 				j.Set(0, 1, 1)
-				j.Set(1, 0, -2*m*y[0]*y[1]-1)
-				j.Set(1, 1, m*(1-y[0]*y[0]))
+				j.Set(1, 0, float64(-2*m*y[0]*y[1])-1)
+				j.Set(1, 1, m*(1-float64(y[0]*y[0])))
 			}
 		},
 	})
@@ -179,7 +179,7 @@ func init() {
 					dst[1] = q[1] / r
 				},
 				H: func(q, p []float64) float64 {
-					return 0.5*(p[0]*p[0]+p[1]*p[1]) - 1/math.Hypot(q[0], q[1])
+					return float64(0.5*(float64(p[0]*p[0])+float64(p[1]*p[1]))) - 1/math.Hypot(q[0], q[1])
 				},
 			}
 		},
@@ -220,12 +220,12 @@ func init() {
 			return Parts{
 				DT: func(p, dst []float64) { copy(dst, p) },
 				DV: func(q, dst []float64) {
-					dst[0] = q[0] + 2*q[0]*q[1]
-					dst[1] = q[1] + q[0]*q[0] - q[1]*q[1]
+					dst[0] = q[0] + float64(2*q[0]*q[1])
+					dst[1] = q[1] + float64(q[0]*q[0]) - float64(q[1]*q[1])
 				},
 				H: func(q, p []float64) float64 {
 					x, y := q[0], q[1]
-					return 0.5*(p[0]*p[0]+p[1]*p[1]+x*x+y*y) + x*x*y - y*y*y/3
+					return float64(0.5*(float64(p[0]*p[0])+float64(p[1]*p[1])+float64(x*x)+float64(y*y))) + float64(x*x*y) - float64(y*y*y)/3
 				},
 			}
 		},
