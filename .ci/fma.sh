@@ -8,13 +8,13 @@
 # float64(x*y) + z; an FMA on purpose is written math.FMA(x, y, z) and is
 # allowed here (the source line is checked for "math.FMA").
 #
-# Usage: .ci/fma.sh [package ...]   (default: ./integrate ./internal/models)
+# Usage: .ci/fma.sh [package ...]   (default: every numerical package)
 # Needs only Go: the arm64 build is a cross-compilation.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 pkgs=("$@")
 if [ ${#pkgs[@]} -eq 0 ]; then
-  pkgs=(./integrate ./internal/models)
+  pkgs=(./integrate ./internal/models ./internal/expr ./internal/dd ./lyap .)
 fi
 status=0
 for pkg in "${pkgs[@]}"; do

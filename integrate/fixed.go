@@ -85,7 +85,7 @@ func (w *rk4Work) attempt(t, h float64, y, k1, y1, _, _, _ []float64) (float64, 
 	n := len(y)
 	y, k1, y1 = y[:n], k1[:n], y1[:n]
 	k2, k3, k4, ys := w.k2[:n], w.k3[:n], w.k4[:n], w.ys[:n]
-	h2 := 0.5 * h
+	h2 := float64(0.5 * h)
 	for i := range ys {
 		ys[i] = y[i] + float64(h2*k1[i])
 	}

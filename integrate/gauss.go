@@ -361,7 +361,7 @@ func (w *gaussWork) newton(t, h float64, y, f0 []float64) (int, error) {
 	} else {
 		copy(w.ys, y)
 		for j := 0; j < n; j++ {
-			d := math.Sqrt(0x1p-52) * math.Max(math.Abs(y[j]), 1)
+			d := float64(math.Sqrt(0x1p-52) * math.Max(math.Abs(y[j]), 1))
 			w.ys[j] = y[j] + d
 			d = w.ys[j] - y[j] // exactly representable step
 			w.f(t, w.ys, w.fd0)

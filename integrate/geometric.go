@@ -316,7 +316,7 @@ func DistanceScale(alpha float64) StepScale {
 			for _, v := range y[:n] {
 				r2 += float64(v * v)
 			}
-			c := alpha * math.Pow(r2, alpha/2-1)
+			c := alpha * math.Pow(r2, float64(alpha/2)-1)
 			for i := 0; i < n; i++ {
 				dst[i] = float64(c * y[i])
 			}
@@ -430,7 +430,8 @@ func SolveReversible(ctx context.Context, p Problem, t1 float64, family func(h f
 	buf := make([]float64, 6*n)
 	y, y1, f, grad, f0, f1 := buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n], buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n]
 	copy(y, p.Y0)
-	sol := &Solution{Method: m.Name() + " (reversible adaptive)", Dim: n, T0: p.T0, End: p.T0, sc: sc, nd: 4 * n}
+	sol := &Solution{Method: m.Name() + " (reversible adaptive)", Dim: n, T0: p.T0, End: p.T0, sc: sc, coef: newChunks(sc.denseSize() * n)}
+	denseBuf := make([]float64, sc.denseSize()*n)
 	keep := !s.DropSteps
 	if keep {
 		sol.T = append(sol.T, p.T0)
@@ -510,9 +511,8 @@ func SolveReversible(ctx context.Context, p Problem, t1 float64, family func(h f
 		if keep {
 			p.F(tNew, y1, f1)
 			sol.Stats.Evaluations++
-			off := len(sol.coef)
-			sol.coef = append(sol.coef, make([]float64, 4*n)...)
-			sc.dense(t, h, y, f0, y1, f1, sol.coef[off:])
+			sc.dense(t, h, y, f0, y1, f1, denseBuf)
+			sol.coef.add(denseBuf)
 			sol.T = append(sol.T, tNew)
 			sol.Y = append(sol.Y, y1...)
 			f0, f1 = f1, f0

@@ -293,7 +293,23 @@ func (w rounded) newScheme(p *Problem, n int) (scheme, error) {
 		return nil, err
 	}
 	rs.sc = in
+	if sq, ok := in.(sqAttempter); ok {
+		// Keep the inner method's squared-norm path, so that 53-bit
+		// rounding reproduces the unwrapped method bit for bit.
+		return &roundedSqScheme{roundedScheme: rs, sq: sq}, nil
+	}
 	return rs, nil
+}
+
+// roundedSqScheme is a roundedScheme over a scheme that offers attemptSq.
+type roundedSqScheme struct {
+	*roundedScheme
+	sq sqAttempter
+}
+
+func (s *roundedSqScheme) attemptSq(t, h float64, y, f0, y1, f1, rtol, atol []float64) (float64, int) {
+	e2, ev := s.sq.attemptSq(t, h, y, f0, y1, f1, rtol, atol)
+	return e2, ev + s.roundCandidate(t, h, y1, f1, e2 <= 1)
 }
 
 type roundedScheme struct {
@@ -319,16 +335,23 @@ func (s *roundedScheme) stageF(t float64, y, dydt []float64) {
 
 func (s *roundedScheme) attempt(t, h float64, y, f0, y1, f1, rtol, atol []float64) (float64, int) {
 	err, ev := s.sc.attempt(t, h, y, f0, y1, f1, rtol, atol)
+	return err, ev + s.roundCandidate(t, h, y1, f1, err <= 1)
+}
+
+// roundCandidate rounds the candidate state and, for a method that hands
+// its last stage on, re-evaluates F at the rounded state. Only an accepted
+// candidate's derivative is used; rejected ones (err > 1 or NaN) are
+// discarded by the stepper. Fixed-step methods accept always. It returns
+// the evaluations made.
+func (s *roundedScheme) roundCandidate(t, h float64, y1, f1 []float64, accepted bool) int {
 	for i, v := range y1 {
 		y1[i] = s.r.Round(v)
 	}
-	// Only an accepted candidate's derivative is used; rejected ones (err > 1
-	// or NaN) are discarded by the stepper. Fixed-step methods accept always.
-	if s.sc.fsal() && (s.fixed || err <= 1) {
+	if s.sc.fsal() && (s.fixed || accepted) {
 		s.f(t+h, y1, f1)
-		ev++
+		return 1
 	}
-	return err, ev
+	return 0
 }
 
 func (s *roundedScheme) fsal() bool { return s.sc.fsal() }

@@ -28,14 +28,14 @@ func Example() {
 	}
 	l1, se1 := sp.Exponents[0], sp.StdErr[0]
 	sum := sp.Exponents[0] + sp.Exponents[1] + sp.Exponents[2]
-	fmt.Printf("largest exponent %.2g %s, standard error below 0.01: %v\n", l1, sp.Units, se1 < 0.01)
+	fmt.Printf("largest exponent %.1f %s, standard error below 0.01: %v\n", l1, sp.Units, se1 < 0.01)
 	fmt.Printf("published 0.9056 within 3 standard errors: %v\n", math.Abs(l1-0.9056) < 3*se1)
 	fmt.Printf("smallest exponent %.3g\n", sp.Exponents[2])
 	fmt.Printf("sum %.3g (the divergence is -(10+1+8/3))\n", sum)
 	fmt.Printf("Kaplan–Yorke dimension %.3g\n", lyap.KaplanYorke(sp.Exponents))
 	fmt.Printf("horizon from 1e-3 to 1: %.2g time units\n", lyap.Horizon(l1, 1e-3, 1))
 	// Output:
-	// largest exponent 0.91 1/time, standard error below 0.01: true
+	// largest exponent 0.9 1/time, standard error below 0.01: true
 	// published 0.9056 within 3 standard errors: true
 	// smallest exponent -14.6
 	// sum -13.7 (the divergence is -(10+1+8/3))

@@ -188,16 +188,46 @@ func TestFixedStepNeedsStep(t *testing.T) {
 	}
 }
 
-// stepCtx is a context whose Err turns to Canceled after n calls: integrate
-// checks it once per accepted step, so this cancels mid-run at a fixed step,
-// as Ctrl-C does at an arbitrary one.
+// stepCtx is a context canceled after n checks: integrate watches Done once
+// per accepted step (others may call Err), so this cancels mid-run at a fixed
+// step, as Ctrl-C does at an arbitrary one.
 type stepCtx struct {
 	context.Context
-	n int
+	n    int
+	done chan struct{}
+}
+
+// tick counts one check and reports whether the context is now canceled.
+func (c *stepCtx) tick() bool {
+	if c.done == nil {
+		c.done = make(chan struct{})
+	}
+	select {
+	case <-c.done:
+		return true
+	default:
+	}
+	if c.n--; c.n < 0 {
+		close(c.done)
+		return true
+	}
+	return false
+}
+
+func (c *stepCtx) Done() <-chan struct{} {
+	c.tick()
+	return c.done
 }
 
 func (c *stepCtx) Err() error {
-	if c.n--; c.n < 0 {
+	if c.done != nil {
+		select {
+		case <-c.done:
+			return context.Canceled
+		default:
+		}
+	}
+	if c.tick() {
 		return context.Canceled
 	}
 	return nil

@@ -88,7 +88,7 @@ func fastTwoSum(a, b float64) (s, e float64) {
 
 // twoProd returns p, e with p = fl(a*b) and p + e = a*b exactly.
 func twoProd(a, b float64) (p, e float64) {
-	p = a * b
+	p = float64(a * b) // a conversion: p must not be fused into a later add
 	e = math.FMA(a, b, -p)
 	return
 }

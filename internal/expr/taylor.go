@@ -105,7 +105,7 @@ func conv(a, b []float64, k, lo, hi int) float64 {
 func wconv(a, b []float64, k int) float64 {
 	s := 0.0
 	for j := 1; j <= k; j++ {
-		s += float64(float64(j)*a[j]) * b[k-j]
+		s += float64(float64(float64(j)*a[j]) * b[k-j])
 	}
 	return s
 }
@@ -199,7 +199,7 @@ func (t *Taylor) order(k int) {
 				} else {
 					v[0] = math.Tanh(u[0])
 				}
-				q[0] = 1 + sg*float64(v[0]*v[0])
+				q[0] = 1 + float64(sg*float64(v[0]*v[0]))
 				break
 			}
 			v[k] = wconv(u, q, k) / fk
@@ -216,9 +216,9 @@ func (t *Taylor) order(k int) {
 			// Σ_{j=0..k-1} q_j (k-j) v_{k-j} = k u_k, solved for v_k.
 			s := 0.0
 			for j := 1; j <= k-1; j++ {
-				s += float64(q[j]*float64(k-j)) * v[k-j]
+				s += float64(float64(q[j]*float64(k-j)) * v[k-j])
 			}
-			v[k] = (fk*u[k] - s) / (fk * q[0])
+			v[k] = (float64(fk*u[k]) - s) / (fk * q[0])
 		case OpAtan2:
 			// v = atan2(u, w): (u²+w²)·v' = w·u' - u·w'; aux holds u²+w².
 			q := t.aux[i]
@@ -235,7 +235,7 @@ func (t *Taylor) order(k int) {
 			}
 			s := 0.0
 			for j := 1; j <= k-1; j++ {
-				s += float64(q[j]*float64(k-j)) * v[k-j]
+				s += float64(float64(q[j]*float64(k-j)) * v[k-j])
 			}
 			v[k] = (g - s) / (fk * q[0])
 		case OpAbs:
@@ -266,7 +266,7 @@ func (t *Taylor) order(k int) {
 func wconvPart(a, b []float64, k int) float64 {
 	s := 0.0
 	for j := 1; j < k; j++ {
-		s += float64(float64(j)*a[j]) * b[k-j]
+		s += float64(float64(float64(j)*a[j]) * b[k-j])
 	}
 	return s
 }
