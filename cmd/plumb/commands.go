@@ -37,6 +37,7 @@ var commands []*command
 
 func init() {
 	commands = []*command{
+		trustCmd,
 		solveCmd,
 		modelsCmd,
 		helpCmd,
