@@ -38,6 +38,7 @@ var commands []*command
 func init() {
 	commands = []*command{
 		trustCmd,
+		spectrumCmd,
 		solveCmd,
 		modelsCmd,
 		helpCmd,
