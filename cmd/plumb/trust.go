@@ -269,6 +269,11 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		}
 		return fmt.Errorf("the audit of %s could not start: %w", sys.Name, err)
 	}
+	if err != nil && f.relative && errors.Is(err, integrate.ErrSettings) && len(rep.Rungs) == 0 {
+		// Found only once the reference run has been made: a run without
+		// spread (a fixed point) gives no size for a relative tolerance.
+		return usagef("--relative: %v; give --tol in state units instead", err)
+	}
 	restartAt := 0.0
 	for _, r := range ladder.Rungs {
 		if r.Kind == integrate.KindRestart {
