@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
+	"errors"
 	"io"
 	"math"
 	"os"
@@ -374,4 +375,40 @@ func TestTrustPeriodicModel(t *testing.T) {
 			t.Errorf("CLI curve equals the SDK's with periods=%v: %v", wrapped, same)
 		}
 	}
+}
+
+// FuzzRungsFlag: --rungs never panics; a refused list is a usage error
+// naming --rungs, an accepted one names known groups once each, gives a
+// ladder with at least one rung, and reads back from its own echo.
+func FuzzRungsFlag(f *testing.F) {
+	for _, s := range []string{"tol,method,precision,restart", "restart", "tol,,method", " tol , precision ", "", "reference", "ref,tol", "tol,tol", "stepsize", ",", "TOL"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		cl := &call{sh: &shared{given: map[string]bool{}}}
+		fl := &trustFlags{horizon: 50, rungs: s, restartPlaces: trustRestartPlaces}
+		l, names, err := fl.ladder(cl, 0)
+		if err != nil {
+			var ue *usageError
+			if !errors.As(err, &ue) || !strings.Contains(ue.msg, "--rungs") {
+				t.Fatalf("--rungs %q: %v; want a usage error naming --rungs", s, err)
+			}
+			return
+		}
+		if len(l.Rungs) == 0 || len(names) == 0 {
+			t.Fatalf("--rungs %q accepted with %d rungs", s, len(l.Rungs))
+		}
+		seen := map[string]bool{}
+		for _, n := range names {
+			if seen[n] || !strings.Contains(","+strings.Join(rungGroupNames(), ",")+",", ","+n+",") {
+				t.Fatalf("--rungs %q gave names %v", s, names)
+			}
+			seen[n] = true
+		}
+		fl.rungs = strings.Join(names, ",")
+		l2, names2, err := fl.ladder(cl, 0)
+		if err != nil || strings.Join(names2, ",") != fl.rungs || len(l2.Rungs) != len(l.Rungs) {
+			t.Errorf("echo %q of --rungs %q does not read back: %v", fl.rungs, s, err)
+		}
+	})
 }
