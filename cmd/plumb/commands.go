@@ -37,6 +37,8 @@ var commands []*command
 
 func init() {
 	commands = []*command{
+		trustCmd,
+		spectrumCmd,
 		solveCmd,
 		modelsCmd,
 		helpCmd,

@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -26,8 +27,11 @@ type lineChart struct {
 	Title, XLabel, YLabel string
 	// LogY draws the y axis on a log scale; points with y <= 0 cannot be
 	// drawn there and are left out.
-	LogY   bool
-	Series []series
+	LogY bool
+	// LegendBottom puts the legend in the lower right corner instead of
+	// the upper right (divergence curves leave that corner empty).
+	LegendBottom bool
+	Series       []series
 	// Width and Height of the picture; zero means 16 cm by 10 cm.
 	Width, Height vg.Length
 }
@@ -72,10 +76,13 @@ func (c *lineChart) build() (*plot.Plot, error) {
 	p.Title.Text = c.Title
 	p.X.Label.Text = c.XLabel
 	p.Y.Label.Text = c.YLabel
-	p.Legend.Top = true
+	p.Legend.Top = !c.LegendBottom
+	if len(c.Series) > 6 {
+		p.Legend.TextStyle.Font.Size = vg.Points(7)
+	}
 	if c.LogY {
 		p.Y.Scale = plot.LogScale{}
-		p.Y.Tick.Marker = plot.LogTicks{Prec: -1}
+		p.Y.Tick.Marker = decadeTicks{}
 	}
 	p.Add(plotter.NewGrid())
 	drawn := 0
@@ -103,6 +110,23 @@ func (c *lineChart) build() (*plot.Plot, error) {
 		return nil, errNothingToDraw
 	}
 	return p, nil
+}
+
+// decadeTicks marks a log axis at the powers of ten, labelled "1e-06",
+// without the rounding noise ("9.999999999999998e-07") that labels made
+// from computed tick values carry.
+type decadeTicks struct{}
+
+// Ticks returns plot.LogTicks' ticks with the major ones relabelled.
+func (decadeTicks) Ticks(min, max float64) []plot.Tick {
+	ticks := plot.LogTicks{Prec: -1}.Ticks(min, max)
+	for i, t := range ticks {
+		if t.Label == "" || !(t.Value > 0) {
+			continue
+		}
+		ticks[i].Label = strconv.FormatFloat(math.Pow10(int(math.Round(math.Log10(t.Value)))), 'g', -1, 64)
+	}
+	return ticks
 }
 
 // render builds the chart and its picture in format ("svg" or "png").

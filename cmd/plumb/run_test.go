@@ -171,7 +171,7 @@ func TestBadFlags(t *testing.T) {
 func TestFixedStepNeedsStep(t *testing.T) {
 	saved := methods
 	defer func() { methods = saved }()
-	methods = append(append([]method(nil), saved...), method{"fixed-probe", "test entry", true, saved[0].make})
+	methods = append(append([]method(nil), saved...), method{"fixed-probe", "test entry", true, saved[0].make, false})
 	for _, args := range [][]string{
 		{"solve", "--method", "fixed-probe"},
 		{"solve", "--method", "fixed-probe", "--step", "0"},

@@ -234,6 +234,9 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
+	if err := m.fits(sys); err != nil {
+		return err
+	}
 	if f.t1 == f.t0 {
 		return usagef("--t1 %s equals --t0: the time span is empty", formatFloat(f.t1))
 	}
@@ -288,6 +291,9 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	}
 	if sol == nil {
 		// Nothing was stepped: the input was refused or the field failed at the start.
+		if isMisfit(err) {
+			return m.misfit(sys, err)
+		}
 		if errors.Is(err, integrate.ErrSettings) || errors.Is(err, integrate.ErrSpan) || errors.Is(err, integrate.ErrMethod) || errors.Is(err, integrate.ErrDimension) {
 			return usagef("the integrator refused the settings: %v", err)
 		}

@@ -1,0 +1,451 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/csv"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"strings"
+
+	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/integrate"
+)
+
+var trustCmd = &command{
+	name:    "trust",
+	summary: "audit how far ahead a run can be trusted (the main job)",
+	doc: `Audit how far ahead a computed trajectory of a system can be believed.
+The system is integrated over --horizon time units on a ladder of rungs,
+each changing one numerical choice, and every rung is compared with the
+reference (Dormand–Prince 8(5,3) at rtol = atol = 1e-12):
+
+  tol        Dormand–Prince 5(4) at rtol = atol = 1e-6, 1e-8, 1e-10
+  method     Dormand–Prince 8(5,3) at 1e-8; RK4 at an eighth of the
+             reference's mean step
+  precision  the reference with its state stored at 24 bits (float32)
+             and at 40 bits
+  restart    the reference restarted at --restart-at from its state
+             rounded to --restart-places decimals, as from a printout
+
+A rung agrees until its distance from the reference (Euclidean, angles
+wrapped) first exceeds --tol. The run is trusted up to the earliest such
+time; the rung that sets it names the effect that limits it. Beside each
+measured horizon stands the one predicted from the largest Lyapunov
+exponent, ln(tol/delta0)/lambda.
+
+With no flags it audits the built-in convection loop (lorenz, sigma=10,
+rho=28, beta=8/3) to t=50 at tolerance 1. --format json writes the whole
+report: plumb_version, arch, command, system, settings, units, status,
+error, then the report's fields (verdict, trusted_until, limited_by,
+predicted_horizon, exponent, rungs with agrees_until and their divergence
+curves on times, reversal, caution). --format csv writes the divergence
+curves: t, then one column per rung. --plot draws them on a log axis with
+the tolerance and the Lyapunov prediction.
+
+A trust horizon is a statement about the numerical model, not a safety
+certificate for the real system; safety-critical use follows the field's
+own codes and licensed review.
+
+On Ctrl-C, or when the reference run fails, the rungs completed so far are
+still written; the exit status is then 1.`,
+	model:   "lorenz",
+	formats: []string{"table", "json", "csv"},
+	plots:   true,
+	setup:   setupTrust,
+}
+
+// Defaults of plumb trust.
+const (
+	trustHorizon = 50 // a few dozen Lyapunov times of the demo: well past its horizon
+	trustTol     = 1  // a difference of 1 in the demo's units is visible on a plot
+	// trustRestartFraction places the default restart at this fraction of
+	// the horizon, as integrate.DefaultLadder does.
+	trustRestartFraction = 0.8
+	trustRestartPlaces   = 3 // a printout with three decimals
+)
+
+// rungGroups are the names --rungs takes, each the rungs of
+// integrate.DefaultLadder of one kind, in the ladder's order.
+var rungGroups = []struct {
+	name string
+	kind integrate.RungKind
+}{
+	{"tol", integrate.KindTolerance},
+	{"method", integrate.KindMethod},
+	{"precision", integrate.KindPrecision},
+	{"restart", integrate.KindRestart},
+}
+
+func rungGroupNames() []string {
+	out := make([]string, len(rungGroups))
+	for i, g := range rungGroups {
+		out[i] = g.name
+	}
+	return out
+}
+
+// trustFlags are the flags of plumb trust beyond the shared ones.
+type trustFlags struct {
+	horizon, tol  float64
+	relative      bool
+	rungs         string
+	restartAt     float64
+	restartPlaces int
+}
+
+func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
+	f := &trustFlags{}
+	finiteVar(fs, &f.horizon, "horizon", trustHorizon, "audit the time span `T` from the start (> 0)")
+	finiteVar(fs, &f.tol, "tol", trustTol, "the divergence `TOL` between runs that is still acceptable, in state units (> 0)")
+	fs.BoolVar(&f.relative, "relative", false, "read --tol as a fraction of the attractor's size (the reference run's root-mean-square spread)")
+	fs.StringVar(&f.rungs, "rungs", strings.Join(rungGroupNames(), ","), "comma-separated `LIST` of the rungs to compare with the reference: "+strings.Join(rungGroupNames(), ", "))
+	finiteVar(fs, &f.restartAt, "restart-at", 0, "time `T` of the restart rung, inside the audited span (default 0.8 of --horizon)")
+	fs.IntVar(&f.restartPlaces, "restart-places", trustRestartPlaces, "the restart rung rounds the state to `K` decimal places")
+	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
+}
+
+// ladder builds the audit ladder the flags ask for on [t0, t0+horizon].
+func (f *trustFlags) ladder(cl *call, t0 float64) (integrate.Ladder, []string, error) {
+	t1 := t0 + f.horizon
+	var want []string
+	seen := map[string]bool{}
+	for _, name := range strings.Split(f.rungs, ",") {
+		name = strings.TrimSpace(name)
+		if name == "" {
+			continue
+		}
+		ok := false
+		for _, g := range rungGroups {
+			ok = ok || g.name == name
+		}
+		switch {
+		case name == "reference" || name == "ref":
+			// Always there: it is what the rungs are compared with.
+			continue
+		case !ok:
+			return integrate.Ladder{}, nil, usagef("--rungs %s: unknown rung %q (known: %s)", f.rungs, name, strings.Join(rungGroupNames(), ", "))
+		case seen[name]:
+			return integrate.Ladder{}, nil, usagef("--rungs %s: %q is named twice", f.rungs, name)
+		}
+		seen[name] = true
+		want = append(want, name)
+	}
+	if len(want) == 0 {
+		return integrate.Ladder{}, nil, usagef("--rungs %q leaves only the reference run: an audit compares at least one rung with it (choose from %s)", f.rungs, strings.Join(rungGroupNames(), ", "))
+	}
+	if !seen["restart"] && (cl.sh.given["restart-at"] || cl.sh.given["restart-places"]) {
+		return integrate.Ladder{}, nil, usagef("--restart-at and --restart-places set the restart rung, which --rungs %s leaves out", f.rungs)
+	}
+	at := t0 + float64(trustRestartFraction*f.horizon)
+	if cl.sh.given["restart-at"] {
+		at = f.restartAt
+		if !(at > t0 && at < t1) {
+			return integrate.Ladder{}, nil, usagef("--restart-at %s: must lie strictly inside the audited span (%s, %s)", formatFloat(at), formatFloat(t0), formatFloat(t1))
+		}
+	}
+	places := integrate.Places(f.restartPlaces)
+	if err := places.Validate(); err != nil {
+		return integrate.Ladder{}, nil, usagef("--restart-places %d: %v", f.restartPlaces, err)
+	}
+	def := integrate.DefaultLadder(t0, t1)
+	l := integrate.Ladder{Reference: def.Reference}
+	for _, g := range rungGroups {
+		if !seen[g.name] {
+			continue
+		}
+		for _, r := range def.Rungs {
+			if r.Kind != g.kind {
+				continue
+			}
+			if r.Kind == integrate.KindRestart {
+				r.RestartAt, r.Restart = at, places
+			}
+			l.Rungs = append(l.Rungs, r)
+		}
+	}
+	return l, want, nil
+}
+
+// trustJSON is the --format json result of plumb trust: the header, the
+// system and settings, then every field of plumb.Report (its own arch and
+// plumb_version are shadowed by the header's, which name this build).
+type trustJSON struct {
+	PlumbVersion string `json:"plumb_version"`
+	Arch         string `json:"arch"`
+	Command      string `json:"command"`
+	// System is the system audited, with the parameters as used.
+	System systemJSON `json:"system"`
+	// Settings echoes the flags that shaped the audit, defaults included.
+	Settings trustSettingsJSON `json:"settings"`
+	// Units says in what units the numbers are.
+	Units trustUnitsJSON `json:"units"`
+	// Status is completed, canceled or failed; Error says why.
+	Status string `json:"status"`
+	Error  string `json:"error,omitempty"`
+	*plumb.Report
+}
+
+// trustSettingsJSON echoes the settings of an audit.
+type trustSettingsJSON struct {
+	Horizon       float64  `json:"horizon"`
+	Tol           float64  `json:"tol"`
+	Relative      bool     `json:"relative"`
+	Rungs         []string `json:"rungs"`
+	RestartAt     float64  `json:"restart_at"`
+	RestartPlaces int      `json:"restart_places"`
+	// Every is the spacing of the comparison grid (horizon/1000).
+	Every float64 `json:"every"`
+}
+
+// trustUnitsJSON says in what units the numbers of a trust result are.
+type trustUnitsJSON struct {
+	Time     string `json:"time"`
+	Distance string `json:"distance"`
+	Tol      string `json:"tol"`
+	Exponent string `json:"exponent"`
+	TolUsed  string `json:"tol_used"`
+}
+
+var trustUnits = trustUnitsJSON{
+	Time:     "the model's time unit (t0, horizon, trusted_until, predicted_horizon, float64_horizon, times, agrees_until, predicted, restart_at)",
+	Distance: "Euclidean norm of a state difference in the model's units, angles wrapped (tol_abs, spread, divergence, delta0, reversal.miss)",
+	Tol:      "state units, or with relative a fraction of spread",
+	Exponent: "per unit time, natural log (exponent.value, exponent.std_err, rungs[].rate, rate_err); float64_per_bit in time units per bit",
+	TolUsed:  "fraction of tol_abs",
+}
+
+// trustGrid is the number of intervals of the comparison grid (the audit's
+// default, horizon/1000).
+const trustGrid = 1000
+
+func (f *trustFlags) run(ctx context.Context, cl *call) error {
+	if !(f.horizon > 0) {
+		return usagef("--horizon %s: must be > 0", formatFloat(f.horizon))
+	}
+	if !(f.tol > 0) {
+		return usagef("--tol %s: must be > 0", formatFloat(f.tol))
+	}
+	sys, err := cl.sh.loadSystem(cl.sh.model)
+	if err != nil {
+		return err
+	}
+	p := sys.Problem()
+	ladder, names, err := f.ladder(cl, p.T0)
+	if err != nil {
+		return err
+	}
+	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Periods: sys.Periods()}
+	var bar *progressBar
+	if cl.progress {
+		// One unit per audit run, and as many again for the exponent
+		// estimate, which takes about as long as the audit.
+		bar = newProgressBar(cl.stderr, "plumb trust", 0, 1)
+		runs := 0
+		settings.Progress = func(stage string, done, total int) {
+			switch stage {
+			case "audit":
+				runs = total
+				bar.at(float64(done) / float64(2*total))
+			case "exponent":
+				if runs > 0 {
+					bar.at(0.5 + 0.5*float64(done))
+				}
+			}
+		}
+	}
+	start := now()
+	rep, err := plumb.Trust(ctx, p, f.horizon, settings)
+	if bar != nil {
+		bar.clear()
+	}
+	if rep == nil {
+		if errors.Is(err, plumb.ErrHorizon) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) ||
+			errors.Is(err, integrate.ErrSettings) || errors.Is(err, integrate.ErrSpan) || errors.Is(err, integrate.ErrDimension) {
+			return usagef("the audit refused its input: %v", err)
+		}
+		return fmt.Errorf("the audit of %s could not start: %w", sys.Name, err)
+	}
+	if err != nil && f.relative && errors.Is(err, integrate.ErrSettings) && len(rep.Rungs) == 0 {
+		// Found only once the reference run has been made: a run without
+		// spread (a fixed point) gives no size for a relative tolerance.
+		return usagef("--relative: %v; give --tol in state units instead", err)
+	}
+	restartAt := 0.0
+	for _, r := range ladder.Rungs {
+		if r.Kind == integrate.KindRestart {
+			restartAt = r.RestartAt
+		}
+	}
+	out := trustJSON{
+		PlumbVersion: version, Arch: goarch, Command: "trust",
+		System: describe(sys),
+		Settings: trustSettingsJSON{
+			Horizon: f.horizon, Tol: f.tol, Relative: f.relative, Rungs: names,
+			RestartAt: restartAt, RestartPlaces: f.restartPlaces, Every: f.horizon / trustGrid,
+		},
+		Units:  trustUnits,
+		Status: "completed",
+		Report: rep,
+	}
+	if err != nil {
+		out.Status, out.Error = "failed", err.Error()
+		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+			out.Status = "canceled"
+		}
+	}
+	if werr := writeTrust(cl, &out); werr != nil {
+		return fmt.Errorf("writing the results failed: %w", werr)
+	}
+	if cl.sh.plot != "" && len(rep.Rungs) > 0 {
+		if perr := trustChart(rep).save(cl.sh.plot); perr != nil {
+			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
+		}
+	}
+	for _, r := range rep.Rungs {
+		if r.Error != "" {
+			cl.warnf("rung %q failed at t=%g, its curve ends there: %s", r.Name, r.AgreesUntil, r.Error)
+		}
+	}
+	if rep.ExponentError != "" {
+		cl.warnf("the largest Lyapunov exponent could not be estimated, so nothing is predicted: %s", rep.ExponentError)
+	}
+	cl.wallTime(start, count(len(rep.Rungs)+1, "run")+" compared, verdict "+string(rep.Verdict))
+	if err != nil {
+		what := "failed"
+		if out.Status == "canceled" {
+			what = "was canceled"
+		}
+		return fmt.Errorf("the audit of %s %s (%s completed, written): %w", sys.Name, what, count(len(rep.Rungs), "rung"), err)
+	}
+	return nil
+}
+
+// writeTrust writes the result in the chosen format.
+func writeTrust(cl *call, out *trustJSON) error {
+	switch cl.sh.format {
+	case "json":
+		return writeJSON(cl.stdout, out)
+	case "csv":
+		return trustCSV(cl.stdout, out.Report)
+	}
+	return trustTable(cl.stdout, out)
+}
+
+// trustTable writes the system line and the report's own summary.
+func trustTable(w io.Writer, out *trustJSON) error {
+	var params []string
+	for _, p := range out.System.Parameters {
+		params = append(params, p.Name+"="+formatFloat(p.Value))
+	}
+	if _, err := fmt.Fprintf(w, "system: %s (%s) %s\n", out.System.Name, out.System.Title, strings.Join(params, " ")); err != nil {
+		return err
+	}
+	var b bytes.Buffer
+	if err := out.Report.Write(&b); err != nil {
+		return err
+	}
+	text := b.String()
+	if out.Report.Verdict == plumb.Incomplete {
+		// An unfinished audit has no trusted horizon yet: drop the summary
+		// line that would read one off the partial report, and say what
+		// the table holds instead.
+		var keep []string
+		for _, line := range strings.SplitAfter(text, "\n") {
+			if !strings.HasPrefix(line, "trusted until t =") {
+				keep = append(keep, line)
+			}
+		}
+		text = strings.Join(keep, "") + fmt.Sprintf("the audit stopped (%s): the table holds the rungs completed\n", out.Status)
+	}
+	_, err := io.WriteString(w, text)
+	return err
+}
+
+// trustCSV writes the divergence curves: t, then one column per rung (empty
+// where a rung has no value: before a restart, after a failure).
+func trustCSV(w io.Writer, rep *plumb.Report) error {
+	cw := csv.NewWriter(w)
+	rec := []string{"t"}
+	for _, r := range rep.Rungs {
+		rec = append(rec, r.Name)
+	}
+	if err := cw.Write(rec); err != nil {
+		return err
+	}
+	for i, t := range rep.Times {
+		rec = append(rec[:0], formatFloat(t))
+		for _, r := range rep.Rungs {
+			cell := ""
+			if k := i - r.Start; k >= 0 && k < len(r.Divergence) {
+				cell = formatFloat(r.Divergence[k])
+			}
+			rec = append(rec, cell)
+		}
+		if err := cw.Write(rec); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// predictionPoints is the number of points drawn on the prediction curve.
+const predictionPoints = 200
+
+// trustChart draws the divergence curves on a log axis, the tolerance as a
+// horizontal line, and the Lyapunov prediction delta0·exp(lambda·(t −
+// t_start)) of the rung with the earliest predicted horizon.
+func trustChart(rep *plumb.Report) *lineChart {
+	c := &lineChart{
+		Title:  "divergence from the reference run",
+		XLabel: "t",
+		YLabel: "distance from the reference",
+		LogY:   true,
+		// The curves saturate at the top right; the lower right is empty.
+		LegendBottom: true,
+	}
+	t1 := rep.T0 + rep.Horizon
+	top := rep.TolAbs
+	for _, r := range rep.Rungs {
+		n := min(len(r.Divergence), max(len(rep.Times)-r.Start, 0))
+		c.Series = append(c.Series, series{Name: r.Name, X: rep.Times[r.Start : r.Start+n], Y: r.Divergence[:n]})
+		for _, d := range r.Divergence[:n] {
+			top = math.Max(top, d)
+		}
+	}
+	c.Series = append(c.Series, series{
+		Name: "tolerance " + fmt.Sprintf("%.3g", rep.TolAbs),
+		X:    []float64{rep.T0, t1}, Y: []float64{rep.TolAbs, rep.TolAbs},
+	})
+	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
+		return c
+	}
+	lambda := rep.Exponent.Value
+	for _, r := range rep.Rungs {
+		if r.Predicted != rep.PredictedHorizon || !(r.Delta0 > 0) {
+			continue
+		}
+		from := rep.T0
+		if r.Effect == "restart" {
+			from = r.RestartAt
+		}
+		// Up to where the prediction leaves the drawn range.
+		to := math.Min(t1, from+math.Log(top/r.Delta0)/lambda)
+		if !(to > from) {
+			break
+		}
+		s := series{Name: fmt.Sprintf("prediction delta0·e^(%.3g t), %s", lambda, r.Name)}
+		for i := 0; i <= predictionPoints; i++ {
+			t := from + (to-from)*float64(i)/predictionPoints
+			s.X = append(s.X, t)
+			s.Y = append(s.Y, r.Delta0*math.Exp(lambda*(t-from)))
+		}
+		c.Series = append(c.Series, s)
+		break
+	}
+	return c
+}

@@ -1,0 +1,414 @@
+package main
+
+import (
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/integrate"
+)
+
+// TestTrustGolden is the README's main command: plumb trust with no flags
+// audits the convection demo. Its text is deterministic (counts only, no
+// wall time on stdout), so it is compared with a golden file, and a second
+// run must give the same bytes.
+func TestTrustGolden(t *testing.T) {
+	r := plumbRun(t, "trust")
+	if r.code != exitOK {
+		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
+	}
+	golden(t, "trust_lorenz.txt", r.stdout)
+	golden(t, "trust_lorenz.stderr", r.stderr)
+	again := plumbRun(t, "trust")
+	if again.stdout != r.stdout {
+		t.Errorf("a second run differs:\n%s", firstDiff(again.stdout, r.stdout))
+	}
+	for _, want := range []string{
+		"system: lorenz (Lorenz convection) sigma=10 rho=28",
+		"audit of t = 0 .. 50 at tolerance 1",
+		"agrees until", "predicted", "verdict for t = 50:",
+		"not a safety certificate", "licensed review",
+	} {
+		if !strings.Contains(r.stdout, want) {
+			t.Errorf("the summary lacks %q", want)
+		}
+	}
+}
+
+// decodeTrust runs plumb trust --format json and decodes the result.
+func decodeTrust(t *testing.T, args ...string) (trustJSON, map[string]json.RawMessage, result) {
+	t.Helper()
+	r := plumbRun(t, append(append([]string{"trust"}, args...), "--format", "json", "--quiet")...)
+	var out trustJSON
+	var raw map[string]json.RawMessage
+	if err := json.Unmarshal([]byte(r.stdout), &out); err != nil {
+		t.Fatalf("stdout is not one JSON object: %v\n%.400s", err, r.stdout)
+	}
+	if err := json.Unmarshal([]byte(r.stdout), &raw); err != nil {
+		t.Fatal(err)
+	}
+	return out, raw, r
+}
+
+// TestTrustJSONFields: the JSON holds the header, the settings echoed and
+// every field of the report, under stable snake_case names.
+func TestTrustJSONFields(t *testing.T) {
+	out, raw, r := decodeTrust(t)
+	if r.code != exitOK || r.stderr != "" {
+		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
+	}
+	for _, k := range []string{
+		"plumb_version", "arch", "command", "system", "settings", "units", "status",
+		"t0", "horizon", "tol", "relative", "tol_abs", "spread", "trusted_until", "limited_by",
+		"limiting_rung", "predicted_horizon", "verdict", "tol_used", "growth", "float64_horizon",
+		"exponent", "reference", "rungs", "times", "failed", "reversal", "caution",
+	} {
+		if _, ok := raw[k]; !ok {
+			t.Errorf("JSON lacks %q", k)
+		}
+	}
+	if out.PlumbVersion != version || out.Arch != "golden-arch" || out.Command != "trust" || out.Status != "completed" {
+		t.Errorf("header %q %q %q, status %q", out.PlumbVersion, out.Arch, out.Command, out.Status)
+	}
+	if !strings.Contains(out.Caution, "not a safety certificate") {
+		t.Errorf("caution %q", out.Caution)
+	}
+	s := out.Settings
+	if s.Horizon != trustHorizon || s.Tol != trustTol || s.Relative || strings.Join(s.Rungs, ",") != "tol,method,precision,restart" ||
+		s.RestartAt != 40 || s.RestartPlaces != 3 || s.Every != 0.05 {
+		t.Errorf("settings echoed as %+v", s)
+	}
+	if len(out.Rungs) != 8 || len(out.Times) != trustGrid+1 {
+		t.Fatalf("%d rungs on %d times, want the 8 of the default ladder on %d", len(out.Rungs), len(out.Times), trustGrid+1)
+	}
+	var rung map[string]json.RawMessage
+	var rungs []json.RawMessage
+	if err := json.Unmarshal(raw["rungs"], &rungs); err != nil || json.Unmarshal(rungs[0], &rung) != nil {
+		t.Fatal("rungs is not a list of objects")
+	}
+	for _, k := range []string{"name", "effect", "method", "agrees_until", "departed", "delta0", "predicted", "growth", "rate", "divergence", "evaluations", "steps"} {
+		if _, ok := rung[k]; !ok {
+			t.Errorf("a rung lacks %q", k)
+		}
+	}
+}
+
+// TestTrustMatchesSDK: the CLI is a view of plumb.Trust, so its numbers
+// are the SDK's bit for bit (exact identity: the same computation).
+func TestTrustMatchesSDK(t *testing.T) {
+	out, _, r := decodeTrust(t, "--model", "rossler", "--set", "c=4", "--horizon", "30", "--tol", "0.01", "--rungs", "tol,restart", "--restart-at", "12.5", "--restart-places", "2")
+	if r.code != exitOK {
+		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
+	}
+	sys, err := plumb.Model("rossler")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := sys.Set("c", 4); err != nil {
+		t.Fatal(err)
+	}
+	l := integrate.DefaultLadder(0, 30)
+	ladder := integrate.Ladder{Reference: l.Reference}
+	for _, g := range l.Rungs {
+		switch g.Kind {
+		case integrate.KindTolerance:
+			ladder.Rungs = append(ladder.Rungs, g)
+		case integrate.KindRestart:
+			g.RestartAt, g.Restart = 12.5, integrate.Places(2)
+			ladder.Rungs = append(ladder.Rungs, g)
+		}
+	}
+	want, err := plumb.Trust(context.Background(), sys.Problem(), 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if out.TrustedUntil != want.TrustedUntil || out.Verdict != want.Verdict || out.PredictedHorizon != want.PredictedHorizon || len(out.Rungs) != len(want.Rungs) {
+		t.Fatalf("CLI trusted until %v (%s, predicted %v, %d rungs); SDK %v (%s, %v, %d)",
+			out.TrustedUntil, out.Verdict, out.PredictedHorizon, len(out.Rungs), want.TrustedUntil, want.Verdict, want.PredictedHorizon, len(want.Rungs))
+	}
+	for i, g := range out.Rungs {
+		w := want.Rungs[i]
+		if g.Name != w.Name || g.AgreesUntil != w.AgreesUntil || !sameBits(g.Divergence, w.Divergence) {
+			t.Errorf("rung %d: CLI %q agrees until %v; SDK %q %v (or the curves differ)", i, g.Name, g.AgreesUntil, w.Name, w.AgreesUntil)
+		}
+	}
+	if last := out.Rungs[len(out.Rungs)-1]; last.Name != "restart at t=12.5, 2 places" || last.RestartAt != 12.5 {
+		t.Errorf("restart rung %q at %v, want the one --restart-at and --restart-places ask for", last.Name, last.RestartAt)
+	}
+}
+
+// TestTrustRelative: with --relative the absolute tolerance is the given
+// fraction of the spread (exact identity, AuditSettings.Relative).
+func TestTrustRelative(t *testing.T) {
+	out, _, r := decodeTrust(t, "--horizon", "10", "--tol", "0.05", "--relative", "--rungs", "tol")
+	if r.code != exitOK {
+		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
+	}
+	if !out.Relative || out.Spread <= 0 || out.TolAbs != 0.05*out.Spread {
+		t.Errorf("relative %v: tol_abs %v, spread %v; want tol_abs = 0.05·spread", out.Relative, out.TolAbs, out.Spread)
+	}
+}
+
+// TestTrustCSV: the CSV holds the same divergence curves as the JSON, with
+// empty cells before the restart.
+func TestTrustCSV(t *testing.T) {
+	args := []string{"trust", "--horizon", "20", "--rungs", "tol,restart", "--quiet"}
+	r := plumbRun(t, append(args, "--format", "csv")...)
+	if r.code != exitOK {
+		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
+	}
+	rows, err := csv.NewReader(strings.NewReader(r.stdout)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	out, _, _ := decodeTrust(t, args[1:len(args)-1]...)
+	if len(rows) != len(out.Times)+1 || len(rows[0]) != len(out.Rungs)+1 || rows[0][0] != "t" {
+		t.Fatalf("CSV is %d×%d, want %d×%d", len(rows), len(rows[0]), len(out.Times)+1, len(out.Rungs)+1)
+	}
+	for j, rg := range out.Rungs {
+		if rows[0][j+1] != rg.Name {
+			t.Errorf("column %d is %q, want %q", j+1, rows[0][j+1], rg.Name)
+		}
+		for i := range out.Times {
+			cell := rows[i+1][j+1]
+			k := i - rg.Start
+			switch {
+			case k < 0 || k >= len(rg.Divergence):
+				if cell != "" {
+					t.Errorf("%s at row %d: %q, want empty", rg.Name, i+1, cell)
+				}
+			case cell != formatFloat(rg.Divergence[k]):
+				t.Errorf("%s at row %d: %q, want %s", rg.Name, i+1, cell, formatFloat(rg.Divergence[k]))
+			}
+		}
+	}
+}
+
+// TestTrustPlot draws the divergence picture in both formats and checks
+// that the chart holds every rung, the tolerance and the prediction.
+func TestTrustPlot(t *testing.T) {
+	dir := t.TempDir()
+	for _, name := range []string{"trust.svg", "trust.png"} {
+		path := filepath.Join(dir, name)
+		r := plumbRun(t, "trust", "--horizon", "25", "--plot", path, "--quiet")
+		if r.code != exitOK {
+			t.Fatalf("%s: exit %d, stderr %q", name, r.code, r.stderr)
+		}
+		b, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if strings.HasSuffix(name, ".svg") {
+			checkSVG(t, b)
+		} else {
+			checkPNG(t, b)
+		}
+	}
+	out, _, _ := decodeTrust(t, "--horizon", "25")
+	c := trustChart(out.Report)
+	if !c.LogY || len(c.Series) != len(out.Rungs)+2 {
+		t.Fatalf("chart has %d series (log y %v), want %d rungs + tolerance + prediction", len(c.Series), c.LogY, len(out.Rungs))
+	}
+	tol := c.Series[len(out.Rungs)]
+	if !strings.HasPrefix(tol.Name, "tolerance") || tol.Y[0] != out.TolAbs || tol.Y[1] != out.TolAbs {
+		t.Errorf("tolerance series %q at %v", tol.Name, tol.Y)
+	}
+	// The prediction is delta0·exp(lambda·t) of the rung that predicts
+	// first: at the predicted horizon it reaches the tolerance (exact
+	// identity of ln(tol/delta0)/lambda).
+	pred := c.Series[len(c.Series)-1]
+	if !strings.HasPrefix(pred.Name, "prediction") {
+		t.Fatalf("last series %q, want the prediction", pred.Name)
+	}
+	var d0 float64
+	for _, rg := range out.Rungs {
+		if rg.Predicted == out.PredictedHorizon {
+			d0 = rg.Delta0
+		}
+	}
+	at := d0 * math.Exp(out.Exponent.Value*out.PredictedHorizon)
+	if math.Abs(at-out.TolAbs) > 1e-12*out.TolAbs {
+		t.Errorf("prediction at the predicted horizon is %v, want the tolerance %v", at, out.TolAbs)
+	}
+	if pred.Y[0] != d0 {
+		t.Errorf("prediction starts at %v, want delta0 %v", pred.Y[0], d0)
+	}
+}
+
+// TestTrustBadInput: every usage error exits 2 with nothing on stdout and a
+// message naming the flag.
+func TestTrustBadInput(t *testing.T) {
+	tests := []struct {
+		name string
+		args []string
+		flag string
+	}{
+		{"horizon zero", []string{"--horizon", "0"}, "--horizon"},
+		{"horizon negative", []string{"--horizon", "-5"}, "--horizon"},
+		{"horizon NaN", []string{"--horizon", "NaN"}, "--horizon"},
+		{"tol zero", []string{"--tol", "0"}, "--tol"},
+		{"tol negative", []string{"--tol", "-1"}, "--tol"},
+		{"tol Inf", []string{"--tol", "Inf"}, "--tol"},
+		{"unknown model", []string{"--model", "loop"}, "--model"},
+		{"unknown parameter", []string{"--set", "gamma=1"}, "gamma"},
+		{"rungs empty", []string{"--rungs", ""}, "--rungs"},
+		{"rungs reference only", []string{"--rungs", "reference"}, "--rungs"},
+		{"rungs unknown", []string{"--rungs", "tol,stepsize"}, "stepsize"},
+		{"rungs twice", []string{"--rungs", "tol,tol"}, "--rungs"},
+		{"restart-at outside", []string{"--restart-at", "60"}, "--restart-at"},
+		{"restart-at at start", []string{"--restart-at", "0"}, "--restart-at"},
+		{"restart-at without restart rung", []string{"--rungs", "tol", "--restart-at", "10"}, "--restart-at"},
+		{"restart-places negative", []string{"--restart-places", "-1"}, "--restart-places"},
+		{"restart-places huge", []string{"--restart-places", "400"}, "--restart-places"},
+		{"format", []string{"--format", "xml"}, "--format"},
+		{"plot extension", []string{"--plot", "trust.pdf"}, "--plot"},
+		{"relative value", []string{"--relative=perhaps"}, "--relative"},
+		{"positional", []string{"lorenz"}, "lorenz"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			r := plumbRun(t, append([]string{"trust"}, tt.args...)...)
+			if r.code != exitUsage || r.stdout != "" || !strings.Contains(r.stderr, tt.flag) || !strings.HasPrefix(r.stderr, "plumb trust: ") {
+				t.Errorf("exit %d, stdout %q, stderr %q; want 2, nothing, a message naming %s", r.code, r.stdout, r.stderr, tt.flag)
+			}
+		})
+	}
+}
+
+// TestTrustCanceled: a canceled audit (Ctrl-C) exits 1 and still writes
+// what was done: before any run, an empty table; part way, the rungs
+// completed, which agree bit for bit with those of a full run.
+func TestTrustCanceled(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r := plumbRunCtx(t, ctx, "trust", "--quiet")
+	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") || !strings.Contains(r.stdout, "audit of t = 0 .. 50") || !strings.Contains(r.stdout, "the audit stopped") {
+		t.Errorf("canceled before the start: exit %d, stderr %q, stdout %q", r.code, r.stderr, r.stdout)
+	}
+	full, _, _ := decodeTrust(t, "--horizon", "20")
+	// integrate checks the context once per accepted step: 3000 steps
+	// cover the reference (about 1700 steps to t=20) and a few rungs.
+	r = plumbRunCtx(t, &stepCtx{Context: context.Background(), n: 3000}, "trust", "--horizon", "20", "--format", "json", "--quiet")
+	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") {
+		t.Fatalf("canceled part way: exit %d, stderr %q", r.code, r.stderr)
+	}
+	var part trustJSON
+	if err := json.Unmarshal([]byte(r.stdout), &part); err != nil {
+		t.Fatalf("a canceled audit wrote no JSON: %v", err)
+	}
+	if part.Status != "canceled" || part.Verdict != plumb.Incomplete || len(part.Rungs) == 0 || len(part.Rungs) >= len(full.Rungs) {
+		t.Fatalf("status %q, verdict %q, %d of %d rungs", part.Status, part.Verdict, len(part.Rungs), len(full.Rungs))
+	}
+	for i, g := range part.Rungs[:len(part.Rungs)-1] { // the last one was cut short
+		if g.Name != full.Rungs[i].Name || !sameBits(g.Divergence, full.Rungs[i].Divergence) {
+			t.Errorf("completed rung %d (%s) differs from the full run's", i, g.Name)
+		}
+	}
+	r = plumbRunCtx(t, &stepCtx{Context: context.Background(), n: 3000}, "trust", "--horizon", "20", "--quiet")
+	if r.code != exitFailed || !strings.Contains(r.stdout, full.Rungs[0].Name) || strings.Contains(r.stdout, "trusted until") {
+		t.Errorf("canceled table: exit %d, stdout %q; want the completed rungs and no trusted horizon", r.code, r.stdout)
+	}
+}
+
+// TestTrustProgress: with stderr a terminal a bar is drawn there, and
+// stdout is unchanged; --quiet draws nothing.
+func TestTrustProgress(t *testing.T) {
+	args := []string{"trust", "--horizon", "10", "--rungs", "tol", "--format", "csv"}
+	plain := plumbRun(t, args...)
+	saved := isTerminal
+	defer func() { isTerminal = saved }()
+	isTerminal = func(io.Writer) bool { return true }
+	bar := plumbRun(t, args...)
+	if bar.stdout != plain.stdout {
+		t.Error("the progress bar changed stdout")
+	}
+	if !strings.Contains(bar.stderr, "plumb trust [") || !strings.Contains(bar.stderr, "100%") {
+		t.Errorf("no progress bar on stderr: %q", bar.stderr)
+	}
+	if q := plumbRun(t, append(args, "--quiet")...); q.stderr != "" {
+		t.Errorf("--quiet still wrote %q", q.stderr)
+	}
+}
+
+// TestTrustPeriodicModel: on the double pendulum the CLI passes the
+// model's angle periods to the audit, so distances are wrapped: its curves
+// are those of plumb.Trust with System.Periods, bit for bit (exact
+// identity), and not those of the unwrapped distance once the angles have
+// drifted apart by more than half a turn.
+func TestTrustPeriodicModel(t *testing.T) {
+	out, _, r := decodeTrust(t, "--model", "double-pendulum", "--horizon", "12", "--rungs", "precision")
+	if r.code != exitOK || out.Status != "completed" {
+		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
+	}
+	sys, err := plumb.Model("double-pendulum")
+	if err != nil {
+		t.Fatal(err)
+	}
+	l := integrate.DefaultLadder(0, 12)
+	ladder := integrate.Ladder{Reference: l.Reference}
+	for _, g := range l.Rungs {
+		if g.Kind == integrate.KindPrecision {
+			ladder.Rungs = append(ladder.Rungs, g)
+		}
+	}
+	for _, wrapped := range []bool{true, false} {
+		// The curves come from the audit alone; a given exponent skips the
+		// estimate, which changes nothing in them.
+		s := &plumb.TrustSettings{Tol: 1, Ladder: &ladder, Lambda: 1}
+		if wrapped {
+			s.Periods = sys.Periods()
+		}
+		want, err := plumb.Trust(context.Background(), sys.Problem(), 12, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		same := sameBits(out.Rungs[0].Divergence, want.Rungs[0].Divergence)
+		if same != wrapped {
+			t.Errorf("CLI curve equals the SDK's with periods=%v: %v", wrapped, same)
+		}
+	}
+}
+
+// FuzzRungsFlag: --rungs never panics; a refused list is a usage error
+// naming --rungs, an accepted one names known groups once each, gives a
+// ladder with at least one rung, and reads back from its own echo.
+func FuzzRungsFlag(f *testing.F) {
+	for _, s := range []string{"tol,method,precision,restart", "restart", "tol,,method", " tol , precision ", "", "reference", "ref,tol", "tol,tol", "stepsize", ",", "TOL"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		cl := &call{sh: &shared{given: map[string]bool{}}}
+		fl := &trustFlags{horizon: 50, rungs: s, restartPlaces: trustRestartPlaces}
+		l, names, err := fl.ladder(cl, 0)
+		if err != nil {
+			var ue *usageError
+			if !errors.As(err, &ue) || !strings.Contains(ue.msg, "--rungs") {
+				t.Fatalf("--rungs %q: %v; want a usage error naming --rungs", s, err)
+			}
+			return
+		}
+		if len(l.Rungs) == 0 || len(names) == 0 {
+			t.Fatalf("--rungs %q accepted with %d rungs", s, len(l.Rungs))
+		}
+		seen := map[string]bool{}
+		for _, n := range names {
+			if seen[n] || !strings.Contains(","+strings.Join(rungGroupNames(), ",")+",", ","+n+",") {
+				t.Fatalf("--rungs %q gave names %v", s, names)
+			}
+			seen[n] = true
+		}
+		fl.rungs = strings.Join(names, ",")
+		l2, names2, err := fl.ladder(cl, 0)
+		if err != nil || strings.Join(names2, ",") != fl.rungs || len(l2.Rungs) != len(l.Rungs) {
+			t.Errorf("echo %q of --rungs %q does not read back: %v", fl.rungs, s, err)
+		}
+	})
+}
