@@ -541,15 +541,18 @@ func (rep *Report) Write(w io.Writer) error {
 		if rv.Returned {
 			fmt.Fprintf(&b, "reversibility: integrated to t = %.4g and back, the start is missed by %.3g\n", rv.T, rv.Miss)
 		} else {
-			fmt.Fprintf(&b, "reversibility: integrated to t = %.4g and back, the return failed at t = %.4g\n", rv.T, rv.Reached)
+			fmt.Fprintf(&b, "reversibility: integrated to t = %.4g and back, the backward run stopped at t = %.4g (expected for a dissipative flow, which expands volumes backwards; no round-off estimate from it)\n", rv.T, rv.Reached)
 		}
 	}
 	if rep.Failed > 0 {
 		fmt.Fprintf(&b, "%d rung(s) failed; their curves end where they stopped\n", rep.Failed)
 	}
-	if rep.LimitedBy != "" {
+	switch {
+	case rep.Verdict == Incomplete:
+		b.WriteString("the audit did not finish: the table holds the rungs completed, and no trusted horizon is read off them\n")
+	case rep.LimitedBy != "":
 		fmt.Fprintf(&b, "trusted until t = %.4g, limited by %s (%s)\n", rep.TrustedUntil, rep.LimitedBy, rep.LimitingRung)
-	} else {
+	default:
 		fmt.Fprintf(&b, "trusted until t = %.4g: every rung agrees over the whole horizon\n", rep.TrustedUntil)
 	}
 	verdict := map[Verdict]string{
@@ -558,7 +561,14 @@ func (rep *Report) Write(w io.Writer) error {
 		NotTrusted:        "not trusted",
 		Incomplete:        "incomplete (the audit did not finish)",
 	}[rep.Verdict]
-	fmt.Fprintf(&b, "verdict for t = %.4g: %s (largest divergence %.2g of the tolerance)\n", rep.T0+rep.Horizon, verdict, rep.TolUsed)
+	switch rep.Verdict {
+	case NotTrusted:
+		fmt.Fprintf(&b, "verdict for t = %.4g: %s (the runs part by more than the tolerance at t = %.4g)\n", rep.T0+rep.Horizon, verdict, rep.TrustedUntil)
+	case Incomplete:
+		fmt.Fprintf(&b, "verdict for t = %.4g: %s\n", rep.T0+rep.Horizon, verdict)
+	default:
+		fmt.Fprintf(&b, "verdict for t = %.4g: %s (largest divergence %.2g of the tolerance)\n", rep.T0+rep.Horizon, verdict, rep.TolUsed)
+	}
 	fmt.Fprintf(&b, "caution: %s\n", rep.Caution)
 	_, err := io.WriteString(w, b.String())
 	return err

@@ -349,18 +349,6 @@ func trustTable(w io.Writer, out *trustJSON) error {
 		return err
 	}
 	text := b.String()
-	if out.Report.Verdict == plumb.Incomplete {
-		// An unfinished audit has no trusted horizon yet: drop the summary
-		// line that would read one off the partial report, and say what
-		// the table holds instead.
-		var keep []string
-		for _, line := range strings.SplitAfter(text, "\n") {
-			if !strings.HasPrefix(line, "trusted until t =") {
-				keep = append(keep, line)
-			}
-		}
-		text = strings.Join(keep, "") + fmt.Sprintf("the audit stopped (%s): the table holds the rungs completed\n", out.Status)
-	}
 	_, err := io.WriteString(w, text)
 	return err
 }

@@ -290,7 +290,7 @@ func TestTrustCanceled(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	r := plumbRunCtx(t, ctx, "trust", "--quiet")
-	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") || !strings.Contains(r.stdout, "audit of t = 0 .. 50") || !strings.Contains(r.stdout, "the audit stopped") {
+	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") || !strings.Contains(r.stdout, "audit of t = 0 .. 50") || !strings.Contains(r.stdout, "the audit did not finish") {
 		t.Errorf("canceled before the start: exit %d, stderr %q, stdout %q", r.code, r.stderr, r.stdout)
 	}
 	full, _, _ := decodeTrust(t, "--horizon", "20")
