@@ -101,6 +101,10 @@ func TestGaussFailure(t *testing.T) {
 	if err == nil {
 		t.Fatalf("no error; final state %v", sol.Final)
 	}
+	// Solve reports the scheme's own cause, not a non-finite state.
+	if !errors.Is(err, ErrNoConvergence) {
+		t.Errorf("Solve: err = %v, want ErrNoConvergence", err)
+	}
 	t.Logf("error: %v", err)
 	// The scheme itself reports the cause.
 	w := newGaussWork(1, &p, 1)

@@ -181,7 +181,7 @@ func EnergyAudit(ctx context.Context, p Problem, t1 float64, family func(h float
 	if k > 0 {
 		rep.RMSError = math.Sqrt(sumSq / float64(k))
 	}
-	if err := auditStepperErr(st); err != nil {
+	if err := st.Err(); err != nil {
 		return rep, err
 	}
 	if rep.History[0].Max > 0 {
@@ -233,26 +233,10 @@ func auditCoarseRun(ctx context.Context, p Problem, t1 float64, m Method, energy
 	for st.Next(ctx) {
 		emax = math.Max(emax, math.Abs(energy(st.Y())-e0))
 	}
-	if err := auditStepperErr(st); err != nil {
+	if err := st.Err(); err != nil {
 		return nil, 0, err
 	}
 	return append([]float64(nil), st.Y()...), emax, nil
-}
-
-// auditStepperErr returns the stepper's error, replaced by the scheme's own cause
-// when an implicit method failed to converge (the stepper sees only the
-// non-finite state such a failure leaves).
-func auditStepperErr(st *Stepper) error {
-	err := st.Err()
-	if err == nil {
-		return nil
-	}
-	if f, ok := st.sc.(interface{ stepErr() error }); ok {
-		if cause := f.stepErr(); cause != nil {
-			return &StepError{T: st.T(), H: st.h, Err: cause}
-		}
-	}
-	return err
 }
 
 // Asymptotic reports whether the step-doubling runs behave as C·h^p, so

@@ -38,8 +38,10 @@ type Settings struct {
 	MinStep float64
 	// MaxStep bounds the step size (absolute value). Zero means |t1 - t0|.
 	MaxStep float64
+
 	// MaxSteps bounds the number of attempted steps. Zero means
-	// DefaultMaxSteps; negative is invalid. When exceeded the solve ends
+	// DefaultMaxSteps, or for a fixed-step method the steps its span needs
+	// if that is more; negative is invalid. When exceeded the solve ends
 	// with ErrStepBudget and the partial solution.
 	MaxSteps int
 
@@ -195,6 +197,12 @@ func resolve(s *Settings, n int, t0, t1 float64, m Method) (*config, error) {
 	c.maxSteps = s.MaxSteps
 	if c.maxSteps == 0 {
 		c.maxSteps = DefaultMaxSteps
+		// A fixed-step run's length is known: never stop it short.
+		if hf := m.fixedStep(); hf > 0 {
+			if need := math.Ceil(span/hf) + 1; need > float64(c.maxSteps) && need < math.MaxInt32 {
+				c.maxSteps = int(need)
+			}
+		}
 	}
 	if s.Every < 0 {
 		return nil, settingErr("Every", s.Every, "must be >= 0")

@@ -36,6 +36,9 @@ type Stepper struct {
 	fPrev      []float64
 	coef       []float64 // dense output of the last accepted step
 	denseReady bool
+	// denseStale: the stage vectors the continuous extension of the last
+	// step needs were overwritten (a failed Next, or SetState).
+	denseStale bool
 	tA, tB     *powTable   // x^(-alpha/2) and x^(beta/2), x = err²
 	sB         float64     // Safety·errold^Beta
 	sB0        float64     // Safety·(1e-4)^Beta, the start of sB
@@ -192,7 +195,7 @@ func (st *Stepper) Done() bool { return st.done }
 // the last step or no step was taken yet. For DormandPrince853 the first call
 // after a step costs three extra evaluations.
 func (st *Stepper) Dense(t float64, dst []float64) []float64 {
-	if !st.started || st.hLast == 0 {
+	if !st.started || st.hLast == 0 || st.denseStale {
 		return nil
 	}
 	// theta maps the stored step [tPrev, t] onto [0, 1], as Solution.At
@@ -236,10 +239,48 @@ func (st *Stepper) Next(ctx context.Context) bool {
 			}
 		}
 	}
+	if !st.denseReady {
+		// The attempts about to run overwrite the stage vectors; if none
+		// is accepted, the last step's extension is gone.
+		st.denseStale = true
+	}
 	if st.fixed {
 		return st.nextFixed()
 	}
 	return st.nextAdaptive()
+}
+
+// SetState replaces the current state by y (len Dim) at the current time and
+// evaluates F there, so that the next step starts from the new state; for
+// codes that adjust the state between steps (a re-orthonormalised tangent
+// basis, a renormalised perturbation, an impulse). y may be the slice Y
+// returns, modified in place. Afterwards Dense returns nil until the next
+// step. A wrong length is ErrDimension; a non-finite state or derivative
+// is a FieldError.
+func (st *Stepper) SetState(y []float64) error {
+	if len(y) != st.n {
+		return fmt.Errorf("integrate: SetState: state has %d components, want %d: %w", len(y), st.n, ErrDimension)
+	}
+	if i := firstNonFinite(y); i >= 0 {
+		return fmt.Errorf("integrate: SetState: %w", &FieldError{T: st.t, Index: i, Value: y[i], What: "state"})
+	}
+	copy(st.y, y)
+	st.p.F(st.t, st.y, st.f0)
+	st.stats.Evaluations++
+	if i := firstNonFinite(st.f0); i >= 0 {
+		return fmt.Errorf("integrate: SetState: %w", &FieldError{T: st.t, Index: i, Value: st.f0[i], What: "derivative"})
+	}
+	st.denseReady = false
+	st.denseStale = true
+	st.rejected = false
+	st.lastNonFin = nil
+	return nil
+}
+
+// stepFailer is implemented by schemes whose step can fail without a
+// non-finite value (an implicit method whose iteration did not converge).
+type stepFailer interface {
+	stepErr() error
 }
 
 func (st *Stepper) accept(h float64, tNew float64) {
@@ -251,6 +292,7 @@ func (st *Stepper) accept(h float64, tNew float64) {
 	st.t = tNew
 	st.hLast = h
 	st.denseReady = false
+	st.denseStale = false
 	st.started = true
 	st.stats.Accepted++
 	st.stepIndex++
@@ -264,7 +306,7 @@ func (st *Stepper) nonFinite(tt float64) {
 	st.stats.NonFinite++
 	if i := firstNonFinite(st.y1); i >= 0 {
 		st.lastNonFin = &FieldError{T: tt, Index: i, Value: st.y1[i], What: "state"}
-	} else if i := firstNonFinite(st.f1); i >= 0 && st.sc.fsal() {
+	} else if i := firstNonFinite(st.f1); i >= 0 {
 		st.lastNonFin = &FieldError{T: tt, Index: i, Value: st.f1[i], What: "derivative"}
 	} else {
 		// An intermediate stage was non-finite but y1 and F(t+h, y1) are
@@ -469,13 +511,21 @@ func (st *Stepper) nextFixed() bool {
 	hf := st.h
 	tNew := st.t0 + float64(float64(st.stepIndex+1)*hf)
 	last := false
-	if (tNew-st.t1)*st.dir >= -1e-12*math.Abs(hf) {
+	// The last step: within a few ulps of t1 (k·h may round short of it),
+	// or within 1e-9 of a step (no sliver of a step at the end).
+	if (tNew-st.t1)*st.dir >= -math.Max(float64(1e-9*math.Abs(hf)), float64(8*0x1p-52*math.Max(math.Abs(st.t0), math.Abs(st.t1)))) {
 		tNew = st.t1
 		last = true
 	}
 	h := tNew - st.t
 	_, ev := st.sc.attempt(st.t, h, st.y, st.f0, st.y1, st.f1, st.cfg.rtol, st.cfg.atol)
 	st.stats.Evaluations += ev
+	if f, ok := st.sc.(stepFailer); ok {
+		if cause := f.stepErr(); cause != nil {
+			st.err = &StepError{T: st.t, H: h, Err: cause}
+			return false
+		}
+	}
 	if !st.sc.fsal() {
 		st.p.F(tNew, st.y1, st.f1)
 		st.stats.Evaluations++

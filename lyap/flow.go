@@ -282,15 +282,10 @@ func wrapStepErr(err error) error {
 
 // reorth re-orthonormalises the tangent vectors of the stepper's state at t.
 //
-// It writes the stepper's current state and derivative in place (Y and DYDT):
-// the tangent part of the state becomes Q, and the derivative is evaluated
-// afresh at the new state, so the next step starts from a consistent pair.
-// The trajectory components are not touched. This relies on Y and DYDT being
-// the stepper's own slices, from which its next step starts (true of every
-// one-step method of package integrate); integrate.Stepper documents them
-// as read-only, and a method there to replace the current state would
-// remove the reliance. The continuous extension of the last step is stale
-// afterwards and is never used here.
+// It overwrites the tangent part of the stepper's current state with Q in
+// place and hands the state back with Stepper.SetState, which evaluates the
+// field afresh so the next step starts from a consistent pair. The
+// trajectory components are not touched.
 func (r *flowRun) reorth(t float64, last bool) bool {
 	n, k := r.n, r.k
 	y := r.st.Y()
@@ -299,7 +294,10 @@ func (r *flowRun) reorth(t float64, last bool) bool {
 		r.err = &GrowthError{T: t, Vector: j, Value: v}
 		return false
 	}
-	r.field(t, y, dy)
+	if err := r.st.SetState(y); err != nil {
+		r.err = err
+		return false
+	}
 	r.qrs++
 	elapsed := t - r.lastQR
 	r.lastQR = t

@@ -163,7 +163,10 @@ func (r *twoRun) renorm(t float64, last bool) bool {
 	for i := 0; i < n; i++ {
 		y[n+i] = y[i] + float64(f*(y[n+i]-y[i]))
 	}
-	r.field(t, y, r.st.DYDT())
+	if err := r.st.SetState(y); err != nil {
+		r.err = err
+		return false
+	}
 	r.qrs++
 	r.logs[0] = math.Log(d / r.d0)
 	elapsed := t - r.lastQR
