@@ -9,9 +9,29 @@
 //
 // # Map of the SDK
 //
-//	plumb (this package)  Model and System: built-in systems as integrate.Problem values
-//	integrate             error-controlled and fixed-step integrators, dense output, crossings
+//	plumb (this package)  Trust, the audit behind "plumb trust"; Model, LoadSystem and
+//	                      System: built-in and formula-defined systems with exact Jacobians
+//	integrate             error-controlled, fixed-step and symplectic integrators, dense
+//	                      output, crossings, precision emulation, the audit ladder
+//	lyap                  tangent-space Lyapunov spectra with standard errors, finite-time
+//	                      exponents, covariant vectors, Kaplan–Yorke dimension, horizons
+//	internal/expr         formulas: parser, symbolic derivatives, float64, double-double,
+//	                      big.Float and Taylor-series evaluators
+//	internal/dd           double-double arithmetic
 //	internal/models       the catalog of published flows with their sources
+//	cmd/plumb             the command-line binary
+//
+// # The main job
+//
+// Trust runs a problem on a ladder of variations (tolerances, methods,
+// emulated precisions, a restart from rounded values), compares each run with
+// the tightest one, estimates the largest Lyapunov exponent, and says up to
+// which time the trajectory agrees within the user's tolerance, which effect
+// limits it, and whether the requested horizon is trusted:
+//
+//	sys, _ := plumb.Model("lorenz")
+//	rep, err := plumb.Trust(ctx, sys.Problem(), 50, &plumb.TrustSettings{Tol: 1})
+//	// rep.TrustedUntil, rep.LimitedBy, rep.Verdict; rep.Write(os.Stdout)
 //
 // # Caution
 //
