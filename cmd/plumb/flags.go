@@ -22,6 +22,8 @@ type shared struct {
 	quiet  bool
 	// given records which flags the command line set (filled after parsing).
 	given map[string]bool
+	// stdin is read for --file -.
+	stdin io.Reader
 }
 
 // sharedNames lists the shared flags; help prints them in their own block.

@@ -95,6 +95,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 	if err != nil {
 		return report(stderr, cmd, &usageError{msg: flagMessage(err)})
 	}
+	sh.stdin = stdin
 	sh.given = map[string]bool{}
 	fs.Visit(func(f *flag.Flag) { sh.given[f.Name] = true })
 	if err := sh.check(cmd); err != nil {

@@ -127,7 +127,7 @@ func TestBadFlags(t *testing.T) {
 		{"rows crossings without cross-state", []string{"solve", "--format", "csv", "--rows", "crossings"}, "--cross-state"},
 		{"positional", []string{"solve", "lorenz"}, "lorenz"},
 		{"unknown model", []string{"solve", "--model", "nope"}, "--model"},
-		{"file not yet", []string{"solve", "--file", "loop.json"}, "--file"},
+		{"missing file", []string{"solve", "--file", "loop.json"}, "--file"},
 		{"model and file", []string{"solve", "--model", "lorenz", "--file", "loop.json"}, "--file"},
 		{"set malformed", []string{"solve", "--set", "rho"}, "--set"},
 		{"set not a number", []string{"solve", "--set", "rho=lots"}, "--set"},

@@ -230,6 +230,9 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
+	if err := needFlow(sys, "solve"); err != nil {
+		return err
+	}
 	m, im, err := pickMethod(f.method, f.h, cl.sh.given["step"])
 	if err != nil {
 		return err

@@ -200,6 +200,9 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
+	if err := needFlow(sys, "spectrum"); err != nil {
+		return err
+	}
 	n := len(sys.States)
 	k := f.k
 	if !cl.sh.given["exponents"] {

@@ -1,6 +1,8 @@
 package main
 
 import (
+	"io"
+	"os"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
@@ -11,15 +13,54 @@ import (
 // This is the one place where a command gets its system.
 func (sh *shared) loadSystem(name string) (*plumb.System, error) {
 	if sh.file != "" {
-		// Formula-defined systems: wire plumb.LoadSystem(io.Reader) here
-		// when it lands (open sh.file, or read stdin for "-"; report parse
-		// errors as usage errors naming the file, line and position).
-		return nil, usagef("--file %s: systems defined in a file are not supported yet; use --model (see 'plumb models')", sh.file)
+		sys, err := sh.loadFile()
+		if err != nil {
+			return nil, err
+		}
+		return sh.applySets(sys)
 	}
 	sys, err := plumb.Model(name)
 	if err != nil {
 		return nil, usagef("--model %s: unknown model (known: %s)", name, strings.Join(plumb.Models(), ", "))
 	}
+	return sh.applySets(sys)
+}
+
+// loadFile reads the system file --file names ("-": standard input). Every
+// problem in it is a usage error that names the file and the field, line or
+// position (plumb.FileError).
+func (sh *shared) loadFile() (*plumb.System, error) {
+	var r io.Reader
+	if sh.file == "-" {
+		if sh.stdin == nil {
+			return nil, usagef("--file -: no standard input")
+		}
+		r = sh.stdin
+	} else {
+		f, err := os.Open(sh.file)
+		if err != nil {
+			return nil, usagef("--file %s: %v", sh.file, err)
+		}
+		defer f.Close()
+		r = f
+	}
+	sys, err := plumb.LoadSystem(r)
+	if err != nil {
+		return nil, usagef("--file %s: %v", sh.file, err)
+	}
+	return sys, nil
+}
+
+// needFlow refuses a map system for a command that integrates a flow.
+func needFlow(sys *plumb.System, cmd string) error {
+	if sys.Kind() == plumb.KindMap {
+		return usagef("--file: %s is a map (next values, not rates); plumb %s needs a flow or a Hamiltonian", sys.Name, cmd)
+	}
+	return nil
+}
+
+// applySets applies every --set in order.
+func (sh *shared) applySets(sys *plumb.System) (*plumb.System, error) {
 	for _, s := range sh.sets {
 		if err := sys.Set(s.name, s.value); err != nil {
 			return nil, usagef("--set %s=%s: %v", s.name, formatFloat(s.value), err)

@@ -233,6 +233,9 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
+	if err := needFlow(sys, "trust"); err != nil {
+		return err
+	}
 	p := sys.Problem()
 	ladder, names, err := f.ladder(cl, p.T0)
 	if err != nil {
