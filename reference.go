@@ -287,3 +287,90 @@ func (f *systemSeries) Big(order int, prec uint) (func(t *big.Float, y []*big.Fl
 		return nil
 	}, nil
 }
+
+// refTolFraction is how far below the audit's tolerance the reference of
+// TrustSystem is made accurate at the end of the span (common practice: a
+// reference a thousand times more accurate than the differences it
+// judges).
+const refTolFraction = 1e-3
+
+// TrustSystem is Trust for a system with formulas, with a multiprecision
+// reference: every rung of the ladder is compared with a Taylor reference
+// trajectory (see Reference) accurate to refTolFraction·Tol at the end of
+// the span and at least MinReferenceDigits digits throughout, instead of
+// with the tightest float64 run; that run becomes one more comparison
+// (Report.Reference gets a divergence curve and its agreement horizon).
+// The precision follows ReferenceDigits from the largest exponent
+// (TrustSettings.Lambda, or the estimate Trust would make, made first),
+// the horizon and Tol (a relative Tol is taken as absolute there, which is
+// conservative for a spread above 1); at most integrate.MaxDDDigits digits
+// run in double-double, more in big.Float. The reference runs once, at
+// the audit's comparison times, without its self-check (see Reference for
+// a checked run).
+//
+// Errors: those of Trust, and ErrKind for a system without vector-field
+// formulas.
+//
+// # Caution
+//
+// A trust horizon is a numerical statement about a model, not a safety
+// certificate for the real system; safety-critical use follows the field's
+// own codes and licensed review.
+//
+// References: see Trust and Reference.
+func TrustSystem(ctx context.Context, sys *System, horizon float64, settings *TrustSettings) (*Report, error) {
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	if sys == nil {
+		return nil, fmt.Errorf("plumb: TrustSystem of a nil system: %w", integrate.ErrSettings)
+	}
+	sr, err := sys.series()
+	if err != nil {
+		return nil, err
+	}
+	problem := sys.Problem()
+	if settings == nil || !(settings.Tol > 0) || math.IsInf(settings.Tol, 0) ||
+		!(horizon > 0) || math.IsInf(horizon, 0) || !(settings.Lambda >= 0) || math.IsInf(settings.Lambda, 0) {
+		return Trust(ctx, problem, horizon, settings) // its validation and errors
+	}
+	s := *settings
+	var est *ExponentEstimate
+	if s.Lambda == 0 {
+		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
+		if err != nil {
+			return nil, fmt.Errorf("plumb: trust: estimating the largest exponent for the reference precision: %w", err)
+		}
+		est = &ExponentEstimate{Value: sp.Exponents[0], Source: "estimated"}
+		if len(sp.StdErr) == 1 && finite(sp.StdErr[0]) {
+			est.StdErr = sp.StdErr[0]
+		}
+		if !(est.Value > 0) {
+			est.Value = 0
+		}
+		s.Lambda = est.Value
+	}
+	scale := 0.0
+	for _, v := range problem.Y0 {
+		scale = math.Max(scale, math.Abs(v))
+	}
+	digits := ReferenceDigits(s.Lambda, horizon, refTolFraction*s.Tol, scale)
+	ladder := integrate.DefaultLadder(problem.T0, problem.T0+horizon)
+	if s.Ladder != nil {
+		ladder = *s.Ladder
+	}
+	y0 := problem.Y0
+	ladder.Exact = func(ctx context.Context, times []float64) ([][]float64, error) {
+		r, err := integrate.SolveTaylor(ctx, sr, problem.T0, y0, times, &integrate.TaylorSettings{Digits: digits})
+		if err != nil {
+			return nil, fmt.Errorf("plumb: reference run at %d digits: %w", digits, err)
+		}
+		return r.Float64, nil
+	}
+	s.Ladder = &ladder
+	rep, err := Trust(ctx, problem, horizon, &s)
+	if rep != nil && est != nil && rep.Exponent != nil {
+		rep.Exponent.Source, rep.Exponent.StdErr = est.Source, est.StdErr
+	}
+	return rep, err
+}

@@ -61,8 +61,8 @@ type TaylorSettings struct {
 type TaylorStats struct {
 	// Steps is the number of Taylor steps (each one series of Order).
 	Steps int
-	// MinStep and MaxStep are the smallest and largest step taken that was
-	// not shortened to land on an output time.
+	// MinStep and MaxStep are the smallest and largest step taken (the
+	// last series, which only serves outputs, is not counted).
 	MinStep, MaxStep float64
 }
 
@@ -108,8 +108,9 @@ const guardBitsTaylor = 32
 // SolveTaylor integrates y' = f(t, y) from (t0, y0) with a Taylor method of
 // adaptive step and order chosen from the tolerance, in double-double or
 // big.Float arithmetic, and returns the states at the given output times
-// (increasing, >= t0; each is hit exactly: the step before it is
-// shortened). It is the multiprecision reference integrator of the audit.
+// (increasing, >= t0), each the value of the Taylor polynomial of the step
+// that contains it, evaluated at that exact time (the steps themselves are
+// not shortened). It is the multiprecision reference integrator of the audit.
 //
 // Order and step (Jorba & Zou 2005, Sect. 3.2): with eps = 10^-Digits and
 // the scale s = max(1, |y|_inf) at the step's start, the order is
@@ -248,16 +249,6 @@ func (r *taylorRun) stepSize(lc [2]float64, scale float64) float64 {
 	return stepSafety * h
 }
 
-// begin returns the step from t (as a float64 near it) toward the next
-// output time tout: hJZ, or tout - t if that is shorter; hit says so.
-func (r *taylorRun) begin(t float64, tout float64, hJZ float64) (h float64, hit bool) {
-	rem := tout - t
-	if hJZ >= rem {
-		return rem, true
-	}
-	return hJZ, false
-}
-
 func (r *taylorRun) record(tout float64, y []*big.Float) {
 	res := r.res
 	res.Times = append(res.Times, tout)
@@ -303,16 +294,33 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 			y[i] = dd.FromBig(r.start[i])
 		}
 	}
+	yn := make([]dd.Float, n)
 	bigY := make([]*big.Float, n)
 	emit := func(tout float64) {
-		for i, v := range y {
+		for i, v := range yn {
 			bigY[i] = v.Big().SetPrec(106)
 		}
 		r.record(tout, bigY)
 	}
 	t := dd.From(r.t0)
 	k := 0
+	// horner sets yn to the step's polynomial at the time at.
+	horner := func(at dd.Float) error {
+		hd := dd.Sub(at, t)
+		for i := range n {
+			var s dd.Float
+			for j := p; j >= 0; j-- {
+				s = dd.Add(dd.Mul(s, hd), c[i][j])
+			}
+			if !s.IsFinite() {
+				return r.fail(t.Float64(), hd.Float64(), fmt.Errorf("component %d: %w", i, ErrNonFinite))
+			}
+			yn[i] = s
+		}
+		return nil
+	}
 	for k < len(r.times) && r.times[k] == r.t0 {
+		copy(yn, y)
 		emit(r.t0)
 		k++
 	}
@@ -336,40 +344,35 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 				}
 			}
 		}
-		hJZ := r.stepSize(lc, scale)
-		tout := r.times[k]
-		toutDD := dd.From(tout)
-		if r.outTimes != nil {
-			toutDD = dd.FromBig(r.outTimes[k])
-		}
-		h, hit := r.begin(t.Float64(), tout, hJZ)
-		hd := dd.From(h)
-		if hit {
-			hd = dd.Sub(toutDD, t)
-		} else {
-			r.stats(h)
-		}
-		if !(hd.Hi > 0) || dd.Add(t, hd) == t && !hit {
-			return r.fail(t.Float64(), h, ErrStepUnderflow)
-		}
-		for i := range n {
-			var s dd.Float
-			for j := p; j >= 0; j-- {
-				s = dd.Add(dd.Mul(s, hd), c[i][j])
+		h := r.stepSize(lc, scale)
+		// Outputs inside the step are the Taylor polynomial's values there
+		// (the series is as accurate inside the step as at its end).
+		for k < len(r.times) && r.times[k]-t.Float64() <= h {
+			toutDD := dd.From(r.times[k])
+			if r.outTimes != nil {
+				toutDD = dd.FromBig(r.outTimes[k])
 			}
-			if !s.IsFinite() {
-				return r.fail(t.Float64(), h, fmt.Errorf("component %d: %w", i, ErrNonFinite))
+			if err := horner(toutDD); err != nil {
+				return err
 			}
-			y[i] = s
+			emit(r.times[k])
+			k++
 		}
 		r.res.Stats.Steps++
-		if hit {
-			t = toutDD
-			emit(tout)
-			k++
-		} else {
-			t = dd.Add(t, hd)
+		if k == len(r.times) {
+			break
 		}
+		hd := dd.From(h)
+		if !(h > 0) || dd.Add(t, hd) == t {
+			return r.fail(t.Float64(), h, ErrStepUnderflow)
+		}
+		r.stats(h)
+		tn := dd.Add(t, hd)
+		if err := horner(tn); err != nil {
+			return err
+		}
+		t = tn
+		copy(y, yn)
 	}
 	return nil
 }
@@ -407,7 +410,26 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 		}
 	}
 	t := nf().SetFloat64(r.t0)
-	hb, s, tout := nf(), nf(), nf()
+	hb, s, tout, tn, dt := nf(), nf(), nf(), nf(), nf()
+	yn := make([]*big.Float, n)
+	for i := range yn {
+		yn[i] = nf()
+	}
+	horner := func(at *big.Float) error {
+		dt.Sub(at, t)
+		for i := range n {
+			s.SetInt64(0)
+			for j := p; j >= 0; j-- {
+				s.Mul(s, dt)
+				s.Add(s, c[i][j])
+			}
+			if s.IsInf() {
+				return r.fail(tf, h, fmt.Errorf("component %d: %w", i, ErrNonFinite))
+			}
+			yn[i].Set(s)
+		}
+		return nil
+	}
 	k := 0
 	for k < len(r.times) && r.times[k] == r.t0 {
 		r.record(r.t0, y)
@@ -433,41 +455,34 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 				lc[q] = math.Max(lc[q], logAbs(c[i][j]))
 			}
 		}
-		hJZ := r.stepSize(lc, scale)
-		tout.SetFloat64(r.times[k])
-		if r.outTimes != nil {
-			tout.Set(r.outTimes[k])
-		}
-		var hit bool
-		h, hit = r.begin(tf, r.times[k], hJZ)
-		if hit {
-			hb.Sub(tout, t)
-			h, _ = hb.Float64()
-		} else {
-			hb.SetFloat64(h)
-			r.stats(h)
-		}
-		if !(h > 0) || math.IsInf(h, 0) || (!hit && s.Add(t, hb).Cmp(t) == 0) {
-			return r.fail(tf, h, ErrStepUnderflow)
-		}
-		for i := range n {
-			s.SetInt64(0)
-			for j := p; j >= 0; j-- {
-				s.Mul(s, hb)
-				s.Add(s, c[i][j])
+		h = r.stepSize(lc, scale)
+		for k < len(r.times) && r.times[k]-tf <= h {
+			tout.SetFloat64(r.times[k])
+			if r.outTimes != nil {
+				tout.Set(r.outTimes[k])
 			}
-			if s.IsInf() {
-				return r.fail(tf, h, fmt.Errorf("component %d: %w", i, ErrNonFinite))
+			if err := horner(tout); err != nil {
+				return err
 			}
-			y[i].Set(s)
+			r.record(r.times[k], yn)
+			k++
 		}
 		r.res.Stats.Steps++
-		if hit {
-			t.Set(tout)
-			r.record(r.times[k], y)
-			k++
-		} else {
-			t.Add(t, hb)
+		if k == len(r.times) {
+			break
+		}
+		hb.SetFloat64(h)
+		if !(h > 0) || math.IsInf(h, 0) || s.Add(t, hb).Cmp(t) == 0 {
+			return r.fail(tf, h, ErrStepUnderflow)
+		}
+		r.stats(h)
+		tn.Add(t, hb)
+		if err := horner(tn); err != nil {
+			return err
+		}
+		t.Set(tn)
+		for i := range y {
+			y[i].Set(yn[i])
 		}
 	}
 	return nil
