@@ -56,7 +56,6 @@ func maxDiff(a, b []*big.Float) float64 {
 	return m
 }
 
-
 // lorenzLambda is the largest Lyapunov exponent of Lorenz at the classical
 // parameters, 0.9056 (J. C. Sprott, Chaos and Time-Series Analysis, Oxford
 // 2003, Table A.1; REFERENCES.md Sect. 1a).
