@@ -410,7 +410,7 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 		}
 	}
 	t := nf().SetFloat64(r.t0)
-	hb, s, tout, tn, dt := nf(), nf(), nf(), nf(), nf()
+	hb, s, sm, tout, tn, dt := nf(), nf(), nf(), nf(), nf(), nf()
 	yn := make([]*big.Float, n)
 	for i := range yn {
 		yn[i] = nf()
@@ -418,10 +418,12 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 	horner := func(at *big.Float) error {
 		dt.Sub(at, t)
 		for i := range n {
+			// Horner with two values in turn: big.Float's Mul allocates
+			// when the result aliases an operand.
 			s.SetInt64(0)
 			for j := p; j >= 0; j-- {
-				s.Mul(s, dt)
-				s.Add(s, c[i][j])
+				sm.Mul(s, dt)
+				s.Add(sm, c[i][j])
 			}
 			if s.IsInf() {
 				return r.fail(tf, h, fmt.Errorf("component %d: %w", i, ErrNonFinite))

@@ -24,7 +24,8 @@ type TaylorBig struct {
 	aux  [][]*big.Float
 	au2  [][]*big.Float
 	s, m *big.Float // scratch for sums and products
-	g    *big.Float // second scratch sum
+	g, q *big.Float // small integers; products by them (big.Float's Mul
+	// allocates when the result aliases an operand)
 }
 
 // NewTaylorBig returns a big.Float Taylor evaluator of order n (n+1
@@ -44,7 +45,7 @@ func (p *Program) NewTaylorBig(n int, prec uint) (*TaylorBig, error) {
 		return s
 	}
 	t := &TaylorBig{p: p, n: n, prec: prec,
-		s: newF(prec), m: newF(prec), g: newF(prec)}
+		s: newF(prec), m: newF(prec), g: newF(prec), q: newF(prec)}
 	t.c = make([][]*big.Float, p.nreg)
 	for i := range t.c {
 		t.c[i] = mk()
@@ -102,7 +103,7 @@ func (t *TaylorBig) bwconv(z *big.Float, a, b []*big.Float, k, hi int) *big.Floa
 	z.SetInt64(0)
 	for j := 1; j <= hi; j++ {
 		t.m.Mul(a[j], b[k-j])
-		z.Add(z, t.m.Mul(t.m, t.g.SetInt64(int64(j))))
+		z.Add(z, t.q.Mul(t.m, t.g.SetInt64(int64(j))))
 	}
 	return z
 }
@@ -182,7 +183,7 @@ func (t *TaylorBig) order(k int) {
 			} else {
 				t.bconv(s, v, v, k, 1, k-1)
 				s.Sub(u[k], s)
-				v[k].Quo(s, t.g.Mul(v[0], t.g.SetInt64(2)))
+				v[k].Quo(s, t.q.Mul(v[0], t.g.SetInt64(2)))
 			}
 		case OpSin, OpCos, OpSinh, OpCosh:
 			sn, co := v, t.aux[i]
@@ -237,7 +238,7 @@ func (t *TaylorBig) order(k int) {
 			s.SetInt64(0)
 			for j := 1; j <= k-1; j++ {
 				t.m.Mul(q[j], v[k-j])
-				s.Add(s, t.m.Mul(t.m, t.g.SetInt64(int64(k-j))))
+				s.Add(s, t.q.Mul(t.m, t.g.SetInt64(int64(k-j))))
 			}
 			t.m.Mul(t.g.SetInt64(fk), u[k])
 			s.Sub(t.m, s)
@@ -261,12 +262,12 @@ func (t *TaylorBig) order(k int) {
 				t.m.Mul(w[j], u[k-j])
 				t.g.Mul(u[j], w[k-j])
 				t.m.Sub(t.m, t.g)
-				gs.Add(gs, t.m.Mul(t.m, t.g.SetInt64(int64(k-j))))
+				gs.Add(gs, t.q.Mul(t.m, t.g.SetInt64(int64(k-j))))
 			}
 			s.SetInt64(0)
 			for j := 1; j <= k-1; j++ {
 				t.m.Mul(q[j], v[k-j])
-				s.Add(s, t.m.Mul(t.m, t.g.SetInt64(int64(k-j))))
+				s.Add(s, t.q.Mul(t.m, t.g.SetInt64(int64(k-j))))
 			}
 			s.Sub(gs, s)
 			v[k].Quo(s, t.m.Mul(t.g.SetInt64(fk), q[0]))
