@@ -146,3 +146,20 @@ func TestAuditExact(t *testing.T) {
 		t.Errorf("short trajectory: err = %v, want ErrDimension", err)
 	}
 }
+
+// TestSolveTaylorDDAllocs checks that the double-double stepping loop does
+// not allocate: a run with one output allocates the same whether it takes
+// a few steps or many (allocations are set-up and outputs only).
+func TestSolveTaylorDDAllocs(t *testing.T) {
+	run := func(t1 float64) func() {
+		return func() {
+			if _, err := SolveTaylor(context.Background(), riccati{}, 0, []float64{1}, []float64{t1}, nil); err != nil {
+				panic(err)
+			}
+		}
+	}
+	short, long := testing.AllocsPerRun(5, run(0.5)), testing.AllocsPerRun(5, run(1000))
+	if long != short {
+		t.Errorf("allocations: %v for t1 = 0.5, %v for t1 = 1000 (more steps must not allocate)", short, long)
+	}
+}
