@@ -308,6 +308,10 @@ const refTolFraction = 1e-3
 // the audit's comparison times, without its self-check (see Reference for
 // a checked run).
 //
+// When the exponent estimate fails (not by cancellation), TrustSystem
+// falls back to Trust against the float64 reference run, whose report
+// says why in ExponentError.
+//
 // Errors: those of Trust, and ErrKind for a system without vector-field
 // formulas.
 //
@@ -339,7 +343,12 @@ func TrustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 	if s.Lambda == 0 {
 		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
 		if err != nil {
-			return nil, fmt.Errorf("plumb: trust: estimating the largest exponent for the reference precision: %w", err)
+			if ctx.Err() != nil {
+				return nil, fmt.Errorf("plumb: trust canceled during the exponent estimate: %w", err)
+			}
+			// Without an exponent there is no precision rule: the plain
+			// audit, which reports why the estimate failed.
+			return Trust(ctx, problem, horizon, settings)
 		}
 		est = &ExponentEstimate{Value: sp.Exponents[0], Source: "estimated"}
 		if len(sp.StdErr) == 1 && finite(sp.StdErr[0]) {
