@@ -119,3 +119,33 @@ func TestTaylorBigBadInput(t *testing.T) {
 		t.Errorf("0/0: err = %v, want ErrNaN", err)
 	}
 }
+
+// FuzzTaylorBig checks that no formula panics the big.Float Taylor
+// recurrences: every input either fails to parse or gives coefficients or
+// an error wrapping ErrNaN.
+func FuzzTaylorBig(f *testing.F) {
+	for _, s := range formulas {
+		f.Add(s, 0.7)
+	}
+	for _, s := range []string{"1/0", "0/0*x", "log(x - x)", "sqrt(-x)", "x^-3", "(x - 1)^1.5", "atan2(0, 0)", "tan(x)^2/(x - 0.7)"} {
+		f.Add(s, 0.7)
+	}
+	f.Fuzz(func(t *testing.T, src string, x0 float64) {
+		g := NewGraph([]string{"t", "x"})
+		e, err := g.Parse(src)
+		if err != nil || g.Len() > 500 {
+			return
+		}
+		ty, err := g.Compile([]Expr{e}).NewTaylorBig(8, 80)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if x0 != x0 || x0-x0 != 0 {
+			return // big.Float has no NaN or Inf start
+		}
+		err = ty.ODE(new(big.Float), []*big.Float{big.NewFloat(x0)}, nil)
+		if err != nil && !errors.Is(err, ErrNaN) {
+			t.Fatalf("%q at x0=%v: error %v does not wrap ErrNaN", src, x0, err)
+		}
+	})
+}
