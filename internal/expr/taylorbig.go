@@ -12,10 +12,11 @@ import (
 // are its float64 values, as for Big. Not safe for concurrent use.
 //
 // Cost: O(K²) big.Float multiplications per product node for K
-// coefficients. The products reuse scratch values, but big.Float's Add
-// allocates to align operands of different exponents, so ODE allocates
-// O(K²) small slices per product node (measured: about 2300 per Lorenz
-// step at order 48; see BenchmarkReferenceLorenz in package plumb).
+// coefficients. Sums and products go to scratch values that never alias
+// their operands (big.Float allocates when they do); what allocates is
+// left to divisions and the elementary functions, O(K) per node (measured:
+// about 130 allocations per Lorenz step at order 48; see
+// BenchmarkReferenceLorenz in package plumb).
 //
 // References: see Taylor.
 type TaylorBig struct {
@@ -28,6 +29,9 @@ type TaylorBig struct {
 	s, m *big.Float // scratch for sums and products
 	g, q *big.Float // small integers; products by them (big.Float's Mul
 	// allocates when the result aliases an operand)
+	// acc holds two partial sums used in turn: big.Float's Add allocates
+	// when the result aliases an operand.
+	acc [2]*big.Float
 }
 
 // NewTaylorBig returns a big.Float Taylor evaluator of order n (n+1
@@ -47,7 +51,8 @@ func (p *Program) NewTaylorBig(n int, prec uint) (*TaylorBig, error) {
 		return s
 	}
 	t := &TaylorBig{p: p, n: n, prec: prec,
-		s: newF(prec), m: newF(prec), g: newF(prec), q: newF(prec)}
+		s: newF(prec), m: newF(prec), g: newF(prec), q: newF(prec),
+		acc: [2]*big.Float{newF(prec), newF(prec)}}
 	t.c = make([][]*big.Float, p.nreg)
 	for i := range t.c {
 		t.c[i] = mk()
@@ -91,23 +96,27 @@ func (t *TaylorBig) SetParam(slot int, v *big.Float) {
 }
 
 // bconv sets z = Σ_{j=lo..hi} a_j b_{k-j} and returns z. z must not alias
-// an operand; t.m is used as scratch.
+// an operand; t.m and t.acc are used as scratch.
 func (t *TaylorBig) bconv(z *big.Float, a, b []*big.Float, k, lo, hi int) *big.Float {
-	z.SetInt64(0)
+	x, y := t.acc[0], t.acc[1]
+	x.SetInt64(0)
 	for j := lo; j <= hi; j++ {
-		z.Add(z, t.m.Mul(a[j], b[k-j]))
+		y.Add(x, t.m.Mul(a[j], b[k-j]))
+		x, y = y, x
 	}
-	return z
+	return z.Set(x)
 }
 
 // bwconv sets z = Σ_{j=1..hi} j a_j b_{k-j} and returns z.
 func (t *TaylorBig) bwconv(z *big.Float, a, b []*big.Float, k, hi int) *big.Float {
-	z.SetInt64(0)
+	x, y := t.acc[0], t.acc[1]
+	x.SetInt64(0)
 	for j := 1; j <= hi; j++ {
 		t.m.Mul(a[j], b[k-j])
-		z.Add(z, t.q.Mul(t.m, t.g.SetInt64(int64(j))))
+		y.Add(x, t.q.Mul(t.m, t.g.SetInt64(int64(j))))
+		x, y = y, x
 	}
-	return z
+	return z.Set(x)
 }
 
 // need reports a nil result of a big math function (a value that is not
