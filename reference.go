@@ -306,7 +306,8 @@ const refTolFraction = 1e-3
 // conservative for a spread above 1); at most integrate.MaxDDDigits digits
 // run in double-double, more in big.Float. The reference runs once, at
 // the audit's comparison times, without its self-check (see Reference for
-// a checked run).
+// a checked run); Report.Exact describes it. A Ladder's own Exact is
+// replaced.
 //
 // When the exponent estimate fails (not by cancellation), TrustSystem
 // falls back to Trust against the float64 reference run, whose report
@@ -369,8 +370,13 @@ func TrustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		ladder = *s.Ladder
 	}
 	y0 := problem.Y0
+	var ex *ExactReference
 	ladder.Exact = func(ctx context.Context, times []float64) ([][]float64, error) {
 		r, err := integrate.SolveTaylor(ctx, sr, problem.T0, y0, times, &integrate.TaylorSettings{Digits: digits})
+		if r != nil {
+			ex = &ExactReference{Method: "Taylor (Jorba–Zou order and step)", Arithmetic: r.Arithmetic,
+				Digits: r.Digits, Order: r.Order, Steps: r.Stats.Steps, Lambda: s.Lambda}
+		}
 		if err != nil {
 			return nil, fmt.Errorf("plumb: reference run at %d digits: %w", digits, err)
 		}
@@ -378,8 +384,25 @@ func TrustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 	}
 	s.Ladder = &ladder
 	rep, err := Trust(ctx, problem, horizon, &s)
-	if rep != nil && est != nil && rep.Exponent != nil {
-		rep.Exponent.Source, rep.Exponent.StdErr = est.Source, est.StdErr
+	if rep != nil {
+		rep.Exact = ex
+		if est != nil && rep.Exponent != nil {
+			rep.Exponent.Source, rep.Exponent.StdErr = est.Source, est.StdErr
+		}
 	}
 	return rep, err
+}
+
+// ExactReference describes the multiprecision reference of a TrustSystem
+// audit.
+type ExactReference struct {
+	Method     string `json:"method"`
+	Arithmetic string `json:"arithmetic"`
+	// Digits is the working precision in decimal digits, Order the Taylor
+	// order, Steps the Taylor steps.
+	Digits int `json:"digits"`
+	Order  int `json:"order"`
+	Steps  int `json:"steps"`
+	// Lambda is the largest exponent that set Digits.
+	Lambda float64 `json:"lambda"`
 }

@@ -325,6 +325,11 @@ func TestTrustSystemReference(t *testing.T) {
 	if rep.TrustedUntil > 7.6+8 {
 		t.Errorf("trusted until %.4g, want below %.4g", rep.TrustedUntil, 7.6+8)
 	}
+	// 0.9056·30/ln 10 = 11.8 digits of growth, log10(1/1e-6) = 6 wanted
+	// (Tol·refTolFraction), 4 guard digits: 22 digits, in double-double.
+	if e := rep.Exact; e == nil || e.Digits != 22 || e.Arithmetic != "double-double" {
+		t.Errorf("exact reference %+v, want 22 digits in double-double", e)
+	}
 	if rep.Exponent == nil || rep.Exponent.Source != "given" {
 		t.Errorf("exponent %+v, want the given one", rep.Exponent)
 	}
