@@ -12,9 +12,9 @@ import (
 	"github.com/plumbdyn/plumb/integrate"
 )
 
-// refFile is the stored high-precision data: integrate/testdata/lorenz_ref.json
-// and arenstorf_ref.json, made by integrate/testdata/make_ref.py (an
-// independent Taylor integrator in mpmath 1.2.1 at 80 digits, checked at 60).
+// lorenzRef is the stored high-precision data of integrate/testdata/lorenz.json,
+// made by integrate/testdata/make_ref.py (an independent Taylor integrator
+// in mpmath 1.2.1 at 80 digits, checked at 60).
 type lorenzRef struct {
 	Lorenz struct {
 		BetaDouble struct {
@@ -25,7 +25,11 @@ type lorenzRef struct {
 
 func loadLorenzRef(t testing.TB) map[string][]*big.Float {
 	t.Helper()
-	b, err := os.ReadFile("integrate/testdata/lorenz_ref.json")
+	// The file is lorenz.json (lorenz_ref.json in older trees; same data).
+	b, err := os.ReadFile("integrate/testdata/lorenz.json")
+	if err != nil {
+		b, err = os.ReadFile("integrate/testdata/lorenz_ref.json")
+	}
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -63,7 +67,7 @@ const lorenzLambda = 0.9056
 
 // TestReferenceLorenzStored compares Taylor references of Lorenz (beta =
 // float64(8/3), start (1,1,1)) with the stored 80-digit values at t = 10 and
-// 20 (integrate/testdata/lorenz_ref.json, mpmath; its 60-digit check run
+// 20 (integrate/testdata/lorenz.json, mpmath; its 60-digit check run
 // agrees to 9e-56 at t = 20).
 //
 // What is achievable: a run at D digits makes local errors about 10^-D·|y|
@@ -211,7 +215,7 @@ func TestReferenceConvergence(t *testing.T) {
 // period T = 17.0652165601579625588917206249; Hairer, Nørsett & Wanner,
 // Solving ODEs I, 2nd ed. 1993, Ch. II intro) held at full precision, at
 // 40 digits, and checks that it returns to its start after one period to
-// 1e-20: the stored 80-digit run (integrate/testdata/arenstorf_ref.json,
+// 1e-20: the stored 80-digit run (integrate/testdata/arenstorf.json,
 // "decimal_inputs") returns to 4.6e-27, the error of the 30-digit period.
 func TestReferenceArenstorf(t *testing.T) {
 	sys, err := Model("arenstorf")
