@@ -9,9 +9,7 @@
 //
 // # Map of the SDK
 //
-//	plumb (this package)  Model and System: built-in systems as integrate.Problem values;
-//	                      Trust and TrustSystem (the audit, the latter against a
-//	                      multiprecision Taylor reference); Reference
+//	plumb (this package)  Model and System: built-in systems as integrate.Problem values
 //	integrate             error-controlled and fixed-step integrators, dense output, crossings
 //	internal/models       the catalog of published flows with their sources
 //
