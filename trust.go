@@ -143,6 +143,9 @@ type Report struct {
 	Times     []float64    `json:"times"`
 	// Failed counts the rungs whose run failed (see RungReport.Error).
 	Failed int `json:"failed"`
+	// Exact is the multiprecision reference every rung was compared with
+	// (TrustSystem), nil when they were compared with Reference.
+	Exact *ExactReference `json:"exact_reference,omitempty"`
 	// Reversal is the reversibility check, nil if skipped.
 	Reversal *ReversalReport `json:"reversal,omitempty"`
 

@@ -168,7 +168,8 @@ type AuditResult struct {
 	// Times is the common grid on which the runs are compared.
 	Times []float64
 	// Reference is the reference run's rung, method and work counts (its
-	// Divergence is empty).
+	// Divergence is empty, unless Ladder.Exact is set: then it is the
+	// reference run's divergence from the exact trajectory).
 	Reference RungResult
 	// Rungs are the compared runs in the ladder's order.
 	Rungs []RungResult
@@ -343,6 +344,11 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 			a.refY[g] = smp.Y
 		}
 	}
+	if l.Exact != nil {
+		if err := a.exact(l.Exact, refSol, gridIdx, &res.Reference); err != nil {
+			return res, &RungError{Index: -1, Name: ref.Name, Err: err}
+		}
+	}
 	res.Spread, res.Magnitude = a.spread()
 	res.Tol = s.Tol
 	if s.Relative {
@@ -355,6 +361,11 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 	a.ceil = saturationFraction * res.Spread
 	if a.ceil == 0 {
 		a.ceil = math.Inf(1)
+	}
+	if l.Exact != nil {
+		r := &res.Reference
+		r.Horizon, r.Departed = a.horizon(r.Divergence, 0, p.T0)
+		r.Growth = fitGrowth(a.times, r.Divergence, p.T0, a.ceil)
 	}
 	hRef := meanStep(refSol)
 	if n := len(refSol.Samples); n != len(a.refT) {
@@ -796,4 +807,34 @@ func (a *auditor) reverse(ref resolvedRung, k int) *Reversal {
 	}
 	rv.Miss = a.dist(sol.Final, a.p.Y0)
 	return rv
+}
+
+// exact replaces the reference samples by the states of an exact
+// trajectory at the same times, and sets the reference run's divergence
+// from it on the grid.
+func (a *auditor) exact(tr Trajectory, refSol *Solution, gridIdx []int, rr *RungResult) error {
+	ys, err := tr(a.ctx, a.refT)
+	if err != nil {
+		return fmt.Errorf("exact trajectory: %w", err)
+	}
+	if len(ys) != len(a.refT) {
+		return fmt.Errorf("exact trajectory gave %d states for %d times: %w", len(ys), len(a.refT), ErrDimension)
+	}
+	rr.Divergence = make([]float64, 0, len(a.times))
+	for i, y := range ys {
+		if len(y) != a.n {
+			return fmt.Errorf("exact trajectory state %d has length %d, want %d: %w", i, len(y), a.n, ErrDimension)
+		}
+		for _, v := range y {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("exact trajectory state %d at t=%g: %w", i, a.refT[i], ErrNonFinite)
+			}
+		}
+		if g := gridIdx[i]; g >= 0 {
+			rr.Divergence = append(rr.Divergence, a.dist(refSol.Samples[i].Y, y))
+			a.refY[g] = y
+		}
+		a.refS[i] = y
+	}
+	return nil
 }

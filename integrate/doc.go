@@ -50,7 +50,16 @@
 // methods, precisions, restarts from rounded states), compares every run with
 // the tightest one on a common grid, and reports per rung the divergence
 // curve, the agreement horizon at the user's tolerance, the fitted growth law
-// and the horizon predicted from the largest Lyapunov exponent.
+// and the horizon predicted from the largest Lyapunov exponent. With
+// Ladder.Exact the runs are compared with an exact trajectory instead.
+//
+// # Reference runs
+//
+// SolveTaylor integrates with a Taylor method of order and step chosen from
+// the tolerance (Jorba & Zou 2005) in double-double or big.Float
+// arithmetic, from Taylor coefficients supplied by a Series (package plumb
+// provides one from a system's formulas): reference trajectories correct to
+// many more digits than float64, for Ladder.Exact.
 //
 // # Step control
 //

@@ -1,6 +1,7 @@
 package integrate
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -89,7 +90,20 @@ type Rung struct {
 type Ladder struct {
 	Reference Rung
 	Rungs     []Rung
+	// Exact, if not nil, supplies the solution at the comparison times,
+	// computed apart from the ladder (for instance a multiprecision Taylor
+	// run, see SolveTaylor): every rung is then compared with it instead of
+	// with the reference run, and the reference run itself gets a
+	// divergence curve and a horizon (AuditResult.Reference). The
+	// reference run is still made (for the fixed-step default and the
+	// reversibility check) but does not count in AuditResult.Trusted.
+	Exact Trajectory
 }
+
+// Trajectory returns the states of the audited problem's solution at the
+// given increasing times (one slice of the state's length per time). Errors
+// end the audit.
+type Trajectory func(ctx context.Context, times []float64) ([][]float64, error)
 
 // Default tolerances of the reference rung.
 const (

@@ -1,0 +1,408 @@
+package plumb
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/big"
+
+	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/internal/expr"
+	"github.com/plumbdyn/plumb/lyap"
+)
+
+// Precision rules of Reference.
+const (
+	// GuardDigits are the decimal digits Reference adds beyond the digits
+	// the error growth consumes and the digits wanted at the end. They
+	// cover the accumulation of the local errors over the steps (N steps
+	// add at most log10 N digits, 3 for a thousand steps, when they add up
+	// coherently) and a finite-time stretching above e^(λ_1 T) (the
+	// finite-time exponent fluctuates around λ_1); on Lorenz at T = 100 the
+	// self-check of the tests measures what the margin leaves (common
+	// practice: a few digits of margin, checked by a second run).
+	GuardDigits = 4
+	// MinReferenceDigits is the least working precision of Reference: 20
+	// digits keep the reference error below float64 rounding (16 digits)
+	// at every time, so that every float64 run's divergence from it is its
+	// own and not the reference's.
+	MinReferenceDigits = 20
+	// CheckDrop is how many digits fewer the self-check run of Reference
+	// carries: its difference from the main run estimates the check run's
+	// error, 10^CheckDrop times the main run's.
+	CheckDrop = 5
+	// DefaultReferenceDigits is the number of correct digits wanted at t1
+	// (relative to max(1, |y0|_inf)) when ReferenceSettings.Tol is zero.
+	DefaultReferenceDigits = 20
+)
+
+// ReferenceSettings controls Reference. A nil *ReferenceSettings means the
+// zero value: the exponent estimated, 20 correct digits wanted at t1, and
+// the self-check run.
+type ReferenceSettings struct {
+	// Lambda is the largest Lyapunov exponent (per time unit) used to
+	// choose the precision. Zero means estimated with lyap.Exponents (k = 1,
+	// lyap's defaults); a negative value means no exponential growth (the
+	// precision is then set by Tol alone). Must be finite.
+	Lambda float64
+	// Tol is the absolute error wanted at t1. Zero means
+	// 10^-DefaultReferenceDigits · max(1, |y0|_inf). Must be finite and >= 0.
+	Tol float64
+	// Digits, if positive, is the working precision in decimal digits,
+	// overriding the rule from Lambda and Tol (and no exponent is
+	// estimated). Must be in [0, 10000].
+	Digits int
+	// NoCheck skips the self-check run.
+	NoCheck bool
+	// MaxSteps bounds each run's steps; zero means integrate's default.
+	MaxSteps int
+}
+
+// ReferenceResult is a multiprecision reference trajectory.
+type ReferenceResult struct {
+	// Times are the output times; States the states there at the working
+	// precision, Float64 the same rounded to float64.
+	Times   []float64
+	States  [][]*big.Float
+	Float64 [][]float64
+	// Lambda is the exponent that set the precision (zero when
+	// ReferenceSettings.Digits was given).
+	Lambda float64
+	// Digits is the working precision in decimal digits; Arithmetic
+	// "double-double" (Digits <= integrate.MaxDDDigits) or "big.Float";
+	// Prec the bits; Order the Taylor order; Stats the main run's work.
+	Digits     int
+	Arithmetic string
+	Prec       uint
+	Order      int
+	Stats      integrate.TaylorStats
+	// Check is the self-check, nil with NoCheck.
+	Check *ReferenceCheck
+}
+
+// ReferenceCheck compares the reference with a second run CheckDrop digits
+// less precise (another order and step sequence).
+type ReferenceCheck struct {
+	Digits     int
+	Arithmetic string
+	Steps      int
+	// Difference is the largest absolute component difference over the
+	// output times; AtEnd the same at the last time.
+	Difference, AtEnd float64
+	// Error estimates the main run's error at the last time: AtEnd /
+	// 10^CheckDrop.
+	Error float64
+}
+
+// ReferenceDigits returns the working precision Reference uses for a span
+// T, largest exponent lambda and wanted absolute error tol at the end, for
+// states of size scale:
+//
+//	D = ceil(lambda·T/ln 10 + log10(max(1, scale)/tol)) + GuardDigits,
+//
+// and at least MinReferenceDigits: lambda·T/ln 10 digits are consumed by
+// the growth e^(lambda T) of the local errors, log10(scale/tol) are wanted
+// at the end.
+func ReferenceDigits(lambda, T, tol, scale float64) int {
+	d := math.Log10(math.Max(1, scale) / tol)
+	if lambda > 0 {
+		d += lambda * T / math.Ln10
+	}
+	return max(MinReferenceDigits, int(math.Ceil(d))+GuardDigits)
+}
+
+// Reference integrates a system's formulas from its start over [0, t1]
+// with the adaptive Taylor method of integrate.SolveTaylor, at a working
+// precision chosen so that the states at the output times (times, sorted,
+// in [0, t1]; t1 is appended when missing) are correct to the tolerance
+// despite the exponential growth of errors (see ReferenceDigits), in
+// double-double when that precision fits (integrate.MaxDDDigits) and in
+// big.Float beyond. A second run CheckDrop digits less precise checks the
+// result (ReferenceResult.Check).
+//
+// The model is the float64 model: formulas' numbers and parameters are
+// their float64 values, computed on in higher precision, so the reference
+// is the exact solution of the same equations the float64 runs solve.
+//
+// Errors: a system without vector-field formulas (ErrKind), bad times or
+// settings (integrate.ErrSpan, integrate.ErrSettings) before any work; a
+// failing exponent estimate; a failing run, with the partial result.
+//
+// References:
+//
+//	À. Jorba, M. Zou, A software package for the numerical integration of
+//	  ODEs by means of high-order Taylor methods, Experimental Mathematics
+//	  14 (2005) 99–117.
+//	G. Boffetta, M. Cencini, M. Falcioni, A. Vulpiani, Predictability: a way
+//	  to characterize complexity, Phys. Rep. 356 (2002) 367–474 (error
+//	  growth e^(λ_1 t)).
+func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s *ReferenceSettings) (*ReferenceResult, error) {
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	if sys == nil {
+		return nil, fmt.Errorf("plumb: Reference of a nil system: %w", integrate.ErrSettings)
+	}
+	var set ReferenceSettings
+	if s != nil {
+		set = *s
+	}
+	sr, err := sys.series()
+	if err != nil {
+		return nil, err
+	}
+	if !(t1 > 0) || math.IsInf(t1, 0) {
+		return nil, fmt.Errorf("plumb: Reference t1 = %v: must be positive and finite: %w", t1, integrate.ErrSpan)
+	}
+	switch {
+	case math.IsNaN(set.Lambda) || math.IsInf(set.Lambda, 0):
+		return nil, fmt.Errorf("plumb: ReferenceSettings.Lambda = %v: must be finite: %w", set.Lambda, integrate.ErrSettings)
+	case !(set.Tol >= 0) || math.IsInf(set.Tol, 0):
+		return nil, fmt.Errorf("plumb: ReferenceSettings.Tol = %v: must be finite and >= 0: %w", set.Tol, integrate.ErrSettings)
+	case set.Digits < 0 || set.Digits > 10000:
+		return nil, fmt.Errorf("plumb: ReferenceSettings.Digits = %d: must be in [0, 10000]: %w", set.Digits, integrate.ErrSettings)
+	case set.MaxSteps < 0:
+		return nil, fmt.Errorf("plumb: ReferenceSettings.MaxSteps = %d: must be >= 0: %w", set.MaxSteps, integrate.ErrSettings)
+	}
+	ts := append([]float64(nil), times...)
+	for i, t := range ts {
+		if math.IsNaN(t) || t < 0 || t > t1 || (i > 0 && t <= ts[i-1]) {
+			return nil, fmt.Errorf("plumb: Reference time %d = %v: times must increase within [0, %v]: %w", i, t, t1, integrate.ErrSpan)
+		}
+	}
+	if len(ts) == 0 || ts[len(ts)-1] != t1 {
+		ts = append(ts, t1)
+	}
+	y0 := sys.Start()
+	scale := 0.0
+	for _, v := range y0 {
+		scale = math.Max(scale, math.Abs(v))
+	}
+	res := &ReferenceResult{}
+	digits := set.Digits
+	if digits == 0 {
+		lambda := set.Lambda
+		if lambda == 0 {
+			sp, err := lyap.Exponents(ctx, sys.Problem(), 1, nil)
+			if err != nil {
+				return nil, fmt.Errorf("plumb: Reference: estimating the largest exponent: %w", err)
+			}
+			lambda = sp.Exponents[0]
+		}
+		res.Lambda = lambda
+		tol := set.Tol
+		if tol == 0 {
+			tol = math.Pow(10, -DefaultReferenceDigits) * math.Max(1, scale)
+		}
+		digits = ReferenceDigits(lambda, t1, tol, scale)
+	}
+	main, err := integrate.SolveTaylor(ctx, sr, 0, y0, ts, &integrate.TaylorSettings{Digits: digits, MaxSteps: set.MaxSteps})
+	if main != nil {
+		res.Times, res.States, res.Float64 = main.Times, main.States, main.Float64
+		res.Digits, res.Arithmetic, res.Prec, res.Order, res.Stats = main.Digits, main.Arithmetic, main.Prec, main.Order, main.Stats
+	}
+	if err != nil {
+		return res, fmt.Errorf("plumb: reference run at %d digits: %w", digits, err)
+	}
+	if set.NoCheck {
+		return res, nil
+	}
+	cd := max(digits-CheckDrop, 8)
+	chk, err := integrate.SolveTaylor(ctx, sr, 0, y0, ts, &integrate.TaylorSettings{Digits: cd, MaxSteps: set.MaxSteps})
+	if err != nil {
+		return res, fmt.Errorf("plumb: reference check run at %d digits: %w", cd, err)
+	}
+	c := &ReferenceCheck{Digits: cd, Arithmetic: chk.Arithmetic, Steps: chk.Stats.Steps}
+	d := new(big.Float).SetPrec(main.Prec)
+	for k := range main.States {
+		m := 0.0
+		for i, v := range main.States[k] {
+			f, _ := d.Sub(v, chk.States[k][i]).Float64()
+			m = math.Max(m, math.Abs(f))
+		}
+		c.Difference = math.Max(c.Difference, m)
+		c.AtEnd = m
+	}
+	c.Error = c.AtEnd / math.Pow(10, float64(digits-cd))
+	res.Check = c
+	return res, nil
+}
+
+// series returns the system's Taylor-coefficient provider.
+func (s *System) series() (*systemSeries, error) {
+	if s.form == nil || s.kind == KindMap {
+		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor reference: %w", s.Name, ErrKind)
+	}
+	return &systemSeries{n: s.form.n, prog: s.form.fieldProg, params: append([]float64(nil), s.params...)}, nil
+}
+
+// systemSeries implements integrate.Series from a system's formulas by the
+// Taylor-mode recurrences of internal/expr, at the parameters it was made
+// with (bigParams, when set, give them at full precision to big runs).
+type systemSeries struct {
+	n         int
+	prog      *expr.Program
+	params    []float64
+	bigParams []*big.Float
+}
+
+func (f *systemSeries) Dim() int { return f.n }
+
+func (f *systemSeries) DD(order int) (func(t dd.Float, y []dd.Float, c [][]dd.Float) error, error) {
+	ty, err := f.prog.NewTaylorDD(order)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: %w", err)
+	}
+	for i, p := range f.params {
+		ty.SetParam(1+f.n+i, dd.From(p))
+		if f.bigParams != nil {
+			ty.SetParam(1+f.n+i, dd.FromBig(f.bigParams[i]))
+		}
+	}
+	return func(t dd.Float, y []dd.Float, c [][]dd.Float) error {
+		if err := ty.ODE(t, y, c); err != nil {
+			return fmt.Errorf("plumb: %w", err)
+		}
+		return nil
+	}, nil
+}
+
+func (f *systemSeries) Big(order int, prec uint) (func(t *big.Float, y []*big.Float, c [][]*big.Float) error, error) {
+	ty, err := f.prog.NewTaylorBig(order, prec)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: %w", err)
+	}
+	for i, p := range f.params {
+		v := new(big.Float).SetPrec(prec).SetFloat64(p)
+		if f.bigParams != nil {
+			v.Set(f.bigParams[i])
+		}
+		ty.SetParam(1+f.n+i, v)
+	}
+	return func(t *big.Float, y []*big.Float, c [][]*big.Float) error {
+		if err := ty.ODE(t, y, c); err != nil {
+			return fmt.Errorf("plumb: %w", err)
+		}
+		return nil
+	}, nil
+}
+
+// refTolFraction is how far below the audit's tolerance the reference of
+// TrustSystem is made accurate at the end of the span (common practice: a
+// reference a thousand times more accurate than the differences it
+// judges).
+const refTolFraction = 1e-3
+
+// TrustSystem is Trust for a system with formulas, with a multiprecision
+// reference: every rung of the ladder is compared with a Taylor reference
+// trajectory (see Reference) accurate to refTolFraction·Tol at the end of
+// the span and at least MinReferenceDigits digits throughout, instead of
+// with the tightest float64 run; that run becomes one more comparison
+// (Report.Reference gets a divergence curve and its agreement horizon).
+// The precision follows ReferenceDigits from the largest exponent
+// (TrustSettings.Lambda, or the estimate Trust would make, made first),
+// the horizon and Tol (a relative Tol is taken as absolute there, which is
+// conservative for a spread above 1); at most integrate.MaxDDDigits digits
+// run in double-double, more in big.Float. The reference runs once, at
+// the audit's comparison times, without its self-check (see Reference for
+// a checked run); Report.Exact describes it. A Ladder's own Exact is
+// replaced.
+//
+// When the exponent estimate fails (not by cancellation), TrustSystem
+// falls back to Trust against the float64 reference run, whose report
+// says why in ExponentError.
+//
+// Errors: those of Trust, and ErrKind for a system without vector-field
+// formulas.
+//
+// # Caution
+//
+// A trust horizon is a numerical statement about a model, not a safety
+// certificate for the real system; safety-critical use follows the field's
+// own codes and licensed review.
+//
+// References: see Trust and Reference.
+func TrustSystem(ctx context.Context, sys *System, horizon float64, settings *TrustSettings) (*Report, error) {
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	if sys == nil {
+		return nil, fmt.Errorf("plumb: TrustSystem of a nil system: %w", integrate.ErrSettings)
+	}
+	sr, err := sys.series()
+	if err != nil {
+		return nil, err
+	}
+	problem := sys.Problem()
+	if settings == nil || !(settings.Tol > 0) || math.IsInf(settings.Tol, 0) ||
+		!(horizon > 0) || math.IsInf(horizon, 0) || !(settings.Lambda >= 0) || math.IsInf(settings.Lambda, 0) {
+		return Trust(ctx, problem, horizon, settings) // its validation and errors
+	}
+	s := *settings
+	var est *ExponentEstimate
+	if s.Lambda == 0 {
+		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
+		if err != nil {
+			if ctx.Err() != nil {
+				return nil, fmt.Errorf("plumb: trust canceled during the exponent estimate: %w", err)
+			}
+			// Without an exponent there is no precision rule: the plain
+			// audit, which reports why the estimate failed.
+			return Trust(ctx, problem, horizon, settings)
+		}
+		est = &ExponentEstimate{Value: sp.Exponents[0], Source: "estimated"}
+		if len(sp.StdErr) == 1 && finite(sp.StdErr[0]) {
+			est.StdErr = sp.StdErr[0]
+		}
+		if !(est.Value > 0) {
+			est.Value = 0
+		}
+		s.Lambda = est.Value
+	}
+	scale := 0.0
+	for _, v := range problem.Y0 {
+		scale = math.Max(scale, math.Abs(v))
+	}
+	digits := ReferenceDigits(s.Lambda, horizon, refTolFraction*s.Tol, scale)
+	ladder := integrate.DefaultLadder(problem.T0, problem.T0+horizon)
+	if s.Ladder != nil {
+		ladder = *s.Ladder
+	}
+	y0 := problem.Y0
+	var ex *ExactReference
+	ladder.Exact = func(ctx context.Context, times []float64) ([][]float64, error) {
+		r, err := integrate.SolveTaylor(ctx, sr, problem.T0, y0, times, &integrate.TaylorSettings{Digits: digits})
+		if r != nil {
+			ex = &ExactReference{Method: "Taylor (Jorba–Zou order and step)", Arithmetic: r.Arithmetic,
+				Digits: r.Digits, Order: r.Order, Steps: r.Stats.Steps, Lambda: s.Lambda}
+		}
+		if err != nil {
+			return nil, fmt.Errorf("plumb: reference run at %d digits: %w", digits, err)
+		}
+		return r.Float64, nil
+	}
+	s.Ladder = &ladder
+	rep, err := Trust(ctx, problem, horizon, &s)
+	if rep != nil {
+		rep.Exact = ex
+		if est != nil && rep.Exponent != nil {
+			rep.Exponent.Source, rep.Exponent.StdErr = est.Source, est.StdErr
+		}
+	}
+	return rep, err
+}
+
+// ExactReference describes the multiprecision reference of a TrustSystem
+// audit.
+type ExactReference struct {
+	Method     string `json:"method"`
+	Arithmetic string `json:"arithmetic"`
+	// Digits is the working precision in decimal digits, Order the Taylor
+	// order, Steps the Taylor steps.
+	Digits int `json:"digits"`
+	Order  int `json:"order"`
+	Steps  int `json:"steps"`
+	// Lambda is the largest exponent that set Digits.
+	Lambda float64 `json:"lambda"`
+}
