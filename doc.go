@@ -33,6 +33,12 @@
 //	rep, err := plumb.Trust(ctx, sys.Problem(), 50, &plumb.TrustSettings{Tol: 1})
 //	// rep.TrustedUntil, rep.LimitedBy, rep.Verdict; rep.Write(os.Stdout)
 //
+// TrustSystem does the same for a System with formulas (every built-in has
+// them) and compares every float64 run with a Taylor-series reference
+// computed in double-double or big.Float at the precision the horizon needs
+// (Reference), so the tightest float64 run is audited too, not taken as the
+// truth.
+//
 // # Caution
 //
 // A trust horizon is a numerical statement about a model, not a safety

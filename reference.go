@@ -105,9 +105,9 @@ type ReferenceCheck struct {
 // the growth e^(lambda T) of the local errors, log10(scale/tol) are wanted
 // at the end.
 func ReferenceDigits(lambda, T, tol, scale float64) int {
-	d := math.Log10(math.Max(1, scale) / tol)
+	d := float64(math.Log10(math.Max(1, scale) / tol))
 	if lambda > 0 {
-		d += lambda * T / math.Ln10
+		d += float64(float64(lambda*T) / math.Ln10)
 	}
 	return max(MinReferenceDigits, int(math.Ceil(d))+GuardDigits)
 }

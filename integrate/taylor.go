@@ -501,5 +501,5 @@ func logAbs(x *big.Float) float64 {
 	var m big.Float
 	e := x.MantExp(&m)
 	mf, _ := m.Float64()
-	return math.Log(math.Abs(mf)) + float64(e)*math.Ln2
+	return math.Log(math.Abs(mf)) + float64(float64(e)*math.Ln2)
 }
