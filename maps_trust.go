@@ -63,6 +63,9 @@ type MapTrustSettings struct {
 	// state's units (Euclidean norm, angles wrapped by their period). Must
 	// be finite and > 0; otherwise ErrTolerance.
 	Tol float64
+	// Relative makes Tol a fraction of the reference orbit's spread (its
+	// root-mean-square distance from its mean).
+	Relative bool
 	// Rungs are the runs compared with the reference; nil means
 	// DefaultMapRungs(steps). An empty non-nil list is invalid
 	// (integrate.ErrLadder), as is a rung of another kind or a restart
@@ -83,8 +86,11 @@ type MapTrustSettings struct {
 type MapReport struct {
 	// Steps is the audited number of iterations (iterates 0..Steps).
 	Steps int `json:"steps"`
-	// Tol is the tolerance.
-	Tol float64 `json:"tol"`
+	// Tol is the tolerance as given, Relative whether it is a fraction of
+	// Spread, TolAbs the absolute tolerance used.
+	Tol      float64 `json:"tol"`
+	Relative bool    `json:"relative"`
+	TolAbs   float64 `json:"tol_abs"`
 	// Spread is the reference orbit's root-mean-square distance from its
 	// mean, Magnitude its root-mean-square norm (the scale of a rounding).
 	Spread    float64 `json:"spread"`
@@ -262,7 +268,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 	}
 	periods := sys.Periods()
 	rep := &MapReport{
-		Steps: steps, Tol: s.Tol, Reference: "double-double (about 32 digits)",
+		Steps: steps, Tol: s.Tol, Relative: s.Relative, TolAbs: s.Tol, Reference: "double-double (about 32 digits)",
 		Rungs: []MapRungReport{}, Caution: Caution, Arch: runtime.GOARCH, Version: buildVersion(),
 	}
 
@@ -276,6 +282,15 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 		rep.TrustedUntil = 0
 		return rep, fmt.Errorf("plumb: TrustMap: reference orbit stopped at iterate %d: %w", reached, refErr)
 	}
+	tol := s.Tol
+	if s.Relative {
+		tol = float64(s.Tol * rep.Spread)
+		rep.TolAbs = tol
+		if !(tol > 0) {
+			rep.Verdict = Incomplete
+			return rep, fmt.Errorf("plumb: TrustMap: a relative tolerance needs an orbit with spread, and this one has none (a fixed point): %w", integrate.ErrSettings)
+		}
+	}
 
 	x, y := make([]float64, n), make([]float64, n)
 	for _, r := range rungs {
@@ -283,7 +298,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 			rep.Verdict = Incomplete
 			return rep, fmt.Errorf("plumb: TrustMap canceled after %d rungs: %w", len(rep.Rungs), err)
 		}
-		rep.Rungs = append(rep.Rungs, runMapRung(ctx, m, r, x0, ref, steps, periods, rep.Magnitude, s.Tol, x, y))
+		rep.Rungs = append(rep.Rungs, runMapRung(ctx, m, r, x0, ref, steps, periods, rep.Magnitude, tol, x, y))
 	}
 
 	lambda := s.Lambda
@@ -314,8 +329,8 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 		for i := range rep.Rungs {
 			r := &rep.Rungs[i]
 			r.Predicted = float64(r.Start)
-			if r.Delta0 < s.Tol {
-				r.Predicted += math.Log(s.Tol/r.Delta0) / lambda
+			if r.Delta0 < tol {
+				r.Predicted += math.Log(tol/r.Delta0) / lambda
 			}
 		}
 	}
@@ -632,7 +647,7 @@ func (rep *MapReport) fill() {
 			}
 		}
 	}
-	rep.TolUsed = maxDiv / rep.Tol
+	rep.TolUsed = maxDiv / rep.TolAbs
 	rep.LimitedBy, rep.LimitingRung = "", ""
 	if limit >= 0 {
 		rep.LimitedBy, rep.LimitingRung = rep.Rungs[limit].Effect, rep.Rungs[limit].Name
@@ -675,7 +690,11 @@ func (rep *MapReport) fill() {
 // iterate and what limits it, the verdict and the caution.
 func (rep *MapReport) Write(w io.Writer) error {
 	var b strings.Builder
-	fmt.Fprintf(&b, "audit of iterates 0 .. %d at tolerance %.3g\n", rep.Steps, rep.Tol)
+	tolWord := fmt.Sprintf("%.3g", rep.Tol)
+	if rep.Relative {
+		tolWord = fmt.Sprintf("%.3g of the spread (%.3g)", rep.Tol, rep.TolAbs)
+	}
+	fmt.Fprintf(&b, "audit of iterates 0 .. %d at tolerance %s\n", rep.Steps, tolWord)
 	fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference)
 	tw := tabwriter.NewWriter(&b, 0, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "rung\teffect\tagrees until\tpredicted\tgrowth\t")

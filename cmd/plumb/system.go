@@ -51,14 +51,6 @@ func (sh *shared) loadFile() (*plumb.System, error) {
 	return sys, nil
 }
 
-// needFlow refuses a map system for a command that integrates a flow.
-func needFlow(sys *plumb.System, cmd string) error {
-	if sys.Kind() == plumb.KindMap {
-		return usagef("--file: %s is a map (next values, not rates); plumb %s needs a flow or a Hamiltonian", sys.Name, cmd)
-	}
-	return nil
-}
-
 // applySets applies every --set in order.
 func (sh *shared) applySets(sys *plumb.System) (*plumb.System, error) {
 	for _, s := range sh.sets {
