@@ -234,3 +234,15 @@ func TestSolveMapFailure(t *testing.T) {
 		t.Errorf("exit %d, stderr %q\n%.100s", r.code, r.stderr, r.stdout)
 	}
 }
+
+// TestSolveMapCanceled: Ctrl-C during an orbit still writes the iterates
+// done, and the exit status is 1.
+func TestSolveMapCanceled(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r := plumbRunCtx(t, ctx, "solve", "--model", "henon", "--steps", "5000", "--format", "csv", "--quiet")
+	rows := strings.Count(r.stdout, "\n") - 1
+	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") || rows < 1 || rows > 5000 {
+		t.Errorf("exit %d, %d rows, stderr %q", r.code, rows, r.stderr)
+	}
+}
