@@ -290,3 +290,24 @@ func TestTrustMapErrors(t *testing.T) {
 		t.Errorf("canceled: report %v, error %v", rep, err)
 	}
 }
+
+// TestTrustMapRelative: a relative tolerance is a fraction of the
+// reference orbit's spread (definition), and a fixed point has none.
+func TestTrustMapRelative(t *testing.T) {
+	s, _ := Model("henon")
+	rep, err := TrustMap(context.Background(), s, 100, &MapTrustSettings{Tol: 0.1, Relative: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !(rep.Spread > 0) || rep.TolAbs != 0.1*rep.Spread || !rep.Relative {
+		t.Errorf("spread %v, tol_abs %v; want tol_abs = 0.1·spread", rep.Spread, rep.TolAbs)
+	}
+	// The logistic map's fixed point 1 - 1/r (exact) never moves.
+	l, _ := Model("logistic")
+	_ = l.Set("r", 2)
+	_ = l.SetStart([]float64{0.5})
+	rep, err = TrustMap(context.Background(), l, 50, &MapTrustSettings{Tol: 0.1, Relative: true})
+	if !errors.Is(err, integrate.ErrSettings) || rep == nil || rep.Verdict != Incomplete {
+		t.Errorf("fixed point: error %v, report %v", err, rep)
+	}
+}

@@ -246,3 +246,21 @@ func TestSolveMapCanceled(t *testing.T) {
 		t.Errorf("exit %d, %d rows, stderr %q", r.code, rows, r.stderr)
 	}
 }
+
+// TestMapGolden pins the map outputs of solve, spectrum and trust.
+func TestMapGolden(t *testing.T) {
+	for _, c := range []struct {
+		file string
+		args []string
+	}{
+		{"solve_henon.csv", []string{"solve", "--model", "henon", "--steps", "20", "--format", "csv"}},
+		{"spectrum_henon.txt", []string{"spectrum", "--model", "henon", "--iterations", "20000"}},
+		{"trust_logistic.txt", []string{"trust", "--model", "logistic", "--horizon", "60"}},
+	} {
+		r := plumbRun(t, c.args...)
+		if r.code != exitOK {
+			t.Fatalf("%v: exit %d, stderr %q", c.args, r.code, r.stderr)
+		}
+		golden(t, c.file, r.stdout)
+	}
+}
