@@ -9,7 +9,8 @@
 //
 // # Map of the SDK
 //
-//	plumb (this package)  Trust, the audit behind "plumb trust"; Model, LoadSystem and
+//	plumb (this package)  Trust, the audit behind "plumb trust"; TrustMap, its map analogue
+//	                      (iterates against a double-double orbit); Model, LoadSystem and
 //	                      System: built-in and formula-defined systems with exact Jacobians
 //	integrate             error-controlled, fixed-step and symplectic integrators, dense
 //	                      output, crossings, precision emulation, the audit ladder
@@ -18,7 +19,7 @@
 //	internal/expr         formulas: parser, symbolic derivatives, float64, double-double,
 //	                      big.Float and Taylor-series evaluators
 //	internal/dd           double-double arithmetic
-//	internal/models       the catalog of published flows with their sources
+//	internal/models       the catalog of published flows and maps with their sources
 //	cmd/plumb             the command-line binary
 //
 // # The main job

@@ -66,6 +66,9 @@ func Model(name string) (*System, error) {
 	if f.Period != nil {
 		s.periods = append([]float64(nil), f.Period...)
 	}
+	if f.Map {
+		s.kind = KindMap
+	}
 	s.form = cachedFormulas(f)
 	return s, nil
 }
@@ -111,6 +114,9 @@ func builtinFormulas(f *models.Flow, rates []string) (*formulaSystem, error) {
 	}
 	g := expr.NewGraph(names)
 	fs := &formulaSystem{kind: KindFlow, g: g, n: len(f.States)}
+	if f.Map {
+		fs.kind = KindMap
+	}
 	if len(rates) != len(f.States) {
 		return nil, fmt.Errorf("%d formulas for %d states", len(rates), len(f.States))
 	}
@@ -234,6 +240,9 @@ func (s *System) Separable() bool {
 // reject with integrate.ErrSettings); use Map instead.
 func (s *System) Problem() integrate.Problem {
 	p := integrate.Problem{Y0: append([]float64(nil), s.y0...)}
+	if s.kind == KindMap {
+		return p
+	}
 	if s.flow != nil {
 		p.F = s.flow.Field(append([]float64(nil), s.params...))
 		if s.flow.Jac != nil {
@@ -247,9 +256,6 @@ func (s *System) Problem() integrate.Problem {
 		}
 		return p
 	}
-	if s.kind == KindMap {
-		return p
-	}
 	p.F = s.form.fieldFunc(s.params)
 	p.Jac = s.form.jacFunc(s.params)
 	if h := s.form.ham; h != nil && h.separable {
@@ -258,14 +264,21 @@ func (s *System) Problem() integrate.Problem {
 	return p
 }
 
-// MapSystem is a map x -> f(x) from a system file, with its exact Jacobian.
-// It satisfies the lyap.Map interface. Not safe for concurrent use.
+// MapSystem is a map x -> f(x), built in or from a system file, with its
+// exact Jacobian. It satisfies the lyap.Map interface. Components with a
+// period (an angle) are reduced to [0, period) after every iterate. Not safe
+// for concurrent use.
 type MapSystem struct {
 	n    int
-	next *expr.Float64
+	next *expr.Float64 // formulas, or nil for a built-in's Go map
 	jac  *expr.Float64
 	buf  []float64
 	jbuf []float64
+	// goNext and goJac are a built-in's hand-written map and Jacobian.
+	goNext  func(t float64, x, dst []float64)
+	goJac   func(t float64, x []float64, dst *mat.Dense)
+	jm      *mat.Dense // n×n scratch of goJac
+	periods []float64
 }
 
 // Dim returns the dimension of the state.
@@ -275,16 +288,26 @@ func (m *MapSystem) Dim() int { return m.n }
 // first Dim components of x (missing ones keep the previous call's values)
 // and writes at most len(dst) components. It does not allocate.
 func (m *MapSystem) Next(x, dst []float64) {
-	copy(m.next.Vars()[1:1+m.n], x)
-	m.next.Run(m.buf)
+	if m.goNext != nil {
+		m.goNext(0, x, m.buf)
+	} else {
+		copy(m.next.Vars()[1:1+m.n], x)
+		m.next.Run(m.buf)
+	}
+	wrapPeriodic(m.buf, m.periods)
 	copy(dst, m.buf)
 }
 
 // Jacobian writes df/dx at x into dst, which should be Dim×Dim (a matrix of
 // another size gets the overlapping block). It does not allocate.
 func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
-	copy(m.jac.Vars()[1:1+m.n], x)
-	m.jac.Run(m.jbuf)
+	if m.goJac != nil {
+		m.goJac(0, x, m.jm)
+		copy(m.jbuf, m.jm.RawMatrix().Data)
+	} else {
+		copy(m.jac.Vars()[1:1+m.n], x)
+		m.jac.Run(m.jbuf)
+	}
 	r, c := dst.Dims()
 	for i := 0; i < min(m.n, r); i++ {
 		for j := 0; j < min(m.n, c); j++ {
@@ -299,9 +322,12 @@ func (s *System) Map() (*MapSystem, error) {
 	if s.kind != KindMap {
 		return nil, fmt.Errorf("plumb: %s is a %s, not a map: %w", s.Name, s.kind, ErrKind)
 	}
+	if s.flow != nil {
+		return s.builtinMap(), nil
+	}
 	f := s.form
 	m := &MapSystem{n: f.n, next: f.fieldProg.NewFloat64(), jac: f.jacProg.NewFloat64(),
-		buf: make([]float64, f.n), jbuf: make([]float64, f.n*f.n)}
+		buf: make([]float64, f.n), jbuf: make([]float64, f.n*f.n), periods: s.Periods()}
 	f.setParams(m.next.Vars(), s.params)
 	f.setParams(m.jac.Vars(), s.params)
 	return m, nil

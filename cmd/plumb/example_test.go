@@ -26,7 +26,7 @@ func Example_solve() {
 func Example_models() {
 	run(context.Background(), []string{"models", "--model", "vanderpol", "--set", "mu=5"}, strings.NewReader(""), os.Stdout, os.Stderr)
 	// Output:
-	// vanderpol: Van der Pol oscillator
+	// vanderpol: Van der Pol oscillator (flow)
 	//   state  start  period
 	//   x      2      -
 	//   v      0      -

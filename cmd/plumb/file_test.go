@@ -41,7 +41,7 @@ func TestFileMatchesModel(t *testing.T) {
 }
 
 // TestFileErrors: a bad system file is a usage error (exit 2) that names
-// the file and the place; a map cannot be integrated as a flow.
+// the file and the place; a map takes no flow flags.
 func TestFileErrors(t *testing.T) {
 	for _, c := range []struct {
 		name, stdin string
@@ -54,7 +54,7 @@ func TestFileErrors(t *testing.T) {
 		{"unknown field", `{"name":"x","kind":"flow","colour":1,"variables":[{"name":"a","start":1,"rate":"-a"}]}`,
 			[]string{"solve", "--file", "-"}, []string{"colour"}},
 		{"not JSON", `{"name":`, []string{"spectrum", "--file", "-"}, []string{"--file -"}},
-		{"a map", "", []string{"trust", "--file", "../../examples/systems/fish-stock.json"}, []string{"map", "plumb trust"}},
+		{"a map with a flow flag", "", []string{"solve", "--file", "../../examples/systems/fish-stock.json", "--t1", "5"}, []string{"map", "--t1"}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			var out, errb bytes.Buffer

@@ -65,7 +65,7 @@ func runModels(_ context.Context, cl *call) error {
 // modelTable writes one system as a block of aligned lines.
 func modelTable(cl *call, s *plumb.System) error {
 	d := describe(s)
-	fmt.Fprintf(cl.stdout, "%s: %s\n", d.Name, d.Title)
+	fmt.Fprintf(cl.stdout, "%s: %s (%s)\n", d.Name, d.Title, d.Kind)
 	tw := newTable(cl.stdout)
 	fmt.Fprintf(tw, "  state\tstart\tperiod\n")
 	for _, st := range d.States {

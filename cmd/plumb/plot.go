@@ -12,6 +12,7 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
 )
 
 // series is one named curve of a chart: Y against X.
@@ -31,7 +32,10 @@ type lineChart struct {
 	// LegendBottom puts the legend in the lower right corner instead of
 	// the upper right (divergence curves leave that corner empty).
 	LegendBottom bool
-	Series       []series
+	// Scatter draws every series as unconnected dots (an orbit of a map,
+	// where a line between iterates means nothing) instead of a line.
+	Scatter bool
+	Series  []series
 	// Width and Height of the picture; zero means 16 cm by 10 cm.
 	Width, Height vg.Length
 }
@@ -89,6 +93,21 @@ func (c *lineChart) build() (*plot.Plot, error) {
 	for i, s := range c.Series {
 		xy := c.points(s)
 		if len(xy) == 0 {
+			continue
+		}
+		if c.Scatter {
+			sc, err := plotter.NewScatter(xy)
+			if err != nil {
+				return nil, fmt.Errorf("series %q: %w", s.Name, err)
+			}
+			sc.GlyphStyle.Color = palette[i%len(palette)]
+			sc.GlyphStyle.Radius = vg.Points(0.6)
+			sc.GlyphStyle.Shape = draw.CircleGlyph{}
+			p.Add(sc)
+			if s.Name != "" {
+				p.Legend.Add(s.Name, sc)
+			}
+			drawn++
 			continue
 		}
 		l, err := plotter.NewLine(xy)

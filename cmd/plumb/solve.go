@@ -25,6 +25,14 @@ shortest decimals that read back to the same bits. --format json writes one
 object: plumb_version, arch, command, system (parameters as used), settings
 (echoed), units, status, error, end, final, stats, samples, crossings.
 
+A map (henon, logistic, standard, ikeda, or a system file of kind map) is
+iterated instead: --steps N writes the iterates n = 0..N (angles reduced to
+[0, period)); the table and CSV have the columns n and the states, JSON
+holds system, settings, units, status, error, end, final and orbit, and
+--plot draws the orbit as dots (the first two components against each
+other; for one component x_(n+1) against x_n). The time and integrator
+flags are for flows only.
+
 On Ctrl-C, or when the integration fails, the samples computed so far are
 still written; the exit status is then 1.`,
 	model:   "lorenz",
@@ -43,6 +51,7 @@ type solveFlags struct {
 	cross      crossList
 	sense      string
 	rows       string
+	steps      int
 }
 
 // Defaults of plumb solve, echoed in every result.
@@ -69,6 +78,7 @@ func setupSolve(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	fs.Var(&f.cross, "cross-state", "find the times at which a state crosses a value, given as `NAME=VALUE` (repeatable)")
 	fs.StringVar(&f.sense, "cross-sense", "either", "`SENSE` of the crossings that count: rising, falling or either")
 	fs.StringVar(&f.rows, "rows", "samples", "`ROWS` that --format csv writes: samples or crossings")
+	fs.IntVar(&f.steps, "steps", mapSteps, "iterate a map `N` times, writing iterates 0..N (maps only)")
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -230,8 +240,11 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
-	if err := needFlow(sys, "solve"); err != nil {
-		return err
+	if sys.Kind() == plumb.KindMap {
+		return f.runMap(ctx, cl, sys)
+	}
+	if cl.sh.given["steps"] {
+		return usagef("--steps %d: %s is a %s; --steps counts the iterates of a map (a flow runs from --t0 to --t1)", f.steps, sys.Name, sys.Kind())
 	}
 	m, im, err := pickMethod(f.method, f.h, cl.sh.given["step"])
 	if err != nil {

@@ -42,6 +42,12 @@ checks, run, stats, history. --format csv writes the convergence history
 (t, blocks, then each running estimate); --plot draws each estimate's
 distance from its final value as the run goes on.
 
+A map is iterated with its tangent map instead (exact Jacobian): the first
+--discard iterates are discarded and the next --iterations averaged, and
+the exponents, the derived measures and the sum check (against the mean of
+ln|det J|) are per iterate. The time and integrator flags are for flows
+only.
+
 On Ctrl-C, or when the integration fails, the estimate so far is still
 written; the exit status is then 1.`,
 	model:   "lorenz",
@@ -70,6 +76,8 @@ type spectrumFlags struct {
 	rtol, atol float64
 	method     string
 	h          float64
+	iterations int
+	discard    int
 }
 
 func setupSpectrum(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
@@ -82,6 +90,8 @@ func setupSpectrum(fs *flag.FlagSet, sh *shared) func(context.Context, *call) er
 	finiteVar(fs, &f.atol, "atol", lyap.DefaultAbsTol, "absolute tolerance `ATOL` of the trajectory and its tangent vectors")
 	fs.StringVar(&f.method, "method", methods[0].name, "integration `METHOD` of the trajectory and its tangent vectors: any of plumb solve's but the splittings (see 'plumb help solve')")
 	finiteVar(fs, &f.h, "step", 0, "step size `H` of a fixed-step method (-h is help)")
+	fs.IntVar(&f.iterations, "iterations", lyap.DefaultIterations, "average `N` iterates of a map after the discarded ones (maps only)")
+	fs.IntVar(&f.discard, "discard", mapDiscard, "discard the first `N` iterates of a map, so that the tangent vectors align (maps only)")
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -200,7 +210,10 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
-	if err := needFlow(sys, "spectrum"); err != nil {
+	if sys.Kind() == plumb.KindMap {
+		return f.runMap(ctx, cl, sys)
+	}
+	if err := refuseFlags(cl, sys, "--iterations and --discard are for maps (a flow runs from --t0 to --t1 after --transient)", "iterations", "discard"); err != nil {
 		return err
 	}
 	n := len(sys.States)

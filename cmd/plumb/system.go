@@ -51,14 +51,6 @@ func (sh *shared) loadFile() (*plumb.System, error) {
 	return sys, nil
 }
 
-// needFlow refuses a map system for a command that integrates a flow.
-func needFlow(sys *plumb.System, cmd string) error {
-	if sys.Kind() == plumb.KindMap {
-		return usagef("--file: %s is a map (next values, not rates); plumb %s needs a flow or a Hamiltonian", sys.Name, cmd)
-	}
-	return nil
-}
-
 // applySets applies every --set in order.
 func (sh *shared) applySets(sys *plumb.System) (*plumb.System, error) {
 	for _, s := range sh.sets {
@@ -77,6 +69,8 @@ type systemJSON struct {
 	Title string `json:"title"`
 	// Source is where the equations and default parameters are published.
 	Source string `json:"source"`
+	// Kind is flow, map or hamiltonian.
+	Kind string `json:"kind"`
 	// States lists the state components in order with their start values.
 	States []stateJSON `json:"states"`
 	// Parameters lists the parameters with the values used (after --set).
@@ -100,7 +94,7 @@ type paramJSON struct {
 
 // describe returns the JSON form of sys at its current parameters and start.
 func describe(sys *plumb.System) systemJSON {
-	out := systemJSON{Name: sys.Name, Title: sys.Title, Source: sys.Source, States: []stateJSON{}, Parameters: []paramJSON{}}
+	out := systemJSON{Name: sys.Name, Title: sys.Title, Source: sys.Source, Kind: string(sys.Kind()), States: []stateJSON{}, Parameters: []paramJSON{}}
 	start := sys.Start()
 	periods := sys.Periods()
 	for i, n := range sys.States {

@@ -50,6 +50,14 @@ A trust horizon is a statement about the numerical model, not a safety
 certificate for the real system; safety-critical use follows the field's
 own codes and licensed review.
 
+A map (henon, logistic, standard, ikeda, or a system file of kind map) is
+audited iterate by iterate instead: the reference is its orbit in
+double-double arithmetic (about 32 digits), the rungs are float64 itself,
+storage at 40 and 24 bits (precision) and a restart at 0.8 of the horizon
+(restart); --horizon counts iterates (default 100), --tol defaults to 0.1,
+--restart-at is an iterate, and the exponent is per iterate. --format csv
+writes n, then one column per rung.
+
 On Ctrl-C, or when the reference run fails, the rungs completed so far are
 still written; the exit status is then 1.`,
 	model:   "lorenz",
@@ -233,8 +241,8 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
-	if err := needFlow(sys, "trust"); err != nil {
-		return err
+	if sys.Kind() == plumb.KindMap {
+		return f.runMap(ctx, cl, sys)
 	}
 	p := sys.Problem()
 	ladder, names, err := f.ladder(cl, p.T0)

@@ -2,9 +2,9 @@ package models
 
 import "fmt"
 
-// Formulas gives each built-in flow's right-hand side as formulas, one per
-// state in the order of States, over the names t, the states and the
-// parameters (the formula language of internal/expr). They are the same
+// Formulas gives each built-in's right-hand side (for a map, the next
+// values) as formulas, one per state in the order of States, over the names
+// t, the states and the parameters (the formula language of internal/expr). They are the same
 // equations as the Go fields, checked against them at random points in
 // formulas_test.go, and give every built-in a symbolic Jacobian and
 // double-double and big.Float evaluators.
@@ -52,6 +52,14 @@ var Formulas = map[string][]string{
 		"-y - x^2 + y^2",
 	},
 	"lorenz96": lorenz96Formulas(40),
+	// Maps: the next value of each state.
+	"henon":    {"1 + y - a*x^2", "b*x"},
+	"logistic": {"r*x*(1 - x)"},
+	"standard": {"theta + p + k*sin(theta)", "p + k*sin(theta)"},
+	"ikeda": {
+		"1 + u*(x*cos(0.4 - 6/(1 + x^2 + y^2)) - y*sin(0.4 - 6/(1 + x^2 + y^2)))",
+		"u*(x*sin(0.4 - 6/(1 + x^2 + y^2)) + y*cos(0.4 - 6/(1 + x^2 + y^2)))",
+	},
 }
 
 // lorenz96Formulas writes dx_i/dt = (x_{i+1} - x_{i-2})·x_{i-1} - x_i + F on

@@ -1,9 +1,11 @@
-// Package models is plumb's catalog of built-in systems: published flows with
-// their published parameters, start values and sources, written as plain Go.
+// Package models is plumb's catalog of built-in systems: published flows and
+// maps with their published parameters, start values and sources, written as
+// plain Go.
 //
 // Every entry is a Flow: state names, parameters with defaults, a start, the
-// vector field (and its Jacobian where written out), the components that are
-// angles, and, for Hamiltonian systems, the separable parts. Nothing here
+// vector field (or, for a map, the next state) and its Jacobian where written
+// out, the components that are angles, and, for Hamiltonian systems, the
+// separable parts. Nothing here
 // imports the integrators: the root package turns a Flow into an
 // integrate.Problem.
 package models
@@ -23,12 +25,17 @@ type Param struct {
 	Doc   string
 }
 
-// Flow is a built-in continuous-time system y' = f(t, y; params).
+// Flow is a built-in system: a continuous-time flow y' = f(t, y; params) or,
+// with Map set, a discrete-time map x_{n+1} = f(x_n; params).
 type Flow struct {
-	Name   string   // catalog key, lower case
-	Title  string   // human name
-	Doc    string   // one line: what it models
-	Source string   // where the equations and parameters are published
+	Name   string // catalog key, lower case
+	Title  string // human name
+	Doc    string // one line: what it models
+	Source string // where the equations and parameters are published
+	// Map marks a discrete-time system: Field then writes the next state
+	// f(x) into its last argument (the time argument is unused) and Jac
+	// writes df/dx.
+	Map    bool
 	States []string // state names, in order
 	Params []Param  // parameters with their defaults, in order
 	Y0     []float64

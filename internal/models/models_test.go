@@ -74,7 +74,7 @@ func TestSeparableMatchesField(t *testing.T) {
 }
 
 func TestCatalog(t *testing.T) {
-	want := []string{"arenstorf", "double-pendulum", "henon-heiles", "kepler", "lorenz", "lorenz96", "rossler", "vanderpol"}
+	want := []string{"arenstorf", "double-pendulum", "henon", "henon-heiles", "ikeda", "kepler", "logistic", "lorenz", "lorenz96", "rossler", "standard", "vanderpol"}
 	got := Names()
 	if len(got) != len(want) {
 		t.Fatalf("Names() = %v, want %v", got, want)

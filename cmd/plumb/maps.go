@@ -1,0 +1,675 @@
+package main
+
+import (
+	"context"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/lyap"
+)
+
+// The map side of solve, spectrum and trust: a map is iterated, so its
+// "time" is the iterate n and the flow flags (--t1, --rtol, --method ...)
+// do not apply.
+
+// Defaults for maps.
+const (
+	mapSteps        = 1000   // iterates plumb solve writes
+	mapDiscard      = 10_000 // iterates plumb spectrum discards first
+	mapTrustHorizon = 100    // iterates plumb trust audits: past float64's ~50 for a doubling map
+	mapTrustTol     = 0.1    // a tenth of a state unit
+)
+
+// refuseFlags is a usage error naming the first of names that the command
+// line set: those flags do not apply to sys's kind.
+func refuseFlags(cl *call, sys *plumb.System, why string, names ...string) error {
+	for _, n := range names {
+		if cl.sh.given[n] {
+			return usagef("--%s: %s is a %s; %s", n, sys.Name, sys.Kind(), why)
+		}
+	}
+	return nil
+}
+
+// flowOnlySolve are plumb solve's flags that only a flow takes.
+var flowOnlySolve = []string{"t0", "t1", "dt", "rtol", "atol", "method", "step", "max-steps", "cross-state", "cross-sense", "rows"}
+
+// mapSolveJSON is the --format json result of plumb solve on a map.
+type mapSolveJSON struct {
+	header
+	// System is the map iterated, with the parameters as used.
+	System systemJSON `json:"system"`
+	// Settings echoes the flags that shaped the run.
+	Settings mapSolveSettingsJSON `json:"settings"`
+	// Units says in what units the numbers are.
+	Units mapSolveUnitsJSON `json:"units"`
+	// Status is completed, canceled or failed; Error says why.
+	Status string `json:"status"`
+	Error  string `json:"error,omitempty"`
+	// End is the last iterate computed and Final the state there.
+	End   int       `json:"end"`
+	Final []float64 `json:"final"`
+	// Orbit holds the iterates 0..End.
+	Orbit []iterateJSON `json:"orbit"`
+}
+
+// mapSolveSettingsJSON echoes the settings of a map's orbit.
+type mapSolveSettingsJSON struct {
+	Steps int `json:"steps"`
+}
+
+// mapSolveUnitsJSON says in what units the numbers of an orbit are.
+type mapSolveUnitsJSON struct {
+	N     string `json:"n"`
+	State string `json:"state"`
+}
+
+var mapSolveUnits = mapSolveUnitsJSON{
+	N:     "iterates from the start (steps, end, orbit[].n)",
+	State: "each state component in the model's own unit, angles reduced to [0, period) (start, final, orbit[].x)",
+}
+
+// iterateJSON is the state X at iterate N.
+type iterateJSON struct {
+	N int       `json:"n"`
+	X []float64 `json:"x"`
+}
+
+// runMap writes the orbit of a map: iterates 0..--steps.
+func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) error {
+	if err := refuseFlags(cl, sys, "plumb solve iterates it --steps times (the time and integrator flags are for flows)", flowOnlySolve...); err != nil {
+		return err
+	}
+	if f.steps < 1 || f.steps > maxSamples {
+		return usagef("--steps %d: must be 1 to %d", f.steps, maxSamples)
+	}
+	m, err := sys.Map()
+	if err != nil {
+		return fmt.Errorf("preparing the map %s failed: %w", sys.Name, err)
+	}
+	start := now()
+	n := m.Dim()
+	x := sys.Start()
+	orbit := make([]float64, 0, n*(f.steps+1))
+	orbit = append(orbit, x...)
+	var runErr error
+	status := "completed"
+	for it := 1; it <= f.steps; it++ {
+		if it%1024 == 0 {
+			if err := ctx.Err(); err != nil {
+				runErr, status = fmt.Errorf("canceled after iterate %d: %w", it-1, err), "canceled"
+				break
+			}
+		}
+		m.Next(x, x)
+		if i := firstNonFinite(x); i >= 0 {
+			runErr, status = fmt.Errorf("iterate %d: %s = %v is not finite: %w", it, sys.States[i], x[i], integrate.ErrNonFinite), "failed"
+			break
+		}
+		orbit = append(orbit, x...)
+	}
+	end := len(orbit)/n - 1
+	out := mapSolveJSON{
+		header: newHeader("solve"), System: describe(sys),
+		Settings: mapSolveSettingsJSON{Steps: f.steps}, Units: mapSolveUnits,
+		Status: status, End: end, Final: append([]float64(nil), orbit[end*n:]...),
+		Orbit: make([]iterateJSON, end+1),
+	}
+	if runErr != nil {
+		out.Error = runErr.Error()
+	}
+	for i := range out.Orbit {
+		out.Orbit[i] = iterateJSON{N: i, X: orbit[i*n : (i+1)*n]}
+	}
+	var werr error
+	switch cl.sh.format {
+	case "json":
+		werr = writeJSON(cl.stdout, out)
+	case "csv":
+		werr = orbitCSV(cl, sys, out)
+	default:
+		werr = orbitTable(cl, sys, out)
+	}
+	if werr != nil {
+		return fmt.Errorf("writing the results failed: %w", werr)
+	}
+	if cl.sh.plot != "" {
+		if perr := orbitChart(sys, out).save(cl.sh.plot); perr != nil {
+			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
+		}
+	}
+	cl.wallTime(start, count(end, "iterate"))
+	if runErr != nil {
+		return fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, map[string]string{"failed": "failed", "canceled": "was canceled"}[status], end, runErr)
+	}
+	return nil
+}
+
+func firstNonFinite(x []float64) int {
+	for i, v := range x {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return i
+		}
+	}
+	return -1
+}
+
+func orbitCSV(cl *call, sys *plumb.System, out mapSolveJSON) error {
+	w := csv.NewWriter(cl.stdout)
+	rec := append([]string{"n"}, sys.States...)
+	if err := w.Write(rec); err != nil {
+		return err
+	}
+	for _, it := range out.Orbit {
+		rec = append(rec[:0], strconv.Itoa(it.N))
+		for _, v := range it.X {
+			rec = append(rec, formatFloat(v))
+		}
+		if err := w.Write(rec); err != nil {
+			return err
+		}
+	}
+	w.Flush()
+	return w.Error()
+}
+
+func orbitTable(cl *call, sys *plumb.System, out mapSolveJSON) error {
+	tw := newTable(cl.stdout)
+	fmt.Fprintf(tw, "n\t%s\n", strings.Join(sys.States, "\t"))
+	for _, it := range out.Orbit {
+		fmt.Fprint(tw, it.N)
+		for _, v := range it.X {
+			fmt.Fprint(tw, "\t", tableFloat(v))
+		}
+		fmt.Fprintln(tw)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	fmt.Fprintln(cl.stdout)
+	tw = newTable(cl.stdout)
+	var params []string
+	for _, p := range sys.Params() {
+		params = append(params, p.Name+"="+formatFloat(p.Value))
+	}
+	fmt.Fprintf(tw, "system\t%s (%s) %s\n", sys.Name, sys.Title, strings.Join(params, " "))
+	fmt.Fprintf(tw, "status\t%s at iterate %d\n", out.Status, out.End)
+	return tw.Flush()
+}
+
+// orbitChart draws an orbit as dots: the first two components against each
+// other, or for a one-component map the return map x_(n+1) against x_n.
+func orbitChart(sys *plumb.System, out mapSolveJSON) *lineChart {
+	c := &lineChart{Scatter: true}
+	var s series
+	if len(sys.States) >= 2 {
+		c.Title = fmt.Sprintf("%s: orbit of %d iterates", sys.Title, out.End)
+		c.XLabel, c.YLabel = sys.States[0], sys.States[1]
+		for _, it := range out.Orbit {
+			s.X = append(s.X, it.X[0])
+			s.Y = append(s.Y, it.X[1])
+		}
+	} else {
+		c.Title = fmt.Sprintf("%s: return map of %d iterates", sys.Title, out.End)
+		c.XLabel, c.YLabel = sys.States[0]+"_n", sys.States[0]+"_(n+1)"
+		for i := 0; i+1 < len(out.Orbit); i++ {
+			s.X = append(s.X, out.Orbit[i].X[0])
+			s.Y = append(s.Y, out.Orbit[i+1].X[0])
+		}
+	}
+	c.Series = []series{s}
+	return c
+}
+
+// flowOnlySpectrum are plumb spectrum's flags that only a flow takes.
+var flowOnlySpectrum = []string{"t0", "t1", "transient", "rtol", "atol", "method", "step"}
+
+// mapSpectrumJSON is the --format json result of plumb spectrum on a map.
+type mapSpectrumJSON struct {
+	header
+	System   systemJSON              `json:"system"`
+	Settings mapSpectrumSettingsJSON `json:"settings"`
+	Units    spectrumUnitsMapJSON    `json:"units"`
+	Status   string                  `json:"status"`
+	Error    string                  `json:"error,omitempty"`
+	// Exponents, StdErr and the derived measures as for a flow, per
+	// iterate; LyapunovTime in iterates.
+	Exponents        []float64   `json:"exponents"`
+	StdErr           []float64   `json:"std_err"`
+	KaplanYorke      *float64    `json:"kaplan_yorke"`
+	KaplanYorkeBound string      `json:"kaplan_yorke_bound"`
+	Entropy          *float64    `json:"entropy"`
+	EntropyBound     string      `json:"entropy_bound"`
+	LyapunovTime     *float64    `json:"lyapunov_time"`
+	BeyondNoise      bool        `json:"beyond_noise"`
+	Checks           []checkJSON `json:"checks"`
+	// Run describes the averaging: first averaged iterate, iterates
+	// averaged, blocks.
+	Run     mapSpectrumRunJSON `json:"run"`
+	Stats   lyap.Stats         `json:"stats"`
+	History []lyap.Point       `json:"history"`
+}
+
+// mapSpectrumSettingsJSON echoes the settings of a map's spectrum.
+type mapSpectrumSettingsJSON struct {
+	Exponents  int `json:"exponents"`
+	Iterations int `json:"iterations"`
+	Discard    int `json:"discard"`
+	Blocks     int `json:"blocks"`
+}
+
+type spectrumUnitsMapJSON struct {
+	Exponents    string `json:"exponents"`
+	KaplanYorke  string `json:"kaplan_yorke"`
+	Iterates     string `json:"iterates"`
+	CheckResidue string `json:"checks"`
+}
+
+var mapSpectrumUnits = spectrumUnitsMapJSON{
+	Exponents:    "per iterate, natural log (exponents, std_err, entropy, history)",
+	KaplanYorke:  "dimensionless (a dimension)",
+	Iterates:     "iterates (iterations, discard, lyapunov_time, run.start, run.iterations, history[].t)",
+	CheckResidue: "per iterate, natural log",
+}
+
+type mapSpectrumRunJSON struct {
+	Jacobian     string  `json:"jacobian"`
+	Start        int     `json:"start"`
+	Iterations   int     `json:"iterations"`
+	Blocks       int     `json:"blocks"`
+	BlockLength  float64 `json:"block_length"`
+	MeanInterval float64 `json:"mean_interval"`
+}
+
+// runMap estimates a map's exponents with lyap.MapExponents.
+func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) error {
+	if err := refuseFlags(cl, sys, "plumb spectrum averages --iterations iterates after --discard (the time and integrator flags are for flows)", flowOnlySpectrum...); err != nil {
+		return err
+	}
+	n := len(sys.States)
+	k := f.k
+	if !cl.sh.given["exponents"] {
+		k = n
+	}
+	if k < 1 || k > n {
+		return usagef("--exponents %d: model %s has %d states, so K must be 1 to %d", f.k, sys.Name, n, n)
+	}
+	if f.iterations < 2*lyap.DefaultBlocks {
+		return usagef("--iterations %d: must be at least %d (two per averaging block)", f.iterations, 2*lyap.DefaultBlocks)
+	}
+	if f.discard < 1 {
+		return usagef("--discard %d: must be > 0 (an unaligned start biases the estimate)", f.discard)
+	}
+	m, err := sys.Map()
+	if err != nil {
+		return fmt.Errorf("preparing the map %s failed: %w", sys.Name, err)
+	}
+	start := now()
+	sp, err := lyap.MapExponents(ctx, m, sys.Start(), k, &lyap.Settings{Iterations: f.iterations, Discard: f.discard})
+	if sp == nil {
+		if errors.Is(err, lyap.ErrSettings) || errors.Is(err, lyap.ErrCount) || errors.Is(err, lyap.ErrDimension) {
+			return usagef("the estimator refused the settings: %v", err)
+		}
+		return fmt.Errorf("starting the spectrum of %s failed: %w", sys.Name, err)
+	}
+	out := mapSpectrumJSON{
+		header: newHeader("spectrum"), System: describe(sys),
+		Settings: mapSpectrumSettingsJSON{Exponents: k, Iterations: f.iterations, Discard: f.discard, Blocks: lyap.DefaultBlocks},
+		Units:    mapSpectrumUnits, Status: "completed",
+		Exponents: sp.Exponents, StdErr: sp.StdErr, Checks: []checkJSON{},
+		Run: mapSpectrumRunJSON{Jacobian: sp.Jacobian, Start: int(sp.Start), Iterations: int(sp.Duration),
+			Blocks: sp.Blocks, BlockLength: sp.BlockLength, MeanInterval: sp.MeanInterval},
+		Stats: sp.Stats, History: sp.History,
+	}
+	if out.History == nil {
+		out.History = []lyap.Point{}
+	}
+	if err != nil {
+		out.Status, out.Error = "failed", err.Error()
+		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+			out.Status = "canceled"
+		}
+	}
+	// The derived measures are those of a flow's spectrum (see
+	// spectrumFlags.json), per iterate.
+	flow := (&spectrumFlags{}).json(sys, method{}, k, sp, nil)
+	out.KaplanYorke, out.KaplanYorkeBound = flow.KaplanYorke, flow.KaplanYorkeBound
+	out.Entropy, out.EntropyBound = flow.Entropy, flow.EntropyBound
+	out.LyapunovTime, out.BeyondNoise = flow.LyapunovTime, flow.BeyondNoise
+	out.Checks = flow.Checks
+	var werr error
+	switch cl.sh.format {
+	case "json":
+		werr = writeJSON(cl.stdout, out)
+	case "csv":
+		flow.Exponents, flow.History = out.Exponents, out.History
+		werr = spectrumCSV(cl, flow)
+	default:
+		werr = mapSpectrumTable(cl, out)
+	}
+	if werr != nil {
+		return fmt.Errorf("writing the results failed: %w", werr)
+	}
+	if cl.sh.plot != "" {
+		c := spectrumChart(sys, flow)
+		c.XLabel, c.YLabel = "iterate", "running estimate - final estimate (per iterate)"
+		if perr := c.save(cl.sh.plot); perr != nil {
+			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
+		}
+	}
+	cl.wallTime(start, count(k, "exponent")+", "+count(sp.Stats.Steps, "iterate")+", "+count(sp.Stats.QR, "re-orthonormalisation"))
+	if out.Status != "completed" {
+		return fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, out.Status, count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
+	}
+	return nil
+}
+
+func mapSpectrumTable(cl *call, out mapSpectrumJSON) error {
+	w := cl.stdout
+	var params []string
+	for _, p := range out.System.Parameters {
+		params = append(params, p.Name+"="+formatFloat(p.Value))
+	}
+	fmt.Fprintf(w, "system: %s (%s) %s\n\n", out.System.Name, out.System.Title, strings.Join(params, " "))
+	tw := newTable(w)
+	fmt.Fprintln(tw, "exponent\tvalue\tstd err")
+	for i, v := range out.Exponents {
+		se := "-"
+		if i < len(out.StdErr) {
+			se = strconv.FormatFloat(out.StdErr[i], 'g', 2, 64)
+		}
+		fmt.Fprintf(tw, "lambda_%d\t%s\t%s\n", i+1, strconv.FormatFloat(v, 'g', 6, 64), se)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	fmt.Fprintln(w, "(per iterate, natural log)")
+	fmt.Fprintln(w)
+	tw = newTable(w)
+	bound := func(b string) string {
+		if b == "lower" {
+			return " (a lower bound: more exponents could raise it)"
+		}
+		return ""
+	}
+	if out.KaplanYorke != nil {
+		fmt.Fprintf(tw, "Kaplan–Yorke dimension\t%.5g%s\n", *out.KaplanYorke, bound(out.KaplanYorkeBound))
+	}
+	if out.Entropy != nil {
+		fmt.Fprintf(tw, "entropy (sum of positive exponents)\t%.4g per iterate%s\n", *out.Entropy, bound(out.EntropyBound))
+	}
+	switch {
+	case out.LyapunovTime != nil && out.BeyondNoise:
+		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g iterates\n", *out.LyapunovTime)
+	case out.LyapunovTime != nil:
+		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g iterates (no clear sign of chaos: the largest exponent is within %d standard errors or %d ln(D)/D of 0)\n", *out.LyapunovTime, noiseFactor, noiseFactor)
+	case len(out.Exponents) > 0:
+		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\tnone (no exponent is positive)\n")
+	}
+	for _, c := range out.Checks {
+		se := ""
+		if c.StdErr > 0 {
+			se = fmt.Sprintf(" ± %.2g", c.StdErr)
+		}
+		fmt.Fprintf(tw, "check %s\t%.3g%s  %s\n", c.Name, c.Residual, se, c.Meaning)
+	}
+	r := out.Run
+	fmt.Fprintf(tw, "run\taveraged iterates %d .. %d in %d blocks; %s Jacobian\n", r.Start, r.Start+r.Iterations, r.Blocks, r.Jacobian)
+	fmt.Fprintf(tw, "work\t%d iterates, %d Jacobians, %d re-orthonormalisations\n", out.Stats.Steps, out.Stats.Jacobians, out.Stats.QR)
+	fmt.Fprintf(tw, "status\t%s\n", out.Status)
+	return tw.Flush()
+}
+
+// mapRungGroups are the --rungs names a map audit takes.
+var mapRungGroups = []string{"precision", "restart"}
+
+// mapTrustJSON is the --format json result of plumb trust on a map: the
+// header, the system and settings, then every field of plumb.MapReport
+// (its own arch and plumb_version are shadowed by the header's).
+type mapTrustJSON struct {
+	PlumbVersion string               `json:"plumb_version"`
+	Arch         string               `json:"arch"`
+	Command      string               `json:"command"`
+	System       systemJSON           `json:"system"`
+	Settings     mapTrustSettingsJSON `json:"settings"`
+	Units        mapTrustUnitsJSON    `json:"units"`
+	Status       string               `json:"status"`
+	Error        string               `json:"error,omitempty"`
+	*plumb.MapReport
+}
+
+// mapTrustSettingsJSON echoes the settings of a map audit.
+type mapTrustSettingsJSON struct {
+	Horizon       int      `json:"horizon"`
+	Tol           float64  `json:"tol"`
+	Relative      bool     `json:"relative"`
+	Rungs         []string `json:"rungs"`
+	RestartAt     int      `json:"restart_at,omitempty"`
+	RestartPlaces int      `json:"restart_places,omitempty"`
+}
+
+type mapTrustUnitsJSON struct {
+	Iterates string `json:"iterates"`
+	Distance string `json:"distance"`
+	Tol      string `json:"tol"`
+	Exponent string `json:"exponent"`
+	TolUsed  string `json:"tol_used"`
+}
+
+var mapTrustUnits = mapTrustUnitsJSON{
+	Iterates: "iterates from the start (horizon, steps, trusted_until, predicted_horizon, agrees_until, departs_at, predicted, restart_at, start)",
+	Distance: "Euclidean norm of a state difference in the model's units, angles wrapped (tol_abs, spread, magnitude, divergence, delta0)",
+	Tol:      "state units, or with relative a fraction of spread",
+	Exponent: "per iterate, natural log (exponent.value, exponent.std_err, rungs[].rate, rate_err); exponent.lyapunov_time in iterates",
+	TolUsed:  "fraction of tol_abs",
+}
+
+// runMap audits a map with plumb.TrustMap: --horizon is a number of iterates.
+func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) error {
+	horizon, tol := f.horizon, f.tol
+	if !cl.sh.given["horizon"] {
+		horizon = mapTrustHorizon
+	}
+	if !cl.sh.given["tol"] {
+		tol = mapTrustTol
+	}
+	if horizon != math.Trunc(horizon) || horizon < 1 || horizon > plumb.MaxMapSteps {
+		return usagef("--horizon %s: %s is a map, so the horizon counts iterates: a whole number from 1 to %d", formatFloat(horizon), sys.Name, plumb.MaxMapSteps)
+	}
+	steps := int(horizon)
+	var want []string
+	seen := map[string]bool{}
+	for _, name := range strings.Split(f.rungs, ",") {
+		name = strings.TrimSpace(name)
+		switch {
+		case name == "" || name == "reference" || name == "ref":
+			continue
+		case name == "tol" || name == "method":
+			if cl.sh.given["rungs"] {
+				return usagef("--rungs %s: %s is a map, iterated exactly: there is no tolerance or method to vary (choose from %s)", f.rungs, sys.Name, strings.Join(mapRungGroups, ", "))
+			}
+			continue
+		case name != "precision" && name != "restart":
+			return usagef("--rungs %s: unknown rung %q (a map takes %s)", f.rungs, name, strings.Join(mapRungGroups, ", "))
+		case seen[name]:
+			return usagef("--rungs %s: %q is named twice", f.rungs, name)
+		}
+		seen[name] = true
+		want = append(want, name)
+	}
+	if len(want) == 0 {
+		return usagef("--rungs %q leaves only the reference orbit: an audit compares at least one rung with it (choose from %s)", f.rungs, strings.Join(mapRungGroups, ", "))
+	}
+	if !seen["restart"] && (cl.sh.given["restart-at"] || cl.sh.given["restart-places"]) {
+		return usagef("--restart-at and --restart-places set the restart rung, which --rungs %s leaves out", f.rungs)
+	}
+	var rungs []plumb.MapRung
+	restartAt := 0
+	for _, r := range plumb.DefaultMapRungs(steps) {
+		switch {
+		case r.Kind == integrate.KindPrecision && seen["precision"]:
+			rungs = append(rungs, r)
+		case r.Kind == integrate.KindRestart && seen["restart"]:
+			at := r.RestartAt
+			if cl.sh.given["restart-at"] {
+				if f.restartAt != math.Trunc(f.restartAt) || !(f.restartAt >= 1 && f.restartAt < horizon) {
+					return usagef("--restart-at %s: for a map, a whole iterate strictly inside the horizon, 1 to %d", formatFloat(f.restartAt), steps-1)
+				}
+				at = int(f.restartAt)
+			}
+			places := integrate.Places(f.restartPlaces)
+			if err := places.Validate(); err != nil {
+				return usagef("--restart-places %d: %v", f.restartPlaces, err)
+			}
+			r.RestartAt, r.Restart = at, places
+			restartAt = at
+			rungs = append(rungs, r)
+		}
+	}
+	if len(rungs) == 0 {
+		return usagef("--horizon %d: too short for a restart rung; give --rungs precision or a longer horizon", steps)
+	}
+	start := now()
+	rep, err := plumb.TrustMap(ctx, sys, steps, &plumb.MapTrustSettings{Tol: tol, Relative: f.relative, Rungs: rungs})
+	if rep == nil {
+		if errors.Is(err, plumb.ErrSteps) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) || errors.Is(err, integrate.ErrSettings) {
+			return usagef("the audit refused its input: %v", err)
+		}
+		return fmt.Errorf("the audit of %s could not start: %w", sys.Name, err)
+	}
+	if err != nil && f.relative && errors.Is(err, integrate.ErrSettings) && len(rep.Rungs) == 0 {
+		return usagef("--relative: %v; give --tol in state units instead", err)
+	}
+	out := mapTrustJSON{
+		PlumbVersion: version, Arch: goarch, Command: "trust", System: describe(sys),
+		Settings: mapTrustSettingsJSON{Horizon: steps, Tol: tol, Relative: f.relative, Rungs: want, RestartAt: restartAt},
+		Units:    mapTrustUnits, Status: "completed", MapReport: rep,
+	}
+	if seen["restart"] {
+		out.Settings.RestartPlaces = f.restartPlaces
+	}
+	if err != nil {
+		out.Status, out.Error = "failed", err.Error()
+		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+			out.Status = "canceled"
+		}
+	}
+	var werr error
+	switch cl.sh.format {
+	case "json":
+		werr = writeJSON(cl.stdout, out)
+	case "csv":
+		werr = mapTrustCSV(cl, rep)
+	default:
+		var params []string
+		for _, p := range out.System.Parameters {
+			params = append(params, p.Name+"="+formatFloat(p.Value))
+		}
+		if _, werr = fmt.Fprintf(cl.stdout, "system: %s (%s) %s\n", out.System.Name, out.System.Title, strings.Join(params, " ")); werr == nil {
+			werr = rep.Write(cl.stdout)
+		}
+	}
+	if werr != nil {
+		return fmt.Errorf("writing the results failed: %w", werr)
+	}
+	if cl.sh.plot != "" && len(rep.Rungs) > 0 {
+		if perr := mapTrustChart(rep).save(cl.sh.plot); perr != nil {
+			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
+		}
+	}
+	for _, r := range rep.Rungs {
+		if r.Error != "" {
+			cl.warnf("rung %q stopped at iterate %d, its curve ends there: %s", r.Name, r.Start+len(r.Divergence)-1, r.Error)
+		}
+	}
+	if rep.ExponentError != "" {
+		cl.warnf("the largest Lyapunov exponent could not be estimated, so nothing is predicted: %s", rep.ExponentError)
+	}
+	cl.wallTime(start, count(len(rep.Rungs)+1, "orbit")+" compared, verdict "+string(rep.Verdict))
+	if err != nil {
+		return fmt.Errorf("the audit of %s %s (%s completed, written): %w", sys.Name, out.Status, count(len(rep.Rungs), "rung"), err)
+	}
+	return nil
+}
+
+// mapTrustCSV writes the divergence per iterate: n, then one column per
+// rung (empty before a restart and after a failure).
+func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
+	w := csv.NewWriter(cl.stdout)
+	rec := []string{"n"}
+	for _, r := range rep.Rungs {
+		rec = append(rec, r.Name)
+	}
+	if err := w.Write(rec); err != nil {
+		return err
+	}
+	for it := 0; it <= rep.Steps; it++ {
+		rec = append(rec[:0], strconv.Itoa(it))
+		for _, r := range rep.Rungs {
+			cell := ""
+			if k := it - r.Start; k >= 0 && k < len(r.Divergence) {
+				cell = formatFloat(r.Divergence[k])
+			}
+			rec = append(rec, cell)
+		}
+		if err := w.Write(rec); err != nil {
+			return err
+		}
+	}
+	w.Flush()
+	return w.Error()
+}
+
+// mapTrustChart draws the divergence per iterate on a log axis, the
+// tolerance, and the Lyapunov prediction delta0·exp(lambda·(n - start)) of
+// the rung with the earliest predicted horizon.
+func mapTrustChart(rep *plumb.MapReport) *lineChart {
+	c := &lineChart{
+		Title:  "divergence from the double-double orbit",
+		XLabel: "iterate n", YLabel: "distance from the reference",
+		LogY: true, LegendBottom: true,
+	}
+	top := rep.TolAbs
+	for _, r := range rep.Rungs {
+		s := series{Name: r.Name}
+		for k, d := range r.Divergence {
+			s.X = append(s.X, float64(r.Start+k))
+			s.Y = append(s.Y, d)
+			top = math.Max(top, d)
+		}
+		c.Series = append(c.Series, s)
+	}
+	c.Series = append(c.Series, series{
+		Name: fmt.Sprintf("tolerance %.3g", rep.TolAbs),
+		X:    []float64{0, float64(rep.Steps)}, Y: []float64{rep.TolAbs, rep.TolAbs},
+	})
+	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
+		return c
+	}
+	lambda := rep.Exponent.Value
+	for _, r := range rep.Rungs {
+		if r.Predicted != rep.PredictedHorizon || !(r.Delta0 > 0) {
+			continue
+		}
+		from := float64(r.Start)
+		to := math.Min(float64(rep.Steps), from+math.Log(top/r.Delta0)/lambda)
+		if !(to > from) {
+			break
+		}
+		s := series{Name: fmt.Sprintf("prediction delta0·e^(%.3g n), %s", lambda, r.Name)}
+		for i := 0; i <= predictionPoints; i++ {
+			n := from + (to-from)*float64(i)/predictionPoints
+			s.X = append(s.X, n)
+			s.Y = append(s.Y, r.Delta0*math.Exp(lambda*(n-from)))
+		}
+		c.Series = append(c.Series, s)
+		break
+	}
+	return c
+}

@@ -1,0 +1,779 @@
+package plumb
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"runtime"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/lyap"
+)
+
+// ErrSteps reports an iteration count that TrustMap cannot audit.
+var ErrSteps = errors.New("invalid number of iterations")
+
+// MaxMapSteps bounds the iterations TrustMap audits: every rung keeps its
+// divergence per iterate, so memory grows with it.
+const MaxMapSteps = 10_000_000
+
+// MapRung is one run of a map audit, compared iterate by iterate with the
+// double-double reference orbit.
+type MapRung struct {
+	// Name labels the rung in reports.
+	Name string
+	// Kind is integrate.KindPrecision (the orbit from the start, every
+	// iterate stored with Storage; NoRounding is plain float64) or
+	// integrate.KindRestart (a float64 orbit from the reference state at
+	// iterate RestartAt, rounded by Restart).
+	Kind integrate.RungKind
+	// Storage is the emulated storage of a precision rung.
+	Storage integrate.Rounding
+	// RestartAt, 1 <= RestartAt < steps, and Restart are the restart's
+	// iterate and rounding.
+	RestartAt int
+	Restart   integrate.Rounding
+}
+
+// DefaultMapRungs is the ladder TrustMap runs over steps iterations when
+// MapTrustSettings.Rungs is nil: float64 itself, storage emulated at 40 and
+// 24 bits, and a restart at 0.8·steps from the reference state rounded to 3
+// decimal places (a printout).
+func DefaultMapRungs(steps int) []MapRung {
+	rs := []MapRung{
+		{Name: "float64", Kind: integrate.KindPrecision},
+		{Name: "40 bits", Kind: integrate.KindPrecision, Storage: integrate.Bits(40)},
+		{Name: "24 bits", Kind: integrate.KindPrecision, Storage: integrate.Bits(24)},
+	}
+	if at := int(0.8 * float64(steps)); at >= 1 && at < steps {
+		rs = append(rs, MapRung{Name: "restart", Kind: integrate.KindRestart, RestartAt: at, Restart: integrate.Places(3)})
+	}
+	return rs
+}
+
+// MapTrustSettings controls TrustMap. A nil *MapTrustSettings is invalid:
+// the tolerance is the caller's statement of what difference matters.
+type MapTrustSettings struct {
+	// Tol is the distance between orbits the caller accepts, in the
+	// state's units (Euclidean norm, angles wrapped by their period). Must
+	// be finite and > 0; otherwise ErrTolerance.
+	Tol float64
+	// Relative makes Tol a fraction of the reference orbit's spread (its
+	// root-mean-square distance from its mean).
+	Relative bool
+	// Rungs are the runs compared with the reference; nil means
+	// DefaultMapRungs(steps). An empty non-nil list is invalid
+	// (integrate.ErrLadder), as is a rung of another kind or a restart
+	// outside 1..steps-1.
+	Rungs []MapRung
+	// Exponent controls the estimate of the largest Lyapunov exponent
+	// (lyap.MapExponents with k = 1 from the start); nil means lyap's
+	// defaults.
+	Exponent *lyap.Settings
+	// Lambda, when positive, is used as the largest Lyapunov exponent (per
+	// iteration) and no estimate is made. Must be finite and >= 0.
+	Lambda float64
+}
+
+// MapReport is the outcome of TrustMap. Its JSON form (snake_case fields) is
+// the document `plumb trust --format json` writes for a map; times are
+// iterates, distances in the state's units.
+type MapReport struct {
+	// Steps is the audited number of iterations (iterates 0..Steps).
+	Steps int `json:"steps"`
+	// Tol is the tolerance as given, Relative whether it is a fraction of
+	// Spread, TolAbs the absolute tolerance used.
+	Tol      float64 `json:"tol"`
+	Relative bool    `json:"relative"`
+	TolAbs   float64 `json:"tol_abs"`
+	// Spread is the reference orbit's root-mean-square distance from its
+	// mean, Magnitude its root-mean-square norm (the scale of a rounding).
+	Spread    float64 `json:"spread"`
+	Magnitude float64 `json:"magnitude"`
+	// TrustedUntil is the last iterate up to which every rung agrees with
+	// the reference within Tol (Steps if all do).
+	TrustedUntil int `json:"trusted_until"`
+	// LimitedBy is the effect of the rung that departs first ("precision"
+	// or "restart"), LimitingRung its name; empty when none departs.
+	LimitedBy    string `json:"limited_by,omitempty"`
+	LimitingRung string `json:"limiting_rung,omitempty"`
+	// PredictedHorizon is the earliest iterate predicted from the largest
+	// Lyapunov exponent, start + ln(tol/delta0)/lambda_1; 0 without a
+	// prediction.
+	PredictedHorizon float64 `json:"predicted_horizon,omitempty"`
+	// Verdict answers for iterate Steps.
+	Verdict Verdict `json:"verdict"`
+	// TolUsed is the largest divergence of any rung up to TrustedUntil,
+	// as a fraction of Tol.
+	TolUsed float64 `json:"tol_used"`
+	// Growth is the law most rungs follow: "exponential", "polynomial",
+	// "bounded" or "undetermined".
+	Growth string `json:"growth"`
+	// Exponent is the largest Lyapunov exponent used (per iteration), nil
+	// if none; ExponentError says why the estimate failed.
+	Exponent      *ExponentEstimate `json:"exponent,omitempty"`
+	ExponentError string            `json:"exponent_error,omitempty"`
+	// Reference describes the double-double orbit; Rungs the others.
+	Reference string          `json:"reference"`
+	Rungs     []MapRungReport `json:"rungs"`
+	// Failed counts the rungs that stopped early (see MapRungReport.Error).
+	Failed int `json:"failed"`
+	// Caution is the standing caution (see the Caution constant).
+	Caution string `json:"caution"`
+	// Arch and Version record the architecture and the plumb build.
+	Arch    string `json:"arch"`
+	Version string `json:"plumb_version"`
+}
+
+// MapRungReport is one rung of a map audit as reported.
+type MapRungReport struct {
+	Name   string `json:"name"`
+	Effect string `json:"effect"`
+	// Rounding is the emulated storage or the restart's rounding.
+	Rounding  string `json:"rounding,omitempty"`
+	RestartAt int    `json:"restart_at,omitempty"`
+	// AgreesUntil is the last iterate within Tol; DepartsAt the first
+	// beyond it (0 when Departed is false: it agrees up to AgreesUntil,
+	// the end or where a failed run stopped).
+	AgreesUntil int  `json:"agrees_until"`
+	Departed    bool `json:"departed"`
+	DepartsAt   int  `json:"departs_at,omitempty"`
+	// Delta0 is the a-priori size of the perturbation (half a unit of the
+	// rounding at the orbit's magnitude) and Predicted the iterate
+	// start + ln(tol/Delta0)/lambda_1 (0: none).
+	Delta0    float64 `json:"delta0"`
+	Predicted float64 `json:"predicted,omitempty"`
+	// Growth is the law that fits the divergence best ("exponential",
+	// "power law", "bounded", "unknown"), with both fits; Rate is per
+	// iteration.
+	Growth   string  `json:"growth"`
+	Rate     float64 `json:"rate"`
+	RateErr  float64 `json:"rate_err"`
+	Power    float64 `json:"power"`
+	PowerErr float64 `json:"power_err"`
+	// Start is the iterate of Divergence[0]; Divergence[k] is the distance
+	// from the reference at iterate Start+k.
+	Start      int       `json:"start"`
+	Divergence []float64 `json:"divergence"`
+	// Error is why the run stopped early, empty if it did not.
+	Error string `json:"error,omitempty"`
+}
+
+// boundedFactor: a divergence that never exceeds this many times the
+// rounding that started it is rounding noise, not growth (common practice:
+// a stable orbit forgets each rounding, so the noise stays within a few
+// units).
+const boundedFactor = 10
+
+// mapFitMin is the fewest points a growth fit takes (common practice:
+// fewer cannot tell a line from a curve).
+const mapFitMin = 5
+
+// TrustMap audits how many iterates of the map sys can be believed: it
+// iterates sys from its start for steps iterations in double-double
+// arithmetic (the reference, about 32 digits, System.DoubleDoubleEvaluator)
+// and on every rung (float64, storage emulated at fewer bits, a restart
+// from a rounded state), measures each rung's distance from the reference
+// at every iterate, fits exponential and power-law growth, predicts the
+// departure from the largest Lyapunov exponent (lyap.MapExponents) as
+//
+//	start + ln(tol/delta0)/lambda_1,
+//
+// and says up to which iterate all rungs agree within the tolerance, which
+// rung limits it, and whether iterate steps is trusted. Periodic components
+// are reduced to [0, period) after every iterate, in both arithmetics, and
+// distances use the wrapped difference.
+//
+// Errors before any work (nil report): a system that is not a map or has
+// no formulas (ErrKind), steps outside 1..MaxMapSteps (ErrSteps), a nil
+// settings or a bad tolerance (ErrTolerance), a bad Lambda, rung or
+// rounding (integrate.ErrSettings, integrate.ErrLadder). A reference orbit
+// that leaves the finite numbers, or a canceled ctx, returns the partial
+// report (Verdict Incomplete) with the error. A rung that leaves the
+// finite numbers stops there and says so; a failed exponent estimate goes
+// without predictions and says why in ExponentError.
+//
+// Cost: per iterate one double-double evaluation and one float64 map per
+// rung; memory O(steps) per rung.
+//
+// # Caution
+//
+// A trust horizon is a numerical statement about a model, not a safety
+// certificate for the real system; safety-critical use follows the field's
+// own codes and licensed review.
+//
+// References:
+//
+//	S. M. Hammel, J. A. Yorke, C. Grebogi, Numerical orbits of chaotic
+//	  processes represent true orbits, Bull. AMS 19 (1988) 465–469 (with
+//	  about 14 digits and doubling per iterate, prediction is lost after
+//	  about 50 iterates).
+//	G. Boffetta, M. Cencini, M. Falcioni, A. Vulpiani, Predictability: a way
+//	  to characterize complexity, Phys. Rep. 356 (2002) 367–474, Sect. 2.1
+//	  (the predicted horizon).
+func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSettings) (*MapReport, error) {
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	if sys == nil || sys.Kind() != KindMap {
+		what := "nil"
+		if sys != nil {
+			what = sys.Name + " is a " + string(sys.Kind())
+		}
+		return nil, fmt.Errorf("plumb: TrustMap: %s, not a map: %w", what, ErrKind)
+	}
+	if steps < 1 || steps > MaxMapSteps {
+		return nil, fmt.Errorf("plumb: TrustMap: steps = %d: must be 1 to %d: %w", steps, MaxMapSteps, ErrSteps)
+	}
+	if settings == nil {
+		return nil, fmt.Errorf("plumb: MapTrustSettings is nil (Tol is required): %w", ErrTolerance)
+	}
+	s := *settings
+	if !(s.Tol > 0) || math.IsInf(s.Tol, 0) {
+		return nil, fmt.Errorf("plumb: MapTrustSettings.Tol = %v: must be positive and finite: %w", s.Tol, ErrTolerance)
+	}
+	if math.IsNaN(s.Lambda) || math.IsInf(s.Lambda, 0) || s.Lambda < 0 {
+		return nil, fmt.Errorf("plumb: MapTrustSettings.Lambda = %v: must be finite and >= 0: %w", s.Lambda, integrate.ErrSettings)
+	}
+	rungs := s.Rungs
+	if rungs == nil {
+		rungs = DefaultMapRungs(steps)
+	}
+	if len(rungs) == 0 {
+		return nil, fmt.Errorf("plumb: MapTrustSettings.Rungs is empty: nothing to compare with the reference: %w", integrate.ErrLadder)
+	}
+	for i, r := range rungs {
+		if err := checkMapRung(r, steps); err != nil {
+			return nil, fmt.Errorf("plumb: MapTrustSettings.Rungs[%d] (%s): %w", i, r.Name, err)
+		}
+	}
+	ev, err := sys.DoubleDoubleEvaluator()
+	if err != nil {
+		return nil, fmt.Errorf("plumb: TrustMap: %w", err)
+	}
+	m, err := sys.Map()
+	if err != nil {
+		return nil, fmt.Errorf("plumb: TrustMap: %w", err)
+	}
+	x0 := sys.Start()
+	for i, v := range x0 {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("plumb: TrustMap: start[%d] = %v: %w", i, v, integrate.ErrNonFinite)
+		}
+	}
+	periods := sys.Periods()
+	rep := &MapReport{
+		Steps: steps, Tol: s.Tol, Relative: s.Relative, TolAbs: s.Tol, Reference: "double-double (about 32 digits)",
+		Rungs: []MapRungReport{}, Caution: Caution, Arch: runtime.GOARCH, Version: buildVersion(),
+	}
+
+	// The reference orbit, kept as float64 pairs (hi, lo) per iterate.
+	n := len(x0)
+	ref, refErr := ddOrbit(ctx, ev, x0, steps, periods)
+	reached := len(ref)/(2*n) - 1 // last iterate of the reference
+	rep.Magnitude, rep.Spread = orbitSize(ref, n, reached)
+	if refErr != nil {
+		rep.Verdict = Incomplete
+		rep.TrustedUntil = 0
+		return rep, fmt.Errorf("plumb: TrustMap: reference orbit stopped at iterate %d: %w", reached, refErr)
+	}
+	tol := s.Tol
+	if s.Relative {
+		tol = float64(s.Tol * rep.Spread)
+		rep.TolAbs = tol
+		if !(tol > 0) {
+			rep.Verdict = Incomplete
+			return rep, fmt.Errorf("plumb: TrustMap: a relative tolerance needs an orbit with spread, and this one has none (a fixed point): %w", integrate.ErrSettings)
+		}
+	}
+
+	x, y := make([]float64, n), make([]float64, n)
+	for _, r := range rungs {
+		if err := ctx.Err(); err != nil {
+			rep.Verdict = Incomplete
+			return rep, fmt.Errorf("plumb: TrustMap canceled after %d rungs: %w", len(rep.Rungs), err)
+		}
+		rep.Rungs = append(rep.Rungs, runMapRung(ctx, m, r, x0, ref, steps, periods, rep.Magnitude, tol, x, y))
+	}
+
+	lambda := s.Lambda
+	if lambda > 0 {
+		rep.Exponent = &ExponentEstimate{Value: lambda, LyapunovTime: 1 / lambda, Source: "given"}
+	} else {
+		sp, err := lyap.MapExponents(ctx, m, x0, 1, s.Exponent)
+		switch {
+		case err != nil && ctx.Err() != nil:
+			rep.fill()
+			rep.Verdict = Incomplete
+			return rep, fmt.Errorf("plumb: TrustMap canceled during the exponent estimate: %w", err)
+		case err != nil:
+			rep.ExponentError = err.Error()
+		case len(sp.Exponents) == 1 && !math.IsNaN(sp.Exponents[0]) && !math.IsInf(sp.Exponents[0], 0):
+			e := &ExponentEstimate{Value: sp.Exponents[0], Source: "estimated"}
+			if len(sp.StdErr) == 1 && !math.IsNaN(sp.StdErr[0]) && !math.IsInf(sp.StdErr[0], 0) {
+				e.StdErr = sp.StdErr[0]
+			}
+			if e.Value > 0 {
+				e.LyapunovTime = 1 / e.Value
+				lambda = e.Value
+			}
+			rep.Exponent = e
+		}
+	}
+	if lambda > 0 {
+		for i := range rep.Rungs {
+			r := &rep.Rungs[i]
+			r.Predicted = float64(r.Start)
+			if r.Delta0 < tol {
+				r.Predicted += math.Log(tol/r.Delta0) / lambda
+			}
+		}
+	}
+	rep.fill()
+	return rep, nil
+}
+
+// checkMapRung validates one rung for an audit of steps iterations.
+func checkMapRung(r MapRung, steps int) error {
+	switch r.Kind {
+	case integrate.KindPrecision:
+		if r.Storage.Kind != integrate.NoRounding {
+			if err := r.Storage.Validate(); err != nil {
+				return err
+			}
+		}
+	case integrate.KindRestart:
+		if r.RestartAt < 1 || r.RestartAt >= steps {
+			return fmt.Errorf("restart at iterate %d: must be 1 to %d: %w", r.RestartAt, steps-1, integrate.ErrLadder)
+		}
+		if err := r.Restart.Validate(); err != nil {
+			return err
+		}
+	default:
+		return fmt.Errorf("kind %s: a map audit takes precision and restart rungs: %w", r.Kind, integrate.ErrLadder)
+	}
+	return nil
+}
+
+// ddOrbit iterates the double-double map from x0 and returns iterates
+// 0..steps as (hi, lo) pairs, component by component; after a failure (a
+// value that is not finite, a canceled ctx) the iterates up to the last
+// good one come with the error.
+func ddOrbit(ctx context.Context, ev *DDEvaluator, x0 []float64, steps int, periods []float64) ([]float64, error) {
+	n := len(x0)
+	out := make([]float64, 0, 2*n*(steps+1))
+	cur, nxt := make([]dd.Float, n), make([]dd.Float, n)
+	for i, v := range x0 {
+		cur[i] = dd.From(v)
+		out = append(out, v, 0)
+	}
+	for it := 1; it <= steps; it++ {
+		if it%1024 == 0 {
+			if err := ctx.Err(); err != nil {
+				return out, err
+			}
+		}
+		if err := ev.Eval(dd.Float{}, cur, nxt); err != nil {
+			return out, err
+		}
+		for i := range nxt {
+			if !nxt[i].IsFinite() {
+				return out, fmt.Errorf("component %d is %v: %w", i, nxt[i].Hi, integrate.ErrNonFinite)
+			}
+			if i < len(periods) && periods[i] > 0 {
+				nxt[i] = wrapAngleDD(nxt[i], periods[i])
+			}
+		}
+		cur, nxt = nxt, cur
+		for _, v := range cur {
+			out = append(out, v.Hi, v.Lo)
+		}
+	}
+	return out, nil
+}
+
+// orbitSize returns the root-mean-square norm of iterates 0..last of a
+// (hi, lo) orbit and its root-mean-square distance from its mean.
+func orbitSize(ref []float64, n, last int) (mag, spread float64) {
+	if last < 0 {
+		return 0, 0
+	}
+	cnt := float64(last + 1)
+	mean := make([]float64, n)
+	var sq float64
+	for it := 0; it <= last; it++ {
+		for i := 0; i < n; i++ {
+			v := ref[2*(it*n+i)]
+			mean[i] += v
+			sq += float64(v * v)
+		}
+	}
+	var msq float64
+	for i := range mean {
+		mean[i] /= cnt
+		msq += float64(mean[i] * mean[i])
+	}
+	mag = math.Sqrt(sq / cnt)
+	spread = math.Sqrt(math.Max(0, sq/cnt-msq))
+	return mag, spread
+}
+
+// mapDist is the Euclidean distance between the float64 state x and the
+// reference iterate it (hi, lo pairs), with wrapped differences on periodic
+// components. The difference is taken in double-double, so it is exact to
+// the reference's accuracy.
+func mapDist(x, ref []float64, it int, periods []float64) float64 {
+	n := len(x)
+	var s float64
+	for i, v := range x {
+		r := dd.Float{Hi: ref[2*(it*n+i)], Lo: ref[2*(it*n+i)+1]}
+		d := dd.Sub(dd.From(v), r).Float64()
+		if i < len(periods) && periods[i] > 0 {
+			p := periods[i]
+			d = math.Mod(d, p)
+			if d > p/2 {
+				d -= p
+			} else if d < -p/2 {
+				d += p
+			}
+		}
+		s += float64(d * d)
+	}
+	return math.Sqrt(s)
+}
+
+// runMapRung iterates one rung and compares it with the reference.
+func runMapRung(ctx context.Context, m *MapSystem, r MapRung, x0, ref []float64, steps int, periods []float64, mag, tol float64, x, y []float64) MapRungReport {
+	n := len(x0)
+	out := MapRungReport{Name: r.Name, Effect: r.Kind.String(), AgreesUntil: -1}
+	var store integrate.Rounding
+	switch r.Kind {
+	case integrate.KindPrecision:
+		store = r.Storage
+		copy(x, x0)
+		if store.Kind != integrate.NoRounding {
+			out.Rounding = store.String()
+			store.Vec(x, x)
+			out.Delta0 = roundingUnit(store, mag)
+		} else {
+			out.Rounding = "float64"
+			out.Delta0 = roundingUnit(integrate.Bits(53), mag)
+		}
+	case integrate.KindRestart:
+		out.Start, out.RestartAt = r.RestartAt, r.RestartAt
+		out.Rounding = r.Restart.String()
+		for i := range x {
+			x[i] = r.Restart.Round(ref[2*(r.RestartAt*n+i)] + ref[2*(r.RestartAt*n+i)+1])
+		}
+		wrapPeriodic(x, periods)
+		out.Delta0 = roundingUnit(r.Restart, mag)
+	}
+	out.Divergence = make([]float64, 0, steps-out.Start+1)
+	it := out.Start
+	for {
+		d := mapDist(x, ref, it, periods)
+		out.Divergence = append(out.Divergence, d)
+		if d > tol && !out.Departed {
+			out.Departed, out.DepartsAt = true, it
+		}
+		if !out.Departed {
+			out.AgreesUntil = it
+		}
+		if it == steps {
+			break
+		}
+		if it%1024 == 0 && ctx.Err() != nil {
+			out.Error = ctx.Err().Error()
+			break
+		}
+		m.Next(x, y)
+		if store.Kind != integrate.NoRounding {
+			store.Vec(y, y)
+		}
+		bad := -1
+		for i, v := range y {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				bad = i
+			}
+		}
+		if bad >= 0 {
+			out.Error = fmt.Sprintf("component %d is %v after iterate %d", bad, y[bad], it)
+			break
+		}
+		copy(x, y)
+		it++
+	}
+	if out.AgreesUntil < out.Start {
+		out.AgreesUntil = out.Start
+	}
+	fitMapGrowth(&out, tol)
+	return out
+}
+
+// roundingUnit is half a unit in the last place that r keeps, at magnitude
+// mag: 2^-p·mag for p bits, 5·10^-k·mag for k digits, 5·10^-(k+1) for k
+// decimal places (the perturbation a rounding makes, common practice).
+func roundingUnit(r integrate.Rounding, mag float64) float64 {
+	if mag == 0 {
+		mag = 1
+	}
+	switch r.Kind {
+	case integrate.BinaryBits:
+		return math.Ldexp(mag, -r.N)
+	case integrate.SignificantDigits:
+		return 5 * math.Pow(10, -float64(r.N)) * mag
+	case integrate.DecimalPlaces:
+		return 5 * math.Pow(10, -float64(r.N+1))
+	}
+	return 0
+}
+
+// fitMapGrowth fits ln d = a + rate·n and ln d = a + power·ln(n - start)
+// to the running maximum of the divergence, from its first positive value
+// up to the first iterate at or beyond tol, and names the better law
+// (smaller residual sum of squares). Less than a doubling over the range, or
+// an envelope that never passes boundedFactor·Delta0, is "bounded".
+func fitMapGrowth(out *MapRungReport, tol float64) {
+	var xs, lx, ly []float64
+	env := 0.0
+	for k, d := range out.Divergence {
+		env = math.Max(env, d)
+		if k == 0 || !(env > 0) {
+			continue
+		}
+		xs = append(xs, float64(out.Start+k))
+		lx = append(lx, math.Log(float64(k)))
+		ly = append(ly, math.Log(env))
+		if env >= tol {
+			break
+		}
+	}
+	out.Growth = "unknown"
+	if len(xs) < mapFitMin {
+		return
+	}
+	var rssE, rssP float64
+	out.Rate, out.RateErr, rssE = olsSlope(xs, ly)
+	out.Power, out.PowerErr, rssP = olsSlope(lx, ly)
+	out.Rate, out.RateErr = finiteOr0(out.Rate), finiteOr0(out.RateErr)
+	out.Power, out.PowerErr = finiteOr0(out.Power), finiteOr0(out.PowerErr)
+	switch {
+	case ly[len(ly)-1]-ly[0] < math.Ln2 || env <= boundedFactor*out.Delta0:
+		out.Growth = "bounded"
+	case rssE <= rssP && out.Rate > 0:
+		out.Growth = "exponential"
+	case out.Power > 0:
+		out.Growth = "power law"
+	default:
+		out.Growth = "exponential"
+	}
+}
+
+// olsSlope is the least-squares slope of y on x with its standard error and
+// the residual sum of squares.
+func olsSlope(x, y []float64) (b, se, rss float64) {
+	n := float64(len(x))
+	var mx, my float64
+	for i := range x {
+		mx += x[i]
+		my += y[i]
+	}
+	mx /= n
+	my /= n
+	var sxx, sxy float64
+	for i := range x {
+		dx := x[i] - mx
+		sxx += float64(dx * dx)
+		sxy += float64(dx * (y[i] - my))
+	}
+	if sxx == 0 {
+		return 0, 0, math.Inf(1)
+	}
+	b = sxy / sxx
+	a := my - float64(b*mx)
+	for i := range x {
+		r := y[i] - (a + float64(b*x[i]))
+		rss += float64(r * r)
+	}
+	if len(x) > 2 {
+		se = math.Sqrt(rss / (n - 2) / sxx)
+	}
+	return b, se, rss
+}
+
+func finiteOr0(v float64) float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0
+	}
+	return v
+}
+
+// fill draws the conclusions from the rungs.
+func (rep *MapReport) fill() {
+	rep.TrustedUntil = rep.Steps
+	limit := -1
+	maxDiv := 0.0
+	var exp, pow, bnd int
+	rep.Failed = 0
+	for i, r := range rep.Rungs {
+		if r.Error != "" {
+			rep.Failed++
+		}
+		switch r.Growth {
+		case "exponential":
+			exp++
+		case "power law":
+			pow++
+		case "bounded":
+			bnd++
+		}
+		if r.Departed && r.AgreesUntil < rep.TrustedUntil {
+			rep.TrustedUntil, limit = r.AgreesUntil, i
+		}
+		if !r.Departed && r.Error != "" && r.AgreesUntil < rep.TrustedUntil {
+			// A run that stopped early vouches for nothing beyond it.
+			rep.TrustedUntil, limit = r.AgreesUntil, i
+		}
+	}
+	for _, r := range rep.Rungs {
+		for k, d := range r.Divergence {
+			if r.Start+k <= rep.TrustedUntil {
+				maxDiv = math.Max(maxDiv, d)
+			}
+		}
+	}
+	rep.TolUsed = maxDiv / rep.TolAbs
+	rep.LimitedBy, rep.LimitingRung = "", ""
+	if limit >= 0 {
+		rep.LimitedBy, rep.LimitingRung = rep.Rungs[limit].Effect, rep.Rungs[limit].Name
+	}
+	switch {
+	case exp+pow+bnd == 0:
+		rep.Growth = "undetermined"
+	case exp >= pow && exp >= bnd:
+		rep.Growth = "exponential"
+	case pow >= bnd:
+		rep.Growth = "polynomial"
+	default:
+		rep.Growth = "bounded"
+	}
+	rep.PredictedHorizon = 0
+	if rep.Growth == "exponential" {
+		for _, r := range rep.Rungs {
+			if r.Predicted > 0 && (rep.PredictedHorizon == 0 || r.Predicted < rep.PredictedHorizon) {
+				rep.PredictedHorizon = r.Predicted
+			}
+		}
+	} else {
+		// Without exponential growth a Lyapunov prediction means nothing.
+		for i := range rep.Rungs {
+			rep.Rungs[i].Predicted = 0
+		}
+	}
+	switch {
+	case len(rep.Rungs) == 0 || rep.Failed == len(rep.Rungs) || rep.TrustedUntil < rep.Steps:
+		rep.Verdict = NotTrusted
+	case rep.TolUsed <= 1.0/marginFactor:
+		rep.Verdict = TrustedWithMargin
+	default:
+		rep.Verdict = Trusted
+	}
+}
+
+// Write writes the report as a short readable summary: the rungs with
+// their agreement horizons and predictions, the exponent, the trusted
+// iterate and what limits it, the verdict and the caution.
+func (rep *MapReport) Write(w io.Writer) error {
+	var b strings.Builder
+	tolWord := fmt.Sprintf("%.3g", rep.Tol)
+	if rep.Relative {
+		tolWord = fmt.Sprintf("%.3g of the spread (%.3g)", rep.Tol, rep.TolAbs)
+	}
+	fmt.Fprintf(&b, "audit of iterates 0 .. %d at tolerance %s\n", rep.Steps, tolWord)
+	fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference)
+	tw := tabwriter.NewWriter(&b, 0, 4, 2, ' ', 0)
+	fmt.Fprintln(tw, "rung\teffect\tagrees until\tpredicted\tgrowth\t")
+	for _, r := range rep.Rungs {
+		until := fmt.Sprintf("%d", r.AgreesUntil)
+		if !r.Departed {
+			until = "> " + until
+		}
+		if r.Error != "" {
+			until += " (failed)"
+		}
+		pred := "-"
+		if r.Predicted > 0 {
+			pred = fmt.Sprintf("%.4g", r.Predicted)
+		}
+		growth := r.Growth
+		switch r.Growth {
+		case "exponential":
+			growth = fmt.Sprintf("exponential, rate %.3g per iterate", r.Rate)
+		case "power law":
+			growth = fmt.Sprintf("power law, n^%.2g", r.Power)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t\n", r.Name, r.Effect, until, pred, growth)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	b.WriteByte('\n')
+	switch {
+	case rep.Exponent != nil && rep.Exponent.Source == "given":
+		fmt.Fprintf(&b, "largest Lyapunov exponent (given): %.4g per iterate\n", rep.Exponent.Value)
+	case rep.Exponent != nil:
+		fmt.Fprintf(&b, "largest Lyapunov exponent: %.4g ± %.2g per iterate", rep.Exponent.Value, rep.Exponent.StdErr)
+		if rep.Exponent.LyapunovTime > 0 && rep.Growth == "exponential" {
+			fmt.Fprintf(&b, " (Lyapunov time %.3g iterates)", rep.Exponent.LyapunovTime)
+		}
+		b.WriteByte('\n')
+	case rep.ExponentError != "":
+		fmt.Fprintf(&b, "largest Lyapunov exponent: not estimated (%s)\n", rep.ExponentError)
+	}
+	switch rep.Growth {
+	case "exponential":
+		b.WriteString("divergence grows exponentially (the orbit is chaotic)\n")
+	case "polynomial":
+		b.WriteString("divergence grows polynomially (a power law fits better than an exponential)\n")
+	case "bounded":
+		b.WriteString("divergence stays bounded\n")
+	default:
+		b.WriteString("divergence growth undetermined (too few points, or no divergence at all)\n")
+	}
+	if rep.PredictedHorizon > 0 {
+		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda: iterate %.4g\n", rep.PredictedHorizon)
+	}
+	if rep.Failed > 0 {
+		fmt.Fprintf(&b, "%d rung(s) failed; their curves end where they stopped\n", rep.Failed)
+	}
+	switch {
+	case rep.Verdict == Incomplete:
+		b.WriteString("the audit did not finish: no trusted horizon is read off it\n")
+	case rep.LimitedBy != "":
+		fmt.Fprintf(&b, "trusted until iterate %d, limited by %s (%s)\n", rep.TrustedUntil, rep.LimitedBy, rep.LimitingRung)
+	default:
+		fmt.Fprintf(&b, "trusted until iterate %d: every rung agrees over the whole horizon\n", rep.TrustedUntil)
+	}
+	verdict := map[Verdict]string{
+		TrustedWithMargin: "trusted with margin",
+		Trusted:           "trusted",
+		NotTrusted:        "not trusted",
+		Incomplete:        "incomplete (the audit did not finish)",
+	}[rep.Verdict]
+	switch rep.Verdict {
+	case NotTrusted:
+		fmt.Fprintf(&b, "verdict for iterate %d: %s (the runs part by more than the tolerance at iterate %d)\n", rep.Steps, verdict, rep.TrustedUntil+1)
+	case Incomplete:
+		fmt.Fprintf(&b, "verdict for iterate %d: %s\n", rep.Steps, verdict)
+	default:
+		fmt.Fprintf(&b, "verdict for iterate %d: %s (largest divergence %.2g of the tolerance)\n", rep.Steps, verdict, rep.TolUsed)
+	}
+	fmt.Fprintf(&b, "caution: %s\n", rep.Caution)
+	_, err := io.WriteString(w, b.String())
+	return err
+}
