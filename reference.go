@@ -345,7 +345,9 @@ func TrustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
 		if err != nil {
 			if ctx.Err() != nil {
-				return nil, fmt.Errorf("plumb: trust canceled during the exponent estimate: %w", err)
+				// Canceled: the plain audit returns its (empty)
+				// incomplete report and the context's error.
+				return Trust(ctx, problem, horizon, settings)
 			}
 			// Without an exponent there is no precision rule: the plain
 			// audit, which reports why the estimate failed.
@@ -359,6 +361,9 @@ func TrustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 			est.Value = 0
 		}
 		s.Lambda = est.Value
+		if s.Progress != nil {
+			s.Progress("exponent", 1, 1)
+		}
 	}
 	scale := 0.0
 	for _, v := range problem.Y0 {
@@ -405,4 +410,12 @@ type ExactReference struct {
 	Steps  int `json:"steps"`
 	// Lambda is the largest exponent that set Digits.
 	Lambda float64 `json:"lambda"`
+}
+
+// HasFormulas reports whether the system's vector field has formulas, so
+// that Reference and TrustSystem can compute a multiprecision reference
+// (true for every built-in flow and every flow or Hamiltonian file).
+func (s *System) HasFormulas() bool {
+	_, err := s.series()
+	return err == nil
 }

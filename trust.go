@@ -479,10 +479,18 @@ func (rep *Report) Write(w io.Writer) error {
 		tolWord = fmt.Sprintf("%.3g of the spread (%.3g)", rep.Tol, rep.TolAbs)
 	}
 	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, tolWord)
-	fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference.Name)
+	rows := rep.Rungs
+	if ex := rep.Exact; ex != nil {
+		fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d, %d steps); every float64 run is compared with it\n\n",
+			ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.Steps)
+		rows = append([]RungReport{rep.Reference}, rep.Rungs...)
+		rows[0].Effect = "tightest"
+	} else {
+		fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference.Name)
+	}
 	tw := tabwriter.NewWriter(&b, 0, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "rung\teffect\tagrees until\tpredicted\tgrowth\t")
-	for _, r := range rep.Rungs {
+	for _, r := range rows {
 		until := fmt.Sprintf("%.4g", r.AgreesUntil)
 		if !r.Departed {
 			until = "> " + until

@@ -103,12 +103,14 @@ type trustFlags struct {
 	rungs         string
 	restartAt     float64
 	restartPlaces int
+	exact         bool
 }
 
 func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
 	f := &trustFlags{}
 	finiteVar(fs, &f.horizon, "horizon", trustHorizon, "audit the time span `T` from the start (> 0)")
 	finiteVar(fs, &f.tol, "tol", trustTol, "the divergence `TOL` between runs that is still acceptable, in state units (> 0)")
+	fs.BoolVar(&f.exact, "exact", true, "compare every run, the tightest float64 one too, with a multiprecision Taylor reference (systems with formulas: every built-in flow and every file); --exact=false takes the tightest float64 run as the reference")
 	fs.BoolVar(&f.relative, "relative", false, "read --tol as a fraction of the attractor's size (the reference run's root-mean-square spread)")
 	fs.StringVar(&f.rungs, "rungs", strings.Join(rungGroupNames(), ","), "comma-separated `LIST` of the rungs to compare with the reference: "+strings.Join(rungGroupNames(), ", "))
 	finiteVar(fs, &f.restartAt, "restart-at", 0, "time `T` of the restart rung, inside the audited span (default 0.8 of --horizon)")
@@ -205,6 +207,9 @@ type trustSettingsJSON struct {
 	Rungs         []string `json:"rungs"`
 	RestartAt     float64  `json:"restart_at"`
 	RestartPlaces int      `json:"restart_places"`
+	// Exact: the runs were compared with a multiprecision reference (see
+	// the report's exact field).
+	Exact bool `json:"exact"`
 	// Every is the spacing of the comparison grid (horizon/1000).
 	Every float64 `json:"every"`
 }
@@ -255,21 +260,28 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		// One unit per audit run, and as many again for the exponent
 		// estimate, which takes about as long as the audit.
 		bar = newProgressBar(cl.stderr, "plumb trust", 0, 1)
-		runs := 0
+		// The two stages may come in either order (TrustSystem estimates
+		// the exponent first, to choose the reference's precision).
+		var audit, expo float64
 		settings.Progress = func(stage string, done, total int) {
 			switch stage {
 			case "audit":
-				runs = total
-				bar.at(float64(done) / float64(2*total))
-			case "exponent":
-				if runs > 0 {
-					bar.at(0.5 + 0.5*float64(done))
+				if total > 0 {
+					audit = float64(done) / float64(total)
 				}
+			case "exponent":
+				expo = float64(done)
 			}
+			bar.at(0.5*audit + 0.5*expo)
 		}
 	}
 	start := now()
-	rep, err := plumb.Trust(ctx, p, f.horizon, settings)
+	var rep *plumb.Report
+	if f.exact && sys.HasFormulas() {
+		rep, err = plumb.TrustSystem(ctx, sys, f.horizon, settings)
+	} else {
+		rep, err = plumb.Trust(ctx, p, f.horizon, settings)
+	}
 	if bar != nil {
 		bar.clear()
 	}
@@ -296,7 +308,7 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		System: describe(sys),
 		Settings: trustSettingsJSON{
 			Horizon: f.horizon, Tol: f.tol, Relative: f.relative, Rungs: names,
-			RestartAt: restartAt, RestartPlaces: f.restartPlaces, Every: f.horizon / trustGrid,
+			RestartAt: restartAt, RestartPlaces: f.restartPlaces, Exact: f.exact && sys.HasFormulas(), Every: f.horizon / trustGrid,
 		},
 		Units:  trustUnits,
 		Status: "completed",

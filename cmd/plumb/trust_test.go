@@ -104,7 +104,8 @@ func TestTrustJSONFields(t *testing.T) {
 // TestTrustMatchesSDK: the CLI is a view of plumb.Trust, so its numbers
 // are the SDK's bit for bit (exact identity: the same computation).
 func TestTrustMatchesSDK(t *testing.T) {
-	out, _, r := decodeTrust(t, "--model", "rossler", "--set", "c=4", "--horizon", "30", "--tol", "0.01", "--rungs", "tol,restart", "--restart-at", "12.5", "--restart-places", "2")
+	args := []string{"--model", "rossler", "--set", "c=4", "--horizon", "30", "--tol", "0.01", "--rungs", "tol,restart", "--restart-at", "12.5", "--restart-places", "2"}
+	out, _, r := decodeTrust(t, append(args, "--exact=false")...)
 	if r.code != exitOK {
 		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
 	}
@@ -129,6 +130,25 @@ func TestTrustMatchesSDK(t *testing.T) {
 	want, err := plumb.Trust(context.Background(), sys.Problem(), 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
 	if err != nil {
 		t.Fatal(err)
+	}
+	// By default the CLI audits against the multiprecision reference:
+	// plumb.TrustSystem, bit for bit.
+	exact, _, r := decodeTrust(t, args...)
+	if r.code != exitOK {
+		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
+	}
+	wantExact, err := plumb.TrustSystem(context.Background(), sys, 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if exact.TrustedUntil != wantExact.TrustedUntil || wantExact.Exact == nil || len(exact.Rungs) != len(wantExact.Rungs) {
+		t.Errorf("CLI (exact) trusted until %v, %d rungs; TrustSystem %v, %d rungs, exact %+v",
+			exact.TrustedUntil, len(exact.Rungs), wantExact.TrustedUntil, len(wantExact.Rungs), wantExact.Exact)
+	}
+	for i := range exact.Rungs {
+		if i < len(wantExact.Rungs) && !sameBits(exact.Rungs[i].Divergence, wantExact.Rungs[i].Divergence) {
+			t.Errorf("rung %d: the CLI's curve against the exact reference differs from TrustSystem's", i)
+		}
 	}
 	if out.TrustedUntil != want.TrustedUntil || out.Verdict != want.Verdict || out.PredictedHorizon != want.PredictedHorizon || len(out.Rungs) != len(want.Rungs) {
 		t.Fatalf("CLI trusted until %v (%s, predicted %v, %d rungs); SDK %v (%s, %v, %d)",
@@ -293,10 +313,12 @@ func TestTrustCanceled(t *testing.T) {
 	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") || !strings.Contains(r.stdout, "audit of t = 0 .. 50") || !strings.Contains(r.stdout, "the audit did not finish") {
 		t.Errorf("canceled before the start: exit %d, stderr %q, stdout %q", r.code, r.stderr, r.stdout)
 	}
-	full, _, _ := decodeTrust(t, "--horizon", "20")
-	// integrate checks the context once per accepted step: 3000 steps
-	// cover the reference (about 1700 steps to t=20) and a few rungs.
-	r = plumbRunCtx(t, &stepCtx{Context: context.Background(), n: 3000}, "trust", "--horizon", "20", "--format", "json", "--quiet")
+	// Part way: without the exact reference (whose precision needs the
+	// exponent first, so an early cancel lands in that estimate), the audit
+	// runs first. integrate checks the context once per accepted step: 3000
+	// steps cover the reference (about 1700 steps to t=20) and a few rungs.
+	full, _, _ := decodeTrust(t, "--horizon", "20", "--exact=false")
+	r = plumbRunCtx(t, &stepCtx{Context: context.Background(), n: 3000}, "trust", "--horizon", "20", "--format", "json", "--quiet", "--exact=false")
 	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") {
 		t.Fatalf("canceled part way: exit %d, stderr %q", r.code, r.stderr)
 	}
@@ -312,7 +334,7 @@ func TestTrustCanceled(t *testing.T) {
 			t.Errorf("completed rung %d (%s) differs from the full run's", i, g.Name)
 		}
 	}
-	r = plumbRunCtx(t, &stepCtx{Context: context.Background(), n: 3000}, "trust", "--horizon", "20", "--quiet")
+	r = plumbRunCtx(t, &stepCtx{Context: context.Background(), n: 3000}, "trust", "--horizon", "20", "--quiet", "--exact=false")
 	if r.code != exitFailed || !strings.Contains(r.stdout, full.Rungs[0].Name) || strings.Contains(r.stdout, "trusted until") {
 		t.Errorf("canceled table: exit %d, stdout %q; want the completed rungs and no trusted horizon", r.code, r.stdout)
 	}
@@ -344,7 +366,7 @@ func TestTrustProgress(t *testing.T) {
 // identity), and not those of the unwrapped distance once the angles have
 // drifted apart by more than half a turn.
 func TestTrustPeriodicModel(t *testing.T) {
-	out, _, r := decodeTrust(t, "--model", "double-pendulum", "--horizon", "12", "--rungs", "precision")
+	out, _, r := decodeTrust(t, "--model", "double-pendulum", "--horizon", "12", "--rungs", "precision", "--exact=false")
 	if r.code != exitOK || out.Status != "completed" {
 		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
 	}
