@@ -536,10 +536,10 @@ func roundingUnit(r integrate.Rounding, mag float64) float64 {
 // fitMapGrowth fits ln d = a + rate·n and ln d = a + power·ln(n - start)
 // to the running maximum of the divergence, from its first positive value
 // up to the first iterate at or beyond tol, and names the better law
-// (smaller residual sum of squares). Less than a doubling over the range, or
-// an envelope that never passes boundedFactor·Delta0, is "bounded".
+// (integrate.FitGrowth). Less than a doubling over the range, or an
+// envelope that never passes boundedFactor·Delta0, is "bounded".
 func fitMapGrowth(out *MapRungReport, tol float64) {
-	var xs, lx, ly []float64
+	var xs, ly []float64
 	env := 0.0
 	for k, d := range out.Divergence {
 		env = math.Max(env, d)
@@ -547,7 +547,6 @@ func fitMapGrowth(out *MapRungReport, tol float64) {
 			continue
 		}
 		xs = append(xs, float64(out.Start+k))
-		lx = append(lx, math.Log(float64(k)))
 		ly = append(ly, math.Log(env))
 		if env >= tol {
 			break
@@ -557,53 +556,14 @@ func fitMapGrowth(out *MapRungReport, tol float64) {
 	if len(xs) < mapFitMin {
 		return
 	}
-	var rssE, rssP float64
-	out.Rate, out.RateErr, rssE = olsSlope(xs, ly)
-	out.Power, out.PowerErr, rssP = olsSlope(lx, ly)
-	out.Rate, out.RateErr = finiteOr0(out.Rate), finiteOr0(out.RateErr)
-	out.Power, out.PowerErr = finiteOr0(out.Power), finiteOr0(out.PowerErr)
-	switch {
-	case ly[len(ly)-1]-ly[0] < math.Ln2 || env <= boundedFactor*out.Delta0:
+	g := integrate.FitGrowth(xs, ly, float64(out.Start))
+	out.Rate, out.RateErr = finiteOr0(g.Rate), finiteOr0(g.RateErr)
+	out.Power, out.PowerErr = finiteOr0(g.Power), finiteOr0(g.PowerErr)
+	out.Growth = g.Kind.String()
+	if env <= boundedFactor*out.Delta0 {
+		// Rounding noise, however it is shaped.
 		out.Growth = "bounded"
-	case rssE <= rssP && out.Rate > 0:
-		out.Growth = "exponential"
-	case out.Power > 0:
-		out.Growth = "power law"
-	default:
-		out.Growth = "exponential"
 	}
-}
-
-// olsSlope is the least-squares slope of y on x with its standard error and
-// the residual sum of squares.
-func olsSlope(x, y []float64) (b, se, rss float64) {
-	n := float64(len(x))
-	var mx, my float64
-	for i := range x {
-		mx += x[i]
-		my += y[i]
-	}
-	mx /= n
-	my /= n
-	var sxx, sxy float64
-	for i := range x {
-		dx := x[i] - mx
-		sxx += float64(dx * dx)
-		sxy += float64(dx * (y[i] - my))
-	}
-	if sxx == 0 {
-		return 0, 0, math.Inf(1)
-	}
-	b = sxy / sxx
-	a := my - float64(b*mx)
-	for i := range x {
-		r := y[i] - (a + float64(b*x[i]))
-		rss += float64(r * r)
-	}
-	if len(x) > 2 {
-		se = math.Sqrt(rss / (n - 2) / sxx)
-	}
-	return b, se, rss
 }
 
 func finiteOr0(v float64) float64 {
