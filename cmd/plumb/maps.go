@@ -236,19 +236,9 @@ type mapSpectrumJSON struct {
 	System   systemJSON              `json:"system"`
 	Settings mapSpectrumSettingsJSON `json:"settings"`
 	Units    spectrumUnitsMapJSON    `json:"units"`
-	Status   string                  `json:"status"`
-	Error    string                  `json:"error,omitempty"`
-	// Exponents, StdErr and the derived measures as for a flow, per
-	// iterate; LyapunovTime in iterates.
-	Exponents        []float64   `json:"exponents"`
-	StdErr           []float64   `json:"std_err"`
-	KaplanYorke      *float64    `json:"kaplan_yorke"`
-	KaplanYorkeBound string      `json:"kaplan_yorke_bound"`
-	Entropy          *float64    `json:"entropy"`
-	EntropyBound     string      `json:"entropy_bound"`
-	LyapunovTime     *float64    `json:"lyapunov_time"`
-	BeyondNoise      bool        `json:"beyond_noise"`
-	Checks           []checkJSON `json:"checks"`
+	// spectrumResult holds the status, the exponents and the derived
+	// measures as for a flow, per iterate; LyapunovTime in iterates.
+	spectrumResult
 	// Run describes the averaging: first averaged iterate, iterates
 	// averaged, blocks.
 	Run     mapSpectrumRunJSON `json:"run"`
@@ -320,9 +310,9 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 	}
 	out := mapSpectrumJSON{
 		header: newHeader("spectrum"), System: describe(sys),
-		Settings: mapSpectrumSettingsJSON{Exponents: k, Iterations: f.iterations, Discard: f.discard, Blocks: lyap.DefaultBlocks},
-		Units:    mapSpectrumUnits, Status: "completed",
-		Exponents: sp.Exponents, StdErr: sp.StdErr, Checks: []checkJSON{},
+		Settings:       mapSpectrumSettingsJSON{Exponents: k, Iterations: f.iterations, Discard: f.discard, Blocks: lyap.DefaultBlocks},
+		Units:          mapSpectrumUnits,
+		spectrumResult: newSpectrumResult(sys, k, sp, err),
 		Run: mapSpectrumRunJSON{Jacobian: sp.Jacobian, Start: int(sp.Start), Iterations: int(sp.Duration),
 			Blocks: sp.Blocks, BlockLength: sp.BlockLength, MeanInterval: sp.MeanInterval},
 		Stats: sp.Stats, History: sp.History,
@@ -330,26 +320,12 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 	if out.History == nil {
 		out.History = []lyap.Point{}
 	}
-	if err != nil {
-		out.Status, out.Error = "failed", err.Error()
-		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
-			out.Status = "canceled"
-		}
-	}
-	// The derived measures are those of a flow's spectrum (see
-	// spectrumFlags.json), per iterate.
-	flow := (&spectrumFlags{}).json(sys, method{}, k, sp, nil)
-	out.KaplanYorke, out.KaplanYorkeBound = flow.KaplanYorke, flow.KaplanYorkeBound
-	out.Entropy, out.EntropyBound = flow.Entropy, flow.EntropyBound
-	out.LyapunovTime, out.BeyondNoise = flow.LyapunovTime, flow.BeyondNoise
-	out.Checks = flow.Checks
 	var werr error
 	switch cl.sh.format {
 	case "json":
 		werr = writeJSON(cl.stdout, out)
 	case "csv":
-		flow.Exponents, flow.History = out.Exponents, out.History
-		werr = spectrumCSV(cl, flow)
+		werr = spectrumCSV(cl, out.Exponents, out.History)
 	default:
 		werr = mapSpectrumTable(cl, out)
 	}
@@ -357,7 +333,7 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" {
-		c := spectrumChart(sys, flow)
+		c := spectrumChart(sys, out.Exponents, out.History)
 		c.XLabel, c.YLabel = "iterate", "running estimate - final estimate (per iterate)"
 		if perr := c.save(cl.sh.plot); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
@@ -371,53 +347,9 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 }
 
 func mapSpectrumTable(cl *call, out mapSpectrumJSON) error {
-	w := cl.stdout
-	var params []string
-	for _, p := range out.System.Parameters {
-		params = append(params, p.Name+"="+formatFloat(p.Value))
-	}
-	fmt.Fprintf(w, "system: %s (%s) %s\n\n", out.System.Name, out.System.Title, strings.Join(params, " "))
-	tw := newTable(w)
-	fmt.Fprintln(tw, "exponent\tvalue\tstd err")
-	for i, v := range out.Exponents {
-		se := "-"
-		if i < len(out.StdErr) {
-			se = strconv.FormatFloat(out.StdErr[i], 'g', 2, 64)
-		}
-		fmt.Fprintf(tw, "lambda_%d\t%s\t%s\n", i+1, strconv.FormatFloat(v, 'g', 6, 64), se)
-	}
-	if err := tw.Flush(); err != nil {
+	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, mapRates)
+	if err != nil {
 		return err
-	}
-	fmt.Fprintln(w, "(per iterate, natural log)")
-	fmt.Fprintln(w)
-	tw = newTable(w)
-	bound := func(b string) string {
-		if b == "lower" {
-			return " (a lower bound: more exponents could raise it)"
-		}
-		return ""
-	}
-	if out.KaplanYorke != nil {
-		fmt.Fprintf(tw, "Kaplan–Yorke dimension\t%.5g%s\n", *out.KaplanYorke, bound(out.KaplanYorkeBound))
-	}
-	if out.Entropy != nil {
-		fmt.Fprintf(tw, "entropy (sum of positive exponents)\t%.4g per iterate%s\n", *out.Entropy, bound(out.EntropyBound))
-	}
-	switch {
-	case out.LyapunovTime != nil && out.BeyondNoise:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g iterates\n", *out.LyapunovTime)
-	case out.LyapunovTime != nil:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g iterates (no clear sign of chaos: the largest exponent is within %d standard errors or %d ln(D)/D of 0)\n", *out.LyapunovTime, noiseFactor, noiseFactor)
-	case len(out.Exponents) > 0:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\tnone (no exponent is positive)\n")
-	}
-	for _, c := range out.Checks {
-		se := ""
-		if c.StdErr > 0 {
-			se = fmt.Sprintf(" ± %.2g", c.StdErr)
-		}
-		fmt.Fprintf(tw, "check %s\t%.3g%s  %s\n", c.Name, c.Residual, se, c.Meaning)
 	}
 	r := out.Run
 	fmt.Fprintf(tw, "run\taveraged iterates %d .. %d in %d blocks; %s Jacobian\n", r.Start, r.Start+r.Iterations, r.Blocks, r.Jacobian)
