@@ -533,29 +533,11 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 // mapTrustCSV writes the divergence per iterate: n, then one column per
 // rung (empty before a restart and after a failure).
 func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
-	w := csv.NewWriter(cl.stdout)
-	rec := []string{"n"}
-	for _, r := range rep.Rungs {
-		rec = append(rec, r.Name)
+	curves := make([]curveCSV, len(rep.Rungs))
+	for i, r := range rep.Rungs {
+		curves[i] = curveCSV{name: r.Name, start: r.Start, values: r.Divergence}
 	}
-	if err := w.Write(rec); err != nil {
-		return err
-	}
-	for it := 0; it <= rep.Steps; it++ {
-		rec = append(rec[:0], strconv.Itoa(it))
-		for _, r := range rep.Rungs {
-			cell := ""
-			if k := it - r.Start; k >= 0 && k < len(r.Divergence) {
-				cell = formatFloat(r.Divergence[k])
-			}
-			rec = append(rec, cell)
-		}
-		if err := w.Write(rec); err != nil {
-			return err
-		}
-	}
-	w.Flush()
-	return w.Error()
+	return writeCurvesCSV(cl.stdout, "n", rep.Steps+1, strconv.Itoa, curves)
 }
 
 // mapTrustChart draws the divergence per iterate on a log axis, the
@@ -577,10 +559,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		}
 		c.Series = append(c.Series, s)
 	}
-	c.Series = append(c.Series, series{
-		Name: fmt.Sprintf("tolerance %.3g", rep.TolAbs),
-		X:    []float64{0, float64(rep.Steps)}, Y: []float64{rep.TolAbs, rep.TolAbs},
-	})
+	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, 0, float64(rep.Steps)))
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
 	}
@@ -589,18 +568,9 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		if r.Predicted != rep.PredictedHorizon || !(r.Delta0 > 0) {
 			continue
 		}
-		from := float64(r.Start)
-		to := math.Min(float64(rep.Steps), from+math.Log(top/r.Delta0)/lambda)
-		if !(to > from) {
-			break
+		if s, ok := predictionSeries("n", r.Name, lambda, r.Delta0, float64(r.Start), float64(rep.Steps), top); ok {
+			c.Series = append(c.Series, s)
 		}
-		s := series{Name: fmt.Sprintf("prediction delta0·e^(%.3g n), %s", lambda, r.Name)}
-		for i := 0; i <= predictionPoints; i++ {
-			n := from + (to-from)*float64(i)/predictionPoints
-			s.X = append(s.X, n)
-			s.Y = append(s.Y, r.Delta0*math.Exp(lambda*(n-from)))
-		}
-		c.Series = append(c.Series, s)
 		break
 	}
 	return c
