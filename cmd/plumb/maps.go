@@ -146,7 +146,7 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	}
 	cl.wallTime(start, count(end, "iterate"))
 	if runErr != nil {
-		return fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, map[string]string{"failed": "failed", "canceled": "was canceled"}[status], end, runErr)
+		return fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, statusVerb(status), end, runErr)
 	}
 	return nil
 }
@@ -481,16 +481,11 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	out := mapTrustJSON{
 		PlumbVersion: version, Arch: goarch, Command: "trust", System: describe(sys),
 		Settings: mapTrustSettingsJSON{Horizon: steps, Tol: tol, Relative: f.relative, Rungs: want, RestartAt: restartAt},
-		Units:    mapTrustUnits, Status: "completed", MapReport: rep,
+		Units:    mapTrustUnits, MapReport: rep,
 	}
+	out.Status, out.Error = runStatus(err)
 	if seen["restart"] {
 		out.Settings.RestartPlaces = f.restartPlaces
-	}
-	if err != nil {
-		out.Status, out.Error = "failed", err.Error()
-		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
-			out.Status = "canceled"
-		}
 	}
 	var werr error
 	switch cl.sh.format {

@@ -300,11 +300,7 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 	}
 	cl.wallTime(start, count(k, "exponent")+", "+count(sp.Stats.Steps, "step")+", "+count(sp.Stats.QR, "re-orthonormalisation"))
 	if out.Status != "completed" {
-		what := "failed"
-		if out.Status == "canceled" {
-			what = "was canceled"
-		}
-		return fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, what, count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
+		return fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, statusVerb(out.Status), count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
 	}
 	return nil
 }
@@ -336,17 +332,8 @@ func (f *spectrumFlags) json(sys *plumb.System, m method, k int, sp *lyap.Spectr
 // newSpectrumResult reads an estimate sp of k exponents of sys, flow or
 // map; runErr is the error of the run, if any.
 func newSpectrumResult(sys *plumb.System, k int, sp *lyap.Spectrum, runErr error) spectrumResult {
-	out := spectrumResult{
-		Status:    "completed",
-		Exponents: sp.Exponents, StdErr: sp.StdErr,
-		Checks: []checkJSON{},
-	}
-	if runErr != nil {
-		out.Status, out.Error = "failed", runErr.Error()
-		if errors.Is(runErr, context.Canceled) || errors.Is(runErr, context.DeadlineExceeded) {
-			out.Status = "canceled"
-		}
-	}
+	out := spectrumResult{Exponents: sp.Exponents, StdErr: sp.StdErr, Checks: []checkJSON{}}
+	out.Status, out.Error = runStatus(runErr)
 	e := sp.Exponents
 	if allFinite(e) && len(e) > 0 {
 		ky := lyap.KaplanYorke(e)

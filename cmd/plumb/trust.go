@@ -311,15 +311,9 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 			RestartAt: restartAt, RestartPlaces: f.restartPlaces, Exact: f.exact && sys.HasFormulas(), Every: f.horizon / trustGrid,
 		},
 		Units:  trustUnits,
-		Status: "completed",
 		Report: rep,
 	}
-	if err != nil {
-		out.Status, out.Error = "failed", err.Error()
-		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
-			out.Status = "canceled"
-		}
-	}
+	out.Status, out.Error = runStatus(err)
 	if werr := writeTrust(cl, &out); werr != nil {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
@@ -338,11 +332,7 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	}
 	cl.wallTime(start, count(len(rep.Rungs)+1, "run")+" compared, verdict "+string(rep.Verdict))
 	if err != nil {
-		what := "failed"
-		if out.Status == "canceled" {
-			what = "was canceled"
-		}
-		return fmt.Errorf("the audit of %s %s (%s completed, written): %w", sys.Name, what, count(len(rep.Rungs), "rung"), err)
+		return fmt.Errorf("the audit of %s %s (%s completed, written): %w", sys.Name, statusVerb(out.Status), count(len(rep.Rungs), "rung"), err)
 	}
 	return nil
 }
