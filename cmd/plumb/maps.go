@@ -194,11 +194,7 @@ func orbitTable(cl *call, sys *plumb.System, out mapSolveJSON) error {
 	}
 	fmt.Fprintln(cl.stdout)
 	tw = newTable(cl.stdout)
-	var params []string
-	for _, p := range sys.Params() {
-		params = append(params, p.Name+"="+formatFloat(p.Value))
-	}
-	fmt.Fprintf(tw, "system\t%s (%s) %s\n", sys.Name, sys.Title, strings.Join(params, " "))
+	fmt.Fprintf(tw, "system\t%s\n", describe(sys).heading())
 	fmt.Fprintf(tw, "status\t%s at iterate %d\n", out.Status, out.End)
 	return tw.Flush()
 }
@@ -494,11 +490,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	case "csv":
 		werr = mapTrustCSV(cl, rep)
 	default:
-		var params []string
-		for _, p := range out.System.Parameters {
-			params = append(params, p.Name+"="+formatFloat(p.Value))
-		}
-		if _, werr = fmt.Fprintf(cl.stdout, "system: %s (%s) %s\n", out.System.Name, out.System.Title, strings.Join(params, " ")); werr == nil {
+		if _, werr = fmt.Fprintf(cl.stdout, "system: %s\n", out.System.heading()); werr == nil {
 			werr = rep.Write(cl.stdout)
 		}
 	}

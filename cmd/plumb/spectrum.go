@@ -9,7 +9,6 @@ import (
 	"io"
 	"math"
 	"strconv"
-	"strings"
 	"text/tabwriter"
 
 	"github.com/plumbdyn/plumb"
@@ -414,11 +413,7 @@ var (
 // table it returns, the derived measures and the checks; the caller adds
 // the rows of its run and flushes it.
 func spectrumHead(w io.Writer, sys systemJSON, out spectrumResult, u spectrumUnitWords) (*tabwriter.Writer, error) {
-	var params []string
-	for _, p := range sys.Parameters {
-		params = append(params, p.Name+"="+formatFloat(p.Value))
-	}
-	fmt.Fprintf(w, "system: %s (%s) %s\n\n", sys.Name, sys.Title, strings.Join(params, " "))
+	fmt.Fprintf(w, "system: %s\n\n", sys.heading())
 	tw := newTable(w)
 	fmt.Fprintln(tw, "exponent\tvalue\tstd err")
 	for i, v := range out.Exponents {

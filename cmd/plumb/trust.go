@@ -350,11 +350,7 @@ func writeTrust(cl *call, out *trustJSON) error {
 
 // trustTable writes the system line and the report's own summary.
 func trustTable(w io.Writer, out *trustJSON) error {
-	var params []string
-	for _, p := range out.System.Parameters {
-		params = append(params, p.Name+"="+formatFloat(p.Value))
-	}
-	if _, err := fmt.Fprintf(w, "system: %s (%s) %s\n", out.System.Name, out.System.Title, strings.Join(params, " ")); err != nil {
+	if _, err := fmt.Fprintf(w, "system: %s\n", out.System.heading()); err != nil {
 		return err
 	}
 	var b bytes.Buffer
