@@ -8,7 +8,6 @@ import (
 	"math"
 	"runtime"
 	"strings"
-	"text/tabwriter"
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/dd"
@@ -234,11 +233,8 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 		return nil, fmt.Errorf("plumb: MapTrustSettings is nil (Tol is required): %w", ErrTolerance)
 	}
 	s := *settings
-	if !(s.Tol > 0) || math.IsInf(s.Tol, 0) {
-		return nil, fmt.Errorf("plumb: MapTrustSettings.Tol = %v: must be positive and finite: %w", s.Tol, ErrTolerance)
-	}
-	if math.IsNaN(s.Lambda) || math.IsInf(s.Lambda, 0) || s.Lambda < 0 {
-		return nil, fmt.Errorf("plumb: MapTrustSettings.Lambda = %v: must be finite and >= 0: %w", s.Lambda, integrate.ErrSettings)
+	if err := checkTolLambda("MapTrustSettings", s.Tol, s.Lambda); err != nil {
+		return nil, err
 	}
 	rungs := s.Rungs
 	if rungs == nil {
@@ -303,27 +299,15 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 
 	lambda := s.Lambda
 	if lambda > 0 {
-		rep.Exponent = &ExponentEstimate{Value: lambda, LyapunovTime: 1 / lambda, Source: "given"}
+		rep.Exponent = givenExponent(lambda)
 	} else {
 		sp, err := lyap.MapExponents(ctx, m, x0, 1, s.Exponent)
-		switch {
-		case err != nil && ctx.Err() != nil:
+		if err != nil && ctx.Err() != nil {
 			rep.fill()
 			rep.Verdict = Incomplete
 			return rep, fmt.Errorf("plumb: TrustMap canceled during the exponent estimate: %w", err)
-		case err != nil:
-			rep.ExponentError = err.Error()
-		case len(sp.Exponents) == 1 && !math.IsNaN(sp.Exponents[0]) && !math.IsInf(sp.Exponents[0], 0):
-			e := &ExponentEstimate{Value: sp.Exponents[0], Source: "estimated"}
-			if len(sp.StdErr) == 1 && !math.IsNaN(sp.StdErr[0]) && !math.IsInf(sp.StdErr[0], 0) {
-				e.StdErr = sp.StdErr[0]
-			}
-			if e.Value > 0 {
-				e.LyapunovTime = 1 / e.Value
-				lambda = e.Value
-			}
-			rep.Exponent = e
 		}
+		rep.Exponent, rep.ExponentError, lambda = estimatedExponent(sp, err)
 	}
 	if lambda > 0 {
 		for i := range rep.Rungs {
@@ -536,10 +520,10 @@ func roundingUnit(r integrate.Rounding, mag float64) float64 {
 // fitMapGrowth fits ln d = a + rate·n and ln d = a + power·ln(n - start)
 // to the running maximum of the divergence, from its first positive value
 // up to the first iterate at or beyond tol, and names the better law
-// (smaller residual sum of squares). Less than a doubling over the range, or
-// an envelope that never passes boundedFactor·Delta0, is "bounded".
+// (integrate.FitGrowth). Less than a doubling over the range, or an
+// envelope that never passes boundedFactor·Delta0, is "bounded".
 func fitMapGrowth(out *MapRungReport, tol float64) {
-	var xs, lx, ly []float64
+	var xs, ly []float64
 	env := 0.0
 	for k, d := range out.Divergence {
 		env = math.Max(env, d)
@@ -547,7 +531,6 @@ func fitMapGrowth(out *MapRungReport, tol float64) {
 			continue
 		}
 		xs = append(xs, float64(out.Start+k))
-		lx = append(lx, math.Log(float64(k)))
 		ly = append(ly, math.Log(env))
 		if env >= tol {
 			break
@@ -557,53 +540,14 @@ func fitMapGrowth(out *MapRungReport, tol float64) {
 	if len(xs) < mapFitMin {
 		return
 	}
-	var rssE, rssP float64
-	out.Rate, out.RateErr, rssE = olsSlope(xs, ly)
-	out.Power, out.PowerErr, rssP = olsSlope(lx, ly)
-	out.Rate, out.RateErr = finiteOr0(out.Rate), finiteOr0(out.RateErr)
-	out.Power, out.PowerErr = finiteOr0(out.Power), finiteOr0(out.PowerErr)
-	switch {
-	case ly[len(ly)-1]-ly[0] < math.Ln2 || env <= boundedFactor*out.Delta0:
+	g := integrate.FitGrowth(xs, ly, float64(out.Start))
+	out.Rate, out.RateErr = finiteOr0(g.Rate), finiteOr0(g.RateErr)
+	out.Power, out.PowerErr = finiteOr0(g.Power), finiteOr0(g.PowerErr)
+	out.Growth = g.Kind.String()
+	if env <= boundedFactor*out.Delta0 {
+		// Rounding noise, however it is shaped.
 		out.Growth = "bounded"
-	case rssE <= rssP && out.Rate > 0:
-		out.Growth = "exponential"
-	case out.Power > 0:
-		out.Growth = "power law"
-	default:
-		out.Growth = "exponential"
 	}
-}
-
-// olsSlope is the least-squares slope of y on x with its standard error and
-// the residual sum of squares.
-func olsSlope(x, y []float64) (b, se, rss float64) {
-	n := float64(len(x))
-	var mx, my float64
-	for i := range x {
-		mx += x[i]
-		my += y[i]
-	}
-	mx /= n
-	my /= n
-	var sxx, sxy float64
-	for i := range x {
-		dx := x[i] - mx
-		sxx += float64(dx * dx)
-		sxy += float64(dx * (y[i] - my))
-	}
-	if sxx == 0 {
-		return 0, 0, math.Inf(1)
-	}
-	b = sxy / sxx
-	a := my - float64(b*mx)
-	for i := range x {
-		r := y[i] - (a + float64(b*x[i]))
-		rss += float64(r * r)
-	}
-	if len(x) > 2 {
-		se = math.Sqrt(rss / (n - 2) / sxx)
-	}
-	return b, se, rss
 }
 
 func finiteOr0(v float64) float64 {
@@ -618,20 +562,13 @@ func (rep *MapReport) fill() {
 	rep.TrustedUntil = rep.Steps
 	limit := -1
 	maxDiv := 0.0
-	var exp, pow, bnd int
+	var vote growthVote
 	rep.Failed = 0
 	for i, r := range rep.Rungs {
 		if r.Error != "" {
 			rep.Failed++
 		}
-		switch r.Growth {
-		case "exponential":
-			exp++
-		case "power law":
-			pow++
-		case "bounded":
-			bnd++
-		}
+		vote.add(r.Growth)
 		if r.Departed && r.AgreesUntil < rep.TrustedUntil {
 			rep.TrustedUntil, limit = r.AgreesUntil, i
 		}
@@ -652,16 +589,7 @@ func (rep *MapReport) fill() {
 	if limit >= 0 {
 		rep.LimitedBy, rep.LimitingRung = rep.Rungs[limit].Effect, rep.Rungs[limit].Name
 	}
-	switch {
-	case exp+pow+bnd == 0:
-		rep.Growth = "undetermined"
-	case exp >= pow && exp >= bnd:
-		rep.Growth = "exponential"
-	case pow >= bnd:
-		rep.Growth = "polynomial"
-	default:
-		rep.Growth = "bounded"
-	}
+	rep.Growth = vote.law()
 	rep.PredictedHorizon = 0
 	if rep.Growth == "exponential" {
 		for _, r := range rep.Rungs {
@@ -675,14 +603,7 @@ func (rep *MapReport) fill() {
 			rep.Rungs[i].Predicted = 0
 		}
 	}
-	switch {
-	case len(rep.Rungs) == 0 || rep.Failed == len(rep.Rungs) || rep.TrustedUntil < rep.Steps:
-		rep.Verdict = NotTrusted
-	case rep.TolUsed <= 1.0/marginFactor:
-		rep.Verdict = TrustedWithMargin
-	default:
-		rep.Verdict = Trusted
-	}
+	rep.Verdict = verdictOf(len(rep.Rungs), rep.Failed, rep.TrustedUntil < rep.Steps, rep.TolUsed)
 }
 
 // Write writes the report as a short readable summary: the rungs with
@@ -690,36 +611,17 @@ func (rep *MapReport) fill() {
 // iterate and what limits it, the verdict and the caution.
 func (rep *MapReport) Write(w io.Writer) error {
 	var b strings.Builder
-	tolWord := fmt.Sprintf("%.3g", rep.Tol)
-	if rep.Relative {
-		tolWord = fmt.Sprintf("%.3g of the spread (%.3g)", rep.Tol, rep.TolAbs)
-	}
-	fmt.Fprintf(&b, "audit of iterates 0 .. %d at tolerance %s\n", rep.Steps, tolWord)
+	fmt.Fprintf(&b, "audit of iterates 0 .. %d at tolerance %s\n", rep.Steps, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
 	fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference)
-	tw := tabwriter.NewWriter(&b, 0, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "rung\teffect\tagrees until\tpredicted\tgrowth\t")
-	for _, r := range rep.Rungs {
-		until := fmt.Sprintf("%d", r.AgreesUntil)
-		if !r.Departed {
-			until = "> " + until
+	table := make([]rungRow, len(rep.Rungs))
+	for i, r := range rep.Rungs {
+		table[i] = rungRow{
+			name: r.Name, effect: r.Effect, until: fmt.Sprintf("%d", r.AgreesUntil),
+			departed: r.Departed, failed: r.Error != "", predicted: r.Predicted,
+			growth: growthCell(r.Growth, r.Rate, r.Power, " per iterate", "n"),
 		}
-		if r.Error != "" {
-			until += " (failed)"
-		}
-		pred := "-"
-		if r.Predicted > 0 {
-			pred = fmt.Sprintf("%.4g", r.Predicted)
-		}
-		growth := r.Growth
-		switch r.Growth {
-		case "exponential":
-			growth = fmt.Sprintf("exponential, rate %.3g per iterate", r.Rate)
-		case "power law":
-			growth = fmt.Sprintf("power law, n^%.2g", r.Power)
-		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t\n", r.Name, r.Effect, until, pred, growth)
 	}
-	if err := tw.Flush(); err != nil {
+	if err := writeRungTable(&b, table); err != nil {
 		return err
 	}
 	b.WriteByte('\n')
@@ -759,12 +661,7 @@ func (rep *MapReport) Write(w io.Writer) error {
 	default:
 		fmt.Fprintf(&b, "trusted until iterate %d: every rung agrees over the whole horizon\n", rep.TrustedUntil)
 	}
-	verdict := map[Verdict]string{
-		TrustedWithMargin: "trusted with margin",
-		Trusted:           "trusted",
-		NotTrusted:        "not trusted",
-		Incomplete:        "incomplete (the audit did not finish)",
-	}[rep.Verdict]
+	verdict := rep.Verdict.words()
 	switch rep.Verdict {
 	case NotTrusted:
 		fmt.Fprintf(&b, "verdict for iterate %d: %s (the runs part by more than the tolerance at iterate %d)\n", rep.Steps, verdict, rep.TrustedUntil+1)

@@ -255,11 +255,8 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 		return nil, fmt.Errorf("plumb: TrustSettings is nil (Tol is required): %w", ErrTolerance)
 	}
 	s := *settings
-	if !(s.Tol > 0) || math.IsInf(s.Tol, 0) {
-		return nil, fmt.Errorf("plumb: TrustSettings.Tol = %v: must be positive and finite: %w", s.Tol, ErrTolerance)
-	}
-	if math.IsNaN(s.Lambda) || math.IsInf(s.Lambda, 0) || s.Lambda < 0 {
-		return nil, fmt.Errorf("plumb: TrustSettings.Lambda = %v: must be finite and >= 0: %w", s.Lambda, integrate.ErrSettings)
+	if err := checkTolLambda("TrustSettings", s.Tol, s.Lambda); err != nil {
+		return nil, err
 	}
 	t1 := problem.T0 + horizon
 	ladder := integrate.DefaultLadder(problem.T0, t1)
@@ -294,30 +291,17 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	}
 	lambda := s.Lambda
 	if lambda > 0 {
-		rep.Exponent = &ExponentEstimate{Value: lambda, LyapunovTime: 1 / lambda, Source: "given"}
+		rep.Exponent = givenExponent(lambda)
 	} else {
 		progress("exponent", 0, 1)
 		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
 		progress("exponent", 1, 1)
-		switch {
-		case err != nil:
-			if ctx.Err() != nil {
-				rep.fill(res)
-				rep.Verdict = Incomplete
-				return rep, fmt.Errorf("plumb: trust canceled during the exponent estimate: %w", err)
-			}
-			rep.ExponentError = err.Error()
-		case len(sp.Exponents) == 1 && finite(sp.Exponents[0]):
-			e := &ExponentEstimate{Value: sp.Exponents[0], Source: "estimated"}
-			if len(sp.StdErr) == 1 && finite(sp.StdErr[0]) {
-				e.StdErr = sp.StdErr[0]
-			}
-			if e.Value > 0 {
-				e.LyapunovTime = 1 / e.Value
-				lambda = e.Value
-			}
-			rep.Exponent = e
+		if err != nil && ctx.Err() != nil {
+			rep.fill(res)
+			rep.Verdict = Incomplete
+			return rep, fmt.Errorf("plumb: trust canceled during the exponent estimate: %w", err)
 		}
+		rep.Exponent, rep.ExponentError, lambda = estimatedExponent(sp, err)
 	}
 	res.Predict(lambda)
 	rep.fill(res)
@@ -345,15 +329,12 @@ func (rep *Report) fill(res *integrate.AuditResult) {
 		rep.TolUsed = res.MaxDivergence / res.Tol
 	}
 	end := rep.T0 + rep.Horizon
-	switch {
-	case len(res.Rungs) == 0 || res.Failed == len(res.Rungs) || res.Trusted < end:
-		rep.Verdict = NotTrusted
-	case rep.TolUsed <= 1.0/marginFactor:
-		rep.Verdict = TrustedWithMargin
-	default:
-		rep.Verdict = Trusted
+	rep.Verdict = verdictOf(len(res.Rungs), res.Failed, res.Trusted < end, rep.TolUsed)
+	var vote growthVote
+	for _, r := range rep.Rungs {
+		vote.add(r.Growth)
 	}
-	rep.Growth = growthVote(res.Rungs)
+	rep.Growth = vote.law()
 	if rep.Growth == "exponential" {
 		for _, r := range res.Rungs {
 			if r.Predicted > 0 && (rep.PredictedHorizon == 0 || r.Predicted < rep.PredictedHorizon) {
@@ -381,27 +362,98 @@ func (rep *Report) fill(res *integrate.AuditResult) {
 	}
 }
 
-// growthVote is the law most rungs follow: "exponential", "polynomial",
-// "bounded", or "undetermined" when no rung could be fitted. Ties between
-// exponential and the others go to exponential (the cautious reading).
-func growthVote(rs []integrate.RungResult) string {
-	var exp, pow, bnd int
-	for _, r := range rs {
-		switch r.Growth.Kind {
-		case integrate.GrowthExponential:
-			exp++
-		case integrate.GrowthPower:
-			pow++
-		case integrate.GrowthBounded:
-			bnd++
-		}
+// checkTolLambda validates the tolerance and the given exponent of the
+// settings type named name (TrustSettings, MapTrustSettings).
+func checkTolLambda(name string, tol, lambda float64) error {
+	if !(tol > 0) || math.IsInf(tol, 0) {
+		return fmt.Errorf("plumb: %s.Tol = %v: must be positive and finite: %w", name, tol, ErrTolerance)
 	}
+	if math.IsNaN(lambda) || math.IsInf(lambda, 0) || lambda < 0 {
+		return fmt.Errorf("plumb: %s.Lambda = %v: must be finite and >= 0: %w", name, lambda, integrate.ErrSettings)
+	}
+	return nil
+}
+
+// givenExponent is the report of an exponent lambda > 0 the caller gave.
+func givenExponent(lambda float64) *ExponentEstimate {
+	return &ExponentEstimate{Value: lambda, LyapunovTime: 1 / lambda, Source: "given"}
+}
+
+// estimatedExponent reads the estimate (sp, err) of the largest exponent:
+// the report of a finite estimate (nil if there is none), why the estimate
+// failed ("" if it did not), and the exponent to predict with (the
+// estimate if it is positive, else 0).
+func estimatedExponent(sp *lyap.Spectrum, err error) (e *ExponentEstimate, why string, lambda float64) {
 	switch {
-	case exp+pow+bnd == 0:
+	case err != nil:
+		return nil, err.Error(), 0
+	case sp == nil || len(sp.Exponents) != 1 || !finite(sp.Exponents[0]):
+		return nil, "", 0
+	}
+	e = &ExponentEstimate{Value: sp.Exponents[0], Source: "estimated"}
+	if len(sp.StdErr) == 1 && finite(sp.StdErr[0]) {
+		e.StdErr = sp.StdErr[0]
+	}
+	if e.Value > 0 {
+		e.LyapunovTime = 1 / e.Value
+		lambda = e.Value
+	}
+	return e, "", lambda
+}
+
+// verdictOf is the verdict of an audit of rungs runs, failed of which
+// failed: NotTrusted when none ran through or the agreement falls short of
+// the horizon, else TrustedWithMargin or Trusted by the fraction tolUsed of
+// the tolerance the divergence used.
+func verdictOf(rungs, failed int, short bool, tolUsed float64) Verdict {
+	switch {
+	case rungs == 0 || failed == rungs || short:
+		return NotTrusted
+	case tolUsed <= 1.0/marginFactor:
+		return TrustedWithMargin
+	}
+	return Trusted
+}
+
+// words is the verdict as the summaries write it.
+func (v Verdict) words() string {
+	switch v {
+	case TrustedWithMargin:
+		return "trusted with margin"
+	case Trusted:
+		return "trusted"
+	case NotTrusted:
+		return "not trusted"
+	case Incomplete:
+		return "incomplete (the audit did not finish)"
+	}
+	return ""
+}
+
+// growthVote counts the rungs' growth laws (RungReport.Growth). Its law is
+// the one most rungs follow: "exponential", "polynomial", "bounded", or
+// "undetermined" when no rung could be fitted. Ties between exponential
+// and the others go to exponential (the cautious reading).
+type growthVote struct{ exp, pow, bnd int }
+
+func (v *growthVote) add(law string) {
+	switch law {
+	case integrate.GrowthExponential.String():
+		v.exp++
+	case integrate.GrowthPower.String():
+		v.pow++
+	case integrate.GrowthBounded.String():
+		v.bnd++
+	}
+}
+
+func (v growthVote) law() string {
+	switch {
+	case v.exp+v.pow+v.bnd == 0:
 		return "undetermined"
-	case exp >= pow && exp >= bnd:
+	case v.exp >= v.pow && v.exp >= v.bnd:
 		return "exponential"
-	case pow >= bnd:
+	case v.pow >= v.bnd:
 		return "polynomial"
 	}
 	return "bounded"
@@ -474,11 +526,7 @@ func buildVersion() string {
 // what limits it, the verdict and the caution.
 func (rep *Report) Write(w io.Writer) error {
 	var b strings.Builder
-	tolWord := fmt.Sprintf("%.3g", rep.Tol)
-	if rep.Relative {
-		tolWord = fmt.Sprintf("%.3g of the spread (%.3g)", rep.Tol, rep.TolAbs)
-	}
-	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, tolWord)
+	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
 	rows := rep.Rungs
 	if ex := rep.Exact; ex != nil {
 		fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d, %d steps); every float64 run is compared with it\n\n",
@@ -488,30 +536,15 @@ func (rep *Report) Write(w io.Writer) error {
 	} else {
 		fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference.Name)
 	}
-	tw := tabwriter.NewWriter(&b, 0, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "rung\teffect\tagrees until\tpredicted\tgrowth\t")
-	for _, r := range rows {
-		until := fmt.Sprintf("%.4g", r.AgreesUntil)
-		if !r.Departed {
-			until = "> " + until
+	table := make([]rungRow, len(rows))
+	for i, r := range rows {
+		table[i] = rungRow{
+			name: r.Name, effect: r.Effect, until: fmt.Sprintf("%.4g", r.AgreesUntil),
+			departed: r.Departed, failed: r.Error != "", predicted: r.Predicted,
+			growth: growthCell(r.Growth, r.Rate, r.Power, "", "t"),
 		}
-		if r.Error != "" {
-			until += " (failed)"
-		}
-		pred := "-"
-		if r.Predicted > 0 {
-			pred = fmt.Sprintf("%.4g", r.Predicted)
-		}
-		growth := r.Growth
-		switch r.Growth {
-		case "exponential":
-			growth = fmt.Sprintf("exponential, rate %.3g", r.Rate)
-		case "power law":
-			growth = fmt.Sprintf("power law, t^%.2g", r.Power)
-		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t\n", r.Name, r.Effect, until, pred, growth)
 	}
-	if err := tw.Flush(); err != nil {
+	if err := writeRungTable(&b, table); err != nil {
 		return err
 	}
 	b.WriteByte('\n')
@@ -566,12 +599,7 @@ func (rep *Report) Write(w io.Writer) error {
 	default:
 		fmt.Fprintf(&b, "trusted until t = %.4g: every rung agrees over the whole horizon\n", rep.TrustedUntil)
 	}
-	verdict := map[Verdict]string{
-		TrustedWithMargin: "trusted with margin",
-		Trusted:           "trusted",
-		NotTrusted:        "not trusted",
-		Incomplete:        "incomplete (the audit did not finish)",
-	}[rep.Verdict]
+	verdict := rep.Verdict.words()
 	switch rep.Verdict {
 	case NotTrusted:
 		fmt.Fprintf(&b, "verdict for t = %.4g: %s (the runs part by more than the tolerance at t = %.4g)\n", rep.T0+rep.Horizon, verdict, rep.TrustedUntil)
@@ -583,4 +611,56 @@ func (rep *Report) Write(w io.Writer) error {
 	fmt.Fprintf(&b, "caution: %s\n", rep.Caution)
 	_, err := io.WriteString(w, b.String())
 	return err
+}
+
+// tolPhrase is the tolerance as the summaries write it: tol, or the
+// fraction tol of the spread with the absolute tolerance tolAbs.
+func tolPhrase(tol, tolAbs float64, relative bool) string {
+	if relative {
+		return fmt.Sprintf("%.3g of the spread (%.3g)", tol, tolAbs)
+	}
+	return fmt.Sprintf("%.3g", tol)
+}
+
+// rungRow is one row of a summary's table of rungs; until is the
+// formatted agreement horizon.
+type rungRow struct {
+	name, effect, until string
+	departed, failed    bool
+	predicted           float64
+	growth              string
+}
+
+// writeRungTable writes the table of rungs: "> " marks an agreement over
+// the whole run, " (failed)" a run that stopped, "-" no prediction.
+func writeRungTable(b *strings.Builder, rows []rungRow) error {
+	tw := tabwriter.NewWriter(b, 0, 4, 2, ' ', 0)
+	fmt.Fprintln(tw, "rung\teffect\tagrees until\tpredicted\tgrowth\t")
+	for _, r := range rows {
+		until := r.until
+		if !r.departed {
+			until = "> " + until
+		}
+		if r.failed {
+			until += " (failed)"
+		}
+		pred := "-"
+		if r.predicted > 0 {
+			pred = fmt.Sprintf("%.4g", r.predicted)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t\n", r.name, r.effect, until, pred, r.growth)
+	}
+	return tw.Flush()
+}
+
+// growthCell is a rung's growth law as its table cell: with the rate (in
+// units of per, e.g. " per iterate") or with the power of the variable v.
+func growthCell(law string, rate, power float64, per, v string) string {
+	switch law {
+	case integrate.GrowthExponential.String():
+		return fmt.Sprintf("exponential, rate %.3g%s", rate, per)
+	case integrate.GrowthPower.String():
+		return fmt.Sprintf("power law, %s^%.2g", v, power)
+	}
+	return law
 }

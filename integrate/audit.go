@@ -674,9 +674,10 @@ func (a *auditor) horizon(d []float64, start int, tStart float64) (float64, bool
 	return a.times[start+len(d)-1], false
 }
 
-// fitGrowth fits the exponential and power laws to d(t) in its growth range.
+// fitGrowth picks the growth range of d(t) and fits the exponential and
+// power laws to its envelope there (FitGrowth).
 func fitGrowth(t, d []float64, tStart, ceil float64) Growth {
-	var x, lx, ly []float64
+	var x, ly []float64
 	// The envelope (running maximum) removes the orbit-scale oscillation of
 	// the distance. Its first plateau is skipped: a perturbation's stable
 	// part decays before the unstable part regrows past the start level.
@@ -695,23 +696,54 @@ func fitGrowth(t, d []float64, tStart, ceil float64) Growth {
 		}
 		rising = true
 		x = append(x, t[k])
-		lx = append(lx, math.Log(t[k]-tStart))
 		ly = append(ly, math.Log(env))
 		if env >= ceil {
 			break
 		}
 	}
-	g := Growth{Points: len(x)}
 	if len(x) < minFitPoints {
+		return Growth{Points: len(x)}
+	}
+	return FitGrowth(x, ly, tStart)
+}
+
+// FitGrowth fits the two laws of Growth by ordinary least squares to the
+// points (t[k], logEnv[k]), logEnv being the log of a divergence envelope
+// and tStart the start of the divergence (every t[k] > tStart):
+//
+//	exponential:  logEnv = a + Rate·t
+//	power law:    logEnv = b + Power·log(t - tStart)
+//
+// and names the law: GrowthBounded when logEnv rises by less than ln 2 from
+// the first point to the last (less than a doubling), else the law with the
+// smaller residual sum of squares if its slope is positive, else
+// GrowthExponential. The caller picks the points (the growth range) and the
+// fewest it accepts; Audit takes eight. Fewer than three points, or fewer
+// values of logEnv than of t, give GrowthUnknown with Points set and no fit.
+//
+// Cost: O(len(t)), one allocation.
+//
+// References:
+//
+//	G. Boffetta, M. Cencini, M. Falcioni, A. Vulpiani, Predictability: a way
+//	  to characterize complexity, Phys. Rep. 356 (2002) 367–474, Sect. 3
+//	  (the growth rate of a perturbation as a finite-time Lyapunov exponent).
+func FitGrowth(t, logEnv []float64, tStart float64) Growth {
+	g := Growth{Points: len(t)}
+	if len(t) < 3 || len(logEnv) < len(t) {
 		return g
 	}
-	g.From, g.To = x[0], x[len(x)-1]
-	g.Rate, g.RateErr, g.RSSExp = lineFit(x, ly)
+	ly := logEnv[:len(t)]
+	lx := make([]float64, len(t))
+	for k, tk := range t {
+		lx[k] = math.Log(tk - tStart)
+	}
+	g.From, g.To = t[0], t[len(t)-1]
+	g.Rate, g.RateErr, g.RSSExp = lineFit(t, ly)
 	g.Power, g.PowerErr, g.RSSPower = lineFit(lx, ly)
 	switch {
 	case ly[len(ly)-1]-ly[0] < math.Ln2:
 		// Less than a doubling over the whole range.
-		g.Kind = GrowthBounded
 		g.Kind = GrowthBounded
 	case g.RSSExp < g.RSSPower && g.Rate > 0:
 		g.Kind = GrowthExponential

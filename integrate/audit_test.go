@@ -415,6 +415,45 @@ func TestFitGrowth(t *testing.T) {
 	}
 }
 
+// TestFitGrowthPoints checks the exported fit on points picked by the
+// caller: exact laws (exact identities) and the guards for too few points.
+func TestFitGrowthPoints(t *testing.T) {
+	const tol = 1e-9 // least squares on exact data recovers the law to rounding
+	var tt, le, lp, lb []float64
+	for i := 1; i <= 20; i++ {
+		x := float64(i)
+		tt = append(tt, x)
+		le = append(le, -20+0.7*x)         // ln d of d = e^-20·e^(0.7 n)
+		lp = append(lp, -20+3*math.Log(x)) // ln d of d = e^-20·n^3
+		lb = append(lb, -20+0.01*x)        // rises by 0.19 < ln 2
+	}
+	tests := []struct {
+		name      string
+		t, logEnv []float64
+		kind      GrowthKind
+		rate, pow float64 // checked where nonzero
+	}{
+		{name: "exponential", t: tt, logEnv: le, kind: GrowthExponential, rate: 0.7},
+		{name: "power law", t: tt, logEnv: lp, kind: GrowthPower, pow: 3},
+		{name: "bounded", t: tt, logEnv: lb, kind: GrowthBounded},
+		{name: "two points", t: tt[:2], logEnv: le[:2], kind: GrowthUnknown},
+		{name: "short logEnv", t: tt, logEnv: le[:5], kind: GrowthUnknown},
+		{name: "empty", kind: GrowthUnknown},
+	}
+	for _, tc := range tests {
+		g := FitGrowth(tc.t, tc.logEnv, 0)
+		if g.Kind != tc.kind || g.Points != len(tc.t) {
+			t.Errorf("%s: %v with %d points, want %v with %d", tc.name, g.Kind, g.Points, tc.kind, len(tc.t))
+		}
+		if tc.rate != 0 && math.Abs(g.Rate-tc.rate) > tol {
+			t.Errorf("%s: rate %v, want %v (error %.3g)", tc.name, g.Rate, tc.rate, g.Rate-tc.rate)
+		}
+		if tc.pow != 0 && math.Abs(g.Power-tc.pow) > tol {
+			t.Errorf("%s: power %v, want %v (error %.3g)", tc.name, g.Power, tc.pow, g.Power-tc.pow)
+		}
+	}
+}
+
 // TestAuditDeterministic checks that two audits give the same bits.
 func TestAuditDeterministic(t *testing.T) {
 	p := catalogProblem(t, "lorenz")

@@ -51,7 +51,9 @@
 // the tightest one on a common grid, and reports per rung the divergence
 // curve, the agreement horizon at the user's tolerance, the fitted growth law
 // and the horizon predicted from the largest Lyapunov exponent. With
-// Ladder.Exact the runs are compared with an exact trajectory instead.
+// Ladder.Exact the runs are compared with an exact trajectory instead. FitGrowth
+// is the growth-law fit on its own, for divergences measured elsewhere (the
+// iterates of a map).
 //
 // # Reference runs
 //

@@ -75,3 +75,17 @@ func ExampleStepper() {
 	// Output:
 	// fastest circulation 19.57 at t = 0.3469; reached t = 20
 }
+
+// ExampleFitGrowth fits the growth of a gap between two measured runs of a
+// fish-stock model that doubles every year from 1e-12 (an invented curve):
+// the exponential law wins, at rate ln 2 per year.
+func ExampleFitGrowth() {
+	var years, logGap []float64
+	for n := 1; n <= 12; n++ {
+		years = append(years, float64(n))
+		logGap = append(logGap, math.Log(1e-12)+float64(n)*math.Ln2)
+	}
+	g := integrate.FitGrowth(years, logGap, 0)
+	fmt.Printf("%v, rate %.6g per year (ln 2 = %.6g), %d points\n", g.Kind, g.Rate, math.Ln2, g.Points)
+	// Output: exponential, rate 0.693147 per year (ln 2 = 0.693147), 12 points
+}

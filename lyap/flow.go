@@ -212,6 +212,21 @@ func (r *flowRun) field(t float64, y, dy []float64) {
 	v := y[n : n+n*k]
 	dv := dy[n : n+n*k]
 	jd := r.jd
+	mulTangent(dv, jd, v, n, k)
+	if r.vol {
+		var tr float64
+		for i := 0; i < n; i++ {
+			tr += jd[i*n+i]
+		}
+		dy[r.volIx] = tr
+	}
+}
+
+// mulTangent sets dst = J·V for the n×n matrix J and the n×k matrix V,
+// both row-major (V holds the k tangent vectors as columns). O(n²k), no
+// allocation; the products are not fused (float64 conversions), so the
+// bits are the same on every architecture.
+func mulTangent(dst, jd, v []float64, n, k int) {
 	for i := 0; i < n; i++ {
 		row := jd[i*n : i*n+n]
 		for j := 0; j < k; j++ {
@@ -219,15 +234,8 @@ func (r *flowRun) field(t float64, y, dy []float64) {
 			for l, a := range row {
 				s += float64(a * v[l*k+j])
 			}
-			dv[i*k+j] = s
+			dst[i*k+j] = s
 		}
-	}
-	if r.vol {
-		var tr float64
-		for i := 0; i < n; i++ {
-			tr += jd[i*n+i]
-		}
-		dy[r.volIx] = tr
 	}
 }
 

@@ -293,12 +293,10 @@ func (r *mapTwoRun) step(ctx context.Context) bool {
 	if r.done {
 		return false
 	}
-	if r.it&1023 == 0 {
-		if err := ctx.Err(); err != nil {
-			r.err = fmt.Errorf("lyap: canceled at iteration %d: %w", r.it, err)
-			r.done = true
-			return false
-		}
+	if err := canceledAt(ctx, r.it); err != nil {
+		r.err = err
+		r.done = true
+		return false
 	}
 	r.m.Next(r.x, r.tmp)
 	r.x, r.tmp = r.tmp, r.x

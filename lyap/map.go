@@ -205,27 +205,14 @@ func (r *mapRun) step(ctx context.Context) bool {
 	if r.done {
 		return false
 	}
-	if r.it&1023 == 0 {
-		if err := ctx.Err(); err != nil {
-			r.err = fmt.Errorf("lyap: canceled at iteration %d: %w", r.it, err)
-			r.done = true
-			return false
-		}
+	if err := canceledAt(ctx, r.it); err != nil {
+		r.err = err
+		r.done = true
+		return false
 	}
-	n, k := r.n, r.k
 	r.m.Jacobian(r.x, r.J)
 	r.jacs++
-	jd := r.jd
-	for i := 0; i < n; i++ {
-		row := jd[i*n : i*n+n]
-		for j := 0; j < k; j++ {
-			var s float64
-			for l, a := range row {
-				s += float64(a * r.v[l*k+j])
-			}
-			r.vn[i*k+j] = s
-		}
-	}
+	mulTangent(r.vn, r.jd, r.v, r.n, r.k)
 	if r.det && r.averaging {
 		r.logDetOpen += r.logAbsDet()
 	}
@@ -254,6 +241,18 @@ func (r *mapRun) step(ctx context.Context) bool {
 		return false
 	}
 	return true
+}
+
+// canceledAt is the error of a canceled ctx at iteration it, looked at
+// every 1024 iterations (nil otherwise).
+func canceledAt(ctx context.Context, it int) error {
+	if it&1023 != 0 {
+		return nil
+	}
+	if err := ctx.Err(); err != nil {
+		return fmt.Errorf("lyap: canceled at iteration %d: %w", it, err)
+	}
+	return nil
 }
 
 // logAbsDet is ln|det J| by gonum's LU (Dgetrf) on a copy of J.

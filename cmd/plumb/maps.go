@@ -146,7 +146,7 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	}
 	cl.wallTime(start, count(end, "iterate"))
 	if runErr != nil {
-		return fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, map[string]string{"failed": "failed", "canceled": "was canceled"}[status], end, runErr)
+		return fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, statusVerb(status), end, runErr)
 	}
 	return nil
 }
@@ -194,11 +194,7 @@ func orbitTable(cl *call, sys *plumb.System, out mapSolveJSON) error {
 	}
 	fmt.Fprintln(cl.stdout)
 	tw = newTable(cl.stdout)
-	var params []string
-	for _, p := range sys.Params() {
-		params = append(params, p.Name+"="+formatFloat(p.Value))
-	}
-	fmt.Fprintf(tw, "system\t%s (%s) %s\n", sys.Name, sys.Title, strings.Join(params, " "))
+	fmt.Fprintf(tw, "system\t%s\n", describe(sys).heading())
 	fmt.Fprintf(tw, "status\t%s at iterate %d\n", out.Status, out.End)
 	return tw.Flush()
 }
@@ -236,19 +232,9 @@ type mapSpectrumJSON struct {
 	System   systemJSON              `json:"system"`
 	Settings mapSpectrumSettingsJSON `json:"settings"`
 	Units    spectrumUnitsMapJSON    `json:"units"`
-	Status   string                  `json:"status"`
-	Error    string                  `json:"error,omitempty"`
-	// Exponents, StdErr and the derived measures as for a flow, per
-	// iterate; LyapunovTime in iterates.
-	Exponents        []float64   `json:"exponents"`
-	StdErr           []float64   `json:"std_err"`
-	KaplanYorke      *float64    `json:"kaplan_yorke"`
-	KaplanYorkeBound string      `json:"kaplan_yorke_bound"`
-	Entropy          *float64    `json:"entropy"`
-	EntropyBound     string      `json:"entropy_bound"`
-	LyapunovTime     *float64    `json:"lyapunov_time"`
-	BeyondNoise      bool        `json:"beyond_noise"`
-	Checks           []checkJSON `json:"checks"`
+	// spectrumResult holds the status, the exponents and the derived
+	// measures as for a flow, per iterate; LyapunovTime in iterates.
+	spectrumResult
 	// Run describes the averaging: first averaged iterate, iterates
 	// averaged, blocks.
 	Run     mapSpectrumRunJSON `json:"run"`
@@ -320,9 +306,9 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 	}
 	out := mapSpectrumJSON{
 		header: newHeader("spectrum"), System: describe(sys),
-		Settings: mapSpectrumSettingsJSON{Exponents: k, Iterations: f.iterations, Discard: f.discard, Blocks: lyap.DefaultBlocks},
-		Units:    mapSpectrumUnits, Status: "completed",
-		Exponents: sp.Exponents, StdErr: sp.StdErr, Checks: []checkJSON{},
+		Settings:       mapSpectrumSettingsJSON{Exponents: k, Iterations: f.iterations, Discard: f.discard, Blocks: lyap.DefaultBlocks},
+		Units:          mapSpectrumUnits,
+		spectrumResult: newSpectrumResult(sys, k, sp, err),
 		Run: mapSpectrumRunJSON{Jacobian: sp.Jacobian, Start: int(sp.Start), Iterations: int(sp.Duration),
 			Blocks: sp.Blocks, BlockLength: sp.BlockLength, MeanInterval: sp.MeanInterval},
 		Stats: sp.Stats, History: sp.History,
@@ -330,26 +316,12 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 	if out.History == nil {
 		out.History = []lyap.Point{}
 	}
-	if err != nil {
-		out.Status, out.Error = "failed", err.Error()
-		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
-			out.Status = "canceled"
-		}
-	}
-	// The derived measures are those of a flow's spectrum (see
-	// spectrumFlags.json), per iterate.
-	flow := (&spectrumFlags{}).json(sys, method{}, k, sp, nil)
-	out.KaplanYorke, out.KaplanYorkeBound = flow.KaplanYorke, flow.KaplanYorkeBound
-	out.Entropy, out.EntropyBound = flow.Entropy, flow.EntropyBound
-	out.LyapunovTime, out.BeyondNoise = flow.LyapunovTime, flow.BeyondNoise
-	out.Checks = flow.Checks
 	var werr error
 	switch cl.sh.format {
 	case "json":
 		werr = writeJSON(cl.stdout, out)
 	case "csv":
-		flow.Exponents, flow.History = out.Exponents, out.History
-		werr = spectrumCSV(cl, flow)
+		werr = spectrumCSV(cl, out.Exponents, out.History)
 	default:
 		werr = mapSpectrumTable(cl, out)
 	}
@@ -357,7 +329,7 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" {
-		c := spectrumChart(sys, flow)
+		c := spectrumChart(sys, out.Exponents, out.History)
 		c.XLabel, c.YLabel = "iterate", "running estimate - final estimate (per iterate)"
 		if perr := c.save(cl.sh.plot); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
@@ -371,53 +343,9 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 }
 
 func mapSpectrumTable(cl *call, out mapSpectrumJSON) error {
-	w := cl.stdout
-	var params []string
-	for _, p := range out.System.Parameters {
-		params = append(params, p.Name+"="+formatFloat(p.Value))
-	}
-	fmt.Fprintf(w, "system: %s (%s) %s\n\n", out.System.Name, out.System.Title, strings.Join(params, " "))
-	tw := newTable(w)
-	fmt.Fprintln(tw, "exponent\tvalue\tstd err")
-	for i, v := range out.Exponents {
-		se := "-"
-		if i < len(out.StdErr) {
-			se = strconv.FormatFloat(out.StdErr[i], 'g', 2, 64)
-		}
-		fmt.Fprintf(tw, "lambda_%d\t%s\t%s\n", i+1, strconv.FormatFloat(v, 'g', 6, 64), se)
-	}
-	if err := tw.Flush(); err != nil {
+	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, mapRates)
+	if err != nil {
 		return err
-	}
-	fmt.Fprintln(w, "(per iterate, natural log)")
-	fmt.Fprintln(w)
-	tw = newTable(w)
-	bound := func(b string) string {
-		if b == "lower" {
-			return " (a lower bound: more exponents could raise it)"
-		}
-		return ""
-	}
-	if out.KaplanYorke != nil {
-		fmt.Fprintf(tw, "Kaplan–Yorke dimension\t%.5g%s\n", *out.KaplanYorke, bound(out.KaplanYorkeBound))
-	}
-	if out.Entropy != nil {
-		fmt.Fprintf(tw, "entropy (sum of positive exponents)\t%.4g per iterate%s\n", *out.Entropy, bound(out.EntropyBound))
-	}
-	switch {
-	case out.LyapunovTime != nil && out.BeyondNoise:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g iterates\n", *out.LyapunovTime)
-	case out.LyapunovTime != nil:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g iterates (no clear sign of chaos: the largest exponent is within %d standard errors or %d ln(D)/D of 0)\n", *out.LyapunovTime, noiseFactor, noiseFactor)
-	case len(out.Exponents) > 0:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\tnone (no exponent is positive)\n")
-	}
-	for _, c := range out.Checks {
-		se := ""
-		if c.StdErr > 0 {
-			se = fmt.Sprintf(" ± %.2g", c.StdErr)
-		}
-		fmt.Fprintf(tw, "check %s\t%.3g%s  %s\n", c.Name, c.Residual, se, c.Meaning)
 	}
 	r := out.Run
 	fmt.Fprintf(tw, "run\taveraged iterates %d .. %d in %d blocks; %s Jacobian\n", r.Start, r.Start+r.Iterations, r.Blocks, r.Jacobian)
@@ -549,16 +477,11 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	out := mapTrustJSON{
 		PlumbVersion: version, Arch: goarch, Command: "trust", System: describe(sys),
 		Settings: mapTrustSettingsJSON{Horizon: steps, Tol: tol, Relative: f.relative, Rungs: want, RestartAt: restartAt},
-		Units:    mapTrustUnits, Status: "completed", MapReport: rep,
+		Units:    mapTrustUnits, MapReport: rep,
 	}
+	out.Status, out.Error = runStatus(err)
 	if seen["restart"] {
 		out.Settings.RestartPlaces = f.restartPlaces
-	}
-	if err != nil {
-		out.Status, out.Error = "failed", err.Error()
-		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
-			out.Status = "canceled"
-		}
 	}
 	var werr error
 	switch cl.sh.format {
@@ -567,11 +490,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	case "csv":
 		werr = mapTrustCSV(cl, rep)
 	default:
-		var params []string
-		for _, p := range out.System.Parameters {
-			params = append(params, p.Name+"="+formatFloat(p.Value))
-		}
-		if _, werr = fmt.Fprintf(cl.stdout, "system: %s (%s) %s\n", out.System.Name, out.System.Title, strings.Join(params, " ")); werr == nil {
+		if _, werr = fmt.Fprintf(cl.stdout, "system: %s\n", out.System.heading()); werr == nil {
 			werr = rep.Write(cl.stdout)
 		}
 	}
@@ -601,29 +520,11 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 // mapTrustCSV writes the divergence per iterate: n, then one column per
 // rung (empty before a restart and after a failure).
 func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
-	w := csv.NewWriter(cl.stdout)
-	rec := []string{"n"}
-	for _, r := range rep.Rungs {
-		rec = append(rec, r.Name)
+	curves := make([]curveCSV, len(rep.Rungs))
+	for i, r := range rep.Rungs {
+		curves[i] = curveCSV{name: r.Name, start: r.Start, values: r.Divergence}
 	}
-	if err := w.Write(rec); err != nil {
-		return err
-	}
-	for it := 0; it <= rep.Steps; it++ {
-		rec = append(rec[:0], strconv.Itoa(it))
-		for _, r := range rep.Rungs {
-			cell := ""
-			if k := it - r.Start; k >= 0 && k < len(r.Divergence) {
-				cell = formatFloat(r.Divergence[k])
-			}
-			rec = append(rec, cell)
-		}
-		if err := w.Write(rec); err != nil {
-			return err
-		}
-	}
-	w.Flush()
-	return w.Error()
+	return writeCurvesCSV(cl.stdout, "n", rep.Steps+1, strconv.Itoa, curves)
 }
 
 // mapTrustChart draws the divergence per iterate on a log axis, the
@@ -645,10 +546,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		}
 		c.Series = append(c.Series, s)
 	}
-	c.Series = append(c.Series, series{
-		Name: fmt.Sprintf("tolerance %.3g", rep.TolAbs),
-		X:    []float64{0, float64(rep.Steps)}, Y: []float64{rep.TolAbs, rep.TolAbs},
-	})
+	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, 0, float64(rep.Steps)))
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
 	}
@@ -657,18 +555,9 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		if r.Predicted != rep.PredictedHorizon || !(r.Delta0 > 0) {
 			continue
 		}
-		from := float64(r.Start)
-		to := math.Min(float64(rep.Steps), from+math.Log(top/r.Delta0)/lambda)
-		if !(to > from) {
-			break
+		if s, ok := predictionSeries("n", r.Name, lambda, r.Delta0, float64(r.Start), float64(rep.Steps), top); ok {
+			c.Series = append(c.Series, s)
 		}
-		s := series{Name: fmt.Sprintf("prediction delta0·e^(%.3g n), %s", lambda, r.Name)}
-		for i := 0; i <= predictionPoints; i++ {
-			n := from + (to-from)*float64(i)/predictionPoints
-			s.X = append(s.X, n)
-			s.Y = append(s.Y, r.Delta0*math.Exp(lambda*(n-from)))
-		}
-		c.Series = append(c.Series, s)
 		break
 	}
 	return c

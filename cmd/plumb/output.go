@@ -1,7 +1,9 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
+	"errors"
 	"io"
 	"runtime"
 	"strconv"
@@ -48,6 +50,28 @@ func formatFloat(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) 
 
 // tableFloat is v with 10 significant digits, for tables read by people.
 func tableFloat(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
+
+// runStatus is the status a result reports for the error of its run,
+// "completed" (nil), "canceled" (a canceled or expired context) or
+// "failed", and the error's text ("" for nil).
+func runStatus(err error) (status, msg string) {
+	switch {
+	case err == nil:
+		return "completed", ""
+	case errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded):
+		return "canceled", err.Error()
+	}
+	return "failed", err.Error()
+}
+
+// statusVerb is a status other than completed as an error message says
+// it: "failed" or "was canceled".
+func statusVerb(status string) string {
+	if status == "canceled" {
+		return "was canceled"
+	}
+	return "failed"
+}
 
 // count is "1 step", "2 steps".
 func count(n int, noun string) string {

@@ -481,11 +481,7 @@ func (r *solveRun) table(cl *call) error {
 	}
 	fmt.Fprintln(cl.stdout)
 	tw = newTable(cl.stdout)
-	params := make([]string, 0)
-	for _, p := range r.sys.Params() {
-		params = append(params, p.Name+"="+formatFloat(p.Value))
-	}
-	fmt.Fprintf(tw, "system\t%s (%s) %s\n", r.sys.Name, r.sys.Title, strings.Join(params, " "))
+	fmt.Fprintf(tw, "system\t%s\n", describe(r.sys).heading())
 	meth := sol.Method
 	if r.m.fixed {
 		meth += ", step " + formatFloat(r.f.h)

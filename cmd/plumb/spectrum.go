@@ -6,9 +6,10 @@ import (
 	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"math"
 	"strconv"
-	"strings"
+	"text/tabwriter"
 
 	"github.com/plumbdyn/plumb"
 	"github.com/plumbdyn/plumb/integrate"
@@ -104,6 +105,21 @@ type spectrumJSON struct {
 	Settings spectrumSettingsJSON `json:"settings"`
 	// Units says in what units the numbers are.
 	Units spectrumUnitsJSON `json:"units"`
+	// spectrumResult holds the status, the exponents and the derived
+	// measures.
+	spectrumResult
+	// Run describes the averaging run.
+	Run spectrumRunJSON `json:"run"`
+	// Stats counts the work.
+	Stats lyap.Stats `json:"stats"`
+	// History is the running estimate after every completed block.
+	History []lyap.Point `json:"history"`
+}
+
+// spectrumResult is what the --format json results of plumb spectrum on a
+// flow and on a map share (their Units say in what units); embedded, its
+// fields stand between Error and Run in both documents.
+type spectrumResult struct {
 	// Status is completed, canceled or failed; Error says why.
 	Status string `json:"status"`
 	Error  string `json:"error,omitempty"`
@@ -135,12 +151,6 @@ type spectrumJSON struct {
 	BeyondNoise bool `json:"beyond_noise"`
 	// Checks are the sanity residuals that apply.
 	Checks []checkJSON `json:"checks"`
-	// Run describes the averaging run.
-	Run spectrumRunJSON `json:"run"`
-	// Stats counts the work.
-	Stats lyap.Stats `json:"stats"`
-	// History is the running estimate after every completed block.
-	History []lyap.Point `json:"history"`
 }
 
 // spectrumSettingsJSON echoes the settings of a spectrum run.
@@ -275,7 +285,7 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 	case "json":
 		werr = writeJSON(cl.stdout, out)
 	case "csv":
-		werr = spectrumCSV(cl, out)
+		werr = spectrumCSV(cl, out.Exponents, out.History)
 	default:
 		werr = spectrumTable(cl, out)
 	}
@@ -283,17 +293,13 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" {
-		if perr := spectrumChart(sys, out).save(cl.sh.plot); perr != nil {
+		if perr := spectrumChart(sys, out.Exponents, out.History).save(cl.sh.plot); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
 	cl.wallTime(start, count(k, "exponent")+", "+count(sp.Stats.Steps, "step")+", "+count(sp.Stats.QR, "re-orthonormalisation"))
 	if out.Status != "completed" {
-		what := "failed"
-		if out.Status == "canceled" {
-			what = "was canceled"
-		}
-		return fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, what, count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
+		return fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, statusVerb(out.Status), count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
 	}
 	return nil
 }
@@ -307,10 +313,8 @@ func (f *spectrumFlags) json(sys *plumb.System, m method, k int, sp *lyap.Spectr
 			Exponents: k, T0: f.t0, T1: f.t1, Transient: f.transient, RelTol: f.rtol, AbsTol: f.atol,
 			Method: m.name, MethodName: sp.Method, Step: f.h, Blocks: lyap.DefaultBlocks,
 		},
-		Units:     spectrumUnits,
-		Status:    "completed",
-		Exponents: sp.Exponents, StdErr: sp.StdErr,
-		Checks: []checkJSON{},
+		Units:          spectrumUnits,
+		spectrumResult: newSpectrumResult(sys, k, sp, runErr),
 		Run: spectrumRunJSON{
 			Method: sp.Method, Jacobian: sp.Jacobian, Start: sp.Start, Duration: sp.Duration,
 			Blocks: sp.Blocks, BlockLength: sp.BlockLength, MeanInterval: sp.MeanInterval,
@@ -321,12 +325,14 @@ func (f *spectrumFlags) json(sys *plumb.System, m method, k int, sp *lyap.Spectr
 	if out.History == nil {
 		out.History = []lyap.Point{}
 	}
-	if runErr != nil {
-		out.Status, out.Error = "failed", runErr.Error()
-		if errors.Is(runErr, context.Canceled) || errors.Is(runErr, context.DeadlineExceeded) {
-			out.Status = "canceled"
-		}
-	}
+	return out
+}
+
+// newSpectrumResult reads an estimate sp of k exponents of sys, flow or
+// map; runErr is the error of the run, if any.
+func newSpectrumResult(sys *plumb.System, k int, sp *lyap.Spectrum, runErr error) spectrumResult {
+	out := spectrumResult{Exponents: sp.Exponents, StdErr: sp.StdErr, Checks: []checkJSON{}}
+	out.Status, out.Error = runStatus(runErr)
 	e := sp.Exponents
 	if allFinite(e) && len(e) > 0 {
 		ky := lyap.KaplanYorke(e)
@@ -383,12 +389,31 @@ func minOf(v []float64) float64 {
 // spectrumTable writes the exponents, the derived measures, the checks and
 // the run.
 func spectrumTable(cl *call, out spectrumJSON) error {
-	w := cl.stdout
-	var params []string
-	for _, p := range out.System.Parameters {
-		params = append(params, p.Name+"="+formatFloat(p.Value))
+	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, flowRates)
+	if err != nil {
+		return err
 	}
-	fmt.Fprintf(w, "system: %s (%s) %s\n\n", out.System.Name, out.System.Title, strings.Join(params, " "))
+	r := out.Run
+	fmt.Fprintf(tw, "run\taveraged t = %s .. %s in %d blocks; %s, %s Jacobian\n", tableFloat(r.Start), tableFloat(r.Start+r.Duration), r.Blocks, r.Method, r.Jacobian)
+	fmt.Fprintf(tw, "work\t%d steps, %d rejected, %d evaluations, %d re-orthonormalisations\n", out.Stats.Steps, out.Stats.Rejected, out.Stats.Evaluations, out.Stats.QR)
+	fmt.Fprintf(tw, "status\t%s\n", out.Status)
+	return tw.Flush()
+}
+
+// spectrumUnitWords are the units a spectrum table writes after a rate and
+// after a time.
+type spectrumUnitWords struct{ rate, time string }
+
+var (
+	flowRates = spectrumUnitWords{rate: "per unit time"}
+	mapRates  = spectrumUnitWords{rate: "per iterate", time: " iterates"}
+)
+
+// spectrumHead writes the system, the table of exponents and, into the
+// table it returns, the derived measures and the checks; the caller adds
+// the rows of its run and flushes it.
+func spectrumHead(w io.Writer, sys systemJSON, out spectrumResult, u spectrumUnitWords) (*tabwriter.Writer, error) {
+	fmt.Fprintf(w, "system: %s\n\n", sys.heading())
 	tw := newTable(w)
 	fmt.Fprintln(tw, "exponent\tvalue\tstd err")
 	for i, v := range out.Exponents {
@@ -399,9 +424,9 @@ func spectrumTable(cl *call, out spectrumJSON) error {
 		fmt.Fprintf(tw, "lambda_%d\t%s\t%s\n", i+1, strconv.FormatFloat(v, 'g', 6, 64), se)
 	}
 	if err := tw.Flush(); err != nil {
-		return err
+		return nil, err
 	}
-	fmt.Fprintln(w, "(per unit time, natural log)")
+	fmt.Fprintf(w, "(%s, natural log)\n", u.rate)
 	fmt.Fprintln(w)
 	tw = newTable(w)
 	bound := func(b string) string {
@@ -414,13 +439,13 @@ func spectrumTable(cl *call, out spectrumJSON) error {
 		fmt.Fprintf(tw, "Kaplan–Yorke dimension\t%.5g%s\n", *out.KaplanYorke, bound(out.KaplanYorkeBound))
 	}
 	if out.Entropy != nil {
-		fmt.Fprintf(tw, "entropy (sum of positive exponents)\t%.4g per unit time%s\n", *out.Entropy, bound(out.EntropyBound))
+		fmt.Fprintf(tw, "entropy (sum of positive exponents)\t%.4g %s%s\n", *out.Entropy, u.rate, bound(out.EntropyBound))
 	}
 	switch {
 	case out.LyapunovTime != nil && out.BeyondNoise:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g\n", *out.LyapunovTime)
+		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g%s\n", *out.LyapunovTime, u.time)
 	case out.LyapunovTime != nil:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g (no clear sign of chaos: the largest exponent is within %d standard errors or %d ln(D)/D of 0)\n", *out.LyapunovTime, noiseFactor, noiseFactor)
+		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g%s (no clear sign of chaos: the largest exponent is within %d standard errors or %d ln(D)/D of 0)\n", *out.LyapunovTime, u.time, noiseFactor, noiseFactor)
 	case len(out.Exponents) > 0:
 		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\tnone (no exponent is positive)\n")
 	}
@@ -431,25 +456,21 @@ func spectrumTable(cl *call, out spectrumJSON) error {
 		}
 		fmt.Fprintf(tw, "check %s\t%.3g%s  %s\n", c.Name, c.Residual, se, c.Meaning)
 	}
-	r := out.Run
-	fmt.Fprintf(tw, "run\taveraged t = %s .. %s in %d blocks; %s, %s Jacobian\n", tableFloat(r.Start), tableFloat(r.Start+r.Duration), r.Blocks, r.Method, r.Jacobian)
-	fmt.Fprintf(tw, "work\t%d steps, %d rejected, %d evaluations, %d re-orthonormalisations\n", out.Stats.Steps, out.Stats.Rejected, out.Stats.Evaluations, out.Stats.QR)
-	fmt.Fprintf(tw, "status\t%s\n", out.Status)
-	return tw.Flush()
+	return tw, nil
 }
 
 // spectrumCSV writes the convergence history: t, blocks, then the running
 // estimate of each exponent.
-func spectrumCSV(cl *call, out spectrumJSON) error {
+func spectrumCSV(cl *call, exponents []float64, history []lyap.Point) error {
 	w := csv.NewWriter(cl.stdout)
 	rec := []string{"t", "blocks"}
-	for i := range out.Exponents {
+	for i := range exponents {
 		rec = append(rec, "lambda_"+strconv.Itoa(i+1))
 	}
 	if err := w.Write(rec); err != nil {
 		return err
 	}
-	for _, p := range out.History {
+	for _, p := range history {
 		rec = append(rec[:0], formatFloat(p.T), strconv.Itoa(p.Blocks))
 		for _, v := range p.Exponents {
 			rec = append(rec, formatFloat(v))
@@ -467,15 +488,15 @@ func spectrumCSV(cl *call, out spectrumJSON) error {
 // axis the raw estimates would differ by more than their fluctuations
 // (0.9 against -14.6 for the demo); the differences share a scale and all
 // tend to zero.
-func spectrumChart(sys *plumb.System, out spectrumJSON) *lineChart {
+func spectrumChart(sys *plumb.System, exponents []float64, history []lyap.Point) *lineChart {
 	c := &lineChart{
 		Title:  sys.Title + ": convergence of the Lyapunov exponents",
 		XLabel: "t",
 		YLabel: "running estimate - final estimate (per unit time)",
 	}
-	for i, final := range out.Exponents {
+	for i, final := range exponents {
 		s := series{Name: fmt.Sprintf("lambda_%d (final %.4g)", i+1, final)}
-		for _, p := range out.History {
+		for _, p := range history {
 			if i < len(p.Exponents) {
 				s.X = append(s.X, p.T)
 				s.Y = append(s.Y, p.Exponents[i]-final)

@@ -109,3 +109,13 @@ func describe(sys *plumb.System) systemJSON {
 	}
 	return out
 }
+
+// heading names the system as the tables do: "name (title) p=v q=w", the
+// parameters in their order, each value in its shortest exact form.
+func (s systemJSON) heading() string {
+	params := make([]string, len(s.Parameters))
+	for i, p := range s.Parameters {
+		params[i] = p.Name + "=" + formatFloat(p.Value)
+	}
+	return s.Name + " (" + s.Title + ") " + strings.Join(params, " ")
+}

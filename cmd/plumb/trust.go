@@ -311,15 +311,9 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 			RestartAt: restartAt, RestartPlaces: f.restartPlaces, Exact: f.exact && sys.HasFormulas(), Every: f.horizon / trustGrid,
 		},
 		Units:  trustUnits,
-		Status: "completed",
 		Report: rep,
 	}
-	if err != nil {
-		out.Status, out.Error = "failed", err.Error()
-		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
-			out.Status = "canceled"
-		}
-	}
+	out.Status, out.Error = runStatus(err)
 	if werr := writeTrust(cl, &out); werr != nil {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
@@ -338,11 +332,7 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	}
 	cl.wallTime(start, count(len(rep.Rungs)+1, "run")+" compared, verdict "+string(rep.Verdict))
 	if err != nil {
-		what := "failed"
-		if out.Status == "canceled" {
-			what = "was canceled"
-		}
-		return fmt.Errorf("the audit of %s %s (%s completed, written): %w", sys.Name, what, count(len(rep.Rungs), "rung"), err)
+		return fmt.Errorf("the audit of %s %s (%s completed, written): %w", sys.Name, statusVerb(out.Status), count(len(rep.Rungs), "rung"), err)
 	}
 	return nil
 }
@@ -360,11 +350,7 @@ func writeTrust(cl *call, out *trustJSON) error {
 
 // trustTable writes the system line and the report's own summary.
 func trustTable(w io.Writer, out *trustJSON) error {
-	var params []string
-	for _, p := range out.System.Parameters {
-		params = append(params, p.Name+"="+formatFloat(p.Value))
-	}
-	if _, err := fmt.Fprintf(w, "system: %s (%s) %s\n", out.System.Name, out.System.Title, strings.Join(params, " ")); err != nil {
+	if _, err := fmt.Fprintf(w, "system: %s\n", out.System.heading()); err != nil {
 		return err
 	}
 	var b bytes.Buffer
@@ -379,20 +365,39 @@ func trustTable(w io.Writer, out *trustJSON) error {
 // trustCSV writes the divergence curves: t, then one column per rung (empty
 // where a rung has no value: before a restart, after a failure).
 func trustCSV(w io.Writer, rep *plumb.Report) error {
+	curves := make([]curveCSV, len(rep.Rungs))
+	for i, r := range rep.Rungs {
+		curves[i] = curveCSV{name: r.Name, start: r.Start, values: r.Divergence}
+	}
+	return writeCurvesCSV(w, "t", len(rep.Times), func(i int) string { return formatFloat(rep.Times[i]) }, curves)
+}
+
+// curveCSV is one column of writeCurvesCSV: values[k] stands in row
+// start+k.
+type curveCSV struct {
+	name   string
+	start  int
+	values []float64
+}
+
+// writeCurvesCSV writes a column named axis with label(i) in rows i =
+// 0..rows-1, then one column per curve, empty where the curve has no
+// value.
+func writeCurvesCSV(w io.Writer, axis string, rows int, label func(i int) string, curves []curveCSV) error {
 	cw := csv.NewWriter(w)
-	rec := []string{"t"}
-	for _, r := range rep.Rungs {
-		rec = append(rec, r.Name)
+	rec := []string{axis}
+	for _, c := range curves {
+		rec = append(rec, c.name)
 	}
 	if err := cw.Write(rec); err != nil {
 		return err
 	}
-	for i, t := range rep.Times {
-		rec = append(rec[:0], formatFloat(t))
-		for _, r := range rep.Rungs {
+	for i := range rows {
+		rec = append(rec[:0], label(i))
+		for _, c := range curves {
 			cell := ""
-			if k := i - r.Start; k >= 0 && k < len(r.Divergence) {
-				cell = formatFloat(r.Divergence[k])
+			if k := i - c.start; k >= 0 && k < len(c.values) {
+				cell = formatFloat(c.values[k])
 			}
 			rec = append(rec, cell)
 		}
@@ -428,10 +433,7 @@ func trustChart(rep *plumb.Report) *lineChart {
 			top = math.Max(top, d)
 		}
 	}
-	c.Series = append(c.Series, series{
-		Name: "tolerance " + fmt.Sprintf("%.3g", rep.TolAbs),
-		X:    []float64{rep.T0, t1}, Y: []float64{rep.TolAbs, rep.TolAbs},
-	})
+	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, rep.T0, t1))
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
 	}
@@ -444,19 +446,33 @@ func trustChart(rep *plumb.Report) *lineChart {
 		if r.Effect == "restart" {
 			from = r.RestartAt
 		}
-		// Up to where the prediction leaves the drawn range.
-		to := math.Min(t1, from+math.Log(top/r.Delta0)/lambda)
-		if !(to > from) {
-			break
+		if s, ok := predictionSeries("t", r.Name, lambda, r.Delta0, from, t1, top); ok {
+			c.Series = append(c.Series, s)
 		}
-		s := series{Name: fmt.Sprintf("prediction delta0·e^(%.3g t), %s", lambda, r.Name)}
-		for i := 0; i <= predictionPoints; i++ {
-			t := from + (to-from)*float64(i)/predictionPoints
-			s.X = append(s.X, t)
-			s.Y = append(s.Y, r.Delta0*math.Exp(lambda*(t-from)))
-		}
-		c.Series = append(c.Series, s)
 		break
 	}
 	return c
+}
+
+// toleranceSeries is the tolerance tol drawn from x = from to x = to.
+func toleranceSeries(tol, from, to float64) series {
+	return series{Name: fmt.Sprintf("tolerance %.3g", tol), X: []float64{from, to}, Y: []float64{tol, tol}}
+}
+
+// predictionSeries is the Lyapunov prediction delta0·e^(lambda·(v - from))
+// of rung, in the variable v, on predictionPoints+1 points from v = from up
+// to end or to where it passes top (the drawn range); ok is false when
+// that leaves nothing to draw.
+func predictionSeries(v, rung string, lambda, delta0, from, end, top float64) (s series, ok bool) {
+	to := math.Min(end, from+math.Log(top/delta0)/lambda)
+	if !(to > from) {
+		return s, false
+	}
+	s.Name = fmt.Sprintf("prediction delta0·e^(%.3g %s), %s", lambda, v, rung)
+	for i := 0; i <= predictionPoints; i++ {
+		x := from + (to-from)*float64(i)/predictionPoints
+		s.X = append(s.X, x)
+		s.Y = append(s.Y, delta0*math.Exp(lambda*(x-from)))
+	}
+	return s, true
 }
