@@ -376,7 +376,7 @@ func checkTolLambda(name string, tol, lambda float64) error {
 
 // givenExponent is the report of an exponent lambda > 0 the caller gave.
 func givenExponent(lambda float64) *ExponentEstimate {
-	return &ExponentEstimate{Value: lambda, LyapunovTime: 1 / lambda, Source: "given"}
+	return &ExponentEstimate{Value: lambda, LyapunovTime: clean(1 / lambda), Source: "given"}
 }
 
 // estimatedExponent reads the estimate (sp, err) of the largest exponent:
@@ -395,7 +395,7 @@ func estimatedExponent(sp *lyap.Spectrum, err error) (e *ExponentEstimate, why s
 		e.StdErr = sp.StdErr[0]
 	}
 	if e.Value > 0 {
-		e.LyapunovTime = 1 / e.Value
+		e.LyapunovTime = clean(1 / e.Value)
 		lambda = e.Value
 	}
 	return e, "", lambda

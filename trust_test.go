@@ -281,3 +281,16 @@ func TestTrustCanceled(t *testing.T) {
 		t.Errorf("progress %v, want it to start with audit 1/10", stages)
 	}
 }
+
+// TestTrustTinyLambdaEncodes: a given exponent so small that 1/lambda
+// overflows still gives a report that encodes as JSON (no +Inf in it).
+func TestTrustTinyLambdaEncodes(t *testing.T) {
+	osc := integrate.Problem{F: func(_ float64, y, d []float64) { d[0] = y[1]; d[1] = -y[0] }, Y0: []float64{1, 0}}
+	rep, err := plumb.Trust(context.Background(), osc, 5, &plumb.TrustSettings{Tol: 0.1, Lambda: 1e-310})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := json.Marshal(rep); err != nil {
+		t.Errorf("report with lambda 1e-310 does not encode: %v", err)
+	}
+}
