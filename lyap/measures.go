@@ -24,7 +24,7 @@ import (
 //
 //	J. L. Kaplan, J. A. Yorke, Chaotic behavior of multidimensional
 //	  difference equations, in: Functional Differential Equations and
-//	  Approximation of Fixed Points, Lecture Notes in Math. 730, Springer
+//	  Approximation of Fixed Points, Lect. Notes Math. 730, Springer
 //	  1979, 204–227.
 //	P. Frederickson, J. L. Kaplan, E. D. Yorke, J. A. Yorke, The Liapunov
 //	  dimension of strange attractors, J. Differential Equations 49 (1983)
