@@ -33,7 +33,7 @@ func ExampleAudit() {
 		fmt.Printf("%s: agrees until t=%.2g (predicted %.2g), %v growth\n", r.Rung.Name, r.Horizon, r.Predicted, r.Growth.Kind)
 	}
 	// Output:
-	// restart at t=40, 3 places: agrees until t=45 (predicted 49), exponential growth
+	// restart at t=40, 3 places: agrees until t=49 (predicted 48), exponential growth
 	// 24 bits: agrees until t=21 (predicted 15), exponential growth
 }
 

@@ -58,12 +58,13 @@ func (dop853) controller() Controller {
 
 func (dop853) newScheme(p *Problem, n int) (scheme, error) {
 	w := &dp853Work{f: p.F}
-	const nv = 13 // k2..k12, the stage argument, the argument of stage 12
+	const nv = 16 // k2..k12, the stage argument, the argument of stage 12, 3 partial sums
 	buf := make([]float64, nv*n)
 	v := func(i int) []float64 { return buf[i*n : (i+1)*n : (i+1)*n] }
 	w.k2, w.k3, w.k4, w.k5, w.k6, w.k7 = v(0), v(1), v(2), v(3), v(4), v(5)
 	w.k8, w.k9, w.k10, w.k11, w.k12 = v(6), v(7), v(8), v(9), v(10)
 	w.ys, w.y12 = v(11), v(12)
+	w.yb, w.p5, w.p3 = v(13), v(14), v(15)
 	return w, nil
 }
 
@@ -262,90 +263,140 @@ type dp853Work struct {
 	k11, k12                            []float64
 	ys                                  []float64 // stage argument
 	y12                                 []float64 // argument of stage 12, for the stiffness test
+	yb, p5, p3                          []float64 // y1, e5 and e3 without k12's term
 }
 
 func (*dp853Work) fsal() bool     { return false }
 func (*dp853Work) denseSize() int { return 8 }
 
-// attempt is the hot loop: 11 evaluations. Products are wrapped in
-// float64() so that no architecture fuses them into FMAs.
-func (w *dp853Work) attempt(t, h float64, y, k1, y1, _, rtol, atol []float64) (float64, int) {
+// attempt is attemptSq's trial step with the error itself, err = √err².
+func (w *dp853Work) attempt(t, h float64, y, k1, y1, k13, rtol, atol []float64) (float64, int) {
+	e2, ev := w.attemptSq(t, h, y, k1, y1, k13, rtol, atol)
+	return math.Sqrt(e2), ev
+}
+
+// attemptSq is the hot loop: one trial step (11 evaluations) and the
+// square of DOP853's combined error,
+//
+//	err² = (h²/n) · err5² / (err5 + 0.01·err3).
+//
+// On a cheap field its speed is the latency of the chain from one stage to
+// the next, so each stage adds the newest k last,
+//
+//	Y_s = (y + h·Σ_{j<s-1} a_sj·k_j) + (h·a_s,s-1)·k_s-1,
+//
+// and only one product and one addition wait for F. The parts of the
+// 8th-order solution and of both error estimates without k12 are formed
+// before F(t+h, Y12), so that k12 enters each through one product and one
+// addition (e3 = (Σ_{j<12} b_j·k_j − bhh1·k1 − bhh2·k9) + (b12 − bhh3)·k12,
+// the same linear combination as dop853.f's). Products are wrapped in
+// float64() so that no architecture fuses them into FMAs, and every sum has
+// a fixed order: results are bit-identical everywhere. A NaN or Inf that
+// reaches the error sums makes err² NaN or Inf; y1 itself is checked by the
+// stepper after F(t+h, y1) (the scheme is not FSAL).
+func (w *dp853Work) attemptSq(t, h float64, y, k1, y1, _, rtol, atol []float64) (float64, int) {
 	n := len(y)
 	y, k1, y1, rtol, atol = y[:n], k1[:n], y1[:n], rtol[:n], atol[:n]
 	k2, k3, k4, k5, k6, k7 := w.k2[:n], w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n], w.k7[:n]
 	k8, k9, k10, k11, k12 := w.k8[:n], w.k9[:n], w.k10[:n], w.k11[:n], w.k12[:n]
 	ys, y12 := w.ys[:n], w.y12[:n]
+	yb, p5, p3 := w.yb[:n], w.p5[:n], w.p3[:n]
 
+	ha := float64(h * d8A21)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*float64(d8A21*k1[i]))
+		ys[i] = y[i] + float64(ha*k1[i])
 	}
 	w.f(t+float64(d8C2*h), ys, k2)
+	ha = float64(h * d8A32)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(d8A31*k1[i])+float64(d8A32*k2[i])))
+		ys[i] = (y[i] + float64(h*float64(d8A31*k1[i]))) + float64(ha*k2[i])
 	}
 	w.f(t+float64(d8C3*h), ys, k3)
+	ha = float64(h * d8A43)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(d8A41*k1[i])+float64(d8A43*k3[i])))
+		ys[i] = (y[i] + float64(h*float64(d8A41*k1[i]))) + float64(ha*k3[i])
 	}
 	w.f(t+float64(d8C4*h), ys, k4)
+	ha = float64(h * d8A54)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(d8A51*k1[i])+float64(d8A53*k3[i])+float64(d8A54*k4[i])))
+		ys[i] = (y[i] + float64(h*(float64(d8A51*k1[i])+float64(d8A53*k3[i])))) + float64(ha*k4[i])
 	}
 	w.f(t+float64(d8C5*h), ys, k5)
+	ha = float64(h * d8A65)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(d8A61*k1[i])+float64(d8A64*k4[i])+float64(d8A65*k5[i])))
+		ys[i] = (y[i] + float64(h*(float64(d8A61*k1[i])+float64(d8A64*k4[i])))) + float64(ha*k5[i])
 	}
 	w.f(t+float64(d8C6*h), ys, k6)
+	ha = float64(h * d8A76)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(d8A71*k1[i])+float64(d8A74*k4[i])+float64(d8A75*k5[i])+
-			float64(d8A76*k6[i])))
+		s := (float64(d8A71*k1[i]) + float64(d8A74*k4[i])) + float64(d8A75*k5[i])
+		ys[i] = (y[i] + float64(h*s)) + float64(ha*k6[i])
 	}
 	w.f(t+float64(d8C7*h), ys, k7)
+	ha = float64(h * d8A87)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(d8A81*k1[i])+float64(d8A84*k4[i])+float64(d8A85*k5[i])+
-			float64(d8A86*k6[i])+float64(d8A87*k7[i])))
+		s := (float64(d8A81*k1[i]) + float64(d8A84*k4[i])) + (float64(d8A85*k5[i]) + float64(d8A86*k6[i]))
+		ys[i] = (y[i] + float64(h*s)) + float64(ha*k7[i])
 	}
 	w.f(t+float64(d8C8*h), ys, k8)
+	ha = float64(h * d8A98)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(d8A91*k1[i])+float64(d8A94*k4[i])+float64(d8A95*k5[i])+
-			float64(d8A96*k6[i])+float64(d8A97*k7[i])+float64(d8A98*k8[i])))
+		s := ((float64(d8A91*k1[i]) + float64(d8A94*k4[i])) + (float64(d8A95*k5[i]) + float64(d8A96*k6[i]))) +
+			float64(d8A97*k7[i])
+		ys[i] = (y[i] + float64(h*s)) + float64(ha*k8[i])
 	}
 	w.f(t+float64(d8C9*h), ys, k9)
+	ha = float64(h * d8A109)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(d8A101*k1[i])+float64(d8A104*k4[i])+float64(d8A105*k5[i])+
-			float64(d8A106*k6[i])+float64(d8A107*k7[i])+float64(d8A108*k8[i])+float64(d8A109*k9[i])))
+		s := ((float64(d8A101*k1[i]) + float64(d8A104*k4[i])) + (float64(d8A105*k5[i]) + float64(d8A106*k6[i]))) +
+			(float64(d8A107*k7[i]) + float64(d8A108*k8[i]))
+		ys[i] = (y[i] + float64(h*s)) + float64(ha*k9[i])
 	}
 	w.f(t+float64(d8C10*h), ys, k10)
+	ha = float64(h * d8A1110)
 	for i := range ys {
-		ys[i] = y[i] + float64(h*(float64(d8A111*k1[i])+float64(d8A114*k4[i])+float64(d8A115*k5[i])+
-			float64(d8A116*k6[i])+float64(d8A117*k7[i])+float64(d8A118*k8[i])+float64(d8A119*k9[i])+
-			float64(d8A1110*k10[i])))
+		s := ((float64(d8A111*k1[i]) + float64(d8A114*k4[i])) + (float64(d8A115*k5[i]) + float64(d8A116*k6[i]))) +
+			((float64(d8A117*k7[i]) + float64(d8A118*k8[i])) + float64(d8A119*k9[i]))
+		ys[i] = (y[i] + float64(h*s)) + float64(ha*k10[i])
 	}
 	w.f(t+float64(d8C11*h), ys, k11)
+	ha = float64(h * d8A1211)
 	for i := range y12 {
-		y12[i] = y[i] + float64(h*(float64(d8A121*k1[i])+float64(d8A124*k4[i])+float64(d8A125*k5[i])+
-			float64(d8A126*k6[i])+float64(d8A127*k7[i])+float64(d8A128*k8[i])+float64(d8A129*k9[i])+
-			float64(d8A1210*k10[i])+float64(d8A1211*k11[i])))
+		s := ((float64(d8A121*k1[i]) + float64(d8A124*k4[i])) + (float64(d8A125*k5[i]) + float64(d8A126*k6[i]))) +
+			((float64(d8A127*k7[i]) + float64(d8A128*k8[i])) + (float64(d8A129*k9[i]) + float64(d8A1210*k10[i])))
+		y12[i] = (y[i] + float64(h*s)) + float64(ha*k11[i])
+		// Everything of y1, e5 and e3 but k12's term.
+		b := ((float64(d8B1*k1[i]) + float64(d8B6*k6[i])) + (float64(d8B7*k7[i]) + float64(d8B8*k8[i]))) +
+			((float64(d8B9*k9[i]) + float64(d8B10*k10[i])) + float64(d8B11*k11[i]))
+		yb[i] = y[i] + float64(h*b)
+		p3[i] = b - (float64(d8BHH1*k1[i]) + float64(d8BHH2*k9[i]))
+		p5[i] = ((float64(d8ER1*k1[i]) + float64(d8ER6*k6[i])) + (float64(d8ER7*k7[i]) + float64(d8ER8*k8[i]))) +
+			((float64(d8ER9*k9[i]) + float64(d8ER10*k10[i])) + float64(d8ER11*k11[i]))
 	}
+	hb := float64(h * d8B12)
+	hn := float64(float64(h*h) / float64(n))
 	w.f(t+h, y12, k12)
 
 	var err5, err3 float64
 	for i := range y1 {
-		bk := float64(d8B1*k1[i]) + float64(d8B6*k6[i]) + float64(d8B7*k7[i]) + float64(d8B8*k8[i]) +
-			float64(d8B9*k9[i]) + float64(d8B10*k10[i]) + float64(d8B11*k11[i]) + float64(d8B12*k12[i])
-		y1[i] = y[i] + float64(h*bk)
-		sk := atol[i] + float64(rtol[i]*math.Max(math.Abs(y[i]), math.Abs(y1[i])))
-		e3 := (bk - float64(d8BHH1*k1[i]) - float64(d8BHH2*k9[i]) - float64(d8BHH3*k12[i])) / sk
-		e5 := (float64(d8ER1*k1[i]) + float64(d8ER6*k6[i]) + float64(d8ER7*k7[i]) + float64(d8ER8*k8[i]) +
-			float64(d8ER9*k9[i]) + float64(d8ER10*k10[i]) + float64(d8ER11*k11[i]) + float64(d8ER12*k12[i])) / sk
-		err3 += float64(e3 * e3)
+		k := k12[i]
+		yn := yb[i] + float64(hb*k)
+		y1[i] = yn
+		ay, ay1 := math.Abs(y[i]), math.Abs(yn)
+		if ay1 > ay {
+			ay = ay1 // max without math.Max, which is a call on amd64
+		}
+		sk := atol[i] + float64(rtol[i]*ay)
+		e5 := (p5[i] + float64(d8ER12*k)) / sk
+		e3 := (p3[i] + float64((d8B12-d8BHH3)*k)) / sk
 		err5 += float64(e5 * e5)
+		err3 += float64(e3 * e3)
 	}
 	deno := err5 + float64(0.01*err3)
 	if deno <= 0 {
 		deno = 1
 	}
-	return float64(math.Abs(h)*err5) * math.Sqrt(1/float64(float64(n)*deno)), 11
+	return float64(hn*float64(err5*err5)) / deno, 11
 }
 
 // stiffness is Hairer's test of DOP853: stage 12 and F(t+h, y1) are both at
