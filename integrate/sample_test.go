@@ -395,3 +395,43 @@ func TestGoldenBits(t *testing.T) {
 		t.Errorf("Lorenz run hashes to %s, golden %s (%s/%s)", got, goldenLorenzBits, runtime.GOOS, runtime.GOARCH)
 	}
 }
+
+// TestSharedPowTable: a shared table is the table newPowTable builds (the
+// same bits, an exact identity: both run the same code on the same a), the
+// same pointer on the second call, and exponents past the kept ones still
+// get correct tables, also when asked for from several goroutines.
+func TestSharedPowTable(t *testing.T) {
+	same := func(a float64, got *powTable) {
+		t.Helper()
+		if want := newPowTable(a); *got != *want {
+			t.Errorf("sharedPowTable(%g) differs from newPowTable", a)
+		}
+	}
+	for _, a := range []float64{0.085, -0.02, 0, 1.0 / 16} {
+		t1, t2 := sharedPowTable(a), sharedPowTable(a)
+		same(a, t1)
+		if t1 != t2 {
+			t.Errorf("sharedPowTable(%g): a second table was built", a)
+		}
+	}
+	done := make(chan struct{})
+	for g := 0; g < 4; g++ {
+		go func() {
+			defer func() { done <- struct{}{} }()
+			for i := 0; i < 3*powTableKeep; i++ {
+				a := 0.001 * float64(i+1)
+				if *sharedPowTable(a) != *newPowTable(a) {
+					t.Errorf("sharedPowTable(%g) differs from newPowTable", a)
+				}
+			}
+		}()
+	}
+	for g := 0; g < 4; g++ {
+		<-done
+	}
+	var kept int
+	powTables.Range(func(_, _ any) bool { kept++; return true }) // a count only
+	if k := powTablesKept.Load(); kept > powTableKeep || int(k) != kept {
+		t.Errorf("%d tables kept (counted %d), want at most %d", kept, k, powTableKeep)
+	}
+}
