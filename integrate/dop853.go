@@ -58,13 +58,12 @@ func (dop853) controller() Controller {
 
 func (dop853) newScheme(p *Problem, n int) (scheme, error) {
 	w := &dp853Work{f: p.F}
-	const nv = 16 // k2..k12, the stage argument, the argument of stage 12, 3 partial sums
+	const nv = 13 // k2..k12, the stage argument, the argument of stage 12
 	buf := make([]float64, nv*n)
 	v := func(i int) []float64 { return buf[i*n : (i+1)*n : (i+1)*n] }
 	w.k2, w.k3, w.k4, w.k5, w.k6, w.k7 = v(0), v(1), v(2), v(3), v(4), v(5)
 	w.k8, w.k9, w.k10, w.k11, w.k12 = v(6), v(7), v(8), v(9), v(10)
 	w.ys, w.y12 = v(11), v(12)
-	w.yb, w.p5, w.p3 = v(13), v(14), v(15)
 	return w, nil
 }
 
@@ -263,7 +262,6 @@ type dp853Work struct {
 	k11, k12                            []float64
 	ys                                  []float64 // stage argument
 	y12                                 []float64 // argument of stage 12, for the stiffness test
-	yb, p5, p3                          []float64 // y1, e5 and e3 without k12's term
 }
 
 func (*dp853Work) fsal() bool     { return false }
@@ -285,9 +283,9 @@ func (w *dp853Work) attempt(t, h float64, y, k1, y1, k13, rtol, atol []float64) 
 //
 //	Y_s = (y + h·Σ_{j<s-1} a_sj·k_j) + (h·a_s,s-1)·k_s-1,
 //
-// and only one product and one addition wait for F. The parts of the
-// 8th-order solution and of both error estimates without k12 are formed
-// before F(t+h, Y12), so that k12 enters each through one product and one
+// and only one product and one addition wait for F. The last loop forms
+// the parts of y1, e5 and e3 without k12 first (they need not wait for
+// F(t+h, Y12)), so that k12 enters each through one product and one
 // addition (e3 = (Σ_{j<12} b_j·k_j − bhh1·k1 − bhh2·k9) + (b12 − bhh3)·k12,
 // the same linear combination as dop853.f's). Products are wrapped in
 // float64() so that no architecture fuses them into FMAs, and every sum has
@@ -300,7 +298,6 @@ func (w *dp853Work) attemptSq(t, h float64, y, k1, y1, _, rtol, atol []float64) 
 	k2, k3, k4, k5, k6, k7 := w.k2[:n], w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n], w.k7[:n]
 	k8, k9, k10, k11, k12 := w.k8[:n], w.k9[:n], w.k10[:n], w.k11[:n], w.k12[:n]
 	ys, y12 := w.ys[:n], w.y12[:n]
-	yb, p5, p3 := w.yb[:n], w.p5[:n], w.p3[:n]
 
 	ha := float64(h * d8A21)
 	for i := range ys {
@@ -365,13 +362,6 @@ func (w *dp853Work) attemptSq(t, h float64, y, k1, y1, _, rtol, atol []float64) 
 		s := ((float64(d8A121*k1[i]) + float64(d8A124*k4[i])) + (float64(d8A125*k5[i]) + float64(d8A126*k6[i]))) +
 			((float64(d8A127*k7[i]) + float64(d8A128*k8[i])) + (float64(d8A129*k9[i]) + float64(d8A1210*k10[i])))
 		y12[i] = (y[i] + float64(h*s)) + float64(ha*k11[i])
-		// Everything of y1, e5 and e3 but k12's term.
-		b := ((float64(d8B1*k1[i]) + float64(d8B6*k6[i])) + (float64(d8B7*k7[i]) + float64(d8B8*k8[i]))) +
-			((float64(d8B9*k9[i]) + float64(d8B10*k10[i])) + float64(d8B11*k11[i]))
-		yb[i] = y[i] + float64(h*b)
-		p3[i] = b - (float64(d8BHH1*k1[i]) + float64(d8BHH2*k9[i]))
-		p5[i] = ((float64(d8ER1*k1[i]) + float64(d8ER6*k6[i])) + (float64(d8ER7*k7[i]) + float64(d8ER8*k8[i]))) +
-			((float64(d8ER9*k9[i]) + float64(d8ER10*k10[i])) + float64(d8ER11*k11[i]))
 	}
 	hb := float64(h * d8B12)
 	hn := float64(float64(h*h) / float64(n))
@@ -379,16 +369,22 @@ func (w *dp853Work) attemptSq(t, h float64, y, k1, y1, _, rtol, atol []float64) 
 
 	var err5, err3 float64
 	for i := range y1 {
+		c1, c6, c7, c8, c9, c10, c11, yi := k1[i], k6[i], k7[i], k8[i], k9[i], k10[i], k11[i], y[i]
+		b := ((float64(d8B1*c1) + float64(d8B6*c6)) + (float64(d8B7*c7) + float64(d8B8*c8))) +
+			((float64(d8B9*c9) + float64(d8B10*c10)) + float64(d8B11*c11))
+		p3 := b - (float64(d8BHH1*c1) + float64(d8BHH2*c9))
+		p5 := ((float64(d8ER1*c1) + float64(d8ER6*c6)) + (float64(d8ER7*c7) + float64(d8ER8*c8))) +
+			((float64(d8ER9*c9) + float64(d8ER10*c10)) + float64(d8ER11*c11))
 		k := k12[i]
-		yn := yb[i] + float64(hb*k)
+		yn := (yi + float64(h*b)) + float64(hb*k)
 		y1[i] = yn
-		ay, ay1 := math.Abs(y[i]), math.Abs(yn)
+		ay, ay1 := math.Abs(yi), math.Abs(yn)
 		if ay1 > ay {
 			ay = ay1 // max without math.Max, which is a call on amd64
 		}
 		sk := atol[i] + float64(rtol[i]*ay)
-		e5 := (p5[i] + float64(d8ER12*k)) / sk
-		e3 := (p3[i] + float64((d8B12-d8BHH3)*k)) / sk
+		e5 := (p5 + float64(d8ER12*k)) / sk
+		e3 := (p3 + float64((d8B12-d8BHH3)*k)) / sk
 		err5 += float64(e5 * e5)
 		err3 += float64(e3 * e3)
 	}
