@@ -359,27 +359,119 @@ func (e *Float64) Field(t float64, y, dydt []float64) {
 }
 
 // FieldFunc returns Field as a function value that holds the evaluator's
-// registers and tape directly (one call less per evaluation than the
-// method value e.Field).
+// registers directly and evaluates each output by one specialised closure
+// (see fieldPlan), written straight into dydt; for up to four outputs the
+// calls are unrolled. The results are bit-identical to Field.
 func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
-	rs, code, fastOuts := e.rs, e.p.fast, e.p.fastOuts
+	rs := e.rs
 	nstate := e.p.nvar - 1
 	if rs == nil || nstate < 0 {
 		return e.Field
 	}
+	pl := e.p.plan()
+	pre, outs := pl.pre, pl.outs
+	// rest writes the outputs one by one (any count, a short dydt).
+	rest := func(dydt []float64) {
+		o := outs
+		if len(dydt) < len(o) {
+			o = o[:len(dydt)]
+		}
+		for i, f := range o {
+			dydt[i] = f(rs)
+		}
+	}
+	switch len(outs) {
+	case 1:
+		f0 := outs[0]
+		return func(t float64, y, dydt []float64) {
+			if nstate == 1 && len(y) >= 1 {
+				s := (*[1]float64)(y)
+				rs[0], rs[1] = t, s[0]
+			} else {
+				setState(rs, t, y, nstate)
+			}
+			if pre != nil {
+				runFast(rs, pre)
+			}
+			if len(dydt) >= 1 {
+				dydt[0] = f0(rs)
+			}
+		}
+	case 2:
+		f0, f1 := outs[0], outs[1]
+		return func(t float64, y, dydt []float64) {
+			if nstate == 2 && len(y) >= 2 {
+				s := (*[2]float64)(y)
+				rs[0], rs[1], rs[2] = t, s[0], s[1]
+			} else {
+				setState(rs, t, y, nstate)
+			}
+			if pre != nil {
+				runFast(rs, pre)
+			}
+			if len(dydt) < 2 {
+				rest(dydt)
+				return
+			}
+			dydt[0] = f0(rs)
+			dydt[1] = f1(rs)
+		}
+	case 3:
+		f0, f1, f2 := outs[0], outs[1], outs[2]
+		return func(t float64, y, dydt []float64) {
+			if nstate == 3 && len(y) >= 3 {
+				s := (*[3]float64)(y)
+				rs[0], rs[1], rs[2], rs[3] = t, s[0], s[1], s[2]
+			} else {
+				setState(rs, t, y, nstate)
+			}
+			if pre != nil {
+				runFast(rs, pre)
+			}
+			if len(dydt) < 3 {
+				rest(dydt)
+				return
+			}
+			dydt[0] = f0(rs)
+			dydt[1] = f1(rs)
+			dydt[2] = f2(rs)
+		}
+	case 4:
+		f0, f1, f2, f3 := outs[0], outs[1], outs[2], outs[3]
+		return func(t float64, y, dydt []float64) {
+			if nstate == 4 && len(y) >= 4 {
+				s := (*[4]float64)(y)
+				rs[0], rs[1], rs[2], rs[3], rs[4] = t, s[0], s[1], s[2], s[3]
+			} else {
+				setState(rs, t, y, nstate)
+			}
+			if pre != nil {
+				runFast(rs, pre)
+			}
+			if len(dydt) < 4 {
+				rest(dydt)
+				return
+			}
+			dydt[0] = f0(rs)
+			dydt[1] = f1(rs)
+			dydt[2] = f2(rs)
+			dydt[3] = f3(rs)
+		}
+	}
 	return func(t float64, y, dydt []float64) {
-		rs[0] = t
-		n := min(len(y), nstate)
-		for i, x := range y[:n] {
-			rs[1+i] = x
+		setState(rs, t, y, nstate)
+		if pre != nil {
+			runFast(rs, pre)
 		}
-		runFast(rs, code)
-		outs := fastOuts
-		if len(dydt) < len(outs) {
-			outs = outs[:len(dydt)]
-		}
-		for i, o := range outs {
-			dydt[i] = rs[o]
-		}
+		rest(dydt)
+	}
+}
+
+// setState sets the time and state slots of the fast registers (at most
+// nstate state values).
+func setState(rs *[256]float64, t float64, y []float64, nstate int) {
+	rs[0] = t
+	for i, x := range y[:min(len(y), nstate)] {
+		rs[1+i] = x
 	}
 }
