@@ -45,8 +45,8 @@ func TestDeepShapes(t *testing.T) {
 // TestFieldFuncBits checks that the closure form (FieldFunc) gives the same
 // bits as the plain tape (exact identity: the closures keep every operation
 // and rounding), for 1 to 7 outputs, outputs read by other outputs,
-// repeated outputs, outputs that are a variable or a constant, and short y
-// and dydt.
+// repeated outputs, outputs that are a variable or a constant, and y and
+// dydt of other lengths (one y value per output takes the lean path).
 func TestFieldFuncBits(t *testing.T) {
 	var all []string
 	all = append(all, formulas...)
@@ -75,8 +75,8 @@ func TestFieldFuncBits(t *testing.T) {
 				x := samplePoint(rng)
 				copy(fast.Vars(), x)
 				copy(plain.Vars(), x)
-				for _, ny := range []int{len(x) - 1, 2} {
-					for _, nd := range []int{k, k - 1} {
+				for _, ny := range []int{len(x) - 1, 1, 2, 3, 4} {
+					for _, nd := range []int{k, k - 1, k + 1} {
 						a, b := make([]float64, nd), make([]float64, nd)
 						f(x[0], x[1:1+ny], a)
 						plain.Field(x[0], x[1:1+ny], b)

@@ -370,8 +370,12 @@ func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
 	}
 	pl := e.p.plan()
 	pre, outs := pl.pre, pl.outs
-	// rest writes the outputs one by one (any count, a short dydt).
-	rest := func(dydt []float64) {
+	// slow is the general path: any number of outputs, a short y or dydt.
+	slow := func(t float64, y, dydt []float64) {
+		setState(rs, t, y, nstate)
+		if pre != nil {
+			runFast(rs, pre)
+		}
 		o := outs
 		if len(dydt) < len(o) {
 			o = o[:len(dydt)]
@@ -380,91 +384,128 @@ func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
 			dydt[i] = f(rs)
 		}
 	}
+	// Up to four outputs the calls are unrolled; when y has one value per
+	// output and nothing runs on the tape, the lean version copies the
+	// state without a loop.
+	if len(outs) <= nstate && len(pre) == 0 {
+		switch len(outs) {
+		case 1:
+			f0 := outs[0]
+			return func(t float64, y, dydt []float64) {
+				if len(y) != 1 || len(dydt) < 1 {
+					slow(t, y, dydt)
+					return
+				}
+				s, d := (*[1]float64)(y), (*[1]float64)(dydt)
+				rs[0], rs[1] = t, s[0]
+				d[0] = f0(rs)
+			}
+		case 2:
+			f0, f1 := outs[0], outs[1]
+			return func(t float64, y, dydt []float64) {
+				if len(y) != 2 || len(dydt) < 2 {
+					slow(t, y, dydt)
+					return
+				}
+				s, d := (*[2]float64)(y), (*[2]float64)(dydt)
+				rs[0], rs[1], rs[2] = t, s[0], s[1]
+				d[0] = f0(rs)
+				d[1] = f1(rs)
+			}
+		case 3:
+			f0, f1, f2 := outs[0], outs[1], outs[2]
+			return func(t float64, y, dydt []float64) {
+				if len(y) != 3 || len(dydt) < 3 {
+					slow(t, y, dydt)
+					return
+				}
+				s, d := (*[3]float64)(y), (*[3]float64)(dydt)
+				rs[0], rs[1], rs[2], rs[3] = t, s[0], s[1], s[2]
+				d[0] = f0(rs)
+				d[1] = f1(rs)
+				d[2] = f2(rs)
+			}
+		case 4:
+			f0, f1, f2, f3 := outs[0], outs[1], outs[2], outs[3]
+			return func(t float64, y, dydt []float64) {
+				if len(y) != 4 || len(dydt) < 4 {
+					slow(t, y, dydt)
+					return
+				}
+				s, d := (*[4]float64)(y), (*[4]float64)(dydt)
+				rs[0], rs[1], rs[2], rs[3], rs[4] = t, s[0], s[1], s[2], s[3]
+				d[0] = f0(rs)
+				d[1] = f1(rs)
+				d[2] = f2(rs)
+				d[3] = f3(rs)
+			}
+		}
+	}
 	switch len(outs) {
 	case 1:
 		f0 := outs[0]
 		return func(t float64, y, dydt []float64) {
-			if nstate == 1 && len(y) >= 1 {
-				s := (*[1]float64)(y)
-				rs[0], rs[1] = t, s[0]
-			} else {
-				setState(rs, t, y, nstate)
+			if len(dydt) < 1 {
+				slow(t, y, dydt)
+				return
 			}
+			setState(rs, t, y, nstate)
 			if pre != nil {
 				runFast(rs, pre)
 			}
-			if len(dydt) >= 1 {
-				dydt[0] = f0(rs)
-			}
+			d := (*[1]float64)(dydt)
+			d[0] = f0(rs)
 		}
 	case 2:
 		f0, f1 := outs[0], outs[1]
 		return func(t float64, y, dydt []float64) {
-			if nstate == 2 && len(y) >= 2 {
-				s := (*[2]float64)(y)
-				rs[0], rs[1], rs[2] = t, s[0], s[1]
-			} else {
-				setState(rs, t, y, nstate)
+			if len(dydt) < 2 {
+				slow(t, y, dydt)
+				return
 			}
+			setState(rs, t, y, nstate)
 			if pre != nil {
 				runFast(rs, pre)
 			}
-			if len(dydt) < 2 {
-				rest(dydt)
-				return
-			}
-			dydt[0] = f0(rs)
-			dydt[1] = f1(rs)
+			d := (*[2]float64)(dydt)
+			d[0] = f0(rs)
+			d[1] = f1(rs)
 		}
 	case 3:
 		f0, f1, f2 := outs[0], outs[1], outs[2]
 		return func(t float64, y, dydt []float64) {
-			if nstate == 3 && len(y) >= 3 {
-				s := (*[3]float64)(y)
-				rs[0], rs[1], rs[2], rs[3] = t, s[0], s[1], s[2]
-			} else {
-				setState(rs, t, y, nstate)
+			if len(dydt) < 3 {
+				slow(t, y, dydt)
+				return
 			}
+			setState(rs, t, y, nstate)
 			if pre != nil {
 				runFast(rs, pre)
 			}
-			if len(dydt) < 3 {
-				rest(dydt)
-				return
-			}
-			dydt[0] = f0(rs)
-			dydt[1] = f1(rs)
-			dydt[2] = f2(rs)
+			d := (*[3]float64)(dydt)
+			d[0] = f0(rs)
+			d[1] = f1(rs)
+			d[2] = f2(rs)
 		}
 	case 4:
 		f0, f1, f2, f3 := outs[0], outs[1], outs[2], outs[3]
 		return func(t float64, y, dydt []float64) {
-			if nstate == 4 && len(y) >= 4 {
-				s := (*[4]float64)(y)
-				rs[0], rs[1], rs[2], rs[3], rs[4] = t, s[0], s[1], s[2], s[3]
-			} else {
-				setState(rs, t, y, nstate)
+			if len(dydt) < 4 {
+				slow(t, y, dydt)
+				return
 			}
+			setState(rs, t, y, nstate)
 			if pre != nil {
 				runFast(rs, pre)
 			}
-			if len(dydt) < 4 {
-				rest(dydt)
-				return
-			}
-			dydt[0] = f0(rs)
-			dydt[1] = f1(rs)
-			dydt[2] = f2(rs)
-			dydt[3] = f3(rs)
+			d := (*[4]float64)(dydt)
+			d[0] = f0(rs)
+			d[1] = f1(rs)
+			d[2] = f2(rs)
+			d[3] = f3(rs)
 		}
 	}
-	return func(t float64, y, dydt []float64) {
-		setState(rs, t, y, nstate)
-		if pre != nil {
-			runFast(rs, pre)
-		}
-		rest(dydt)
-	}
+	return slow
 }
 
 // setState sets the time and state slots of the fast registers (at most
