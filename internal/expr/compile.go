@@ -359,27 +359,160 @@ func (e *Float64) Field(t float64, y, dydt []float64) {
 }
 
 // FieldFunc returns Field as a function value that holds the evaluator's
-// registers and tape directly (one call less per evaluation than the
-// method value e.Field).
+// registers directly and evaluates each output by one specialised closure
+// (see fieldPlan), written straight into dydt; for up to four outputs the
+// calls are unrolled. The results are bit-identical to Field.
 func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
-	rs, code, fastOuts := e.rs, e.p.fast, e.p.fastOuts
+	rs := e.rs
 	nstate := e.p.nvar - 1
 	if rs == nil || nstate < 0 {
 		return e.Field
 	}
-	return func(t float64, y, dydt []float64) {
-		rs[0] = t
-		n := min(len(y), nstate)
-		for i, x := range y[:n] {
-			rs[1+i] = x
+	pl := e.p.plan()
+	pre, outs := pl.pre, pl.outs
+	// slow is the general path: any number of outputs, a short y or dydt.
+	slow := func(t float64, y, dydt []float64) {
+		setState(rs, t, y, nstate)
+		if pre != nil {
+			runFast(rs, pre)
 		}
-		runFast(rs, code)
-		outs := fastOuts
-		if len(dydt) < len(outs) {
-			outs = outs[:len(dydt)]
+		o := outs
+		if len(dydt) < len(o) {
+			o = o[:len(dydt)]
 		}
-		for i, o := range outs {
-			dydt[i] = rs[o]
+		for i, f := range o {
+			dydt[i] = f(rs)
 		}
+	}
+	// Up to four outputs the calls are unrolled; when y has one value per
+	// output and nothing runs on the tape, the lean version copies the
+	// state without a loop.
+	if len(outs) <= nstate && len(pre) == 0 {
+		switch len(outs) {
+		case 1:
+			f0 := outs[0]
+			return func(t float64, y, dydt []float64) {
+				if len(y) != 1 || len(dydt) < 1 {
+					slow(t, y, dydt)
+					return
+				}
+				s, d := (*[1]float64)(y), (*[1]float64)(dydt)
+				rs[0], rs[1] = t, s[0]
+				d[0] = f0(rs)
+			}
+		case 2:
+			f0, f1 := outs[0], outs[1]
+			return func(t float64, y, dydt []float64) {
+				if len(y) != 2 || len(dydt) < 2 {
+					slow(t, y, dydt)
+					return
+				}
+				s, d := (*[2]float64)(y), (*[2]float64)(dydt)
+				rs[0], rs[1], rs[2] = t, s[0], s[1]
+				d[0] = f0(rs)
+				d[1] = f1(rs)
+			}
+		case 3:
+			f0, f1, f2 := outs[0], outs[1], outs[2]
+			return func(t float64, y, dydt []float64) {
+				if len(y) != 3 || len(dydt) < 3 {
+					slow(t, y, dydt)
+					return
+				}
+				s, d := (*[3]float64)(y), (*[3]float64)(dydt)
+				rs[0], rs[1], rs[2], rs[3] = t, s[0], s[1], s[2]
+				d[0] = f0(rs)
+				d[1] = f1(rs)
+				d[2] = f2(rs)
+			}
+		case 4:
+			f0, f1, f2, f3 := outs[0], outs[1], outs[2], outs[3]
+			return func(t float64, y, dydt []float64) {
+				if len(y) != 4 || len(dydt) < 4 {
+					slow(t, y, dydt)
+					return
+				}
+				s, d := (*[4]float64)(y), (*[4]float64)(dydt)
+				rs[0], rs[1], rs[2], rs[3], rs[4] = t, s[0], s[1], s[2], s[3]
+				d[0] = f0(rs)
+				d[1] = f1(rs)
+				d[2] = f2(rs)
+				d[3] = f3(rs)
+			}
+		}
+	}
+	switch len(outs) {
+	case 1:
+		f0 := outs[0]
+		return func(t float64, y, dydt []float64) {
+			if len(dydt) < 1 {
+				slow(t, y, dydt)
+				return
+			}
+			setState(rs, t, y, nstate)
+			if pre != nil {
+				runFast(rs, pre)
+			}
+			d := (*[1]float64)(dydt)
+			d[0] = f0(rs)
+		}
+	case 2:
+		f0, f1 := outs[0], outs[1]
+		return func(t float64, y, dydt []float64) {
+			if len(dydt) < 2 {
+				slow(t, y, dydt)
+				return
+			}
+			setState(rs, t, y, nstate)
+			if pre != nil {
+				runFast(rs, pre)
+			}
+			d := (*[2]float64)(dydt)
+			d[0] = f0(rs)
+			d[1] = f1(rs)
+		}
+	case 3:
+		f0, f1, f2 := outs[0], outs[1], outs[2]
+		return func(t float64, y, dydt []float64) {
+			if len(dydt) < 3 {
+				slow(t, y, dydt)
+				return
+			}
+			setState(rs, t, y, nstate)
+			if pre != nil {
+				runFast(rs, pre)
+			}
+			d := (*[3]float64)(dydt)
+			d[0] = f0(rs)
+			d[1] = f1(rs)
+			d[2] = f2(rs)
+		}
+	case 4:
+		f0, f1, f2, f3 := outs[0], outs[1], outs[2], outs[3]
+		return func(t float64, y, dydt []float64) {
+			if len(dydt) < 4 {
+				slow(t, y, dydt)
+				return
+			}
+			setState(rs, t, y, nstate)
+			if pre != nil {
+				runFast(rs, pre)
+			}
+			d := (*[4]float64)(dydt)
+			d[0] = f0(rs)
+			d[1] = f1(rs)
+			d[2] = f2(rs)
+			d[3] = f3(rs)
+		}
+	}
+	return slow
+}
+
+// setState sets the time and state slots of the fast registers (at most
+// nstate state values).
+func setState(rs *[256]float64, t float64, y []float64, nstate int) {
+	rs[0] = t
+	for i, x := range y[:min(len(y), nstate)] {
+		rs[1+i] = x
 	}
 }
