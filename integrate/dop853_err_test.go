@@ -6,7 +6,7 @@ import (
 )
 
 // TestDP853ErrorEstimate checks the hot loop of DormandPrince853 against a
-// plain transcription of its tableau and of dop853.f's error estimate
+// plain, term-by-term copy of its tableau and of dop853.f's error estimate
 // (Hairer & Wanner, dop853.f, subroutine DP86CO: err5, err3, deno and
 // err = |h|·err5·sqrt(1/(n·deno))): the arranged sums of attemptSq must give
 // the same y1 and the same err² up to rounding, on Lorenz steps whose error
@@ -92,7 +92,7 @@ func TestDP853ErrorEstimate(t *testing.T) {
 		}
 		for i := range y1 {
 			if d := math.Abs(y1[i] - y1ref[i]); d > y1Tol*math.Abs(y1ref[i]) {
-				t.Errorf("tol %g h %g: y1[%d] = %v, transcription %v", tol, h, i, y1[i], y1ref[i])
+				t.Errorf("tol %g h %g: y1[%d] = %v, term-by-term form %v", tol, h, i, y1[i], y1ref[i])
 			}
 		}
 		want := float64(errRef * errRef)
