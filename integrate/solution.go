@@ -85,7 +85,7 @@ type compactDense interface {
 }
 
 // chunks stores a growing sequence of fixed-size records in blocks that
-// never move once written. The first block grows by append up to a full
+// never move once full. The first block grows by doubling up to a full
 // block, so short solves stay small.
 type chunks struct {
 	per   int // floats per record
@@ -102,28 +102,46 @@ func newChunks(per int) chunks {
 	return chunks{per: per, block: max(1, min(4096, maxBlockFloats/per))}
 }
 
+// firstRecords is the first block's starting capacity, in records; it
+// doubles (one copy each time, at most a block's worth in all) until it
+// reaches block, and every later block is allocated at full size, so a
+// short solve allocates little and a long one copies nothing after the
+// first block.
+const firstRecords = 64
+
+// next returns the slot of one more record (len per), to be filled by
+// the caller.
+func (c *chunks) next() []float64 {
+	k := len(c.b)
+	if k == 0 || len(c.b[k-1]) == c.block*c.per {
+		size := c.block * c.per
+		if k == 0 {
+			size = min(firstRecords, c.block) * c.per
+		}
+		c.b = append(c.b, make([]float64, 0, size))
+		k++
+	}
+	last := &c.b[k-1]
+	l := len(*last)
+	if l == cap(*last) {
+		// Only the first block grows.
+		grown := make([]float64, l, min(2*cap(*last), c.block*c.per))
+		copy(grown, *last)
+		*last = grown
+	}
+	*last = (*last)[:l+c.per]
+	c.n++
+	return (*last)[l : l+c.per : l+c.per]
+}
+
 // add appends one record (len(v) == per).
 func (c *chunks) add(v []float64) {
-	if k := len(c.b); k == 0 || len(c.b[k-1]) == c.block*c.per {
-		var buf []float64
-		if k > 0 {
-			buf = make([]float64, 0, c.block*c.per) // later blocks: full size at once
-		}
-		c.b = append(c.b, buf)
+	dst := c.next()
+	// A loop, not copy: records are short, and the runtime's memmove
+	// costs more than the copy itself.
+	for i, x := range v[:len(dst)] {
+		dst[i] = x
 	}
-	last := &c.b[len(c.b)-1]
-	if l := len(*last); cap(*last)-l >= len(v) {
-		// A loop, not append or copy: records are short, and the
-		// runtime's memmove costs more than the copy itself.
-		dst := (*last)[l : l+len(v)]
-		for i, x := range v {
-			dst[i] = x
-		}
-		*last = (*last)[:l+len(v)]
-	} else {
-		*last = append(*last, v...)
-	}
-	c.n++
 }
 
 // at returns record k.

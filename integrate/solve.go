@@ -31,11 +31,9 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 	n := st.n
 	sol := &Solution{Method: m.Name(), Dim: n, T0: p.T0, End: p.T0, sc: st.sc,
 		coef: newChunks(st.sc.denseSize() * n), tBuf: newChunks(1), yBuf: newChunks(n)}
-	var compactBuf []float64
 	if cd, ok := st.sc.(compactDense); ok {
 		sol.cd = cd
 		sol.coef = newChunks(cd.compactSize(n))
-		compactBuf = make([]float64, cd.compactSize(n))
 	}
 	defer sol.seal()
 	keep := !c.drop
@@ -125,8 +123,7 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 			if st.sc.denseSize() > 0 {
 				st.prepareDense()
 				if sol.cd != nil {
-					sol.cd.compact(st.coef, compactBuf)
-					sol.coef.add(compactBuf)
+					sol.cd.compact(st.coef, sol.coef.next())
 				} else {
 					sol.coef.add(st.coef)
 				}
