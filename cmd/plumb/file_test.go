@@ -3,6 +3,9 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/json"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -81,5 +84,67 @@ func TestFileHamiltonian(t *testing.T) {
 	}
 	if !strings.HasPrefix(r.stdout, "t,angle,swing\n") {
 		t.Errorf("header: %q", strings.SplitN(r.stdout, "\n", 2)[0])
+	}
+}
+
+// TestFileWithoutName: a system file without "name" is called by its file
+// name (or "stdin"), so messages and JSON results still say which system.
+func TestFileWithoutName(t *testing.T) {
+	const src = `{"kind":"flow","variables":[{"name":"u","start":1,"rate":"-u"}]}`
+	path := filepath.Join(t.TempDir(), "decay.json")
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		file, stdin, want string
+	}{{path, "", "decay"}, {"-", src, "stdin"}} {
+		var out, errb bytes.Buffer
+		code := run(context.Background(), []string{"solve", "--file", c.file, "--t1", "1", "--format", "json", "--quiet"}, strings.NewReader(c.stdin), &out, &errb)
+		if code != exitOK {
+			t.Fatalf("--file %s: exit %d, stderr %q", c.file, code, errb.String())
+		}
+		var res struct {
+			System struct {
+				Name string `json:"name"`
+			} `json:"system"`
+		}
+		if err := json.Unmarshal(out.Bytes(), &res); err != nil {
+			t.Fatalf("--file %s: %v", c.file, err)
+		}
+		if res.System.Name != c.want {
+			t.Errorf("--file %s: system name %q, want %q", c.file, res.System.Name, c.want)
+		}
+	}
+	for _, c := range [][2]string{{"a/b/loop.json", "loop"}, {"loop", "loop"}, {"x/.json", ".json"}} {
+		if got := fileSystemName(c[0]); got != c[1] {
+			t.Errorf("fileSystemName(%q) = %q, want %q", c[0], got, c[1])
+		}
+	}
+}
+
+// TestBlowUpHint: du/dt = u², u(0) = 1 has the solution 1/(1 - t), which
+// leaves every bound at t = 1 (exact solution); the step size collapses
+// there, the run fails (exit 1) with the time, and a hint says what a
+// collapsing step usually means.
+func TestBlowUpHint(t *testing.T) {
+	const src = `{"name":"blow","kind":"flow","variables":[{"name":"u","start":1,"rate":"u^2"}]}`
+	for _, c := range []struct {
+		args []string
+		want []string
+	}{
+		{[]string{"solve", "--t1", "2"}, []string{"step size underflow", "at t=0.99999", "hint: the step size collapsed"}},
+		{[]string{"trust", "--horizon", "2"}, []string{"step size underflow", "hint: the step size collapsed", "--horizon"}},
+	} {
+		var out, errb bytes.Buffer
+		args := append(append([]string{}, c.args...), "--file", "-", "--quiet")
+		code := run(context.Background(), args, strings.NewReader(src), &out, &errb)
+		if code != exitFailed {
+			t.Fatalf("%v: exit %d, want %d; stderr %q", c.args, code, exitFailed, errb.String())
+		}
+		for _, w := range c.want {
+			if !strings.Contains(errb.String(), w) {
+				t.Errorf("%v: stderr %q does not mention %q", c.args, errb.String(), w)
+			}
+		}
 	}
 }

@@ -10,6 +10,8 @@ import (
 	"os"
 	"strings"
 	"time"
+
+	"github.com/plumbdyn/plumb/integrate"
 )
 
 // Exit codes, as DESIGN.md fixes them.
@@ -128,7 +130,26 @@ func report(stderr io.Writer, cmd *command, err error) int {
 		return exitUsage
 	}
 	fmt.Fprintf(stderr, "plumb %s: %v\n", cmd.name, err)
+	if h := failureHint(cmd, err); h != "" {
+		fmt.Fprintf(stderr, "hint: %s\n", h)
+	}
 	return exitFailed
+}
+
+// failureHint says what a failure usually means, for the failures whose
+// message alone does not tell a user what to do next.
+func failureHint(cmd *command, err error) string {
+	switch {
+	case errors.Is(err, integrate.ErrStepUnderflow):
+		s := "the step size collapsed, as it does where the solution grows without bound in finite time or the rates are singular; check the model near that time"
+		if cmd.name == "trust" {
+			s += ", or audit the span before it with --horizon"
+		}
+		return s
+	case errors.Is(err, integrate.ErrStepBudget) && cmd.name == "solve":
+		return "the run needed more steps than --max-steps allows: raise it, or loosen --rtol/--atol if the problem is stiff"
+	}
+	return ""
 }
 
 // flagMessage rewrites the flag package's messages so that flags are named

@@ -3,6 +3,7 @@ package main
 import (
 	"io"
 	"os"
+	"path/filepath"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
@@ -48,7 +49,23 @@ func (sh *shared) loadFile() (*plumb.System, error) {
 	if err != nil {
 		return nil, usagef("--file %s: %v", sh.file, err)
 	}
+	if sys.Name == "" {
+		sys.Name = fileSystemName(sh.file)
+	}
 	return sys, nil
+}
+
+// fileSystemName names a system file that gives no name: its file name
+// without the directory and the .json extension, or "stdin" for "-".
+func fileSystemName(path string) string {
+	if path == "-" {
+		return "stdin"
+	}
+	base := filepath.Base(path)
+	if name := strings.TrimSuffix(base, filepath.Ext(base)); name != "" {
+		return name
+	}
+	return base
 }
 
 // applySets applies every --set in order.
@@ -117,5 +134,12 @@ func (s systemJSON) heading() string {
 	for i, p := range s.Parameters {
 		params[i] = p.Name + "=" + formatFloat(p.Value)
 	}
-	return s.Name + " (" + s.Title + ") " + strings.Join(params, " ")
+	h := s.Name
+	if s.Title != "" {
+		h += " (" + s.Title + ")"
+	}
+	if len(params) > 0 {
+		h += " " + strings.Join(params, " ")
+	}
+	return h
 }
