@@ -389,7 +389,8 @@ func (r *flowRun) spectrum() *Spectrum {
 	r.avg.fill(sp, k, r.lastQR)
 	sp.Final = append([]float64(nil), r.st.Y()[:n]...)
 	ist := r.st.Stats()
-	sp.Stats = Stats{Steps: ist.Accepted, Rejected: ist.Rejected, Evaluations: r.evals, Jacobians: r.jacs, QR: r.qrs}
+	sp.Stats = Stats{Steps: ist.Accepted, Rejected: ist.Rejected, Evaluations: r.evals, Jacobians: r.jacs, QR: r.qrs,
+		Stiff: ist.Stiff, StiffAt: ist.StiffAt}
 	if sp.Duration > 0 && k == n {
 		sum := 0.0
 		for _, v := range sp.Exponents {

@@ -118,6 +118,12 @@ type Stats struct {
 	Jacobians int `json:"jacobians"`
 	// QR counts re-orthonormalisations (renormalisations for Largest).
 	QR int `json:"qr"`
+	// Stiff reports that the explicit pair's stiffness test fired on the
+	// integration (state and tangent vectors together): the step size
+	// was held by stability, not accuracy, which makes the run slow, not
+	// wrong. StiffAt is the time it first fired (flows only).
+	Stiff   bool    `json:"stiff,omitempty"`
+	StiffAt float64 `json:"stiff_at,omitempty"`
 }
 
 // Check returns the named check and whether the spectrum carries it.

@@ -297,6 +297,9 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
+	if sp.Stats.Stiff {
+		cl.warnf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy (slow, not wrong)", sp.Stats.StiffAt)
+	}
 	cl.wallTime(start, count(k, "exponent")+", "+count(sp.Stats.Steps, "step")+", "+count(sp.Stats.QR, "re-orthonormalisation"))
 	if out.Status != "completed" {
 		return fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, statusVerb(out.Status), count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)

@@ -269,3 +269,25 @@ func TestSpectrumProgress(t *testing.T) {
 		t.Errorf("stdout changed: %v; stderr %q", bar.stdout != plain.stdout, bar.stderr)
 	}
 }
+
+// TestSpectrumStiffWarning: Van der Pol with mu = 1000 is stiff (problem
+// VDPOL of the Mazzia & Magherini IVP Test Set, 2008); the spectrum run
+// says so on stderr and in its JSON stats, as solve does. The default demo
+// says nothing of the kind.
+func TestSpectrumStiffWarning(t *testing.T) {
+	r := plumbRun(t, "spectrum", "--model", "vanderpol", "--set", "mu=1000", "--exponents", "1", "--t1", "30", "--transient", "5")
+	if r.code != exitOK || !strings.Contains(r.stderr, "warning: the run looks stiff from t=") {
+		t.Errorf("exit %d, stderr %q; want a stiffness warning", r.code, r.stderr)
+	}
+	_, raw, _ := decodeSpectrum(t, "--model", "vanderpol", "--set", "mu=1000", "--exponents", "1", "--t1", "30", "--transient", "5")
+	var st struct {
+		Stiff   bool    `json:"stiff"`
+		StiffAt float64 `json:"stiff_at"`
+	}
+	if err := json.Unmarshal(raw["stats"], &st); err != nil || !st.Stiff || st.StiffAt <= 0 {
+		t.Errorf("stats %s: want stiff true with its time (%v)", raw["stats"], err)
+	}
+	if r := plumbRun(t, "spectrum", "--t1", "200"); strings.Contains(r.stderr, "stiff") {
+		t.Errorf("the demo's stderr mentions stiffness: %q", r.stderr)
+	}
+}
