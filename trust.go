@@ -529,8 +529,13 @@ func (rep *Report) Write(w io.Writer) error {
 	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
 	rows := rep.Rungs
 	if ex := rep.Exact; ex != nil {
-		fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d, %d steps); every float64 run is compared with it\n\n",
-			ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.Steps)
+		if ex.Continued != "" {
+			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d) to t = %.4g, where every run from the start had departed from it, then in %s at %d digits, from which later restarts start (%d steps in all); every float64 run is compared with it\n\n",
+				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.AccurateUntil, ex.Continued, ex.ContinuedDigits, ex.Steps)
+		} else {
+			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d, %d steps); every float64 run is compared with it\n\n",
+				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.Steps)
+		}
 		rows = append([]RungReport{rep.Reference}, rep.Rungs...)
 		rows[0].Effect = "tightest"
 	} else {
