@@ -37,6 +37,13 @@ time; the rung that sets it names the effect that limits it. Beside each
 measured horizon stands the one predicted from the largest Lyapunov
 exponent, ln(tol/delta0)/lambda.
 
+With --exact (the default) and a system with formulas, the reference is
+a multiprecision Taylor run instead, and the tightest float64 run is one
+more rung: its digits follow from lambda, the span and --tol; on a long
+horizon it is kept accurate until every run from the start has departed
+from it, then continued in double-double (later restarts start from
+that continuation).
+
 With no flags it audits the built-in convection loop (lorenz, sigma=10,
 rho=28, beta=8/3) to t=50 at tolerance 1. --format json writes the whole
 report: plumb_version, arch, command, system, settings, units, status,
