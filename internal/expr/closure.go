@@ -44,6 +44,74 @@ func shapeOf(w uint64) wordShape {
 type fieldPlan struct {
 	pre  []uint64
 	outs []regFn
+	// kinds holds, when inline is set, each output's closure as an inline
+	// kind with its registers (see inlineOut).
+	kinds  []inlineOut
+	inline bool
+}
+
+//go:generate go run gen_inline.go
+
+// inlineOut is an output in the form the inline field closures of
+// inline_gen.go evaluate without a call: a kind, naming the operations,
+// and up to four registers a, b, c, d, in the order they are read.
+type inlineOut struct {
+	k, a, b, c, d uint8
+}
+
+// word packs o into one word: k, a, b, c, d in bytes 0 to 4, so an inline
+// closure holds each output in one register.
+func (o inlineOut) word() uint64 {
+	return uint64(o.k) | uint64(o.a)<<8 | uint64(o.b)<<16 | uint64(o.c)<<24 | uint64(o.d)<<32
+}
+
+// Inline kinds. Operation indices: 0 add, 1 sub, 2 mul.
+const (
+	kReg     = iota     // r[a]
+	kAdd                // a + b
+	kSub                // a - b
+	kMul                // a * b
+	kDiv                // a / b
+	kNeg                // -a
+	kSq                 // a * a
+	kL                  // kL + inner*3 + outer: (a inner b) outer c
+	kR       = kL + 9   // kR + inner*3 + outer: a outer (b inner c)
+	kLR      = kR + 9   // kLR + (l*3 + outer)*3 + r: (a l b) outer (c r d)
+	kDeep    = kLR + 27 // kDeep + ((shape*3 + inner)*3 + absorbed)*3 + outer, shapes as in deepFns
+	numKinds = kDeep + 108
+)
+
+// wordKind returns the inline kind of the fused instruction w, if it has one.
+func wordKind(w uint64) (inlineOut, bool) {
+	o := inlineOut{a: uint8(w >> 16), b: uint8(w >> 24), c: uint8(w >> 32), d: uint8(w >> 40)}
+	op := Op(w)
+	switch op {
+	case OpAdd:
+		o.k = kAdd
+	case OpSub:
+		o.k = kSub
+	case OpMul:
+		o.k = kMul
+	case OpDiv:
+		o.k = kDiv
+	case OpNeg:
+		o.k = kNeg
+	case opSq:
+		o.k = kSq
+	default:
+		s := shapeOf(w)
+		switch {
+		case s.l:
+			o.k = uint8(kL + s.inner*3 + s.outer)
+		case s.r:
+			o.k = uint8(kR + s.inner*3 + s.outer)
+		case op >= fAddAddAddLR && op <= fMulMulMulLR:
+			o.k = uint8(kLR + int(op-fAddAddAddLR))
+		default:
+			return inlineOut{}, false
+		}
+	}
+	return o, true
 }
 
 // plan builds the closure form of p's fast tape.
@@ -76,11 +144,12 @@ func (p *Program) plan() fieldPlan {
 		}
 		return j, true
 	}
-	var pl fieldPlan
+	pl := fieldPlan{inline: true}
 	for _, o := range p.fastOuts {
 		j := prod[o]
 		if j < 0 || gone[j] || reads[o] != 0 || outUses[o] != 1 {
 			pl.outs = append(pl.outs, func(r *[256]float64) float64 { return r[o] })
+			pl.kinds = append(pl.kinds, inlineOut{k: kReg, a: o})
 			continue
 		}
 		w := code[j]
@@ -88,31 +157,41 @@ func (p *Program) plan() fieldPlan {
 		s := shapeOf(w)
 		a, b, c := uint8(w>>16), uint8(w>>24), uint8(w>>32)
 		var f regFn
+		var io inlineOut
+		deep := func(shape int, v uint64, a, b, c, d uint8) {
+			f = deepFns[shape][s.inner][opIndex(Op(v))][s.outer](a, b, c, d)
+			io = inlineOut{k: uint8(kDeep + ((shape*3+s.inner)*3+opIndex(Op(v)))*3 + s.outer), a: a, b: b, c: c, d: d}
+		}
 		switch {
 		case s.l:
 			if k, ok := plainArith(a); ok {
 				v := code[k]
-				f = deepFns[0][s.inner][opIndex(Op(v))][s.outer](uint8(v>>16), uint8(v>>24), b, c)
+				deep(0, v, uint8(v>>16), uint8(v>>24), b, c)
 				gone[k] = true
 			} else if k, ok := plainArith(b); ok && a != b {
 				v := code[k]
-				f = deepFns[1][s.inner][opIndex(Op(v))][s.outer](a, uint8(v>>16), uint8(v>>24), c)
+				deep(1, v, a, uint8(v>>16), uint8(v>>24), c)
 				gone[k] = true
 			}
 		case s.r:
 			if k, ok := plainArith(b); ok {
 				v := code[k]
-				f = deepFns[2][s.inner][opIndex(Op(v))][s.outer](a, uint8(v>>16), uint8(v>>24), c)
+				deep(2, v, a, uint8(v>>16), uint8(v>>24), c)
 				gone[k] = true
 			} else if k, ok := plainArith(c); ok && b != c {
 				v := code[k]
-				f = deepFns[3][s.inner][opIndex(Op(v))][s.outer](a, b, uint8(v>>16), uint8(v>>24))
+				deep(3, v, a, b, uint8(v>>16), uint8(v>>24))
 				gone[k] = true
 			}
 		}
 		if f == nil {
 			f = wordFn(w)
+			var ok bool
+			if io, ok = wordKind(w); !ok {
+				pl.inline = false
+			}
 		}
+		pl.kinds = append(pl.kinds, io)
 		pl.outs = append(pl.outs, f)
 	}
 	for i, w := range code {

@@ -4,8 +4,123 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"reflect"
+	"runtime"
+	"strings"
 	"testing"
 )
+
+// inlineShapes returns one formula per inline kind short of the deep ones
+// (see inlineOut): a register, the one-operation kinds, and the L, R and LR
+// forms of fuseCode, over x, y, z, a.
+func inlineShapes() []string {
+	sym := []string{"+", "-", "*"}
+	fs := []string{"y", "x + y", "x - y", "x * y", "x / y", "-x", "x^2"}
+	for i := range 3 {
+		for o := range 3 {
+			fs = append(fs, fmt.Sprintf("(x %s y) %s z", sym[i], sym[o]), fmt.Sprintf("x %s (y %s z)", sym[o], sym[i]))
+			for r := range 3 {
+				fs = append(fs, fmt.Sprintf("(x %s y) %s (z %s a)", sym[i], sym[o], sym[r]))
+			}
+		}
+	}
+	return fs
+}
+
+// TestInlineKinds checks that every inline kind is reached, each by the
+// formula meant for it (as the first of two outputs, the second t*t, so
+// that a lone register has a program too), and that the inline closure
+// gives the bits of the tape (exact identity: the same operations in the
+// same order) for y and dydt of every length up to one past the outputs, so
+// both the unrolled part and the loop part of inline_gen.go are run.
+func TestInlineKinds(t *testing.T) {
+	seen := make([]bool, numKinds)
+	rng := rand.New(rand.NewPCG(31, 32))
+	for _, s := range append(inlineShapes(), deepShapes()...) {
+		g := NewGraph(testVars)
+		e, err := g.Parse(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		tt, err := g.Parse("t*t")
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := g.Compile([]Expr{e, tt})
+		pl := p.plan()
+		if !pl.inline || len(pl.pre) != 0 || len(pl.kinds) != 2 {
+			t.Fatalf("%s: inline %v with %d tape instructions, want an inline kind and none", s, pl.inline, len(pl.pre))
+		}
+		k := pl.kinds[0].k
+		if int(k) >= numKinds || seen[k] {
+			t.Fatalf("%s: kind %d out of range or reached twice", s, k)
+		}
+		seen[k] = true
+		fast, tape := p.NewFloat64(), p.NewFloat64()
+		tape.rs = nil // force the plain tape
+		f := fast.FieldFunc()
+		if name := runtime.FuncForPC(reflect.ValueOf(f).Pointer()).Name(); !strings.Contains(name, "inlineField2") {
+			t.Fatalf("%s: FieldFunc is %s, want the inline closure", s, name)
+		}
+		for range 3 {
+			x := samplePoint(rng)
+			copy(fast.Vars(), x)
+			copy(tape.Vars(), x)
+			for ny := 0; ny < len(x); ny++ {
+				for nd := 0; nd <= 3; nd++ {
+					a, b := make([]float64, nd), make([]float64, nd)
+					f(x[0], x[1:1+ny], a)
+					tape.Field(x[0], x[1:1+ny], b)
+					for i := range a {
+						if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
+							t.Fatalf("%s (y %d, dydt %d): inline %v, tape %v", s, ny, nd, a[i], b[i])
+						}
+					}
+				}
+			}
+		}
+	}
+	for k, ok := range seen {
+		if !ok {
+			t.Errorf("inline kind %d reached by no formula", k)
+		}
+	}
+}
+
+// TestInlineLorenz checks that the Lorenz rates take the inline closure and
+// that parameters written into Vars after FieldFunc take effect, with the
+// bits of the tape (exact identity).
+func TestInlineLorenz(t *testing.T) {
+	g := NewGraph(lorenzVars)
+	var outs []Expr
+	for _, s := range lorenzRates {
+		e, err := g.Parse(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		outs = append(outs, e)
+	}
+	p := g.Compile(outs)
+	fast, tape := p.NewFloat64(), p.NewFloat64()
+	tape.rs = nil
+	f := fast.FieldFunc()
+	if name := runtime.FuncForPC(reflect.ValueOf(f).Pointer()).Name(); !strings.Contains(name, "inlineField3") {
+		t.Fatalf("Lorenz FieldFunc is %s, want the inline closure", name)
+	}
+	y := []float64{1, 2, 3}
+	for _, par := range [][]float64{{10, 28, 8.0 / 3}, {16, 45.92, 4}} {
+		copy(fast.Vars()[4:], par)
+		copy(tape.Vars()[4:], par)
+		a, b := make([]float64, 3), make([]float64, 3)
+		f(0, y, a)
+		tape.Field(0, y, b)
+		for i := range a {
+			if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
+				t.Fatalf("parameters %v, output %d: inline %v, tape %v", par, i, a[i], b[i])
+			}
+		}
+	}
+}
 
 // deepShapes returns one formula per closure of deepFns, in the four shapes
 // (operation symbols by index 0 add, 1 sub, 2 mul), over x, y, z, a.
@@ -51,6 +166,7 @@ func TestFieldFuncBits(t *testing.T) {
 	var all []string
 	all = append(all, formulas...)
 	all = append(all, deepShapes()...)
+	all = append(all, inlineShapes()...)
 	all = append(all, "x*y", "x*y + z", "x*y", "y", "2", "(x - y)*(x - y)", "z*(x - 1) + y")
 	g := NewGraph(testVars)
 	outs := make([]Expr, len(all))
@@ -104,6 +220,9 @@ func FuzzFieldFunc(f *testing.F) {
 		f.Add(s)
 	}
 	for _, s := range deepShapes() {
+		f.Add(s)
+	}
+	for _, s := range inlineShapes() {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, src string) {

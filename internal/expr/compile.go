@@ -361,7 +361,12 @@ func (e *Float64) Field(t float64, y, dydt []float64) {
 // FieldFunc returns Field as a function value that holds the evaluator's
 // registers directly and evaluates each output by one specialised closure
 // (see fieldPlan), written straight into dydt; for up to four outputs the
-// calls are unrolled. The results are bit-identical to Field.
+// calls are unrolled. When there are at most four outputs, nothing is left
+// to run on the tape and every output has an inline kind (see inlineOut),
+// the outputs are evaluated in place instead, by a switch on each kind and
+// no call (inline_gen.go). The parameters are read from the registers at
+// every call, so values written into Vars later take effect. The results
+// are bit-identical to Field.
 func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
 	rs := e.rs
 	nstate := e.p.nvar - 1
@@ -388,6 +393,20 @@ func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
 	// output and nothing runs on the tape, the lean version copies the
 	// state without a loop.
 	if len(outs) <= nstate && len(pre) == 0 {
+		// When every output has an inline kind, the lean version evaluates
+		// them in place, with no call at all (inline_gen.go).
+		if pl.inline {
+			switch k := pl.kinds; len(k) {
+			case 1:
+				return inlineField1(rs, (*[1]inlineOut)(k), nstate)
+			case 2:
+				return inlineField2(rs, (*[2]inlineOut)(k), nstate)
+			case 3:
+				return inlineField3(rs, (*[3]inlineOut)(k), nstate)
+			case 4:
+				return inlineField4(rs, (*[4]inlineOut)(k), nstate)
+			}
+		}
 		switch len(outs) {
 		case 1:
 			f0 := outs[0]
