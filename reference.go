@@ -441,7 +441,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 			return first, err
 		}
 		if last, ok := lastDeparture(first); err == nil && ok {
-			until := problem.T0 + spanMargin*(last-problem.T0) + spanLyapunovTimes/s.Lambda
+			until := problem.T0 + float64(spanMargin*(last-problem.T0)) + spanLyapunovTimes/s.Lambda
 			if d := ReferenceDigits(s.Lambda, until-problem.T0, refTolFraction*s.Tol, scale); until < end && d < digits {
 				rep, err := audit(d, until)
 				if err != nil && ctx.Err() != nil {
