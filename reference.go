@@ -492,7 +492,7 @@ func lastDeparture(rep *Report) (float64, bool) {
 // time: MinReferenceDigits digits of local accuracy, less those wanted,
 // consumed at λ/ln 10 digits per time unit, and divided by spanMargin.
 func localSpan(lambda, tol, scale float64) float64 {
-	d := float64(MinReferenceDigits) - math.Log10(math.Max(1, scale)/tol)
+	d := float64(MinReferenceDigits) - float64(math.Log10(math.Max(1, scale)/tol))
 	return math.Max(0, float64(d*math.Ln10)/lambda) / spanMargin
 }
 
