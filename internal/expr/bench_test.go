@@ -13,7 +13,9 @@ import (
 var lorenzVars = []string{"t", "x", "y", "z", "sigma", "rho", "beta"}
 var lorenzRates = []string{"sigma*(y - x)", "x*(rho - z) - y", "x*y - beta*z"}
 
-func lorenzField(tb testing.TB) func(t float64, y, dydt []float64) {
+// lorenzProgram compiles lorenzRates over lorenzVars.
+func lorenzProgram(tb testing.TB) *Program {
+	tb.Helper()
 	g := NewGraph(lorenzVars)
 	outs := make([]Expr, len(lorenzRates))
 	for i, s := range lorenzRates {
@@ -23,7 +25,11 @@ func lorenzField(tb testing.TB) func(t float64, y, dydt []float64) {
 		}
 		outs[i] = e
 	}
-	ev := g.Compile(outs).NewFloat64()
+	return g.Compile(outs)
+}
+
+func lorenzField(tb testing.TB) func(t float64, y, dydt []float64) {
+	ev := lorenzProgram(tb).NewFloat64()
 	copy(ev.Vars()[4:], []float64{10, 28, 8.0 / 3})
 	return ev.FieldFunc()
 }

@@ -91,16 +91,7 @@ func TestInlineKinds(t *testing.T) {
 // that parameters written into Vars after FieldFunc take effect, with the
 // bits of the tape (exact identity).
 func TestInlineLorenz(t *testing.T) {
-	g := NewGraph(lorenzVars)
-	var outs []Expr
-	for _, s := range lorenzRates {
-		e, err := g.Parse(s)
-		if err != nil {
-			t.Fatal(err)
-		}
-		outs = append(outs, e)
-	}
-	p := g.Compile(outs)
+	p := lorenzProgram(t)
 	fast, tape := p.NewFloat64(), p.NewFloat64()
 	tape.rs = nil
 	f := fast.FieldFunc()

@@ -320,13 +320,7 @@ func TestNoAllocs(t *testing.T) {
 // TestFusedLorenz checks the fusion of the Lorenz rates: 8 operations in 4
 // dispatches (σ·(y-x); x·(ρ-z) then -y; x·y - β·z).
 func TestFusedLorenz(t *testing.T) {
-	g := NewGraph(lorenzVars)
-	var outs []Expr
-	for _, s := range lorenzRates {
-		e, _ := g.Parse(s)
-		outs = append(outs, e)
-	}
-	p := g.Compile(outs)
+	p := lorenzProgram(t)
 	if len(p.code) != 8 || len(p.fast) != 4 {
 		t.Errorf("Lorenz: %d plain and %d fused instructions, want 8 and 4", len(p.code), len(p.fast))
 	}
