@@ -474,7 +474,7 @@ func lastDeparture(rep *Report) (float64, bool) {
 	if rep == nil {
 		return 0, false
 	}
-	last, any := math.Inf(-1), false
+	last, found := math.Inf(-1), false
 	for _, r := range rep.Rungs {
 		if r.Effect == "restart" {
 			continue
@@ -482,9 +482,9 @@ func lastDeparture(rep *Report) (float64, bool) {
 		if !r.Departed || r.Error != "" {
 			return 0, false
 		}
-		last, any = math.Max(last, r.AgreesUntil), true
+		last, found = math.Max(last, r.AgreesUntil), true
 	}
-	return last, any
+	return last, found
 }
 
 // localSpan is how long the double-double continuation of TrustSystem's
@@ -529,17 +529,15 @@ func exactTrajectory(sr integrate.Series, problem integrate.Problem, digits int,
 		if len(times) == 0 {
 			return nil, nil
 		}
-		head := times
+		head, accurate := times, times[len(times)-1]
 		k := sort.SearchFloat64s(times, until)
 		if k < len(times) {
-			head = append(append([]float64(nil), times[:k]...), until)
-		} else {
-			until = math.Inf(1)
+			head, accurate = append(append([]float64(nil), times[:k]...), until), until
 		}
 		r, err := integrate.SolveTaylor(ctx, sr, problem.T0, problem.Y0, head, &integrate.TaylorSettings{Digits: digits})
 		if r != nil {
 			*ex = &ExactReference{Method: "Taylor (Jorba–Zou order and step)", Arithmetic: r.Arithmetic,
-				Digits: r.Digits, Order: r.Order, Steps: r.Stats.Steps, Lambda: lambda, AccurateUntil: math.Min(until, times[len(times)-1])}
+				Digits: r.Digits, Order: r.Order, Steps: r.Stats.Steps, Lambda: lambda, AccurateUntil: accurate}
 		}
 		if err != nil {
 			return nil, fmt.Errorf("plumb: reference run at %d digits: %w", digits, err)
