@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // CovariantVectors holds covariant Lyapunov vectors along a trajectory: at
@@ -163,8 +164,8 @@ func (g *ginelliStore) backward(c *CovariantVectors, from, to float64, blocks in
 				cm[i*k+col] = x[i*k+col] / nu
 			}
 			if inWindow {
-				logs[col] -= math.Log(nu)
-				ivLogs = append(ivLogs, -math.Log(nu))
+				logs[col] -= detmath.Log(nu)
+				ivLogs = append(ivLogs, -detmath.Log(nu))
 			}
 		}
 		if inWindow {

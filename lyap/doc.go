@@ -31,8 +31,9 @@
 // Exponents (flows) and MapExponents (maps) follow Benettin, Galgani,
 // Giorgilli & Strelcyn (1980) and Shimada & Nagashima (1979): k tangent
 // vectors are carried along the trajectory and re-orthonormalised by a
-// Householder QR factorisation (gonum's LAPACK) every re-orthonormalisation
-// interval; the exponents are the time averages of ln R_ii. For a flow the
+// Householder QR factorisation (written here, bit-identical on every
+// architecture) every re-orthonormalisation interval; the exponents are
+// the time averages of ln R_ii. For a flow the
 // trajectory and its tangent vectors form one augmented system of dimension
 // n(1+k), integrated by any method of package integrate with error control.
 // The interval adapts to the growth of the tangent vectors, keeping stretch

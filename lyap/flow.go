@@ -22,7 +22,7 @@ import (
 // an augmented system of dimension n(1+k) (plus one component holding the
 // integral of tr J when k = n), by s.Method with error control on every
 // component. Every re-orthonormalisation interval the tangent vectors are
-// replaced by the Q factor of V = QR (gonum's Householder QR, workspaces
+// replaced by the Q factor of V = QR (a Householder QR, workspaces
 // reused), and ln R_ii is accumulated; after the transient, exponent i is the
 // accumulated ln R_ii divided by the time averaged. The interval adapts to
 // the growth of the tangent vectors unless s.Interval fixes it.

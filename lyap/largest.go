@@ -7,6 +7,7 @@ import (
 	"math"
 
 	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // Largest estimates the largest Lyapunov exponent of the flow p without a
@@ -168,7 +169,7 @@ func (r *twoRun) renorm(t float64, last bool) bool {
 		return false
 	}
 	r.qrs++
-	r.logs[0] = math.Log(d / r.d0)
+	r.logs[0] = detmath.Log(d / r.d0)
 	elapsed := t - r.lastQR
 	r.lastQR = t
 	_, stop := r.avg.observe(t, r.logs, last)
@@ -335,7 +336,7 @@ func (r *mapTwoRun) renorm(last bool) bool {
 		r.x2[i] = r.x[i] + float64(f*(r.x2[i]-r.x[i]))
 	}
 	r.qrs++
-	r.logs[0] = math.Log(d / r.d0)
+	r.logs[0] = detmath.Log(d / r.d0)
 	elapsed := r.it - r.last
 	r.last = r.it
 	_, stop := r.avg.observe(float64(r.it), r.logs, last)

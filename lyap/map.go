@@ -5,8 +5,7 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/blas/blas64"
-	"gonum.org/v1/gonum/lapack/lapack64"
+	"github.com/plumbdyn/plumb/internal/detmath"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -52,13 +51,13 @@ func hasJacobian(m Map) bool {
 // x0 (all of them when k = m.Dim()), per iteration, by the QR method of
 // Benettin et al. and Shimada & Nagashima applied to the tangent map
 // V_{j+1} = J(x_j) V_j: every re-orthonormalisation interval (adaptive unless
-// s.IntervalSteps fixes it) V is replaced by Q of V = QR (gonum's Householder
+// s.IntervalSteps fixes it) V is replaced by Q of V = QR (a Householder
 // QR) and ln R_ii accumulated. s.Discard iterations are discarded first, then
 // s.Iterations are averaged, in s.Blocks batch-means blocks for the standard
 // errors.
 //
 // The Spectrum carries CheckLogDet (k = n: the sum of the exponents against
-// the mean of ln|det J| along the orbit, det from gonum's LU) and
+// the mean of ln|det J| along the orbit, det from an LU factorisation) and
 // CheckPairing (k = n, s.Hamiltonian: a symplectic map).
 //
 // Errors before any work (nil Spectrum): a nil m (ErrSystem), len(x0) !=
@@ -101,7 +100,6 @@ type mapRun struct {
 	J          *mat.Dense
 	jd         []float64
 	lu         []float64
-	ipiv       []int
 	qr         *qrWork
 	bm         *batchMeans
 	hist       *history
@@ -174,7 +172,6 @@ func newMapRun(m Map, x0 []float64, k int, s *Settings) (*mapRun, error) {
 	r.jd = r.J.RawMatrix().Data
 	if r.det {
 		r.lu = make([]float64, n*n)
-		r.ipiv = make([]int, n)
 	}
 	r.rule.target = cfg.maxGrowthLog
 	r.qr = newQR(n, k)
@@ -255,14 +252,39 @@ func canceledAt(ctx context.Context, it int) error {
 	return nil
 }
 
-// logAbsDet is ln|det J| by gonum's LU (Dgetrf) on a copy of J.
+// logAbsDet is ln|det J| = Σ ln|U_ii| of the LU factorisation of a copy of
+// J with partial pivoting (Golub & Van Loan 2013, Alg. 3.4.1), written
+// here with a fixed order of operations and explicit rounding of products,
+// so that it has the same bits on every architecture (as qrWork). A
+// singular J gives -Inf.
 func (r *mapRun) logAbsDet() float64 {
-	copy(r.lu, r.jd)
 	n := r.n
-	lapack64.Getrf(blas64.General{Rows: n, Cols: n, Stride: n, Data: r.lu}, r.ipiv)
+	a := r.lu[:n*n]
+	copy(a, r.jd)
 	var s float64
-	for i := 0; i < n; i++ {
-		s += math.Log(math.Abs(r.lu[i*n+i]))
+	for j := 0; j < n; j++ {
+		p := j
+		for i := j + 1; i < n; i++ {
+			if math.Abs(a[i*n+j]) > math.Abs(a[p*n+j]) {
+				p = i
+			}
+		}
+		if p != j {
+			for c := j; c < n; c++ {
+				a[j*n+c], a[p*n+c] = a[p*n+c], a[j*n+c]
+			}
+		}
+		d := a[j*n+j]
+		s += detmath.Log(math.Abs(d))
+		if d == 0 {
+			return s
+		}
+		for i := j + 1; i < n; i++ {
+			l := a[i*n+j] / d
+			for c := j + 1; c < n; c++ {
+				a[i*n+c] -= float64(l * a[j*n+c])
+			}
+		}
 	}
 	return s
 }

@@ -3,6 +3,8 @@ package lyap
 import (
 	"math"
 	"sort"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // KaplanYorke returns the Kaplan–Yorke (Lyapunov) dimension of a spectrum,
@@ -137,5 +139,5 @@ func Horizon(lambda, delta0, tol float64) float64 {
 	case delta0 == 0 || lambda <= 0:
 		return math.Inf(1)
 	}
-	return math.Log(tol/delta0) / lambda
+	return detmath.Log(tol/delta0) / lambda
 }

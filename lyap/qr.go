@@ -3,33 +3,40 @@ package lyap
 import (
 	"math"
 
-	"gonum.org/v1/gonum/blas/blas64"
-	"gonum.org/v1/gonum/lapack/lapack64"
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
-// qrWork re-orthonormalises k tangent vectors of dimension n by gonum's
-// Householder QR (LAPACK Dgeqrf and Dorgqr), with workspaces made once.
-// Signs are fixed so that every diagonal entry of R is positive; then Q
-// varies continuously along a trajectory and R is the stretch of the basis.
+// qrWork re-orthonormalises k tangent vectors of dimension n by a
+// Householder QR factorisation, with workspaces made once. Signs are fixed
+// so that every diagonal entry of R is positive; then Q varies
+// continuously along a trajectory and R is the stretch of the basis.
+//
+// The factorisation is written here, not taken from a LAPACK: every sum
+// runs in a fixed order and every product is rounded explicitly
+// (float64(x*y)), and ln R_ii is detmath.Log, so Q, R and the exponents
+// have the same bits on every architecture (gonum's kernels and math.Log
+// differ between amd64 and arm64 in the last bits, and a tangent basis
+// that feeds the step-size control then changes the whole run).
+//
+// References:
+//
+//	A. S. Householder, Unitary triangularization of a nonsymmetric matrix,
+//	  J. ACM 5 (1958) 339–342.
+//	G. H. Golub, C. F. Van Loan, Matrix Computations, 4th ed., Johns
+//	  Hopkins 2013, Sect. 5.1–5.2 (Householder vectors, QR, forming Q by
+//	  backward accumulation).
 type qrWork struct {
 	n, k int
-	a    []float64 // n×k, row-major, stride k: the matrix, then Q
-	tau  []float64
-	work []float64
+	a    []float64 // n×k, row-major, stride k: the matrix, reflectors below the diagonal
+	beta []float64 // the reflectors' factors: H_j = I - beta_j·v_j·v_jᵀ, v_jj = 1
+	q    []float64 // n×k: Q
 	r    []float64 // k×k upper triangle of the last factorisation
 	logR []float64 // ln R_ii of the last factorisation
 }
 
 func newQR(n, k int) *qrWork {
-	w := &qrWork{n: n, k: k, a: make([]float64, n*k), tau: make([]float64, k), r: make([]float64, k*k), logR: make([]float64, k)}
-	g := blas64.General{Rows: n, Cols: k, Stride: k, Data: w.a}
-	q := make([]float64, 1)
-	lapack64.Geqrf(g, w.tau, q, -1)
-	lw := int(q[0])
-	lapack64.Orgqr(g, w.tau, q, -1)
-	lw = max(lw, int(q[0]), k, 1)
-	w.work = make([]float64, lw)
-	return w
+	return &qrWork{n: n, k: k, a: make([]float64, n*k), beta: make([]float64, k), q: make([]float64, n*k),
+		r: make([]float64, k*k), logR: make([]float64, k)}
 }
 
 // factor replaces v (n×k, row-major) by the orthonormal factor Q of v = QR,
@@ -43,13 +50,56 @@ func (w *qrWork) factor(v []float64) (int, float64) {
 			return i % k, x
 		}
 	}
-	copy(w.a, v[:n*k])
-	g := blas64.General{Rows: n, Cols: k, Stride: k, Data: w.a}
-	lapack64.Geqrf(g, w.tau, w.work, len(w.work))
+	a := w.a[:n*k]
+	copy(a, v[:n*k])
+	for j := 0; j < k; j++ {
+		// Column j from row j down: x. The reflector maps x to alpha·e_j
+		// with alpha = -sign(x_j)·|x| (no cancellation in v_j = x_j - alpha).
+		// |x| is scaled by its largest entry, so no square overflows.
+		amax := 0.0
+		for i := j; i < n; i++ {
+			amax = math.Max(amax, math.Abs(a[i*k+j]))
+		}
+		if amax == 0 {
+			return j, 0
+		}
+		var ss float64
+		for i := j; i < n; i++ {
+			u := a[i*k+j] / amax
+			ss += float64(u * u)
+		}
+		norm := float64(amax * math.Sqrt(ss))
+		xj := a[j*k+j]
+		alpha := -norm
+		if xj < 0 {
+			alpha = norm
+		}
+		vj := xj - alpha
+		// v = (1, x_(j+1)/vj, ...), beta = -vj/alpha, so that
+		// H = I - beta·v·vᵀ and H·x = alpha·e_j.
+		for i := j + 1; i < n; i++ {
+			a[i*k+j] /= vj
+		}
+		beta := -vj / alpha
+		w.beta[j] = beta
+		a[j*k+j] = alpha
+		// Apply H to the columns right of j.
+		for c := j + 1; c < k; c++ {
+			d := a[j*k+c]
+			for i := j + 1; i < n; i++ {
+				d += float64(a[i*k+j] * a[i*k+c])
+			}
+			d = float64(beta * d)
+			a[j*k+c] -= d
+			for i := j + 1; i < n; i++ {
+				a[i*k+c] -= float64(d * a[i*k+j])
+			}
+		}
+	}
 	for i := 0; i < k; i++ {
 		for j := 0; j < k; j++ {
 			if j >= i {
-				w.r[i*k+j] = w.a[i*k+j]
+				w.r[i*k+j] = a[i*k+j]
 			} else {
 				w.r[i*k+j] = 0
 			}
@@ -61,21 +111,41 @@ func (w *qrWork) factor(v []float64) (int, float64) {
 			return j, d
 		}
 	}
-	lapack64.Orgqr(g, w.tau, w.work, len(w.work))
+	// Q = H_0 H_1 ... H_(k-1) applied to the first k columns of the
+	// identity, accumulated backward (H_j touches rows j.. only).
+	q := w.q[:n*k]
+	clear(q)
+	for j := 0; j < k; j++ {
+		q[j*k+j] = 1
+	}
+	for j := k - 1; j >= 0; j-- {
+		beta := w.beta[j]
+		for c := j; c < k; c++ {
+			d := q[j*k+c]
+			for i := j + 1; i < n; i++ {
+				d += float64(a[i*k+j] * q[i*k+c])
+			}
+			d = float64(beta * d)
+			q[j*k+c] -= d
+			for i := j + 1; i < n; i++ {
+				q[i*k+c] -= float64(d * a[i*k+j])
+			}
+		}
+	}
 	for j := 0; j < k; j++ {
 		d := w.r[j*k+j]
 		if d < 0 {
 			for i := 0; i < n; i++ {
-				w.a[i*k+j] = -w.a[i*k+j]
+				q[i*k+j] = -q[i*k+j]
 			}
 			for c := j; c < k; c++ {
 				w.r[j*k+c] = -w.r[j*k+c]
 			}
 			d = -d
 		}
-		w.logR[j] = math.Log(d)
+		w.logR[j] = detmath.Log(d)
 	}
-	copy(v[:n*k], w.a)
+	copy(v[:n*k], q)
 	return -1, 0
 }
 

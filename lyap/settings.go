@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // Defaults used when a field of Settings is zero or Settings is nil.
@@ -161,7 +162,7 @@ func resolve(s *Settings) (*config, error) {
 	if c.MaxGrowth <= 1 || c.MaxGrowth > 1e12 {
 		return nil, settingErr("MaxGrowth", c.MaxGrowth, "must be in (1, 1e12]")
 	}
-	c.maxGrowthLog = math.Log(c.MaxGrowth)
+	c.maxGrowthLog = detmath.Log(c.MaxGrowth)
 	if c.Blocks == 0 {
 		c.Blocks = DefaultBlocks
 	}
