@@ -33,8 +33,8 @@ func ExampleAudit() {
 		fmt.Printf("%s: agrees until t=%.2g (predicted %.2g), %v growth\n", r.Rung.Name, r.Horizon, r.Predicted, r.Growth.Kind)
 	}
 	// Output:
-	// restart at t=40, 3 places: agrees until t=49 (predicted 48), exponential growth
-	// 24 bits: agrees until t=21 (predicted 15), exponential growth
+	// restart at t=40, 3 places: agrees until t=46 (predicted 49), exponential growth
+	// 24 bits: agrees until t=19 (predicted 15), exponential growth
 }
 
 // Rounding shows what float32 storage and a three-decimal printout keep of

@@ -164,8 +164,19 @@ func (st *Stepper) initialStep(order int) float64 {
 	var h1 float64
 	if der <= 1e-15 {
 		h1 = math.Max(1e-6, h0*1e-3)
-	} else {
-		h1 = math.Pow(0.01/der, 1/float64(order))
+	} else if x := 0.01 / der; x > 0 {
+		// (0.01/der)^(1/order) by the controller's own log2 and 2^x:
+		// math.Pow is computed differently on amd64 and arm64 (assembly
+		// or fused pure Go), and the first step would then differ in its
+		// last bits from one architecture to the other, and with it the
+		// whole run. A relative error of 4e-6 is nothing to a first guess.
+		var lx float64
+		if x < 0x1p-1022 { // subnormal: scale into the normal range first
+			lx = log2Ctl(float64(x*0x1p54)) - 54
+		} else {
+			lx = log2Ctl(x)
+		}
+		h1 = exp2Ctl(lx / float64(order))
 	}
 	return math.Min(math.Min(100*h0, h1), st.cfg.hmax)
 }
