@@ -11,6 +11,7 @@ import (
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/internal/detmath"
 	"github.com/plumbdyn/plumb/lyap"
 )
 
@@ -314,7 +315,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 			r := &rep.Rungs[i]
 			r.Predicted = float64(r.Start)
 			if r.Delta0 < tol {
-				r.Predicted += math.Log(tol/r.Delta0) / lambda
+				r.Predicted += detmath.Log(tol/r.Delta0) / lambda
 			}
 		}
 	}
@@ -531,7 +532,7 @@ func fitMapGrowth(out *MapRungReport, tol float64) {
 			continue
 		}
 		xs = append(xs, float64(out.Start+k))
-		ly = append(ly, math.Log(env))
+		ly = append(ly, detmath.Log(env))
 		if env >= tol {
 			break
 		}

@@ -9,6 +9,7 @@ import (
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/internal/detmath"
 	"github.com/plumbdyn/plumb/internal/expr"
 	"github.com/plumbdyn/plumb/lyap"
 )
@@ -106,7 +107,7 @@ type ReferenceCheck struct {
 // the growth e^(lambda T) of the local errors, log10(scale/tol) are wanted
 // at the end.
 func ReferenceDigits(lambda, T, tol, scale float64) int {
-	d := float64(math.Log10(math.Max(1, scale) / tol))
+	d := float64(detmath.Log(math.Max(1, scale)/tol) / math.Ln10)
 	if lambda > 0 {
 		d += float64(float64(lambda*T) / math.Ln10)
 	}
@@ -492,7 +493,7 @@ func lastDeparture(rep *Report) (float64, bool) {
 // time: MinReferenceDigits digits of local accuracy, less those wanted,
 // consumed at λ/ln 10 digits per time unit, and divided by spanMargin.
 func localSpan(lambda, tol, scale float64) float64 {
-	d := float64(MinReferenceDigits) - float64(math.Log10(math.Max(1, scale)/tol))
+	d := float64(MinReferenceDigits) - float64(detmath.Log(math.Max(1, scale)/tol)/math.Ln10)
 	return math.Max(0, float64(d*math.Ln10)/lambda) / spanMargin
 }
 

@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // AuditSettings controls Audit. A nil *AuditSettings is invalid (Tol has no
@@ -639,7 +641,7 @@ func (res *AuditResult) Predict(lambda float64) {
 		}
 		r.Predicted = t0
 		if r.Delta0 < res.Tol {
-			r.Predicted = t0 + math.Log(res.Tol/r.Delta0)/lambda
+			r.Predicted = t0 + detmath.Log(res.Tol/r.Delta0)/lambda
 		}
 	}
 	if res.Roundoff != nil {
@@ -666,7 +668,7 @@ func (a *auditor) horizon(d []float64, start int, tStart float64) (float64, bool
 		if dp <= 0 {
 			return tk, true
 		}
-		return tp + (tk-tp)*math.Log(a.tol/dp)/math.Log(v/dp), true
+		return tp + (tk-tp)*detmath.Log(a.tol/dp)/detmath.Log(v/dp), true
 	}
 	if len(d) == 0 {
 		return tStart, false
@@ -696,7 +698,7 @@ func fitGrowth(t, d []float64, tStart, ceil float64) Growth {
 		}
 		rising = true
 		x = append(x, t[k])
-		ly = append(ly, math.Log(env))
+		ly = append(ly, detmath.Log(env))
 		if env >= ceil {
 			break
 		}
@@ -736,7 +738,7 @@ func FitGrowth(t, logEnv []float64, tStart float64) Growth {
 	ly := logEnv[:len(t)]
 	lx := make([]float64, len(t))
 	for k, tk := range t {
-		lx[k] = math.Log(tk - tStart)
+		lx[k] = detmath.Log(tk - tStart)
 	}
 	g.From, g.To = t[0], t[len(t)-1]
 	g.Rate, g.RateErr, g.RSSExp = lineFit(t, ly)

@@ -7,6 +7,7 @@ import (
 	"math/big"
 
 	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // Series supplies the Taylor coefficients of the solution of y' = f(t, y)
@@ -93,13 +94,17 @@ type TaylorResult struct {
 // unit time for analytic fields (the step is then about ρ/e², ρ the radius
 // of convergence of the solution's series).
 func TaylorOrder(eps float64) int {
-	return int(math.Ceil(-math.Log(eps)/2)) + 1
+	return int(math.Ceil(-detmath.Log(eps)/2)) + 1
 }
 
 // stepSafety shrinks the step of the Jorba–Zou rule (common practice: it
 // keeps the first neglected term below eps when the last two coefficients
 // underestimate the tail).
 const stepSafety = 0.9
+
+// log2Of10 is log2(10) (a constant, where math.Log2 is computed differently
+// on different architectures).
+const log2Of10 = 3.32192809488736234787031942948939017586
 
 // guardBitsTaylor are the bits beyond Digits·log2 10 of a big.Float run
 // (common practice: they absorb the rounding of O(order²) sums per step).
@@ -214,7 +219,7 @@ func SolveTaylor(ctx context.Context, f Series, t0 float64, y0 []float64, times 
 		err = r.runDD(f, y0)
 	} else {
 		res.Arithmetic = "big.Float"
-		res.Prec = uint(math.Ceil(float64(set.Digits)*math.Log2(10))) + guardBitsTaylor
+		res.Prec = uint(math.Ceil(float64(set.Digits)*log2Of10)) + guardBitsTaylor
 		err = r.runBig(f, y0, res.Prec)
 	}
 	return res, err
@@ -238,13 +243,13 @@ type taylorRun struct {
 // coefficient) and the state scale; +Inf when both vanish (a polynomial
 // solution).
 func (r *taylorRun) stepSize(lc [2]float64, scale float64) float64 {
-	le := math.Log(float64(r.eps * scale))
+	le := detmath.Log(float64(r.eps * scale))
 	h := math.Inf(1)
 	for i, j := range []int{r.order - 1, r.order} {
 		if j < 1 || math.IsInf(lc[i], -1) {
 			continue
 		}
-		h = math.Min(h, math.Exp((le-lc[i])/float64(j)))
+		h = math.Min(h, detmath.Exp((le-lc[i])/float64(j)))
 	}
 	return stepSafety * h
 }
@@ -340,7 +345,7 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 			scale = math.Max(scale, math.Abs(y[i].Hi))
 			for q, j := range []int{p - 1, p} {
 				if a := math.Abs(c[i][j].Hi); a > 0 {
-					lc[q] = math.Max(lc[q], math.Log(a))
+					lc[q] = math.Max(lc[q], detmath.Log(a))
 				}
 			}
 		}
@@ -501,5 +506,5 @@ func logAbs(x *big.Float) float64 {
 	var m big.Float
 	e := x.MantExp(&m)
 	mf, _ := m.Float64()
-	return math.Log(math.Abs(mf)) + float64(float64(e)*math.Ln2)
+	return detmath.Log(math.Abs(mf)) + float64(float64(e)*math.Ln2)
 }
