@@ -546,7 +546,7 @@ func (a *auditor) spread() (spread, mag float64) {
 			x := v[i]
 			mag += float64(x * x)
 			if P > 0 {
-				sn0, c0 := math.Sincos(2 * math.Pi * x / P)
+				sn0, c0 := detmath.Sincos(2 * math.Pi * x / P)
 				sn += sn0
 				c += c0
 			} else {

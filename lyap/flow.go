@@ -438,7 +438,7 @@ func pairingCheck(sp *Spectrum) Check {
 		if d >= c.Residual {
 			c.Residual = d
 			if sp.StdErr != nil {
-				c.StdErr = math.Hypot(sp.StdErr[a], sp.StdErr[b])
+				c.StdErr = math.Sqrt(float64(sp.StdErr[a]*sp.StdErr[a]) + float64(sp.StdErr[b]*sp.StdErr[b]))
 			}
 		}
 	}

@@ -44,13 +44,13 @@ func Example_spectrum() {
 	// system: lorenz (Lorenz convection) sigma=10 rho=28 beta=2.6666666666666665
 	//
 	// exponent  value     std err
-	// lambda_1  0.911726  0.043
+	// lambda_1  0.896869  0.047
 	// (per unit time, natural log)
 	//
 	// Kaplan–Yorke dimension               1 (a lower bound: more exponents could raise it)
-	// entropy (sum of positive exponents)  0.9117 per unit time (a lower bound: more exponents could raise it)
-	// Lyapunov time 1/lambda_max           1.097
-	// run                                  averaged t = 100.0035669 .. 300 in 32 blocks; Dormand–Prince 5(4), exact Jacobian
-	// work                                 55182 steps, 31 rejected, 331856 evaluations, 576 re-orthonormalisations
+	// entropy (sum of positive exponents)  0.8969 per unit time (a lower bound: more exponents could raise it)
+	// Lyapunov time 1/lambda_max           1.115
+	// run                                  averaged t = 100.0017276 .. 300 in 32 blocks; Dormand–Prince 5(4), exact Jacobian
+	// work                                 55050 steps, 25 rejected, 331028 evaluations, 576 re-orthonormalisations
 	// status                               completed
 }

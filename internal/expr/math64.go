@@ -1,6 +1,10 @@
 package expr
 
-import "math"
+import (
+	"math"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
+)
 
 // eval1 applies a one-operand function in float64.
 func eval1(op Op, x float64) float64 {
@@ -8,15 +12,15 @@ func eval1(op Op, x float64) float64 {
 	case OpNeg:
 		return -x
 	case OpSin:
-		return math.Sin(x)
+		return detmath.Sin(x)
 	case OpCos:
-		return math.Cos(x)
+		return detmath.Cos(x)
 	case OpTan:
-		return math.Tan(x)
+		return detmath.Tan(x)
 	case OpExp:
-		return math.Exp(x)
+		return detmath.Exp(x)
 	case OpLog:
-		return math.Log(x)
+		return detmath.Log(x)
 	case OpSqrt:
 		return math.Sqrt(x)
 	case OpAbs:

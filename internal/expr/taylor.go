@@ -3,6 +3,8 @@ package expr
 import (
 	"fmt"
 	"math"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // Taylor computes truncated Taylor series (jets) of a Program's outputs
@@ -140,7 +142,7 @@ func (t *Taylor) order(k int) {
 			// u^w = exp(w·log u): aux = log u, au2 = w·log u.
 			l, m := t.aux[i], t.au2[i]
 			if k == 0 {
-				l[0] = math.Log(u[0])
+				l[0] = detmath.Log(u[0])
 				m[0] = float64(w[0] * l[0])
 				v[0] = pow(u[0], w[0])
 				break
@@ -150,13 +152,13 @@ func (t *Taylor) order(k int) {
 			v[k] = wconv(m, v, k) / fk
 		case OpExp:
 			if k == 0 {
-				v[0] = math.Exp(u[0])
+				v[0] = detmath.Exp(u[0])
 			} else {
 				v[k] = wconv(u, v, k) / fk
 			}
 		case OpLog:
 			if k == 0 {
-				v[0] = math.Log(u[0])
+				v[0] = detmath.Log(u[0])
 			} else {
 				v[k] = (u[k] - wconvPart(v, u, k)/fk) / u[0]
 			}
@@ -179,7 +181,7 @@ func (t *Taylor) order(k int) {
 			}
 			if k == 0 {
 				if sg < 0 {
-					s[0], co[0] = math.Sincos(u[0])
+					s[0], co[0] = detmath.Sincos(u[0])
 				} else {
 					s[0], co[0] = math.Sinh(u[0]), math.Cosh(u[0])
 				}
@@ -195,7 +197,7 @@ func (t *Taylor) order(k int) {
 			}
 			if k == 0 {
 				if sg > 0 {
-					v[0] = math.Tan(u[0])
+					v[0] = detmath.Tan(u[0])
 				} else {
 					v[0] = math.Tanh(u[0])
 				}

@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/mat"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // Products are wrapped in float64() where a fused multiply-add could form, so
@@ -88,14 +90,14 @@ func init() {
 			return func(_ float64, y, d []float64) {
 				t1, t2, w1, w2 := y[0], y[1], y[2], y[3]
 				dl := t1 - t2
-				sd, cd := math.Sincos(dl)
-				den := 2*m1 + m2 - float64(m2*math.Cos(2*dl))
+				sd, cd := detmath.Sincos(dl)
+				den := 2*m1 + m2 - float64(m2*detmath.Cos(2*dl))
 				d[0] = w1
 				d[1] = w2
-				num1 := -float64(g*(2*m1+m2)*math.Sin(t1)) - float64(m2*g*math.Sin(t1-2*t2)) -
+				num1 := -float64(g*(2*m1+m2)*detmath.Sin(t1)) - float64(m2*g*detmath.Sin(t1-2*t2)) -
 					float64(2*sd*m2*(float64(w2*w2*l2)+float64(w1*w1*l1*cd)))
 				d[2] = num1 / float64(l1*den)
-				num2 := 2 * sd * (float64(w1*w1*l1*(m1+m2)) + float64(g*(m1+m2)*math.Cos(t1)) + float64(w2*w2*l2*m2*cd))
+				num2 := 2 * sd * (float64(w1*w1*l1*(m1+m2)) + float64(g*(m1+m2)*detmath.Cos(t1)) + float64(w2*w2*l2*m2*cd))
 				d[3] = num2 / float64(l2*den)
 			}
 		},
@@ -179,7 +181,7 @@ func init() {
 					dst[1] = q[1] / r
 				},
 				H: func(q, p []float64) float64 {
-					return float64(0.5*(float64(p[0]*p[0])+float64(p[1]*p[1]))) - 1/math.Hypot(q[0], q[1])
+					return float64(0.5*(float64(p[0]*p[0])+float64(p[1]*p[1]))) - 1/math.Sqrt(float64(q[0]*q[0])+float64(q[1]*q[1]))
 				},
 			}
 		},

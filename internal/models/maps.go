@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/mat"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // The built-in maps. For an entry with Map set, Field writes the next state
@@ -77,7 +79,7 @@ func init() {
 		Field: func(p []float64) func(float64, []float64, []float64) {
 			k := p[0]
 			return func(_ float64, x, d []float64) {
-				pn := x[1] + float64(k*math.Sin(x[0]))
+				pn := x[1] + float64(k*detmath.Sin(x[0]))
 				d[0] = x[0] + pn
 				d[1] = pn
 			}
@@ -85,7 +87,7 @@ func init() {
 		Jac: func(p []float64) func(float64, []float64, *mat.Dense) {
 			k := p[0]
 			return func(_ float64, x []float64, j *mat.Dense) {
-				c := float64(k * math.Cos(x[0]))
+				c := float64(k * detmath.Cos(x[0]))
 				j.Set(0, 0, 1+c)
 				j.Set(0, 1, 1)
 				j.Set(1, 0, c)
@@ -107,7 +109,7 @@ func init() {
 		Field: func(p []float64) func(float64, []float64, []float64) {
 			u := p[0]
 			return func(_ float64, x, d []float64) {
-				s, c := math.Sincos(ikedaPhase(x[0], x[1]))
+				s, c := detmath.Sincos(ikedaPhase(x[0], x[1]))
 				d[0] = 1 + float64(u*(float64(x[0]*c)-float64(x[1]*s)))
 				d[1] = u * (float64(x[0]*s) + float64(x[1]*c))
 			}
@@ -119,7 +121,7 @@ func init() {
 				r2 := 1 + float64(xx*xx) + float64(yy*yy)
 				// d(phase)/dx = 12x/r2², d(phase)/dy = 12y/r2².
 				px, py := 12*xx/float64(r2*r2), 12*yy/float64(r2*r2)
-				s, c := math.Sincos(ikedaPhase(xx, yy))
+				s, c := detmath.Sincos(ikedaPhase(xx, yy))
 				a := -float64(xx*s) - float64(yy*c) // d(x c - y s)/d(phase)
 				b := float64(xx*c) - float64(yy*s)  // d(x s + y c)/d(phase)
 				j.Set(0, 0, u*(c+float64(a*px)))
