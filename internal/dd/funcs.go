@@ -3,6 +3,8 @@ package dd
 import (
 	"math"
 	"math/big"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // Constants rounded to double-double from their first 40 decimal digits.
@@ -69,18 +71,19 @@ func Exp(x Float) Float {
 }
 
 // Log returns the natural logarithm of x by one Newton step for e^y = x from
-// y0 = math.Log(Hi): y = y0 + x·e^(-y0) - 1. The absolute error is about
-// 1e-31·max(1, |log x|) (measured 1.3e-31 on [1e-3, 1e3]), so the relative error grows near x = 1 where log x
-// is small (common practice for double-double logarithms: Bailey, Hida, Li
+// y0 = ln Hi (detmath.Log, the same bits on every architecture):
+// y = y0 + x·e^(-y0) - 1. The absolute error is about 1e-31·max(1, |log x|)
+// (measured 1.3e-31 on [1e-3, 1e3]), so the relative error grows near x = 1
+// where log x is small (common practice for double-double logarithms: Bailey, Hida, Li
 // 2001).
 //
 // Special cases: Log(+Inf) = +Inf, Log(0) = -Inf, Log(x < 0) = NaN,
 // Log(NaN) = NaN.
 func Log(x Float) Float {
 	if x.Hi <= 0 || math.IsInf(x.Hi, 0) || math.IsNaN(x.Hi) {
-		return Float{math.Log(x.Hi), 0}
+		return Float{detmath.Log(x.Hi), 0}
 	}
-	y0 := From(math.Log(x.Hi))
+	y0 := From(detmath.Log(x.Hi))
 	return Add(y0, Sub(Mul(x, Exp(Neg(y0))), one))
 }
 

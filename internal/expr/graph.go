@@ -316,7 +316,7 @@ func (g *Graph) Pow(a, b Expr) Expr {
 	ca, oka := g.Value(a)
 	cb, okb := g.Value(b)
 	if oka && okb {
-		if e, ok := g.fold(math.Pow(ca, cb)); ok {
+		if e, ok := g.fold(pow(ca, cb)); ok { // the evaluators' own power, so a folded constant has their bits
 			return e
 		}
 	}
