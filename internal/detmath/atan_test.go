@@ -143,7 +143,7 @@ const atanMaxULP = 2
 func TestAtan(t *testing.T) {
 	rng := rand.New(rand.NewPCG(11, 12))
 	var xs []float64
-	for range 2000 {
+	for range 1000 {
 		xs = append(xs,
 			rng.Float64(),                                     // [0, 1): the table range
 			rng.Float64()*0.25,                                // the direct series
@@ -198,7 +198,7 @@ func TestAtan2(t *testing.T) {
 		}
 		return 1
 	}
-	for range 2000 {
+	for range 1000 {
 		x := sign() * math.Exp(rng.Float64()*40-20)
 		ps = append(ps,
 			pair{sign() * rng.Float64() * math.Abs(x), x},                                                                            // |y| <= |x|
