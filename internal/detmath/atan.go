@@ -29,7 +29,7 @@ var atanBase = [7][4][2]float64{
 // column j of atanBase.
 var atanSign = [4]float64{1, -1, -1, 1}
 
-// Atan returns the arctangent of x in radians, within 2 ulp (0.63 ulp
+// Atan returns the arctangent of x in radians, within 2 ulp (0.90 ulp
 // measured against math/big at 200 bits, see TestAtan).
 //
 // Special cases are:

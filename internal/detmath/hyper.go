@@ -160,7 +160,7 @@ func expPair(x float64) (eh, el, bh, bl float64) {
 }
 
 // expDD returns hi, lo and k with e^(xh+xl) = 2^k·(hi + lo) to about 2^-58
-// relative (2^-58.5 measured, see TestExpDD), for |xh| <= 746 and |xl| <=
+// relative (2^-58.5 at most measured, see TestExpDD), for |xh| <= 746 and |xl| <=
 // 2^-40 (the low part of a double-double, or 0); hi + lo is in [0.7, 1.42].
 //
 // Method: the reduction of Exp, x = k·ln 2 + r, with the rounding of
