@@ -283,7 +283,9 @@ func bitsHash(n int, seed uint64, gen func(*rand.Rand) float64, f func(float64) 
 // The hashes were recorded on linux/amd64 and the test passes unchanged
 // on linux/arm64 (cross-compiled with GOARCH=arm64 and run under
 // qemu-aarch64), where the Go compiler would fuse any unrounded product
-// into an FMA; a change of any last bit changes the hash.
+// into an FMA; a change of any last bit changes the hash. The argument
+// generators use no product followed by a sum, so that the arguments are
+// the same bits on both too.
 func TestBitsGolden(t *testing.T) {
 	wide := func(r *rand.Rand) float64 { // both signs, 2^-1010 .. 2^1010 (exact operations only)
 		x := math.Ldexp(1+r.Float64(), r.IntN(2021)-1010)
@@ -300,10 +302,10 @@ func TestBitsGolden(t *testing.T) {
 		gen  func(*rand.Rand) float64
 		want uint64
 	}{
-		{"Atan", Atan, wide, 0x37ce0a7c8c191557},
+		{"Atan", Atan, wide, 0xaa4376f9ec78c416},
 		{"Atan2", func(x float64) float64 { return Atan2(x, 1/(x+0.3)) }, wide, 0x15c1924c6ee05cec},
-		{"AtanUnit", Atan, unit, 0x6c37efd4d5b145e8},
-		{"Atan2Unit", func(x float64) float64 { return Atan2(x, -1.5) }, unit, 0xc63824a29f925096},
+		{"AtanUnit", Atan, unit, 0x51076a7da1676c11},
+		{"Atan2Unit", func(x float64) float64 { return Atan2(x, -1.5) }, unit, 0x66a00486a7365f40},
 		{"Sinh", Sinh, mid, 0x320fed878a9c81b4},
 		{"Cosh", Cosh, mid, 0x6e75f2ba0fee9801},
 		{"SinhUnit", Sinh, unit, 0xe60d1cad9e1aa807},
