@@ -106,7 +106,7 @@ func Cosh(x float64) float64 {
 //	W. J. Cody, W. Waite, Software Manual for the Elementary Functions,
 //	  Prentice-Hall 1980 (the ranges of the hyperbolic functions).
 //	M. Abramowitz, I. A. Stegun, Handbook of Mathematical Functions, NBS
-//	  1964, 4.5.64 (the Taylor series of tanh).
+//	  1964, sec. 4.5 (the Taylor series of tanh).
 //	T. J. Dekker, A floating-point technique for extending the available
 //	  precision, Numer. Math. 18 (1971) 224–242.
 func Tanh(x float64) float64 {
