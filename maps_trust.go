@@ -511,9 +511,9 @@ func roundingUnit(r integrate.Rounding, mag float64) float64 {
 	case integrate.BinaryBits:
 		return math.Ldexp(mag, -r.N)
 	case integrate.SignificantDigits:
-		return 5 * math.Pow(10, -float64(r.N)) * mag
+		return 5 * detmath.Pow(10, -float64(r.N)) * mag
 	case integrate.DecimalPlaces:
-		return 5 * math.Pow(10, -float64(r.N+1))
+		return 5 * detmath.Pow(10, -float64(r.N+1))
 	}
 	return 0
 }

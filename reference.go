@@ -195,7 +195,7 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 		res.Lambda = lambda
 		tol := set.Tol
 		if tol == 0 {
-			tol = math.Pow(10, -DefaultReferenceDigits) * math.Max(1, scale)
+			tol = detmath.Pow(10, -DefaultReferenceDigits) * math.Max(1, scale)
 		}
 		digits = ReferenceDigits(lambda, t1, tol, scale)
 	}
@@ -226,7 +226,7 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 		c.Difference = math.Max(c.Difference, m)
 		c.AtEnd = m
 	}
-	c.Error = c.AtEnd / math.Pow(10, float64(digits-cd))
+	c.Error = c.AtEnd / detmath.Pow(10, float64(digits-cd))
 	res.Check = c
 	return res, nil
 }

@@ -554,7 +554,7 @@ func (a *auditor) spread() (spread, mag float64) {
 			}
 		}
 		if P > 0 {
-			mean = math.Atan2(sn, c) * P / (2 * math.Pi)
+			mean = detmath.Atan2(sn, c) * P / (2 * math.Pi)
 		} else {
 			mean /= m
 		}

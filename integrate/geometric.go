@@ -4,6 +4,8 @@ import (
 	"context"
 	"fmt"
 	"math"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // EnergySettings controls EnergyAudit. A nil *EnergySettings means defaults.
@@ -194,9 +196,9 @@ func EnergyAudit(ctx context.Context, p Problem, t1 float64, family func(h float
 		return rep, err
 	}
 	if rep.MaxError > 0 && e2 > 0 {
-		rep.EnergyOrder = math.Log2(e2 / rep.MaxError)
+		rep.EnergyOrder = detmath.Log(e2/rep.MaxError) / math.Ln2
 	}
-	den := math.Pow(2, float64(rep.Order)) - 1
+	den := detmath.Pow(2, float64(rep.Order)) - 1
 	rep.ErrorEstimate = make([]float64, len(rep.Final))
 	var d12 float64
 	for i := range rep.Final {
@@ -215,7 +217,7 @@ func EnergyAudit(ctx context.Context, p Problem, t1 float64, family func(h float
 			d24 = math.Max(d24, math.Abs(y2[i]-y4[i]))
 		}
 		if d12 > 0 && d24 > 0 {
-			rep.ObservedOrder = math.Log2(d24 / d12)
+			rep.ObservedOrder = detmath.Log(d24/d12) / math.Ln2
 		}
 	}
 	return rep, nil
@@ -268,7 +270,7 @@ func (r *EnergyReport) SuggestStep(target float64) float64 {
 	if e := r.EnergyOrder; !math.IsNaN(e) && math.Abs(e-q) <= 1 {
 		q = e
 	}
-	return r.H * math.Pow(target/r.MaxError, 1/q)
+	return r.H * detmath.Pow(target/r.MaxError, 1/q)
 }
 
 // StepScale is the step-density function of SolveReversible: steps are
@@ -292,7 +294,7 @@ func DistanceScale(alpha float64) StepScale {
 			for _, v := range y[:n] {
 				r2 += float64(v * v)
 			}
-			return math.Pow(r2, alpha/2)
+			return detmath.Pow(r2, alpha/2)
 		},
 		Grad: func(y, dst []float64) {
 			n := len(y) / 2
@@ -300,7 +302,7 @@ func DistanceScale(alpha float64) StepScale {
 			for _, v := range y[:n] {
 				r2 += float64(v * v)
 			}
-			c := alpha * math.Pow(r2, float64(alpha/2)-1)
+			c := alpha * detmath.Pow(r2, float64(alpha/2)-1)
 			for i := 0; i < n; i++ {
 				dst[i] = float64(c * y[i])
 			}

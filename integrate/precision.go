@@ -5,6 +5,8 @@ import (
 	"math"
 	"strconv"
 	"unsafe"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // RoundingKind says how a Rounding rounds a number.
@@ -178,9 +180,9 @@ func (r Rounding) unit(scale float64) float64 {
 	case BinaryBits:
 		return math.Ldexp(scale, -r.N)
 	case SignificantDigits:
-		return 5 * math.Pow(10, -float64(r.N)) * scale
+		return 5 * detmath.Pow(10, -float64(r.N)) * scale
 	case DecimalPlaces:
-		return 5 * math.Pow(10, -float64(r.N+1))
+		return 5 * detmath.Pow(10, -float64(r.N+1))
 	}
 	return 0
 }

@@ -208,7 +208,7 @@ func SolveTaylor(ctx context.Context, f Series, t0 float64, y0 []float64, times 
 		}
 		prev = t
 	}
-	eps := math.Pow(10, -float64(set.Digits))
+	eps := detmath.Pow(10, -float64(set.Digits))
 	r := &taylorRun{ctx: ctx, n: n, eps: eps, order: TaylorOrder(eps), times: times, maxSteps: set.MaxSteps, t0: t0,
 		start: set.Start, outTimes: set.OutTimes}
 	res := &TaylorResult{Digits: set.Digits, Order: r.order}

@@ -99,7 +99,7 @@ func LineAngle(u, w []float64) float64 {
 		dm += float64((a - b) * (a - b))
 		dp += float64((a + b) * (a + b))
 	}
-	return 2 * math.Atan2(math.Sqrt(dm), math.Sqrt(dp))
+	return 2 * detmath.Atan2(math.Sqrt(dm), math.Sqrt(dp))
 }
 
 // ginelliStore keeps the forward QR data: per re-orthonormalisation its time,

@@ -149,7 +149,7 @@ func Cos(x Float) Float { _, c := SinCos(x); return c }
 func Tan(x Float) Float { s, c := SinCos(x); return Div(s, c) }
 
 // Atan returns the arc tangent of x by one Newton step for tan y = x from
-// y0 = math.Atan(Hi): y = y0 + (x·cos y0 - sin y0)·cos y0. Absolute error
+// y0 = detmath.Atan(Hi): y = y0 + (x·cos y0 - sin y0)·cos y0. Absolute error
 // below 1e-30 (measured 5e-31 on |x| < 20).
 //
 // Special cases: Atan(±Inf) = ±π/2 (double-double), Atan(NaN) = NaN.
@@ -162,18 +162,18 @@ func Atan(x Float) Float {
 	case math.IsInf(x.Hi, -1):
 		return Neg(piHalf)
 	}
-	y0 := From(math.Atan(x.Hi))
+	y0 := From(detmath.Atan(x.Hi))
 	s, c := SinCos(y0)
 	return Add(y0, Mul(Sub(Mul(x, c), s), c))
 }
 
 // Atan2 returns the angle of the point (x, y) in (-π, π], by one Newton step
-// for y·cos θ - x·sin θ = 0 from θ0 = math.Atan2(y.Hi, x.Hi):
+// for y·cos θ - x·sin θ = 0 from θ0 = detmath.Atan2(y.Hi, x.Hi):
 // θ = θ0 + (y·cos θ0 - x·sin θ0)/(x·cos θ0 + y·sin θ0). Absolute error about
 // 1e-32. Special cases as math.Atan2 on the high parts when either argument
 // is zero, infinite or NaN.
 func Atan2(y, x Float) Float {
-	t0 := math.Atan2(y.Hi, x.Hi)
+	t0 := detmath.Atan2(y.Hi, x.Hi)
 	if y.Hi == 0 || x.Hi == 0 || !y.IsFinite() || !x.IsFinite() {
 		if x.Hi == 0 && y.Hi != 0 && y.IsFinite() {
 			if y.Hi > 0 {
@@ -275,5 +275,5 @@ func Pow(x, y Float) Float {
 	case x.Hi == 0 && y.Hi < 0:
 		return Float{math.Inf(1), 0}
 	}
-	return Float{math.Pow(x.Hi, y.Hi), 0}
+	return Float{detmath.Pow(x.Hi, y.Hi), 0}
 }

@@ -4,6 +4,8 @@ import (
 	"math"
 	"math/big"
 	"sync"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // Elementary functions on math/big.Float at any precision, for the
@@ -396,7 +398,7 @@ func BigAtan2(z, y, x *big.Float) *big.Float {
 	if x.IsInf() || y.IsInf() {
 		xf, _ := x.Float64()
 		yf, _ := y.Float64()
-		return z.SetPrec(prec).SetFloat64(math.Atan2(yf, xf))
+		return z.SetPrec(prec).SetFloat64(detmath.Atan2(yf, xf))
 	}
 	q := newF(w).Quo(y, x)
 	a := BigAtan(newF(w), q)

@@ -26,13 +26,13 @@ func eval1(op Op, x float64) float64 {
 	case OpAbs:
 		return math.Abs(x)
 	case OpTanh:
-		return math.Tanh(x)
+		return detmath.Tanh(x)
 	case OpSinh:
-		return math.Sinh(x)
+		return detmath.Sinh(x)
 	case OpCosh:
-		return math.Cosh(x)
+		return detmath.Cosh(x)
 	case OpAtan:
-		return math.Atan(x)
+		return detmath.Atan(x)
 	case OpSign:
 		return sign(x)
 	case OpStep:
@@ -55,7 +55,7 @@ func eval2(op Op, x, y float64) float64 {
 	case OpPow:
 		return pow(x, y)
 	case OpAtan2:
-		return math.Atan2(x, y)
+		return detmath.Atan2(x, y)
 	case OpMin:
 		return min2(x, y)
 	case OpMax:
@@ -118,7 +118,7 @@ func pow(x, y float64) float64 {
 	if n := int(y); float64(n) == y && n >= -maxIntPow && n <= maxIntPow {
 		return powi(x, n)
 	}
-	return math.Pow(x, y)
+	return detmath.Pow(x, y)
 }
 
 // maxIntPow bounds the integer exponents evaluated by repeated squaring.

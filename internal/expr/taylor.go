@@ -183,7 +183,7 @@ func (t *Taylor) order(k int) {
 				if sg < 0 {
 					s[0], co[0] = detmath.Sincos(u[0])
 				} else {
-					s[0], co[0] = math.Sinh(u[0]), math.Cosh(u[0])
+					s[0], co[0] = detmath.Sinh(u[0]), detmath.Cosh(u[0])
 				}
 				break
 			}
@@ -199,7 +199,7 @@ func (t *Taylor) order(k int) {
 				if sg > 0 {
 					v[0] = detmath.Tan(u[0])
 				} else {
-					v[0] = math.Tanh(u[0])
+					v[0] = detmath.Tanh(u[0])
 				}
 				q[0] = 1 + float64(sg*float64(v[0]*v[0]))
 				break
@@ -210,7 +210,7 @@ func (t *Taylor) order(k int) {
 			// (1+u²)·v' = u'; aux holds 1+u².
 			q := t.aux[i]
 			if k == 0 {
-				v[0] = math.Atan(u[0])
+				v[0] = detmath.Atan(u[0])
 				q[0] = 1 + float64(u[0]*u[0])
 				break
 			}
@@ -225,7 +225,7 @@ func (t *Taylor) order(k int) {
 			// v = atan2(u, w): (u²+w²)·v' = w·u' - u·w'; aux holds u²+w².
 			q := t.aux[i]
 			if k == 0 {
-				v[0] = math.Atan2(u[0], w[0])
+				v[0] = detmath.Atan2(u[0], w[0])
 				q[0] = float64(u[0]*u[0]) + float64(w[0]*w[0])
 				break
 			}
