@@ -41,7 +41,7 @@ func TestEveryGrid(t *testing.T) {
 			}
 			dt := math.Copysign(c.dt, c.t1-c.t0)
 			for i, smp := range sol.Samples[:c.n-1] {
-				if want := float64(i)*dt + c.t0; smp.T != want {
+				if want := float64(float64(i)*dt) + c.t0; smp.T != want { // unfused, as the grid
 					t.Errorf("sample %d at %v, want %v bit for bit", i, smp.T, want)
 				}
 			}

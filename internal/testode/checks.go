@@ -135,7 +135,7 @@ func checkSampling(t *testing.T, m integrate.Method, c Case) {
 		} else {
 			dir := math.Copysign(1, tc.t1-tc.t0)
 			for i := 0; float64(i)*tc.every < math.Abs(tc.t1-tc.t0)-1e-9*tc.every; i++ {
-				want = append(want, tc.t0+float64(i)*dir*tc.every)
+				want = append(want, tc.t0+float64(float64(i)*dir*tc.every)) // unfused, as the grid
 			}
 			want = append(want, tc.t1)
 		}
