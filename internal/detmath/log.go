@@ -43,18 +43,7 @@ func Log(x float64) float64 {
 	case math.IsInf(x, 1):
 		return x
 	}
-	k := 0
-	if x < 0x1p-1022 { // subnormal: scale into the normal range
-		x = float64(x * 0x1p54)
-		k = -54
-	}
-	b := math.Float64bits(x)
-	k += int(b>>52&0x7ff) - 1023
-	m := math.Float64frombits(b&(1<<52-1) | 1023<<52) // x = 2^k·m, m in [1, 2)
-	if m > math.Sqrt2 {
-		m = float64(0.5 * m)
-		k++
-	}
+	k, m := splitLog(x)
 	f := m - 1 // exact (Sterbenz)
 	s := f / (m + 1)
 	z := float64(s * s)
@@ -74,4 +63,22 @@ func Log(x float64) float64 {
 	lm := f - float64(s*(f-r))
 	kf := float64(k)
 	return float64(kf*ln2Hi) + (lm + float64(kf*ln2Lo))
+}
+
+// splitLog returns k and m with x = 2^k·m and m in [1/√2, √2], for a finite
+// x > 0 (subnormals included); exact.
+func splitLog(x float64) (int, float64) {
+	k := 0
+	if x < 0x1p-1022 { // subnormal: scale into the normal range
+		x = float64(x * 0x1p54)
+		k = -54
+	}
+	b := math.Float64bits(x)
+	k += int(b>>52&0x7ff) - 1023
+	m := math.Float64frombits(b&(1<<52-1) | 1023<<52) // x = 2^k·m, m in [1, 2)
+	if m > math.Sqrt2 {
+		m = float64(0.5 * m)
+		k++
+	}
+	return k, m
 }

@@ -192,18 +192,7 @@ func powInt(x float64, n int) float64 {
 // summed in float64; then ln x = k·ln2Hi + (ln m + k·ln2Lo) with the
 // leading sum exact (TwoSum).
 func logDD(x float64) (hi, lo float64) {
-	k := 0
-	if x < 0x1p-1022 { // subnormal: scale into the normal range
-		x = float64(x * 0x1p54)
-		k = -54
-	}
-	b := math.Float64bits(x)
-	k += int(b>>52&0x7ff) - 1023
-	m := math.Float64frombits(b&(1<<52-1) | 1023<<52) // x = 2^k·m, m in [1, 2)
-	if m > math.Sqrt2 {
-		m = float64(0.5 * m)
-		k++
-	}
+	k, m := splitLog(x)
 	f := m - 1 // exact (Sterbenz)
 	dh, dl := twoSum(m, 1)
 	inv := 1 / dh
