@@ -84,17 +84,7 @@ func (w *qrWork) factor(v []float64) (int, float64) {
 		w.beta[j] = beta
 		a[j*k+j] = alpha
 		// Apply H to the columns right of j.
-		for c := j + 1; c < k; c++ {
-			d := a[j*k+c]
-			for i := j + 1; i < n; i++ {
-				d += float64(a[i*k+j] * a[i*k+c])
-			}
-			d = float64(beta * d)
-			a[j*k+c] -= d
-			for i := j + 1; i < n; i++ {
-				a[i*k+c] -= float64(d * a[i*k+j])
-			}
-		}
+		w.reflect(a, j, j+1, beta)
 	}
 	for i := 0; i < k; i++ {
 		for j := 0; j < k; j++ {
@@ -119,18 +109,7 @@ func (w *qrWork) factor(v []float64) (int, float64) {
 		q[j*k+j] = 1
 	}
 	for j := k - 1; j >= 0; j-- {
-		beta := w.beta[j]
-		for c := j; c < k; c++ {
-			d := q[j*k+c]
-			for i := j + 1; i < n; i++ {
-				d += float64(a[i*k+j] * q[i*k+c])
-			}
-			d = float64(beta * d)
-			q[j*k+c] -= d
-			for i := j + 1; i < n; i++ {
-				q[i*k+c] -= float64(d * a[i*k+j])
-			}
-		}
+		w.reflect(q, j, j, w.beta[j])
 	}
 	for j := 0; j < k; j++ {
 		d := w.r[j*k+j]
@@ -147,6 +126,23 @@ func (w *qrWork) factor(v []float64) (int, float64) {
 	}
 	copy(v[:n*k], q)
 	return -1, 0
+}
+
+// reflect applies the reflector H_j = I - beta·v·vᵀ (v_j = 1, v_i for
+// i > j below the diagonal of w.a) to the columns c0.. of the n×k matrix t.
+func (w *qrWork) reflect(t []float64, j, c0 int, beta float64) {
+	n, k, a := w.n, w.k, w.a
+	for c := c0; c < k; c++ {
+		d := t[j*k+c]
+		for i := j + 1; i < n; i++ {
+			d += float64(a[i*k+j] * t[i*k+c])
+		}
+		d = float64(beta * d)
+		t[j*k+c] -= d
+		for i := j + 1; i < n; i++ {
+			t[i*k+c] -= float64(d * a[i*k+j])
+		}
+	}
 }
 
 // spread is the growth measure the adaptive interval steers by: the largest
