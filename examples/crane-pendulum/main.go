@@ -15,6 +15,7 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
 	"log"
 	"os"
 
@@ -22,9 +23,16 @@ import (
 )
 
 func main() {
+	if _, err := run(os.Stdout); err != nil {
+		log.Fatal(err)
+	}
+}
+
+// run audits the replay, writes the report to w and returns it.
+func run(w io.Writer) (*plumb.Report, error) {
 	sys, err := plumb.Model("double-pendulum")
 	if err != nil {
-		log.Fatal(err)
+		return nil, err
 	}
 	// A hook of 4 m and a load rope of 3 m; the load weighs twice the hook.
 	for _, p := range []struct {
@@ -32,19 +40,20 @@ func main() {
 		value float64
 	}{{"l1", 4}, {"l2", 3}, {"m1", 1}, {"m2", 2}} {
 		if err := sys.Set(p.name, p.value); err != nil {
-			log.Fatal(err)
+			return nil, err
 		}
 	}
 	// Released from 100° and 140° at rest.
 	if err := sys.SetStart([]float64{1.745, 2.443, 0, 0}); err != nil {
-		log.Fatal(err)
+		return nil, err
 	}
 	rep, err := plumb.TrustSystem(context.Background(), sys, 20, &plumb.TrustSettings{Tol: 0.01, Periods: sys.Periods()})
 	if err != nil {
-		log.Fatal(err)
+		return nil, err
 	}
-	if err := rep.Write(os.Stdout); err != nil {
-		log.Fatal(err)
+	if err := rep.Write(w); err != nil {
+		return nil, err
 	}
-	fmt.Printf("\nthe replay can be believed for %.3g s of the 20 s asked for\n", rep.TrustedUntil)
+	_, err = fmt.Fprintf(w, "\nthe replay can be believed for %.3g s of the 20 s asked for\n", rep.TrustedUntil)
+	return rep, err
 }

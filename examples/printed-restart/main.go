@@ -8,8 +8,10 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
 	"log"
 	"math"
+	"os"
 
 	"github.com/plumbdyn/plumb"
 	"github.com/plumbdyn/plumb/integrate"
@@ -17,9 +19,23 @@ import (
 )
 
 func main() {
+	if _, err := run(os.Stdout); err != nil {
+		log.Fatal(err)
+	}
+}
+
+// outcome is what the replay found.
+type outcome struct {
+	Delta0    float64 // how far printing moved the state
+	Parted    float64 // the time the runs first differ by more than 1 (NaN if never)
+	Predicted float64 // the parting time predicted from the largest Lyapunov exponent
+}
+
+// run replays the printed restart, writes its story to w and returns it.
+func run(w io.Writer) (outcome, error) {
 	sys, err := plumb.Model("lorenz")
 	if err != nil {
-		log.Fatal(err)
+		return outcome{}, err
 	}
 	p := sys.Problem()
 	ctx := context.Background()
@@ -28,19 +44,19 @@ func main() {
 	s := &integrate.Settings{RelTol: 1e-12, AbsTol: 1e-12, Every: 0.01}
 	full, err := integrate.Solve(ctx, p, 60, integrate.DormandPrince853, s)
 	if err != nil {
-		log.Fatal(err)
+		return outcome{}, err
 	}
 	at40 := full.At(40, nil)
 	printed := integrate.Places(3).Vec(nil, at40)
-	fmt.Printf("state at t=40:   %.6f %.6f %.6f\n", at40[0], at40[1], at40[2])
-	fmt.Printf("as printed:      %.3f %.3f %.3f\n", printed[0], printed[1], printed[2])
+	fmt.Fprintf(w, "state at t=40:   %.6f %.6f %.6f\n", at40[0], at40[1], at40[2])
+	fmt.Fprintf(w, "as printed:      %.3f %.3f %.3f\n", printed[0], printed[1], printed[2])
 
 	// The continued run from the printed numbers.
 	q := p
 	q.T0, q.Y0 = 40, printed
 	cont, err := integrate.Solve(ctx, q, 60, integrate.DormandPrince853, s)
 	if err != nil {
-		log.Fatal(err)
+		return outcome{}, err
 	}
 	delta0, parted := 0.0, math.NaN()
 	for i := 0; i <= 2000; i++ {
@@ -57,15 +73,16 @@ func main() {
 	}
 	sp, err := lyap.Exponents(ctx, p, 1, nil)
 	if err != nil {
-		log.Fatal(err)
+		return outcome{}, err
 	}
 	lambda := sp.Exponents[0]
-	fmt.Printf("printing moved the state by %.2g\n", delta0)
-	fmt.Printf("the runs differ by more than 1 from t = %.2f\n", parted)
-	fmt.Printf("largest Lyapunov exponent %.3f ± %.3f: predicted parting after %.1f time units (measured %.1f)\n",
+	fmt.Fprintf(w, "printing moved the state by %.2g\n", delta0)
+	fmt.Fprintf(w, "the runs differ by more than 1 from t = %.2f\n", parted)
+	fmt.Fprintf(w, "largest Lyapunov exponent %.3f ± %.3f: predicted parting after %.1f time units (measured %.1f)\n",
 		lambda, sp.StdErr[0], lyap.Horizon(lambda, delta0, 1), parted-40)
 	// One restart departs earlier or later than the prediction by the
 	// finite-time growth rate at that place on the attractor; over many
 	// restart times the median ratio is close to 1 (see plumb trust).
-	fmt.Println("(one restart scatters around the prediction with the local growth rate)")
+	fmt.Fprintln(w, "(one restart scatters around the prediction with the local growth rate)")
+	return outcome{Delta0: delta0, Parted: parted, Predicted: 40 + lyap.Horizon(lambda, delta0, 1)}, nil
 }
