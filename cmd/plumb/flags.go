@@ -24,6 +24,9 @@ type shared struct {
 	given map[string]bool
 	// stdin is read for --file -.
 	stdin io.Reader
+	// ctx ends the reading of --file early (Ctrl-C while a FIFO waits for
+	// a writer, or while a large file compiles).
+	ctx context.Context
 }
 
 // sharedNames lists the shared flags; help prints them in their own block.

@@ -98,6 +98,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 		return report(stderr, cmd, &usageError{msg: flagMessage(err)})
 	}
 	sh.stdin = stdin
+	sh.ctx = ctx
 	sh.given = map[string]bool{}
 	fs.Visit(func(f *flag.Flag) { sh.given[f.Name] = true })
 	if err := sh.check(cmd); err != nil {

@@ -1,6 +1,8 @@
 package main
 
 import (
+	"context"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
@@ -30,7 +32,43 @@ func (sh *shared) loadSystem(name string) (*plumb.System, error) {
 // loadFile reads the system file --file names ("-": standard input). Every
 // problem in it is a usage error that names the file and the field, line or
 // position (plumb.FileError).
+//
+// Opening, reading and compiling run beside the command, so that Ctrl-C
+// ends them: a FIFO with no writer blocks in open(2), a large formula takes
+// a while to compile, and neither may hold the process past a signal.
 func (sh *shared) loadFile() (*plumb.System, error) {
+	ctx := sh.ctx
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, fmt.Errorf("reading --file %s: %w", sh.file, err)
+	}
+	type loaded struct {
+		sys *plumb.System
+		err error
+	}
+	done := make(chan loaded, 1) // buffered: an abandoned load does not leak a blocked send
+	go func() {
+		sys, err := sh.readFile()
+		done <- loaded{sys, err}
+	}()
+	select {
+	case l := <-done:
+		if l.err != nil {
+			return nil, l.err
+		}
+		if l.sys.Name == "" {
+			l.sys.Name = fileSystemName(sh.file)
+		}
+		return l.sys, nil
+	case <-ctx.Done():
+		return nil, fmt.Errorf("reading --file %s: stopped before it was read: %w", sh.file, ctx.Err())
+	}
+}
+
+// readFile opens and compiles the system file; see loadFile.
+func (sh *shared) readFile() (*plumb.System, error) {
 	var r io.Reader
 	if sh.file == "-" {
 		if sh.stdin == nil {
@@ -48,9 +86,6 @@ func (sh *shared) loadFile() (*plumb.System, error) {
 	sys, err := plumb.LoadSystem(r)
 	if err != nil {
 		return nil, usagef("--file %s: %v", sh.file, err)
-	}
-	if sys.Name == "" {
-		sys.Name = fileSystemName(sh.file)
 	}
 	return sys, nil
 }
