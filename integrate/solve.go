@@ -51,16 +51,9 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 		grid = gridIter{times: c.times, n: len(c.times)}
 	}
 	if grid.n > 0 {
-		flat := make([]float64, grid.n*n)
-		sol.Samples = make([]Sample, 0, grid.n)
-		for i := 0; i < grid.n; i++ {
-			sol.Samples = append(sol.Samples, Sample{Y: flat[i*n : (i+1)*n : (i+1)*n]})
-		}
-		sol.Samples = sol.Samples[:0]
 		// Samples at t0.
 		for grid.i < grid.n && grid.at(grid.i) == p.T0 {
-			sol.Samples = sol.Samples[:len(sol.Samples)+1]
-			smp := &sol.Samples[len(sol.Samples)-1]
+			smp := sol.newSample(n, grid.n)
 			smp.T = p.T0
 			copy(smp.Y, p.Y0)
 			grid.i++
@@ -109,8 +102,7 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 			if (tg-end)*st.dir > 0 {
 				break
 			}
-			sol.Samples = sol.Samples[:len(sol.Samples)+1]
-			smp := &sol.Samples[len(sol.Samples)-1]
+			smp := sol.newSample(n, grid.n)
 			smp.T = tg
 			if tg == tb {
 				copy(smp.Y, st.y)
@@ -178,4 +170,31 @@ func (g *gridIter) at(i int) float64 {
 		return g.t1
 	}
 	return g.t0 + float64(float64(i)*g.dt)
+}
+
+// firstSamples is the capacity of the first block of samples; later blocks
+// double it (common practice for amortised growth).
+const firstSamples = 256
+
+// newSample appends a sample to sol.Samples and returns it, its Y of length
+// n ready to fill. Storage grows in blocks that double, up to total samples
+// in all, so that a long grid costs no time before the run starts (a
+// preallocated grid of 10^7 samples took a second to zero, during which a
+// Ctrl-C went unanswered) and the step loop allocates only O(log total)
+// times.
+func (sol *Solution) newSample(n, total int) *Sample {
+	k := len(sol.Samples)
+	if k == cap(sol.Samples) {
+		grow := max(k, firstSamples)
+		grow = min(grow, total-k)
+		flat := make([]float64, grow*n)
+		next := make([]Sample, k, k+grow)
+		copy(next, sol.Samples)
+		for i := 0; i < grow; i++ {
+			next = append(next, Sample{Y: flat[i*n : (i+1)*n : (i+1)*n]})
+		}
+		sol.Samples = next[:k]
+	}
+	sol.Samples = sol.Samples[:k+1]
+	return &sol.Samples[k]
 }
