@@ -10,7 +10,6 @@ import (
 	"strings"
 
 	"github.com/plumbdyn/plumb/integrate"
-	"github.com/plumbdyn/plumb/internal/dd"
 	"github.com/plumbdyn/plumb/internal/detmath"
 	"github.com/plumbdyn/plumb/lyap"
 )
@@ -18,8 +17,8 @@ import (
 // ErrSteps reports an iteration count that TrustMap cannot audit.
 var ErrSteps = errors.New("invalid number of iterations")
 
-// MaxMapSteps bounds the iterations TrustMap audits: every rung keeps its
-// divergence per iterate, so memory grows with it.
+// MaxMapSteps bounds the iterations TrustMap audits (its run time; memory
+// does not grow with the horizon, see MapCurvePoints).
 const MaxMapSteps = 10_000_000
 
 // MapRung is one run of a map audit, compared iterate by iterate with the
@@ -118,6 +117,11 @@ type MapReport struct {
 	// if none; ExponentError says why the estimate failed.
 	Exponent      *ExponentEstimate `json:"exponent,omitempty"`
 	ExponentError string            `json:"exponent_error,omitempty"`
+	// Stride is the number of iterates each point of the rungs' divergence
+	// curves covers (the largest distance over them): 1 up to
+	// MapCurvePoints iterates, then the smallest power of two that keeps
+	// the curves within MapCurvePoints points.
+	Stride int `json:"stride"`
 	// Reference describes the double-double orbit; Rungs the others.
 	Reference string          `json:"reference"`
 	Rungs     []MapRungReport `json:"rungs"`
@@ -156,9 +160,13 @@ type MapRungReport struct {
 	RateErr  float64 `json:"rate_err"`
 	Power    float64 `json:"power"`
 	PowerErr float64 `json:"power_err"`
-	// Start is the iterate of Divergence[0]; Divergence[k] is the distance
-	// from the reference at iterate Start+k.
+	// Start is the rung's first iterate. Divergence[k] is the largest
+	// distance from the reference over the iterates i >= Start with
+	// floor(i/Stride) = floor(Start/Stride) + k; with Stride 1 (audits of
+	// up to MapCurvePoints iterates) that is the distance at iterate
+	// Start+k.
 	Start      int       `json:"start"`
+	Stride     int       `json:"stride"`
 	Divergence []float64 `json:"divergence"`
 	// Error is why the run stopped early, empty if it did not.
 	Error string `json:"error,omitempty"`
@@ -199,7 +207,10 @@ const mapFitMin = 5
 // without predictions and says why in ExponentError.
 //
 // Cost: per iterate one double-double evaluation and one float64 map per
-// rung; memory O(steps) per rung.
+// rung (two double-double evaluations with Relative, whose spread is
+// measured in a first pass); memory O(MapCurvePoints) per rung, whatever
+// steps is: the reference and the rungs advance together and each curve
+// keeps at most MapCurvePoints points (see MapRungReport.Stride).
 //
 // # Caution
 //
@@ -269,18 +280,19 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 		Rungs: []MapRungReport{}, Caution: Caution, Arch: runtime.GOARCH, Version: buildVersion(),
 	}
 
-	// The reference orbit, kept as float64 pairs (hi, lo) per iterate.
-	n := len(x0)
-	ref, refErr := ddOrbit(ctx, ev, x0, steps, periods)
-	reached := len(ref)/(2*n) - 1 // last iterate of the reference
-	rep.Magnitude, rep.Spread = orbitSize(ref, n, reached)
-	if refErr != nil {
-		rep.Verdict = Incomplete
-		rep.TrustedUntil = 0
-		return rep, fmt.Errorf("plumb: TrustMap: reference orbit stopped at iterate %d: %w", reached, refErr)
-	}
+	// The reference and the rungs advance together, so that nothing of
+	// length steps is stored. A relative tolerance needs the reference's
+	// spread first: a pass over the reference alone gives it.
 	tol := s.Tol
 	if s.Relative {
+		pre := newMapLockstep(ev, m, nil, x0, steps, periods, math.Inf(1))
+		preErr := pre.run(ctx)
+		rep.Magnitude, rep.Spread = pre.size()
+		if preErr != nil {
+			rep.Verdict = Incomplete
+			rep.TrustedUntil = 0
+			return rep, fmt.Errorf("plumb: TrustMap: reference orbit stopped at iterate %d: %w", pre.reached, preErr)
+		}
 		tol = float64(s.Tol * rep.Spread)
 		rep.TolAbs = tol
 		if !(tol > 0) {
@@ -288,14 +300,32 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 			return rep, fmt.Errorf("plumb: TrustMap: a relative tolerance needs an orbit with spread, and this one has none (a fixed point): %w", integrate.ErrSettings)
 		}
 	}
-
-	x, y := make([]float64, n), make([]float64, n)
-	for _, r := range rungs {
-		if err := ctx.Err(); err != nil {
-			rep.Verdict = Incomplete
-			return rep, fmt.Errorf("plumb: TrustMap canceled after %d rungs: %w", len(rep.Rungs), err)
+	a := newMapLockstep(ev, m, rungs, x0, steps, periods, tol)
+	runErr := a.run(ctx)
+	if !s.Relative || runErr != nil {
+		rep.Magnitude, rep.Spread = a.size()
+	}
+	rep.Stride = a.stride
+	for _, run := range a.runs {
+		r := &run.out
+		switch {
+		case run.r.Kind == integrate.KindRestart:
+			r.Delta0 = roundingUnit(run.r.Restart, rep.Magnitude)
+		case run.store.Kind != integrate.NoRounding:
+			r.Delta0 = roundingUnit(run.store, rep.Magnitude)
+		default:
+			r.Delta0 = roundingUnit(integrate.Bits(53), rep.Magnitude)
 		}
-		rep.Rungs = append(rep.Rungs, runMapRung(ctx, m, r, x0, ref, steps, periods, rep.Magnitude, tol, x, y))
+		run.finish()
+		rep.Rungs = append(rep.Rungs, *r)
+	}
+	if runErr != nil {
+		rep.fill(a.maxDiv)
+		rep.Verdict = Incomplete
+		if ctx.Err() != nil {
+			return rep, fmt.Errorf("plumb: TrustMap canceled at iterate %d: %w", a.reached, runErr)
+		}
+		return rep, fmt.Errorf("plumb: TrustMap: reference orbit stopped at iterate %d: %w", a.reached, runErr)
 	}
 
 	lambda := s.Lambda
@@ -304,7 +334,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 	} else {
 		sp, err := lyap.MapExponents(ctx, m, x0, 1, s.Exponent)
 		if err != nil && ctx.Err() != nil {
-			rep.fill()
+			rep.fill(a.maxDiv)
 			rep.Verdict = Incomplete
 			return rep, fmt.Errorf("plumb: TrustMap canceled during the exponent estimate: %w", err)
 		}
@@ -319,7 +349,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 			}
 		}
 	}
-	rep.fill()
+	rep.fill(a.maxDiv)
 	return rep, nil
 }
 
@@ -345,161 +375,6 @@ func checkMapRung(r MapRung, steps int) error {
 	return nil
 }
 
-// ddOrbit iterates the double-double map from x0 and returns iterates
-// 0..steps as (hi, lo) pairs, component by component; after a failure (a
-// value that is not finite, a canceled ctx) the iterates up to the last
-// good one come with the error.
-func ddOrbit(ctx context.Context, ev *DDEvaluator, x0 []float64, steps int, periods []float64) ([]float64, error) {
-	n := len(x0)
-	out := make([]float64, 0, 2*n*(steps+1))
-	cur, nxt := make([]dd.Float, n), make([]dd.Float, n)
-	for i, v := range x0 {
-		cur[i] = dd.From(v)
-		out = append(out, v, 0)
-	}
-	for it := 1; it <= steps; it++ {
-		if it%1024 == 0 {
-			if err := ctx.Err(); err != nil {
-				return out, err
-			}
-		}
-		if err := ev.Eval(dd.Float{}, cur, nxt); err != nil {
-			return out, err
-		}
-		for i := range nxt {
-			if !nxt[i].IsFinite() {
-				return out, fmt.Errorf("component %d is %v: %w", i, nxt[i].Hi, integrate.ErrNonFinite)
-			}
-			if i < len(periods) && periods[i] > 0 {
-				nxt[i] = wrapAngleDD(nxt[i], periods[i])
-			}
-		}
-		cur, nxt = nxt, cur
-		for _, v := range cur {
-			out = append(out, v.Hi, v.Lo)
-		}
-	}
-	return out, nil
-}
-
-// orbitSize returns the root-mean-square norm of iterates 0..last of a
-// (hi, lo) orbit and its root-mean-square distance from its mean.
-func orbitSize(ref []float64, n, last int) (mag, spread float64) {
-	if last < 0 {
-		return 0, 0
-	}
-	cnt := float64(last + 1)
-	mean := make([]float64, n)
-	var sq float64
-	for it := 0; it <= last; it++ {
-		for i := 0; i < n; i++ {
-			v := ref[2*(it*n+i)]
-			mean[i] += v
-			sq += float64(v * v)
-		}
-	}
-	var msq float64
-	for i := range mean {
-		mean[i] /= cnt
-		msq += float64(mean[i] * mean[i])
-	}
-	mag = math.Sqrt(sq / cnt)
-	spread = math.Sqrt(math.Max(0, sq/cnt-msq))
-	return mag, spread
-}
-
-// mapDist is the Euclidean distance between the float64 state x and the
-// reference iterate it (hi, lo pairs), with wrapped differences on periodic
-// components. The difference is taken in double-double, so it is exact to
-// the reference's accuracy.
-func mapDist(x, ref []float64, it int, periods []float64) float64 {
-	n := len(x)
-	var s float64
-	for i, v := range x {
-		r := dd.Float{Hi: ref[2*(it*n+i)], Lo: ref[2*(it*n+i)+1]}
-		d := dd.Sub(dd.From(v), r).Float64()
-		if i < len(periods) && periods[i] > 0 {
-			p := periods[i]
-			d = math.Mod(d, p)
-			if d > p/2 {
-				d -= p
-			} else if d < -p/2 {
-				d += p
-			}
-		}
-		s += float64(d * d)
-	}
-	return math.Sqrt(s)
-}
-
-// runMapRung iterates one rung and compares it with the reference.
-func runMapRung(ctx context.Context, m *MapSystem, r MapRung, x0, ref []float64, steps int, periods []float64, mag, tol float64, x, y []float64) MapRungReport {
-	n := len(x0)
-	out := MapRungReport{Name: r.Name, Effect: r.Kind.String(), AgreesUntil: -1}
-	var store integrate.Rounding
-	switch r.Kind {
-	case integrate.KindPrecision:
-		store = r.Storage
-		copy(x, x0)
-		if store.Kind != integrate.NoRounding {
-			out.Rounding = store.String()
-			store.Vec(x, x)
-			out.Delta0 = roundingUnit(store, mag)
-		} else {
-			out.Rounding = "float64"
-			out.Delta0 = roundingUnit(integrate.Bits(53), mag)
-		}
-	case integrate.KindRestart:
-		out.Start, out.RestartAt = r.RestartAt, r.RestartAt
-		out.Rounding = r.Restart.String()
-		for i := range x {
-			x[i] = r.Restart.Round(ref[2*(r.RestartAt*n+i)] + ref[2*(r.RestartAt*n+i)+1])
-		}
-		wrapPeriodic(x, periods)
-		out.Delta0 = roundingUnit(r.Restart, mag)
-	}
-	out.Divergence = make([]float64, 0, steps-out.Start+1)
-	it := out.Start
-	for {
-		d := mapDist(x, ref, it, periods)
-		out.Divergence = append(out.Divergence, d)
-		if d > tol && !out.Departed {
-			out.Departed, out.DepartsAt = true, it
-		}
-		if !out.Departed {
-			out.AgreesUntil = it
-		}
-		if it == steps {
-			break
-		}
-		if it%1024 == 0 && ctx.Err() != nil {
-			out.Error = ctx.Err().Error()
-			break
-		}
-		m.Next(x, y)
-		if store.Kind != integrate.NoRounding {
-			store.Vec(y, y)
-		}
-		bad := -1
-		for i, v := range y {
-			if math.IsNaN(v) || math.IsInf(v, 0) {
-				bad = i
-			}
-		}
-		if bad >= 0 {
-			out.Error = fmt.Sprintf("component %d is %v after iterate %d", bad, y[bad], it)
-			break
-		}
-		copy(x, y)
-		it++
-	}
-	if out.AgreesUntil < out.Start {
-		out.AgreesUntil = out.Start
-	}
-	fitMapGrowth(&out, tol)
-	return out
-}
-
 // roundingUnit is half a unit in the last place that r keeps, at magnitude
 // mag: 2^-p·mag for p bits, 5·10^-k·mag for k digits, 5·10^-(k+1) for k
 // decimal places (the perturbation a rounding makes, common practice).
@@ -518,39 +393,6 @@ func roundingUnit(r integrate.Rounding, mag float64) float64 {
 	return 0
 }
 
-// fitMapGrowth fits ln d = a + rate·n and ln d = a + power·ln(n - start)
-// to the running maximum of the divergence, from its first positive value
-// up to the first iterate at or beyond tol, and names the better law
-// (integrate.FitGrowth). Less than a doubling over the range, or an
-// envelope that never passes boundedFactor·Delta0, is "bounded".
-func fitMapGrowth(out *MapRungReport, tol float64) {
-	var xs, ly []float64
-	env := 0.0
-	for k, d := range out.Divergence {
-		env = math.Max(env, d)
-		if k == 0 || !(env > 0) {
-			continue
-		}
-		xs = append(xs, float64(out.Start+k))
-		ly = append(ly, detmath.Log(env))
-		if env >= tol {
-			break
-		}
-	}
-	out.Growth = "unknown"
-	if len(xs) < mapFitMin {
-		return
-	}
-	g := integrate.FitGrowth(xs, ly, float64(out.Start))
-	out.Rate, out.RateErr = finiteOr0(g.Rate), finiteOr0(g.RateErr)
-	out.Power, out.PowerErr = finiteOr0(g.Power), finiteOr0(g.PowerErr)
-	out.Growth = g.Kind.String()
-	if env <= boundedFactor*out.Delta0 {
-		// Rounding noise, however it is shaped.
-		out.Growth = "bounded"
-	}
-}
-
 func finiteOr0(v float64) float64 {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return 0
@@ -558,11 +400,12 @@ func finiteOr0(v float64) float64 {
 	return v
 }
 
-// fill draws the conclusions from the rungs.
-func (rep *MapReport) fill() {
+// fill draws the conclusions from the rungs; maxDiv is the largest
+// divergence of any rung up to the trusted iterate, which the lockstep
+// iteration measured at full resolution.
+func (rep *MapReport) fill(maxDiv float64) {
 	rep.TrustedUntil = rep.Steps
 	limit := -1
-	maxDiv := 0.0
 	var vote growthVote
 	rep.Failed = 0
 	for i, r := range rep.Rungs {
@@ -576,13 +419,6 @@ func (rep *MapReport) fill() {
 		if !r.Departed && r.Error != "" && r.AgreesUntil < rep.TrustedUntil {
 			// A run that stopped early vouches for nothing beyond it.
 			rep.TrustedUntil, limit = r.AgreesUntil, i
-		}
-	}
-	for _, r := range rep.Rungs {
-		for k, d := range r.Divergence {
-			if r.Start+k <= rep.TrustedUntil {
-				maxDiv = math.Max(maxDiv, d)
-			}
 		}
 	}
 	rep.TolUsed = maxDiv / rep.TolAbs

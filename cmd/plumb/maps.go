@@ -504,7 +504,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	}
 	for _, r := range rep.Rungs {
 		if r.Error != "" {
-			cl.warnf("rung %q stopped at iterate %d, its curve ends there: %s", r.Name, r.Start+len(r.Divergence)-1, r.Error)
+			cl.warnf("rung %q stopped early, its curve ends there: %s", r.Name, r.Error)
 		}
 	}
 	if rep.ExponentError != "" {
@@ -518,13 +518,17 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 }
 
 // mapTrustCSV writes the divergence per iterate: n, then one column per
-// rung (empty before a restart and after a failure).
+// rung (empty before a restart and after a failure). Past
+// plumb.MapCurvePoints iterates a row covers rep.Stride iterates from n and
+// holds the largest divergence over them.
 func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
+	stride := max(rep.Stride, 1)
 	curves := make([]curveCSV, len(rep.Rungs))
 	for i, r := range rep.Rungs {
-		curves[i] = curveCSV{name: r.Name, start: r.Start, values: r.Divergence}
+		curves[i] = curveCSV{name: r.Name, start: r.Start / stride, values: r.Divergence}
 	}
-	return writeCurvesCSV(cl.stdout, "n", rep.Steps+1, strconv.Itoa, curves)
+	rows := (rep.Steps + stride) / stride
+	return writeCurvesCSV(cl.stdout, "n", rows, func(i int) string { return strconv.Itoa(i * stride) }, curves)
 }
 
 // mapTrustChart draws the divergence per iterate on a log axis, the
@@ -539,8 +543,9 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 	top := rep.TolAbs
 	for _, r := range rep.Rungs {
 		s := series{Name: r.Name}
+		stride := max(r.Stride, 1)
 		for k, d := range r.Divergence {
-			s.X = append(s.X, float64(r.Start+k))
+			s.X = append(s.X, float64(max((r.Start/stride+k)*stride, r.Start)))
 			s.Y = append(s.Y, d)
 			top = math.Max(top, d)
 		}
