@@ -143,6 +143,9 @@ func LoadSystem(r io.Reader) (*System, error) {
 		line, col := lineCol(data, dec.InputOffset())
 		return nil, &FileError{Line: line, Col: col, Err: errors.New("unexpected data after the system object")}
 	}
+	if err := checkFileText(&f); err != nil {
+		return nil, err
+	}
 	return buildSystem(&f)
 }
 
