@@ -90,6 +90,11 @@ func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) 
 	if err != nil {
 		return nil, err
 	}
+	if hf, span := m.fixedStep(), math.Abs(t1-p.T0); span > 0 && hf-span > math.Max(float64(1e-9*hf), float64(8*0x1p-52*math.Max(math.Abs(p.T0), math.Abs(t1)))) {
+		// Clipping it would run one step of the span, not what was asked.
+		// (A step within nextFixed's slack of the span is one whole step.)
+		return nil, fmt.Errorf("integrate: %s step h = %v is longer than the span |t1 - t0| = %v (the run would be one step of %v): give a step at most the span: %w", m.Name(), hf, span, span, ErrSettings)
+	}
 	sc, err := m.newScheme(&p, n)
 	if err != nil {
 		return nil, err
@@ -113,9 +118,6 @@ func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) 
 	st.sB0 = float64(cfg.safety * st.tB.pow(1e-8)) // Hairer's FACOLD starts at 1e-4
 	st.sB = st.sB0
 	if hf := m.fixedStep(); hf > 0 {
-		if hf > math.Abs(t1-p.T0) {
-			hf = math.Abs(t1 - p.T0)
-		}
 		st.h = st.dir * hf
 	} else {
 		h := cfg.h0
