@@ -54,6 +54,11 @@ func (g *Graph) diffRule(e Expr, v int) Expr {
 		b = n.b
 		db = g.diff(b, v)
 	}
+	// An expression that does not depend on v has derivative 0 wherever it
+	// is defined; the rules below then need not build 0/b (which Div keeps).
+	if g.isZero(da) && (n.op.arity() == 1 || g.isZero(db)) {
+		return zero
+	}
 	switch n.op {
 	case OpNeg:
 		return g.Neg(da)
@@ -64,13 +69,22 @@ func (g *Graph) diffRule(e Expr, v int) Expr {
 	case OpMul:
 		return g.Add(g.Mul(da, b), g.Mul(a, db))
 	case OpDiv:
-		// (a/b)' = da/b - a·db/b²
+		// (a/b)' = da/b - a·db/b², without the term whose factor is 0
+		switch {
+		case g.isZero(db):
+			return g.Div(da, b)
+		case g.isZero(da):
+			return g.Neg(g.Div(g.Mul(a, db), g.Mul(b, b)))
+		}
 		return g.Sub(g.Div(da, b), g.Div(g.Mul(a, db), g.Mul(b, b)))
 	case OpPow:
 		if c, ok := g.Value(b); ok {
 			return g.Mul(g.Mul(b, g.Pow(a, g.Const(c-1))), da)
 		}
-		// a^b·(db·log a + b·da/a)
+		// a^b·(db·log a + b·da/a), without the term whose factor is 0
+		if g.isZero(da) {
+			return g.Mul(e, g.Mul(db, g.Func1(OpLog, a)))
+		}
 		return g.Mul(e, g.Add(g.Mul(db, g.Func1(OpLog, a)), g.Div(g.Mul(b, da), a)))
 	case OpSin:
 		return g.Mul(g.Func1(OpCos, a), da)
@@ -118,4 +132,10 @@ func (g *Graph) Gradient(e Expr, slots []int) []Expr {
 		out[i] = g.Diff(e, v)
 	}
 	return out
+}
+
+// isZero reports whether e is the constant 0.
+func (g *Graph) isZero(e Expr) bool {
+	c, ok := g.Value(e)
+	return ok && c == 0
 }

@@ -275,10 +275,11 @@ func (g *Graph) Mul(a, b Expr) Expr {
 	return g.intern(node{op: OpMul, a: a, b: b})
 }
 
-// Div returns a/b, with constants folded, a/1 = a, 0/b = 0, a/(-1) = -a,
+// Div returns a/b, with constants folded, a/1 = a, a/(-1) = -a,
 // and (c·x)/d = (c/d)·x for constants c and d when d is a power of two and
 // c/d is a normal number (then both round alike: scaling by a power of two
-// commutes with rounding, barring overflow of c·x).
+// commutes with rounding, barring overflow of c·x). 0/b is kept as it is:
+// it is not 0 where b is 0, and folding it would hide that singularity.
 func (g *Graph) Div(a, b Expr) Expr {
 	ca, oka := g.Value(a)
 	cb, okb := g.Value(b)
@@ -299,8 +300,6 @@ func (g *Graph) Div(a, b Expr) Expr {
 		return a
 	case okb && cb == -1:
 		return g.Neg(a)
-	case oka && ca == 0 && !(okb && cb == 0):
-		return g.Const(0)
 	}
 	return g.intern(node{op: OpDiv, a: a, b: b})
 }
