@@ -6,7 +6,6 @@ import (
 	"image/color"
 	"io"
 	"math"
-	"os"
 	"strconv"
 
 	"gonum.org/v1/plot"
@@ -186,15 +185,8 @@ func (c *lineChart) save(name string) (err error) {
 	if err != nil {
 		return err
 	}
-	f, err := os.Create(name)
-	if err != nil {
+	return writeFileAtomic(name, func(w io.Writer) error {
+		_, err := wt.WriteTo(w)
 		return err
-	}
-	defer func() {
-		if cerr := f.Close(); err == nil {
-			err = cerr
-		}
-	}()
-	_, err = wt.WriteTo(f)
-	return err
+	})
 }
