@@ -238,29 +238,46 @@ func (s *System) Separable() bool {
 //
 // A map has no vector field: its Problem has a nil F (which the integrators
 // reject with integrate.ErrSettings); use Map instead.
+//
+// The Problem may be shared by runs in several goroutines: its Fork gives
+// every run (Solve, NewStepper, the lyap entry points) evaluators of its
+// own at set-up (integrate.Problem.Own). Its F and Jac themselves keep
+// scratch space, so a caller who calls them directly from several
+// goroutines calls Own once in each.
 func (s *System) Problem() integrate.Problem {
-	p := integrate.Problem{Y0: append([]float64(nil), s.y0...)}
 	if s.kind == KindMap {
-		return p
+		return integrate.Problem{Y0: append([]float64(nil), s.y0...)}
 	}
+	p := s.fields(append([]float64(nil), s.params...))
+	p.Y0 = append([]float64(nil), s.y0...)
+	return p
+}
+
+// fields returns the vector field, Jacobian and separable parts at params
+// (kept, not copied: the caller passes its own copy), with a Fork that makes
+// fresh ones at the same params, so that runs in several goroutines can
+// share the Problem (integrate.Problem.Own).
+func (s *System) fields(params []float64) integrate.Problem {
+	var p integrate.Problem
 	if s.flow != nil {
-		p.F = s.flow.Field(append([]float64(nil), s.params...))
+		p.F = s.flow.Field(append([]float64(nil), params...))
 		if s.flow.Jac != nil {
-			p.Jac = s.flow.Jac(append([]float64(nil), s.params...))
+			p.Jac = s.flow.Jac(append([]float64(nil), params...))
 		} else if s.form != nil {
-			p.Jac = s.form.jacFunc(s.params)
+			p.Jac = s.form.jacFunc(params)
 		}
 		if s.flow.Separable != nil {
-			parts := s.flow.Separable(append([]float64(nil), s.params...))
+			parts := s.flow.Separable(append([]float64(nil), params...))
 			p.Split = &integrate.Separable{DT: parts.DT, DV: parts.DV, H: parts.H}
 		}
-		return p
+	} else {
+		p.F = s.form.fieldFunc(params)
+		p.Jac = s.form.jacFunc(params)
+		if h := s.form.ham; h != nil && h.separable {
+			p.Split = h.split(params)
+		}
 	}
-	p.F = s.form.fieldFunc(s.params)
-	p.Jac = s.form.jacFunc(s.params)
-	if h := s.form.ham; h != nil && h.separable {
-		p.Split = h.split(s.params)
-	}
+	p.Fork = func() integrate.Problem { return s.fields(params) }
 	return p
 }
 

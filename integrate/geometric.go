@@ -395,6 +395,7 @@ func SolveReversible(ctx context.Context, p Problem, t1 float64, family func(h f
 	if err := p.validate(t1); err != nil {
 		return nil, err
 	}
+	p = p.Own()
 	m := family(eps)
 	if m == nil {
 		return nil, fmt.Errorf("integrate: SolveReversible: nil method: %w", ErrMethod)

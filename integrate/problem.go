@@ -26,6 +26,33 @@ type Problem struct {
 	// Split, if not nil, gives the separable parts of a Hamiltonian problem
 	// for the symplectic methods. Explicit Runge–Kutta methods ignore it.
 	Split *Separable
+	// Fork, if not nil, returns fresh F, Jac and Split that compute the
+	// same values as these but share no workspace with them or with any
+	// other Fork's (its T0 and Y0 are ignored). Fork describes F, Jac and
+	// Split: a caller who replaces any of them in a copy of a Problem sets
+	// Fork to nil (or to one that forks the replacement), or runs would
+	// use the functions Fork makes instead. Functions that keep scratch
+	// space between calls, as compiled formulas do, set it so that one
+	// Problem can be handed to runs in several goroutines: every entry
+	// point of integrate and lyap calls it once at set-up (see Own), so
+	// the step loop pays nothing for it. Problems from plumb's System have
+	// it.
+	Fork func() Problem
+}
+
+// Own returns p with F, Jac and Split of its own from p.Fork, or p itself
+// when Fork is nil. Each of Solve, NewStepper, SolveReversible and the lyap
+// entry points calls it once, so concurrent runs of one Problem do not share
+// the functions' workspaces. A caller that calls F itself from several
+// goroutines calls Own once per goroutine. The functions of a Problem with
+// no Fork must be safe for concurrent use to be shared.
+func (p Problem) Own() Problem {
+	if p.Fork == nil {
+		return p
+	}
+	f := p.Fork()
+	p.F, p.Jac, p.Split = f.F, f.Jac, f.Split
+	return p
 }
 
 // Separable describes a Hamiltonian H(q, p) = T(p) + V(q) whose state is laid

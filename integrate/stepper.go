@@ -85,6 +85,7 @@ func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) 
 	if err := p.validate(t1); err != nil {
 		return nil, err
 	}
+	p = p.Own()
 	n := len(p.Y0)
 	cfg, err := resolve(s, n, p.T0, t1, m)
 	if err != nil {

@@ -135,6 +135,7 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 	if err := validateProblem(p); err != nil {
 		return nil, err
 	}
+	p = p.Own() // workspaces of its own: p may be shared with other runs
 	n := len(p.Y0)
 	if err := checkCount(k, n); err != nil {
 		return nil, err

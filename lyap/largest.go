@@ -72,6 +72,7 @@ func newTwoRun(p integrate.Problem, s *Settings) (*twoRun, error) {
 	if err := validateProblem(p); err != nil {
 		return nil, err
 	}
+	p = p.Own() // workspaces of its own: p may be shared with other runs
 	cfg, err := resolve(s)
 	if err != nil {
 		return nil, err
