@@ -61,7 +61,7 @@ func TestMapRungLoopAllocs(t *testing.T) {
 	allocs := testing.AllocsPerRun(100, func() {
 		m.Next(x, y)
 		r.Vec(y, y)
-		_ = mapDist(y, ref, 5, nil)
+		_ = mapDist(y, ref, 5, nil, nil)
 	})
 	if allocs != 0 {
 		t.Errorf("a rung's iterate allocates %v times", allocs)

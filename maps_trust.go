@@ -60,8 +60,8 @@ func DefaultMapRungs(steps int) []MapRung {
 // the tolerance is the caller's statement of what difference matters.
 type MapTrustSettings struct {
 	// Tol is the distance between orbits the caller accepts, in the
-	// state's units (Euclidean norm, angles wrapped by their period). Must
-	// be finite and > 0; otherwise ErrTolerance.
+	// state's units (Euclidean norm, angles wrapped by their period; see
+	// Distance). Must be finite and > 0; otherwise ErrTolerance.
 	Tol float64
 	// Relative makes Tol a fraction of the reference orbit's spread (its
 	// root-mean-square distance from its mean).
@@ -78,11 +78,16 @@ type MapTrustSettings struct {
 	// Lambda, when positive, is used as the largest Lyapunov exponent (per
 	// iteration) and no estimate is made. Must be finite and >= 0.
 	Lambda float64
+	// Distance chooses the components compared (by the system's state
+	// names) and their scales; the zero value is the Euclidean distance
+	// over every component. Errors: *DistanceError, before any work.
+	Distance Distance
 }
 
 // MapReport is the outcome of TrustMap. Its JSON form (snake_case fields) is
 // the document `plumb trust --format json` writes for a map; times are
-// iterates, distances in the state's units.
+// iterates, distances in the audit's distance (see Distance: the state's
+// units unless scaled).
 type MapReport struct {
 	// Steps is the audited number of iterations (iterates 0..Steps).
 	Steps int `json:"steps"`
@@ -95,6 +100,8 @@ type MapReport struct {
 	// mean, Magnitude its root-mean-square norm (the scale of a rounding).
 	Spread    float64 `json:"spread"`
 	Magnitude float64 `json:"magnitude"`
+	// Distance is the distance every comparison used.
+	Distance DistanceReport `json:"distance"`
 	// TrustedUntil is the last iterate up to which every rung agrees with
 	// the reference within Tol (Steps if all do).
 	TrustedUntil int `json:"trusted_until"`
@@ -249,6 +256,10 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 			return nil, fmt.Errorf("plumb: MapTrustSettings.Rungs[%d] (%s): %w", i, r.Name, err)
 		}
 	}
+	scales, err := s.Distance.PerComponent(sys.States)
+	if err != nil {
+		return nil, err
+	}
 	ev, err := sys.DoubleDoubleEvaluator()
 	if err != nil {
 		return nil, fmt.Errorf("plumb: TrustMap: %w", err)
@@ -267,13 +278,14 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 	rep := &MapReport{
 		Steps: steps, Tol: s.Tol, Relative: s.Relative, TolAbs: s.Tol, Reference: "double-double (about 32 digits)",
 		Rungs: []MapRungReport{}, Caution: Caution, Arch: runtime.GOARCH, Version: buildVersion(),
+		Distance: newDistanceReport(sys.States, scales, periods),
 	}
 
 	// The reference orbit, kept as float64 pairs (hi, lo) per iterate.
 	n := len(x0)
 	ref, refErr := ddOrbit(ctx, ev, x0, steps, periods)
 	reached := len(ref)/(2*n) - 1 // last iterate of the reference
-	rep.Magnitude, rep.Spread = orbitSize(ref, n, reached)
+	rep.Magnitude, rep.Spread = orbitSize(ref, n, reached, scales)
 	if refErr != nil {
 		rep.Verdict = Incomplete
 		rep.TrustedUntil = 0
@@ -295,7 +307,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 			rep.Verdict = Incomplete
 			return rep, fmt.Errorf("plumb: TrustMap canceled after %d rungs: %w", len(rep.Rungs), err)
 		}
-		rep.Rungs = append(rep.Rungs, runMapRung(ctx, m, r, x0, ref, steps, periods, rep.Magnitude, tol, x, y))
+		rep.Rungs = append(rep.Rungs, runMapRung(ctx, m, r, x0, ref, steps, periods, scales, rep.Magnitude, tol, x, y))
 	}
 
 	lambda := s.Lambda
@@ -383,8 +395,9 @@ func ddOrbit(ctx context.Context, ev *DDEvaluator, x0 []float64, steps int, peri
 }
 
 // orbitSize returns the root-mean-square norm of iterates 0..last of a
-// (hi, lo) orbit and its root-mean-square distance from its mean.
-func orbitSize(ref []float64, n, last int) (mag, spread float64) {
+// (hi, lo) orbit and its root-mean-square distance from its mean, over the
+// observed components divided by their scales (nil: all, at scale 1).
+func orbitSize(ref []float64, n, last int, scales []float64) (mag, spread float64) {
 	if last < 0 {
 		return 0, 0
 	}
@@ -394,6 +407,12 @@ func orbitSize(ref []float64, n, last int) (mag, spread float64) {
 	for it := 0; it <= last; it++ {
 		for i := 0; i < n; i++ {
 			v := ref[2*(it*n+i)]
+			if scales != nil {
+				if scales[i] == 0 {
+					continue // not observed
+				}
+				v /= scales[i]
+			}
 			mean[i] += v
 			sq += float64(v * v)
 		}
@@ -410,12 +429,16 @@ func orbitSize(ref []float64, n, last int) (mag, spread float64) {
 
 // mapDist is the Euclidean distance between the float64 state x and the
 // reference iterate it (hi, lo pairs), with wrapped differences on periodic
-// components. The difference is taken in double-double, so it is exact to
-// the reference's accuracy.
-func mapDist(x, ref []float64, it int, periods []float64) float64 {
+// components, over the observed components divided by their scales (nil:
+// all, at scale 1). The difference is taken in double-double, so it is
+// exact to the reference's accuracy.
+func mapDist(x, ref []float64, it int, periods, scales []float64) float64 {
 	n := len(x)
 	var s float64
 	for i, v := range x {
+		if scales != nil && scales[i] == 0 {
+			continue
+		}
 		r := dd.Float{Hi: ref[2*(it*n+i)], Lo: ref[2*(it*n+i)+1]}
 		d := dd.Sub(dd.From(v), r).Float64()
 		if i < len(periods) && periods[i] > 0 {
@@ -427,13 +450,16 @@ func mapDist(x, ref []float64, it int, periods []float64) float64 {
 				d += p
 			}
 		}
+		if scales != nil {
+			d /= scales[i]
+		}
 		s += float64(d * d)
 	}
 	return math.Sqrt(s)
 }
 
 // runMapRung iterates one rung and compares it with the reference.
-func runMapRung(ctx context.Context, m *MapSystem, r MapRung, x0, ref []float64, steps int, periods []float64, mag, tol float64, x, y []float64) MapRungReport {
+func runMapRung(ctx context.Context, m *MapSystem, r MapRung, x0, ref []float64, steps int, periods, scales []float64, mag, tol float64, x, y []float64) MapRungReport {
 	n := len(x0)
 	out := MapRungReport{Name: r.Name, Effect: r.Kind.String(), AgreesUntil: -1}
 	var store integrate.Rounding
@@ -457,11 +483,15 @@ func runMapRung(ctx context.Context, m *MapSystem, r MapRung, x0, ref []float64,
 		}
 		wrapPeriodic(x, periods)
 		out.Delta0 = roundingUnit(r.Restart, mag)
+		if r.Restart.Kind == integrate.DecimalPlaces {
+			// An absolute rounding per component, in the audit's distance.
+			out.Delta0 *= absWeight(scales)
+		}
 	}
 	out.Divergence = make([]float64, 0, steps-out.Start+1)
 	it := out.Start
 	for {
-		d := mapDist(x, ref, it, periods)
+		d := mapDist(x, ref, it, periods, scales)
 		out.Divergence = append(out.Divergence, d)
 		if d > tol && !out.Departed {
 			out.Departed, out.DepartsAt = true, it
@@ -613,6 +643,7 @@ func (rep *MapReport) fill() {
 func (rep *MapReport) Write(w io.Writer) error {
 	var b strings.Builder
 	fmt.Fprintf(&b, "audit of iterates 0 .. %d at tolerance %s\n", rep.Steps, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
+	fmt.Fprintf(&b, "distance: %s\n", rep.Distance)
 	fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference)
 	table := make([]rungRow, len(rep.Rungs))
 	for i, r := range rep.Rungs {
@@ -649,7 +680,7 @@ func (rep *MapReport) Write(w io.Writer) error {
 		b.WriteString("divergence growth undetermined (too few points, or no divergence at all)\n")
 	}
 	if rep.PredictedHorizon > 0 {
-		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda: iterate %.4g\n", rep.PredictedHorizon)
+		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda%s: iterate %.4g\n", rep.Distance.deltaNote(), rep.PredictedHorizon)
 	}
 	if rep.Failed > 0 {
 		fmt.Fprintf(&b, "%d rung(s) failed; their curves end where they stopped\n", rep.Failed)
