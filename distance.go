@@ -103,7 +103,7 @@ func (d Distance) PerComponent(states []string) ([]float64, error) {
 		case !(sc.Value > 0) || math.IsInf(sc.Value, 0):
 			return nil, &DistanceError{Field: "Scales", Index: k, Name: sc.Name, Why: "scale " + formatScale(sc.Value) + " must be positive and finite", Err: integrate.ErrSettings}
 		case scales[i] == 0:
-			return nil, &DistanceError{Field: "Scales", Index: k, Name: sc.Name, Why: "the component is not observed (Observe leaves it out)", Err: ErrUnknown}
+			return nil, &DistanceError{Field: "Scales", Index: k, Name: sc.Name, Why: "not an observed component", Err: ErrUnknown}
 		}
 		seen[i] = true
 		scales[i] = sc.Value

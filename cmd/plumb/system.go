@@ -10,8 +10,9 @@ import (
 )
 
 // loadSystem returns the system the shared flags name: --file, else --model
-// (name defaults to the command's own), with every --set applied in order.
-// This is the one place where a command gets its system.
+// (name defaults to the command's own), with every --set, then every
+// --start, applied in order. This is the one place where a command gets
+// its system.
 func (sh *shared) loadSystem(name string) (*plumb.System, error) {
 	if sh.file != "" {
 		sys, err := sh.loadFile()
@@ -68,11 +69,16 @@ func fileSystemName(path string) string {
 	return base
 }
 
-// applySets applies every --set in order.
+// applySets applies every --set, then every --start, in order.
 func (sh *shared) applySets(sys *plumb.System) (*plumb.System, error) {
 	for _, s := range sh.sets {
 		if err := sys.Set(s.name, s.value); err != nil {
 			return nil, usagef("--set %s=%s: %v", s.name, formatFloat(s.value), err)
+		}
+	}
+	for _, s := range sh.starts.paramList {
+		if err := sys.SetStartValue(s.name, s.value); err != nil {
+			return nil, usagef("--start %s=%s: %v", s.name, formatFloat(s.value), err)
 		}
 	}
 	return sys, nil
