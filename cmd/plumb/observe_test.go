@@ -4,11 +4,16 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"errors"
+	"math"
 	"os"
+	"slices"
 	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/require"
+
+	"github.com/plumbdyn/plumb"
 )
 
 // plumbRunStdin is plumbRun with stdin.
@@ -203,4 +208,77 @@ func TestObserveStartErrors(t *testing.T) {
 			}
 		})
 	}
+}
+
+// FuzzStartScaleFlags: --start and --scale NAME=VALUE never panic, refuse
+// with a message, accept only a name and a finite number, and read back
+// what they print (parse(format(x)) == x).
+func FuzzStartScaleFlags(f *testing.F) {
+	for _, s := range []string{"x=0.8", "z=10", " y = -0 ", "x=0x1p-3", "=", "x=", "x=NaN", "x=Inf", "a=b=c", "θ=1.5", "x=1e400", "x=1e-320"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		for _, l := range []interface {
+			Set(string) error
+			String() string
+			list() paramList
+		}{&startList{}, &scaleList{}} {
+			if err := l.Set(s); err != nil {
+				if err.Error() == "" {
+					t.Errorf("Set(%q): empty error", s)
+				}
+				continue
+			}
+			got := l.list()
+			if len(got) != 1 || got[0].name == "" || strings.Contains(got[0].name, "=") || math.IsNaN(got[0].value) || math.IsInf(got[0].value, 0) {
+				t.Fatalf("Set(%q) accepted %+v", s, got)
+			}
+			var again paramList
+			if err := again.Set(l.String()); err != nil {
+				t.Fatalf("Set(%q) (formatted from %q): %v", l.String(), s, err)
+			}
+			if again[0].name != got[0].name || math.Float64bits(again[0].value) != math.Float64bits(got[0].value) {
+				t.Errorf("round trip %q -> %+v -> %q -> %+v", s, got[0], l.String(), again[0])
+			}
+		}
+	})
+}
+
+func (l *startList) list() paramList { return l.paramList }
+func (l *scaleList) list() paramList { return l.paramList }
+
+// FuzzObserveFlag: any --observe list with any one --scale either gives a
+// Distance the SDK accepts, over names of the system's states, or a usage
+// error that names --observe or --scale; it never panics.
+func FuzzObserveFlag(f *testing.F) {
+	for _, c := range [][2]string{{"x", ""}, {"x,z", "z=10"}, {"x,,z", ""}, {"", "x=2"}, {" y ", "y=0"}, {"x,x", "x=1"}, {"w", "x=-1"}, {"y", "x=2"}, {",", "=1"}} {
+		f.Add(c[0], c[1])
+	}
+	sys, err := plumb.Model("lorenz")
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Fuzz(func(t *testing.T, observe, scale string) {
+		d := &distanceFlags{observe: observe}
+		if scale != "" && d.scales.Set(scale) != nil {
+			return // refused by the flag parser (FuzzStartScaleFlags)
+		}
+		cl := &call{sh: &shared{given: map[string]bool{"observe": observe != ""}}}
+		dist, err := d.distance(cl, sys)
+		if err != nil {
+			var ue *usageError
+			if !errors.As(err, &ue) || !(strings.HasPrefix(ue.msg, "--observe") || strings.HasPrefix(ue.msg, "--scale")) {
+				t.Fatalf("--observe %q --scale %q: %v is no usage error naming the flag", observe, scale, err)
+			}
+			return
+		}
+		if _, err := dist.PerComponent(sys.States); err != nil {
+			t.Fatalf("--observe %q --scale %q accepted %+v, which the SDK refuses: %v", observe, scale, dist, err)
+		}
+		for _, n := range dist.Observe {
+			if !slices.Contains(sys.States, n) {
+				t.Fatalf("--observe %q accepted %q", observe, n)
+			}
+		}
+	})
 }
