@@ -227,28 +227,82 @@ func TestTrustMapObserveByHand(t *testing.T) {
 }
 
 // TestTrustMapScaleIdentity: for a map too, scale 2 on every component at
-// tolerance 1 is the audit at tolerance 2 (exact identity, as for flows).
+// tolerance 1 is the audit at tolerance 2, and with Relative the same
+// fraction (exact identity, as for flows). On the standard map, whose
+// components are angles, the differences are wrapped before they are
+// divided: the curves past the departure, of the size of the period, hold
+// the identity only in that order.
 func TestTrustMapScaleIdentity(t *testing.T) {
-	sys, err := Model("henon")
-	require.NoError(t, err)
-	plain, err := TrustMap(context.Background(), sys, 150, &MapTrustSettings{Tol: 2, Lambda: henonLambda1})
-	require.NoError(t, err)
-	scaled, err := TrustMap(context.Background(), sys, 150, &MapTrustSettings{Tol: 1, Lambda: henonLambda1, Distance: Distance{Scales: []Scale{{"x", 2}, {"y", 2}}}})
-	require.NoError(t, err)
-	require.Equal(t, plain.TrustedUntil, scaled.TrustedUntil)
-	require.Equal(t, plain.PredictedHorizon, scaled.PredictedHorizon, "prediction: tol and delta0 both halve (exact identity)")
-	for i, pr := range plain.Rungs {
-		sr := scaled.Rungs[i]
-		require.Equalf(t, pr.AgreesUntil, sr.AgreesUntil, "rung %s (exact identity)", pr.Name)
-		require.Equalf(t, pr.DepartsAt, sr.DepartsAt, "rung %s (exact identity)", pr.Name)
-		require.Equalf(t, pr.Delta0/2, sr.Delta0, "rung %s delta0 (exact identity)", pr.Name)
-		for k := range pr.Divergence {
-			if pr.Divergence[k]/2 != sr.Divergence[k] {
-				t.Fatalf("rung %s iterate %d: %v, want half of %v (exact identity)", pr.Name, k, sr.Divergence[k], pr.Divergence[k])
-			}
+	for _, c := range []struct {
+		model    string
+		steps    int
+		relative bool
+	}{
+		{"henon", 150, false},
+		{"henon", 150, true},
+		{"standard", 200, false},
+	} {
+		sys, err := Model(c.model)
+		require.NoError(t, err)
+		var half []Scale
+		for _, n := range sys.States {
+			half = append(half, Scale{n, 2})
 		}
+		plainTol, scaledTol := 2.0, 1.0
+		if c.relative {
+			plainTol, scaledTol = 0.05, 0.05
+		}
+		plain, err := TrustMap(context.Background(), sys, c.steps, &MapTrustSettings{Tol: plainTol, Relative: c.relative, Lambda: 0.4})
+		require.NoError(t, err)
+		scaled, err := TrustMap(context.Background(), sys, c.steps, &MapTrustSettings{Tol: scaledTol, Relative: c.relative, Lambda: 0.4, Distance: Distance{Scales: half}})
+		require.NoError(t, err)
+		require.Equalf(t, plain.TrustedUntil, scaled.TrustedUntil, "%s", c.model)
+		require.Equalf(t, plain.PredictedHorizon, scaled.PredictedHorizon, "%s prediction: tol and delta0 both halve (exact identity)", c.model)
+		require.Equalf(t, plain.TolAbs/2, scaled.TolAbs, "%s absolute tolerance (exact identity)", c.model)
+		departed := false
+		for i, pr := range plain.Rungs {
+			sr := scaled.Rungs[i]
+			require.Equalf(t, pr.AgreesUntil, sr.AgreesUntil, "%s rung %s (exact identity)", c.model, pr.Name)
+			require.Equalf(t, pr.DepartsAt, sr.DepartsAt, "%s rung %s (exact identity)", c.model, pr.Name)
+			require.Equalf(t, pr.Delta0/2, sr.Delta0, "%s rung %s delta0 (exact identity)", c.model, pr.Name)
+			for k := range pr.Divergence {
+				if pr.Divergence[k]/2 != sr.Divergence[k] {
+					t.Fatalf("%s rung %s iterate %d: %v, want half of %v (exact identity)", c.model, pr.Name, k, sr.Divergence[k], pr.Divergence[k])
+				}
+			}
+			departed = departed || pr.Departed
+		}
+		require.Truef(t, departed, "%s: some rung must depart for the check to bite", c.model)
 	}
-	require.True(t, plain.Rungs[0].Departed, "float64 must depart for the check to bite")
+}
+
+// TestTrustPeriodicScaleIdentity: the crane's double pendulum, two angles
+// and two rates, with scale 2 on every component at tolerance 0.05 is the
+// audit at 0.1 unscaled; the angle differences are wrapped before they are
+// divided (exact identity: wrapping d/2 by the period would differ once a
+// difference passes half a period).
+func TestTrustPeriodicScaleIdentity(t *testing.T) {
+	sys, err := Model("double-pendulum")
+	require.NoError(t, err)
+	var half []Scale
+	for _, n := range sys.States {
+		half = append(half, Scale{n, 2})
+	}
+	l := integrate.DefaultLadder(0, 20)
+	l.Rungs = l.Rungs[:1]
+	plain, err := Trust(context.Background(), sys.Problem(), 20, &TrustSettings{Tol: 0.1, Ladder: &l, Lambda: 1, Periods: sys.Periods(), States: sys.States})
+	require.NoError(t, err)
+	scaled, err := Trust(context.Background(), sys.Problem(), 20, &TrustSettings{Tol: 0.05, Ladder: &l, Lambda: 1, Periods: sys.Periods(), States: sys.States, Distance: Distance{Scales: half}})
+	require.NoError(t, err)
+	require.True(t, plain.Rungs[0].Departed, "the rung must depart for the check to bite")
+	require.Equal(t, plain.TrustedUntil, scaled.TrustedUntil, "exact identity")
+	big := false
+	for k, d := range plain.Rungs[0].Divergence {
+		require.Equalf(t, d/2, scaled.Rungs[0].Divergence[k], "point %d (exact identity)", k)
+		big = big || d > math.Pi
+	}
+	require.True(t, big, "the divergence must pass half a period for the wrap order to matter")
+	require.Contains(t, scaled.Distance.String(), "angles wrapped: theta1, theta2")
 }
 
 // TestSetStartValue: one component by name is the same start as the whole
