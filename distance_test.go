@@ -11,6 +11,7 @@ import (
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/lyap"
 )
 
 // TestDistancePerComponent resolves names into per-component scales and
@@ -326,4 +327,21 @@ func TestSetStartValue(t *testing.T) {
 	require.ErrorIs(t, a.SetStartValue("x", math.NaN()), integrate.ErrNonFinite)
 	require.ErrorIs(t, a.SetStartValue("x", math.Inf(-1)), integrate.ErrNonFinite)
 	require.Equal(t, want, a.Start(), "a refused value changes nothing")
+}
+
+// TestTrustSystemFallbackNames: when TrustSystem falls back to Trust (here
+// because the exponent estimate refuses its settings), the distance still
+// names the system's components.
+func TestTrustSystemFallbackNames(t *testing.T) {
+	sys, err := Model("lorenz")
+	require.NoError(t, err)
+	rep, err := TrustSystem(context.Background(), sys, 15, &TrustSettings{
+		Tol: 1, Ladder: lorenzLadder(), NoReversal: true,
+		Exponent: &lyap.Settings{Duration: -1},
+		Distance: Distance{Observe: []string{"z"}},
+	})
+	require.NoError(t, err)
+	require.NotEmpty(t, rep.ExponentError, "the estimate must fail for the fallback to be taken")
+	require.Nil(t, rep.Exact)
+	require.Equal(t, "Euclidean over z (x, y not compared)", rep.Distance.String())
 }

@@ -97,7 +97,8 @@ type MapReport struct {
 	Relative bool    `json:"relative"`
 	TolAbs   float64 `json:"tol_abs"`
 	// Spread is the reference orbit's root-mean-square distance from its
-	// mean, Magnitude its root-mean-square norm (the scale of a rounding).
+	// mean, Magnitude its root-mean-square norm (the scale of a rounding),
+	// both in the audit's distance (see Distance).
 	Spread    float64 `json:"spread"`
 	Magnitude float64 `json:"magnitude"`
 	// Distance is the distance every comparison used.

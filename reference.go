@@ -367,14 +367,18 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		return nil, err
 	}
 	problem := sys.Problem()
+	if settings != nil && settings.States == nil {
+		// The system's names, for Distance and the report, on every path
+		// (the fallbacks to Trust too).
+		named := *settings
+		named.States = sys.States
+		settings = &named
+	}
 	if settings == nil || !(settings.Tol > 0) || math.IsInf(settings.Tol, 0) ||
 		!(horizon > 0) || math.IsInf(horizon, 0) || !(settings.Lambda >= 0) || math.IsInf(settings.Lambda, 0) {
 		return Trust(ctx, problem, horizon, settings) // its validation and errors
 	}
 	s := *settings
-	if s.States == nil {
-		s.States = sys.States
-	}
 	names, err := stateNames("TrustSettings.States", s.States, len(problem.Y0))
 	if err != nil {
 		return nil, err

@@ -187,7 +187,8 @@ type AuditResult struct {
 	// Spread is the root-mean-square distance of the reference samples
 	// from their mean (circular mean on periodic components): the size of
 	// the attractor or orbit. Magnitude is the root-mean-square norm of the
-	// reference samples.
+	// reference samples. Both are in the audit's distance (observed
+	// components divided by their scales, AuditSettings.Scales).
 	Spread, Magnitude float64
 	// Tol is the absolute divergence tolerance used (Tol·Spread with
 	// Relative).
