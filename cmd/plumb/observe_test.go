@@ -198,6 +198,8 @@ func TestObserveStartErrors(t *testing.T) {
 		{"start NaN", []string{"solve", "--start", "x=NaN"}, []string{"--start", "not a finite number"}},
 		{"start without value", []string{"solve", "--start", "x"}, []string{"--start", "name=value"}},
 		{"observe on solve", []string{"solve", "--observe", "x"}, []string{"--observe"}},
+		{"a state given to --set", []string{"solve", "--set", "x=0.8"}, []string{"--set x=0.8", "state component", "--start x=0.8"}},
+		{"a file's state given to --set", []string{"trust", "--file", labLoop, "--set", "speed=2"}, []string{"--set speed=2", "--start speed=2"}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			r := plumbRun(t, c.args...)

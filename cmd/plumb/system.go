@@ -4,6 +4,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
@@ -73,6 +74,9 @@ func fileSystemName(path string) string {
 func (sh *shared) applySets(sys *plumb.System) (*plumb.System, error) {
 	for _, s := range sh.sets {
 		if err := sys.Set(s.name, s.value); err != nil {
+			if slices.Contains(sys.States, s.name) {
+				return nil, usagef("--set %s=%s: %s is a state component, not a parameter; its start is set with --start %s=%s", s.name, formatFloat(s.value), s.name, s.name, formatFloat(s.value))
+			}
 			return nil, usagef("--set %s=%s: %v", s.name, formatFloat(s.value), err)
 		}
 	}
