@@ -40,6 +40,13 @@
 // (Reference), so the tightest float64 run is audited too, not taken as the
 // truth.
 //
+// The runs are compared by the Euclidean distance over every state
+// component unless TrustSettings.Distance (MapTrustSettings.Distance) names
+// the components that matter and divides each by a scale of its own units;
+// the tolerance, the spread and the predictions are then in that distance,
+// which the report names. System.SetStartValue moves one component of the
+// start by name.
+//
 // # Caution
 //
 // A trust horizon is a numerical statement about a model, not a safety

@@ -57,6 +57,7 @@ type mapLockstep struct {
 	ev      *DDEvaluator
 	m       *MapSystem
 	periods []float64
+	scales  []float64 // Distance.PerComponent: nil, or per component (0: not observed)
 	steps   int
 	stride  int
 	tol     float64
@@ -119,6 +120,12 @@ func (a *mapLockstep) run(ctx context.Context) error {
 		a.reached = it
 		for i, v := range a.cur {
 			h := v.Hi
+			if a.scales != nil {
+				if a.scales[i] == 0 {
+					continue // not observed
+				}
+				h /= a.scales[i]
+			}
 			a.mean[i] += h
 			a.sq += float64(h * h)
 		}
@@ -134,7 +141,7 @@ func (a *mapLockstep) run(ctx context.Context) error {
 			if !run.live {
 				continue
 			}
-			d := refDist(run.x, a.cur, a.periods)
+			d := refDistScaled(run.x, a.cur, a.periods, a.scales)
 			curMax = math.Max(curMax, d)
 			if at, ok := run.record(it, d, a); ok {
 				event, eventAt = true, min(eventAt, at)
@@ -300,8 +307,17 @@ func (run *mapRun) finish() {
 // components. The difference is taken in double-double, so it is exact to
 // the reference's accuracy.
 func refDist(x []float64, ref []dd.Float, periods []float64) float64 {
+	return refDistScaled(x, ref, periods, nil)
+}
+
+// refDistScaled is refDist over the observed components, each wrapped
+// difference divided by its scale (scales nil: all, at scale 1).
+func refDistScaled(x []float64, ref []dd.Float, periods, scales []float64) float64 {
 	var s float64
 	for i, v := range x {
+		if scales != nil && scales[i] == 0 {
+			continue
+		}
 		d := dd.Sub(dd.From(v), ref[i]).Float64()
 		if i < len(periods) && periods[i] > 0 {
 			p := periods[i]
@@ -311,6 +327,9 @@ func refDist(x []float64, ref []dd.Float, periods []float64) float64 {
 			} else if d < -p/2 {
 				d += p
 			}
+		}
+		if scales != nil {
+			d /= scales[i]
 		}
 		s += float64(d * d)
 	}

@@ -59,8 +59,8 @@ func DefaultMapRungs(steps int) []MapRung {
 // the tolerance is the caller's statement of what difference matters.
 type MapTrustSettings struct {
 	// Tol is the distance between orbits the caller accepts, in the
-	// state's units (Euclidean norm, angles wrapped by their period). Must
-	// be finite and > 0; otherwise ErrTolerance.
+	// state's units (Euclidean norm, angles wrapped by their period; see
+	// Distance). Must be finite and > 0; otherwise ErrTolerance.
 	Tol float64
 	// Relative makes Tol a fraction of the reference orbit's spread (its
 	// root-mean-square distance from its mean).
@@ -77,11 +77,16 @@ type MapTrustSettings struct {
 	// Lambda, when positive, is used as the largest Lyapunov exponent (per
 	// iteration) and no estimate is made. Must be finite and >= 0.
 	Lambda float64
+	// Distance chooses the components compared (by the system's state
+	// names) and their scales; the zero value is the Euclidean distance
+	// over every component. Errors: *DistanceError, before any work.
+	Distance Distance
 }
 
 // MapReport is the outcome of TrustMap. Its JSON form (snake_case fields) is
 // the document `plumb trust --format json` writes for a map; times are
-// iterates, distances in the state's units.
+// iterates, distances in the audit's distance (see Distance: the state's
+// units unless scaled).
 type MapReport struct {
 	// Steps is the audited number of iterations (iterates 0..Steps).
 	Steps int `json:"steps"`
@@ -91,9 +96,12 @@ type MapReport struct {
 	Relative bool    `json:"relative"`
 	TolAbs   float64 `json:"tol_abs"`
 	// Spread is the reference orbit's root-mean-square distance from its
-	// mean, Magnitude its root-mean-square norm (the scale of a rounding).
+	// mean, Magnitude its root-mean-square norm (the scale of a rounding),
+	// both in the audit's distance (see Distance).
 	Spread    float64 `json:"spread"`
 	Magnitude float64 `json:"magnitude"`
+	// Distance is the distance every comparison used.
+	Distance DistanceReport `json:"distance"`
 	// TrustedUntil is the last iterate up to which every rung agrees with
 	// the reference within Tol (Steps if all do).
 	TrustedUntil int `json:"trusted_until"`
@@ -260,6 +268,10 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 			return nil, fmt.Errorf("plumb: MapTrustSettings.Rungs[%d] (%s): %w", i, r.Name, err)
 		}
 	}
+	scales, err := s.Distance.PerComponent(sys.States)
+	if err != nil {
+		return nil, err
+	}
 	ev, err := sys.DoubleDoubleEvaluator()
 	if err != nil {
 		return nil, fmt.Errorf("plumb: TrustMap: %w", err)
@@ -278,6 +290,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 	rep := &MapReport{
 		Steps: steps, Tol: s.Tol, Relative: s.Relative, TolAbs: s.Tol, Reference: "double-double (about 32 digits)",
 		Rungs: []MapRungReport{}, Caution: Caution, Arch: runtime.GOARCH, Version: buildVersion(),
+		Distance: newDistanceReport(sys.States, scales, periods),
 	}
 
 	// The reference and the rungs advance together, so that nothing of
@@ -286,6 +299,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 	tol := s.Tol
 	if s.Relative {
 		pre := newMapLockstep(ev, m, nil, x0, steps, periods, math.Inf(1))
+		pre.scales = scales
 		preErr := pre.run(ctx)
 		rep.Magnitude, rep.Spread = pre.size()
 		if preErr != nil {
@@ -301,6 +315,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 		}
 	}
 	a := newMapLockstep(ev, m, rungs, x0, steps, periods, tol)
+	a.scales = scales
 	runErr := a.run(ctx)
 	if !s.Relative || runErr != nil {
 		rep.Magnitude, rep.Spread = a.size()
@@ -311,6 +326,10 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 		switch {
 		case run.r.Kind == integrate.KindRestart:
 			r.Delta0 = roundingUnit(run.r.Restart, rep.Magnitude)
+			if run.r.Restart.Kind == integrate.DecimalPlaces {
+				// An absolute rounding per component, in the audit's distance.
+				r.Delta0 *= absWeight(scales)
+			}
 		case run.store.Kind != integrate.NoRounding:
 			r.Delta0 = roundingUnit(run.store, rep.Magnitude)
 		default:
@@ -449,6 +468,7 @@ func (rep *MapReport) fill(maxDiv float64) {
 func (rep *MapReport) Write(w io.Writer) error {
 	var b strings.Builder
 	fmt.Fprintf(&b, "audit of iterates 0 .. %d at tolerance %s\n", rep.Steps, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
+	fmt.Fprintf(&b, "distance: %s\n", rep.Distance)
 	fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference)
 	table := make([]rungRow, len(rep.Rungs))
 	for i, r := range rep.Rungs {
@@ -485,7 +505,7 @@ func (rep *MapReport) Write(w io.Writer) error {
 		b.WriteString("divergence growth undetermined (too few points, or no divergence at all)\n")
 	}
 	if rep.PredictedHorizon > 0 {
-		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda: iterate %.4g\n", rep.PredictedHorizon)
+		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda%s: iterate %.4g\n", rep.Distance.deltaNote(), rep.PredictedHorizon)
 	}
 	if rep.Failed > 0 {
 		fmt.Fprintf(&b, "%d rung(s) failed; their curves end where they stopped\n", rep.Failed)

@@ -299,8 +299,9 @@ const refTolFraction = 1e-3
 // TrustSystem is Trust for a system with formulas, with a multiprecision
 // reference: every rung of the ladder is compared with a Taylor reference
 // trajectory (see Reference) accurate to refTolFraction·Tol at the end of
-// the span and at least MinReferenceDigits digits throughout, instead of
-// with the tightest float64 run; that run becomes one more comparison
+// the span (in the audit's distance: the absolute accuracy is that times
+// the smallest observed scale, see Distance) and at least
+// MinReferenceDigits digits throughout, instead of with the tightest float64 run; that run becomes one more comparison
 // (Report.Reference gets a divergence curve and its agreement horizon).
 // The precision follows ReferenceDigits from the largest exponent
 // (TrustSettings.Lambda, or the estimate Trust would make, made first),
@@ -366,11 +367,31 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		return nil, err
 	}
 	problem := sys.Problem()
+	if settings != nil && settings.States == nil {
+		// The system's names, for Distance and the report, on every path
+		// (the fallbacks to Trust too).
+		named := *settings
+		named.States = sys.States
+		settings = &named
+	}
 	if settings == nil || !(settings.Tol > 0) || math.IsInf(settings.Tol, 0) ||
 		!(horizon > 0) || math.IsInf(horizon, 0) || !(settings.Lambda >= 0) || math.IsInf(settings.Lambda, 0) {
 		return Trust(ctx, problem, horizon, settings) // its validation and errors
 	}
 	s := *settings
+	names, err := stateNames("TrustSettings.States", s.States, len(problem.Y0))
+	if err != nil {
+		return nil, err
+	}
+	scales, err := s.Distance.PerComponent(names)
+	if err != nil {
+		return nil, err
+	}
+	// The reference must be accurate to refTolFraction·Tol in the audit's
+	// distance: a component scaled by s counts an absolute error e as e/s,
+	// so the absolute accuracy asked for is that times the smallest
+	// observed scale.
+	refTol := refTolFraction * s.Tol * minScale(scales)
 	var est *ExponentEstimate
 	if s.Lambda == 0 {
 		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
@@ -400,7 +421,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 	for _, v := range problem.Y0 {
 		scale = math.Max(scale, math.Abs(v))
 	}
-	digits := ReferenceDigits(s.Lambda, horizon, refTolFraction*s.Tol, scale)
+	digits := ReferenceDigits(s.Lambda, horizon, refTol, scale)
 	ladder := integrate.DefaultLadder(problem.T0, problem.T0+horizon)
 	if s.Ladder != nil {
 		ladder = *s.Ladder
@@ -443,12 +464,12 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		}
 		if last, ok := lastDeparture(first); err == nil && ok {
 			until := problem.T0 + float64(spanMargin*(last-problem.T0)) + spanLyapunovTimes/s.Lambda
-			if d := ReferenceDigits(s.Lambda, until-problem.T0, refTolFraction*s.Tol, scale); until < end && d < digits {
+			if d := ReferenceDigits(s.Lambda, until-problem.T0, refTol, scale); until < end && d < digits {
 				rep, err := audit(d, until)
 				if err != nil && ctx.Err() != nil {
 					return rep, err
 				}
-				local := localSpan(s.Lambda, refTolFraction*s.Tol, scale)
+				local := localSpan(s.Lambda, refTol, scale)
 				if err == nil && spanCovers(rep, until, local) {
 					return rep, nil
 				}

@@ -70,6 +70,14 @@ type TrustSettings struct {
 	// Periods gives, per component, the period of an angle (0 for the
 	// others), for wrapped distances; see System.Periods. Nil: none.
 	Periods []float64
+	// States names the state components, for Distance and the report; nil
+	// means "y[0]", "y[1]", ... (TrustSystem takes the system's names).
+	// Otherwise its length must equal the state's (integrate.ErrDimension).
+	States []string
+	// Distance chooses the components compared and their scales; the zero
+	// value is the Euclidean distance over every component. Errors:
+	// *DistanceError, before any work.
+	Distance Distance
 	// Every is the spacing of the comparison grid; zero means horizon/1000.
 	Every float64
 	// Exponent controls the estimate of the largest Lyapunov exponent
@@ -89,7 +97,8 @@ type TrustSettings struct {
 
 // Report is the outcome of Trust. Its JSON form (snake_case fields) is the
 // document `plumb trust --format json` writes; times are in the problem's
-// time units, distances in the state's units.
+// time units, distances in the audit's distance (see Distance: the state's
+// units unless scaled).
 type Report struct {
 	// T0 is the start and Horizon the requested span: the audit covers
 	// [T0, T0+Horizon].
@@ -103,6 +112,9 @@ type Report struct {
 	// Spread is the reference run's root-mean-square distance from its
 	// mean: the size of the attractor or orbit.
 	Spread float64 `json:"spread"`
+	// Distance is the distance every comparison used (tolerances, spread,
+	// divergences, delta0, the reversibility miss).
+	Distance DistanceReport `json:"distance"`
 
 	// TrustedUntil is the time up to which every rung agrees with the
 	// reference within TolAbs (T0+Horizon if all do).
@@ -258,6 +270,14 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	if err := checkTolLambda("TrustSettings", s.Tol, s.Lambda); err != nil {
 		return nil, err
 	}
+	names, err := stateNames("TrustSettings.States", s.States, len(problem.Y0))
+	if err != nil {
+		return nil, err
+	}
+	scales, err := s.Distance.PerComponent(names)
+	if err != nil {
+		return nil, err
+	}
 	t1 := problem.T0 + horizon
 	ladder := integrate.DefaultLadder(problem.T0, t1)
 	if s.Ladder != nil {
@@ -266,9 +286,10 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	rep := &Report{
 		T0: problem.T0, Horizon: horizon, Tol: s.Tol, Relative: s.Relative,
 		Caution: Caution, Arch: runtime.GOARCH, Version: buildVersion(),
+		Distance: newDistanceReport(names, scales, s.Periods),
 	}
 	as := &integrate.AuditSettings{
-		Tol: s.Tol, Relative: s.Relative, Every: s.Every, Periods: s.Periods, Reverse: !s.NoReversal,
+		Tol: s.Tol, Relative: s.Relative, Every: s.Every, Periods: s.Periods, Scales: scales, Reverse: !s.NoReversal,
 	}
 	progress := func(stage string, done, total int) {
 		if s.Progress != nil {
@@ -527,6 +548,7 @@ func buildVersion() string {
 func (rep *Report) Write(w io.Writer) error {
 	var b strings.Builder
 	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
+	fmt.Fprintf(&b, "distance: %s\n", rep.Distance)
 	rows := rep.Rungs
 	if ex := rep.Exact; ex != nil {
 		if ex.Continued != "" {
@@ -581,7 +603,7 @@ func (rep *Report) Write(w io.Writer) error {
 		b.WriteString("divergence growth undetermined (too few points)\n")
 	}
 	if rep.PredictedHorizon > 0 {
-		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda: %.4g\n", rep.PredictedHorizon)
+		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda%s: %.4g\n", rep.Distance.deltaNote(), rep.PredictedHorizon)
 	}
 	if rep.Float64Horizon > 0 {
 		fmt.Fprintf(&b, "float64 storage itself (extrapolated from the precision rungs): agrees until about %.4g\n", rep.Float64Horizon)

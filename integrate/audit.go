@@ -29,6 +29,15 @@ type AuditSettings struct {
 	// [-P/2, P/2]. Nil means no periodic component; otherwise its length
 	// must equal the state's (ErrDimension).
 	Periods []float64
+	// Scales gives, per state component, the scale its difference is
+	// divided by before the norm (after wrapping on periodic components),
+	// so that components in different units compare; a zero scale leaves
+	// the component out of the distance (it is not observed). Nil means
+	// every component at scale 1. Otherwise its length must equal the
+	// state's (ErrDimension), every entry must be finite and >= 0, and at
+	// least one > 0 (ErrSettings). Spread, Magnitude, the tolerance with
+	// Relative, Delta0 and the reversibility miss use the same distance.
+	Scales []float64
 	// Lambda is the largest Lyapunov exponent, for the predicted horizons
 	// ln(tol/delta0)/Lambda. Zero means no predictions. Must be finite.
 	Lambda float64
@@ -178,7 +187,8 @@ type AuditResult struct {
 	// Spread is the root-mean-square distance of the reference samples
 	// from their mean (circular mean on periodic components): the size of
 	// the attractor or orbit. Magnitude is the root-mean-square norm of the
-	// reference samples.
+	// reference samples. Both are in the audit's distance (observed
+	// components divided by their scales, AuditSettings.Scales).
 	Spread, Magnitude float64
 	// Tol is the absolute divergence tolerance used (Tol·Spread with
 	// Relative).
@@ -224,7 +234,8 @@ const (
 // rounded restart.
 //
 // The distance between two states is the Euclidean norm of their
-// difference, with periodic components wrapped (AuditSettings.Periods).
+// difference, with periodic components wrapped (AuditSettings.Periods), over
+// the observed components, each divided by its scale (AuditSettings.Scales).
 // Audits run forward in time (t1 > p.T0; otherwise ErrSpan).
 //
 // Errors: invalid settings give ErrSettings, ErrDimension or ErrSpan; a
@@ -282,6 +293,9 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 			}
 		}
 	}
+	if err := checkScales(s.Scales, n); err != nil {
+		return nil, err
+	}
 	span := t1 - p.T0
 	if s.Reverse && s.ReverseAt != 0 && !(s.ReverseAt > p.T0 && s.ReverseAt <= t1) {
 		return nil, auditErr("ReverseAt", s.ReverseAt, fmt.Sprintf("not inside (%g, %g]", p.T0, t1))
@@ -306,7 +320,7 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		}
 	}
 
-	a := &auditor{ctx: ctx, p: p, t1: t1, periods: s.Periods, s: s, n: n}
+	a := &auditor{ctx: ctx, p: p, t1: t1, periods: s.Periods, scales: s.Scales, s: s, n: n}
 	a.times = grid(p.T0, t1, every)
 	res := &AuditResult{T0: p.T0, T1: t1, Times: a.times, Limit: -1}
 
@@ -497,6 +511,7 @@ type auditor struct {
 	n       int
 	s       *AuditSettings
 	periods []float64
+	scales  []float64 // AuditSettings.Scales: nil, or per component (0: not observed)
 	times   []float64
 	// The reference run: its sample times (grid and restart times), the
 	// states there, the states on the grid alone, and its work counts.
@@ -517,13 +532,20 @@ func (a *auditor) settings(r resolvedRung, times []float64, drop bool) *Settings
 }
 
 // dist is the Euclidean distance of a and b with periodic components
-// wrapped into [-P/2, P/2].
+// wrapped into [-P/2, P/2], over the observed components, each difference
+// divided by its scale (AuditSettings.Scales).
 func (a *auditor) dist(x, y []float64) float64 {
 	var s float64
 	for i := range x {
+		if a.scales != nil && a.scales[i] == 0 {
+			continue
+		}
 		d := x[i] - y[i]
 		if a.periods != nil && a.periods[i] > 0 {
 			d = math.Remainder(d, a.periods[i])
+		}
+		if a.scales != nil {
+			d /= a.scales[i]
 		}
 		s += float64(d * d)
 	}
@@ -532,19 +554,26 @@ func (a *auditor) dist(x, y []float64) float64 {
 
 // spread returns the root-mean-square distance of the reference samples from
 // their mean (circular mean for periodic components) and their
-// root-mean-square norm.
+// root-mean-square norm, in the audit's distance (observed components,
+// divided by their scales).
 func (a *auditor) spread() (spread, mag float64) {
 	smp := a.refY
 	m := float64(len(smp))
 	for i := 0; i < a.n; i++ {
-		P := 0.0
+		P, sc := 0.0, 1.0
 		if a.periods != nil {
 			P = a.periods[i]
+		}
+		if a.scales != nil {
+			if sc = a.scales[i]; sc == 0 {
+				continue
+			}
 		}
 		var mean, c, sn float64
 		for _, v := range smp {
 			x := v[i]
-			mag += float64(x * x)
+			xs := x / sc
+			mag += float64(xs * xs)
 			if P > 0 {
 				sn0, c0 := detmath.Sincos(2 * math.Pi * x / P)
 				sn += sn0
@@ -563,6 +592,7 @@ func (a *auditor) spread() (spread, mag float64) {
 			if P > 0 {
 				d = math.Remainder(d, P)
 			}
+			d /= sc
 			spread += float64(d * d)
 		}
 	}
@@ -591,9 +621,12 @@ func (a *auditor) run(r resolvedRung, mag float64) RungResult {
 	case KindPrecision:
 		p.Y0 = r.Rounding.Vec(nil, p.Y0)
 		out.Delta0 = r.Rounding.unit(mag)
+		if r.Rounding.Kind == DecimalPlaces {
+			out.Delta0 *= absWeight(a.scales) // absolute per component
+		}
 	default:
 		if r.Fixed == nil {
-			out.Delta0 = float64(r.RelTol*mag) + r.AbsTol
+			out.Delta0 = float64(r.RelTol*mag) + float64(r.AbsTol*absWeight(a.scales))
 		}
 	}
 	out.Start = start

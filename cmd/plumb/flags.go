@@ -17,6 +17,7 @@ type shared struct {
 	model  string
 	file   string
 	sets   paramList
+	starts startList
 	format string
 	plot   string
 	quiet  bool
@@ -30,7 +31,7 @@ type shared struct {
 }
 
 // sharedNames lists the shared flags; help prints them in their own block.
-var sharedNames = map[string]bool{"model": true, "file": true, "set": true, "format": true, "plot": true, "quiet": true}
+var sharedNames = map[string]bool{"model": true, "file": true, "set": true, "start": true, "format": true, "plot": true, "quiet": true}
 
 // addShared registers the shared flags on fs with the defaults of cmd.
 func addShared(fs *flag.FlagSet, cmd *command) *shared {
@@ -42,6 +43,7 @@ func addShared(fs *flag.FlagSet, cmd *command) *shared {
 	fs.StringVar(&sh.model, "model", cmd.model, modelDoc)
 	fs.StringVar(&sh.file, "file", "", "system defined by formulas in the JSON `FILE`, instead of --model")
 	fs.Var(&sh.sets, "set", "set a parameter, given as `NAME=VALUE` (repeatable)")
+	fs.Var(&sh.starts, "start", "set the start value of a state component, given as `NAME=VALUE` (repeatable; the others keep the system's start)")
 	fs.StringVar(&sh.format, "format", "", "output `FORMAT`: "+strings.Join(cmd.formats, ", ")+" (default "+cmd.formats[0]+")")
 	plotDoc := "draw the result into `FILE` (.svg or .png)"
 	if !cmd.plots {
@@ -132,6 +134,24 @@ func (l *paramList) Set(s string) error {
 		return fmt.Errorf("parameter %s: %v", name, err)
 	}
 	*l = append(*l, paramSetting{name: name, value: v})
+	return nil
+}
+
+// startList is the repeatable --start flag: state names with start values.
+type startList struct{ paramList }
+
+// Set parses name=value.
+func (l *startList) Set(s string) error {
+	name, val, ok := strings.Cut(s, "=")
+	name = strings.TrimSpace(name)
+	if !ok || name == "" {
+		return fmt.Errorf("want name=value, e.g. x=0.8")
+	}
+	v, err := parseFinite(val)
+	if err != nil {
+		return fmt.Errorf("state %s: %v", name, err)
+	}
+	l.paramList = append(l.paramList, paramSetting{name: name, value: v})
 	return nil
 }
 

@@ -380,6 +380,10 @@ type mapTrustSettingsJSON struct {
 	Rungs         []string `json:"rungs"`
 	RestartAt     int      `json:"restart_at,omitempty"`
 	RestartPlaces int      `json:"restart_places,omitempty"`
+	// Observe names the compared components (--observe, default all);
+	// Scales are the --scale values as given.
+	Observe []string    `json:"observe"`
+	Scales  []scaleJSON `json:"scales"`
 }
 
 type mapTrustUnitsJSON struct {
@@ -392,14 +396,14 @@ type mapTrustUnitsJSON struct {
 
 var mapTrustUnits = mapTrustUnitsJSON{
 	Iterates: "iterates from the start (horizon, steps, trusted_until, predicted_horizon, agrees_until, departs_at, predicted, restart_at, start)",
-	Distance: "Euclidean norm of a state difference in the model's units, angles wrapped (tol_abs, spread, magnitude, divergence, delta0)",
-	Tol:      "state units, or with relative a fraction of spread",
+	Distance: "Euclidean norm of a state difference over the observed components, each divided by its scale, angles wrapped (see distance; tol_abs, spread, magnitude, divergence, delta0)",
+	Tol:      "the distance's units, or with relative a fraction of spread",
 	Exponent: "per iterate, natural log (exponent.value, exponent.std_err, rungs[].rate, rate_err); exponent.lyapunov_time in iterates",
 	TolUsed:  "fraction of tol_abs",
 }
 
 // runMap audits a map with plumb.TrustMap: --horizon is a number of iterates.
-func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) error {
+func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, dist plumb.Distance) error {
 	horizon, tol := f.horizon, f.tol
 	if !cl.sh.given["horizon"] {
 		horizon = mapTrustHorizon
@@ -464,7 +468,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		return usagef("--horizon %d: too short for a restart rung; give --rungs precision or a longer horizon", steps)
 	}
 	start := now()
-	rep, err := plumb.TrustMap(ctx, sys, steps, &plumb.MapTrustSettings{Tol: tol, Relative: f.relative, Rungs: rungs})
+	rep, err := plumb.TrustMap(ctx, sys, steps, &plumb.MapTrustSettings{Tol: tol, Relative: f.relative, Rungs: rungs, Distance: dist})
 	if rep == nil {
 		if errors.Is(err, plumb.ErrSteps) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) || errors.Is(err, integrate.ErrSettings) {
 			return usagef("the audit refused its input: %v", err)
@@ -480,6 +484,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		Units:    mapTrustUnits, MapReport: rep,
 	}
 	out.Status, out.Error = runStatus(err)
+	out.Settings.Observe, out.Settings.Scales = echoDistance(sys, dist)
 	if seen["restart"] {
 		out.Settings.RestartPlaces = f.restartPlaces
 	}

@@ -14,8 +14,8 @@ var modelsCmd = &command{
 	summary: "list the built-in systems, their parameters and sources",
 	doc: `List the built-in systems: state names with start values, parameters with
 their defaults, and where the equations and values are published. With
---model NAME only that system is listed, and --set shows the values it
-would run with.`,
+--model NAME only that system is listed, and --set and --start show the
+values it would run with.`,
 	formats: []string{"table", "json"},
 	setup: func(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
 		return runModels
@@ -35,6 +35,8 @@ func runModels(_ context.Context, cl *call) error {
 		names = []string{cl.sh.model}
 	} else if len(cl.sh.sets) > 0 {
 		return usagef("--set %s: give --model too; parameters belong to one system", cl.sh.sets.String())
+	} else if len(cl.sh.starts.paramList) > 0 {
+		return usagef("--start %s: give --model too; a start belongs to one system", cl.sh.starts.String())
 	}
 	var systems []*plumb.System
 	for _, n := range names {

@@ -6,14 +6,16 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
 )
 
 // loadSystem returns the system the shared flags name: --file, else --model
-// (name defaults to the command's own), with every --set applied in order.
-// This is the one place where a command gets its system.
+// (name defaults to the command's own), with every --set, then every
+// --start, applied in order. This is the one place where a command gets
+// its system.
 func (sh *shared) loadSystem(name string) (*plumb.System, error) {
 	if sh.file != "" {
 		sys, err := sh.loadFile()
@@ -103,11 +105,19 @@ func fileSystemName(path string) string {
 	return base
 }
 
-// applySets applies every --set in order.
+// applySets applies every --set, then every --start, in order.
 func (sh *shared) applySets(sys *plumb.System) (*plumb.System, error) {
 	for _, s := range sh.sets {
 		if err := sys.Set(s.name, s.value); err != nil {
+			if slices.Contains(sys.States, s.name) {
+				return nil, usagef("--set %s=%s: %s is a state component, not a parameter; its start is set with --start %s=%s", s.name, formatFloat(s.value), s.name, s.name, formatFloat(s.value))
+			}
 			return nil, usagef("--set %s=%s: %v", s.name, formatFloat(s.value), err)
+		}
+	}
+	for _, s := range sh.starts.paramList {
+		if err := sys.SetStartValue(s.name, s.value); err != nil {
+			return nil, usagef("--start %s=%s: %v", s.name, formatFloat(s.value), err)
 		}
 	}
 	return sys, nil

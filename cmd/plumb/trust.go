@@ -37,6 +37,12 @@ time; the rung that sets it names the effect that limits it. Beside each
 measured horizon stands the one predicted from the largest Lyapunov
 exponent, ln(tol/delta0)/lambda.
 
+--observe x,z takes the distance over the named components only (the
+quantities being forecast), and --scale z=10 divides a component's
+difference by 10 before the norm, so that components in different units
+compare. --tol, --relative, delta0 and the prediction then use that
+distance, which the report names on its "distance" line (JSON: distance).
+
 With --exact (the default) and a system with formulas, the reference is
 a multiprecision Taylor run instead, and the tightest float64 run is one
 more rung: its digits follow from lambda, the span and --tol; on a long
@@ -111,6 +117,7 @@ type trustFlags struct {
 	restartAt     float64
 	restartPlaces int
 	exact         bool
+	dist          distanceFlags
 }
 
 func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
@@ -122,6 +129,7 @@ func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	fs.StringVar(&f.rungs, "rungs", strings.Join(rungGroupNames(), ","), "comma-separated `LIST` of the rungs to compare with the reference: "+strings.Join(rungGroupNames(), ", "))
 	finiteVar(fs, &f.restartAt, "restart-at", 0, "time `T` of the restart rung, inside the audited span (default 0.8 of --horizon)")
 	fs.IntVar(&f.restartPlaces, "restart-places", trustRestartPlaces, "the restart rung rounds the state to `K` decimal places")
+	addDistanceFlags(fs, &f.dist)
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -219,6 +227,10 @@ type trustSettingsJSON struct {
 	Exact bool `json:"exact"`
 	// Every is the spacing of the comparison grid (horizon/1000).
 	Every float64 `json:"every"`
+	// Observe names the compared components (--observe, default all);
+	// Scales are the --scale values as given.
+	Observe []string    `json:"observe"`
+	Scales  []scaleJSON `json:"scales"`
 }
 
 // trustUnitsJSON says in what units the numbers of a trust result are.
@@ -232,8 +244,8 @@ type trustUnitsJSON struct {
 
 var trustUnits = trustUnitsJSON{
 	Time:     "the model's time unit (t0, horizon, trusted_until, predicted_horizon, float64_horizon, times, agrees_until, predicted, restart_at)",
-	Distance: "Euclidean norm of a state difference in the model's units, angles wrapped (tol_abs, spread, divergence, delta0, reversal.miss)",
-	Tol:      "state units, or with relative a fraction of spread",
+	Distance: "Euclidean norm of a state difference over the observed components, each divided by its scale, angles wrapped (see distance; tol_abs, spread, divergence, delta0, reversal.miss)",
+	Tol:      "the distance's units, or with relative a fraction of spread",
 	Exponent: "per unit time, natural log (exponent.value, exponent.std_err, rungs[].rate, rate_err); float64_per_bit in time units per bit",
 	TolUsed:  "fraction of tol_abs",
 }
@@ -253,15 +265,19 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
+	dist, err := f.dist.distance(cl, sys)
+	if err != nil {
+		return err
+	}
 	if sys.Kind() == plumb.KindMap {
-		return f.runMap(ctx, cl, sys)
+		return f.runMap(ctx, cl, sys, dist)
 	}
 	p := sys.Problem()
 	ladder, names, err := f.ladder(cl, p.T0)
 	if err != nil {
 		return err
 	}
-	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Periods: sys.Periods()}
+	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Periods: sys.Periods(), States: sys.States, Distance: dist}
 	var bar *progressBar
 	if cl.progress {
 		// One unit per audit run, and as many again for the exponent
@@ -310,12 +326,14 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 			restartAt = r.RestartAt
 		}
 	}
+	observe, scales := echoDistance(sys, dist)
 	out := trustJSON{
 		PlumbVersion: version, Arch: goarch, Command: "trust",
 		System: describe(sys),
 		Settings: trustSettingsJSON{
 			Horizon: f.horizon, Tol: f.tol, Relative: f.relative, Rungs: names,
 			RestartAt: restartAt, RestartPlaces: f.restartPlaces, Exact: f.exact && sys.HasFormulas(), Every: f.horizon / trustGrid,
+			Observe: observe, Scales: scales,
 		},
 		Units:  trustUnits,
 		Report: rep,
