@@ -123,7 +123,7 @@ type spectrumResult struct {
 	// Status is completed, canceled or failed; Error says why.
 	Status string `json:"status"`
 	Error  string `json:"error,omitempty"`
-	// Exponents are the estimates (largest first, up to fluctuations),
+	// Exponents are the estimates, largest first (lyap sorts them),
 	// StdErr their batch-means standard errors (null with fewer than two
 	// completed blocks).
 	Exponents []float64 `json:"exponents"`
