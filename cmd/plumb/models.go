@@ -65,7 +65,7 @@ func runModels(_ context.Context, cl *call) error {
 // modelTable writes one system as a block of aligned lines.
 func modelTable(cl *call, s *plumb.System) error {
 	d := describe(s)
-	fmt.Fprintf(cl.stdout, "%s: %s (%s)\n", d.Name, d.Title, d.Kind)
+	fmt.Fprintf(cl.stdout, "%s: %s (%s)\n", d.Name, d.Title, kindWords(s.Kind()))
 	tw := newTable(cl.stdout)
 	fmt.Fprintf(tw, "  state\tstart\tperiod\n")
 	for _, st := range d.States {
@@ -92,4 +92,13 @@ func modelTable(cl *call, s *plumb.System) error {
 	}
 	_, err := fmt.Fprintf(cl.stdout, "  source: %s\n", strings.TrimSpace(d.Source))
 	return err
+}
+
+// kindWords is a system's kind as the tables write it: "flow", "map" or
+// "hamiltonian flow".
+func kindWords(k plumb.Kind) string {
+	if k == plumb.KindHamiltonian {
+		return "hamiltonian flow"
+	}
+	return string(k)
 }
