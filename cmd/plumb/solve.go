@@ -340,8 +340,14 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 		if sol.Status == integrate.Canceled {
 			what = "was canceled"
 		}
-		return fmt.Errorf("integrating %s from t=%g to %g %s at t=%g (%s up to there written): %w",
+		err = fmt.Errorf("integrating %s from t=%g to %g %s at t=%g (%s up to there written): %w",
 			sys.Name, f.t0, f.t1, what, sol.End, count(len(r.rows), "sample"), err)
+		if m.fixed && errors.Is(err, integrate.ErrStepBudget) {
+			// A fixed step has no tolerance to loosen: the span fixes the count.
+			need := math.Ceil(span / f.h)
+			err = &hintError{err: err, hint: fmt.Sprintf("a fixed step of %s takes %.0f steps over the span of %s: raise --max-steps to at least that, or take a larger --step", formatFloat(f.h), need, formatFloat(span))}
+		}
+		return err
 	}
 	return nil
 }
