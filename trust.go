@@ -105,7 +105,8 @@ type Report struct {
 	Spread float64 `json:"spread"`
 
 	// TrustedUntil is the time up to which every rung agrees with the
-	// reference within TolAbs (T0+Horizon if all do).
+	// reference within TolAbs (T0+Horizon if all do). It answers nothing
+	// when Verdict is Incomplete; plumb trust then writes it as null.
 	TrustedUntil float64 `json:"trusted_until"`
 	// LimitedBy is the effect of the rung that departs first: "tolerance",
 	// "method", "precision" or "restart"; empty when none departs.

@@ -67,7 +67,8 @@ exit status: 0 done; 1 the computation failed (the message says which step
 and why; what was done is still written); 2 bad usage or input (the message
 names the flag).
 
-Run 'plumb help COMMAND' for a command's flags.
+Run 'plumb help COMMAND' for a command's flags, 'plumb --version' for the
+version.
 `)
 	_, err := w.Write(b.Bytes())
 	return err

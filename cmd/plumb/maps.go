@@ -50,8 +50,8 @@ type mapSolveJSON struct {
 	// Units says in what units the numbers are.
 	Units mapSolveUnitsJSON `json:"units"`
 	// Status is completed, canceled or failed; Error says why.
-	Status string `json:"status"`
-	Error  string `json:"error,omitempty"`
+	Status string  `json:"status"`
+	Error  errText `json:"error"`
 	// End is the last iterate computed and Final the state there.
 	End   int       `json:"end"`
 	Final []float64 `json:"final"`
@@ -122,7 +122,7 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		Orbit: make([]iterateJSON, end+1),
 	}
 	if runErr != nil {
-		out.Error = runErr.Error()
+		out.Error = errText(runErr.Error())
 	}
 	for i := range out.Orbit {
 		out.Orbit[i] = iterateJSON{N: i, X: orbit[i*n : (i+1)*n]}
@@ -368,7 +368,10 @@ type mapTrustJSON struct {
 	Settings     mapTrustSettingsJSON `json:"settings"`
 	Units        mapTrustUnitsJSON    `json:"units"`
 	Status       string               `json:"status"`
-	Error        string               `json:"error,omitempty"`
+	Error        errText              `json:"error"`
+	// TrustedUntil shadows the report's: null when the audit did not
+	// finish (verdict incomplete).
+	TrustedUntil *int `json:"trusted_until"`
 	*plumb.MapReport
 }
 
@@ -480,6 +483,9 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		Units:    mapTrustUnits, MapReport: rep,
 	}
 	out.Status, out.Error = runStatus(err)
+	if rep.Verdict != plumb.Incomplete {
+		out.TrustedUntil = &rep.TrustedUntil
+	}
 	if seen["restart"] {
 		out.Settings.RestartPlaces = f.restartPlaces
 	}

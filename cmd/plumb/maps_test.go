@@ -264,3 +264,24 @@ func TestMapGolden(t *testing.T) {
 		golden(t, c.file, r.stdout)
 	}
 }
+
+// TestTrustMapCanceledNull: a map audit canceled before it starts answers
+// nothing: trusted_until is null (not iterate 0) and error says why.
+func TestTrustMapCanceledNull(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r := plumbRunCtx(t, ctx, "trust", "--model", "logistic", "--format", "json", "--quiet")
+	if r.code != exitFailed {
+		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
+	}
+	var keys map[string]json.RawMessage
+	if err := json.Unmarshal([]byte(r.stdout), &keys); err != nil {
+		t.Fatalf("a canceled map audit wrote no JSON: %v", err)
+	}
+	if got := string(keys["trusted_until"]); got != "null" {
+		t.Errorf("trusted_until %s, want null", got)
+	}
+	if got := string(keys["error"]); !strings.Contains(got, "cancel") {
+		t.Errorf("error %s, want the reason", got)
+	}
+}

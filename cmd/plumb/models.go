@@ -15,7 +15,11 @@ var modelsCmd = &command{
 	doc: `List the built-in systems: state names with start values, parameters with
 their defaults, and where the equations and values are published. With
 --model NAME only that system is listed, and --set shows the values it
-would run with.`,
+would run with.
+
+--format json writes one object; JSON keys: plumb_version, arch, command,
+status, error, models. Each model has name, title, source, kind (flow,
+map or hamiltonian), states and parameters.`,
 	formats: []string{"table", "json"},
 	setup: func(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
 		return runModels
@@ -25,6 +29,9 @@ would run with.`,
 // modelsJSON is the --format json result of plumb models.
 type modelsJSON struct {
 	header
+	// Status is completed and Error null: a failure writes no result.
+	Status string  `json:"status"`
+	Error  errText `json:"error"`
 	// Models lists the systems in name order.
 	Models []systemJSON `json:"models"`
 }
@@ -45,7 +52,7 @@ func runModels(_ context.Context, cl *call) error {
 		systems = append(systems, sys)
 	}
 	if cl.sh.format == "json" {
-		out := modelsJSON{header: newHeader("models"), Models: []systemJSON{}}
+		out := modelsJSON{header: newHeader("models"), Status: "completed", Models: []systemJSON{}}
 		for _, s := range systems {
 			out.Models = append(out.Models, describe(s))
 		}

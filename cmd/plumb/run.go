@@ -75,6 +75,11 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 			return exitFailed
 		}
 		return exitOK
+	case "-version", "--version":
+		if err := writeVersion(stdout); err != nil {
+			return exitFailed
+		}
+		return exitOK
 	}
 	cmd := lookup(args[0])
 	if cmd == nil {

@@ -22,16 +22,17 @@ which a state component crosses a value (--cross-state x=0).
 
 The table and CSV give 10 and 17 significant digits; JSON and CSV hold the
 shortest decimals that read back to the same bits. --format json writes one
-object: plumb_version, arch, command, system (parameters as used), settings
-(echoed), units, status, error, end, final, stats, samples, crossings.
+object; JSON keys: plumb_version, arch, command, system (with the
+parameters as used), settings (echoed), units, status, error (null unless
+the run failed or was canceled), end, final, stats, samples, crossings.
 
 A map (henon, logistic, standard, ikeda, or a system file of kind map) is
 iterated instead: --steps N writes the iterates n = 0..N (angles reduced to
-[0, period)); the table and CSV have the columns n and the states, JSON
-holds system, settings, units, status, error, end, final and orbit, and
---plot draws the orbit as dots (the first two components against each
-other; for one component x_(n+1) against x_n). The time and integrator
-flags are for flows only.
+[0, period)); the table and CSV have the columns n and the states; map
+JSON keys: plumb_version, arch, command, system, settings, units, status,
+error, end, final, orbit; --plot draws the orbit as dots (the first two
+components against each other; for one component x_(n+1) against x_n).
+The time and integrator flags are for flows only.
 
 On Ctrl-C, or when the integration fails, the samples computed so far are
 still written; the exit status is then 1.`,
@@ -132,8 +133,9 @@ type solveJSON struct {
 	Units solveUnitsJSON `json:"units"`
 	// Status is completed, canceled or failed.
 	Status string `json:"status"`
-	// Error says why a run that did not complete stopped.
-	Error string `json:"error,omitempty"`
+	// Error says why a run that did not complete stopped (null when it
+	// completed).
+	Error errText `json:"error"`
 	// End is the last time reached and Final the state there.
 	End   float64   `json:"end"`
 	Final []float64 `json:"final"`
@@ -401,7 +403,7 @@ func (r *solveRun) json() solveJSON {
 		out.Settings.CrossState = append(out.Settings.CrossState, crossStateJSON{State: c.state, Value: c.value})
 	}
 	if r.err != nil {
-		out.Error = r.err.Error()
+		out.Error = errText(r.err.Error())
 	}
 	if sol.Stats.Stiff {
 		at := sol.Stats.StiffAt

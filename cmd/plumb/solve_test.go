@@ -240,7 +240,7 @@ func TestSolveFailureKeepsPartial(t *testing.T) {
 		t.Errorf("partial CSV has %d lines, header %q", len(lines), lines[0])
 	}
 	out, r := decodeSolve(t, "--max-steps", "40")
-	if r.code != exitFailed || out.Status != "failed" || !strings.Contains(out.Error, "step budget") || out.End <= 0 || out.End >= 20 {
+	if r.code != exitFailed || out.Status != "failed" || !strings.Contains(string(out.Error), "step budget") || out.End <= 0 || out.End >= 20 {
 		t.Errorf("JSON of a failed run: status %q, error %q, end %v", out.Status, out.Error, out.End)
 	}
 }

@@ -36,8 +36,9 @@ Sanity checks follow: the sum of all exponents against the mean trace of
 the Jacobian, the exponent of the flow direction against zero, and for a
 Hamiltonian the pairing lambda_i = -lambda_(n+1-i).
 
---format json writes one object: plumb_version, arch, command, system,
-settings, units, status, error, exponents, std_err, kaplan_yorke,
+--format json writes one object (for a map too); JSON keys: plumb_version,
+arch, command, system, settings, units, status, error (null unless the
+run failed or was canceled), exponents, std_err, kaplan_yorke,
 kaplan_yorke_bound, entropy, entropy_bound, lyapunov_time, beyond_noise,
 checks, run, stats, history. --format csv writes the convergence history
 (t, blocks, then each running estimate); --plot draws each estimate's
@@ -121,8 +122,8 @@ type spectrumJSON struct {
 // fields stand between Error and Run in both documents.
 type spectrumResult struct {
 	// Status is completed, canceled or failed; Error says why.
-	Status string `json:"status"`
-	Error  string `json:"error,omitempty"`
+	Status string  `json:"status"`
+	Error  errText `json:"error"`
 	// Exponents are the estimates, largest first (lyap sorts them),
 	// StdErr their batch-means standard errors (null with fewer than two
 	// completed blocks).

@@ -46,11 +46,18 @@ that continuation).
 
 With no flags it audits the built-in convection loop (lorenz, sigma=10,
 rho=28, beta=8/3) to t=50 at tolerance 1. --format json writes the whole
-report: plumb_version, arch, command, system, settings, units, status,
-error, then the report's fields (verdict, trusted_until, limited_by,
-predicted_horizon, exponent, rungs with agrees_until and their divergence
-curves on times, reversal, caution). --format csv writes the divergence
-curves: t, then one column per rung. --plot draws them on a log axis with
+report as one object; JSON keys: plumb_version, arch, command, system,
+settings, units, status, error (null unless the audit failed or was
+canceled), trusted_until (null unless the audit finished), t0, horizon,
+tol, relative, tol_abs, spread, limited_by (when a rung departs),
+limiting_rung (when a rung departs), predicted_horizon (when predicted),
+verdict, tol_used, growth, float64_horizon (when extrapolated),
+float64_per_bit (when extrapolated), exponent (when estimated or given),
+exponent_error (when the estimate failed), reference, rungs, times,
+failed, exact_reference (when --exact applies), reversal (when checked),
+caution. Each rung has its agrees_until and its divergence curve on
+times. --format csv writes the divergence curves: t, then one column per
+rung. --plot draws them on a log axis with
 the tolerance and the Lyapunov prediction.
 
 A trust horizon is a statement about the numerical model, not a safety
@@ -62,8 +69,13 @@ audited iterate by iterate instead: the reference is its orbit in
 double-double arithmetic (about 32 digits), the rungs are float64 itself,
 storage at 40 and 24 bits (precision) and a restart at 0.8 of the horizon
 (restart); --horizon counts iterates (default 100), --tol defaults to 0.1,
---restart-at is an iterate, and the exponent is per iterate. --format csv
-writes n, then one column per rung.
+--restart-at is an iterate, and the exponent is per iterate; map JSON
+keys: plumb_version, arch, command, system, settings, units, status,
+error, trusted_until, steps, tol, relative, tol_abs, spread, magnitude,
+limited_by (when a rung departs), limiting_rung (when a rung departs),
+predicted_horizon (when predicted), verdict, tol_used, growth, exponent
+(when estimated), exponent_error (when the estimate failed), reference,
+rungs, failed, caution. --format csv writes n, then one column per rung.
 
 On Ctrl-C, or when the reference run fails, the rungs completed so far are
 still written; the exit status is then 1.`,
@@ -200,9 +212,13 @@ type trustJSON struct {
 	Settings trustSettingsJSON `json:"settings"`
 	// Units says in what units the numbers are.
 	Units trustUnitsJSON `json:"units"`
-	// Status is completed, canceled or failed; Error says why.
-	Status string `json:"status"`
-	Error  string `json:"error,omitempty"`
+	// Status is completed, canceled or failed; Error says why (null when
+	// completed).
+	Status string  `json:"status"`
+	Error  errText `json:"error"`
+	// TrustedUntil shadows the report's: null when the audit did not
+	// finish (verdict incomplete), which answers nothing.
+	TrustedUntil *float64 `json:"trusted_until"`
 	*plumb.Report
 }
 
@@ -321,6 +337,9 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		Report: rep,
 	}
 	out.Status, out.Error = runStatus(err)
+	if rep.Verdict != plumb.Incomplete {
+		out.TrustedUntil = &rep.TrustedUntil
+	}
 	if werr := writeTrust(cl, &out); werr != nil {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}

@@ -55,6 +55,10 @@ func decodeTrust(t *testing.T, args ...string) (trustJSON, map[string]json.RawMe
 	if err := json.Unmarshal([]byte(r.stdout), &raw); err != nil {
 		t.Fatal(err)
 	}
+	if out.Report != nil && out.TrustedUntil != nil {
+		// The top-level field shadows the report's on decoding too.
+		out.Report.TrustedUntil = *out.TrustedUntil
+	}
 	return out, raw, r
 }
 
@@ -141,18 +145,18 @@ func TestTrustMatchesSDK(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if exact.TrustedUntil != wantExact.TrustedUntil || wantExact.Exact == nil || len(exact.Rungs) != len(wantExact.Rungs) {
+	if exact.Report.TrustedUntil != wantExact.TrustedUntil || wantExact.Exact == nil || len(exact.Rungs) != len(wantExact.Rungs) {
 		t.Errorf("CLI (exact) trusted until %v, %d rungs; TrustSystem %v, %d rungs, exact %+v",
-			exact.TrustedUntil, len(exact.Rungs), wantExact.TrustedUntil, len(wantExact.Rungs), wantExact.Exact)
+			exact.Report.TrustedUntil, len(exact.Rungs), wantExact.TrustedUntil, len(wantExact.Rungs), wantExact.Exact)
 	}
 	for i := range exact.Rungs {
 		if i < len(wantExact.Rungs) && !sameBits(exact.Rungs[i].Divergence, wantExact.Rungs[i].Divergence) {
 			t.Errorf("rung %d: the CLI's curve against the exact reference differs from TrustSystem's", i)
 		}
 	}
-	if out.TrustedUntil != want.TrustedUntil || out.Verdict != want.Verdict || out.PredictedHorizon != want.PredictedHorizon || len(out.Rungs) != len(want.Rungs) {
+	if out.Report.TrustedUntil != want.TrustedUntil || out.Verdict != want.Verdict || out.PredictedHorizon != want.PredictedHorizon || len(out.Rungs) != len(want.Rungs) {
 		t.Fatalf("CLI trusted until %v (%s, predicted %v, %d rungs); SDK %v (%s, %v, %d)",
-			out.TrustedUntil, out.Verdict, out.PredictedHorizon, len(out.Rungs), want.TrustedUntil, want.Verdict, want.PredictedHorizon, len(want.Rungs))
+			out.Report.TrustedUntil, out.Verdict, out.PredictedHorizon, len(out.Rungs), want.TrustedUntil, want.Verdict, want.PredictedHorizon, len(want.Rungs))
 	}
 	for i, g := range out.Rungs {
 		w := want.Rungs[i]
@@ -328,6 +332,18 @@ func TestTrustCanceled(t *testing.T) {
 	}
 	if part.Status != "canceled" || part.Verdict != plumb.Incomplete || len(part.Rungs) == 0 || len(part.Rungs) >= len(full.Rungs) {
 		t.Fatalf("status %q, verdict %q, %d of %d rungs", part.Status, part.Verdict, len(part.Rungs), len(full.Rungs))
+	}
+	// No horizon is read off an unfinished audit: trusted_until is null,
+	// not 0, and error says why.
+	var keys map[string]json.RawMessage
+	if err := json.Unmarshal([]byte(r.stdout), &keys); err != nil {
+		t.Fatal(err)
+	}
+	if got := string(keys["trusted_until"]); got != "null" {
+		t.Errorf("canceled audit: trusted_until %s, want null", got)
+	}
+	if got := string(keys["error"]); !strings.Contains(got, "canceled") {
+		t.Errorf("canceled audit: error %s, want the reason", got)
 	}
 	for i, g := range part.Rungs[:len(part.Rungs)-1] { // the last one was cut short
 		if g.Name != full.Rungs[i].Name || !sameBits(g.Divergence, full.Rungs[i].Divergence) {
