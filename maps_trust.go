@@ -132,7 +132,11 @@ type MapReport struct {
 
 // MapRungReport is one rung of a map audit as reported.
 type MapRungReport struct {
+	// Name is the rung as people read it, ID a stable machine name
+	// ("precision_24bit", "restart"), unique in the report, which the CSV
+	// output uses as its column name.
 	Name   string `json:"name"`
+	ID     string `json:"id"`
 	Effect string `json:"effect"`
 	// Rounding is the emulated storage or the restart's rounding.
 	Rounding  string `json:"rounding,omitempty"`
@@ -296,6 +300,11 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 			return rep, fmt.Errorf("plumb: TrustMap canceled after %d rungs: %w", len(rep.Rungs), err)
 		}
 		rep.Rungs = append(rep.Rungs, runMapRung(ctx, m, r, x0, ref, steps, periods, rep.Magnitude, tol, x, y))
+		ids := make([]*string, len(rep.Rungs))
+		for i := range rep.Rungs {
+			ids[i] = &rep.Rungs[i].ID
+		}
+		uniqueIDs(ids, "")
 	}
 
 	lambda := s.Lambda
@@ -435,7 +444,7 @@ func mapDist(x, ref []float64, it int, periods []float64) float64 {
 // runMapRung iterates one rung and compares it with the reference.
 func runMapRung(ctx context.Context, m *MapSystem, r MapRung, x0, ref []float64, steps int, periods []float64, mag, tol float64, x, y []float64) MapRungReport {
 	n := len(x0)
-	out := MapRungReport{Name: r.Name, Effect: r.Kind.String(), AgreesUntil: -1}
+	out := MapRungReport{Name: r.Name, Effect: r.Kind.String(), AgreesUntil: -1, ID: rungID(r.Kind, "", 0, r.Storage)}
 	var store integrate.Rounding
 	switch r.Kind {
 	case integrate.KindPrecision:

@@ -137,9 +137,11 @@ type Report struct {
 	// ExponentError says why the estimate failed, if it did.
 	ExponentError string `json:"exponent_error,omitempty"`
 
-	// Reference is the tightest run; Rungs the others, with their curves
-	// on Times.
-	Reference RungReport   `json:"reference"`
+	// Reference is the tightest float64 run (ID TightestID, effect
+	// "tightest"): with Exact nil the run every rung is compared with,
+	// otherwise one more run compared with Exact, with its own curve and
+	// horizon. Rungs are the others, with their curves on Times.
+	Reference RungReport   `json:"tightest"`
 	Rungs     []RungReport `json:"rungs"`
 	Times     []float64    `json:"times"`
 	// Failed counts the rungs whose run failed (see RungReport.Error).
@@ -169,7 +171,12 @@ type ExponentEstimate struct {
 
 // RungReport is one run of the ladder as reported.
 type RungReport struct {
+	// Name is the rung as people read it ("RK4 h=0.00166"); ID a stable
+	// machine name, unique in the report and the same from run to run
+	// ("method_rk4"; see TightestID), which the CSV output uses as its
+	// column name.
 	Name   string  `json:"name"`
+	ID     string  `json:"id"`
 	Effect string  `json:"effect"`
 	Method string  `json:"method"`
 	RelTol float64 `json:"rel_tol,omitempty"`
@@ -315,11 +322,15 @@ func (rep *Report) fill(res *integrate.AuditResult) {
 	rep.Spread = res.Spread
 	rep.Times = res.Times
 	rep.Reference = rungReport(res.Reference)
+	rep.Reference.Effect = TightestID
 	rep.Failed = res.Failed
 	rep.Rungs = make([]RungReport, len(res.Rungs))
+	ids := make([]*string, len(res.Rungs))
 	for i, r := range res.Rungs {
 		rep.Rungs[i] = rungReport(r)
+		ids[i] = &rep.Rungs[i].ID
 	}
+	uniqueIDs(ids, TightestID)
 	rep.TrustedUntil = res.Trusted
 	if res.Limit >= 0 {
 		r := res.Rungs[res.Limit]
@@ -464,6 +475,7 @@ func rungReport(r integrate.RungResult) RungReport {
 	g := r.Growth
 	out := RungReport{
 		Name: r.Rung.Name, Effect: r.Rung.Kind.String(), Method: r.Method,
+		ID:          rungID(r.Rung.Kind, rungMethodName(r.Rung), r.Rung.RelTol, r.Rung.Rounding),
 		AgreesUntil: r.Horizon, Departed: r.Departed,
 		Delta0: clean(r.Delta0), Predicted: clean(r.Predicted),
 		Growth: g.Kind.String(), Rate: clean(g.Rate), RateErr: clean(g.RateErr), Power: clean(g.Power), PowerErr: clean(g.PowerErr),
@@ -489,6 +501,19 @@ func rungReport(r integrate.RungResult) RungReport {
 		out.Error = r.Err.Error()
 	}
 	return out
+}
+
+// rungMethodName is the name of the method a rung's run uses (before any
+// emulated storage): its fixed-step method at its step, else its Method,
+// DormandPrince54 when none is set.
+func rungMethodName(r integrate.Rung) string {
+	switch {
+	case r.Fixed != nil:
+		return r.Fixed(1).Name()
+	case r.Method != nil:
+		return r.Method.Name()
+	}
+	return integrate.DormandPrince54.Name()
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
@@ -538,9 +563,8 @@ func (rep *Report) Write(w io.Writer) error {
 				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.Steps)
 		}
 		rows = append([]RungReport{rep.Reference}, rep.Rungs...)
-		rows[0].Effect = "tightest"
 	} else {
-		fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference.Name)
+		fmt.Fprintf(&b, "reference: the tightest float64 run, %s\n\n", rep.Reference.Name)
 	}
 	table := make([]rungRow, len(rows))
 	for i, r := range rows {

@@ -528,7 +528,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
 	curves := make([]curveCSV, len(rep.Rungs))
 	for i, r := range rep.Rungs {
-		curves[i] = curveCSV{name: r.Name, start: r.Start, values: r.Divergence}
+		curves[i] = curveCSV{name: r.ID, start: r.Start, values: r.Divergence}
 	}
 	return writeCurvesCSV(cl.stdout, "n", rep.Steps+1, strconv.Itoa, curves)
 }

@@ -190,7 +190,7 @@ func TestTrustMapCLI(t *testing.T) {
 		t.Errorf("table: exit %d\n%s", r.code, r.stdout)
 	}
 	r = plumbRun(t, "trust", "--model", "henon", "--horizon", "60", "--format", "csv", "--quiet")
-	if lines := strings.Count(r.stdout, "\n"); r.code != exitOK || lines != 62 || !strings.HasPrefix(r.stdout, "n,float64,40 bits,24 bits,restart\n") {
+	if lines := strings.Count(r.stdout, "\n"); r.code != exitOK || lines != 62 || !strings.HasPrefix(r.stdout, "n,precision_float64,precision_40bit,precision_24bit,restart\n") {
 		t.Errorf("csv: exit %d, %d lines\n%.200s", r.code, lines, r.stdout)
 	}
 	name := filepath.Join(t.TempDir(), "d.svg")

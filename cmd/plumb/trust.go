@@ -53,11 +53,14 @@ tol, relative, tol_abs, spread, limited_by (when a rung departs),
 limiting_rung (when a rung departs), predicted_horizon (when predicted),
 verdict, tol_used, growth, float64_horizon (when extrapolated),
 float64_per_bit (when extrapolated), exponent (when estimated or given),
-exponent_error (when the estimate failed), reference, rungs, times,
+exponent_error (when the estimate failed), tightest, rungs, times,
 failed, exact_reference (when --exact applies), reversal (when checked),
-caution. Each rung has its agrees_until and its divergence curve on
-times. --format csv writes the divergence curves: t, then one column per
-rung. --plot draws them on a log axis with
+caution. tightest and each rung have a name for people, an id for
+programs, their agrees_until and their divergence curve on times.
+--format csv writes the divergence curves: t, then one column per run,
+headed by its id, which stays the same from run to run: tightest (with
+--exact, where it has a curve), tol_1e-06, tol_1e-08, tol_1e-10,
+method_dp853, method_rk4, precision_24bit, precision_40bit, restart. --plot draws them on a log axis with
 the tolerance and the Lyapunov prediction.
 
 A trust horizon is a statement about the numerical model, not a safety
@@ -75,7 +78,9 @@ error, trusted_until, steps, tol, relative, tol_abs, spread, magnitude,
 limited_by (when a rung departs), limiting_rung (when a rung departs),
 predicted_horizon (when predicted), verdict, tol_used, growth, exponent
 (when estimated), exponent_error (when the estimate failed), reference,
-rungs, failed, caution. --format csv writes n, then one column per rung.
+rungs, failed, caution. --format csv writes n, then one column per rung,
+headed by its id: precision_float64, precision_40bit, precision_24bit,
+restart.
 
 On Ctrl-C, or when the reference run fails, the rungs completed so far are
 still written; the exit status is then 1.`,
@@ -152,7 +157,7 @@ func (f *trustFlags) ladder(cl *call, t0 float64) (integrate.Ladder, []string, e
 			ok = ok || g.name == name
 		}
 		switch {
-		case name == "reference" || name == "ref":
+		case name == "reference" || name == "ref" || name == plumb.TightestID:
 			// Always there: it is what the rungs are compared with.
 			continue
 		case !ok:
@@ -391,9 +396,13 @@ func trustTable(w io.Writer, out *trustJSON) error {
 // trustCSV writes the divergence curves: t, then one column per rung (empty
 // where a rung has no value: before a restart, after a failure).
 func trustCSV(w io.Writer, rep *plumb.Report) error {
-	curves := make([]curveCSV, len(rep.Rungs))
-	for i, r := range rep.Rungs {
-		curves[i] = curveCSV{name: r.Name, start: r.Start, values: r.Divergence}
+	var curves []curveCSV
+	if len(rep.Reference.Divergence) > 0 {
+		// Compared with an exact reference, the tightest run has a curve.
+		curves = append(curves, curveCSV{name: rep.Reference.ID, start: rep.Reference.Start, values: rep.Reference.Divergence})
+	}
+	for _, r := range rep.Rungs {
+		curves = append(curves, curveCSV{name: r.ID, start: r.Start, values: r.Divergence})
 	}
 	return writeCurvesCSV(w, "t", len(rep.Times), func(i int) string { return formatFloat(rep.Times[i]) }, curves)
 }
@@ -452,7 +461,14 @@ func trustChart(rep *plumb.Report) *lineChart {
 	}
 	t1 := rep.T0 + rep.Horizon
 	top := rep.TolAbs
-	for _, r := range rep.Rungs {
+	rungs := rep.Rungs
+	if len(rep.Reference.Divergence) > 0 {
+		// Compared with an exact reference, the tightest run has a curve.
+		tightest := rep.Reference
+		tightest.Name = "tightest: " + tightest.Name
+		rungs = append([]plumb.RungReport{tightest}, rungs...)
+	}
+	for _, r := range rungs {
 		n := min(len(r.Divergence), max(len(rep.Times)-r.Start, 0))
 		c.Series = append(c.Series, series{Name: r.Name, X: rep.Times[r.Start : r.Start+n], Y: r.Divergence[:n]})
 		for _, d := range r.Divergence[:n] {
