@@ -154,6 +154,9 @@ type Report struct {
 
 	// Caution is the standing caution (see the Caution constant).
 	Caution string `json:"caution"`
+	// TimeUnit is the unit of t as a system file gives it ("" when none
+	// is known); TrustSystem sets it, and Write shows it beside times.
+	TimeUnit string `json:"time_unit,omitempty"`
 	// Arch and Version record the architecture and the plumb build.
 	Arch    string `json:"arch"`
 	Version string `json:"plumb_version"`
@@ -552,7 +555,11 @@ func buildVersion() string {
 // what limits it, the verdict and the caution.
 func (rep *Report) Write(w io.Writer) error {
 	var b strings.Builder
-	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
+	u := "" // the time unit after a time, " s"
+	if rep.TimeUnit != "" {
+		u = " " + rep.TimeUnit
+	}
+	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g%s at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, u, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
 	rows := rep.Rungs
 	if ex := rep.Exact; ex != nil {
 		if ex.Continued != "" {
@@ -589,7 +596,7 @@ func (rep *Report) Write(w io.Writer) error {
 			// (it decays like ln(T)/T) is no sign of chaos.
 			b.WriteString(" (the ladder sees no exponential growth)")
 		case rep.Exponent.LyapunovTime > 0:
-			fmt.Fprintf(&b, " (Lyapunov time %.3g)", rep.Exponent.LyapunovTime)
+			fmt.Fprintf(&b, " (Lyapunov time %.3g%s)", rep.Exponent.LyapunovTime, u)
 		}
 		b.WriteByte('\n')
 	case rep.ExponentError != "":
@@ -606,7 +613,7 @@ func (rep *Report) Write(w io.Writer) error {
 		b.WriteString("divergence growth undetermined (too few points)\n")
 	}
 	if rep.PredictedHorizon > 0 {
-		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda: %.4g\n", rep.PredictedHorizon)
+		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda: %.4g%s\n", rep.PredictedHorizon, u)
 	}
 	if rep.Float64Horizon > 0 {
 		fmt.Fprintf(&b, "float64 storage itself (extrapolated from the precision rungs): agrees until about %.4g\n", rep.Float64Horizon)
@@ -625,18 +632,18 @@ func (rep *Report) Write(w io.Writer) error {
 	case rep.Verdict == Incomplete:
 		b.WriteString("the audit did not finish: the table holds the rungs completed, and no trusted horizon is read off them\n")
 	case rep.LimitedBy != "":
-		fmt.Fprintf(&b, "trusted until t = %.4g, limited by %s (%s)\n", rep.TrustedUntil, rep.LimitedBy, rep.LimitingRung)
+		fmt.Fprintf(&b, "trusted until t = %.4g%s, limited by %s (%s)\n", rep.TrustedUntil, u, rep.LimitedBy, rep.LimitingRung)
 	default:
-		fmt.Fprintf(&b, "trusted until t = %.4g: every rung agrees over the whole horizon\n", rep.TrustedUntil)
+		fmt.Fprintf(&b, "trusted until t = %.4g%s: every rung agrees over the whole horizon\n", rep.TrustedUntil, u)
 	}
 	verdict := rep.Verdict.words()
 	switch rep.Verdict {
 	case NotTrusted:
-		fmt.Fprintf(&b, "verdict for t = %.4g: %s (the runs part by more than the tolerance at t = %.4g)\n", rep.T0+rep.Horizon, verdict, rep.TrustedUntil)
+		fmt.Fprintf(&b, "verdict for t = %.4g%s: %s (the runs part by more than the tolerance at t = %.4g%s)\n", rep.T0+rep.Horizon, u, verdict, rep.TrustedUntil, u)
 	case Incomplete:
-		fmt.Fprintf(&b, "verdict for t = %.4g: %s\n", rep.T0+rep.Horizon, verdict)
+		fmt.Fprintf(&b, "verdict for t = %.4g%s: %s\n", rep.T0+rep.Horizon, u, verdict)
 	default:
-		fmt.Fprintf(&b, "verdict for t = %.4g: %s (largest divergence %.2g of the tolerance)\n", rep.T0+rep.Horizon, verdict, rep.TolUsed)
+		fmt.Fprintf(&b, "verdict for t = %.4g%s: %s (largest divergence %.2g of the tolerance)\n", rep.T0+rep.Horizon, u, verdict, rep.TolUsed)
 	}
 	fmt.Fprintf(&b, "caution: %s\n", rep.Caution)
 	_, err := io.WriteString(w, b.String())

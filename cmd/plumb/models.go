@@ -73,14 +73,34 @@ func runModels(_ context.Context, cl *call) error {
 func modelTable(cl *call, s *plumb.System) error {
 	d := describe(s)
 	fmt.Fprintf(cl.stdout, "%s: %s (%s)\n", d.Name, d.Title, kindWords(s.Kind()))
+	if d.TimeUnit != "" {
+		fmt.Fprintf(cl.stdout, "  time unit: %s\n", d.TimeUnit)
+	}
+	// A unit column only where the system file gives units.
+	stateUnits, paramUnits := false, false
+	for _, st := range d.States {
+		stateUnits = stateUnits || st.Unit != ""
+	}
+	for _, p := range d.Parameters {
+		paramUnits = paramUnits || p.Unit != ""
+	}
+	unitCell := func(on bool, u string) string {
+		switch {
+		case !on:
+			return ""
+		case u == "":
+			return "\t-"
+		}
+		return "\t" + u
+	}
 	tw := newTable(cl.stdout)
-	fmt.Fprintf(tw, "  state\tstart\tperiod\n")
+	fmt.Fprintf(tw, "  state\tstart\tperiod%s\n", unitCell(stateUnits, "unit"))
 	for _, st := range d.States {
 		period := "-"
 		if st.Period != 0 {
 			period = formatFloat(st.Period)
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%s\n", st.Name, formatFloat(st.Start), period)
+		fmt.Fprintf(tw, "  %s\t%s\t%s%s\n", st.Name, formatFloat(st.Start), period, unitCell(stateUnits, st.Unit))
 	}
 	if err := tw.Flush(); err != nil {
 		return err
@@ -89,10 +109,10 @@ func modelTable(cl *call, s *plumb.System) error {
 	if len(d.Parameters) == 0 {
 		fmt.Fprintf(tw, "  (no parameters)\n")
 	} else {
-		fmt.Fprintf(tw, "  parameter\tvalue\tmeaning\n")
+		fmt.Fprintf(tw, "  parameter\tvalue%s\tmeaning\n", unitCell(paramUnits, "unit"))
 	}
 	for _, p := range d.Parameters {
-		fmt.Fprintf(tw, "  %s\t%s\t%s\n", p.Name, formatFloat(p.Value), p.Doc)
+		fmt.Fprintf(tw, "  %s\t%s%s\t%s\n", p.Name, formatFloat(p.Value), unitCell(paramUnits, p.Unit), p.Doc)
 	}
 	if err := tw.Flush(); err != nil {
 		return err

@@ -396,6 +396,7 @@ func (r *solveRun) json() solveJSON {
 		Samples:   make([]sampleJSON, len(r.rows)),
 		Crossings: make([]crossingJSON, len(sol.Hits)),
 	}
+	out.Units.Time = out.System.timeUnit(solveUnits.Time)
 	if r.f.dt == 0 {
 		out.Settings.Sampling = "steps"
 	}
@@ -457,7 +458,12 @@ func (r *solveRun) csv(cl *call) error {
 
 func (r *solveRun) table(cl *call) error {
 	tw := newTable(cl.stdout)
-	fmt.Fprintf(tw, "t\t%s\n", strings.Join(r.sys.States, "\t"))
+	d := describe(r.sys)
+	heads := make([]string, len(d.States))
+	for i, st := range d.States {
+		heads[i] = withUnit(st.Name, st.Unit)
+	}
+	fmt.Fprintf(tw, "%s\t%s\n", withUnit("t", d.TimeUnit), strings.Join(heads, "\t"))
 	for _, s := range r.rows {
 		fmt.Fprint(tw, tableFloat(s.T))
 		for _, v := range s.Y {

@@ -329,6 +329,10 @@ func (f *spectrumFlags) json(sys *plumb.System, m method, k int, sp *lyap.Spectr
 	if out.History == nil {
 		out.History = []lyap.Point{}
 	}
+	if tu := out.System.TimeUnit; tu != "" {
+		out.Units.Time = out.System.timeUnit(spectrumUnits.Time)
+		out.Units.Exponents = "per " + tu + ", natural log (exponents, std_err, entropy, history)"
+	}
 	return out
 }
 
@@ -393,7 +397,11 @@ func minOf(v []float64) float64 {
 // spectrumTable writes the exponents, the derived measures, the checks and
 // the run.
 func spectrumTable(cl *call, out spectrumJSON) error {
-	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, flowRates)
+	words := flowRates
+	if tu := out.System.TimeUnit; tu != "" {
+		words = spectrumUnitWords{rate: "per " + tu, time: " " + tu}
+	}
+	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, words)
 	if err != nil {
 		return err
 	}

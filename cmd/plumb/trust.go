@@ -341,6 +341,10 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		Units:  trustUnits,
 		Report: rep,
 	}
+	out.Units.Time = out.System.timeUnit(trustUnits.Time)
+	if rep.TimeUnit == "" {
+		rep.TimeUnit = sys.TimeUnit() // plumb.Trust on a problem knows no unit
+	}
 	out.Status, out.Error = runStatus(err)
 	if rep.Verdict != plumb.Incomplete {
 		out.TrustedUntil = &rep.TrustedUntil
