@@ -59,7 +59,8 @@ commands:
 	}
 	tw.Flush()
 	b.WriteString(`
-Every command takes --model, --file, --set, --format, --plot and --quiet.
+Every command takes --model, --file, --set, --format, --plot, --plot-size
+and --quiet.
 Results go to stdout (--format table, json or csv); progress, warnings and
 wall time go to stderr. Flags are written --name value or --name=value.
 

@@ -140,7 +140,7 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" {
-		if perr := orbitChart(sys, out).save(cl.sh.plot); perr != nil {
+		if perr := orbitChart(sys, out).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -331,7 +331,7 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 	if cl.sh.plot != "" {
 		c := spectrumChart(sys, out.Exponents, out.History)
 		c.XLabel, c.YLabel = "iterate", "running estimate - final estimate (per iterate)"
-		if perr := c.save(cl.sh.plot); perr != nil {
+		if perr := c.save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -504,7 +504,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" && len(rep.Rungs) > 0 {
-		if perr := mapTrustChart(rep).save(cl.sh.plot); perr != nil {
+		if perr := mapTrustChart(rep).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -540,7 +540,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 	c := &lineChart{
 		Title:  "divergence from the double-double orbit",
 		XLabel: "iterate n", YLabel: "distance from the reference",
-		LogY: true, LegendBottom: true,
+		LogY: true,
 	}
 	top := rep.TolAbs
 	for _, r := range rep.Rungs {
@@ -553,6 +553,9 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		c.Series = append(c.Series, s)
 	}
 	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, 0, float64(rep.Steps)))
+	if rep.Verdict != plumb.Incomplete && rep.LimitedBy != "" {
+		c.Marks = append(c.Marks, mark{X: float64(rep.TrustedUntil), Label: fmt.Sprintf("trusted until iterate %d", rep.TrustedUntil)})
+	}
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
 	}
@@ -561,7 +564,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		if r.Predicted != rep.PredictedHorizon || !(r.Delta0 > 0) {
 			continue
 		}
-		if s, ok := predictionSeries("n", r.Name, lambda, r.Delta0, float64(r.Start), float64(rep.Steps), top); ok {
+		if s, ok := predictionSeries("n", r.ID, lambda, r.Delta0, float64(r.Start), float64(rep.Steps), top); ok {
 			c.Series = append(c.Series, s)
 		}
 		break

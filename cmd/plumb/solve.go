@@ -329,7 +329,7 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" {
-		if perr := r.plot(cl.sh.plot); perr != nil {
+		if perr := r.plot(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -509,7 +509,7 @@ func (r *solveRun) table(cl *call) error {
 }
 
 // plot draws the state components against time.
-func (r *solveRun) plot(name string) error {
+func (r *solveRun) plot(name string, size plotSize) error {
 	c := &lineChart{
 		Title:  fmt.Sprintf("%s: state against time", r.sys.Title),
 		XLabel: "t",
@@ -526,5 +526,5 @@ func (r *solveRun) plot(name string) error {
 		}
 		c.Series = append(c.Series, series{Name: n, X: ts, Y: ys})
 	}
-	return c.save(name)
+	return c.save(name, size)
 }

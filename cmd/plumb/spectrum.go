@@ -294,7 +294,7 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" {
-		if perr := spectrumChart(sys, out.Exponents, out.History).save(cl.sh.plot); perr != nil {
+		if perr := spectrumChart(sys, out.Exponents, out.History).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}

@@ -353,7 +353,7 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" && len(rep.Rungs) > 0 {
-		if perr := trustChart(rep).save(cl.sh.plot); perr != nil {
+		if perr := trustChart(rep).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -460,8 +460,6 @@ func trustChart(rep *plumb.Report) *lineChart {
 		XLabel: "t",
 		YLabel: "distance from the reference",
 		LogY:   true,
-		// The curves saturate at the top right; the lower right is empty.
-		LegendBottom: true,
 	}
 	t1 := rep.T0 + rep.Horizon
 	top := rep.TolAbs
@@ -480,6 +478,9 @@ func trustChart(rep *plumb.Report) *lineChart {
 		}
 	}
 	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, rep.T0, t1))
+	if rep.Verdict != plumb.Incomplete && rep.LimitedBy != "" {
+		c.Marks = append(c.Marks, mark{X: rep.TrustedUntil, Label: fmt.Sprintf("trusted until t = %.4g", rep.TrustedUntil)})
+	}
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
 	}
@@ -492,7 +493,7 @@ func trustChart(rep *plumb.Report) *lineChart {
 		if r.Effect == "restart" {
 			from = r.RestartAt
 		}
-		if s, ok := predictionSeries("t", r.Name, lambda, r.Delta0, from, t1, top); ok {
+		if s, ok := predictionSeries("t", r.ID, lambda, r.Delta0, from, t1, top); ok {
 			c.Series = append(c.Series, s)
 		}
 		break
