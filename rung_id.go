@@ -48,6 +48,19 @@ func rungID(kind integrate.RungKind, method string, relTol float64, storage inte
 	return slug(kind.String())
 }
 
+// rungMethodName is the name of the method a rung's run uses (before any
+// emulated storage): its fixed-step method at its step, else its Method,
+// DormandPrince54 when none is set.
+func rungMethodName(r integrate.Rung) string {
+	switch {
+	case r.Fixed != nil:
+		return r.Fixed(1).Name()
+	case r.Method != nil:
+		return r.Method.Name()
+	}
+	return integrate.DormandPrince54.Name()
+}
+
 // methodID is the short name of an integrate method, as plumb's --method
 // spells it (dp54, dp853, bs32, rk4, euler), or its name reduced to lower
 // case letters, digits and underscores.

@@ -506,19 +506,6 @@ func rungReport(r integrate.RungResult) RungReport {
 	return out
 }
 
-// rungMethodName is the name of the method a rung's run uses (before any
-// emulated storage): its fixed-step method at its step, else its Method,
-// DormandPrince54 when none is set.
-func rungMethodName(r integrate.Rung) string {
-	switch {
-	case r.Fixed != nil:
-		return r.Fixed(1).Name()
-	case r.Method != nil:
-		return r.Method.Name()
-	}
-	return integrate.DormandPrince54.Name()
-}
-
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 // clean maps values JSON cannot hold: NaN to 0, ±Inf to ±MaxFloat64.
