@@ -151,3 +151,27 @@ func TestDecadeTicks(t *testing.T) {
 	assert.Len(t, all, 14)
 	assert.Equal(t, []string{"1e-12", "1e-09", "1e-06", "0.001", "1"}, labels(decadeTicks{every: 3}))
 }
+
+// FuzzPlotSize: --plot-size never panics, accepts only sizes within the
+// bounds, and what it accepts prints back as the same size.
+func FuzzPlotSize(f *testing.F) {
+	for _, s := range []string{"960x600", "480X300", " 1280x800 ", "240x240", "8000x8000", "0x0", "x", "1e3x600", "-5x600", "600x600x2", "９６０x600"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		var p plotSize
+		if err := p.Set(s); err != nil {
+			if err.Error() == "" {
+				t.Fatal("empty error")
+			}
+			return
+		}
+		if p.w < minPlotPixels || p.w > maxPlotPixels || p.h < minPlotPixels || p.h > maxPlotPixels {
+			t.Fatalf("%q accepted as %dx%d, outside the bounds", s, p.w, p.h)
+		}
+		var back plotSize
+		if err := back.Set(p.String()); err != nil || back != p {
+			t.Fatalf("%q -> %v -> %q -> %v (%v)", s, p, p.String(), back, err)
+		}
+	})
+}
