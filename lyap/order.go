@@ -61,3 +61,12 @@ func sortSpectrum(sp *Spectrum) {
 		tmp = permute(p.StdErr, perm, tmp)
 	}
 }
+
+// permuteColumns reorders the columns of the n×k row-major matrix v in
+// place so that column j becomes the old column perm[j]; tmp is scratch.
+func permuteColumns(v []float64, n, k int, perm []int, tmp []float64) []float64 {
+	for i := 0; i < n; i++ {
+		tmp = permute(v[i*k:(i+1)*k], perm, tmp)
+	}
+	return tmp
+}
