@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 	"unicode"
 	"unicode/utf8"
@@ -133,6 +134,9 @@ func LoadSystem(r io.Reader) (*System, error) {
 	if len(data) > maxFileSize {
 		return nil, &FileError{Err: fmt.Errorf("file is larger than %d bytes", maxFileSize)}
 	}
+	if err := notSystemFile(data); err != nil {
+		return nil, err
+	}
 	var f fileSystem
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()
@@ -159,6 +163,18 @@ func jsonError(data []byte, dec *json.Decoder, err error) error {
 		off = se.Offset
 		err = errors.New(strings.TrimPrefix(se.Error(), "json: "))
 	case errors.As(err, &te):
+		if lit, ok := strings.CutPrefix(te.Value, "number "); ok && goTypeName(te.Type.String()) == "number" {
+			if _, perr := strconv.ParseFloat(lit, 64); errors.Is(perr, strconv.ErrRange) {
+				// The offset is just past the number; point at its start.
+				at := te.Offset
+				if start := te.Offset - int64(len(lit)); start >= 0 && string(data[start:te.Offset]) == lit {
+					at = start
+				}
+				line, col := lineCol(data, at)
+				return &FileError{Field: te.Field, Line: line, Col: col,
+					Err: fmt.Errorf("the number %s is out of range: a float64 holds magnitudes up to about 1.8e308", lit)}
+			}
+		}
 		line, col := lineCol(data, te.Offset)
 		return &FileError{Field: te.Field, Line: line, Col: col,
 			Err: fmt.Errorf("a JSON %s cannot be a %s", te.Value, goTypeName(te.Type.String()))}
@@ -171,6 +187,48 @@ func jsonError(data []byte, dec *json.Decoder, err error) error {
 	}
 	line, col := lineCol(data, off)
 	return &FileError{Line: line, Col: col, Err: err}
+}
+
+// notSystemFile returns a *FileError when data is plainly not a system
+// file (CSV, a series of numbers, another kind of text, or JSON that is not
+// an object), saying what a system file is and what was found instead; nil
+// when data starts like a JSON object (or is empty, which the decoder
+// reports).
+func notSystemFile(data []byte) error {
+	body := bytes.TrimPrefix(data, []byte("\xef\xbb\xbf")) // a UTF-8 byte order mark
+	trimmed := bytes.TrimLeft(body, " \t\r\n")
+	if len(trimmed) == 0 || trimmed[0] == '{' {
+		return nil
+	}
+	off := int64(len(data) - len(trimmed))
+	line, col := lineCol(data, off)
+	first, _, _ := bytes.Cut(trimmed, []byte("\n"))
+	first = bytes.TrimRight(first, "\r")
+	found := string(first)
+	if r := []rune(found); len(r) > 40 {
+		found = string(r[:40]) + "…"
+	}
+	what := fmt.Sprintf("it starts with %q", found)
+	if json.Valid(trimmed) {
+		kind := "a JSON value"
+		switch trimmed[0] {
+		case '[':
+			kind = "a JSON array"
+		case '"':
+			kind = "a JSON string"
+		case 't', 'f':
+			kind = "a JSON true or false"
+		case 'n':
+			kind = "a JSON null"
+		default:
+			kind = "a JSON number"
+		}
+		what = "it holds " + kind
+	} else if bytes.Count(first, []byte(",")) > 0 && !bytes.ContainsAny(first, "{}\"") {
+		what += ", which looks like CSV (a series or a trajectory, not a system)"
+	}
+	return &FileError{Line: line, Col: col, Err: fmt.Errorf(
+		"this is not a system file: expected a JSON object such as {\"kind\": \"flow\", \"variables\": [...]} (see docs/system-file.md), but %s", what)}
 }
 
 // goTypeName names a Go type of the file layout in the file's terms.

@@ -331,6 +331,13 @@ func TestLoadErrors(t *testing.T) {
 		{"syntax", "{\"kind\": \"flow\",\n \"variables\": [}", "", "invalid character", 2},
 		{"type", `{"kind": "flow", "variables": [{"name": "x", "start": "one", "rate": "x"}]}`, "variables.start", "cannot be a number", 1},
 		{"empty", ``, "", "empty file", 1},
+		// 1e999 exceeds the largest float64, about 1.8e308 (IEEE 754).
+		{"out of range", "{\"kind\": \"flow\",\n \"variables\": [{\"name\": \"x\", \"start\": 1e999, \"rate\": \"x\"}]}", "variables.start", "1e999 is out of range", 2},
+		{"csv", "t,x,y\n0,1,2\n", "", `not a system file: expected a JSON object`, 1},
+		{"csv after blank lines", "\n\n t,x\n", "", `starts with "t,x", which looks like CSV`, 3},
+		{"yaml", "kind: flow\n", "", `not a system file`, 1},
+		{"json array", `[{"kind": "flow"}]`, "", "holds a JSON array", 1},
+		{"json number", ` 42`, "", "holds a JSON number", 1},
 		{"truncated", `{"kind": "flow"`, "", "ends inside", 1},
 		{"trailing", base + ` {}`, "", "after the system object", 1},
 		{"no kind", `{"variables": [{"name": "x", "start": 1, "rate": "x"}]}`, "kind", "missing", 0},
@@ -369,8 +376,13 @@ func TestLoadErrors(t *testing.T) {
 			t.Errorf("%s: error %q has no position", c.name, err)
 		}
 	}
+	// The column of an out-of-range number is where the number starts.
+	_, err := LoadSystem(strings.NewReader(`{"kind": "flow", "variables": [{"name": "x", "start": -1e400, "rate": "x"}]}`))
+	if fe := (*FileError)(nil); !errors.As(err, &fe) || fe.Col != 55 { // 54 bytes precede "-1e400" (counted)
+		t.Errorf("out of range: %v, want column 55, where -1e400 starts", err)
+	}
 	// Formula errors keep the formula position for errors.As.
-	_, err := LoadSystem(strings.NewReader(`{"kind": "flow", "variables": [{"name": "x", "start": 1, "rate": "x*(1 - y)"}]}`))
+	_, err = LoadSystem(strings.NewReader(`{"kind": "flow", "variables": [{"name": "x", "start": 1, "rate": "x*(1 - y)"}]}`))
 	var pe *expr.ParseError
 	if !errors.As(err, &pe) || pe.Col != 8 || !errors.Is(err, expr.ErrUnknown) {
 		t.Errorf("unknown y: %v (as ParseError: %+v)", err, pe)
@@ -404,6 +416,9 @@ func FuzzLoadSystem(f *testing.F) {
 	f.Add(`{"kind": "flow", "variables": [{"name": "x", "start": 1, "rate": "-x^2 + sin(t)"}]}`)
 	f.Add(`{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1}], "momenta": [{"name": "p", "start": 0}], "energy": "p^2/2 + q^4"}`)
 	f.Add(`{"kind": "map", "variables": [{"name": "x", "start": 0.1, "next": "1 - 1.4*x^2 + y"}, {"name": "y", "start": 0, "next": "0.3*x"}]}`)
+	f.Add(`{"kind": "flow", "variables": [{"name": "x", "start": 1e999, "rate": "x"}]}`)
+	f.Add("\ufeff t,x,y\n0,1,2\n")
+	f.Add(`[1, 2]`)
 	f.Fuzz(func(t *testing.T, src string) {
 		s, err := LoadSystem(strings.NewReader(src))
 		if err != nil {

@@ -89,7 +89,7 @@ func newMapLockstep(ev *DDEvaluator, m *MapSystem, rungs []MapRung, x0 []float64
 	}
 	for _, r := range rungs {
 		run := &mapRun{r: r, x: make([]float64, n), y: make([]float64, n), fitStep: 1}
-		run.out = MapRungReport{Name: r.Name, Effect: r.Kind.String(), AgreesUntil: -1, Stride: a.stride, Divergence: []float64{}}
+		run.out = MapRungReport{Name: r.Name, Effect: r.Kind.String(), AgreesUntil: -1, Stride: a.stride, Divergence: []float64{}, ID: rungID(r.Kind, "", 0, r.Storage)}
 		switch r.Kind {
 		case integrate.KindPrecision:
 			run.store = r.Storage

@@ -144,7 +144,11 @@ type MapReport struct {
 
 // MapRungReport is one rung of a map audit as reported.
 type MapRungReport struct {
+	// Name is the rung as people read it, ID a stable machine name
+	// ("precision_24bit", "restart"), unique in the report, which the CSV
+	// output uses as its column name.
 	Name   string `json:"name"`
+	ID     string `json:"id"`
 	Effect string `json:"effect"`
 	// Rounding is the emulated storage or the restart's rounding.
 	Rounding  string `json:"rounding,omitempty"`
@@ -338,6 +342,11 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 		run.finish()
 		rep.Rungs = append(rep.Rungs, *r)
 	}
+	ids := make([]*string, len(rep.Rungs))
+	for i := range rep.Rungs {
+		ids[i] = &rep.Rungs[i].ID
+	}
+	uniqueIDs(ids, "")
 	if runErr != nil {
 		rep.fill(a.maxDiv)
 		rep.Verdict = Incomplete

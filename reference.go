@@ -350,7 +350,11 @@ const refTolFraction = 1e-3
 //
 // References: see Trust and Reference.
 func TrustSystem(ctx context.Context, sys *System, horizon float64, settings *TrustSettings) (*Report, error) {
-	return trustSystem(ctx, sys, horizon, settings, true)
+	rep, err := trustSystem(ctx, sys, horizon, settings, true)
+	if rep != nil {
+		rep.TimeUnit = sys.TimeUnit()
+	}
+	return rep, err
 }
 
 // trustSystem is TrustSystem; shorten false always makes the reference

@@ -66,8 +66,12 @@ func Model(name string) (*System, error) {
 	if f.Period != nil {
 		s.periods = append([]float64(nil), f.Period...)
 	}
-	if f.Map {
+	switch {
+	case f.Map:
 		s.kind = KindMap
+	case f.Separable != nil:
+		// Written in coordinates and momenta with H = T(p) + V(q).
+		s.kind = KindHamiltonian
 	}
 	s.form = cachedFormulas(f)
 	return s, nil
@@ -143,7 +147,10 @@ type Param struct {
 	Unit  string
 }
 
-// Kind returns whether the system is a flow, a map or a Hamiltonian.
+// Kind returns whether the system is a flow, a map or a Hamiltonian (a
+// flow given by an energy function of coordinates and momenta: a file of
+// kind hamiltonian, or a built-in whose catalog entry has the separable
+// parts, such as kepler and henon-heiles).
 func (s *System) Kind() Kind { return s.kind }
 
 // TimeUnit returns the unit of time given in a system file, or "".

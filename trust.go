@@ -117,7 +117,8 @@ type Report struct {
 	Distance DistanceReport `json:"distance"`
 
 	// TrustedUntil is the time up to which every rung agrees with the
-	// reference within TolAbs (T0+Horizon if all do).
+	// reference within TolAbs (T0+Horizon if all do). It answers nothing
+	// when Verdict is Incomplete; plumb trust then writes it as null.
 	TrustedUntil float64 `json:"trusted_until"`
 	// LimitedBy is the effect of the rung that departs first: "tolerance",
 	// "method", "precision" or "restart"; empty when none departs.
@@ -148,9 +149,11 @@ type Report struct {
 	// ExponentError says why the estimate failed, if it did.
 	ExponentError string `json:"exponent_error,omitempty"`
 
-	// Reference is the tightest run; Rungs the others, with their curves
-	// on Times.
-	Reference RungReport   `json:"reference"`
+	// Reference is the tightest float64 run (ID TightestID, effect
+	// "tightest"): with Exact nil the run every rung is compared with,
+	// otherwise one more run compared with Exact, with its own curve and
+	// horizon. Rungs are the others, with their curves on Times.
+	Reference RungReport   `json:"tightest"`
 	Rungs     []RungReport `json:"rungs"`
 	Times     []float64    `json:"times"`
 	// Failed counts the rungs whose run failed (see RungReport.Error).
@@ -163,6 +166,9 @@ type Report struct {
 
 	// Caution is the standing caution (see the Caution constant).
 	Caution string `json:"caution"`
+	// TimeUnit is the unit of t as a system file gives it ("" when none
+	// is known); TrustSystem sets it, and Write shows it beside times.
+	TimeUnit string `json:"time_unit,omitempty"`
 	// Arch and Version record the architecture and the plumb build.
 	Arch    string `json:"arch"`
 	Version string `json:"plumb_version"`
@@ -180,7 +186,12 @@ type ExponentEstimate struct {
 
 // RungReport is one run of the ladder as reported.
 type RungReport struct {
+	// Name is the rung as people read it ("RK4 h=0.00166"); ID a stable
+	// machine name, unique in the report and the same from run to run
+	// ("method_rk4"; see TightestID), which the CSV output uses as its
+	// column name.
 	Name   string  `json:"name"`
+	ID     string  `json:"id"`
 	Effect string  `json:"effect"`
 	Method string  `json:"method"`
 	RelTol float64 `json:"rel_tol,omitempty"`
@@ -335,11 +346,15 @@ func (rep *Report) fill(res *integrate.AuditResult) {
 	rep.Spread = res.Spread
 	rep.Times = res.Times
 	rep.Reference = rungReport(res.Reference)
+	rep.Reference.Effect = TightestID
 	rep.Failed = res.Failed
 	rep.Rungs = make([]RungReport, len(res.Rungs))
+	ids := make([]*string, len(res.Rungs))
 	for i, r := range res.Rungs {
 		rep.Rungs[i] = rungReport(r)
+		ids[i] = &rep.Rungs[i].ID
 	}
+	uniqueIDs(ids, TightestID)
 	rep.TrustedUntil = res.Trusted
 	if res.Limit >= 0 {
 		r := res.Rungs[res.Limit]
@@ -484,6 +499,7 @@ func rungReport(r integrate.RungResult) RungReport {
 	g := r.Growth
 	out := RungReport{
 		Name: r.Rung.Name, Effect: r.Rung.Kind.String(), Method: r.Method,
+		ID:          rungID(r.Rung.Kind, rungMethodName(r.Rung), r.Rung.RelTol, r.Rung.Rounding),
 		AgreesUntil: r.Horizon, Departed: r.Departed,
 		Delta0: clean(r.Delta0), Predicted: clean(r.Predicted),
 		Growth: g.Kind.String(), Rate: clean(g.Rate), RateErr: clean(g.RateErr), Power: clean(g.Power), PowerErr: clean(g.PowerErr),
@@ -547,7 +563,11 @@ func buildVersion() string {
 // what limits it, the verdict and the caution.
 func (rep *Report) Write(w io.Writer) error {
 	var b strings.Builder
-	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
+	u := "" // the time unit after a time, " s"
+	if rep.TimeUnit != "" {
+		u = " " + rep.TimeUnit
+	}
+	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g%s at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, u, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
 	fmt.Fprintf(&b, "distance: %s\n", rep.Distance)
 	rows := rep.Rungs
 	if ex := rep.Exact; ex != nil {
@@ -559,9 +579,8 @@ func (rep *Report) Write(w io.Writer) error {
 				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.Steps)
 		}
 		rows = append([]RungReport{rep.Reference}, rep.Rungs...)
-		rows[0].Effect = "tightest"
 	} else {
-		fmt.Fprintf(&b, "reference: %s\n\n", rep.Reference.Name)
+		fmt.Fprintf(&b, "reference: the tightest float64 run, %s\n\n", rep.Reference.Name)
 	}
 	table := make([]rungRow, len(rows))
 	for i, r := range rows {
@@ -586,7 +605,7 @@ func (rep *Report) Write(w io.Writer) error {
 			// (it decays like ln(T)/T) is no sign of chaos.
 			b.WriteString(" (the ladder sees no exponential growth)")
 		case rep.Exponent.LyapunovTime > 0:
-			fmt.Fprintf(&b, " (Lyapunov time %.3g)", rep.Exponent.LyapunovTime)
+			fmt.Fprintf(&b, " (Lyapunov time %.3g%s)", rep.Exponent.LyapunovTime, u)
 		}
 		b.WriteByte('\n')
 	case rep.ExponentError != "":
@@ -603,7 +622,7 @@ func (rep *Report) Write(w io.Writer) error {
 		b.WriteString("divergence growth undetermined (too few points)\n")
 	}
 	if rep.PredictedHorizon > 0 {
-		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda%s: %.4g\n", rep.Distance.deltaNote(), rep.PredictedHorizon)
+		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda%s: %.4g%s\n", rep.Distance.deltaNote(), rep.PredictedHorizon, u)
 	}
 	if rep.Float64Horizon > 0 {
 		fmt.Fprintf(&b, "float64 storage itself (extrapolated from the precision rungs): agrees until about %.4g\n", rep.Float64Horizon)
@@ -622,18 +641,18 @@ func (rep *Report) Write(w io.Writer) error {
 	case rep.Verdict == Incomplete:
 		b.WriteString("the audit did not finish: the table holds the rungs completed, and no trusted horizon is read off them\n")
 	case rep.LimitedBy != "":
-		fmt.Fprintf(&b, "trusted until t = %.4g, limited by %s (%s)\n", rep.TrustedUntil, rep.LimitedBy, rep.LimitingRung)
+		fmt.Fprintf(&b, "trusted until t = %.4g%s, limited by %s (%s)\n", rep.TrustedUntil, u, rep.LimitedBy, rep.LimitingRung)
 	default:
-		fmt.Fprintf(&b, "trusted until t = %.4g: every rung agrees over the whole horizon\n", rep.TrustedUntil)
+		fmt.Fprintf(&b, "trusted until t = %.4g%s: every rung agrees over the whole horizon\n", rep.TrustedUntil, u)
 	}
 	verdict := rep.Verdict.words()
 	switch rep.Verdict {
 	case NotTrusted:
-		fmt.Fprintf(&b, "verdict for t = %.4g: %s (the runs part by more than the tolerance at t = %.4g)\n", rep.T0+rep.Horizon, verdict, rep.TrustedUntil)
+		fmt.Fprintf(&b, "verdict for t = %.4g%s: %s (the runs part by more than the tolerance at t = %.4g%s)\n", rep.T0+rep.Horizon, u, verdict, rep.TrustedUntil, u)
 	case Incomplete:
-		fmt.Fprintf(&b, "verdict for t = %.4g: %s\n", rep.T0+rep.Horizon, verdict)
+		fmt.Fprintf(&b, "verdict for t = %.4g%s: %s\n", rep.T0+rep.Horizon, u, verdict)
 	default:
-		fmt.Fprintf(&b, "verdict for t = %.4g: %s (largest divergence %.2g of the tolerance)\n", rep.T0+rep.Horizon, verdict, rep.TolUsed)
+		fmt.Fprintf(&b, "verdict for t = %.4g%s: %s (largest divergence %.2g of the tolerance)\n", rep.T0+rep.Horizon, u, verdict, rep.TolUsed)
 	}
 	fmt.Fprintf(&b, "caution: %s\n", rep.Caution)
 	_, err := io.WriteString(w, b.String())

@@ -35,7 +35,8 @@ type CovariantVectors struct {
 	// (1,2), …
 	Angles [][]float64 `json:"angles"`
 	// Exponents are the growth rates of the covariant vectors over the
-	// sampled window, from the backward iteration; they estimate the same
+	// sampled window, from the backward iteration, in decreasing order
+	// (vector j is the one of Exponents[j]); they estimate the same
 	// exponents as the QR method. StdErr are their batch-means standard
 	// errors over Settings.Blocks blocks of the window (nil with fewer than
 	// two).
@@ -208,6 +209,16 @@ func (g *ginelliStore) backward(c *CovariantVectors, from, to float64, blocks in
 	}
 	if se := make([]float64, k); bm.stderr(se) {
 		c.StdErr = se
+	}
+	// Near zero the growth rates can come out of order, as in Exponents:
+	// sort them, each vector (a column of every sample) moving with its
+	// rate, before the angles are taken.
+	if perm := descending(c.Exponents); !sorted(perm) {
+		tmp := permute(c.Exponents, perm, nil)
+		tmp = permute(c.StdErr, perm, tmp)
+		for _, o := range out {
+			tmp = permuteColumns(o.v, n, k, perm, tmp)
+		}
 	}
 	// Samples were found backwards; store them forwards.
 	np := k * (k - 1) / 2

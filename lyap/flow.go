@@ -388,6 +388,7 @@ func (r *flowRun) spectrum() *Spectrum {
 		sp.Jacobian = "finite-difference"
 	}
 	r.avg.fill(sp, k, r.lastQR)
+	sortSpectrum(sp)
 	sp.Final = append([]float64(nil), r.st.Y()[:n]...)
 	ist := r.st.Stats()
 	sp.Stats = Stats{Steps: ist.Accepted, Rejected: ist.Rejected, Evaluations: r.evals, Jacobians: r.jacs, QR: r.qrs,

@@ -391,6 +391,7 @@ func (r *mapRun) spectrum() *Spectrum {
 		sp.MeanInterval = sp.Duration / float64(r.qrAvg)
 	}
 	sp.History = r.hist.points
+	sortSpectrum(sp)
 	sp.Final = append([]float64(nil), r.x[:n]...)
 	sp.Stats = Stats{Steps: r.it, Evaluations: r.evals, Jacobians: r.jacs, QR: r.qrs}
 	if sp.Duration > 0 && k == n {

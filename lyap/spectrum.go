@@ -26,8 +26,9 @@ const (
 )
 
 // Spectrum is an estimate of Lyapunov exponents with their uncertainty, the
-// run that produced it and its sanity checks. Exponents are sorted as they
-// come out of the QR iteration (largest first, up to fluctuations) and use
+// run that produced it and its sanity checks. Exponents are sorted in
+// decreasing order (the QR iteration gives that order only up to
+// fluctuations; StdErr and History are permuted alike) and use
 // the natural logarithm, per unit time for flows and per iteration for maps
 // (see Units).
 type Spectrum struct {

@@ -41,6 +41,7 @@ func init() {
 		spectrumCmd,
 		solveCmd,
 		modelsCmd,
+		versionCmd,
 		helpCmd,
 	}
 }

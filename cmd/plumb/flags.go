@@ -20,7 +20,9 @@ type shared struct {
 	starts startList
 	format string
 	plot   string
-	quiet  bool
+	// plotSize is --plot-size; zero means defaultPlotSize.
+	plotSize plotSize
+	quiet    bool
 	// given records which flags the command line set (filled after parsing).
 	given map[string]bool
 	// stdin is read for --file -.
@@ -31,7 +33,7 @@ type shared struct {
 }
 
 // sharedNames lists the shared flags; help prints them in their own block.
-var sharedNames = map[string]bool{"model": true, "file": true, "set": true, "start": true, "format": true, "plot": true, "quiet": true}
+var sharedNames = map[string]bool{"model": true, "file": true, "set": true, "start": true, "format": true, "plot": true, "plot-size": true, "quiet": true}
 
 // addShared registers the shared flags on fs with the defaults of cmd.
 func addShared(fs *flag.FlagSet, cmd *command) *shared {
@@ -50,6 +52,7 @@ func addShared(fs *flag.FlagSet, cmd *command) *shared {
 		plotDoc = "draw into `FILE` (.svg or .png); this command draws nothing"
 	}
 	fs.StringVar(&sh.plot, "plot", "", plotDoc)
+	fs.Var(&sh.plotSize, "plot-size", "size `WxH` of the --plot picture in pixels (in SVG, CSS pixels at 96 to the inch)")
 	fs.BoolVar(&sh.quiet, "quiet", false, "no progress, warnings or wall time on stderr (errors still appear)")
 	return sh
 }
@@ -84,6 +87,9 @@ func (sh *shared) check(cmd *command) error {
 		if _, err := plotFormat(sh.plot); err != nil {
 			return usagef("--plot %s: %v", sh.plot, err)
 		}
+	}
+	if sh.given["plot-size"] && sh.plot == "" {
+		return usagef("--plot-size %s: give --plot FILE too; the size is that picture's", sh.plotSize.String())
 	}
 	if sh.given["file"] && sh.given["model"] {
 		return usagef("--model %s and --file %s: give one system, not both", sh.model, sh.file)

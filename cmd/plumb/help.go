@@ -59,8 +59,8 @@ commands:
 	}
 	tw.Flush()
 	b.WriteString(`
-Every command takes --model, --file, --set, --start, --format, --plot and
---quiet.
+Every command takes --model, --file, --set, --start, --format, --plot,
+--plot-size and --quiet.
 Results go to stdout (--format table, json or csv); progress, warnings and
 wall time go to stderr. Flags are written --name value or --name=value.
 
@@ -68,7 +68,8 @@ exit status: 0 done; 1 the computation failed (the message says which step
 and why; what was done is still written); 2 bad usage or input (the message
 names the flag).
 
-Run 'plumb help COMMAND' for a command's flags.
+Run 'plumb help COMMAND' for a command's flags, 'plumb --version' for the
+version.
 `)
 	_, err := w.Write(b.Bytes())
 	return err

@@ -50,8 +50,8 @@ type mapSolveJSON struct {
 	// Units says in what units the numbers are.
 	Units mapSolveUnitsJSON `json:"units"`
 	// Status is completed, canceled or failed; Error says why.
-	Status string `json:"status"`
-	Error  string `json:"error,omitempty"`
+	Status string  `json:"status"`
+	Error  errText `json:"error"`
 	// End is the last iterate computed and Final the state there.
 	End   int       `json:"end"`
 	Final []float64 `json:"final"`
@@ -122,7 +122,7 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		Orbit: make([]iterateJSON, end+1),
 	}
 	if runErr != nil {
-		out.Error = runErr.Error()
+		out.Error = errText(runErr.Error())
 	}
 	for i := range out.Orbit {
 		out.Orbit[i] = iterateJSON{N: i, X: orbit[i*n : (i+1)*n]}
@@ -140,7 +140,7 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" {
-		if perr := orbitChart(sys, out).save(cl.sh.plot); perr != nil {
+		if perr := orbitChart(sys, out).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -331,7 +331,7 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 	if cl.sh.plot != "" {
 		c := spectrumChart(sys, out.Exponents, out.History)
 		c.XLabel, c.YLabel = "iterate", "running estimate - final estimate (per iterate)"
-		if perr := c.save(cl.sh.plot); perr != nil {
+		if perr := c.save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -368,7 +368,10 @@ type mapTrustJSON struct {
 	Settings     mapTrustSettingsJSON `json:"settings"`
 	Units        mapTrustUnitsJSON    `json:"units"`
 	Status       string               `json:"status"`
-	Error        string               `json:"error,omitempty"`
+	Error        errText              `json:"error"`
+	// TrustedUntil shadows the report's: null when the audit did not
+	// finish (verdict incomplete).
+	TrustedUntil *int `json:"trusted_until"`
 	*plumb.MapReport
 }
 
@@ -485,6 +488,9 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	}
 	out.Status, out.Error = runStatus(err)
 	out.Settings.Observe, out.Settings.Scales = echoDistance(sys, dist)
+	if rep.Verdict != plumb.Incomplete {
+		out.TrustedUntil = &rep.TrustedUntil
+	}
 	if seen["restart"] {
 		out.Settings.RestartPlaces = f.restartPlaces
 	}
@@ -503,7 +509,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" && len(rep.Rungs) > 0 {
-		if perr := mapTrustChart(rep).save(cl.sh.plot); perr != nil {
+		if perr := mapTrustChart(rep).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -530,7 +536,7 @@ func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
 	stride := max(rep.Stride, 1)
 	curves := make([]curveCSV, len(rep.Rungs))
 	for i, r := range rep.Rungs {
-		curves[i] = curveCSV{name: r.Name, start: r.Start / stride, values: r.Divergence}
+		curves[i] = curveCSV{name: r.ID, start: r.Start / stride, values: r.Divergence}
 	}
 	rows := (rep.Steps + stride) / stride
 	return writeCurvesCSV(cl.stdout, "n", rows, func(i int) string { return strconv.Itoa(i * stride) }, curves)
@@ -543,7 +549,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 	c := &lineChart{
 		Title:  "divergence from the double-double orbit",
 		XLabel: "iterate n", YLabel: "distance from the reference",
-		LogY: true, LegendBottom: true,
+		LogY: true,
 	}
 	top := rep.TolAbs
 	for _, r := range rep.Rungs {
@@ -557,6 +563,9 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		c.Series = append(c.Series, s)
 	}
 	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, 0, float64(rep.Steps)))
+	if rep.Verdict != plumb.Incomplete && rep.LimitedBy != "" {
+		c.Marks = append(c.Marks, mark{X: float64(rep.TrustedUntil), Label: fmt.Sprintf("trusted until iterate %d", rep.TrustedUntil)})
+	}
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
 	}
@@ -565,7 +574,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		if r.Predicted != rep.PredictedHorizon || !(r.Delta0 > 0) {
 			continue
 		}
-		if s, ok := predictionSeries("n", r.Name, lambda, r.Delta0, float64(r.Start), float64(rep.Steps), top); ok {
+		if s, ok := predictionSeries("n", r.ID, lambda, r.Delta0, float64(r.Start), float64(rep.Steps), top); ok {
 			c.Series = append(c.Series, s)
 		}
 		break

@@ -190,7 +190,7 @@ func TestTrustMapCLI(t *testing.T) {
 		t.Errorf("table: exit %d\n%s", r.code, r.stdout)
 	}
 	r = plumbRun(t, "trust", "--model", "henon", "--horizon", "60", "--format", "csv", "--quiet")
-	if lines := strings.Count(r.stdout, "\n"); r.code != exitOK || lines != 62 || !strings.HasPrefix(r.stdout, "n,float64,40 bits,24 bits,restart\n") {
+	if lines := strings.Count(r.stdout, "\n"); r.code != exitOK || lines != 62 || !strings.HasPrefix(r.stdout, "n,precision_float64,precision_40bit,precision_24bit,restart\n") {
 		t.Errorf("csv: exit %d, %d lines\n%.200s", r.code, lines, r.stdout)
 	}
 	name := filepath.Join(t.TempDir(), "d.svg")
@@ -262,5 +262,26 @@ func TestMapGolden(t *testing.T) {
 			t.Fatalf("%v: exit %d, stderr %q", c.args, r.code, r.stderr)
 		}
 		golden(t, c.file, r.stdout)
+	}
+}
+
+// TestTrustMapCanceledNull: a map audit canceled before it starts answers
+// nothing: trusted_until is null (not iterate 0) and error says why.
+func TestTrustMapCanceledNull(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r := plumbRunCtx(t, ctx, "trust", "--model", "logistic", "--format", "json", "--quiet")
+	if r.code != exitFailed {
+		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
+	}
+	var keys map[string]json.RawMessage
+	if err := json.Unmarshal([]byte(r.stdout), &keys); err != nil {
+		t.Fatalf("a canceled map audit wrote no JSON: %v", err)
+	}
+	if got := string(keys["trusted_until"]); got != "null" {
+		t.Errorf("trusted_until %s, want null", got)
+	}
+	if got := string(keys["error"]); !strings.Contains(got, "cancel") {
+		t.Errorf("error %s, want the reason", got)
 	}
 }

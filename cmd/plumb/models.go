@@ -15,7 +15,11 @@ var modelsCmd = &command{
 	doc: `List the built-in systems: state names with start values, parameters with
 their defaults, and where the equations and values are published. With
 --model NAME only that system is listed, and --set and --start show the
-values it would run with.`,
+values it would run with.
+
+--format json writes one object; JSON keys: plumb_version, arch, command,
+status, error, models. Each model has name, title, source, kind (flow,
+map or hamiltonian), states and parameters.`,
 	formats: []string{"table", "json"},
 	setup: func(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
 		return runModels
@@ -25,6 +29,9 @@ values it would run with.`,
 // modelsJSON is the --format json result of plumb models.
 type modelsJSON struct {
 	header
+	// Status is completed and Error null: a failure writes no result.
+	Status string  `json:"status"`
+	Error  errText `json:"error"`
 	// Models lists the systems in name order.
 	Models []systemJSON `json:"models"`
 }
@@ -47,7 +54,7 @@ func runModels(_ context.Context, cl *call) error {
 		systems = append(systems, sys)
 	}
 	if cl.sh.format == "json" {
-		out := modelsJSON{header: newHeader("models"), Models: []systemJSON{}}
+		out := modelsJSON{header: newHeader("models"), Status: "completed", Models: []systemJSON{}}
 		for _, s := range systems {
 			out.Models = append(out.Models, describe(s))
 		}
@@ -67,15 +74,35 @@ func runModels(_ context.Context, cl *call) error {
 // modelTable writes one system as a block of aligned lines.
 func modelTable(cl *call, s *plumb.System) error {
 	d := describe(s)
-	fmt.Fprintf(cl.stdout, "%s: %s (%s)\n", d.Name, d.Title, d.Kind)
+	fmt.Fprintf(cl.stdout, "%s: %s (%s)\n", d.Name, d.Title, kindWords(s.Kind()))
+	if d.TimeUnit != "" {
+		fmt.Fprintf(cl.stdout, "  time unit: %s\n", d.TimeUnit)
+	}
+	// A unit column only where the system file gives units.
+	stateUnits, paramUnits := false, false
+	for _, st := range d.States {
+		stateUnits = stateUnits || st.Unit != ""
+	}
+	for _, p := range d.Parameters {
+		paramUnits = paramUnits || p.Unit != ""
+	}
+	unitCell := func(on bool, u string) string {
+		switch {
+		case !on:
+			return ""
+		case u == "":
+			return "\t-"
+		}
+		return "\t" + u
+	}
 	tw := newTable(cl.stdout)
-	fmt.Fprintf(tw, "  state\tstart\tperiod\n")
+	fmt.Fprintf(tw, "  state\tstart\tperiod%s\n", unitCell(stateUnits, "unit"))
 	for _, st := range d.States {
 		period := "-"
 		if st.Period != 0 {
 			period = formatFloat(st.Period)
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%s\n", st.Name, formatFloat(st.Start), period)
+		fmt.Fprintf(tw, "  %s\t%s\t%s%s\n", st.Name, formatFloat(st.Start), period, unitCell(stateUnits, st.Unit))
 	}
 	if err := tw.Flush(); err != nil {
 		return err
@@ -84,14 +111,23 @@ func modelTable(cl *call, s *plumb.System) error {
 	if len(d.Parameters) == 0 {
 		fmt.Fprintf(tw, "  (no parameters)\n")
 	} else {
-		fmt.Fprintf(tw, "  parameter\tvalue\tmeaning\n")
+		fmt.Fprintf(tw, "  parameter\tvalue%s\tmeaning\n", unitCell(paramUnits, "unit"))
 	}
 	for _, p := range d.Parameters {
-		fmt.Fprintf(tw, "  %s\t%s\t%s\n", p.Name, formatFloat(p.Value), p.Doc)
+		fmt.Fprintf(tw, "  %s\t%s%s\t%s\n", p.Name, formatFloat(p.Value), unitCell(paramUnits, p.Unit), p.Doc)
 	}
 	if err := tw.Flush(); err != nil {
 		return err
 	}
 	_, err := fmt.Fprintf(cl.stdout, "  source: %s\n", strings.TrimSpace(d.Source))
 	return err
+}
+
+// kindWords is a system's kind as the tables write it: "flow", "map" or
+// "hamiltonian flow".
+func kindWords(k plumb.Kind) string {
+	if k == plumb.KindHamiltonian {
+		return "hamiltonian flow"
+	}
+	return string(k)
 }

@@ -73,3 +73,23 @@ func TestModelsOneWithSet(t *testing.T) {
 		t.Errorf("header %+v", out.header)
 	}
 }
+
+// TestModelsKind: the built-ins written as separable Hamiltonians are listed
+// as such, not as plain flows (their catalog entries carry H = T(p) + V(q)).
+func TestModelsKind(t *testing.T) {
+	want := map[string]string{"lorenz": "flow", "henon": "map", "henon-heiles": "hamiltonian", "kepler": "hamiltonian"}
+	r := plumbRun(t, "models", "--format", "json")
+	var out modelsJSON
+	if err := json.Unmarshal([]byte(r.stdout), &out); err != nil {
+		t.Fatal(err)
+	}
+	for _, m := range out.Models {
+		if w, ok := want[m.Name]; ok && m.Kind != w {
+			t.Errorf("%s: kind %q, want %q", m.Name, m.Kind, w)
+		}
+	}
+	table := plumbRun(t, "models", "--model", "henon-heiles").stdout
+	if !strings.HasPrefix(table, "henon-heiles: Hénon–Heiles system (hamiltonian flow)\n") {
+		t.Errorf("table starts %q, want the kind hamiltonian flow", strings.SplitN(table, "\n", 2)[0])
+	}
+}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"errors"
@@ -51,17 +52,37 @@ func formatFloat(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) 
 // tableFloat is v with 10 significant digits, for tables read by people.
 func tableFloat(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 
+// errText is the error field of every JSON result: the text of the error
+// that stopped the run, written as null when there is none, so that the
+// field is always there.
+type errText string
+
+// MarshalJSON writes null for "" and the text as a JSON string otherwise
+// (without HTML escapes, like the rest of the result).
+func (e errText) MarshalJSON() ([]byte, error) {
+	if e == "" {
+		return []byte("null"), nil
+	}
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(string(e)); err != nil {
+		return nil, err
+	}
+	return bytes.TrimRight(b.Bytes(), "\n"), nil
+}
+
 // runStatus is the status a result reports for the error of its run,
 // "completed" (nil), "canceled" (a canceled or expired context) or
 // "failed", and the error's text ("" for nil).
-func runStatus(err error) (status, msg string) {
+func runStatus(err error) (status string, msg errText) {
 	switch {
 	case err == nil:
 		return "completed", ""
 	case errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded):
-		return "canceled", err.Error()
+		return "canceled", errText(err.Error())
 	}
-	return "failed", err.Error()
+	return "failed", errText(err.Error())
 }
 
 // statusVerb is a status other than completed as an error message says

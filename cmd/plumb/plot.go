@@ -28,15 +28,21 @@ type lineChart struct {
 	// LogY draws the y axis on a log scale; points with y <= 0 cannot be
 	// drawn there and are left out.
 	LogY bool
-	// LegendBottom puts the legend in the lower right corner instead of
-	// the upper right (divergence curves leave that corner empty).
-	LegendBottom bool
 	// Scatter draws every series as unconnected dots (an orbit of a map,
 	// where a line between iterates means nothing) instead of a line.
 	Scatter bool
 	Series  []series
-	// Width and Height of the picture; zero means 16 cm by 10 cm.
-	Width, Height vg.Length
+	// Marks are vertical lines with a label, such as the time up to which
+	// a run is trusted.
+	Marks []mark
+	// Size is the picture's size; zero means defaultPlotSize.
+	Size plotSize
+}
+
+// mark is a labelled vertical line at X.
+type mark struct {
+	X     float64
+	Label string
 }
 
 // errNothingToDraw reports a chart without a single drawable point.
@@ -73,16 +79,28 @@ func (c *lineChart) points(s series) plotter.XYs {
 	return xy
 }
 
-// build makes the gonum plot.
-func (c *lineChart) build() (*plot.Plot, error) {
+// legendEntry is one line of a chart's legend.
+type legendEntry struct {
+	name  string
+	thumb plot.Thumbnailer
+}
+
+// drawnSeries is what a series put on the chart: its points and whether
+// they are joined by lines (for the legend's search for empty space).
+type drawnSeries struct {
+	xy   plotter.XYs
+	line bool
+}
+
+// build makes the gonum plot without its legend, and returns the legend's
+// entries and the points drawn, for layout to place the legend.
+func (c *lineChart) build() (*plot.Plot, []legendEntry, []drawnSeries, error) {
 	p := plot.New()
 	p.Title.Text = c.Title
 	p.X.Label.Text = c.XLabel
 	p.Y.Label.Text = c.YLabel
-	p.Legend.Top = !c.LegendBottom
-	if len(c.Series) > 6 {
-		p.Legend.TextStyle.Font.Size = vg.Points(7)
-	}
+	var entries []legendEntry
+	var drawnPts []drawnSeries
 	if c.LogY {
 		p.Y.Scale = plot.LogScale{}
 		p.Y.Tick.Marker = decadeTicks{}
@@ -97,21 +115,22 @@ func (c *lineChart) build() (*plot.Plot, error) {
 		if c.Scatter {
 			sc, err := plotter.NewScatter(xy)
 			if err != nil {
-				return nil, fmt.Errorf("series %q: %w", s.Name, err)
+				return nil, nil, nil, fmt.Errorf("series %q: %w", s.Name, err)
 			}
 			sc.GlyphStyle.Color = palette[i%len(palette)]
 			sc.GlyphStyle.Radius = vg.Points(0.6)
 			sc.GlyphStyle.Shape = draw.CircleGlyph{}
 			p.Add(sc)
 			if s.Name != "" {
-				p.Legend.Add(s.Name, sc)
+				entries = append(entries, legendEntry{s.Name, sc})
 			}
+			drawnPts = append(drawnPts, drawnSeries{xy: xy})
 			drawn++
 			continue
 		}
 		l, err := plotter.NewLine(xy)
 		if err != nil {
-			return nil, fmt.Errorf("series %q: %w", s.Name, err)
+			return nil, nil, nil, fmt.Errorf("series %q: %w", s.Name, err)
 		}
 		l.LineStyle.Color = palette[i%len(palette)]
 		l.LineStyle.Width = vg.Points(1)
@@ -120,47 +139,74 @@ func (c *lineChart) build() (*plot.Plot, error) {
 		}
 		p.Add(l)
 		if s.Name != "" {
-			p.Legend.Add(s.Name, l)
+			entries = append(entries, legendEntry{s.Name, l})
 		}
+		drawnPts = append(drawnPts, drawnSeries{xy: xy, line: true})
 		drawn++
 	}
 	if drawn == 0 {
-		return nil, errNothingToDraw
+		return nil, nil, nil, errNothingToDraw
 	}
-	return p, nil
+	for _, m := range c.Marks {
+		if math.IsNaN(m.X) || math.IsInf(m.X, 0) {
+			continue
+		}
+		p.Add(markPlotter{m})
+		// Its line, from the bottom to the top of the data, takes space
+		// the legend must not cover.
+		drawnPts = append(drawnPts, drawnSeries{xy: plotter.XYs{{X: m.X, Y: p.Y.Min}, {X: m.X, Y: p.Y.Max}}, line: true})
+	}
+	return p, entries, drawnPts, nil
 }
 
 // decadeTicks marks a log axis at the powers of ten, labelled "1e-06",
 // without the rounding noise ("9.999999999999998e-07") that labels made
-// from computed tick values carry.
-type decadeTicks struct{}
+// from computed tick values carry. With every > 1 only the decades whose
+// exponent is a multiple of every are labelled (the others stay as ticks),
+// so that labels on a short axis do not overlap.
+type decadeTicks struct{ every int }
 
 // Ticks returns plot.LogTicks' ticks with the major ones relabelled.
-func (decadeTicks) Ticks(min, max float64) []plot.Tick {
-	ticks := plot.LogTicks{Prec: -1}.Ticks(min, max)
-	for i, t := range ticks {
-		if t.Label == "" || !(t.Value > 0) {
+func (d decadeTicks) Ticks(min, max float64) []plot.Tick {
+	var out []plot.Tick
+	for _, t := range (plot.LogTicks{Prec: -1}).Ticks(min, max) {
+		// A tick beyond the axis is not drawn, but its label would still
+		// make room for itself above or below the data.
+		if t.Value < min*(1-1e-9) || t.Value > max*(1+1e-9) {
 			continue
 		}
-		ticks[i].Label = strconv.FormatFloat(math.Pow10(int(math.Round(math.Log10(t.Value)))), 'g', -1, 64)
+		if t.Label != "" && t.Value > 0 {
+			e := int(math.Round(math.Log10(t.Value)))
+			t.Label = strconv.FormatFloat(math.Pow10(e), 'g', -1, 64)
+			if d.every > 1 && e%d.every != 0 {
+				t.Label = ""
+			}
+		}
+		out = append(out, t)
 	}
-	return ticks
+	return out
 }
 
 // render builds the chart and its picture in format ("svg" or "png").
 func (c *lineChart) render(format string) (io.WriterTo, error) {
-	p, err := c.build()
+	p, entries, drawn, err := c.build()
 	if err != nil {
 		return nil, err
 	}
-	width, height := c.Width, c.Height
-	if width == 0 {
-		width = 16 * vg.Centimeter
+	size := c.Size
+	if size == (plotSize{}) {
+		size = defaultPlotSize
 	}
-	if height == 0 {
-		height = 10 * vg.Centimeter
+	width, height := size.lengths()
+	cw, err := draw.NewFormattedCanvas(width, height, format)
+	if err != nil {
+		return nil, err
 	}
-	return p.WriterTo(width, height, format)
+	layout(p, entries, drawn, c.LogY, draw.New(cw))
+	if format == "svg" {
+		return svgFontStack{cw}, nil
+	}
+	return cw, nil
 }
 
 // write draws the chart in format ("svg" or "png") to w.
@@ -173,10 +219,12 @@ func (c *lineChart) write(w io.Writer, format string) error {
 	return err
 }
 
-// save draws the chart into the file name, whose extension (.svg, .png)
-// gives the format. The file is created only once the picture is drawn, so a
-// chart that cannot be drawn leaves an existing file alone.
-func (c *lineChart) save(name string) (err error) {
+// save draws the chart at size (zero: the default) into the file name,
+// whose extension (.svg, .png) gives the format. The file is created only
+// once the picture is drawn, so a chart that cannot be drawn leaves an
+// existing file alone.
+func (c *lineChart) save(name string, size plotSize) (err error) {
+	c.Size = size
 	format, err := plotFormat(name)
 	if err != nil {
 		return err

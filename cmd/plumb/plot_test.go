@@ -25,8 +25,14 @@ func checkSVG(t *testing.T, b []byte) {
 	}
 }
 
-// checkPNG decodes b as PNG and checks its size in pixels.
+// checkPNG decodes b as PNG and checks that it has the default size.
 func checkPNG(t *testing.T, b []byte) {
+	t.Helper()
+	checkPNGSize(t, b, defaultPlotSize)
+}
+
+// checkPNGSize decodes b as PNG and checks its size in pixels.
+func checkPNGSize(t *testing.T, b []byte, want plotSize) {
 	t.Helper()
 	if !bytes.HasPrefix(b, pngMagic) {
 		t.Fatalf("no PNG signature (%d bytes)", len(b))
@@ -35,10 +41,10 @@ func checkPNG(t *testing.T, b []byte) {
 	if err != nil {
 		t.Fatalf("PNG does not decode: %v", err)
 	}
-	// 16 cm x 10 cm at gonum/plot's default 96 dpi: 605 x 378 pixels
-	// (16/2.54*96 = 604.7, 10/2.54*96 = 377.95, rounded up).
-	if r := img.Bounds(); r.Dx() < 600 || r.Dx() > 610 || r.Dy() < 375 || r.Dy() > 380 {
-		t.Errorf("PNG is %v, want about 605x378", r)
+	// WxH pixels at gonum/plot's 96 dpi are W·3/4 by H·3/4 points, drawn
+	// back at 96 dpi (exact: the picture is made at the pixel size asked).
+	if r := img.Bounds(); r.Dx() != want.w || r.Dy() != want.h {
+		t.Errorf("PNG is %dx%d, want %dx%d", r.Dx(), r.Dy(), want.w, want.h)
 	}
 }
 
@@ -117,7 +123,7 @@ func TestSavePlotFiles(t *testing.T) {
 		t.Errorf("unwritable plot: exit %d, stderr %q", r.code, r.stderr)
 	}
 	// A chart with no series is an error and creates no file.
-	if err := (&lineChart{}).save(filepath.Join(dir, "empty.svg")); !errors.Is(err, errNothingToDraw) {
+	if err := (&lineChart{}).save(filepath.Join(dir, "empty.svg"), plotSize{}); !errors.Is(err, errNothingToDraw) {
 		t.Errorf("empty chart: %v", err)
 	}
 	if _, err := os.Stat(filepath.Join(dir, "empty.svg")); !os.IsNotExist(err) {

@@ -75,6 +75,11 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 			return exitFailed
 		}
 		return exitOK
+	case "-version", "--version":
+		if err := writeVersion(stdout); err != nil {
+			return exitFailed
+		}
+		return exitOK
 	}
 	cmd := lookup(args[0])
 	if cmd == nil {
@@ -140,6 +145,10 @@ func report(stderr io.Writer, cmd *command, err error) int {
 // failureHint says what a failure usually means, for the failures whose
 // message alone does not tell a user what to do next.
 func failureHint(cmd *command, err error) string {
+	var he *hintError
+	if errors.As(err, &he) {
+		return he.hint
+	}
 	switch {
 	case errors.Is(err, integrate.ErrStepUnderflow):
 		s := "the step size collapsed, as it does where the solution grows without bound in finite time or the rates are singular; check the model near that time"
@@ -152,6 +161,17 @@ func failureHint(cmd *command, err error) string {
 	}
 	return ""
 }
+
+// hintError is a failure that carries its own hint, for the cases where
+// only the command knows what to suggest (a fixed-step run has no
+// tolerance to loosen).
+type hintError struct {
+	err  error
+	hint string
+}
+
+func (e *hintError) Error() string { return e.err.Error() }
+func (e *hintError) Unwrap() error { return e.err }
 
 // flagMessage rewrites the flag package's messages so that flags are named
 // as users type them (--name).

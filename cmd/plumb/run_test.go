@@ -6,6 +6,7 @@ import (
 	"flag"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strconv"
 	"strings"
 	"testing"
@@ -231,4 +232,16 @@ func (c *stepCtx) Err() error {
 		return context.Canceled
 	}
 	return nil
+}
+
+// TestVersion: 'plumb --version' and 'plumb version' print the version and
+// the architecture (golden-arch in tests) on stdout.
+func TestVersion(t *testing.T) {
+	want := "plumb " + version + " " + runtime.GOOS + "/golden-arch (" + runtime.Version() + ")\n"
+	for _, args := range [][]string{{"--version"}, {"-version"}, {"version"}} {
+		r := plumbRun(t, args...)
+		if r.code != exitOK || r.stdout != want || r.stderr != "" {
+			t.Errorf("%v: exit %d, stdout %q, stderr %q; want %q", args, r.code, r.stdout, r.stderr, want)
+		}
+	}
 }

@@ -22,16 +22,17 @@ which a state component crosses a value (--cross-state x=0).
 
 The table and CSV give 10 and 17 significant digits; JSON and CSV hold the
 shortest decimals that read back to the same bits. --format json writes one
-object: plumb_version, arch, command, system (parameters as used), settings
-(echoed), units, status, error, end, final, stats, samples, crossings.
+object; JSON keys: plumb_version, arch, command, system (with the
+parameters as used), settings (echoed), units, status, error (null unless
+the run failed or was canceled), end, final, stats, samples, crossings.
 
 A map (henon, logistic, standard, ikeda, or a system file of kind map) is
 iterated instead: --steps N writes the iterates n = 0..N (angles reduced to
-[0, period)); the table and CSV have the columns n and the states, JSON
-holds system, settings, units, status, error, end, final and orbit, and
---plot draws the orbit as dots (the first two components against each
-other; for one component x_(n+1) against x_n). The time and integrator
-flags are for flows only.
+[0, period)); the table and CSV have the columns n and the states; map
+JSON keys: plumb_version, arch, command, system, settings, units, status,
+error, end, final, orbit; --plot draws the orbit as dots (the first two
+components against each other; for one component x_(n+1) against x_n).
+The time and integrator flags are for flows only.
 
 On Ctrl-C, or when the integration fails, the samples computed so far are
 still written; the exit status is then 1.`,
@@ -132,8 +133,9 @@ type solveJSON struct {
 	Units solveUnitsJSON `json:"units"`
 	// Status is completed, canceled or failed.
 	Status string `json:"status"`
-	// Error says why a run that did not complete stopped.
-	Error string `json:"error,omitempty"`
+	// Error says why a run that did not complete stopped (null when it
+	// completed).
+	Error errText `json:"error"`
 	// End is the last time reached and Final the state there.
 	End   float64   `json:"end"`
 	Final []float64 `json:"final"`
@@ -327,7 +329,7 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" {
-		if perr := r.plot(cl.sh.plot); perr != nil {
+		if perr := r.plot(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -340,8 +342,14 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 		if sol.Status == integrate.Canceled {
 			what = "was canceled"
 		}
-		return fmt.Errorf("integrating %s from t=%g to %g %s at t=%g (%s up to there written): %w",
+		err = fmt.Errorf("integrating %s from t=%g to %g %s at t=%g (%s up to there written): %w",
 			sys.Name, f.t0, f.t1, what, sol.End, count(len(r.rows), "sample"), err)
+		if m.fixed && errors.Is(err, integrate.ErrStepBudget) {
+			// A fixed step has no tolerance to loosen: the span fixes the count.
+			need := math.Ceil(span / f.h)
+			err = &hintError{err: err, hint: fmt.Sprintf("a fixed step of %s takes %.0f steps over the span of %s: raise --max-steps to at least that, or take a larger --step", formatFloat(f.h), need, formatFloat(span))}
+		}
+		return err
 	}
 	return nil
 }
@@ -388,6 +396,7 @@ func (r *solveRun) json() solveJSON {
 		Samples:   make([]sampleJSON, len(r.rows)),
 		Crossings: make([]crossingJSON, len(sol.Hits)),
 	}
+	out.Units.Time = out.System.timeUnit(solveUnits.Time)
 	if r.f.dt == 0 {
 		out.Settings.Sampling = "steps"
 	}
@@ -395,7 +404,7 @@ func (r *solveRun) json() solveJSON {
 		out.Settings.CrossState = append(out.Settings.CrossState, crossStateJSON{State: c.state, Value: c.value})
 	}
 	if r.err != nil {
-		out.Error = r.err.Error()
+		out.Error = errText(r.err.Error())
 	}
 	if sol.Stats.Stiff {
 		at := sol.Stats.StiffAt
@@ -449,7 +458,12 @@ func (r *solveRun) csv(cl *call) error {
 
 func (r *solveRun) table(cl *call) error {
 	tw := newTable(cl.stdout)
-	fmt.Fprintf(tw, "t\t%s\n", strings.Join(r.sys.States, "\t"))
+	d := describe(r.sys)
+	heads := make([]string, len(d.States))
+	for i, st := range d.States {
+		heads[i] = withUnit(st.Name, st.Unit)
+	}
+	fmt.Fprintf(tw, "%s\t%s\n", withUnit("t", d.TimeUnit), strings.Join(heads, "\t"))
 	for _, s := range r.rows {
 		fmt.Fprint(tw, tableFloat(s.T))
 		for _, v := range s.Y {
@@ -495,7 +509,7 @@ func (r *solveRun) table(cl *call) error {
 }
 
 // plot draws the state components against time.
-func (r *solveRun) plot(name string) error {
+func (r *solveRun) plot(name string, size plotSize) error {
 	c := &lineChart{
 		Title:  fmt.Sprintf("%s: state against time", r.sys.Title),
 		XLabel: "t",
@@ -512,5 +526,5 @@ func (r *solveRun) plot(name string) error {
 		}
 		c.Series = append(c.Series, series{Name: n, X: ts, Y: ys})
 	}
-	return c.save(name)
+	return c.save(name, size)
 }

@@ -240,8 +240,42 @@ func TestSolveFailureKeepsPartial(t *testing.T) {
 		t.Errorf("partial CSV has %d lines, header %q", len(lines), lines[0])
 	}
 	out, r := decodeSolve(t, "--max-steps", "40")
-	if r.code != exitFailed || out.Status != "failed" || !strings.Contains(out.Error, "step budget") || out.End <= 0 || out.End >= 20 {
+	if r.code != exitFailed || out.Status != "failed" || !strings.Contains(string(out.Error), "step budget") || out.End <= 0 || out.End >= 20 {
 		t.Errorf("JSON of a failed run: status %q, error %q, end %v", out.Status, out.Error, out.End)
+	}
+}
+
+// TestSolveStepBudgetHint: the hint after an exhausted step budget names
+// what the user can change: the tolerances of an adaptive method, but the
+// step and the budget of a fixed-step one (which has no tolerance).
+func TestSolveStepBudgetHint(t *testing.T) {
+	cases := []struct {
+		name      string
+		args      []string
+		want, not []string
+	}{
+		{"adaptive", []string{"--max-steps", "40"}, []string{"--max-steps", "--rtol"}, nil},
+		// rk4 at h = 0.001 over 10 time units takes 10000 steps (exact).
+		{"fixed step", []string{"--method", "rk4", "--step", "0.001", "--t1", "10", "--max-steps", "100"}, []string{"--step", "--max-steps", "10000 steps"}, []string{"--rtol", "--atol"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := plumbRun(t, append([]string{"solve", "--format", "csv", "--quiet"}, c.args...)...)
+			if r.code != exitFailed {
+				t.Fatalf("exit %d, want 1; stderr %q", r.code, r.stderr)
+			}
+			_, hint, _ := strings.Cut(r.stderr, "hint: ")
+			for _, w := range c.want {
+				if !strings.Contains(hint, w) {
+					t.Errorf("hint %q does not name %s", hint, w)
+				}
+			}
+			for _, w := range c.not {
+				if strings.Contains(hint, w) {
+					t.Errorf("hint %q names %s, which a fixed-step run does not have", hint, w)
+				}
+			}
+		})
 	}
 }
 

@@ -36,8 +36,9 @@ Sanity checks follow: the sum of all exponents against the mean trace of
 the Jacobian, the exponent of the flow direction against zero, and for a
 Hamiltonian the pairing lambda_i = -lambda_(n+1-i).
 
---format json writes one object: plumb_version, arch, command, system,
-settings, units, status, error, exponents, std_err, kaplan_yorke,
+--format json writes one object (for a map too); JSON keys: plumb_version,
+arch, command, system, settings, units, status, error (null unless the
+run failed or was canceled), exponents, std_err, kaplan_yorke,
 kaplan_yorke_bound, entropy, entropy_bound, lyapunov_time, beyond_noise,
 checks, run, stats, history. --format csv writes the convergence history
 (t, blocks, then each running estimate); --plot draws each estimate's
@@ -121,9 +122,9 @@ type spectrumJSON struct {
 // fields stand between Error and Run in both documents.
 type spectrumResult struct {
 	// Status is completed, canceled or failed; Error says why.
-	Status string `json:"status"`
-	Error  string `json:"error,omitempty"`
-	// Exponents are the estimates (largest first, up to fluctuations),
+	Status string  `json:"status"`
+	Error  errText `json:"error"`
+	// Exponents are the estimates, largest first (lyap sorts them),
 	// StdErr their batch-means standard errors (null with fewer than two
 	// completed blocks).
 	Exponents []float64 `json:"exponents"`
@@ -293,7 +294,7 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" {
-		if perr := spectrumChart(sys, out.Exponents, out.History).save(cl.sh.plot); perr != nil {
+		if perr := spectrumChart(sys, out.Exponents, out.History).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -327,6 +328,10 @@ func (f *spectrumFlags) json(sys *plumb.System, m method, k int, sp *lyap.Spectr
 	}
 	if out.History == nil {
 		out.History = []lyap.Point{}
+	}
+	if tu := out.System.TimeUnit; tu != "" {
+		out.Units.Time = out.System.timeUnit(spectrumUnits.Time)
+		out.Units.Exponents = "per " + tu + ", natural log (exponents, std_err, entropy, history)"
 	}
 	return out
 }
@@ -392,7 +397,11 @@ func minOf(v []float64) float64 {
 // spectrumTable writes the exponents, the derived measures, the checks and
 // the run.
 func spectrumTable(cl *call, out spectrumJSON) error {
-	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, flowRates)
+	words := flowRates
+	if tu := out.System.TimeUnit; tu != "" {
+		words = spectrumUnitWords{rate: "per " + tu, time: " " + tu}
+	}
+	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, words)
 	if err != nil {
 		return err
 	}

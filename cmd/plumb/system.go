@@ -133,6 +133,8 @@ type systemJSON struct {
 	Source string `json:"source"`
 	// Kind is flow, map or hamiltonian.
 	Kind string `json:"kind"`
+	// TimeUnit is the unit of t a system file gives (omitted when none).
+	TimeUnit string `json:"time_unit,omitempty"`
 	// States lists the state components in order with their start values.
 	States []stateJSON `json:"states"`
 	// Parameters lists the parameters with the values used (after --set).
@@ -145,6 +147,9 @@ type stateJSON struct {
 	Start float64 `json:"start"`
 	// Period is the period of an angle component (omitted for others).
 	Period float64 `json:"period,omitempty"`
+	// Unit is the component's unit as a system file gives it (omitted
+	// when none).
+	Unit string `json:"unit,omitempty"`
 }
 
 // paramJSON is one parameter.
@@ -152,32 +157,59 @@ type paramJSON struct {
 	Name  string  `json:"name"`
 	Value float64 `json:"value"`
 	Doc   string  `json:"doc,omitempty"`
+	// Unit is the parameter's unit as a system file gives it (omitted
+	// when none).
+	Unit string `json:"unit,omitempty"`
 }
 
 // describe returns the JSON form of sys at its current parameters and start.
 func describe(sys *plumb.System) systemJSON {
-	out := systemJSON{Name: sys.Name, Title: sys.Title, Source: sys.Source, Kind: string(sys.Kind()), States: []stateJSON{}, Parameters: []paramJSON{}}
+	out := systemJSON{Name: sys.Name, Title: sys.Title, Source: sys.Source, Kind: string(sys.Kind()), TimeUnit: sys.TimeUnit(), States: []stateJSON{}, Parameters: []paramJSON{}}
 	start := sys.Start()
 	periods := sys.Periods()
+	units := sys.Units()
 	for i, n := range sys.States {
 		st := stateJSON{Name: n, Start: start[i]}
 		if periods != nil {
 			st.Period = periods[i]
 		}
+		if i < len(units) {
+			st.Unit = units[i]
+		}
 		out.States = append(out.States, st)
 	}
 	for _, p := range sys.Params() {
-		out.Parameters = append(out.Parameters, paramJSON{Name: p.Name, Value: p.Value, Doc: p.Doc})
+		out.Parameters = append(out.Parameters, paramJSON{Name: p.Name, Value: p.Value, Doc: p.Doc, Unit: p.Unit})
 	}
 	return out
 }
 
-// heading names the system as the tables do: "name (title) p=v q=w", the
-// parameters in their order, each value in its shortest exact form.
+// withUnit is name followed by the unit in brackets, "x [m]", or name
+// alone when the unit is not known.
+func withUnit(name, unit string) string {
+	if unit == "" {
+		return name
+	}
+	return name + " [" + unit + "]"
+}
+
+// timeUnit describes the time unit in a result's units: the unit itself
+// first when the system file gives one ("s: the model's time unit
+// (...)").
+func (s systemJSON) timeUnit(desc string) string {
+	if s.TimeUnit == "" {
+		return desc
+	}
+	return s.TimeUnit + ": " + desc
+}
+
+// heading names the system as the tables do: "name (title) p=v q=w [unit],
+// t in s", the parameters in their order, each value in its shortest exact
+// form, with the units a system file gives.
 func (s systemJSON) heading() string {
 	params := make([]string, len(s.Parameters))
 	for i, p := range s.Parameters {
-		params[i] = p.Name + "=" + formatFloat(p.Value)
+		params[i] = withUnit(p.Name+"="+formatFloat(p.Value), p.Unit)
 	}
 	h := s.Name
 	if s.Title != "" {
@@ -185,6 +217,9 @@ func (s systemJSON) heading() string {
 	}
 	if len(params) > 0 {
 		h += " " + strings.Join(params, " ")
+	}
+	if s.TimeUnit != "" {
+		h += ", t in " + s.TimeUnit
 	}
 	return h
 }

@@ -52,11 +52,21 @@ that continuation).
 
 With no flags it audits the built-in convection loop (lorenz, sigma=10,
 rho=28, beta=8/3) to t=50 at tolerance 1. --format json writes the whole
-report: plumb_version, arch, command, system, settings, units, status,
-error, then the report's fields (verdict, trusted_until, limited_by,
-predicted_horizon, exponent, rungs with agrees_until and their divergence
-curves on times, reversal, caution). --format csv writes the divergence
-curves: t, then one column per rung. --plot draws them on a log axis with
+report as one object; JSON keys: plumb_version, arch, command, system,
+settings, units, status, error (null unless the audit failed or was
+canceled), trusted_until (null unless the audit finished), t0, horizon,
+tol, relative, tol_abs, spread, distance, limited_by (when a rung departs),
+limiting_rung (when a rung departs), predicted_horizon (when predicted),
+verdict, tol_used, growth, float64_horizon (when extrapolated),
+float64_per_bit (when extrapolated), exponent (when estimated or given),
+exponent_error (when the estimate failed), tightest, rungs, times,
+failed, exact_reference (when --exact applies), reversal (when checked),
+caution. tightest and each rung have a name for people, an id for
+programs, their agrees_until and their divergence curve on times.
+--format csv writes the divergence curves: t, then one column per run,
+headed by its id, which stays the same from run to run: tightest (with
+--exact, where it has a curve), tol_1e-06, tol_1e-08, tol_1e-10,
+method_dp853, method_rk4, precision_24bit, precision_40bit, restart. --plot draws them on a log axis with
 the tolerance and the Lyapunov prediction.
 
 A trust horizon is a statement about the numerical model, not a safety
@@ -68,8 +78,17 @@ audited iterate by iterate instead: the reference is its orbit in
 double-double arithmetic (about 32 digits), the rungs are float64 itself,
 storage at 40 and 24 bits (precision) and a restart at 0.8 of the horizon
 (restart); --horizon counts iterates (default 100), --tol defaults to 0.1,
---restart-at is an iterate, and the exponent is per iterate. --format csv
-writes n, then one column per rung.
+--restart-at is an iterate, and the exponent is per iterate; map JSON
+keys: plumb_version, arch, command, system, settings, units, status,
+error, trusted_until, steps, tol, relative, tol_abs, spread, magnitude,
+distance, limited_by (when a rung departs), limiting_rung (when a rung
+departs), predicted_horizon (when predicted), verdict, tol_used, growth,
+exponent (when estimated), exponent_error (when the estimate failed),
+stride, reference, rungs, failed, caution. --format csv writes n, then
+one column per rung, headed by its id: precision_float64,
+precision_40bit, precision_24bit, restart. Past 4096 iterates each
+curve keeps at most 4096 points: a row (and a point of a rung's
+divergence in JSON) is the largest distance over stride iterates from n.
 
 On Ctrl-C, or when the reference run fails, the rungs completed so far are
 still written; the exit status is then 1.`,
@@ -148,7 +167,7 @@ func (f *trustFlags) ladder(cl *call, t0 float64) (integrate.Ladder, []string, e
 			ok = ok || g.name == name
 		}
 		switch {
-		case name == "reference" || name == "ref":
+		case name == "reference" || name == "ref" || name == plumb.TightestID:
 			// Always there: it is what the rungs are compared with.
 			continue
 		case !ok:
@@ -208,9 +227,13 @@ type trustJSON struct {
 	Settings trustSettingsJSON `json:"settings"`
 	// Units says in what units the numbers are.
 	Units trustUnitsJSON `json:"units"`
-	// Status is completed, canceled or failed; Error says why.
-	Status string `json:"status"`
-	Error  string `json:"error,omitempty"`
+	// Status is completed, canceled or failed; Error says why (null when
+	// completed).
+	Status string  `json:"status"`
+	Error  errText `json:"error"`
+	// TrustedUntil shadows the report's: null when the audit did not
+	// finish (verdict incomplete), which answers nothing.
+	TrustedUntil *float64 `json:"trusted_until"`
 	*plumb.Report
 }
 
@@ -338,12 +361,19 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		Units:  trustUnits,
 		Report: rep,
 	}
+	out.Units.Time = out.System.timeUnit(trustUnits.Time)
+	if rep.TimeUnit == "" {
+		rep.TimeUnit = sys.TimeUnit() // plumb.Trust on a problem knows no unit
+	}
 	out.Status, out.Error = runStatus(err)
+	if rep.Verdict != plumb.Incomplete {
+		out.TrustedUntil = &rep.TrustedUntil
+	}
 	if werr := writeTrust(cl, &out); werr != nil {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if cl.sh.plot != "" && len(rep.Rungs) > 0 {
-		if perr := trustChart(rep).save(cl.sh.plot); perr != nil {
+		if perr := trustChart(rep).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
@@ -390,9 +420,13 @@ func trustTable(w io.Writer, out *trustJSON) error {
 // trustCSV writes the divergence curves: t, then one column per rung (empty
 // where a rung has no value: before a restart, after a failure).
 func trustCSV(w io.Writer, rep *plumb.Report) error {
-	curves := make([]curveCSV, len(rep.Rungs))
-	for i, r := range rep.Rungs {
-		curves[i] = curveCSV{name: r.Name, start: r.Start, values: r.Divergence}
+	var curves []curveCSV
+	if len(rep.Reference.Divergence) > 0 {
+		// Compared with an exact reference, the tightest run has a curve.
+		curves = append(curves, curveCSV{name: rep.Reference.ID, start: rep.Reference.Start, values: rep.Reference.Divergence})
+	}
+	for _, r := range rep.Rungs {
+		curves = append(curves, curveCSV{name: r.ID, start: r.Start, values: r.Divergence})
 	}
 	return writeCurvesCSV(w, "t", len(rep.Times), func(i int) string { return formatFloat(rep.Times[i]) }, curves)
 }
@@ -446,12 +480,17 @@ func trustChart(rep *plumb.Report) *lineChart {
 		XLabel: "t",
 		YLabel: "distance from the reference",
 		LogY:   true,
-		// The curves saturate at the top right; the lower right is empty.
-		LegendBottom: true,
 	}
 	t1 := rep.T0 + rep.Horizon
 	top := rep.TolAbs
-	for _, r := range rep.Rungs {
+	rungs := rep.Rungs
+	if len(rep.Reference.Divergence) > 0 {
+		// Compared with an exact reference, the tightest run has a curve.
+		tightest := rep.Reference
+		tightest.Name = "tightest: " + tightest.Name
+		rungs = append([]plumb.RungReport{tightest}, rungs...)
+	}
+	for _, r := range rungs {
 		n := min(len(r.Divergence), max(len(rep.Times)-r.Start, 0))
 		c.Series = append(c.Series, series{Name: r.Name, X: rep.Times[r.Start : r.Start+n], Y: r.Divergence[:n]})
 		for _, d := range r.Divergence[:n] {
@@ -459,6 +498,9 @@ func trustChart(rep *plumb.Report) *lineChart {
 		}
 	}
 	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, rep.T0, t1))
+	if rep.Verdict != plumb.Incomplete && rep.LimitedBy != "" {
+		c.Marks = append(c.Marks, mark{X: rep.TrustedUntil, Label: fmt.Sprintf("trusted until t = %.4g", rep.TrustedUntil)})
+	}
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
 	}
@@ -471,7 +513,7 @@ func trustChart(rep *plumb.Report) *lineChart {
 		if r.Effect == "restart" {
 			from = r.RestartAt
 		}
-		if s, ok := predictionSeries("t", r.Name, lambda, r.Delta0, from, t1, top); ok {
+		if s, ok := predictionSeries("t", r.ID, lambda, r.Delta0, from, t1, top); ok {
 			c.Series = append(c.Series, s)
 		}
 		break

@@ -55,6 +55,10 @@ func decodeTrust(t *testing.T, args ...string) (trustJSON, map[string]json.RawMe
 	if err := json.Unmarshal([]byte(r.stdout), &raw); err != nil {
 		t.Fatal(err)
 	}
+	if out.Report != nil && out.TrustedUntil != nil {
+		// The top-level field shadows the report's on decoding too.
+		out.Report.TrustedUntil = *out.TrustedUntil
+	}
 	return out, raw, r
 }
 
@@ -69,7 +73,7 @@ func TestTrustJSONFields(t *testing.T) {
 		"plumb_version", "arch", "command", "system", "settings", "units", "status",
 		"t0", "horizon", "tol", "relative", "tol_abs", "spread", "trusted_until", "limited_by",
 		"limiting_rung", "predicted_horizon", "verdict", "tol_used", "growth", "float64_horizon",
-		"exponent", "reference", "rungs", "times", "failed", "reversal", "caution",
+		"exponent", "tightest", "rungs", "times", "failed", "reversal", "caution",
 	} {
 		if _, ok := raw[k]; !ok {
 			t.Errorf("JSON lacks %q", k)
@@ -94,7 +98,7 @@ func TestTrustJSONFields(t *testing.T) {
 	if err := json.Unmarshal(raw["rungs"], &rungs); err != nil || json.Unmarshal(rungs[0], &rung) != nil {
 		t.Fatal("rungs is not a list of objects")
 	}
-	for _, k := range []string{"name", "effect", "method", "agrees_until", "departed", "delta0", "predicted", "growth", "rate", "divergence", "evaluations", "steps"} {
+	for _, k := range []string{"name", "id", "effect", "method", "agrees_until", "departed", "delta0", "predicted", "growth", "rate", "divergence", "evaluations", "steps"} {
 		if _, ok := rung[k]; !ok {
 			t.Errorf("a rung lacks %q", k)
 		}
@@ -141,18 +145,18 @@ func TestTrustMatchesSDK(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if exact.TrustedUntil != wantExact.TrustedUntil || wantExact.Exact == nil || len(exact.Rungs) != len(wantExact.Rungs) {
+	if exact.Report.TrustedUntil != wantExact.TrustedUntil || wantExact.Exact == nil || len(exact.Rungs) != len(wantExact.Rungs) {
 		t.Errorf("CLI (exact) trusted until %v, %d rungs; TrustSystem %v, %d rungs, exact %+v",
-			exact.TrustedUntil, len(exact.Rungs), wantExact.TrustedUntil, len(wantExact.Rungs), wantExact.Exact)
+			exact.Report.TrustedUntil, len(exact.Rungs), wantExact.TrustedUntil, len(wantExact.Rungs), wantExact.Exact)
 	}
 	for i := range exact.Rungs {
 		if i < len(wantExact.Rungs) && !sameBits(exact.Rungs[i].Divergence, wantExact.Rungs[i].Divergence) {
 			t.Errorf("rung %d: the CLI's curve against the exact reference differs from TrustSystem's", i)
 		}
 	}
-	if out.TrustedUntil != want.TrustedUntil || out.Verdict != want.Verdict || out.PredictedHorizon != want.PredictedHorizon || len(out.Rungs) != len(want.Rungs) {
+	if out.Report.TrustedUntil != want.TrustedUntil || out.Verdict != want.Verdict || out.PredictedHorizon != want.PredictedHorizon || len(out.Rungs) != len(want.Rungs) {
 		t.Fatalf("CLI trusted until %v (%s, predicted %v, %d rungs); SDK %v (%s, %v, %d)",
-			out.TrustedUntil, out.Verdict, out.PredictedHorizon, len(out.Rungs), want.TrustedUntil, want.Verdict, want.PredictedHorizon, len(want.Rungs))
+			out.Report.TrustedUntil, out.Verdict, out.PredictedHorizon, len(out.Rungs), want.TrustedUntil, want.Verdict, want.PredictedHorizon, len(want.Rungs))
 	}
 	for i, g := range out.Rungs {
 		w := want.Rungs[i]
@@ -190,12 +194,15 @@ func TestTrustCSV(t *testing.T) {
 		t.Fatal(err)
 	}
 	out, _, _ := decodeTrust(t, args[1:len(args)-1]...)
-	if len(rows) != len(out.Times)+1 || len(rows[0]) != len(out.Rungs)+1 || rows[0][0] != "t" {
-		t.Fatalf("CSV is %d×%d, want %d×%d", len(rows), len(rows[0]), len(out.Times)+1, len(out.Rungs)+1)
+	// With the exact reference the tightest float64 run is compared too,
+	// and has its column first.
+	runs := append([]plumb.RungReport{out.Reference}, out.Rungs...)
+	if len(rows) != len(out.Times)+1 || len(rows[0]) != len(runs)+1 || rows[0][0] != "t" {
+		t.Fatalf("CSV is %d×%d, want %d×%d", len(rows), len(rows[0]), len(out.Times)+1, len(runs)+1)
 	}
-	for j, rg := range out.Rungs {
-		if rows[0][j+1] != rg.Name {
-			t.Errorf("column %d is %q, want %q", j+1, rows[0][j+1], rg.Name)
+	for j, rg := range runs {
+		if rows[0][j+1] != rg.ID {
+			t.Errorf("column %d is %q, want the id %q", j+1, rows[0][j+1], rg.ID)
 		}
 		for i := range out.Times {
 			cell := rows[i+1][j+1]
@@ -209,6 +216,39 @@ func TestTrustCSV(t *testing.T) {
 				t.Errorf("%s at row %d: %q, want %s", rg.Name, i+1, cell, formatFloat(rg.Divergence[k]))
 			}
 		}
+	}
+}
+
+// TestTrustCSVNames: the CSV's column names are machine names that stay
+// the same when the span changes the rungs' human names (the RK4 rung's
+// step and the restart time follow the horizon), and the tightest run is
+// there under the name the table and the JSON give it.
+func TestTrustCSVNames(t *testing.T) {
+	want := []string{"t", "tightest", "tol_1e-06", "tol_1e-08", "tol_1e-10", "method_dp853", "method_rk4", "precision_24bit", "precision_40bit", "restart"}
+	for _, h := range []string{"10", "20"} {
+		r := plumbRun(t, "trust", "--horizon", h, "--format", "csv", "--quiet")
+		if r.code != exitOK {
+			t.Fatalf("--horizon %s: exit %d, stderr %q", h, r.code, r.stderr)
+		}
+		head, _, _ := strings.Cut(r.stdout, "\n")
+		if head != strings.Join(want, ",") {
+			t.Errorf("--horizon %s: CSV header %q, want %q", h, head, strings.Join(want, ","))
+		}
+	}
+	out, raw, _ := decodeTrust(t, "--horizon", "10")
+	if _, ok := raw["reference"]; ok {
+		t.Error("the JSON still calls the tightest run reference")
+	}
+	if tt := out.Reference; tt.ID != "tightest" || tt.Effect != "tightest" || len(tt.Divergence) == 0 {
+		t.Errorf("tightest run: id %q, effect %q, %d points", tt.ID, tt.Effect, len(tt.Divergence))
+	}
+	table := plumbRun(t, "trust", "--horizon", "10", "--quiet").stdout
+	if !strings.Contains(table, "  tightest  ") {
+		t.Errorf("the table does not call the tightest run tightest:\n%s", table)
+	}
+	c := trustChart(out.Report)
+	if len(c.Series) == 0 || !strings.HasPrefix(c.Series[0].Name, "tightest: ") {
+		t.Errorf("the plot's first series is %q, want the tightest run", c.Series[0].Name)
 	}
 }
 
@@ -234,10 +274,12 @@ func TestTrustPlot(t *testing.T) {
 	}
 	out, _, _ := decodeTrust(t, "--horizon", "25")
 	c := trustChart(out.Report)
-	if !c.LogY || len(c.Series) != len(out.Rungs)+2 {
-		t.Fatalf("chart has %d series (log y %v), want %d rungs + tolerance + prediction", len(c.Series), c.LogY, len(out.Rungs))
+	// With the exact reference: the tightest run, the rungs, the
+	// tolerance and the prediction.
+	if !c.LogY || len(c.Series) != len(out.Rungs)+3 {
+		t.Fatalf("chart has %d series (log y %v), want tightest + %d rungs + tolerance + prediction", len(c.Series), c.LogY, len(out.Rungs))
 	}
-	tol := c.Series[len(out.Rungs)]
+	tol := c.Series[len(out.Rungs)+1]
 	if !strings.HasPrefix(tol.Name, "tolerance") || tol.Y[0] != out.TolAbs || tol.Y[1] != out.TolAbs {
 		t.Errorf("tolerance series %q at %v", tol.Name, tol.Y)
 	}
@@ -328,6 +370,18 @@ func TestTrustCanceled(t *testing.T) {
 	}
 	if part.Status != "canceled" || part.Verdict != plumb.Incomplete || len(part.Rungs) == 0 || len(part.Rungs) >= len(full.Rungs) {
 		t.Fatalf("status %q, verdict %q, %d of %d rungs", part.Status, part.Verdict, len(part.Rungs), len(full.Rungs))
+	}
+	// No horizon is read off an unfinished audit: trusted_until is null,
+	// not 0, and error says why.
+	var keys map[string]json.RawMessage
+	if err := json.Unmarshal([]byte(r.stdout), &keys); err != nil {
+		t.Fatal(err)
+	}
+	if got := string(keys["trusted_until"]); got != "null" {
+		t.Errorf("canceled audit: trusted_until %s, want null", got)
+	}
+	if got := string(keys["error"]); !strings.Contains(got, "canceled") {
+		t.Errorf("canceled audit: error %s, want the reason", got)
 	}
 	for i, g := range part.Rungs[:len(part.Rungs)-1] { // the last one was cut short
 		if g.Name != full.Rungs[i].Name || !sameBits(g.Divergence, full.Rungs[i].Divergence) {
