@@ -65,6 +65,10 @@ type TaylorStats struct {
 	// MinStep and MaxStep are the smallest and largest step taken (the
 	// last series, which only serves outputs, is not counted).
 	MinStep, MaxStep float64
+	// KinkRestarts counts the series restarted on a kink (see
+	// KinkSeries): steps shortened to end on a zero of a switching
+	// function.
+	KinkRestarts int
 }
 
 // TaylorResult is the outcome of SolveTaylor.
@@ -283,7 +287,19 @@ func (r *taylorRun) fail(t, h float64, err error) error {
 
 // runDD integrates in double-double.
 func (r *taylorRun) runDD(f Series, y0 []float64) error {
-	coef, err := f.DD(r.order)
+	var coef func(t dd.Float, y []dd.Float, c [][]dd.Float) error
+	var jet KinkJetDD
+	var err error
+	ks, kinked := f.(KinkSeries)
+	kinked = kinked && len(ks.Kinks()) > 0
+	if kinked {
+		jet, err = ks.KinkDD(r.order)
+		if jet != nil {
+			coef = jet.Coef
+		}
+	} else {
+		coef, err = f.DD(r.order)
+	}
 	if err != nil {
 		return fmt.Errorf("integrate: Taylor series of order %d: %w", r.order, err)
 	}
@@ -324,6 +340,36 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 		}
 		return nil
 	}
+	stepOf := func() (float64, float64) {
+		scale := 1.0
+		lc := [2]float64{math.Inf(-1), math.Inf(-1)}
+		for i := range n {
+			scale = math.Max(scale, math.Abs(y[i].Hi))
+			for q, j := range []int{p - 1, p} {
+				if a := math.Abs(c[i][j].Hi); a > 0 {
+					lc[q] = math.Max(lc[q], detmath.Log(a))
+				}
+			}
+		}
+		return r.stepSize(lc, scale), scale
+	}
+	var kt *kinkTrack
+	if kinked {
+		gd := make([]dd.Float, p+1)
+		kt = newKinkTrack(ks.Kinks(), kinkJet{
+			coef:    func() error { return coef(t, y, c) },
+			setSide: jet.SetSide,
+			cut:     jet.Cut,
+			step:    stepOf,
+			load: func(j int, g []*big.Float) {
+				jet.Switch(j, gd)
+				for i, v := range gd {
+					g[i].SetFloat64(v.Hi)
+					g[i].Add(g[i], new(big.Float).SetFloat64(v.Lo))
+				}
+			},
+		}, p, r.eps, kinkPrecDD)
+	}
 	for k < len(r.times) && r.times[k] == r.t0 {
 		copy(yn, y)
 		emit(r.t0)
@@ -336,20 +382,18 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 		if r.res.Stats.Steps >= r.maxSteps {
 			return r.fail(t.Float64(), 0, fmt.Errorf("%d steps: %w", r.maxSteps, ErrStepBudget))
 		}
-		if err := coef(t, y, c); err != nil {
-			return r.fail(t.Float64(), 0, err)
-		}
-		scale := 1.0
-		lc := [2]float64{math.Inf(-1), math.Inf(-1)}
-		for i := range n {
-			scale = math.Max(scale, math.Abs(y[i].Hi))
-			for q, j := range []int{p - 1, p} {
-				if a := math.Abs(c[i][j].Hi); a > 0 {
-					lc[q] = math.Max(lc[q], detmath.Log(a))
-				}
+		var h float64
+		var land *big.Float
+		if kt == nil {
+			if err := coef(t, y, c); err != nil {
+				return r.fail(t.Float64(), 0, err)
+			}
+			h, _ = stepOf()
+		} else {
+			if land, h, err = r.kinkStep(kt, t.Float64()); err != nil {
+				return err
 			}
 		}
-		h := r.stepSize(lc, scale)
 		// Outputs inside the step are the Taylor polynomial's values there
 		// (the series is as accurate inside the step as at its end).
 		for k < len(r.times) && r.times[k]-t.Float64() <= h {
@@ -368,6 +412,12 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 			break
 		}
 		hd := dd.From(h)
+		if land != nil {
+			hd = dd.FromBig(land)
+			if !(h > 0) || dd.Add(t, hd) == t {
+				continue // a kink at the point itself: restart here
+			}
+		}
 		if !(h > 0) || dd.Add(t, hd) == t {
 			return r.fail(t.Float64(), h, ErrStepUnderflow)
 		}
@@ -394,8 +444,19 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 			err = r.fail(tf, h, ErrNonFinite)
 		}
 	}()
-	coef, cerr := f.Big(r.order, prec)
-	if err = cerr; err != nil {
+	var coef func(t *big.Float, y []*big.Float, c [][]*big.Float) error
+	var jet KinkJetBig
+	ks, kinked := f.(KinkSeries)
+	kinked = kinked && len(ks.Kinks()) > 0
+	if kinked {
+		jet, err = ks.KinkBig(r.order, prec)
+		if jet != nil {
+			coef = jet.Coef
+		}
+	} else {
+		coef, err = f.Big(r.order, prec)
+	}
+	if err != nil {
 		return fmt.Errorf("integrate: Taylor series of order %d at %d bits: %w", r.order, prec, err)
 	}
 	n, p := r.n, r.order
@@ -437,6 +498,28 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 		}
 		return nil
 	}
+	stepOf := func() (float64, float64) {
+		scale := 1.0
+		lc := [2]float64{math.Inf(-1), math.Inf(-1)}
+		for i := range n {
+			yf, _ := y[i].Float64()
+			scale = math.Max(scale, math.Abs(yf))
+			for q, j := range []int{p - 1, p} {
+				lc[q] = math.Max(lc[q], logAbs(c[i][j]))
+			}
+		}
+		return r.stepSize(lc, scale), scale
+	}
+	var kt *kinkTrack
+	if kinked {
+		kt = newKinkTrack(ks.Kinks(), kinkJet{
+			coef:    func() error { return coef(t, y, c) },
+			setSide: jet.SetSide,
+			cut:     jet.Cut,
+			step:    stepOf,
+			load:    jet.Switch,
+		}, p, r.eps, prec)
+	}
 	k := 0
 	for k < len(r.times) && r.times[k] == r.t0 {
 		r.record(r.t0, y)
@@ -450,19 +533,17 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 		if r.res.Stats.Steps >= r.maxSteps {
 			return r.fail(tf, 0, fmt.Errorf("%d steps: %w", r.maxSteps, ErrStepBudget))
 		}
-		if err := coef(t, y, c); err != nil {
-			return r.fail(tf, 0, err)
-		}
-		scale := 1.0
-		lc := [2]float64{math.Inf(-1), math.Inf(-1)}
-		for i := range n {
-			yf, _ := y[i].Float64()
-			scale = math.Max(scale, math.Abs(yf))
-			for q, j := range []int{p - 1, p} {
-				lc[q] = math.Max(lc[q], logAbs(c[i][j]))
+		var land *big.Float
+		if kt == nil {
+			if err := coef(t, y, c); err != nil {
+				return r.fail(tf, 0, err)
+			}
+			h, _ = stepOf()
+		} else {
+			if land, h, err = r.kinkStep(kt, tf); err != nil {
+				return err
 			}
 		}
-		h = r.stepSize(lc, scale)
 		for k < len(r.times) && r.times[k]-tf <= h {
 			tout.SetFloat64(r.times[k])
 			if r.outTimes != nil {
@@ -479,6 +560,12 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 			break
 		}
 		hb.SetFloat64(h)
+		if land != nil {
+			hb.Set(land)
+			if !(h > 0) || s.Add(t, hb).Cmp(t) == 0 {
+				continue // a kink at the point itself: restart here
+			}
+		}
 		if !(h > 0) || math.IsInf(h, 0) || s.Add(t, hb).Cmp(t) == 0 {
 			return r.fail(tf, h, ErrStepUnderflow)
 		}

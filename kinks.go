@@ -1,0 +1,87 @@
+package plumb
+
+import (
+	"fmt"
+	"math/big"
+
+	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/internal/expr"
+)
+
+// kinkKinds maps the formula compiler's kinds to the integrator's.
+var kinkKinds = map[expr.KinkKind]integrate.KinkKind{
+	expr.KinkCorner: integrate.KinkCorner,
+	expr.KinkJump:   integrate.KinkJump,
+	expr.KinkCut:    integrate.KinkCut,
+	expr.KinkBranch: integrate.KinkBranch,
+}
+
+// Kinks lists the non-analytic functions of the field's formulas (abs,
+// min, max, sign, step, atan2, sqrt, non-integer powers), in the order
+// the Taylor jets number them; systemSeries is an integrate.KinkSeries.
+func (f *systemSeries) Kinks() []integrate.Kink {
+	ks := f.prog.Kinks()
+	out := make([]integrate.Kink, len(ks))
+	for i, k := range ks {
+		out[i] = integrate.Kink{Name: k.Op.String(), Kind: kinkKinds[k.Kind]}
+	}
+	return out
+}
+
+// ddJet is a double-double Taylor evaluator with kink control.
+type ddJet struct{ ty *expr.TaylorDD }
+
+func (j ddJet) Coef(t dd.Float, y []dd.Float, c [][]dd.Float) error {
+	if err := j.ty.ODE(t, y, c); err != nil {
+		return fmt.Errorf("plumb: %w", err)
+	}
+	return nil
+}
+func (j ddJet) SetSide(k int, s int8)         { j.ty.SetSide(k, s) }
+func (j ddJet) Switch(k int, g []dd.Float)    { j.ty.Switch(k, g) }
+func (j ddJet) Cut(k int) bool                { return j.ty.Cut(k) }
+func (j bigJet) SetSide(k int, s int8)        { j.ty.SetSide(k, s) }
+func (j bigJet) Switch(k int, g []*big.Float) { j.ty.Switch(k, g) }
+func (j bigJet) Cut(k int) bool               { return j.ty.Cut(k) }
+
+// bigJet is a big.Float Taylor evaluator with kink control.
+type bigJet struct{ ty *expr.TaylorBig }
+
+func (j bigJet) Coef(t *big.Float, y []*big.Float, c [][]*big.Float) error {
+	if err := j.ty.ODE(t, y, c); err != nil {
+		return fmt.Errorf("plumb: %w", err)
+	}
+	return nil
+}
+
+// KinkDD returns the double-double jets with kink control.
+func (f *systemSeries) KinkDD(order int) (integrate.KinkJetDD, error) {
+	ty, err := f.prog.NewTaylorDD(order)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: %w", err)
+	}
+	for i, p := range f.params {
+		ty.SetParam(1+f.n+i, dd.From(p))
+		if f.bigParams != nil {
+			ty.SetParam(1+f.n+i, dd.FromBig(f.bigParams[i]))
+		}
+	}
+	return ddJet{ty}, nil
+}
+
+// KinkBig returns the big.Float jets with kink control.
+func (f *systemSeries) KinkBig(order int, prec uint) (integrate.KinkJetBig, error) {
+	ty, err := f.prog.NewTaylorBig(order, prec)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: %w", err)
+	}
+	for i, p := range f.params {
+		v := new(big.Float).SetPrec(prec).SetFloat64(p)
+		if f.bigParams != nil {
+			v.Set(f.bigParams[i])
+		}
+		ty.SetParam(1+f.n+i, v)
+	}
+	return bigJet{ty}, nil
+}
