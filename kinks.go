@@ -1,6 +1,8 @@
 package plumb
 
 import (
+	"context"
+	"errors"
 	"fmt"
 	"math/big"
 
@@ -84,4 +86,33 @@ func (f *systemSeries) KinkBig(order int, prec uint) (integrate.KinkJetBig, erro
 		ty.SetParam(1+f.n+i, v)
 	}
 	return bigJet{ty}, nil
+}
+
+// setAside is TrustSystem's audit when its multiprecision reference
+// stopped at a kink it cannot pass (integrate.ErrKink): the audit against
+// the float64 reference run, with Report.Exact saying why (SetAside) and
+// how far the Taylor run came.
+func setAside(ctx context.Context, problem integrate.Problem, horizon float64, s TrustSettings, ex *ExactReference, cause error) (*Report, error) {
+	lad := *s.Ladder
+	lad.Exact = nil
+	s.Ladder = &lad
+	rep, err := Trust(ctx, problem, horizon, &s)
+	if rep != nil {
+		if ex == nil {
+			ex = &ExactReference{Method: "Taylor (Jorba–Zou order and step)"}
+		}
+		ex.SetAside = kinkReason(cause)
+		rep.Exact = ex
+	}
+	return rep, err
+}
+
+// kinkReason is the part of a kink error that says what happened and
+// where, without the wrapping of the packages it went through.
+func kinkReason(err error) string {
+	var se *integrate.StepError
+	if errors.As(err, &se) {
+		return se.Err.Error()
+	}
+	return err.Error()
 }

@@ -528,13 +528,19 @@ func (rep *Report) Write(w io.Writer) error {
 	var b strings.Builder
 	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
 	rows := rep.Rungs
-	if ex := rep.Exact; ex != nil {
+	if ex := rep.Exact; ex != nil && ex.SetAside != "" {
+		fmt.Fprintf(&b, "reference: %s (the multiprecision reference was set aside: %s)\n\n", rep.Reference.Name, ex.SetAside)
+	} else if ex != nil {
+		kinks := ""
+		if ex.KinkRestarts > 0 {
+			kinks = fmt.Sprintf(", restarted at %d kinks", ex.KinkRestarts)
+		}
 		if ex.Continued != "" {
-			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d) to t = %.4g, where every run from the start had departed from it, then in %s at %d digits, from which later restarts start (%d steps in all); every float64 run is compared with it\n\n",
-				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.AccurateUntil, ex.Continued, ex.ContinuedDigits, ex.Steps)
+			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d) to t = %.4g, where every run from the start had departed from it, then in %s at %d digits, from which later restarts start (%d steps in all%s); every float64 run is compared with it\n\n",
+				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.AccurateUntil, ex.Continued, ex.ContinuedDigits, ex.Steps, kinks)
 		} else {
-			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d, %d steps); every float64 run is compared with it\n\n",
-				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.Steps)
+			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d, %d steps%s); every float64 run is compared with it\n\n",
+				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.Steps, kinks)
 		}
 		rows = append([]RungReport{rep.Reference}, rep.Rungs...)
 		rows[0].Effect = "tightest"

@@ -97,6 +97,11 @@ const (
 	// accumulate (chattering); SolveTaylor then refuses.
 	kinkTinyRun  = 50
 	kinkTinyStep = 1e-6
+	// kinkBranchNear is how close to 0, relative to max(1, |y|_inf), the
+	// argument of a branch kind (sqrt) counts as the cause of a series
+	// whose step has collapsed (its coefficients grow like the inverse
+	// powers of the distance to the branch point).
+	kinkBranchNear = 1e-6
 )
 
 // kinkJet is what the tracker needs from a run's arithmetic.
@@ -188,12 +193,21 @@ func (k *kinkTrack) direction(j int, h, noise float64) (int8, int) {
 // the side of every kink the point is on: the side the solution moves
 // into, checked on that side's own series. It returns the step the series
 // allows and the noise level of the switching values.
-func (k *kinkTrack) expand(tf float64) (h, noise float64, err error) {
+func (k *kinkTrack) expand(tf, rest float64) (h, noise float64, err error) {
 	if err := k.compute(); err != nil {
 		return 0, 0, err
 	}
 	h, scale := k.jet.step()
 	noise = kinkNoise * k.eps * math.Max(1, scale)
+	if !(h > kinkTinyStep*k.eps*math.Max(1, math.Abs(tf))) {
+		// The series has (nearly) no radius left: a branch point close by?
+		for j, kd := range k.kinks {
+			if kd.Kind == KinkBranch && math.Abs(k.gF[j][0]) < kinkBranchNear*math.Max(1, scale) {
+				return 0, 0, fmt.Errorf("the argument of %s approaches 0 near t=%g: a branch point, where no series continues: %w", kd.Name, tf, ErrKink)
+			}
+		}
+	}
+	h = math.Min(h, rest)
 	at := make([]bool, len(k.kinks))
 	redo := false
 	for j, kd := range k.kinks {
@@ -226,6 +240,7 @@ func (k *kinkTrack) expand(tf float64) (h, noise float64, err error) {
 				return 0, 0, err
 			}
 			h, _ = k.jet.step()
+			h = math.Min(h, rest)
 		}
 		redo = false
 		bad := -1
@@ -435,7 +450,7 @@ const kinkPrecDD = 128
 // distance to the first kink within it (land, at the tracker's precision;
 // nil when there is none).
 func (r *taylorRun) kinkStep(kt *kinkTrack, tf float64) (land *big.Float, h float64, err error) {
-	h, noise, err := kt.expand(tf)
+	h, noise, err := kt.expand(tf, r.times[len(r.times)-1]-tf)
 	if err != nil {
 		return nil, 0, r.fail(tf, 0, err)
 	}
