@@ -3,6 +3,7 @@ package plumb
 import (
 	"context"
 	"math"
+	"math/big"
 	"strings"
 	"testing"
 
@@ -10,6 +11,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/dd"
 )
 
 // loadKinkSystem reads a flow from a system file with the given rates of
@@ -173,5 +175,170 @@ func TestReferenceKinksRefused(t *testing.T) {
 				assert.Contains(t, err.Error(), tc.want)
 			})
 		}
+	}
+}
+
+// piecewiseReference is an independent reference for a field with one
+// kink: Dormand–Prince 8(5,3) at rtol = atol = 1e-13 in float64, stopped
+// at each zero of the switching function g (located by integrate's
+// crossings) and restarted there, so that no step straddles a kink. Each
+// piece looks for the crossing of the sense opposite to the last (a zero
+// found at the restart point itself, on rounding's side, is not counted).
+func piecewiseReference(p integrate.Problem, g func(t float64, y []float64) float64, pieces *int) integrate.Trajectory {
+	return func(ctx context.Context, times []float64) ([][]float64, error) {
+		out := make([][]float64, 0, len(times))
+		t0, y0, sense, k := p.T0, p.Y0, integrate.Either, 0
+		end := times[len(times)-1]
+		for k < len(times) {
+			q := p
+			q.T0, q.Y0 = t0, y0
+			sol, err := integrate.Solve(ctx, q, end, integrate.DormandPrince853, &integrate.Settings{
+				RelTol: 1e-13, AbsTol: 1e-13,
+				Crossings: []integrate.Crossing{{G: g, Stop: true, Sense: sense}},
+			})
+			if err != nil {
+				return nil, err
+			}
+			*pieces++
+			stop := end
+			if len(sol.Hits) > 0 {
+				stop = sol.Hits[0].T
+			}
+			for k < len(times) && times[k] <= stop {
+				out = append(out, sol.At(times[k], nil))
+				k++
+			}
+			if len(sol.Hits) == 0 {
+				break
+			}
+			h := sol.Hits[0]
+			t0, y0, sense = h.T, h.Y, integrate.Rising
+			if h.Sense == integrate.Rising {
+				sense = integrate.Falling
+			}
+		}
+		return out, nil
+	}
+}
+
+// kinkBlind hides a series' kinks from SolveTaylor: the reference as it
+// was before it located kinks (each step takes the branch of its start).
+type kinkBlind struct{ s *systemSeries }
+
+func (b kinkBlind) Dim() int { return b.s.Dim() }
+func (b kinkBlind) DD(order int) (func(t dd.Float, y []dd.Float, c [][]dd.Float) error, error) {
+	return b.s.DD(order)
+}
+func (b kinkBlind) Big(order int, prec uint) (func(t *big.Float, y []*big.Float, c [][]*big.Float) error, error) {
+	return b.s.Big(order, prec)
+}
+
+// TestTrustSystemKinkedLorenz audits Lorenz fields with a kink (abs, min,
+// max) with the default multiprecision reference and with the piecewise
+// float64 reference above, and checks that every rung agrees until the
+// same grid time against both, wherever the two references themselves
+// agree to refTolFraction·Tol (the comparison's resolution: a thousandth
+// of the tolerance keeps a divergence near Tol on the same side of it,
+// and one grid step is the horizons' own resolution). The kink-blind
+// reference, which steps over kinks, is shown to fail the same check.
+func TestTrustSystemKinkedLorenz(t *testing.T) {
+	const (
+		horizon = 30
+		tol     = 1.0
+		lambda  = 0.9 // near the estimate for these fields (0.905 for abs), only sets digits
+	)
+	lorenz := func(dx, dy, dz string) []string {
+		return []string{
+			`{"name": "x", "start": 1, "rate": "10*(y - x)` + dx + `"}`,
+			`{"name": "y", "start": 1, "rate": "x*(28 - z) - y` + dy + `"}`,
+			`{"name": "z", "start": 1, "rate": "x*y - 2.6666666666666665*z` + dz + `"}`,
+		}
+	}
+	cases := []struct {
+		name  string
+		vars  []string
+		g     func(t float64, y []float64) float64
+		short bool
+	}{
+		{"abs", lorenz("", " + 0.01*abs(x)", ""), func(_ float64, y []float64) float64 { return y[0] }, true},
+		{"min", lorenz("", " + 0.5*min(x, y)", ""), func(_ float64, y []float64) float64 { return y[0] - y[1] }, false},
+		{"max", lorenz("", "", " - 0.5*max(z - 30, 0)"), func(_ float64, y []float64) float64 { return y[2] - 30 }, false},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			if testing.Short() && !tc.short {
+				t.Skip("long: -short runs the abs field only")
+			}
+			ctx := context.Background()
+			sys := loadKinkSystem(t, "lorenz-"+tc.name, tc.vars...)
+			set := &TrustSettings{Tol: tol, Lambda: lambda, NoReversal: true}
+			exact, err := TrustSystem(ctx, sys, horizon, set)
+			require.NoError(t, err)
+			require.NotNil(t, exact.Exact)
+			require.Empty(t, exact.Exact.SetAside)
+			assert.Positive(t, exact.Exact.KinkRestarts, "the trajectory crosses the kink")
+
+			p := sys.Problem()
+			pieces := 0
+			pw := piecewiseReference(p, tc.g, &pieces)
+			against := func(tr integrate.Trajectory) *Report {
+				lad := integrate.DefaultLadder(p.T0, p.T0+horizon)
+				lad.Exact = tr
+				s := *set
+				s.Ladder = &lad
+				rep, err := Trust(ctx, p, horizon, &s)
+				require.NoError(t, err)
+				return rep
+			}
+			other := against(pw)
+			// Where the two references part by refTolFraction·Tol.
+			sr, err := sys.series()
+			require.NoError(t, err)
+			var ex *ExactReference
+			digits := ReferenceDigits(lambda, horizon, refTolFraction*tol, 1)
+			a, err := exactTrajectory(sr, p, digits, p.T0+horizon, lambda, &ex)(ctx, exact.Times)
+			require.NoError(t, err)
+			pieces = 0
+			b, err := pw(ctx, exact.Times)
+			require.NoError(t, err)
+			part := math.Inf(1)
+			for i := range a {
+				d := 0.0
+				for c := range a[i] {
+					d += (a[i][c] - b[i][c]) * (a[i][c] - b[i][c])
+				}
+				if math.Sqrt(d) > refTolFraction*tol {
+					part = exact.Times[i]
+					break
+				}
+			}
+			t.Logf("%s: %d kink restarts, %d float64 pieces, references part by %g at t=%g", tc.name, ex.KinkRestarts, pieces, refTolFraction*tol, part)
+			require.Greater(t, part, 15.0, "the references agree long enough for the check to mean something")
+			every := exact.Times[1] - exact.Times[0]
+			checked := 0
+			rows := append([]RungReport{exact.Reference}, exact.Rungs...)
+			rowsPW := append([]RungReport{other.Reference}, other.Rungs...)
+			for i, r := range rows {
+				if !r.Departed || r.AgreesUntil >= part {
+					continue
+				}
+				checked++
+				assert.InDeltaf(t, rowsPW[i].AgreesUntil, r.AgreesUntil, every*1.001,
+					"rung %q: horizon against the Taylor reference vs the piecewise DP8(5,3) 1e-13 reference (one grid step)", r.Name)
+			}
+			assert.GreaterOrEqual(t, checked, 5, "rungs compared")
+			t.Logf("%s: %d rungs compared", tc.name, checked)
+
+			restarts := ex.KinkRestarts
+			// The kink-blind reference fails the same check.
+			blind := against(exactTrajectory(kinkBlind{sr}, p, digits, p.T0+horizon, lambda, &ex))
+			worst := 0.0
+			for i, r := range blind.Rungs {
+				worst = math.Max(worst, math.Abs(r.AgreesUntil-other.Rungs[i].AgreesUntil))
+			}
+			t.Logf("%s: kink-blind reference moves a rung's horizon by up to %.3g", tc.name, worst)
+			assert.Greater(t, worst, 1.0, "the kink-blind reference is wrong (the check can fail)")
+			assert.Equalf(t, pieces-1, restarts, "one Taylor restart per crossing the float64 crossings locate")
+		})
 	}
 }
