@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math/big"
+	"strings"
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/dd"
@@ -110,9 +111,10 @@ func setAside(ctx context.Context, problem integrate.Problem, horizon float64, s
 // kinkReason is the part of a kink error that says what happened and
 // where, without the wrapping of the packages it went through.
 func kinkReason(err error) string {
+	msg := err.Error()
 	var se *integrate.StepError
 	if errors.As(err, &se) {
-		return se.Err.Error()
+		msg = se.Err.Error()
 	}
-	return err.Error()
+	return strings.TrimSuffix(msg, ": "+integrate.ErrKink.Error())
 }

@@ -197,9 +197,12 @@ type RungReport struct {
 	// Start is the index in Report.Times of Divergence[0].
 	Start      int       `json:"start"`
 	Divergence []float64 `json:"divergence"`
-	// Evaluations and Steps are the run's work.
+	// Evaluations and Steps are the run's work; Rejected counts the steps
+	// its error control rejected (a kink of the field costs some: the
+	// step that straddles it fails the error test and is retried shorter).
 	Evaluations int `json:"evaluations"`
 	Steps       int `json:"steps"`
+	Rejected    int `json:"rejected_steps"`
 	// Error is why the run failed, empty if it did not.
 	Error string `json:"error,omitempty"`
 }
@@ -467,7 +470,7 @@ func rungReport(r integrate.RungResult) RungReport {
 		Delta0: clean(r.Delta0), Predicted: clean(r.Predicted),
 		Growth: g.Kind.String(), Rate: clean(g.Rate), RateErr: clean(g.RateErr), Power: clean(g.Power), PowerErr: clean(g.PowerErr),
 		Start: r.Start, Divergence: make([]float64, len(r.Divergence)),
-		Evaluations: r.Stats.Evaluations, Steps: r.Stats.Accepted,
+		Evaluations: r.Stats.Evaluations, Steps: r.Stats.Accepted, Rejected: r.Stats.Rejected,
 	}
 	if r.Rung.Fixed != nil {
 		out.Step = r.Rung.Step
