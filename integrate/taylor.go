@@ -132,12 +132,17 @@ const guardBitsTaylor = 32
 // eps·s. The global error of a chaotic flow grows as e^(λ_1 t): choose
 // Digits from the span (see plumb.Reference).
 //
+// Kinks: when f is a KinkSeries, every step ends at the first zero within
+// it of a kink's switching function, and the next series takes the branch
+// of the side the solution moves into (see KinkSeries and the package
+// overview); a kink it cannot pass ends the run with ErrKink.
+//
 // Errors: a nil Series, wrong dimensions (ErrDimension), output times that
 // are not finite, not increasing or before t0 (ErrSpan), bad settings
 // (ErrSettings), all before any work. After stepping began: a non-finite
 // state (ErrNonFinite), a step that no longer advances t
-// (ErrStepUnderflow), the step budget (ErrStepBudget), a failing Series or
-// a canceled context; each comes with the partial result (the outputs
+// (ErrStepUnderflow), the step budget (ErrStepBudget), a kink it cannot
+// pass (ErrKink), a failing Series or a canceled context; each comes with the partial result (the outputs
 // reached) and as a *StepError.
 //
 // Cost: per step one series of order p, O(p²) operations per product in
