@@ -12,6 +12,7 @@ import (
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/internal/expr"
 )
 
 // loadKinkSystem reads a flow from a system file with the given rates of
@@ -393,4 +394,28 @@ func TestExplicitRungsAtKinks(t *testing.T) {
 			assert.Lessf(t, ek, errBound*tol, "%s %g: kinked error bounded (closed form)", m.name, tol)
 		}
 	}
+}
+
+// TestReferenceKinkDigits checks that a restart at a kink keeps the
+// reference's digits: z' = |x| on x = cos t lands on the kinks π/2, 3π/2
+// and 5π/2, and z(8) = ∫_0^8 |cos| = 1 + 2 + 2 + (1 - sin 8) = 6 - sin 8
+// (exact identity; sin 8 from expr.BigSin at 300 bits). A landing off
+// by δ in time costs about δ² (the jump of the slope times δ²/2 per kink),
+// so a landing polished only to float64 (δ ~ 1e-16) would miss by 1e-32.
+func TestReferenceKinkDigits(t *testing.T) {
+	const digits = 50
+	// want: the run's own error, 10^-digits per step over a few hundred
+	// steps, with two digits of margin (common practice).
+	const tolExp = -(digits - 5)
+	sys := loadKinkSystem(t, "kinked",
+		`{"name": "x", "start": 1, "rate": "v"}`, `{"name": "v", "start": 0, "rate": "-x"}`,
+		`{"name": "z", "start": 0, "rate": "abs(x)"}`)
+	ref, err := Reference(context.Background(), sys, 8, nil, &ReferenceSettings{Digits: digits, NoCheck: true})
+	require.NoError(t, err)
+	require.Equal(t, 3, ref.Stats.KinkRestarts)
+	want := expr.BigSin(new(big.Float).SetPrec(300), new(big.Float).SetPrec(300).SetInt64(8))
+	want.Sub(new(big.Float).SetPrec(300).SetInt64(6), want)
+	diff, _ := new(big.Float).SetPrec(300).Sub(ref.States[len(ref.States)-1][2], want).Float64()
+	t.Logf("z(8) off by %.3g at %d digits", diff, digits)
+	assert.Lessf(t, math.Abs(diff), math.Pow(10, tolExp), "6 - sin 8 (exact identity, math/big)")
 }

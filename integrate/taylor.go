@@ -366,11 +366,16 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 			setSide: jet.SetSide,
 			cut:     jet.Cut,
 			step:    stepOf,
-			load: func(j int, g []*big.Float) {
+			load: func(j int, g []float64) {
 				jet.Switch(j, gd)
 				for i, v := range gd {
-					g[i].SetFloat64(v.Hi)
-					g[i].Add(g[i], new(big.Float).SetFloat64(v.Lo))
+					g[i] = v.Hi
+				}
+			},
+			loadBig: func(j int, g []*big.Float) {
+				jet.Switch(j, gd)
+				for i, v := range gd {
+					g[i].Set(v.Big())
 				}
 			},
 		}, p, r.eps, kinkPrecDD)
@@ -517,12 +522,22 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 	}
 	var kt *kinkTrack
 	if kinked {
+		gb := make([]*big.Float, p+1)
+		for i := range gb {
+			gb[i] = nf()
+		}
 		kt = newKinkTrack(ks.Kinks(), kinkJet{
 			coef:    func() error { return coef(t, y, c) },
 			setSide: jet.SetSide,
 			cut:     jet.Cut,
 			step:    stepOf,
-			load:    jet.Switch,
+			load: func(j int, g []float64) {
+				jet.Switch(j, gb)
+				for i, v := range gb {
+					g[i], _ = v.Float64()
+				}
+			},
+			loadBig: jet.Switch,
 		}, p, r.eps, prec)
 	}
 	k := 0

@@ -107,7 +107,8 @@ const (
 // kinkJet is what the tracker needs from a run's arithmetic.
 type kinkJet struct {
 	coef    func() error                // the series at the current point with the current sides
-	load    func(j int, g []*big.Float) // g_j's coefficients 0..p at prec bits
+	load    func(j int, g []float64)    // g_j's coefficients 0..p, rounded to float64
+	loadBig func(j int, g []*big.Float) // the same at prec bits
 	setSide func(j int, s int8)
 	cut     func(j int) bool
 	step    func() (h, scale float64) // the Jorba–Zou step of the current series
@@ -156,10 +157,7 @@ func (k *kinkTrack) compute() error {
 		return err
 	}
 	for j := range k.kinks {
-		k.jet.load(j, k.gB[j])
-		for i, v := range k.gB[j] {
-			k.gF[j][i], _ = v.Float64()
-		}
+		k.jet.load(j, k.gF[j])
 	}
 	return nil
 }
@@ -399,6 +397,9 @@ func (k *kinkTrack) bracket(j int, h float64) (float64, float64, bool) {
 func (k *kinkTrack) polish(j int, a, b float64) *big.Float {
 	g, d := k.gF[j], k.dir[j]
 	s0 := float64(k.prev[j])
+	// Newton stays within the sampled bracket: the float64 bisection's own
+	// bracket is only as good as float64's rounding of the polynomial.
+	lo, hi := new(big.Float).SetFloat64(a), new(big.Float).SetFloat64(b)
 	for range 80 {
 		m := 0.5 * (a + b)
 		if m <= a || m >= b {
@@ -413,8 +414,8 @@ func (k *kinkTrack) polish(j int, a, b float64) *big.Float {
 	prec := k.prec
 	tau := new(big.Float).SetPrec(prec).SetFloat64(b)
 	gb := k.gB[j]
+	k.jet.loadBig(j, gb)
 	v, dv, x, tmp := new(big.Float).SetPrec(prec), new(big.Float).SetPrec(prec), new(big.Float).SetPrec(prec), new(big.Float).SetPrec(prec)
-	lo, hi := new(big.Float).SetFloat64(a), new(big.Float).SetFloat64(b)
 	lo.SetPrec(prec)
 	hi.SetPrec(prec)
 	for it := 0; it < 12; it++ {
