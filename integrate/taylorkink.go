@@ -124,6 +124,7 @@ type kinkTrack struct {
 	prev     []int8 // side in effect in the step just taken
 	landed   []bool
 	dormant  []bool // at the kink with g insignificant over the step
+	at       []bool // at the kink (g zero to rounding) at the step's start
 	dir      []int  // order of g's first significant term at a kink, 0 none
 	gB       [][]*big.Float
 	gF       [][]float64
@@ -135,7 +136,7 @@ func newKinkTrack(kinks []Kink, jet kinkJet, order int, eps float64, prec uint) 
 	m := len(kinks)
 	k := &kinkTrack{kinks: kinks, jet: jet, eps: eps, prec: prec,
 		side: make([]int8, m), prev: make([]int8, m), landed: make([]bool, m),
-		dormant: make([]bool, m), dir: make([]int, m),
+		dormant: make([]bool, m), at: make([]bool, m), dir: make([]int, m),
 		gB: make([][]*big.Float, m), gF: make([][]float64, m)}
 	for j := range kinks {
 		k.gB[j] = make([]*big.Float, order+1)
@@ -206,7 +207,8 @@ func (k *kinkTrack) expand(tf, rest float64) (h, noise float64, err error) {
 		}
 	}
 	h = math.Min(h, rest)
-	at := make([]bool, len(k.kinks))
+	at := k.at
+	clear(at)
 	redo := false
 	for j, kd := range k.kinks {
 		k.dormant[j], k.dir[j] = false, 0
@@ -360,10 +362,7 @@ func (k *kinkTrack) bracket(j int, h float64) (float64, float64, bool) {
 	s0 := float64(k.prev[j])
 	val := func(x float64) float64 { return s0 * horner64(g, x, d) }
 	der := func(x float64) float64 { return s0 * slope64(g, x, d) }
-	a, va, da := 0.0, val(0), der(0)
-	if d == 0 {
-		va = math.Abs(g[0]) // the side is prev by construction
-	}
+	a, da := 0.0, der(0)
 	for i := 1; i <= kinkSamples; i++ {
 		b := h * float64(i) / kinkSamples
 		vb, db := val(b), der(b)
@@ -385,9 +384,8 @@ func (k *kinkTrack) bracket(j int, h float64) (float64, float64, bool) {
 				return a, r, true
 			}
 		}
-		a, va, da = b, vb, db
+		a, da = b, db
 	}
-	_ = va
 	return 0, 0, false
 }
 
