@@ -27,7 +27,11 @@ func (f *systemSeries) Kinks() []integrate.Kink {
 	ks := f.prog.Kinks()
 	out := make([]integrate.Kink, len(ks))
 	for i, k := range ks {
-		out[i] = integrate.Kink{Name: k.Op.String(), Kind: kinkKinds[k.Kind]}
+		name := k.Op.String()
+		if k.Op == expr.OpPow {
+			name = "a power that is not a constant integer"
+		}
+		out[i] = integrate.Kink{Name: name, Kind: kinkKinds[k.Kind]}
 	}
 	return out
 }

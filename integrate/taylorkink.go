@@ -128,6 +128,7 @@ type kinkTrack struct {
 	dir      []int  // order of g's first significant term at a kink, 0 none
 	gB       [][]*big.Float
 	gF       [][]float64
+	scale    float64 // max(1, |y|_inf) at the step's start
 	tiny     int
 	restarts int
 }
@@ -197,7 +198,8 @@ func (k *kinkTrack) expand(tf, rest float64) (h, noise float64, err error) {
 		return 0, 0, err
 	}
 	h, scale := k.jet.step()
-	noise = kinkNoise * k.eps * math.Max(1, scale)
+	k.scale = math.Max(1, scale)
+	noise = kinkNoise * k.eps * k.scale
 	if !(h > kinkTinyStep*k.eps*math.Max(1, math.Abs(tf))) {
 		// The series has (nearly) no radius left: a branch point close by?
 		for j, kd := range k.kinks {
@@ -293,6 +295,11 @@ func (k *kinkTrack) limit(tf, h, noise float64) (*big.Float, error) {
 			continue
 		}
 		if kd.Kind == KinkCut && !k.jet.cut(j) {
+			continue
+		}
+		if kd.Kind == KinkBranch && math.Abs(k.gF[j][0]) >= kinkBranchNear*k.scale {
+			// Far from its branch point (whose nearness shortens the
+			// steps, so that it is approached, not stepped over).
 			continue
 		}
 		a, b, ok := k.bracket(j, math.Min(h, first))
