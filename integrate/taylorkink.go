@@ -125,6 +125,7 @@ type kinkTrack struct {
 	landed   []bool
 	dormant  []bool // at the kink with g insignificant over the step
 	at       []bool // at the kink (g zero to rounding) at the step's start
+	bad      []bool // g's series is not finite
 	dir      []int  // order of g's first significant term at a kink, 0 none
 	gB       [][]*big.Float
 	gF       [][]float64
@@ -137,7 +138,7 @@ func newKinkTrack(kinks []Kink, jet kinkJet, order int, eps float64, prec uint) 
 	m := len(kinks)
 	k := &kinkTrack{kinks: kinks, jet: jet, eps: eps, prec: prec,
 		side: make([]int8, m), prev: make([]int8, m), landed: make([]bool, m),
-		dormant: make([]bool, m), at: make([]bool, m), dir: make([]int, m),
+		dormant: make([]bool, m), at: make([]bool, m), bad: make([]bool, m), dir: make([]int, m),
 		gB: make([][]*big.Float, m), gF: make([][]float64, m)}
 	for j := range kinks {
 		k.gB[j] = make([]*big.Float, order+1)
@@ -160,6 +161,15 @@ func (k *kinkTrack) compute() error {
 	}
 	for j := range k.kinks {
 		k.jet.load(j, k.gF[j])
+		k.bad[j] = false
+		for _, v := range k.gF[j] {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				// The series itself is not finite: the run fails on its
+				// state; nothing to locate.
+				k.bad[j] = true
+				break
+			}
+		}
 	}
 	return nil
 }
@@ -215,6 +225,10 @@ func (k *kinkTrack) expand(tf, rest float64) (h, noise float64, err error) {
 	for j, kd := range k.kinks {
 		k.dormant[j], k.dir[j] = false, 0
 		g0 := k.gF[j][0]
+		if k.bad[j] {
+			k.dormant[j] = true
+			continue
+		}
 		if math.Abs(g0) > noise && !k.landed[j] {
 			if k.side[j] != 0 && k.side[j] != sgn(g0) {
 				redo = true
@@ -291,7 +305,7 @@ func (k *kinkTrack) limit(tf, h, noise float64) (*big.Float, error) {
 		if k.prev[j] == 0 {
 			k.prev[j] = sgn(k.gF[j][0])
 		}
-		if k.dormant[j] || k.prev[j] == 0 {
+		if k.dormant[j] || k.bad[j] || k.prev[j] == 0 {
 			continue
 		}
 		if kd.Kind == KinkCut && !k.jet.cut(j) {
