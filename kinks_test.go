@@ -130,6 +130,7 @@ func TestReferenceKinks(t *testing.T) {
 				ref, err := Reference(context.Background(), sys, tc.t1, nil, &ReferenceSettings{Digits: digits, NoCheck: true})
 				require.NoError(t, err)
 				got := ref.Float64[len(ref.Float64)-1][tc.comp]
+				t.Logf("%d restarts, %d steps, off by %.3g", ref.Stats.KinkRestarts, ref.Stats.Steps, got-tc.want)
 				assert.InDeltaf(t, tc.want, got, kinkExactTol, "closed-form solution (exact identity), %s", tc.name)
 				switch {
 				case tc.restarts >= 0:
