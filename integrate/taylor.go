@@ -360,25 +360,7 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 	}
 	var kt *kinkTrack
 	if kinked {
-		gd := make([]dd.Float, p+1)
-		kt = newKinkTrack(ks.Kinks(), kinkJet{
-			coef:    func() error { return coef(t, y, c) },
-			setSide: jet.SetSide,
-			cut:     jet.Cut,
-			step:    stepOf,
-			load: func(j int, g []float64) {
-				jet.Switch(j, gd)
-				for i, v := range gd {
-					g[i] = v.Hi
-				}
-			},
-			loadBig: func(j int, g []*big.Float) {
-				jet.Switch(j, gd)
-				for i, v := range gd {
-					g[i].Set(v.Big())
-				}
-			},
-		}, p, r.eps, kinkPrecDD)
+		kt = newKinkTrack(ks.Kinks(), kinkJetOfDD(jet, p, func() error { return coef(t, y, c) }, stepOf), p, r.eps, kinkPrecDD)
 	}
 	for k < len(r.times) && r.times[k] == r.t0 {
 		copy(yn, y)
@@ -522,23 +504,7 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 	}
 	var kt *kinkTrack
 	if kinked {
-		gb := make([]*big.Float, p+1)
-		for i := range gb {
-			gb[i] = nf()
-		}
-		kt = newKinkTrack(ks.Kinks(), kinkJet{
-			coef:    func() error { return coef(t, y, c) },
-			setSide: jet.SetSide,
-			cut:     jet.Cut,
-			step:    stepOf,
-			load: func(j int, g []float64) {
-				jet.Switch(j, gb)
-				for i, v := range gb {
-					g[i], _ = v.Float64()
-				}
-			},
-			loadBig: jet.Switch,
-		}, p, r.eps, prec)
+		kt = newKinkTrack(ks.Kinks(), kinkJetOfBig(jet, p, prec, func() error { return coef(t, y, c) }, stepOf), p, r.eps, prec)
 	}
 	k := 0
 	for k < len(r.times) && r.times[k] == r.t0 {

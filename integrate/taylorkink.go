@@ -484,3 +484,42 @@ func (r *taylorRun) kinkStep(kt *kinkTrack, tf float64) (land *big.Float, h floa
 	}
 	return land, h, nil
 }
+
+// kinkJetOfDD is the tracker's view of a double-double run: coef and step
+// act on the run's current point and series.
+func kinkJetOfDD(jet KinkJetDD, p int, coef func() error, step func() (float64, float64)) kinkJet {
+	gd := make([]dd.Float, p+1)
+	return kinkJet{
+		coef: coef, setSide: jet.SetSide, cut: jet.Cut, step: step,
+		load: func(j int, g []float64) {
+			jet.Switch(j, gd)
+			for i, v := range gd {
+				g[i] = v.Hi
+			}
+		},
+		loadBig: func(j int, g []*big.Float) {
+			jet.Switch(j, gd)
+			for i, v := range gd {
+				g[i].Set(v.Big())
+			}
+		},
+	}
+}
+
+// kinkJetOfBig is kinkJetOfDD for a big.Float run at prec bits.
+func kinkJetOfBig(jet KinkJetBig, p int, prec uint, coef func() error, step func() (float64, float64)) kinkJet {
+	gb := make([]*big.Float, p+1)
+	for i := range gb {
+		gb[i] = new(big.Float).SetPrec(prec)
+	}
+	return kinkJet{
+		coef: coef, setSide: jet.SetSide, cut: jet.Cut, step: step,
+		load: func(j int, g []float64) {
+			jet.Switch(j, gb)
+			for i, v := range gb {
+				g[i], _ = v.Float64()
+			}
+		},
+		loadBig: jet.Switch,
+	}
+}
