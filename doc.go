@@ -38,7 +38,12 @@
 // them) and compares every float64 run with a Taylor-series reference
 // computed in double-double or big.Float at the precision the horizon needs
 // (Reference), so the tightest float64 run is audited too, not taken as the
-// truth.
+// truth. The reference restarts its series at every kink of the formulas
+// (a zero of abs's argument, a tie of min or max, a change of sign or step;
+// ExactReference.KinkRestarts); at a kink it cannot pass (a branch point of
+// sqrt, atan2's cut, a field that slides along a jump) the report sets it
+// aside and says why (ExactReference.SetAside), and the runs are compared
+// with the float64 reference run.
 //
 // The runs are compared by the Euclidean distance over every state
 // component unless TrustSettings.Distance (MapTrustSettings.Distance) names

@@ -2,6 +2,7 @@ package plumb
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"math/big"
@@ -438,8 +439,13 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		ss := s
 		ss.Ladder = &lad
 		rep, err := Trust(ctx, problem, horizon, &ss)
+		if errors.Is(err, integrate.ErrKink) && ctx.Err() == nil {
+			rep, err = setAside(ctx, problem, horizon, ss, ex, err)
+		}
 		if rep != nil {
-			rep.Exact = ex
+			if rep.Exact == nil {
+				rep.Exact = ex
+			}
 			if est != nil && rep.Exponent != nil {
 				rep.Exponent.Source, rep.Exponent.StdErr = est.Source, est.StdErr
 			}
@@ -470,7 +476,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 			until := problem.T0 + float64(spanMargin*(last-problem.T0)) + spanLyapunovTimes/s.Lambda
 			if d := ReferenceDigits(s.Lambda, until-problem.T0, refTol, scale); until < end && d < digits {
 				rep, err := audit(d, until)
-				if err != nil && ctx.Err() != nil {
+				if (err != nil && ctx.Err() != nil) || (rep != nil && rep.Exact != nil && rep.Exact.SetAside != "") {
 					return rep, err
 				}
 				local := localSpan(s.Lambda, refTol, scale)
@@ -563,7 +569,8 @@ func exactTrajectory(sr integrate.Series, problem integrate.Problem, digits int,
 		r, err := integrate.SolveTaylor(ctx, sr, problem.T0, problem.Y0, head, &integrate.TaylorSettings{Digits: digits})
 		if r != nil {
 			*ex = &ExactReference{Method: "Taylor (Jorba–Zou order and step)", Arithmetic: r.Arithmetic,
-				Digits: r.Digits, Order: r.Order, Steps: r.Stats.Steps, Lambda: lambda, AccurateUntil: accurate}
+				Digits: r.Digits, Order: r.Order, Steps: r.Stats.Steps, Lambda: lambda, AccurateUntil: accurate,
+				KinkRestarts: r.Stats.KinkRestarts}
 		}
 		if err != nil {
 			return nil, fmt.Errorf("plumb: reference run at %d digits: %w", digits, err)
@@ -585,34 +592,13 @@ func exactTrajectory(sr integrate.Series, problem integrate.Problem, digits int,
 			(*ex).Continued = tail.Arithmetic
 			(*ex).ContinuedDigits = tail.Digits
 			(*ex).Steps += tail.Stats.Steps
+			(*ex).KinkRestarts += tail.Stats.KinkRestarts
 		}
 		if err != nil {
 			return nil, fmt.Errorf("plumb: reference run continued at %d digits from t=%g: %w", MinReferenceDigits, until, err)
 		}
 		return append(out, tail.Float64...), nil
 	}
-}
-
-// ExactReference describes the multiprecision reference of a TrustSystem
-// audit.
-type ExactReference struct {
-	Method     string `json:"method"`
-	Arithmetic string `json:"arithmetic"`
-	// Digits is the working precision in decimal digits, Order the Taylor
-	// order, Steps the Taylor steps.
-	Digits int `json:"digits"`
-	Order  int `json:"order"`
-	Steps  int `json:"steps"`
-	// Lambda is the largest exponent that set Digits.
-	Lambda float64 `json:"lambda"`
-	// AccurateUntil is the time until which the reference is accurate to
-	// a thousandth of the tolerance: the end of the span, or, for a long
-	// audit of a chaotic system, a time after every run had departed from
-	// it, from which it was continued in the arithmetic Continued at
-	// ContinuedDigits digits (see TrustSystem).
-	AccurateUntil   float64 `json:"accurate_until"`
-	Continued       string  `json:"continued,omitempty"`
-	ContinuedDigits int     `json:"continued_digits,omitempty"`
 }
 
 // HasFormulas reports whether the system's vector field has formulas, so

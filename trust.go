@@ -220,9 +220,12 @@ type RungReport struct {
 	// Start is the index in Report.Times of Divergence[0].
 	Start      int       `json:"start"`
 	Divergence []float64 `json:"divergence"`
-	// Evaluations and Steps are the run's work.
+	// Evaluations and Steps are the run's work; Rejected counts the steps
+	// its error control rejected (a kink of the field costs some: the
+	// step that straddles it fails the error test and is retried shorter).
 	Evaluations int `json:"evaluations"`
 	Steps       int `json:"steps"`
+	Rejected    int `json:"rejected_steps"`
 	// Error is why the run failed, empty if it did not.
 	Error string `json:"error,omitempty"`
 }
@@ -504,7 +507,7 @@ func rungReport(r integrate.RungResult) RungReport {
 		Delta0: clean(r.Delta0), Predicted: clean(r.Predicted),
 		Growth: g.Kind.String(), Rate: clean(g.Rate), RateErr: clean(g.RateErr), Power: clean(g.Power), PowerErr: clean(g.PowerErr),
 		Start: r.Start, Divergence: make([]float64, len(r.Divergence)),
-		Evaluations: r.Stats.Evaluations, Steps: r.Stats.Accepted,
+		Evaluations: r.Stats.Evaluations, Steps: r.Stats.Accepted, Rejected: r.Stats.Rejected,
 	}
 	if r.Rung.Fixed != nil {
 		out.Step = r.Rung.Step
@@ -570,13 +573,19 @@ func (rep *Report) Write(w io.Writer) error {
 	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g%s at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, u, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
 	fmt.Fprintf(&b, "distance: %s\n", rep.Distance)
 	rows := rep.Rungs
-	if ex := rep.Exact; ex != nil {
+	if ex := rep.Exact; ex != nil && ex.SetAside != "" {
+		fmt.Fprintf(&b, "reference: %s (the multiprecision reference was set aside: %s)\n\n", rep.Reference.Name, ex.SetAside)
+	} else if ex != nil {
+		kinks := ""
+		if ex.KinkRestarts > 0 {
+			kinks = fmt.Sprintf(", restarted at %d kinks", ex.KinkRestarts)
+		}
 		if ex.Continued != "" {
-			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d) to t = %.4g, where every run from the start had departed from it, then in %s at %d digits, from which later restarts start (%d steps in all); every float64 run is compared with it\n\n",
-				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.AccurateUntil, ex.Continued, ex.ContinuedDigits, ex.Steps)
+			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d) to t = %.4g, where every run from the start had departed from it, then in %s at %d digits, from which later restarts start (%d steps in all%s); every float64 run is compared with it\n\n",
+				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.AccurateUntil, ex.Continued, ex.ContinuedDigits, ex.Steps, kinks)
 		} else {
-			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d, %d steps); every float64 run is compared with it\n\n",
-				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.Steps)
+			fmt.Fprintf(&b, "reference: %s in %s, %d digits (order %d, %d steps%s); every float64 run is compared with it\n\n",
+				ex.Method, ex.Arithmetic, ex.Digits, ex.Order, ex.Steps, kinks)
 		}
 		rows = append([]RungReport{rep.Reference}, rep.Rungs...)
 	} else {

@@ -63,6 +63,19 @@
 // provides one from a system's formulas): reference trajectories correct to
 // many more digits than float64, for Ladder.Exact.
 //
+// A Taylor series does not cross a kink (abs, min, max, sign, step). A
+// KinkSeries exposes each kink's switching function (the argument of abs,
+// the difference of min's or max's arguments) as a series of the same
+// jet; SolveTaylor brackets its first zero within every step by sampling
+// its sign and slope, polishes it by Newton's method at the working
+// precision, ends the step there and restarts the series on the branch of
+// the side the solution moves into (the sign of the switching function's
+// first significant coefficient, checked on that side's own series, so that
+// tangential touches keep their side). Where it cannot (a branch point of
+// sqrt or a non-integer power reached, atan2's cut crossed, a jump the
+// field slides along, kinks that accumulate) it stops with ErrKink rather
+// than step over the kink. TaylorStats.KinkRestarts counts the restarts.
+//
 // # Step control
 //
 // The local error of a trial step is measured in the root-mean-square norm

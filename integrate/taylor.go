@@ -65,6 +65,10 @@ type TaylorStats struct {
 	// MinStep and MaxStep are the smallest and largest step taken (the
 	// last series, which only serves outputs, is not counted).
 	MinStep, MaxStep float64
+	// KinkRestarts counts the series restarted on a kink (see
+	// KinkSeries): steps shortened to end on a zero of a switching
+	// function.
+	KinkRestarts int
 }
 
 // TaylorResult is the outcome of SolveTaylor.
@@ -128,12 +132,17 @@ const guardBitsTaylor = 32
 // eps·s. The global error of a chaotic flow grows as e^(λ_1 t): choose
 // Digits from the span (see plumb.Reference).
 //
+// Kinks: when f is a KinkSeries, every step ends at the first zero within
+// it of a kink's switching function, and the next series takes the branch
+// of the side the solution moves into (see KinkSeries and the package
+// overview); a kink it cannot pass ends the run with ErrKink.
+//
 // Errors: a nil Series, wrong dimensions (ErrDimension), output times that
 // are not finite, not increasing or before t0 (ErrSpan), bad settings
 // (ErrSettings), all before any work. After stepping began: a non-finite
 // state (ErrNonFinite), a step that no longer advances t
-// (ErrStepUnderflow), the step budget (ErrStepBudget), a failing Series or
-// a canceled context; each comes with the partial result (the outputs
+// (ErrStepUnderflow), the step budget (ErrStepBudget), a kink it cannot
+// pass (ErrKink), a failing Series or a canceled context; each comes with the partial result (the outputs
 // reached) and as a *StepError.
 //
 // Cost: per step one series of order p, O(p²) operations per product in
@@ -283,7 +292,19 @@ func (r *taylorRun) fail(t, h float64, err error) error {
 
 // runDD integrates in double-double.
 func (r *taylorRun) runDD(f Series, y0 []float64) error {
-	coef, err := f.DD(r.order)
+	var coef func(t dd.Float, y []dd.Float, c [][]dd.Float) error
+	var jet KinkJetDD
+	var err error
+	ks, kinked := f.(KinkSeries)
+	kinked = kinked && len(ks.Kinks()) > 0
+	if kinked {
+		jet, err = ks.KinkDD(r.order)
+		if jet != nil {
+			coef = jet.Coef
+		}
+	} else {
+		coef, err = f.DD(r.order)
+	}
 	if err != nil {
 		return fmt.Errorf("integrate: Taylor series of order %d: %w", r.order, err)
 	}
@@ -324,6 +345,23 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 		}
 		return nil
 	}
+	stepOf := func() (float64, float64) {
+		scale := 1.0
+		lc := [2]float64{math.Inf(-1), math.Inf(-1)}
+		for i := range n {
+			scale = math.Max(scale, math.Abs(y[i].Hi))
+			for q, j := range []int{p - 1, p} {
+				if a := math.Abs(c[i][j].Hi); a > 0 {
+					lc[q] = math.Max(lc[q], detmath.Log(a))
+				}
+			}
+		}
+		return r.stepSize(lc, scale), scale
+	}
+	var kt *kinkTrack
+	if kinked {
+		kt = newKinkTrack(ks.Kinks(), kinkJetOfDD(jet, p, func() error { return coef(t, y, c) }, stepOf), p, r.eps, kinkPrecDD)
+	}
 	for k < len(r.times) && r.times[k] == r.t0 {
 		copy(yn, y)
 		emit(r.t0)
@@ -336,20 +374,18 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 		if r.res.Stats.Steps >= r.maxSteps {
 			return r.fail(t.Float64(), 0, fmt.Errorf("%d steps: %w", r.maxSteps, ErrStepBudget))
 		}
-		if err := coef(t, y, c); err != nil {
-			return r.fail(t.Float64(), 0, err)
-		}
-		scale := 1.0
-		lc := [2]float64{math.Inf(-1), math.Inf(-1)}
-		for i := range n {
-			scale = math.Max(scale, math.Abs(y[i].Hi))
-			for q, j := range []int{p - 1, p} {
-				if a := math.Abs(c[i][j].Hi); a > 0 {
-					lc[q] = math.Max(lc[q], detmath.Log(a))
-				}
+		var h float64
+		var land *big.Float
+		if kt == nil {
+			if err := coef(t, y, c); err != nil {
+				return r.fail(t.Float64(), 0, err)
+			}
+			h, _ = stepOf()
+		} else {
+			if land, h, err = r.kinkStep(kt, t.Float64()); err != nil {
+				return err
 			}
 		}
-		h := r.stepSize(lc, scale)
 		// Outputs inside the step are the Taylor polynomial's values there
 		// (the series is as accurate inside the step as at its end).
 		for k < len(r.times) && r.times[k]-t.Float64() <= h {
@@ -368,6 +404,12 @@ func (r *taylorRun) runDD(f Series, y0 []float64) error {
 			break
 		}
 		hd := dd.From(h)
+		if land != nil {
+			hd = dd.FromBig(land)
+			if !(h > 0) || dd.Add(t, hd) == t {
+				continue // a kink at the point itself: restart here
+			}
+		}
 		if !(h > 0) || dd.Add(t, hd) == t {
 			return r.fail(t.Float64(), h, ErrStepUnderflow)
 		}
@@ -394,8 +436,19 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 			err = r.fail(tf, h, ErrNonFinite)
 		}
 	}()
-	coef, cerr := f.Big(r.order, prec)
-	if err = cerr; err != nil {
+	var coef func(t *big.Float, y []*big.Float, c [][]*big.Float) error
+	var jet KinkJetBig
+	ks, kinked := f.(KinkSeries)
+	kinked = kinked && len(ks.Kinks()) > 0
+	if kinked {
+		jet, err = ks.KinkBig(r.order, prec)
+		if jet != nil {
+			coef = jet.Coef
+		}
+	} else {
+		coef, err = f.Big(r.order, prec)
+	}
+	if err != nil {
 		return fmt.Errorf("integrate: Taylor series of order %d at %d bits: %w", r.order, prec, err)
 	}
 	n, p := r.n, r.order
@@ -437,6 +490,22 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 		}
 		return nil
 	}
+	stepOf := func() (float64, float64) {
+		scale := 1.0
+		lc := [2]float64{math.Inf(-1), math.Inf(-1)}
+		for i := range n {
+			yf, _ := y[i].Float64()
+			scale = math.Max(scale, math.Abs(yf))
+			for q, j := range []int{p - 1, p} {
+				lc[q] = math.Max(lc[q], logAbs(c[i][j]))
+			}
+		}
+		return r.stepSize(lc, scale), scale
+	}
+	var kt *kinkTrack
+	if kinked {
+		kt = newKinkTrack(ks.Kinks(), kinkJetOfBig(jet, p, prec, func() error { return coef(t, y, c) }, stepOf), p, r.eps, prec)
+	}
 	k := 0
 	for k < len(r.times) && r.times[k] == r.t0 {
 		r.record(r.t0, y)
@@ -450,19 +519,17 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 		if r.res.Stats.Steps >= r.maxSteps {
 			return r.fail(tf, 0, fmt.Errorf("%d steps: %w", r.maxSteps, ErrStepBudget))
 		}
-		if err := coef(t, y, c); err != nil {
-			return r.fail(tf, 0, err)
-		}
-		scale := 1.0
-		lc := [2]float64{math.Inf(-1), math.Inf(-1)}
-		for i := range n {
-			yf, _ := y[i].Float64()
-			scale = math.Max(scale, math.Abs(yf))
-			for q, j := range []int{p - 1, p} {
-				lc[q] = math.Max(lc[q], logAbs(c[i][j]))
+		var land *big.Float
+		if kt == nil {
+			if err := coef(t, y, c); err != nil {
+				return r.fail(tf, 0, err)
+			}
+			h, _ = stepOf()
+		} else {
+			if land, h, err = r.kinkStep(kt, tf); err != nil {
+				return err
 			}
 		}
-		h = r.stepSize(lc, scale)
 		for k < len(r.times) && r.times[k]-tf <= h {
 			tout.SetFloat64(r.times[k])
 			if r.outTimes != nil {
@@ -479,6 +546,12 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 			break
 		}
 		hb.SetFloat64(h)
+		if land != nil {
+			hb.Set(land)
+			if !(h > 0) || s.Add(t, hb).Cmp(t) == 0 {
+				continue // a kink at the point itself: restart here
+			}
+		}
 		if !(h > 0) || math.IsInf(h, 0) || s.Add(t, hb).Cmp(t) == 0 {
 			return r.fail(tf, h, ErrStepUnderflow)
 		}

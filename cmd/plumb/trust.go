@@ -382,6 +382,9 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 			cl.warnf("rung %q failed at t=%g, its curve ends there: %s", r.Name, r.AgreesUntil, r.Error)
 		}
 	}
+	if rep.Exact != nil && rep.Exact.SetAside != "" {
+		cl.warnf("the multiprecision reference was set aside, every run is compared with the float64 reference run instead: %s", rep.Exact.SetAside)
+	}
 	if rep.ExponentError != "" {
 		cl.warnf("the largest Lyapunov exponent could not be estimated, so nothing is predicted: %s", rep.ExponentError)
 	}

@@ -21,6 +21,17 @@
 // derivatives at their kinks (see Graph.Diff). Format prints an expression
 // so that Parse reads it back to the same node.
 //
+// Functions not analytic everywhere (Program.Kinks, KinkKind): abs where
+// its argument is 0, min and max where their arguments tie (corners: a
+// branch on each side), sign and step where their argument is 0 (jumps),
+// atan2 where its first argument is 0 and the second negative (its 2π
+// cut), sqrt and non-integer powers where the argument is 0 (branch
+// points). A Taylor series of the field is that of the branch at its
+// expansion point; the double-double and big.Float Taylor evaluators
+// expose each kink's switching function (Switch) and take a forced branch
+// (SetSide), so that an integrator can end its step on the kink and
+// restart on the other side.
+//
 // Compile turns a list of expressions into a Program: a flat instruction tape
 // over a register file, each shared node computed once. Evaluators made from
 // a Program:

@@ -30,7 +30,9 @@ import (
 // Integer powers use repeated series multiplication (valid at u_0 = 0); any
 // other power u^w is exp(w·log u), which needs u_0 > 0. abs, min, max, sign and step follow
 // the branch taken at the expansion point (the convention of Diff at
-// kinks). The arithmetic is float64 with products rounded before sums.
+// kinks), so a series is valid only up to the next kink (see Program.Kinks;
+// TaylorDD and TaylorBig can take a forced branch there, SetSide). The
+// arithmetic is float64 with products rounded before sums.
 //
 // A Taylor is not safe for concurrent use; its methods do not allocate.
 //

@@ -32,6 +32,9 @@ type TaylorBig struct {
 	// acc holds two partial sums used in turn: big.Float's Add allocates
 	// when the result aliases an operand.
 	acc [2]*big.Float
+	// kinks and side: see TaylorDD.
+	kinks []Kink
+	side  []int8
 }
 
 // NewTaylorBig returns a big.Float Taylor evaluator of order n (n+1
@@ -53,6 +56,7 @@ func (p *Program) NewTaylorBig(n int, prec uint) (*TaylorBig, error) {
 	t := &TaylorBig{p: p, n: n, prec: prec,
 		s: newF(prec), m: newF(prec), g: newF(prec), q: newF(prec),
 		acc: [2]*big.Float{newF(prec), newF(prec)}}
+	t.kinks, t.side = kinkSides(p)
 	t.c = make([][]*big.Float, p.nreg)
 	for i := range t.c {
 		t.c[i] = mk()
@@ -283,9 +287,9 @@ func (t *TaylorBig) order(k int) {
 			s.Sub(gs, s)
 			v[k].Quo(s, t.m.Mul(t.g.SetInt64(fk), q[0]))
 		case OpAbs:
-			if u[0].Sign() < 0 {
+			if sd := sideOf(t.side[i], u[0].Sign()); sd < 0 {
 				v[k].Neg(u[k])
-			} else if u[0].Sign() > 0 {
+			} else if sd > 0 {
 				v[k].Set(u[k])
 			} else {
 				v[k].SetInt64(0)
@@ -295,17 +299,19 @@ func (t *TaylorBig) order(k int) {
 				v[k].SetInt64(0)
 				break
 			}
-			sg := int64(u[0].Sign())
+			sd := sideOf(t.side[i], u[0].Sign())
+			sg := int64(sd)
 			if in.op == OpStep {
 				sg = 0
-				if u[0].Sign() >= 0 {
+				if sd >= 0 {
 					sg = 1
 				}
 			}
 			v[0].SetInt64(sg)
 		case OpMin, OpMax:
+			// The side is that of u - w.
 			pick := u
-			if cm := w[0].Cmp(u[0]); (in.op == OpMin && cm < 0) || (in.op == OpMax && cm > 0) {
+			if cm := -sideOf(t.side[i], u[0].Cmp(w[0])); (in.op == OpMin && cm < 0) || (in.op == OpMax && cm > 0) {
 				pick = w
 			}
 			v[k].Set(pick[k])

@@ -20,6 +20,10 @@ type TaylorDD struct {
 	c   [][]dd.Float
 	aux [][]dd.Float
 	au2 [][]dd.Float
+	// kinks and side: the non-analytic instructions and the branch forced
+	// at each (per instruction, see SetSide).
+	kinks []Kink
+	side  []int8
 }
 
 // NewTaylorDD returns a double-double Taylor evaluator of order n (n+1
@@ -29,6 +33,7 @@ func (p *Program) NewTaylorDD(n int) (*TaylorDD, error) {
 		return nil, fmt.Errorf("expr: Taylor order %d is out of range [0, 1000]", n)
 	}
 	t := &TaylorDD{p: p, n: n}
+	t.kinks, t.side = kinkSides(p)
 	buf := make([]dd.Float, p.nreg*(n+1))
 	t.c = make([][]dd.Float, p.nreg)
 	for i := range t.c {
@@ -211,16 +216,21 @@ func (t *TaylorDD) order(k int) {
 			}
 			v[k] = dd.Div(dd.Sub(g, s), dd.Mul(fk, q[0]))
 		case OpAbs:
-			v[k] = dd.MulFloat(u[k], sign(u[0].Hi))
+			v[k] = dd.MulFloat(u[k], float64(sideOf(t.side[i], int(sign(u[0].Hi)))))
 		case OpSign, OpStep:
 			if k == 0 {
-				v[0] = dd.From(eval1(in.op, u[0].Hi))
+				x := u[0].Hi
+				if t.side[i] != 0 {
+					x = float64(t.side[i])
+				}
+				v[0] = dd.From(eval1(in.op, x))
 			} else {
 				v[k] = dd.Float{}
 			}
 		case OpMin, OpMax:
+			// The side is that of u - w.
 			pick := u
-			if c := dd.Cmp(w[0], u[0]); (in.op == OpMin && c < 0) || (in.op == OpMax && c > 0) {
+			if c := -sideOf(t.side[i], dd.Cmp(u[0], w[0])); (in.op == OpMin && c < 0) || (in.op == OpMax && c > 0) {
 				pick = w
 			}
 			if math.IsNaN(u[0].Hi) || math.IsNaN(w[0].Hi) {
