@@ -15,6 +15,9 @@ var (
 	ErrUnknown = errors.New("unknown name")
 	// ErrArity reports a function called with the wrong number of arguments.
 	ErrArity = errors.New("wrong number of arguments")
+	// ErrTooLarge reports formulas, or derivatives of them, beyond the
+	// limits set with Graph.SetLimits.
+	ErrTooLarge = errors.New("formulas too large")
 )
 
 // ParseError is a formula error with its position. Pos is the byte offset in

@@ -100,6 +100,9 @@ type Graph struct {
 	nodes []node
 	index map[node]Expr
 	diffs map[[2]int32]Expr
+	// maxNodes and maxWork are the limits of SetLimits (0: none); work
+	// counts the nodes visited by Derivative.
+	maxNodes, maxWork, work int
 }
 
 // NewGraph returns an empty graph whose formulas may use the named variables;
@@ -395,26 +398,8 @@ func (g *Graph) build(op Op, a, b Expr) Expr {
 // Uses reports which variable slots e depends on.
 func (g *Graph) Uses(e Expr) []bool {
 	used := make([]bool, len(g.vars))
-	seen := make(map[Expr]bool)
-	var walk func(e Expr)
-	walk = func(e Expr) {
-		if seen[e] {
-			return
-		}
-		seen[e] = true
-		n := g.nodes[e]
-		switch n.op.arity() {
-		case 0:
-			if n.op == OpVar {
-				used[n.a] = true
-			}
-		case 1:
-			walk(n.a)
-		case 2:
-			walk(n.a)
-			walk(n.b)
-		}
+	for _, v := range g.Slots(e) {
+		used[v] = true
 	}
-	walk(e)
 	return used
 }
