@@ -127,7 +127,9 @@ func builtinFormulas(f *models.Flow, rates []string) (*formulaSystem, error) {
 		}
 		fs.rates = append(fs.rates, e)
 	}
-	fs.finish()
+	if err := fs.finish(); err != nil {
+		return nil, err
+	}
 	return fs, nil
 }
 
@@ -274,6 +276,9 @@ type MapSystem struct {
 	jac  *expr.Float64
 	buf  []float64
 	jbuf []float64
+	// jacAt places the entries jac computes (see formulaSystem.jacAt); nil
+	// when jbuf holds a dense n×n Jacobian.
+	jacAt []int
 	// goNext and goJac are a built-in's hand-written map and Jacobian.
 	goNext  func(t float64, x, dst []float64)
 	goJac   func(t float64, x []float64, dst *mat.Dense)
@@ -309,6 +314,10 @@ func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
 		m.jac.Run(m.jbuf)
 	}
 	r, c := dst.Dims()
+	if m.jacAt != nil {
+		setSparse(dst, m.n, m.jacAt, m.jbuf)
+		return
+	}
 	for i := 0; i < min(m.n, r); i++ {
 		for j := 0; j < min(m.n, c); j++ {
 			dst.Set(i, j, m.jbuf[i*m.n+j])
@@ -327,7 +336,7 @@ func (s *System) Map() (*MapSystem, error) {
 	}
 	f := s.form
 	m := &MapSystem{n: f.n, next: f.fieldProg.NewFloat64(), jac: f.jacProg.NewFloat64(),
-		buf: make([]float64, f.n), jbuf: make([]float64, f.n*f.n), periods: s.Periods()}
+		buf: make([]float64, f.n), jbuf: make([]float64, len(f.jacAt)), jacAt: f.jacAt, periods: s.Periods()}
 	f.setParams(m.next.Vars(), s.params)
 	f.setParams(m.jac.Vars(), s.params)
 	return m, nil
@@ -550,25 +559,65 @@ type formulaSystem struct {
 	g         *expr.Graph
 	n         int
 	rates     []expr.Expr
-	jac       []expr.Expr // row-major n×n
+	jac       []expr.Expr // the Jacobian's entries that are not structurally zero
+	jacAt     []int       // jac[k] is entry (jacAt[k]/n, jacAt[k]%n); increasing
 	fieldProg *expr.Program
 	jacProg   *expr.Program
 	ham       *hamiltonian
 	timeUnit  string
 }
 
-// finish derives the Jacobian and compiles the programs.
-func (f *formulaSystem) finish() {
-	f.jac = make([]expr.Expr, 0, f.n*f.n)
-	for _, r := range f.rates {
-		for j := 0; j < f.n; j++ {
-			f.jac = append(f.jac, f.g.Diff(r, 1+j))
+// finish derives the Jacobian and compiles the programs. Each rate is
+// differentiated only by the states it uses, so the cost follows the
+// formulas' size, not n²; the other entries are zero. With limits set on
+// the graph (LoadSystem), a Jacobian past them is an error naming the rate.
+func (f *formulaSystem) finish() error {
+	for i, r := range f.rates {
+		for _, slot := range f.g.Slots(r) {
+			if slot < 1 || slot > f.n {
+				continue // t or a parameter
+			}
+			d, err := f.g.Derivative(r, slot)
+			if err != nil {
+				return &rateError{row: i, err: err}
+			}
+			if v, ok := f.g.Value(d); ok && math.Float64bits(v) == 0 {
+				continue // +0, as the zeroed matrix holds
+			}
+			f.jac = append(f.jac, d)
+			f.jacAt = append(f.jacAt, i*f.n+slot-1)
 		}
 	}
 	f.fieldProg = f.g.Compile(f.rates)
 	f.jacProg = f.g.Compile(f.jac)
 	if f.ham != nil {
 		f.ham.compile(f.g)
+	}
+	return nil
+}
+
+// rateError is an error in the Jacobian of rate row.
+type rateError struct {
+	row int
+	err error
+}
+
+func (e *rateError) Error() string { return e.err.Error() }
+func (e *rateError) Unwrap() error { return e.err }
+
+// setSparse writes the n×n matrix with the entries vals at the places at
+// (see formulaSystem.jacAt) and zeros elsewhere into dst; a dst of another
+// size gets the overlapping block.
+func setSparse(dst *mat.Dense, n int, at []int, vals []float64) {
+	raw := dst.RawMatrix()
+	r, c := min(n, raw.Rows), min(n, raw.Cols)
+	for i := 0; i < r; i++ {
+		clear(raw.Data[i*raw.Stride : i*raw.Stride+c])
+	}
+	for k, ij := range at {
+		if i, j := ij/n, ij%n; i < r && j < c {
+			raw.Data[i*raw.Stride+j] = vals[k]
+		}
 	}
 }
 
@@ -590,17 +639,13 @@ func (f *formulaSystem) jacFunc(params []float64) func(float64, []float64, *mat.
 	vars := ev.Vars()
 	f.setParams(vars, params)
 	state := vars[1 : 1+f.n]
-	buf := make([]float64, f.n*f.n)
-	n := f.n
+	buf := make([]float64, len(f.jacAt))
+	n, at := f.n, f.jacAt
 	return func(t float64, y []float64, dst *mat.Dense) {
 		vars[0] = t
 		copy(state, y)
 		ev.Run(buf)
-		for i := 0; i < n; i++ {
-			for j := 0; j < n; j++ {
-				dst.Set(i, j, buf[i*n+j])
-			}
-		}
+		setSparse(dst, n, at, buf)
 	}
 }
 
@@ -621,31 +666,43 @@ type hamiltonian struct {
 // and decides separability: H = T(p) + V(q) exactly when no ∂H/∂p depends
 // on q or t and no ∂H/∂q depends on p or t (a structural test on the
 // derivative graphs, so it never claims separability falsely).
-func (f *formulaSystem) setHamiltonian(h expr.Expr) {
+func (f *formulaSystem) setHamiltonian(h expr.Expr) error {
 	m := f.n / 2
 	hm := &hamiltonian{h: h, m: m}
 	for i := 0; i < m; i++ {
-		hm.dHdq = append(hm.dHdq, f.g.Diff(h, 1+i))
-		hm.dHdp = append(hm.dHdp, f.g.Diff(h, 1+m+i))
+		dq, err := f.g.Derivative(h, 1+i)
+		if err != nil {
+			return err
+		}
+		dp, err := f.g.Derivative(h, 1+m+i)
+		if err != nil {
+			return err
+		}
+		hm.dHdq = append(hm.dHdq, dq)
+		hm.dHdp = append(hm.dHdp, dp)
 	}
 	f.rates = nil
 	f.rates = append(f.rates, hm.dHdp...)
 	for _, d := range hm.dHdq {
 		f.rates = append(f.rates, f.g.Neg(d))
 	}
+	// Slots 0 (t), 1..m (q), m+1..2m (p): dH/dp may use only p and the
+	// parameters, dH/dq only q and the parameters.
 	hm.separable = true
 	for i := 0; i < m; i++ {
-		up, uq := f.g.Uses(hm.dHdp[i]), f.g.Uses(hm.dHdq[i])
-		if up[0] || uq[0] {
-			hm.separable = false
+		for _, s := range f.g.Slots(hm.dHdp[i]) {
+			if s <= m {
+				hm.separable = false
+			}
 		}
-		for j := 0; j < m; j++ {
-			if up[1+j] || uq[1+m+j] {
+		for _, s := range f.g.Slots(hm.dHdq[i]) {
+			if s == 0 || (s > m && s <= 2*m) {
 				hm.separable = false
 			}
 		}
 	}
 	f.ham = hm
+	return nil
 }
 
 func (h *hamiltonian) compile(g *expr.Graph) {

@@ -28,18 +28,18 @@ func (g *Graph) Diff(e Expr, v int) Expr {
 	return d
 }
 
-// diff returns the memoized derivative of an operand: diffWalk
-// differentiates operands before their users.
+// diff returns the derivative of an operand in the current walk:
+// diffWalk differentiates operands before their users.
 func (g *Graph) diff(e Expr, v int) Expr {
-	if d, ok := g.diffs[[2]int32{int32(e), int32(v)}]; ok {
-		return d
+	if int(e) < len(g.seen) && g.seen[e] == g.stamp {
+		return g.dval[e]
 	}
 	panic("expr: operand differentiated out of order")
 }
 
 func (g *Graph) diffRule(e Expr, v int) Expr {
 	n := g.nodes[e]
-	zero, one := g.Const(0), g.Const(1)
+	zero, one := g.zeroOne()
 	switch n.op {
 	case OpConst:
 		return zero

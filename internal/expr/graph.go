@@ -97,23 +97,39 @@ type node struct {
 // independent of it.
 type Graph struct {
 	vars  []string
+	slot  map[string]int // the first slot of each non-empty name
 	nodes []node
 	index map[node]Expr
 	diffs map[[2]int32]Expr
 	// maxNodes and maxWork are the limits of SetLimits (0: none); work
 	// counts the nodes visited by Derivative.
 	maxNodes, maxWork, work int
+	// seen and stamp mark the nodes of a walk (see reachable).
+	seen  []uint32
+	stamp uint32
+	// dval holds the derivatives of the nodes of the current diffWalk.
+	dval []Expr
+	// zero and one are the constants 0 and 1 once haveZO (see zeroOne).
+	zero, one Expr
+	haveZO    bool
 }
 
 // NewGraph returns an empty graph whose formulas may use the named variables;
 // variable i is slot i of every evaluator compiled from the graph. An empty
 // name reserves a slot that formulas cannot mention.
 func NewGraph(vars []string) *Graph {
-	return &Graph{
+	g := &Graph{
 		vars:  append([]string(nil), vars...),
+		slot:  make(map[string]int, len(vars)),
 		index: make(map[node]Expr),
 		diffs: make(map[[2]int32]Expr),
 	}
+	for i, v := range vars {
+		if _, dup := g.slot[v]; v != "" && !dup {
+			g.slot[v] = i
+		}
+	}
+	return g
 }
 
 // Vars returns the variable names in slot order.

@@ -32,6 +32,9 @@ import (
 // none), so that hostile input cannot exhaust the stack.
 const maxDepth = 1000
 
+// maxListed is how many variables an unknown-name error lists.
+const maxListed = 20
+
 type parser struct {
 	g     *Graph
 	src   string
@@ -248,19 +251,25 @@ func (p *parser) primary() (Expr, error) {
 	if name == "pi" {
 		return p.g.Const(math.Pi), nil
 	}
-	for i, v := range p.g.vars {
-		if v == name {
-			return p.g.Var(i), nil
-		}
+	if i, ok := p.g.slot[name]; ok {
+		return p.g.Var(i), nil
 	}
 	if _, ok := lookupFunc(name); ok {
 		return 0, p.errAt(start, ErrSyntax, "function %s needs its arguments in parentheses", name)
 	}
 	var known []string
+	more := 0
 	for _, v := range p.g.vars {
-		if v != "" {
+		switch {
+		case v == "":
+		case len(known) < maxListed:
 			known = append(known, v)
+		default:
+			more++
 		}
+	}
+	if more > 0 {
+		return 0, p.errAt(start, ErrUnknown, "unknown name %q (variables: %v and %d more)", name, known, more)
 	}
 	return 0, p.errAt(start, ErrUnknown, "unknown name %q (variables: %v)", name, known)
 }

@@ -13,8 +13,7 @@ import (
 // input. Parse fails with ErrTooLarge once the graph holds more than
 // maxNodes nodes; Derivative fails with ErrTooLarge once the graph holds
 // more than maxNodes nodes or its calls together have visited more than
-// maxWork nodes (each call visits the nodes of its formula not yet
-// differentiated by that variable). Zero means no bound. Diff ignores the
+// maxWork nodes (each call visits the nodes of its formula). Zero means no bound. Diff ignores the
 // limits.
 func (g *Graph) SetLimits(maxNodes, maxWork int) {
 	g.maxNodes, g.maxWork = maxNodes, maxWork
@@ -24,16 +23,26 @@ func (g *Graph) SetLimits(maxNodes, maxWork int) {
 // nil) is false, in increasing order, so operands come before their users.
 // A node for which skip is true is neither returned nor walked through.
 func (g *Graph) reachable(roots []Expr, skip func(Expr) bool) []Expr {
-	seen := make(map[Expr]struct{})
+	// seen[x] == g.stamp marks the nodes of this walk: no clearing, no
+	// hashing.
+	g.stamp++
+	if g.stamp == 0 { // wrapped: start the marks afresh
+		clear(g.seen)
+		g.stamp = 1
+	}
+	if len(g.seen) < len(g.nodes) {
+		g.seen = append(g.seen, make([]uint32, len(g.nodes)-len(g.seen))...)
+	}
+	seen, stamp := g.seen, g.stamp
 	var out []Expr
 	stack := append([]Expr(nil), roots...)
 	for len(stack) > 0 {
 		e := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
-		if _, ok := seen[e]; ok {
+		if seen[e] == stamp {
 			continue
 		}
-		seen[e] = struct{}{}
+		seen[e] = stamp
 		if skip != nil && skip(e) {
 			continue
 		}
@@ -74,30 +83,42 @@ func (g *Graph) Derivative(e Expr, v int) (Expr, error) {
 	return g.diffWalk(e, v, true)
 }
 
-// diffWalk differentiates e by slot v: it differentiates every node of e
-// not yet differentiated by v, operands first, so that diffRule finds the
-// derivatives of the operands memoized. With limited set it stops at the
-// graph's limits.
+// diffWalk differentiates e by slot v: it differentiates every node of e,
+// operands first, into g.dval (where diff finds the operands'
+// derivatives), and memoizes the result for e. With limited set it stops
+// at the graph's limits. Only the roots are memoized: a walk costs the
+// size of its formula, and a graph of millions of nodes needs no memo of
+// millions of (node, variable) pairs.
 func (g *Graph) diffWalk(e Expr, v int, limited bool) (Expr, error) {
-	key := func(x Expr) [2]int32 { return [2]int32{int32(x), int32(v)} }
-	if d, ok := g.diffs[key(e)]; ok {
+	key := [2]int32{int32(e), int32(v)}
+	if d, ok := g.diffs[key]; ok {
 		return d, nil
 	}
-	order := g.reachable([]Expr{e}, func(x Expr) bool {
-		_, ok := g.diffs[key(x)]
-		return ok
-	})
+	order := g.reachable([]Expr{e}, nil)
 	if limited {
 		g.work += len(order)
 		if g.maxWork > 0 && g.work > g.maxWork {
 			return 0, fmt.Errorf("expr: differentiating the formulas takes more than the limit of %d steps: %w", g.maxWork, ErrTooLarge)
 		}
 	}
+	if len(g.dval) < len(g.nodes) {
+		g.dval = append(g.dval, make([]Expr, len(g.nodes)-len(g.dval))...)
+	}
 	for _, x := range order {
-		g.diffs[key(x)] = g.diffRule(x, v)
+		g.dval[x] = g.diffRule(x, v)
 		if limited && g.maxNodes > 0 && len(g.nodes) > g.maxNodes {
 			return 0, fmt.Errorf("expr: the formulas and their derivatives are larger than the limit of %d nodes: %w", g.maxNodes, ErrTooLarge)
 		}
 	}
-	return g.diffs[key(e)], nil
+	d := g.dval[e]
+	g.diffs[key] = d
+	return d, nil
+}
+
+// zeroOne returns the constants 0 and 1, made once.
+func (g *Graph) zeroOne() (Expr, Expr) {
+	if !g.haveZO {
+		g.zero, g.one, g.haveZO = g.Const(0), g.Const(1), true
+	}
+	return g.zero, g.one
 }
