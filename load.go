@@ -137,6 +137,9 @@ type fileVariable struct {
 // and a caret line. The file format is documented with a full example in
 // docs/system-file.md.
 func LoadSystem(r io.Reader) (*System, error) {
+	if r == nil {
+		return nil, fmt.Errorf("plumb: LoadSystem from a nil reader: %w", ErrNoSystem)
+	}
 	data, err := io.ReadAll(io.LimitReader(r, maxFileSize+1))
 	if err != nil {
 		return nil, fmt.Errorf("plumb: reading system file: %w", err)

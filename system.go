@@ -146,11 +146,16 @@ type Param struct {
 }
 
 // Kind returns whether the system is a flow, a map or a Hamiltonian.
-func (s *System) Kind() Kind { return s.kind }
+func (s *System) Kind() Kind {
+	if s == nil {
+		return ""
+	}
+	return s.kind
+}
 
 // TimeUnit returns the unit of time given in a system file, or "".
 func (s *System) TimeUnit() string {
-	if s.form == nil {
+	if s == nil || s.form == nil {
 		return ""
 	}
 	return s.form.timeUnit
@@ -158,10 +163,18 @@ func (s *System) TimeUnit() string {
 
 // Units returns the unit of each state component as given in a system file
 // ("" where none was given), or nil for built-ins.
-func (s *System) Units() []string { return append([]string(nil), s.units...) }
+func (s *System) Units() []string {
+	if s == nil {
+		return nil
+	}
+	return append([]string(nil), s.units...)
+}
 
 // Params returns the parameters with their current values.
 func (s *System) Params() []Param {
+	if s == nil {
+		return nil
+	}
 	out := make([]Param, len(s.pinfo))
 	for i, p := range s.pinfo {
 		out[i] = Param{Name: p.Name, Value: s.params[i], Doc: p.Doc, Unit: p.Unit}
@@ -171,6 +184,9 @@ func (s *System) Params() []Param {
 
 // Set changes a parameter. Unknown names and non-finite values are errors.
 func (s *System) Set(name string, v float64) error {
+	if err := s.check("Set"); err != nil {
+		return err
+	}
 	i := -1
 	for k, p := range s.pinfo {
 		if p.Name == name {
@@ -192,10 +208,18 @@ func (s *System) Set(name string, v float64) error {
 }
 
 // Start returns a copy of the initial state.
-func (s *System) Start() []float64 { return append([]float64(nil), s.y0...) }
+func (s *System) Start() []float64 {
+	if s == nil {
+		return nil
+	}
+	return append([]float64(nil), s.y0...)
+}
 
 // SetStart replaces the initial state; its length must match States.
 func (s *System) SetStart(y0 []float64) error {
+	if err := s.check("SetStart"); err != nil {
+		return err
+	}
 	if len(y0) != len(s.y0) {
 		return fmt.Errorf("plumb: start has %d components, model %s has %d: %w", len(y0), s.Name, len(s.y0), integrate.ErrDimension)
 	}
@@ -207,7 +231,7 @@ func (s *System) SetStart(y0 []float64) error {
 // nil when no component is periodic. Distances between states use the
 // wrapped difference on periodic components.
 func (s *System) Periods() []float64 {
-	if s.periods == nil {
+	if s == nil || s.periods == nil {
 		return nil
 	}
 	return append([]float64(nil), s.periods...)
@@ -216,7 +240,7 @@ func (s *System) Periods() []float64 {
 // Known returns a published fact of the default configuration (e.g.
 // "period", "energy"), and whether it exists. Systems from files have none.
 func (s *System) Known(key string) (float64, bool) {
-	if s.flow == nil {
+	if s == nil || s.flow == nil {
 		return 0, false
 	}
 	v, ok := s.flow.Known[key]
@@ -226,6 +250,9 @@ func (s *System) Known(key string) (float64, bool) {
 // Separable reports whether the system is a Hamiltonian H = T(p) + V(q), so
 // that Problem carries the parts symplectic methods need.
 func (s *System) Separable() bool {
+	if s.check("") != nil {
+		return false
+	}
 	if s.flow != nil {
 		return s.flow.Separable != nil
 	}
@@ -239,8 +266,12 @@ func (s *System) Separable() bool {
 // returned Problem.
 //
 // A map has no vector field: its Problem has a nil F (which the integrators
-// reject with integrate.ErrSettings); use Map instead.
+// reject with integrate.ErrSettings); use Map instead. So has the Problem of
+// a nil or zero System.
 func (s *System) Problem() integrate.Problem {
+	if s.check("") != nil {
+		return integrate.Problem{}
+	}
 	p := integrate.Problem{Y0: append([]float64(nil), s.y0...)}
 	if s.kind == KindMap {
 		return p
@@ -286,13 +317,25 @@ type MapSystem struct {
 	periods []float64
 }
 
-// Dim returns the dimension of the state.
-func (m *MapSystem) Dim() int { return m.n }
+// Dim returns the dimension of the state (0 for a nil or zero MapSystem).
+func (m *MapSystem) Dim() int {
+	if m == nil {
+		return 0
+	}
+	return m.n
+}
+
+// zero reports a nil MapSystem or one not made by System.Map, whose Next
+// and Jacobian do nothing.
+func (m *MapSystem) zero() bool { return m == nil || (m.goNext == nil && m.next == nil) }
 
 // Next writes f(x) into dst. Both should have length Dim: Next reads the
 // first Dim components of x (missing ones keep the previous call's values)
 // and writes at most len(dst) components. It does not allocate.
 func (m *MapSystem) Next(x, dst []float64) {
+	if m.zero() {
+		return
+	}
 	if m.goNext != nil {
 		m.goNext(0, x, m.buf)
 	} else {
@@ -306,6 +349,9 @@ func (m *MapSystem) Next(x, dst []float64) {
 // Jacobian writes df/dx at x into dst, which should be Dim×Dim (a matrix of
 // another size gets the overlapping block). It does not allocate.
 func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
+	if m.zero() || dst == nil {
+		return
+	}
 	if m.goJac != nil {
 		m.goJac(0, x, m.jm)
 		copy(m.jbuf, m.jm.RawMatrix().Data)
@@ -328,8 +374,14 @@ func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
 // Map returns the map of a system of kind map at the current parameters, or
 // an error wrapping ErrKind for flows and Hamiltonians.
 func (s *System) Map() (*MapSystem, error) {
+	if s == nil {
+		return nil, s.check("Map")
+	}
 	if s.kind != KindMap {
 		return nil, fmt.Errorf("plumb: %s is a %s, not a map: %w", s.Name, s.kind, ErrKind)
+	}
+	if err := s.check("Map"); err != nil {
+		return nil, err
 	}
 	if s.flow != nil {
 		return s.builtinMap(), nil
@@ -366,6 +418,9 @@ type BigEvaluator struct {
 // Built-in models use their catalog formulas. prec must be in [2,
 // big.MaxPrec].
 func (s *System) Evaluator(prec uint) (*BigEvaluator, error) {
+	if err := s.check("Evaluator"); err != nil {
+		return nil, err
+	}
 	if s.form == nil {
 		return nil, fmt.Errorf("plumb: model %s has no formulas for multiprecision evaluation: %w", s.Name, ErrKind)
 	}
@@ -381,16 +436,29 @@ func (s *System) Evaluator(prec uint) (*BigEvaluator, error) {
 }
 
 // Prec returns the evaluator's precision in bits.
-func (e *BigEvaluator) Prec() uint { return e.ev.Prec() }
+func (e *BigEvaluator) Prec() uint {
+	if e == nil || e.ev == nil {
+		return 0
+	}
+	return e.ev.Prec()
+}
 
 // Eval writes the right-hand side at (t, y) into dydt (t is ignored for
 // maps). Nil entries of dydt are allocated at the evaluator's precision.
-// Wrong lengths are errors wrapping integrate.ErrDimension; a value that
-// is not a real number (0/0, log of a negative number) is an error
-// wrapping expr's ErrNaN.
+// Wrong lengths are errors wrapping integrate.ErrDimension, a nil entry of
+// y one wrapping integrate.ErrNonFinite; a value that is not a real number
+// (0/0, log of a negative number) is an error wrapping expr's ErrNaN.
 func (e *BigEvaluator) Eval(t *big.Float, y, dydt []*big.Float) error {
+	if e == nil || e.ev == nil {
+		return noEvaluator("BigEvaluator.Eval")
+	}
 	if len(y) != e.n || len(dydt) != e.n {
 		return fmt.Errorf("plumb: Eval with %d states and %d outputs, system has %d: %w", len(y), len(dydt), e.n, integrate.ErrDimension)
+	}
+	for i, v := range y {
+		if v == nil {
+			return fmt.Errorf("plumb: Eval: y[%d] is nil, not a number: %w", i, integrate.ErrNonFinite)
+		}
 	}
 	vars := e.ev.Vars()
 	if t != nil {
@@ -420,6 +488,9 @@ type DDEvaluator struct {
 // arithmetic at the current parameters (see Evaluator for the model's
 // numbers). Built-in models use their catalog formulas.
 func (s *System) DoubleDoubleEvaluator() (*DDEvaluator, error) {
+	if err := s.check("DoubleDoubleEvaluator"); err != nil {
+		return nil, err
+	}
 	if s.form == nil {
 		return nil, fmt.Errorf("plumb: model %s has no formulas for double-double evaluation: %w", s.Name, ErrKind)
 	}
@@ -434,6 +505,9 @@ func (s *System) DoubleDoubleEvaluator() (*DDEvaluator, error) {
 // Eval writes the right-hand side at (t, y) into dydt (t is ignored for
 // maps). Wrong lengths are errors wrapping integrate.ErrDimension.
 func (e *DDEvaluator) Eval(t DoubleDouble, y, dydt []DoubleDouble) error {
+	if e == nil || e.ev == nil {
+		return noEvaluator("DDEvaluator.Eval")
+	}
 	if len(y) != e.n || len(dydt) != e.n {
 		return fmt.Errorf("plumb: Eval with %d states and %d outputs, system has %d: %w", len(y), len(dydt), e.n, integrate.ErrDimension)
 	}
@@ -447,7 +521,7 @@ func (e *DDEvaluator) Eval(t DoubleDouble, y, dydt []DoubleDouble) error {
 // values of a map; for a Hamiltonian, Hamilton's equations derived from H),
 // or nil when the system has none.
 func (s *System) Formulas() []string {
-	if s.form == nil {
+	if s == nil || s.form == nil {
 		return nil
 	}
 	out := make([]string, len(s.form.rates))
@@ -471,6 +545,9 @@ type TaylorStepper struct {
 // current parameters, for flows and Hamiltonians (maps get an error
 // wrapping ErrKind). Built-in models use their catalog formulas.
 func (s *System) Taylor(order int) (*TaylorStepper, error) {
+	if err := s.check("Taylor"); err != nil {
+		return nil, err
+	}
 	if s.form == nil || s.kind == KindMap {
 		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor method: %w", s.Name, ErrKind)
 	}
@@ -488,11 +565,19 @@ func (s *System) Taylor(order int) (*TaylorStepper, error) {
 }
 
 // Order returns the stepper's order.
-func (ts *TaylorStepper) Order() int { return ts.ty.Order() }
+func (ts *TaylorStepper) Order() int {
+	if ts == nil || ts.ty == nil {
+		return 0
+	}
+	return ts.ty.Order()
+}
 
 // Step writes the Taylor polynomial's value at t+h, from y at t, into dst
 // (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
 func (ts *TaylorStepper) Step(t float64, y []float64, h float64, dst []float64) error {
+	if ts == nil || ts.ty == nil {
+		return noEvaluator("TaylorStepper.Step")
+	}
 	if len(y) != ts.n || len(dst) != ts.n {
 		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
 	}
@@ -502,6 +587,9 @@ func (ts *TaylorStepper) Step(t float64, y []float64, h float64, dst []float64) 
 // Coefficients writes the Taylor coefficients of the solution through
 // (t, y): dst[i][k] is the coefficient of h^k of component i, k = 0..Order.
 func (ts *TaylorStepper) Coefficients(t float64, y []float64, dst [][]float64) error {
+	if ts == nil || ts.ty == nil {
+		return noEvaluator("TaylorStepper.Coefficients")
+	}
 	if len(y) != ts.n || len(dst) != ts.n {
 		return fmt.Errorf("plumb: Taylor coefficients with %d states and %d rows, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
 	}
@@ -524,6 +612,9 @@ type TaylorDDStepper struct {
 // TaylorDD returns a double-double Taylor stepper of the given order (1 to
 // 1000) at the current parameters; see Taylor.
 func (s *System) TaylorDD(order int) (*TaylorDDStepper, error) {
+	if err := s.check("TaylorDD"); err != nil {
+		return nil, err
+	}
 	if s.form == nil || s.kind == KindMap {
 		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor method: %w", s.Name, ErrKind)
 	}
@@ -541,11 +632,19 @@ func (s *System) TaylorDD(order int) (*TaylorDDStepper, error) {
 }
 
 // Order returns the stepper's order.
-func (ts *TaylorDDStepper) Order() int { return ts.ty.Order() }
+func (ts *TaylorDDStepper) Order() int {
+	if ts == nil || ts.ty == nil {
+		return 0
+	}
+	return ts.ty.Order()
+}
 
 // Step writes the Taylor polynomial's value at t+h, from y at t, into dst
 // (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
 func (ts *TaylorDDStepper) Step(t DoubleDouble, y []DoubleDouble, h DoubleDouble, dst []DoubleDouble) error {
+	if ts == nil || ts.ty == nil {
+		return noEvaluator("TaylorDDStepper.Step")
+	}
 	if len(y) != ts.n || len(dst) != ts.n {
 		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
 	}
@@ -594,31 +693,6 @@ func (f *formulaSystem) finish() error {
 		f.ham.compile(f.g)
 	}
 	return nil
-}
-
-// rateError is an error in the Jacobian of rate row.
-type rateError struct {
-	row int
-	err error
-}
-
-func (e *rateError) Error() string { return e.err.Error() }
-func (e *rateError) Unwrap() error { return e.err }
-
-// setSparse writes the n×n matrix with the entries vals at the places at
-// (see formulaSystem.jacAt) and zeros elsewhere into dst; a dst of another
-// size gets the overlapping block.
-func setSparse(dst *mat.Dense, n int, at []int, vals []float64) {
-	raw := dst.RawMatrix()
-	r, c := min(n, raw.Rows), min(n, raw.Cols)
-	for i := 0; i < r; i++ {
-		clear(raw.Data[i*raw.Stride : i*raw.Stride+c])
-	}
-	for k, ij := range at {
-		if i, j := ij/n, ij%n; i < r && j < c {
-			raw.Data[i*raw.Stride+j] = vals[k]
-		}
-	}
 }
 
 // setParams writes the parameter values into an evaluator's slots.
