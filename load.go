@@ -132,7 +132,8 @@ type fileVariable struct {
 // letters, digits or _, must be unique, and may not be t, pi or a function
 // name.
 //
-// Errors are *FileError values (matching ErrSystemFile) that name the field,
+// A key given twice in one object is an error (JSON decoders differ on which
+// one counts). Errors are *FileError values (matching ErrSystemFile) that name the field,
 // and for formulas wrap an *expr.ParseError with the position in the formula
 // and a caret line. The file format is documented with a full example in
 // docs/system-file.md.
@@ -146,6 +147,9 @@ func LoadSystem(r io.Reader) (*System, error) {
 	}
 	if len(data) > maxFileSize {
 		return nil, &FileError{Err: fmt.Errorf("file is larger than %d bytes", maxFileSize)}
+	}
+	if err := duplicateKey(data); err != nil {
+		return nil, err
 	}
 	var f fileSystem
 	dec := json.NewDecoder(bytes.NewReader(data))

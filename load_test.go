@@ -353,6 +353,9 @@ func TestLoadErrors(t *testing.T) {
 		{"ham energy", `{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1}], "momenta": [{"name": "p", "start": 1}]}`, "energy", "missing", 0},
 		{"ham rate", `{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1, "rate": "q"}], "momenta": [{"name": "p", "start": 1}], "energy": "q"}`, "coordinates[0]", "remove rate", 0},
 		{"ham energy syntax", `{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1}], "momenta": [{"name": "p", "start": 1}], "energy": "p^2/2 + cos(q"}`, "energy", "expected , or )", 0},
+		{"duplicate kind", `{"kind":"map","kind":"flow", "variables": [{"name": "x", "start": 1, "rate": "1"}]}`, "kind", `duplicate key "kind" (first at line 1, column 2)`, 1},
+		{"duplicate rate", "{\"kind\": \"flow\", \"variables\": [{\"name\": \"x\", \"start\": 1, \"rate\": \"1\"},\n {\"name\": \"y\", \"start\": 1, \"rate\": \"1\", \"rate\": \"x\"}]}", "variables[1].rate", "line 2, column 41: duplicate key \"rate\" (first at line 2, column 28)", 2},
+		{"duplicate escaped key", `{"kind": "flow", "k\"q": 1, "k\"q": 2}`, "k\"q", "column 29", 1},
 		{"flow with energy", `{"kind": "flow", "energy": "x", "variables": [{"name": "x", "start": 1, "rate": "1"}]}`, "kind", "belong to a hamiltonian", 0},
 	}
 	for _, c := range cases {
@@ -404,6 +407,7 @@ func FuzzLoadSystem(f *testing.F) {
 	f.Add(`{"kind": "flow", "variables": [{"name": "x", "start": 1, "rate": "-x^2 + sin(t)"}]}`)
 	f.Add(`{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1}], "momenta": [{"name": "p", "start": 0}], "energy": "p^2/2 + q^4"}`)
 	f.Add(`{"kind": "map", "variables": [{"name": "x", "start": 0.1, "next": "1 - 1.4*x^2 + y"}, {"name": "y", "start": 0, "next": "0.3*x"}]}`)
+	f.Add(`{"kind":"map","kind":"flow","variables": [{"name": "x", "start": 1, "rate": "x"}]}`)
 	f.Fuzz(func(t *testing.T, src string) {
 		s, err := LoadSystem(strings.NewReader(src))
 		if err != nil {
