@@ -177,7 +177,7 @@ func TestMisuse(t *testing.T) {
 			}
 			_, err := lyap.MapExponents(ctx, m, []float64{0.3}, 1, nil)
 			return err
-		}, want: integrate.ErrCallback, callback: integrate.CallbackMapJacobi, maxT: 0},
+		}, want: integrate.ErrCallback, callback: integrate.CallbackMapJacobian, maxT: 0},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

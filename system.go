@@ -300,7 +300,8 @@ func (s *System) Problem() integrate.Problem {
 // MapSystem is a map x -> f(x), built in or from a system file, with its
 // exact Jacobian. It satisfies the lyap.Map interface. Components with a
 // period (an angle) are reduced to [0, period) after every iterate. Not safe
-// for concurrent use.
+// for concurrent use. A zero MapSystem (not made by System.Map) has
+// dimension 0, and its Next and Jacobian do nothing.
 type MapSystem struct {
 	n    int
 	next *expr.Float64 // formulas, or nil for a built-in's Go map

@@ -13,12 +13,12 @@ var ErrCallback = errors.New("callback panicked")
 
 // The callbacks a CallbackError can name.
 const (
-	CallbackField     = "vector field"
-	CallbackJacobian  = "Jacobian"
-	CallbackCrossing  = "crossing function"
-	CallbackProgress  = "progress function"
-	CallbackMap       = "map"
-	CallbackMapJacobi = "map Jacobian"
+	CallbackField       = "vector field"
+	CallbackJacobian    = "Jacobian"
+	CallbackCrossing    = "crossing function"
+	CallbackProgress    = "progress function"
+	CallbackMap         = "map"
+	CallbackMapJacobian = "map Jacobian"
 )
 
 // CallbackError is a panic in a caller's function, recovered: which

@@ -219,7 +219,7 @@ func (r *mapRun) step(ctx context.Context) bool {
 		r.done = true
 		return false
 	}
-	r.calling = integrate.CallbackMapJacobi
+	r.calling = integrate.CallbackMapJacobian
 	r.m.Jacobian(r.x, r.J)
 	r.jacs++
 	mulTangent(r.vn, r.jd, r.v, r.n, r.k)
