@@ -169,6 +169,22 @@ func TestMisuse(t *testing.T) {
 			_, err := lyap.Exponents(ctx, p, 3, &lyap.Settings{Duration: 10})
 			return err
 		}, want: integrate.ErrCallback, callback: integrate.CallbackJacobian, maxT: 0},
+		{name: "vector field panics in lyap.Largest", call: func() error {
+			f := func(t float64, y, dy []float64) {
+				if t > 1 {
+					panic("field broke")
+				}
+				lorenzField(t, y, dy)
+			}
+			sp, err := lyap.Largest(ctx, integrate.Problem{F: f, Y0: y0}, &lyap.Settings{Duration: 10})
+			require.NotNil(t, sp, "the partial estimate comes with the error")
+			return err
+		}, want: integrate.ErrCallback, callback: integrate.CallbackField, maxT: 1},
+		{name: "map panics in lyap.MapLargest", call: func() error {
+			m := lyap.MapFunc{N: 1, F: func(x, dst []float64) { dst[1] = x[0] }}
+			_, err := lyap.MapLargest(ctx, m, []float64{0.3}, nil)
+			return err
+		}, want: integrate.ErrCallback, callback: integrate.CallbackMap, maxT: 0},
 		{name: "map Jacobian panics in lyap", call: func() error {
 			m := lyap.MapFunc{
 				N: 1,

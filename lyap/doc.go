@@ -59,7 +59,7 @@
 // growth stopped being finite. Once work began, errors come with the partial
 // result. A panic in the caller's vector field, Jacobian (a write outside its
 // matrix, say), map or map Jacobian during Exponents, FiniteTime,
-// Covariant or MapExponents is recovered, once per run, into an
+// Covariant, Largest, MapExponents or MapLargest is recovered, once per run, into an
 // *integrate.CallbackError (wrapping integrate.ErrCallback) that names the
 // function and the time (the iteration for maps).
 //
