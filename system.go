@@ -266,8 +266,7 @@ func (s *System) Separable() bool {
 // returned Problem.
 //
 // A map has no vector field: its Problem has a nil F (which the integrators
-// reject with integrate.ErrSettings); use Map instead. So has the Problem of
-// a nil or zero System.
+// reject with integrate.ErrSettings); use Map instead.
 func (s *System) Problem() integrate.Problem {
 	if s.check("") != nil {
 		return integrate.Problem{}
