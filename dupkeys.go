@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"strconv"
+	"strings"
 )
 
 // jsonFrame is an open object or array while duplicateKey reads.
@@ -19,7 +20,7 @@ type jsonFrame struct {
 
 // duplicateKey returns a *FileError for the first key that appears twice
 // in one object of the JSON text data, naming the key's path and both
-// places, or nil. encoding/json keeps the last of two equal keys silently
+// places, or for the first key that is not lower case; otherwise nil. encoding/json keeps the last of two equal keys silently
 // ("kind": "map", "kind": "flow" would run a flow); a system file must say
 // what it means once. Invalid JSON gives nil here: the decoder reports it.
 func duplicateKey(data []byte) error {
@@ -46,6 +47,13 @@ func duplicateKey(data []byte) error {
 			top.key = k
 			if top.path != "" {
 				top.key = top.path + "." + k
+			}
+			if canon := strings.ToLower(strings.ToUpper(k)); canon != k {
+				// encoding/json matches field names regardless of case,
+				// so "Kind" would count as "kind".
+				line, col := lineCol(data, keyStart(data, end))
+				return &FileError{Field: top.key, Line: line, Col: col,
+					Err: fmt.Errorf("field names are lower case: write %q, not %q", canon, k)}
 			}
 			if prev, dup := top.keys[k]; dup {
 				line, col := lineCol(data, keyStart(data, end))

@@ -179,3 +179,30 @@ func BenchmarkLoadLorenz96(b *testing.B) {
 		}
 	}
 }
+
+// TestZeroJacobian checks systems whose Jacobian has no entry that is not
+// structurally zero (the fuzzer found a map whose Jacobian method indexed
+// an empty list): the matrix is cleared to zeros (exact: the derivative of
+// a constant).
+func TestZeroJacobian(t *testing.T) {
+	for _, src := range []string{
+		`{"kind": "map", "parameters": [{"name": "growth", "value": 0}], "variables": [{"name": "a", "start": 0, "next": "growth"}]}`,
+		`{"kind": "flow", "variables": [{"name": "a", "start": 0, "rate": "sin(t)"}, {"name": "b", "start": 0, "rate": "2"}]}`,
+	} {
+		s, err := LoadSystem(strings.NewReader(src))
+		require.NoError(t, err)
+		n := len(s.States)
+		j := mat.NewDense(n, n, nil)
+		for i := range n {
+			j.Set(i, 0, 7)
+		}
+		if s.Kind() == KindMap {
+			m, err := s.Map()
+			require.NoError(t, err)
+			m.Jacobian(s.Start(), j)
+		} else {
+			s.Problem().Jac(0.5, s.Start(), j)
+		}
+		require.True(t, mat.Equal(j, mat.NewDense(n, n, nil)), "Jacobian of %s:\n%v", src, mat.Formatted(j))
+	}
+}

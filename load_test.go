@@ -355,6 +355,8 @@ func TestLoadErrors(t *testing.T) {
 		{"ham energy syntax", `{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1}], "momenta": [{"name": "p", "start": 1}], "energy": "p^2/2 + cos(q"}`, "energy", "expected , or )", 0},
 		{"duplicate kind", `{"kind":"map","kind":"flow", "variables": [{"name": "x", "start": 1, "rate": "1"}]}`, "kind", `duplicate key "kind" (first at line 1, column 2)`, 1},
 		{"duplicate rate", "{\"kind\": \"flow\", \"variables\": [{\"name\": \"x\", \"start\": 1, \"rate\": \"1\"},\n {\"name\": \"y\", \"start\": 1, \"rate\": \"1\", \"rate\": \"x\"}]}", "variables[1].rate", "line 2, column 41: duplicate key \"rate\" (first at line 2, column 28)", 2},
+		{"upper-case key", `{"kind": "flow", "Kind": "map"}`, "Kind", `write "kind", not "Kind"`, 1},
+		{"kelvin-sign key", "{\"\u212aind\": \"flow\"}", "\u212aind", `write "kind"`, 1},
 		{"duplicate escaped key", `{"kind": "flow", "k\"q": 1, "k\"q": 2}`, "k\"q", "column 29", 1},
 		{"flow with energy", `{"kind": "flow", "energy": "x", "variables": [{"name": "x", "start": 1, "rate": "1"}]}`, "kind", "belong to a hamiltonian", 0},
 	}
@@ -408,6 +410,7 @@ func FuzzLoadSystem(f *testing.F) {
 	f.Add(`{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1}], "momenta": [{"name": "p", "start": 0}], "energy": "p^2/2 + q^4"}`)
 	f.Add(`{"kind": "map", "variables": [{"name": "x", "start": 0.1, "next": "1 - 1.4*x^2 + y"}, {"name": "y", "start": 0, "next": "0.3*x"}]}`)
 	f.Add(`{"kind":"map","kind":"flow","variables": [{"name": "x", "start": 1, "rate": "x"}]}`)
+	f.Add(`{"kind":"map","parameters":[{"name":"growth","value":0}],"variables":[{"name":"a","start":0,"next":"growth"}]}`)
 	f.Fuzz(func(t *testing.T, src string) {
 		s, err := LoadSystem(strings.NewReader(src))
 		if err != nil {

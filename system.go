@@ -307,8 +307,8 @@ type MapSystem struct {
 	jac  *expr.Float64
 	buf  []float64
 	jbuf []float64
-	// jacAt places the entries jac computes (see formulaSystem.jacAt); nil
-	// when jbuf holds a dense n×n Jacobian.
+	// jacAt places the entries jac computes (see formulaSystem.jacAt);
+	// unused with goJac, whose dense n×n Jacobian jbuf holds.
 	jacAt []int
 	// goNext and goJac are a built-in's hand-written map and Jacobian.
 	goNext  func(t float64, x, dst []float64)
@@ -360,7 +360,7 @@ func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
 		m.jac.Run(m.jbuf)
 	}
 	r, c := dst.Dims()
-	if m.jacAt != nil {
+	if m.goJac == nil {
 		setSparse(dst, m.n, m.jacAt, m.jbuf)
 		return
 	}
