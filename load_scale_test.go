@@ -206,3 +206,20 @@ func TestZeroJacobian(t *testing.T) {
 		require.True(t, mat.Equal(j, mat.NewDense(n, n, nil)), "Jacobian of %s:\n%v", src, mat.Formatted(j))
 	}
 }
+
+// TestFormulasCut checks that the derived formulas of a Hamiltonian whose
+// energy is a long product (H = p²/2 + q·q·…·q, 20 000 factors: written out,
+// ∂H/∂q would be about 4·10^8 bytes) are cut at maxFormulaText and marked,
+// while the short one is whole.
+func TestFormulasCut(t *testing.T) {
+	const factors = 20_000
+	energy := "p^2/2 + q" + strings.Repeat("*q", factors-1)
+	src := fmt.Sprintf(`{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1}], "momenta": [{"name": "p", "start": 0}], "energy": %q}`, energy)
+	s, err := LoadSystem(strings.NewReader(src))
+	require.NoError(t, err)
+	f := s.Formulas()
+	require.Len(t, f, 2)
+	require.Equal(t, "p", f[0], "∂H/∂p = p (exact)")
+	require.True(t, strings.HasSuffix(f[1], " ..."), "the long formula is marked as cut")
+	require.LessOrEqual(t, len(f[1]), maxFormulaText+200, "cut near the limit (one number or name past it at most)")
+}

@@ -519,14 +519,20 @@ func (e *DDEvaluator) Eval(t DoubleDouble, y, dydt []DoubleDouble) error {
 
 // Formulas returns the right-hand sides as formulas (rates of a flow, next
 // values of a map; for a Hamiltonian, Hamilton's equations derived from H),
-// or nil when the system has none.
+// or nil when the system has none. A derived formula writes shared
+// subexpressions out in full and can be far longer than H; one longer than
+// 1 MiB is cut there and ends with " ...".
 func (s *System) Formulas() []string {
 	if s == nil || s.form == nil {
 		return nil
 	}
 	out := make([]string, len(s.form.rates))
 	for i, e := range s.form.rates {
-		out[i] = s.form.g.Format(e)
+		f, whole := s.form.g.FormatMax(e, maxFormulaText)
+		if !whole {
+			f += " ..."
+		}
+		out[i] = f
 	}
 	return out
 }
@@ -650,6 +656,9 @@ func (ts *TaylorDDStepper) Step(t DoubleDouble, y []DoubleDouble, h DoubleDouble
 	}
 	return ts.ty.Step(t, y, h, dst)
 }
+
+// maxFormulaText is the length at which Formulas cuts a formula.
+const maxFormulaText = 1 << 20
 
 // formulaSystem is a system given by formulas over the slots
 // (t, y_1..y_n, p_1..p_k).

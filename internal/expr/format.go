@@ -21,8 +21,18 @@ const (
 // formula of any depth prints.
 func (g *Graph) Format(e Expr) string {
 	var b strings.Builder
-	g.format(&b, e)
+	g.format(&b, e, 0)
 	return b.String()
+}
+
+// FormatMax is Format cut short once the text exceeds max bytes: it
+// returns the text so far and false when it was cut. A derivative shares
+// subexpressions that Format writes out in full each time, so its text can
+// grow with the square of the graph's size (the derivative of x*x*...*x).
+func (g *Graph) FormatMax(e Expr, max int) (string, bool) {
+	var b strings.Builder
+	whole := g.format(&b, e, max)
+	return b.String(), whole
 }
 
 // fmtItem is a pending piece of output: a literal string, or node e to be
@@ -57,7 +67,9 @@ func (g *Graph) prec(e Expr) int {
 	return precAtom
 }
 
-func (g *Graph) format(b *strings.Builder, root Expr) {
+// format writes root into b; with max > 0 it stops once b holds more than
+// max bytes and returns false.
+func (g *Graph) format(b *strings.Builder, root Expr, max int) bool {
 	stack := []fmtItem{{e: root}}
 	// push queues items to be written in the order given.
 	push := func(items ...fmtItem) {
@@ -67,6 +79,9 @@ func (g *Graph) format(b *strings.Builder, root Expr) {
 	}
 	lit := func(s string) fmtItem { return fmtItem{s: s, lit: true} }
 	for len(stack) > 0 {
+		if max > 0 && b.Len() > max {
+			return false
+		}
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
 		if it.lit {
@@ -121,4 +136,5 @@ func (g *Graph) format(b *strings.Builder, root Expr) {
 			}
 		}
 	}
+	return true
 }

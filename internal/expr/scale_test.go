@@ -99,3 +99,25 @@ func TestLimits(t *testing.T) {
 		t.Error("derivative by a slot out of range: no error")
 	}
 }
+
+// TestFormatMax checks that FormatMax gives Format's text when it fits and
+// a prefix of it, marked as cut, when it does not.
+func TestFormatMax(t *testing.T) {
+	g := NewGraph(testVars)
+	for _, src := range formulas {
+		e, err := g.Parse(src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		full := g.Format(e)
+		if got, whole := g.FormatMax(e, len(full)); got != full || !whole {
+			t.Errorf("FormatMax(%q, %d) = %q, %v; want the whole text", src, len(full), got, whole)
+		}
+		if len(full) > 10 {
+			got, whole := g.FormatMax(e, 5)
+			if whole || !strings.HasPrefix(full, got) || len(got) <= 5 {
+				t.Errorf("FormatMax(%q, 5) = %q, %v; want a prefix longer than 5 bytes, cut", src, got, whole)
+			}
+		}
+	}
+}
