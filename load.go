@@ -58,6 +58,17 @@ const (
 // maxFileSize bounds the bytes LoadSystem reads.
 const maxFileSize = 8 << 20
 
+// Limits on the formulas of a system file, so that a file within
+// maxFileSize compiles in bounded time and memory (about 150 bytes a
+// node at the peak of compiling) or is refused: maxNodes bounds the
+// distinct numbers, names and operations of the formulas together with
+// their derivatives, maxDiffWork the nodes visited while deriving the
+// Jacobian (each rate is walked once per state it uses).
+const (
+	maxNodes    = 1 << 20
+	maxDiffWork = 1 << 23
+)
+
 // fileSystem is the JSON layout of a system file; see LoadSystem.
 type fileSystem struct {
 	Name        string         `json:"name"`
@@ -122,11 +133,15 @@ type fileVariable struct {
 // letters, digits or _, must be unique, and may not be t, pi or a function
 // name.
 //
-// Errors are *FileError values (matching ErrSystemFile) that name the field,
+// A key given twice in one object is an error (JSON decoders differ on which
+// one counts). Errors are *FileError values (matching ErrSystemFile) that name the field,
 // and for formulas wrap an *expr.ParseError with the position in the formula
 // and a caret line. The file format is documented with a full example in
 // docs/system-file.md.
 func LoadSystem(r io.Reader) (*System, error) {
+	if r == nil {
+		return nil, fmt.Errorf("plumb: LoadSystem from a nil reader: %w", ErrNoSystem)
+	}
 	data, err := io.ReadAll(io.LimitReader(r, maxFileSize+1))
 	if err != nil {
 		return nil, fmt.Errorf("plumb: reading system file: %w", err)
@@ -135,6 +150,9 @@ func LoadSystem(r io.Reader) (*System, error) {
 		return nil, &FileError{Err: fmt.Errorf("file is larger than %d bytes", maxFileSize)}
 	}
 	if err := notSystemFile(data); err != nil {
+		return nil, err
+	}
+	if err := duplicateKey(data); err != nil {
 		return nil, err
 	}
 	var f fileSystem
@@ -398,6 +416,7 @@ func buildSystem(f *fileSystem) (*System, error) {
 	}
 
 	g := expr.NewGraph(names)
+	g.SetLimits(maxNodes, maxDiffWork)
 	fs := &formulaSystem{kind: kind, g: g, n: len(vars), timeUnit: f.TimeUnit}
 	parse := func(field, src string) (expr.Expr, error) {
 		e, err := g.Parse(src)
@@ -427,9 +446,21 @@ func buildSystem(f *fileSystem) (*System, error) {
 		if err != nil {
 			return nil, err
 		}
-		fs.setHamiltonian(h)
+		if err := fs.setHamiltonian(h); err != nil {
+			return nil, &FileError{Field: "energy", Err: err}
+		}
 	}
-	fs.finish()
+	if err := fs.finish(); err != nil {
+		field := "energy"
+		var re *rateError
+		if errors.As(err, &re) && kind != KindHamiltonian {
+			field = paths[re.row] + ".rate"
+			if kind == KindMap {
+				field = paths[re.row] + ".next"
+			}
+		}
+		return nil, &FileError{Field: field, Err: fmt.Errorf("its Jacobian: %w", err)}
+	}
 	s.form = fs
 	s.kind = kind
 	return s, nil

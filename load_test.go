@@ -360,6 +360,11 @@ func TestLoadErrors(t *testing.T) {
 		{"ham energy", `{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1}], "momenta": [{"name": "p", "start": 1}]}`, "energy", "missing", 0},
 		{"ham rate", `{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1, "rate": "q"}], "momenta": [{"name": "p", "start": 1}], "energy": "q"}`, "coordinates[0]", "remove rate", 0},
 		{"ham energy syntax", `{"kind": "hamiltonian", "coordinates": [{"name": "q", "start": 1}], "momenta": [{"name": "p", "start": 1}], "energy": "p^2/2 + cos(q"}`, "energy", "expected , or )", 0},
+		{"duplicate kind", `{"kind":"map","kind":"flow", "variables": [{"name": "x", "start": 1, "rate": "1"}]}`, "kind", `duplicate key "kind" (first at line 1, column 2)`, 1},
+		{"duplicate rate", "{\"kind\": \"flow\", \"variables\": [{\"name\": \"x\", \"start\": 1, \"rate\": \"1\"},\n {\"name\": \"y\", \"start\": 1, \"rate\": \"1\", \"rate\": \"x\"}]}", "variables[1].rate", "line 2, column 41: duplicate key \"rate\" (first at line 2, column 28)", 2},
+		{"upper-case key", `{"kind": "flow", "Kind": "map"}`, "Kind", `write "kind", not "Kind"`, 1},
+		{"kelvin-sign key", "{\"\u212aind\": \"flow\"}", "\u212aind", `write "kind"`, 1},
+		{"duplicate escaped key", `{"kind": "flow", "k\"q": 1, "k\"q": 2}`, "k\"q", "column 29", 1},
 		{"flow with energy", `{"kind": "flow", "energy": "x", "variables": [{"name": "x", "start": 1, "rate": "1"}]}`, "kind", "belong to a hamiltonian", 0},
 	}
 	for _, c := range cases {
@@ -419,6 +424,8 @@ func FuzzLoadSystem(f *testing.F) {
 	f.Add(`{"kind": "flow", "variables": [{"name": "x", "start": 1e999, "rate": "x"}]}`)
 	f.Add("\ufeff t,x,y\n0,1,2\n")
 	f.Add(`[1, 2]`)
+	f.Add(`{"kind":"map","kind":"flow","variables": [{"name": "x", "start": 1, "rate": "x"}]}`)
+	f.Add(`{"kind":"map","parameters":[{"name":"growth","value":0}],"variables":[{"name":"a","start":0,"next":"growth"}]}`)
 	f.Fuzz(func(t *testing.T, src string) {
 		s, err := LoadSystem(strings.NewReader(src))
 		if err != nil {

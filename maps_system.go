@@ -25,6 +25,7 @@ func (s *System) builtinMap() *MapSystem {
 		// Every built-in map has a hand-written Jacobian (models_test.go);
 		// the formulas' symbolic one is the fallback.
 		m.jac = s.form.jacProg.NewFloat64()
+		m.jacAt, m.jbuf = s.form.jacAt, make([]float64, len(s.form.jacAt))
 		s.form.setParams(m.jac.Vars(), s.params)
 	}
 	return m

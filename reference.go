@@ -234,6 +234,9 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 
 // series returns the system's Taylor-coefficient provider.
 func (s *System) series() (*systemSeries, error) {
+	if err := s.check("a Taylor reference"); err != nil {
+		return nil, err
+	}
 	if s.form == nil || s.kind == KindMap {
 		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor reference: %w", s.Name, ErrKind)
 	}

@@ -131,7 +131,9 @@ func builtinFormulas(f *models.Flow, rates []string) (*formulaSystem, error) {
 		}
 		fs.rates = append(fs.rates, e)
 	}
-	fs.finish()
+	if err := fs.finish(); err != nil {
+		return nil, err
+	}
 	return fs, nil
 }
 
@@ -151,11 +153,16 @@ type Param struct {
 // flow given by an energy function of coordinates and momenta: a file of
 // kind hamiltonian, or a built-in whose catalog entry has the separable
 // parts, such as kepler and henon-heiles).
-func (s *System) Kind() Kind { return s.kind }
+func (s *System) Kind() Kind {
+	if s == nil {
+		return ""
+	}
+	return s.kind
+}
 
 // TimeUnit returns the unit of time given in a system file, or "".
 func (s *System) TimeUnit() string {
-	if s.form == nil {
+	if s == nil || s.form == nil {
 		return ""
 	}
 	return s.form.timeUnit
@@ -163,10 +170,18 @@ func (s *System) TimeUnit() string {
 
 // Units returns the unit of each state component as given in a system file
 // ("" where none was given), or nil for built-ins.
-func (s *System) Units() []string { return append([]string(nil), s.units...) }
+func (s *System) Units() []string {
+	if s == nil {
+		return nil
+	}
+	return append([]string(nil), s.units...)
+}
 
 // Params returns the parameters with their current values.
 func (s *System) Params() []Param {
+	if s == nil {
+		return nil
+	}
 	out := make([]Param, len(s.pinfo))
 	for i, p := range s.pinfo {
 		out[i] = Param{Name: p.Name, Value: s.params[i], Doc: p.Doc, Unit: p.Unit}
@@ -176,6 +191,9 @@ func (s *System) Params() []Param {
 
 // Set changes a parameter. Unknown names and non-finite values are errors.
 func (s *System) Set(name string, v float64) error {
+	if err := s.check("Set"); err != nil {
+		return err
+	}
 	i := -1
 	for k, p := range s.pinfo {
 		if p.Name == name {
@@ -197,10 +215,18 @@ func (s *System) Set(name string, v float64) error {
 }
 
 // Start returns a copy of the initial state.
-func (s *System) Start() []float64 { return append([]float64(nil), s.y0...) }
+func (s *System) Start() []float64 {
+	if s == nil {
+		return nil
+	}
+	return append([]float64(nil), s.y0...)
+}
 
 // SetStart replaces the initial state; its length must match States.
 func (s *System) SetStart(y0 []float64) error {
+	if err := s.check("SetStart"); err != nil {
+		return err
+	}
 	if len(y0) != len(s.y0) {
 		return fmt.Errorf("plumb: start has %d components, model %s has %d: %w", len(y0), s.Name, len(s.y0), integrate.ErrDimension)
 	}
@@ -212,7 +238,7 @@ func (s *System) SetStart(y0 []float64) error {
 // nil when no component is periodic. Distances between states use the
 // wrapped difference on periodic components.
 func (s *System) Periods() []float64 {
-	if s.periods == nil {
+	if s == nil || s.periods == nil {
 		return nil
 	}
 	return append([]float64(nil), s.periods...)
@@ -221,7 +247,7 @@ func (s *System) Periods() []float64 {
 // Known returns a published fact of the default configuration (e.g.
 // "period", "energy"), and whether it exists. Systems from files have none.
 func (s *System) Known(key string) (float64, bool) {
-	if s.flow == nil {
+	if s == nil || s.flow == nil {
 		return 0, false
 	}
 	v, ok := s.flow.Known[key]
@@ -231,6 +257,9 @@ func (s *System) Known(key string) (float64, bool) {
 // Separable reports whether the system is a Hamiltonian H = T(p) + V(q), so
 // that Problem carries the parts symplectic methods need.
 func (s *System) Separable() bool {
+	if s.check("") != nil {
+		return false
+	}
 	if s.flow != nil {
 		return s.flow.Separable != nil
 	}
@@ -246,24 +275,28 @@ func (s *System) Separable() bool {
 // A map has no vector field: its Problem has a nil F (which the integrators
 // reject with integrate.ErrSettings); use Map instead.
 //
-// The Problem may be shared by runs in several goroutines: its Fork gives
-// every run (Solve, NewStepper, the lyap entry points) evaluators of its
+// The Problem may be shared by runs in several goroutines: it is
+// integrate.Forkable, which gives every run (Solve, NewStepper, the lyap entry points) evaluators of its
 // own at set-up (integrate.Problem.Own). Its F and Jac themselves keep
 // scratch space, so a caller who calls them directly from several
 // goroutines calls Own once in each.
 func (s *System) Problem() integrate.Problem {
+	if s.check("") != nil {
+		return integrate.Problem{}
+	}
 	if s.kind == KindMap {
 		return integrate.Problem{Y0: append([]float64(nil), s.y0...)}
 	}
-	p := s.fields(append([]float64(nil), s.params...))
+	params := append([]float64(nil), s.params...)
+	p := integrate.Forkable(func() integrate.Problem { return s.fields(params) })
 	p.Y0 = append([]float64(nil), s.y0...)
 	return p
 }
 
 // fields returns the vector field, Jacobian and separable parts at params
-// (kept, not copied: the caller passes its own copy), with a Fork that makes
-// fresh ones at the same params, so that runs in several goroutines can
-// share the Problem (integrate.Problem.Own).
+// (kept, not copied: the caller passes its own copy); Problem makes them
+// through integrate.Forkable, so that runs in several goroutines can share
+// the Problem (integrate.Problem.Own).
 func (s *System) fields(params []float64) integrate.Problem {
 	var p integrate.Problem
 	if s.flow != nil {
@@ -284,20 +317,23 @@ func (s *System) fields(params []float64) integrate.Problem {
 			p.Split = h.split(params)
 		}
 	}
-	p.Fork = func() integrate.Problem { return s.fields(params) }
 	return p
 }
 
 // MapSystem is a map x -> f(x), built in or from a system file, with its
 // exact Jacobian. It satisfies the lyap.Map interface. Components with a
 // period (an angle) are reduced to [0, period) after every iterate. Not safe
-// for concurrent use.
+// for concurrent use. A zero MapSystem (not made by System.Map) has
+// dimension 0, and its Next and Jacobian do nothing.
 type MapSystem struct {
 	n    int
 	next *expr.Float64 // formulas, or nil for a built-in's Go map
 	jac  *expr.Float64
 	buf  []float64
 	jbuf []float64
+	// jacAt places the entries jac computes (see formulaSystem.jacAt);
+	// unused with goJac, whose dense n×n Jacobian jbuf holds.
+	jacAt []int
 	// goNext and goJac are a built-in's hand-written map and Jacobian.
 	goNext  func(t float64, x, dst []float64)
 	goJac   func(t float64, x []float64, dst *mat.Dense)
@@ -305,13 +341,25 @@ type MapSystem struct {
 	periods []float64
 }
 
-// Dim returns the dimension of the state.
-func (m *MapSystem) Dim() int { return m.n }
+// Dim returns the dimension of the state (0 for a nil or zero MapSystem).
+func (m *MapSystem) Dim() int {
+	if m == nil {
+		return 0
+	}
+	return m.n
+}
+
+// zero reports a nil MapSystem or one not made by System.Map, whose Next
+// and Jacobian do nothing.
+func (m *MapSystem) zero() bool { return m == nil || (m.goNext == nil && m.next == nil) }
 
 // Next writes f(x) into dst. Both should have length Dim: Next reads the
 // first Dim components of x (missing ones keep the previous call's values)
 // and writes at most len(dst) components. It does not allocate.
 func (m *MapSystem) Next(x, dst []float64) {
+	if m.zero() {
+		return
+	}
 	if m.goNext != nil {
 		m.goNext(0, x, m.buf)
 	} else {
@@ -325,6 +373,9 @@ func (m *MapSystem) Next(x, dst []float64) {
 // Jacobian writes df/dx at x into dst, which should be Dim×Dim (a matrix of
 // another size gets the overlapping block). It does not allocate.
 func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
+	if m.zero() || dst == nil {
+		return
+	}
 	if m.goJac != nil {
 		m.goJac(0, x, m.jm)
 		copy(m.jbuf, m.jm.RawMatrix().Data)
@@ -333,6 +384,10 @@ func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
 		m.jac.Run(m.jbuf)
 	}
 	r, c := dst.Dims()
+	if m.goJac == nil {
+		setSparse(dst, m.n, m.jacAt, m.jbuf)
+		return
+	}
 	for i := 0; i < min(m.n, r); i++ {
 		for j := 0; j < min(m.n, c); j++ {
 			dst.Set(i, j, m.jbuf[i*m.n+j])
@@ -343,15 +398,21 @@ func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
 // Map returns the map of a system of kind map at the current parameters, or
 // an error wrapping ErrKind for flows and Hamiltonians.
 func (s *System) Map() (*MapSystem, error) {
+	if s == nil {
+		return nil, s.check("Map")
+	}
 	if s.kind != KindMap {
 		return nil, fmt.Errorf("plumb: %s is a %s, not a map: %w", s.Name, s.kind, ErrKind)
+	}
+	if err := s.check("Map"); err != nil {
+		return nil, err
 	}
 	if s.flow != nil {
 		return s.builtinMap(), nil
 	}
 	f := s.form
 	m := &MapSystem{n: f.n, next: f.fieldProg.NewFloat64(), jac: f.jacProg.NewFloat64(),
-		buf: make([]float64, f.n), jbuf: make([]float64, f.n*f.n), periods: s.Periods()}
+		buf: make([]float64, f.n), jbuf: make([]float64, len(f.jacAt)), jacAt: f.jacAt, periods: s.Periods()}
 	f.setParams(m.next.Vars(), s.params)
 	f.setParams(m.jac.Vars(), s.params)
 	return m, nil
@@ -381,6 +442,9 @@ type BigEvaluator struct {
 // Built-in models use their catalog formulas. prec must be in [2,
 // big.MaxPrec].
 func (s *System) Evaluator(prec uint) (*BigEvaluator, error) {
+	if err := s.check("Evaluator"); err != nil {
+		return nil, err
+	}
 	if s.form == nil {
 		return nil, fmt.Errorf("plumb: model %s has no formulas for multiprecision evaluation: %w", s.Name, ErrKind)
 	}
@@ -396,16 +460,29 @@ func (s *System) Evaluator(prec uint) (*BigEvaluator, error) {
 }
 
 // Prec returns the evaluator's precision in bits.
-func (e *BigEvaluator) Prec() uint { return e.ev.Prec() }
+func (e *BigEvaluator) Prec() uint {
+	if e == nil || e.ev == nil {
+		return 0
+	}
+	return e.ev.Prec()
+}
 
 // Eval writes the right-hand side at (t, y) into dydt (t is ignored for
 // maps). Nil entries of dydt are allocated at the evaluator's precision.
-// Wrong lengths are errors wrapping integrate.ErrDimension; a value that
-// is not a real number (0/0, log of a negative number) is an error
-// wrapping expr's ErrNaN.
+// Wrong lengths are errors wrapping integrate.ErrDimension, a nil entry of
+// y one wrapping integrate.ErrNonFinite; a value that is not a real number
+// (0/0, log of a negative number) is an error wrapping expr's ErrNaN.
 func (e *BigEvaluator) Eval(t *big.Float, y, dydt []*big.Float) error {
+	if e == nil || e.ev == nil {
+		return noEvaluator("BigEvaluator.Eval")
+	}
 	if len(y) != e.n || len(dydt) != e.n {
 		return fmt.Errorf("plumb: Eval with %d states and %d outputs, system has %d: %w", len(y), len(dydt), e.n, integrate.ErrDimension)
+	}
+	for i, v := range y {
+		if v == nil {
+			return fmt.Errorf("plumb: Eval: y[%d] is nil, not a number: %w", i, integrate.ErrNonFinite)
+		}
 	}
 	vars := e.ev.Vars()
 	if t != nil {
@@ -435,6 +512,9 @@ type DDEvaluator struct {
 // arithmetic at the current parameters (see Evaluator for the model's
 // numbers). Built-in models use their catalog formulas.
 func (s *System) DoubleDoubleEvaluator() (*DDEvaluator, error) {
+	if err := s.check("DoubleDoubleEvaluator"); err != nil {
+		return nil, err
+	}
 	if s.form == nil {
 		return nil, fmt.Errorf("plumb: model %s has no formulas for double-double evaluation: %w", s.Name, ErrKind)
 	}
@@ -449,6 +529,9 @@ func (s *System) DoubleDoubleEvaluator() (*DDEvaluator, error) {
 // Eval writes the right-hand side at (t, y) into dydt (t is ignored for
 // maps). Wrong lengths are errors wrapping integrate.ErrDimension.
 func (e *DDEvaluator) Eval(t DoubleDouble, y, dydt []DoubleDouble) error {
+	if e == nil || e.ev == nil {
+		return noEvaluator("DDEvaluator.Eval")
+	}
 	if len(y) != e.n || len(dydt) != e.n {
 		return fmt.Errorf("plumb: Eval with %d states and %d outputs, system has %d: %w", len(y), len(dydt), e.n, integrate.ErrDimension)
 	}
@@ -460,14 +543,20 @@ func (e *DDEvaluator) Eval(t DoubleDouble, y, dydt []DoubleDouble) error {
 
 // Formulas returns the right-hand sides as formulas (rates of a flow, next
 // values of a map; for a Hamiltonian, Hamilton's equations derived from H),
-// or nil when the system has none.
+// or nil when the system has none. A derived formula writes shared
+// subexpressions out in full and can be far longer than H; one longer than
+// 1 MiB is cut there and ends with " ...".
 func (s *System) Formulas() []string {
-	if s.form == nil {
+	if s == nil || s.form == nil {
 		return nil
 	}
 	out := make([]string, len(s.form.rates))
 	for i, e := range s.form.rates {
-		out[i] = s.form.g.Format(e)
+		f, whole := s.form.g.FormatMax(e, maxFormulaText)
+		if !whole {
+			f += " ..."
+		}
+		out[i] = f
 	}
 	return out
 }
@@ -486,6 +575,9 @@ type TaylorStepper struct {
 // current parameters, for flows and Hamiltonians (maps get an error
 // wrapping ErrKind). Built-in models use their catalog formulas.
 func (s *System) Taylor(order int) (*TaylorStepper, error) {
+	if err := s.check("Taylor"); err != nil {
+		return nil, err
+	}
 	if s.form == nil || s.kind == KindMap {
 		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor method: %w", s.Name, ErrKind)
 	}
@@ -503,11 +595,19 @@ func (s *System) Taylor(order int) (*TaylorStepper, error) {
 }
 
 // Order returns the stepper's order.
-func (ts *TaylorStepper) Order() int { return ts.ty.Order() }
+func (ts *TaylorStepper) Order() int {
+	if ts == nil || ts.ty == nil {
+		return 0
+	}
+	return ts.ty.Order()
+}
 
 // Step writes the Taylor polynomial's value at t+h, from y at t, into dst
 // (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
 func (ts *TaylorStepper) Step(t float64, y []float64, h float64, dst []float64) error {
+	if ts == nil || ts.ty == nil {
+		return noEvaluator("TaylorStepper.Step")
+	}
 	if len(y) != ts.n || len(dst) != ts.n {
 		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
 	}
@@ -517,6 +617,9 @@ func (ts *TaylorStepper) Step(t float64, y []float64, h float64, dst []float64) 
 // Coefficients writes the Taylor coefficients of the solution through
 // (t, y): dst[i][k] is the coefficient of h^k of component i, k = 0..Order.
 func (ts *TaylorStepper) Coefficients(t float64, y []float64, dst [][]float64) error {
+	if ts == nil || ts.ty == nil {
+		return noEvaluator("TaylorStepper.Coefficients")
+	}
 	if len(y) != ts.n || len(dst) != ts.n {
 		return fmt.Errorf("plumb: Taylor coefficients with %d states and %d rows, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
 	}
@@ -539,6 +642,9 @@ type TaylorDDStepper struct {
 // TaylorDD returns a double-double Taylor stepper of the given order (1 to
 // 1000) at the current parameters; see Taylor.
 func (s *System) TaylorDD(order int) (*TaylorDDStepper, error) {
+	if err := s.check("TaylorDD"); err != nil {
+		return nil, err
+	}
 	if s.form == nil || s.kind == KindMap {
 		return nil, fmt.Errorf("plumb: %s has no vector-field formulas for a Taylor method: %w", s.Name, ErrKind)
 	}
@@ -556,16 +662,27 @@ func (s *System) TaylorDD(order int) (*TaylorDDStepper, error) {
 }
 
 // Order returns the stepper's order.
-func (ts *TaylorDDStepper) Order() int { return ts.ty.Order() }
+func (ts *TaylorDDStepper) Order() int {
+	if ts == nil || ts.ty == nil {
+		return 0
+	}
+	return ts.ty.Order()
+}
 
 // Step writes the Taylor polynomial's value at t+h, from y at t, into dst
 // (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
 func (ts *TaylorDDStepper) Step(t DoubleDouble, y []DoubleDouble, h DoubleDouble, dst []DoubleDouble) error {
+	if ts == nil || ts.ty == nil {
+		return noEvaluator("TaylorDDStepper.Step")
+	}
 	if len(y) != ts.n || len(dst) != ts.n {
 		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
 	}
 	return ts.ty.Step(t, y, h, dst)
 }
+
+// maxFormulaText is the length at which Formulas cuts a formula.
+const maxFormulaText = 1 << 20
 
 // formulaSystem is a system given by formulas over the slots
 // (t, y_1..y_n, p_1..p_k).
@@ -574,19 +691,33 @@ type formulaSystem struct {
 	g         *expr.Graph
 	n         int
 	rates     []expr.Expr
-	jac       []expr.Expr // row-major n×n
+	jac       []expr.Expr // the Jacobian's entries that are not structurally zero
+	jacAt     []int       // jac[k] is entry (jacAt[k]/n, jacAt[k]%n); increasing
 	fieldProg *expr.Program
 	jacProg   *expr.Program
 	ham       *hamiltonian
 	timeUnit  string
 }
 
-// finish derives the Jacobian and compiles the programs.
-func (f *formulaSystem) finish() {
-	f.jac = make([]expr.Expr, 0, f.n*f.n)
-	for _, r := range f.rates {
-		for j := 0; j < f.n; j++ {
-			f.jac = append(f.jac, f.g.Diff(r, 1+j))
+// finish derives the Jacobian and compiles the programs. Each rate is
+// differentiated only by the states it uses, so the cost follows the
+// formulas' size, not n²; the other entries are zero. With limits set on
+// the graph (LoadSystem), a Jacobian past them is an error naming the rate.
+func (f *formulaSystem) finish() error {
+	for i, r := range f.rates {
+		for _, slot := range f.g.Slots(r) {
+			if slot < 1 || slot > f.n {
+				continue // t or a parameter
+			}
+			d, err := f.g.Derivative(r, slot)
+			if err != nil {
+				return &rateError{row: i, err: err}
+			}
+			if v, ok := f.g.Value(d); ok && math.Float64bits(v) == 0 {
+				continue // +0, as the zeroed matrix holds
+			}
+			f.jac = append(f.jac, d)
+			f.jacAt = append(f.jacAt, i*f.n+slot-1)
 		}
 	}
 	f.fieldProg = f.g.Compile(f.rates)
@@ -594,6 +725,7 @@ func (f *formulaSystem) finish() {
 	if f.ham != nil {
 		f.ham.compile(f.g)
 	}
+	return nil
 }
 
 // setParams writes the parameter values into an evaluator's slots.
@@ -614,17 +746,13 @@ func (f *formulaSystem) jacFunc(params []float64) func(float64, []float64, *mat.
 	vars := ev.Vars()
 	f.setParams(vars, params)
 	state := vars[1 : 1+f.n]
-	buf := make([]float64, f.n*f.n)
-	n := f.n
+	buf := make([]float64, len(f.jacAt))
+	n, at := f.n, f.jacAt
 	return func(t float64, y []float64, dst *mat.Dense) {
 		vars[0] = t
 		copy(state, y)
 		ev.Run(buf)
-		for i := 0; i < n; i++ {
-			for j := 0; j < n; j++ {
-				dst.Set(i, j, buf[i*n+j])
-			}
-		}
+		setSparse(dst, n, at, buf)
 	}
 }
 
@@ -645,31 +773,43 @@ type hamiltonian struct {
 // and decides separability: H = T(p) + V(q) exactly when no ∂H/∂p depends
 // on q or t and no ∂H/∂q depends on p or t (a structural test on the
 // derivative graphs, so it never claims separability falsely).
-func (f *formulaSystem) setHamiltonian(h expr.Expr) {
+func (f *formulaSystem) setHamiltonian(h expr.Expr) error {
 	m := f.n / 2
 	hm := &hamiltonian{h: h, m: m}
 	for i := 0; i < m; i++ {
-		hm.dHdq = append(hm.dHdq, f.g.Diff(h, 1+i))
-		hm.dHdp = append(hm.dHdp, f.g.Diff(h, 1+m+i))
+		dq, err := f.g.Derivative(h, 1+i)
+		if err != nil {
+			return err
+		}
+		dp, err := f.g.Derivative(h, 1+m+i)
+		if err != nil {
+			return err
+		}
+		hm.dHdq = append(hm.dHdq, dq)
+		hm.dHdp = append(hm.dHdp, dp)
 	}
 	f.rates = nil
 	f.rates = append(f.rates, hm.dHdp...)
 	for _, d := range hm.dHdq {
 		f.rates = append(f.rates, f.g.Neg(d))
 	}
+	// Slots 0 (t), 1..m (q), m+1..2m (p): dH/dp may use only p and the
+	// parameters, dH/dq only q and the parameters.
 	hm.separable = true
 	for i := 0; i < m; i++ {
-		up, uq := f.g.Uses(hm.dHdp[i]), f.g.Uses(hm.dHdq[i])
-		if up[0] || uq[0] {
-			hm.separable = false
+		for _, s := range f.g.Slots(hm.dHdp[i]) {
+			if s <= m {
+				hm.separable = false
+			}
 		}
-		for j := 0; j < m; j++ {
-			if up[1+j] || uq[1+m+j] {
+		for _, s := range f.g.Slots(hm.dHdq[i]) {
+			if s == 0 || (s > m && s <= 2*m) {
 				hm.separable = false
 			}
 		}
 	}
 	f.ham = hm
+	return nil
 }
 
 func (h *hamiltonian) compile(g *expr.Graph) {

@@ -9,6 +9,7 @@ import (
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
 	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/mat"
 )
 
 // One Problem from a System, handed to runs in four goroutines at once,
@@ -79,4 +80,38 @@ func BenchmarkProblemOwn(b *testing.B) {
 	for b.Loop() {
 		_ = p.Own()
 	}
+}
+
+// Own renews only the functions a System made: a caller who copies its
+// Problem and puts in a field or Jacobian of its own has that one called,
+// not a fresh copy of the System's (a silent swap would be a wrong answer).
+func TestOwnKeepsReplacedFunctions(t *testing.T) {
+	lorenz, err := Model("lorenz")
+	require.NoError(t, err)
+	faster, err := Model("lorenz")
+	require.NoError(t, err)
+	require.NoError(t, faster.Set("sigma", 12))
+
+	p := lorenz.Problem()
+	fieldCalls, jacCalls := 0, 0
+	f, jac := p.F, p.Jac
+	q := p
+	q.F = func(t float64, y, dy []float64) { fieldCalls++; f(t, y, dy) }
+	q.Jac = func(t float64, y []float64, dst *mat.Dense) { jacCalls++; jac(t, y, dst) }
+	_, err = integrate.Solve(context.Background(), q, 1, nil, nil)
+	require.NoError(t, err)
+	require.Positive(t, fieldCalls, "the caller's field runs")
+	_, err = lyap.Exponents(context.Background(), q, 3, &lyap.Settings{Transient: 0.5, Duration: 1})
+	require.NoError(t, err)
+	require.Positive(t, jacCalls, "the caller's Jacobian runs")
+
+	// Another system's field put into this Problem is kept too: the runs
+	// follow sigma = 12, as the field says (exact identity of the runs).
+	r := p
+	r.F = faster.Problem().F
+	got, err := integrate.Solve(context.Background(), r, 1, nil, nil)
+	require.NoError(t, err)
+	want, err := integrate.Solve(context.Background(), faster.Problem(), 1, nil, nil)
+	require.NoError(t, err)
+	require.Equal(t, want.Final, got.Final)
 }

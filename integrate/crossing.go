@@ -71,6 +71,18 @@ type crossFinder struct {
 	hits  []Hit
 	found []Hit // scratch for one step
 	err   error // a crossing function returned NaN
+	// inG and gT say that a crossing function is running, and at what
+	// time, for a recovered panic (see Stepper.recovered).
+	inG bool
+	gT  float64
+}
+
+// g calls crossing function s at (t, y), marking the call.
+func (f *crossFinder) g(s *crossState, t float64, y []float64) float64 {
+	f.inG, f.gT = true, t
+	v := s.c.G(t, y)
+	f.inG = false
+	return v
 }
 
 func newCrossFinder(cs []Crossing, t0 float64, y0 []float64) *crossFinder {
@@ -79,7 +91,8 @@ func newCrossFinder(cs []Crossing, t0 float64, y0 []float64) *crossFinder {
 		if c.Probes <= 0 {
 			c.Probes = 3
 		}
-		g := c.G(t0, y0)
+		f.st[i].c = c
+		g := f.g(&f.st[i], t0, y0)
 		if g != g && f.err == nil {
 			f.err = fmt.Errorf("integrate: Crossings[%d].G is NaN at t0=%g: %w", i, t0, ErrNonFinite)
 		}
@@ -112,10 +125,10 @@ func (f *crossFinder) scan(ta, h float64, yEnd []float64, eval func(theta float6
 			th := float64(j) / float64(m)
 			var g float64
 			if j == m {
-				g = s.c.G(ta+h, yEnd)
+				g = f.g(s, ta+h, yEnd)
 			} else {
 				eval(th, f.tmp)
-				g = s.c.G(ta+float64(th*h), f.tmp)
+				g = f.g(s, ta+float64(th*h), f.tmp)
 			}
 			if g != g { // NaN: no sign to compare; the solve ends with an error
 				f.err = fmt.Errorf("integrate: Crossings[%d].G is NaN at t=%g: %w", w, ta+float64(th*h), ErrNonFinite)
@@ -130,7 +143,7 @@ func (f *crossFinder) scan(ta, h float64, yEnd []float64, eval func(theta float6
 			case sg != 0 && s.prev != 0 && sg != s.prev:
 				tc := brent(func(x float64) float64 {
 					eval(x, f.tmp)
-					return s.c.G(ta+float64(x*h), f.tmp)
+					return f.g(s, ta+float64(x*h), f.tmp)
 				}, thPrev, th, gPrev, g, ta, h)
 				f.record(w, s.prev < 0, ta, h, tc, eval, false, yEnd)
 				s.prev = sg

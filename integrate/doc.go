@@ -96,6 +96,15 @@
 // NaN is rejected and retried with a smaller step; if that persists, the solve
 // ends with a FieldError.
 //
+// A panic in a function the caller supplies (the vector field, the
+// Jacobian, a crossing function, Settings.Progress) does not escape Solve
+// or NewStepper: it is recovered into a CallbackError (wrapping ErrCallback,
+// and the panic value when that is an error) that names the function and
+// the time, and Solve returns it with the partial Solution. Solve recovers
+// once per call, with one deferred function, so the step loop pays nothing
+// for it. Stepper.Next does not recover: a caller who owns the loop sees
+// the panic. A zero Stepper (not made by NewStepper) reports ErrSettings.
+//
 // # Allocation
 //
 // After set-up, Stepper.Next does not allocate. Solve allocates only to store

@@ -139,6 +139,7 @@ type gaussWork struct {
 	prevH          float64
 	havePrev       bool
 	symHermite
+	jacRunning bool // jac is running (see inJacobian)
 }
 
 func newGaussWork(s int, p *Problem, n int) *gaussWork {
@@ -171,6 +172,9 @@ func (*gaussWork) stiffness(float64, []float64, []float64) (float64, float64, bo
 
 // stepErr returns the cause of the last failed step (nil after a success).
 func (w *gaussWork) stepErr() error { return w.failed }
+
+// inJacobian reports whether Problem.Jac is running, for a recovered panic.
+func (w *gaussWork) inJacobian() bool { return w.jacRunning }
 
 // attempt implements scheme. On failure it fills y1 with NaN so that the
 // stepper stops, and keeps the cause for stepErr.
@@ -353,7 +357,9 @@ func (w *gaussWork) newton(t, h float64, y, f0 []float64) (int, error) {
 	evals := 0
 	// Jacobian.
 	if w.jac != nil {
+		w.jacRunning = true
 		w.jac(t, y, w.jm)
+		w.jacRunning = false
 		raw := w.jm.RawMatrix()
 		for i := 0; i < n; i++ {
 			copy(w.jraw[i*n:(i+1)*n], raw.Data[i*raw.Stride:i*raw.Stride+n])

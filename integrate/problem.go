@@ -3,6 +3,7 @@ package integrate
 import (
 	"fmt"
 	"math"
+	"unsafe"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -26,33 +27,66 @@ type Problem struct {
 	// Split, if not nil, gives the separable parts of a Hamiltonian problem
 	// for the symplectic methods. Explicit Runge–Kutta methods ignore it.
 	Split *Separable
-	// Fork, if not nil, returns fresh F, Jac and Split that compute the
-	// same values as these but share no workspace with them or with any
-	// other Fork's (its T0 and Y0 are ignored). Fork describes F, Jac and
-	// Split: a caller who replaces any of them in a copy of a Problem sets
-	// Fork to nil (or to one that forks the replacement), or runs would
-	// use the functions Fork makes instead. Functions that keep scratch
-	// space between calls, as compiled formulas do, set it so that one
-	// Problem can be handed to runs in several goroutines: every entry
-	// point of integrate and lyap calls it once at set-up (see Own), so
-	// the step loop pays nothing for it. Problems from plumb's System have
-	// it.
-	Fork func() Problem
+	// fork, when set by Forkable, makes fresh copies of the functions;
+	// ids records which functions fork made, so that Own replaces only
+	// those a caller has not replaced since.
+	fork func() Problem
+	ids  [3]uintptr
 }
 
-// Own returns p with F, Jac and Split of its own from p.Fork, or p itself
-// when Fork is nil. Each of Solve, NewStepper, SolveReversible and the lyap
-// entry points calls it once, so concurrent runs of one Problem do not share
-// the functions' workspaces. A caller that calls F itself from several
-// goroutines calls Own once per goroutine. The functions of a Problem with
-// no Fork must be safe for concurrent use to be shared.
+// Forkable returns the Problem maker returns, remembering maker, so that Own
+// can give each run fresh functions that compute the same values and share
+// no workspace. Functions that keep scratch space between calls, as
+// compiled formulas do, come this way so that one Problem can be handed to
+// runs in several goroutines: every entry point of integrate and lyap calls
+// Own once at set-up, so the step loop pays nothing for it. Problems from
+// plumb's System are forkable.
+func Forkable(maker func() Problem) Problem {
+	p := maker()
+	p.fork, p.ids = maker, p.funcIDs()
+	return p
+}
+
+// Own returns p with fresh copies of the functions that its Forkable maker
+// made and that have not been replaced since (a caller who copies a
+// Problem and sets its own Jac keeps that Jac; F is still renewed), or p
+// itself when it is not forkable. Each of Solve, NewStepper,
+// SolveReversible and the lyap entry points calls it once, so concurrent
+// runs of one Problem do not share the workspaces of its functions. A
+// caller that calls F itself from several goroutines calls Own once per
+// goroutine. A function that a caller put in must itself be safe for
+// concurrent use for the Problem to be shared.
 func (p Problem) Own() Problem {
-	if p.Fork == nil {
+	if p.fork == nil {
 		return p
 	}
-	f := p.Fork()
-	p.F, p.Jac, p.Split = f.F, f.Jac, f.Split
+	ids := p.funcIDs()
+	if ids[0] != p.ids[0] && ids[1] != p.ids[1] && ids[2] != p.ids[2] {
+		return p // every function replaced: nothing of the maker's is left
+	}
+	f := p.fork()
+	if ids[0] == p.ids[0] {
+		p.F = f.F
+	}
+	if ids[1] == p.ids[1] {
+		p.Jac = f.Jac
+	}
+	if ids[2] == p.ids[2] {
+		p.Split = f.Split
+	}
+	p.fork = nil // these functions are this run's own
 	return p
+}
+
+// funcIDs identifies p's F, Jac and Split: the address of each function
+// value's closure record (unique to one closure instance: the maker's
+// functions capture their own workspace) and the Split pointer; 0 for nil.
+func (p Problem) funcIDs() [3]uintptr {
+	return [3]uintptr{
+		*(*uintptr)(unsafe.Pointer(&p.F)),
+		*(*uintptr)(unsafe.Pointer(&p.Jac)),
+		uintptr(unsafe.Pointer(p.Split)),
+	}
 }
 
 // Separable describes a Hamiltonian H(q, p) = T(p) + V(q) whose state is laid

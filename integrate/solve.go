@@ -16,7 +16,12 @@ import (
 // Cost: per step, the method's evaluations of F plus O(n) work; per sample or
 // probe, one evaluation of the continuous extension. With DropSteps, memory
 // is bounded by the samples and crossings requested.
-func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*Solution, error) {
+//
+// A panic in a callback (the vector field, the Jacobian, a crossing
+// function, the progress function) is recovered, once per call of Solve,
+// into a *CallbackError (wrapping ErrCallback) that names the callback and
+// the time, returned with the partial solution.
+func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (out *Solution, err error) {
 	if ctx == nil {
 		ctx = context.Background()
 	}
@@ -36,6 +41,24 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 		sol.coef = newChunks(cd.compactSize(n))
 	}
 	defer sol.seal()
+	var cf *crossFinder
+	defer func() {
+		if v := recover(); v != nil {
+			out, err = sol, st.recovered(v, cf)
+			sol.Stats = st.stats
+			sol.Status = Failed
+			// The solution ends at the last point whose results are
+			// complete: where the loop left it.
+			switch sol.End {
+			case st.t:
+				sol.Final = append([]float64(nil), st.y...)
+			case st.tPrev:
+				sol.Final = append([]float64(nil), st.yPrev...)
+			default:
+				sol.Final = append([]float64(nil), p.Y0...)
+			}
+		}
+	}()
 	keep := !c.drop
 	var tbv [1]float64
 	if keep {
@@ -59,7 +82,6 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*
 			grid.i++
 		}
 	}
-	var cf *crossFinder
 	if len(c.crossings) > 0 {
 		cf = newCrossFinder(c.crossings, p.T0, p.Y0)
 		if cf.err != nil {

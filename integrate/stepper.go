@@ -58,6 +58,7 @@ type Stepper struct {
 	done       bool
 	started    bool
 	lastNonFin *FieldError
+	inProgress bool // Settings.Progress is running
 }
 
 // Stats counts the work of a solve. It holds counts only, so results are
@@ -77,8 +78,14 @@ type Stats struct {
 
 // NewStepper validates p, m and s for the span [p.T0, t1] and returns a
 // Stepper positioned at (p.T0, p.Y0). A nil m means DormandPrince54; a nil s
-// means defaults. It evaluates F once (twice for the automatic initial step).
-func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) {
+// means defaults. It evaluates F once (twice for the automatic initial step);
+// a panic in F there is returned as a *CallbackError.
+func NewStepper(p Problem, t1 float64, m Method, s *Settings) (st *Stepper, err error) {
+	defer func() {
+		if v := recover(); v != nil {
+			st, err = nil, Recovered(CallbackField, p.T0, v)
+		}
+	}()
 	if m == nil {
 		m = DormandPrince54
 	}
@@ -100,7 +107,7 @@ func NewStepper(p Problem, t1 float64, m Method, s *Settings) (*Stepper, error) 
 	if err != nil {
 		return nil, err
 	}
-	st := &Stepper{p: p, m: m, sc: sc, cfg: cfg, n: n, t0: p.T0, t1: t1, dir: math.Copysign(1, t1-p.T0),
+	st = &Stepper{p: p, m: m, sc: sc, cfg: cfg, n: n, t0: p.T0, t1: t1, dir: math.Copysign(1, t1-p.T0),
 		fixed: m.fixedStep() > 0, fsal: sc.fsal()}
 	st.sq, _ = sc.(sqAttempter)
 	buf := make([]float64, 6*n+sc.denseSize()*n)
@@ -201,7 +208,12 @@ func (st *Stepper) H() float64 { return st.hLast }
 func (st *Stepper) Stats() Stats { return st.stats }
 
 // Err returns the error that ended stepping, or nil.
-func (st *Stepper) Err() error { return st.err }
+func (st *Stepper) Err() error {
+	if st == nil {
+		return errNoStepper
+	}
+	return st.err
+}
 
 // Done reports whether t1 was reached.
 func (st *Stepper) Done() bool { return st.done }
@@ -238,9 +250,18 @@ func (st *Stepper) prepareDense() {
 }
 
 // Next takes one accepted step. It returns false at t1 or on error (see Err).
-// It checks ctx once per call.
+// It checks ctx once per call. A panic in a callback propagates (Solve
+// recovers it); on a Stepper not made by NewStepper, Next returns false and
+// Err an error wrapping ErrSettings.
 func (st *Stepper) Next(ctx context.Context) bool {
+	if st == nil {
+		return false
+	}
 	if st.done || st.err != nil {
+		return false
+	}
+	if st.cfg == nil {
+		st.err = errNoStepper
 		return false
 	}
 	if ctx != nil {
@@ -274,6 +295,9 @@ func (st *Stepper) Next(ctx context.Context) bool {
 // step. A wrong length is ErrDimension; a non-finite state or derivative
 // is a FieldError.
 func (st *Stepper) SetState(y []float64) error {
+	if st == nil || st.cfg == nil {
+		return errNoStepper
+	}
 	if len(y) != st.n {
 		return fmt.Errorf("integrate: SetState: state has %d components, want %d: %w", len(y), st.n, ErrDimension)
 	}
@@ -313,7 +337,9 @@ func (st *Stepper) accept(h float64, tNew float64) {
 	st.stats.Accepted++
 	st.stepIndex++
 	if st.cfg.progress != nil {
+		st.inProgress = true
 		st.cfg.progress(st.t)
+		st.inProgress = false
 	}
 }
 

@@ -57,7 +57,11 @@
 // Sentinels usable with errors.Is: ErrSettings, ErrCount, ErrDimension,
 // ErrNoJacobian, ErrNonFinite, ErrSystem, ErrTooShort; GrowthError says where a tangent
 // growth stopped being finite. Once work began, errors come with the partial
-// result.
+// result. A panic in the caller's vector field, Jacobian (a write outside its
+// matrix, say), map or map Jacobian during Exponents, FiniteTime,
+// Covariant, Largest, MapExponents or MapLargest is recovered, once per run, into an
+// *integrate.CallbackError (wrapping integrate.ErrCallback) that names the
+// function and the time (the iteration for maps).
 //
 // # Allocation
 //

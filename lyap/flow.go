@@ -111,6 +111,10 @@ type flowRun struct {
 	windowSum   []float64
 	onWindow    func(start, end float64, sums []float64) bool
 	onQR        func(t float64, q, r []float64) bool
+	// calling and callT name the caller's function running last and the
+	// time it was called at, for a recovered panic.
+	calling string
+	callT   float64
 }
 
 func validateProblem(p integrate.Problem) error {
@@ -172,6 +176,12 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 	r.t1 = r.avg.t1
 	aug := integrate.Problem{F: r.field, T0: p.T0, Y0: y0}
 	st, err := integrate.NewStepper(aug, r.t1, cfg.Method, &integrate.Settings{RelTol: cfg.RelTol, AbsTol: cfg.AbsTol, MaxSteps: cfg.MaxSteps})
+	var ce *integrate.CallbackError
+	if errors.As(err, &ce) {
+		// The integrator saw the augmented field; name the caller's function.
+		ce.Callback, ce.T = r.calling, r.callT
+		return nil, fmt.Errorf("lyap: at the start: %w", ce)
+	}
 	if err != nil {
 		if errors.Is(err, integrate.ErrNonFinite) {
 			return nil, fmt.Errorf("lyap: at the start: %w: %w", ErrNonFinite, err)
@@ -196,6 +206,7 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 func (r *flowRun) jacobian(t float64, x []float64) {
 	r.jacs++
 	if r.exact {
+		r.calling = integrate.CallbackJacobian
 		r.p.Jac(t, x, r.J)
 		return
 	}
@@ -208,6 +219,7 @@ func (r *flowRun) field(t float64, y, dy []float64) {
 	n, k := r.n, r.k
 	x := y[:n]
 	r.evals++
+	r.calling, r.callT = integrate.CallbackField, t
 	r.p.F(t, x, dy[:n])
 	r.jacobian(t, x)
 	v := y[n : n+n*k]
@@ -240,10 +252,20 @@ func mulTangent(dst, jd, v []float64, n, k int) {
 	}
 }
 
-func (r *flowRun) run(ctx context.Context) error {
+// run steps to the end. A panic in the caller's vector field or Jacobian
+// (one deferred recover per run, none per step) ends the run with a
+// *integrate.CallbackError naming the function and the time.
+func (r *flowRun) run(ctx context.Context) (err error) {
 	if ctx == nil {
 		ctx = context.Background()
 	}
+	defer func() {
+		if v := recover(); v != nil {
+			r.err = fmt.Errorf("lyap: %w", integrate.Recovered(r.calling, r.callT, v))
+			r.done = true
+			err = r.err
+		}
+	}()
 	for r.step(ctx) {
 	}
 	return r.err

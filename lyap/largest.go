@@ -43,8 +43,17 @@ func Largest(ctx context.Context, p integrate.Problem, s *Settings) (*Spectrum, 
 	if ctx == nil {
 		ctx = context.Background()
 	}
-	for r.step(ctx) {
-	}
+	func() {
+		// A panic in the caller's field ends the run with a CallbackError
+		// (one deferred recover per run).
+		defer func() {
+			if v := recover(); v != nil {
+				r.err = fmt.Errorf("lyap: %w", integrate.Recovered(integrate.CallbackField, r.st.T(), v))
+			}
+		}()
+		for r.step(ctx) {
+		}
+	}()
 	sp := r.spectrum()
 	return sp, needErrorBars(sp, r.err)
 }
@@ -219,8 +228,17 @@ func MapLargest(ctx context.Context, m Map, x0 []float64, s *Settings) (*Spectru
 	if ctx == nil {
 		ctx = context.Background()
 	}
-	for r.step(ctx) {
-	}
+	func() {
+		// A panic in the caller's map ends the run with a CallbackError
+		// (one deferred recover per run).
+		defer func() {
+			if v := recover(); v != nil {
+				r.err = fmt.Errorf("lyap: %w", integrate.Recovered(integrate.CallbackMap, float64(r.it), v))
+			}
+		}()
+		for r.step(ctx) {
+		}
+	}()
 	sp := r.spectrum()
 	return sp, needErrorBars(sp, r.err)
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/detmath"
 	"gonum.org/v1/gonum/mat"
 )
@@ -90,10 +91,11 @@ func MapExponents(ctx context.Context, m Map, x0 []float64, k int, s *Settings) 
 
 // mapRun is the workspace and state of one tangent-space run of a map.
 type mapRun struct {
-	m    Map
-	cfg  *config
-	n, k int
-	det  bool
+	m       Map
+	calling string // the caller's function running last, for a recovered panic
+	cfg     *config
+	n, k    int
+	det     bool
 
 	x, xn      []float64
 	v, vn      []float64
@@ -187,10 +189,20 @@ func newMapRun(m Map, x0 []float64, k int, s *Settings) (*mapRun, error) {
 	return r, nil
 }
 
-func (r *mapRun) run(ctx context.Context) error {
+// run iterates to the end. A panic in the map or its Jacobian (one deferred
+// recover per run) ends the run with a *integrate.CallbackError naming the
+// function, with the iteration as its time.
+func (r *mapRun) run(ctx context.Context) (err error) {
 	if ctx == nil {
 		ctx = context.Background()
 	}
+	defer func() {
+		if v := recover(); v != nil {
+			r.err = fmt.Errorf("lyap: %w", integrate.Recovered(r.calling, float64(r.it), v))
+			r.done = true
+			err = r.err
+		}
+	}()
 	for r.step(ctx) {
 	}
 	return r.err
@@ -207,12 +219,14 @@ func (r *mapRun) step(ctx context.Context) bool {
 		r.done = true
 		return false
 	}
+	r.calling = integrate.CallbackMapJacobian
 	r.m.Jacobian(r.x, r.J)
 	r.jacs++
 	mulTangent(r.vn, r.jd, r.v, r.n, r.k)
 	if r.det && r.averaging {
 		r.logDetOpen += r.logAbsDet()
 	}
+	r.calling = integrate.CallbackMap
 	r.m.Next(r.x, r.xn)
 	r.evals++
 	r.x, r.xn = r.xn, r.x

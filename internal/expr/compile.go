@@ -49,26 +49,27 @@ func (p *Program) Len() int { return len(p.code) }
 // Compile turns the expressions outs (nodes of g) into a Program whose
 // output i is outs[i].
 func (g *Graph) Compile(outs []Expr) *Program {
+	// Mark the nodes the outputs need, by an explicit stack (a chain of a
+	// million operations is too deep to recurse).
 	reach := make([]bool, len(g.nodes))
-	var mark func(e Expr)
-	mark = func(e Expr) {
+	stack := append([]Expr(nil), outs...)
+	for len(stack) > 0 {
+		e := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
 		if reach[e] {
-			return
+			continue
 		}
 		reach[e] = true
 		n := g.nodes[e]
 		switch n.op.arity() {
 		case 1:
-			mark(n.a)
+			stack = append(stack, n.a)
 		case 2:
-			mark(n.a)
+			stack = append(stack, n.a)
 			if !(n.op == OpPow && g.intExponent(n.b)) {
-				mark(n.b)
+				stack = append(stack, n.b)
 			}
 		}
-	}
-	for _, e := range outs {
-		mark(e)
 	}
 	p := &Program{nvar: len(g.vars)}
 	reg := make([]int32, len(g.nodes))

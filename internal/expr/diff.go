@@ -17,27 +17,29 @@ package expr
 //	d u^w         = u^w·(dw·log(u) + w·du/u)    (general w; real only for u > 0)
 //	d atan2(u, w) = (w·du - u·dw)/(u² + w²)
 //
-// It panics if v is not a slot of the graph (a programmer error).
+// Diff walks the graph without recursion and ignores the limits of
+// SetLimits (Derivative honours them). It panics if v is not a slot of the
+// graph (a programmer error).
 func (g *Graph) Diff(e Expr, v int) Expr {
 	if v < 0 || v >= len(g.vars) {
 		panic("expr: Diff with a variable slot out of range")
 	}
-	return g.diff(e, v)
+	d, _ := g.diffWalk(e, v, false)
+	return d
 }
 
+// diff returns the derivative of an operand in the current walk:
+// diffWalk differentiates operands before their users.
 func (g *Graph) diff(e Expr, v int) Expr {
-	key := [2]int32{int32(e), int32(v)}
-	if d, ok := g.diffs[key]; ok {
-		return d
+	if int(e) < len(g.seen) && g.seen[e] == g.stamp {
+		return g.dval[e]
 	}
-	d := g.diffRule(e, v)
-	g.diffs[key] = d
-	return d
+	panic("expr: operand differentiated out of order")
 }
 
 func (g *Graph) diffRule(e Expr, v int) Expr {
 	n := g.nodes[e]
-	zero, one := g.Const(0), g.Const(1)
+	zero, one := g.zeroOne()
 	switch n.op {
 	case OpConst:
 		return zero

@@ -15,6 +15,9 @@ var (
 	ErrUnknown = errors.New("unknown name")
 	// ErrArity reports a function called with the wrong number of arguments.
 	ErrArity = errors.New("wrong number of arguments")
+	// ErrTooLarge reports formulas, or derivatives of them, beyond the
+	// limits set with Graph.SetLimits.
+	ErrTooLarge = errors.New("formulas too large")
 )
 
 // ParseError is a formula error with its position. Pos is the byte offset in
@@ -34,7 +37,8 @@ func (e *ParseError) Error() string {
 }
 
 // Caret returns the formula's offending line and a line with a caret under
-// the error's column, each indented by two spaces.
+// the error's column, each indented by two spaces. A long line is cut to
+// caretWindow runes on either side of the column, marked with "...".
 func (e *ParseError) Caret() string {
 	lines := strings.Split(e.Src, "\n")
 	l := ""
@@ -43,8 +47,25 @@ func (e *ParseError) Caret() string {
 	}
 	// Keep the shown line printable: tabs become spaces so the caret aligns.
 	l = strings.ReplaceAll(l, "\t", " ")
-	return "  " + l + "\n  " + strings.Repeat(" ", max(e.Col-1, 0)) + "^"
+	col := max(e.Col-1, 0)
+	if r := []rune(l); len(r) > 2*caretWindow+1 {
+		lo, hi := max(col-caretWindow, 0), min(col+caretWindow+1, len(r))
+		l = string(r[lo:hi])
+		col -= lo
+		if lo > 0 {
+			l = "..." + l
+			col += 3
+		}
+		if hi < len(r) {
+			l += "..."
+		}
+	}
+	return "  " + l + "\n  " + strings.Repeat(" ", col) + "^"
 }
+
+// caretWindow is how many runes of a long formula line Caret shows on
+// either side of the error.
+const caretWindow = 40
 
 // Unwrap returns the sentinel.
 func (e *ParseError) Unwrap() error { return e.Err }

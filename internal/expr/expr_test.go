@@ -57,7 +57,9 @@ func TestParseErrors(t *testing.T) {
 		{"", ErrSyntax, 1, 1},
 		{"x + ) ", ErrSyntax, 5, 1},
 		{".", ErrSyntax, 1, 1},
-		{strings.Repeat("(", 1000) + "x" + strings.Repeat(")", 1000), ErrSyntax, 501, 1}, // each ( counts twice toward maxDepth,
+		{strings.Repeat("(", maxDepth+1) + "x" + strings.Repeat(")", maxDepth+1), ErrSyntax, maxDepth + 1, 1}, // the ( past maxDepth levels
+		{strings.Repeat("sin(", maxDepth+1) + "x" + strings.Repeat(")", maxDepth+1), ErrSyntax, 4*maxDepth + 4, 1},
+		{strings.Repeat("x^", maxDepth+1) + "x", ErrSyntax, 2*maxDepth + 2, 1},
 	}
 	for _, c := range cases {
 		_, err := g.Parse(c.src)

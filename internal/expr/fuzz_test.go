@@ -3,23 +3,34 @@ package expr
 import (
 	"errors"
 	"math/big"
+	"strings"
 	"testing"
 
 	"github.com/plumbdyn/plumb/internal/dd"
 )
 
+// The limits of the fuzzed graphs: small enough that the fuzzer reaches
+// them, large enough for every seed formula and its derivatives.
+const (
+	fuzzNodes = 4000
+	fuzzWork  = 20000
+)
+
 // FuzzParse checks that no input panics the parser, the printer, the
 // differentiator or the evaluators; that every error is a *ParseError with
-// a position inside the input; and that parse(format(e)) == e.
+// a position inside the input; and that parse(format(e)) == e. The graph
+// has limits (SetLimits), so refusals with ErrTooLarge are exercised too.
 func FuzzParse(f *testing.F) {
 	for _, s := range formulas {
 		f.Add(s)
 	}
-	for _, s := range []string{"", "(", "x +", "sin(", "1e", "2x", "x^-y^-z", "--x", "atan2(x,,y)", "é + x", "1/0", "0/0*x"} {
+	for _, s := range []string{"", "(", "x +", "sin(", "1e", "2x", "x^-y^-z", "--x", "atan2(x,,y)", "é + x", "1/0", "0/0*x",
+		"- - -+- x", strings.Repeat("(", 1001) + "x", strings.Repeat("x*", 5000) + "y", strings.Repeat("x^", 1001) + "2"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, src string) {
 		g := NewGraph(testVars)
+		g.SetLimits(fuzzNodes, fuzzWork)
 		e, err := g.Parse(src)
 		if err != nil {
 			var pe *ParseError
@@ -29,7 +40,7 @@ func FuzzParse(f *testing.F) {
 			if pe.Pos < 0 || pe.Pos > len(src) || pe.Line < 1 || pe.Col < 1 {
 				t.Fatalf("Parse(%q): bad position %d (%d:%d)", src, pe.Pos, pe.Line, pe.Col)
 			}
-			if !errors.Is(err, ErrSyntax) && !errors.Is(err, ErrUnknown) && !errors.Is(err, ErrArity) {
+			if !errors.Is(err, ErrSyntax) && !errors.Is(err, ErrUnknown) && !errors.Is(err, ErrArity) && !errors.Is(err, ErrTooLarge) {
 				t.Fatalf("Parse(%q): error %v wraps no sentinel", src, err)
 			}
 			return
@@ -49,7 +60,14 @@ func FuzzParse(f *testing.F) {
 		}
 		outs := []Expr{e}
 		for v := range testVars {
-			outs = append(outs, g.Diff(e, v))
+			d, err := g.Derivative(e, v)
+			if err != nil {
+				if !errors.Is(err, ErrTooLarge) {
+					t.Fatalf("Derivative of %q: %v, want nil or ErrTooLarge", src, err)
+				}
+				return
+			}
+			outs = append(outs, d)
 		}
 		p := g.Compile(outs)
 		vars := []float64{0.3, 1.1, -0.7, 2, 0.5, -1.5}

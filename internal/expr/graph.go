@@ -97,20 +97,39 @@ type node struct {
 // independent of it.
 type Graph struct {
 	vars  []string
+	slot  map[string]int // the first slot of each non-empty name
 	nodes []node
 	index map[node]Expr
 	diffs map[[2]int32]Expr
+	// maxNodes and maxWork are the limits of SetLimits (0: none); work
+	// counts the nodes visited by Derivative.
+	maxNodes, maxWork, work int
+	// seen and stamp mark the nodes of a walk (see reachable).
+	seen  []uint32
+	stamp uint32
+	// dval holds the derivatives of the nodes of the current diffWalk.
+	dval []Expr
+	// zero and one are the constants 0 and 1 once haveZO (see zeroOne).
+	zero, one Expr
+	haveZO    bool
 }
 
 // NewGraph returns an empty graph whose formulas may use the named variables;
 // variable i is slot i of every evaluator compiled from the graph. An empty
 // name reserves a slot that formulas cannot mention.
 func NewGraph(vars []string) *Graph {
-	return &Graph{
+	g := &Graph{
 		vars:  append([]string(nil), vars...),
+		slot:  make(map[string]int, len(vars)),
 		index: make(map[node]Expr),
 		diffs: make(map[[2]int32]Expr),
 	}
+	for i, v := range vars {
+		if _, dup := g.slot[v]; v != "" && !dup {
+			g.slot[v] = i
+		}
+	}
+	return g
 }
 
 // Vars returns the variable names in slot order.
@@ -394,26 +413,8 @@ func (g *Graph) build(op Op, a, b Expr) Expr {
 // Uses reports which variable slots e depends on.
 func (g *Graph) Uses(e Expr) []bool {
 	used := make([]bool, len(g.vars))
-	seen := make(map[Expr]bool)
-	var walk func(e Expr)
-	walk = func(e Expr) {
-		if seen[e] {
-			return
-		}
-		seen[e] = true
-		n := g.nodes[e]
-		switch n.op.arity() {
-		case 0:
-			if n.op == OpVar {
-				used[n.a] = true
-			}
-		case 1:
-			walk(n.a)
-		case 2:
-			walk(n.a)
-			walk(n.b)
-		}
+	for _, v := range g.Slots(e) {
+		used[v] = true
 	}
-	walk(e)
 	return used
 }

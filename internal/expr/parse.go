@@ -27,9 +27,13 @@ import (
 // log is the natural logarithm. sign(x) is -1, 0, 1; step(x) is 1 for x >= 0
 // and 0 otherwise (they appear in the derivatives of abs, min and max).
 
-// maxDepth bounds the nesting of parentheses and unary operators, so that
-// hostile input cannot exhaust the stack.
+// maxDepth bounds the nesting of parentheses, function calls and exponents
+// (each is one level; signs and chains of + - * / are read in loops and cost
+// none), so that hostile input cannot exhaust the stack.
 const maxDepth = 1000
+
+// maxListed is how many variables an unknown-name error lists.
+const maxListed = 20
 
 type parser struct {
 	g     *Graph
@@ -39,7 +43,10 @@ type parser struct {
 }
 
 // Parse reads one formula over the graph's variables and returns its node.
-// Errors are *ParseError values wrapping ErrSyntax, ErrUnknown or ErrArity.
+// Errors are *ParseError values wrapping ErrSyntax, ErrUnknown, ErrArity or
+// (past the limit set by SetLimits) ErrTooLarge. Parse uses stack space in
+// proportion to the nesting (at most maxDepth = 1000 levels), not to the
+// length of the formula.
 func (g *Graph) Parse(src string) (Expr, error) {
 	p := &parser{g: g, src: src}
 	e, err := p.sum()
@@ -50,6 +57,9 @@ func (g *Graph) Parse(src string) (Expr, error) {
 	if p.pos < len(p.src) {
 		r, _ := utf8.DecodeRuneInString(p.src[p.pos:])
 		return 0, p.errAt(p.pos, ErrSyntax, "unexpected %q after the end of the formula", r)
+	}
+	if err := p.grown(p.pos); err != nil {
+		return 0, err
 	}
 	return e, nil
 }
@@ -81,7 +91,16 @@ func (p *parser) peek() byte {
 func (p *parser) enter() error {
 	p.depth++
 	if p.depth > maxDepth {
-		return p.errAt(p.pos, ErrSyntax, "formula nested deeper than %d levels", maxDepth)
+		return p.errAt(p.pos, ErrSyntax, "formula nested deeper than %d levels (of parentheses, function calls and exponents)", maxDepth)
+	}
+	return nil
+}
+
+// grown reports a graph that outgrew its node limit (see Graph.SetLimits),
+// at byte offset pos.
+func (p *parser) grown(pos int) error {
+	if g := p.g; g.maxNodes > 0 && len(g.nodes) > g.maxNodes {
+		return p.errAt(pos, ErrTooLarge, "the formulas are larger than the limit of %d nodes (distinct numbers, names and operations)", g.maxNodes)
 	}
 	return nil
 }
@@ -100,6 +119,9 @@ func (p *parser) sum() (Expr, error) {
 				return 0, err
 			}
 			a = p.g.Add(a, b)
+			if err := p.grown(p.pos); err != nil {
+				return 0, err
+			}
 		case '-':
 			p.pos++
 			b, err := p.product()
@@ -107,6 +129,9 @@ func (p *parser) sum() (Expr, error) {
 				return 0, err
 			}
 			a = p.g.Sub(a, b)
+			if err := p.grown(p.pos); err != nil {
+				return 0, err
+			}
 		default:
 			return a, nil
 		}
@@ -127,6 +152,9 @@ func (p *parser) product() (Expr, error) {
 				return 0, err
 			}
 			a = p.g.Mul(a, b)
+			if err := p.grown(p.pos); err != nil {
+				return 0, err
+			}
 		case '/':
 			p.pos++
 			b, err := p.unary()
@@ -134,30 +162,36 @@ func (p *parser) product() (Expr, error) {
 				return 0, err
 			}
 			a = p.g.Div(a, b)
+			if err := p.grown(p.pos); err != nil {
+				return 0, err
+			}
 		default:
 			return a, nil
 		}
 	}
 }
 
+// unary reads the signs in a loop: -(-a) is a in the graph, so only the
+// parity of the minus signs matters.
 func (p *parser) unary() (Expr, error) {
-	if err := p.enter(); err != nil {
-		return 0, err
-	}
-	defer func() { p.depth-- }()
-	switch p.peek() {
-	case '-':
-		p.pos++
-		a, err := p.unary()
-		if err != nil {
-			return 0, err
+	neg := false
+	for {
+		switch p.peek() {
+		case '-':
+			neg = !neg
+			p.pos++
+			continue
+		case '+':
+			p.pos++
+			continue
 		}
-		return p.g.Neg(a), nil
-	case '+':
-		p.pos++
-		return p.unary()
+		break
 	}
-	return p.power()
+	a, err := p.power()
+	if err != nil || !neg {
+		return a, err
+	}
+	return p.g.Neg(a), nil
 }
 
 func (p *parser) power() (Expr, error) {
@@ -166,6 +200,10 @@ func (p *parser) power() (Expr, error) {
 		return 0, err
 	}
 	if p.peek() == '^' {
+		if err := p.enter(); err != nil {
+			return 0, err
+		}
+		defer func() { p.depth-- }()
 		p.pos++
 		b, err := p.unary()
 		if err != nil {
@@ -213,19 +251,25 @@ func (p *parser) primary() (Expr, error) {
 	if name == "pi" {
 		return p.g.Const(math.Pi), nil
 	}
-	for i, v := range p.g.vars {
-		if v == name {
-			return p.g.Var(i), nil
-		}
+	if i, ok := p.g.slot[name]; ok {
+		return p.g.Var(i), nil
 	}
 	if _, ok := lookupFunc(name); ok {
 		return 0, p.errAt(start, ErrSyntax, "function %s needs its arguments in parentheses", name)
 	}
 	var known []string
+	more := 0
 	for _, v := range p.g.vars {
-		if v != "" {
+		switch {
+		case v == "":
+		case len(known) < maxListed:
 			known = append(known, v)
+		default:
+			more++
 		}
+	}
+	if more > 0 {
+		return 0, p.errAt(start, ErrUnknown, "unknown name %q (variables: %v and %d more)", name, known, more)
 	}
 	return 0, p.errAt(start, ErrUnknown, "unknown name %q (variables: %v)", name, known)
 }
