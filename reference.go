@@ -105,14 +105,40 @@ type ReferenceCheck struct {
 //
 // and at least MinReferenceDigits: lambda·T/ln 10 digits are consumed by
 // the growth e^(lambda T) of the local errors, log10(scale/tol) are wanted
-// at the end.
-func ReferenceDigits(lambda, T, tol, scale float64) int {
-	d := float64(detmath.Log(math.Max(1, scale)/tol) / math.Ln10)
+// at the end. The logarithms are summed, never 10^-D formed, so any D up
+// to MaxReferenceDigits comes out right.
+//
+// It refuses, with an error wrapping integrate.ErrSettings, input that
+// gives no precision: a lambda, T or scale that is not finite, a negative
+// T, a tol that is not finite and > 0, and a rule that asks for more than
+// MaxReferenceDigits digits (the span is then too long for any reference:
+// shorten it, or accept a larger tol).
+func ReferenceDigits(lambda, T, tol, scale float64) (int, error) {
+	switch {
+	case !finite(lambda):
+		return 0, fmt.Errorf("plumb: ReferenceDigits lambda = %v: must be finite: %w", lambda, integrate.ErrSettings)
+	case !finite(T) || T < 0:
+		return 0, fmt.Errorf("plumb: ReferenceDigits span T = %v: must be finite and >= 0: %w", T, integrate.ErrSettings)
+	case !(tol > 0) || math.IsInf(tol, 0):
+		return 0, fmt.Errorf("plumb: ReferenceDigits tol = %v: must be finite and > 0: %w", tol, integrate.ErrSettings)
+	case !finite(scale):
+		return 0, fmt.Errorf("plumb: ReferenceDigits scale = %v: must be finite: %w", scale, integrate.ErrSettings)
+	}
+	d := float64((detmath.Log(math.Max(1, scale)) - detmath.Log(tol)) / math.Ln10)
 	if lambda > 0 {
 		d += float64(float64(lambda*T) / math.Ln10)
 	}
-	return max(MinReferenceDigits, int(math.Ceil(d))+GuardDigits)
+	d = math.Ceil(d) + GuardDigits
+	if !(d <= MaxReferenceDigits) {
+		return 0, fmt.Errorf("plumb: a reference over T = %g at lambda = %g and tol = %g needs %.4g digits, more than %d: %w",
+			T, lambda, tol, d, MaxReferenceDigits, integrate.ErrSettings)
+	}
+	return max(MinReferenceDigits, int(d)), nil
 }
+
+// MaxReferenceDigits is the largest working precision of Reference and
+// ReferenceDigits (ReferenceSettings.Digits' range).
+const MaxReferenceDigits = 10000
 
 // Reference integrates a system's formulas from its start over [0, t1]
 // with the adaptive Taylor method of integrate.SolveTaylor, at a working
@@ -162,7 +188,7 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 		return nil, fmt.Errorf("plumb: ReferenceSettings.Lambda = %v: must be finite: %w", set.Lambda, integrate.ErrSettings)
 	case !(set.Tol >= 0) || math.IsInf(set.Tol, 0):
 		return nil, fmt.Errorf("plumb: ReferenceSettings.Tol = %v: must be finite and >= 0: %w", set.Tol, integrate.ErrSettings)
-	case set.Digits < 0 || set.Digits > 10000:
+	case set.Digits < 0 || set.Digits > MaxReferenceDigits:
 		return nil, fmt.Errorf("plumb: ReferenceSettings.Digits = %d: must be in [0, 10000]: %w", set.Digits, integrate.ErrSettings)
 	case set.MaxSteps < 0:
 		return nil, fmt.Errorf("plumb: ReferenceSettings.MaxSteps = %d: must be >= 0: %w", set.MaxSteps, integrate.ErrSettings)
@@ -197,7 +223,9 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 		if tol == 0 {
 			tol = detmath.Pow(10, -DefaultReferenceDigits) * math.Max(1, scale)
 		}
-		digits = ReferenceDigits(lambda, t1, tol, scale)
+		if digits, err = ReferenceDigits(lambda, t1, tol, scale); err != nil {
+			return nil, fmt.Errorf("plumb: Reference: %w", err)
+		}
 	}
 	main, err := integrate.SolveTaylor(ctx, sr, 0, y0, ts, &integrate.TaylorSettings{Digits: digits, MaxSteps: set.MaxSteps})
 	if main != nil {
@@ -367,7 +395,8 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 	}
 	problem := sys.Problem()
 	if settings == nil || !(settings.Tol > 0) || math.IsInf(settings.Tol, 0) ||
-		!(horizon > 0) || math.IsInf(horizon, 0) || !(settings.Lambda >= 0) || math.IsInf(settings.Lambda, 0) {
+		!(horizon > 0) || math.IsInf(horizon, 0) || !(settings.Lambda >= 0) || math.IsInf(settings.Lambda, 0) ||
+		settings.MaxSteps < 0 {
 		return Trust(ctx, problem, horizon, settings) // its validation and errors
 	}
 	s := *settings
@@ -400,7 +429,13 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 	for _, v := range problem.Y0 {
 		scale = math.Max(scale, math.Abs(v))
 	}
-	digits := ReferenceDigits(s.Lambda, horizon, refTolFraction*s.Tol, scale)
+	// A span too long for any full-span reference (more than
+	// MaxReferenceDigits digits) may still be audited with the shortened
+	// one below; digitsErr says why the full-span one cannot be made.
+	digits, digitsErr := ReferenceDigits(s.Lambda, horizon, refTolFraction*s.Tol, scale)
+	if digitsErr != nil {
+		digits = MaxReferenceDigits + 1
+	}
 	ladder := integrate.DefaultLadder(problem.T0, problem.T0+horizon)
 	if s.Ladder != nil {
 		ladder = *s.Ladder
@@ -443,7 +478,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		}
 		if last, ok := lastDeparture(first); err == nil && ok {
 			until := problem.T0 + float64(spanMargin*(last-problem.T0)) + spanLyapunovTimes/s.Lambda
-			if d := ReferenceDigits(s.Lambda, until-problem.T0, refTolFraction*s.Tol, scale); until < end && d < digits {
+			if d, derr := ReferenceDigits(s.Lambda, until-problem.T0, refTolFraction*s.Tol, scale); derr == nil && until < end && d < digits {
 				rep, err := audit(d, until)
 				if err != nil && ctx.Err() != nil {
 					return rep, err
@@ -454,6 +489,9 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 				}
 			}
 		}
+	}
+	if digitsErr != nil {
+		return nil, fmt.Errorf("plumb: TrustSystem: no multiprecision reference covers this audit (compare with the float64 reference instead, Trust): %w", digitsErr)
 	}
 	return audit(digits, end)
 }
@@ -470,7 +508,8 @@ const (
 
 // lastDeparture returns the latest agreement horizon of the report's rungs
 // that start at t0 (restart rungs are judged apart, see spanCovers), and
-// false when one of them failed or never departed.
+// false when one of them never departed (a run that failed after it
+// departed counts with its horizon).
 func lastDeparture(rep *Report) (float64, bool) {
 	if rep == nil {
 		return 0, false
@@ -480,7 +519,9 @@ func lastDeparture(rep *Report) (float64, bool) {
 		if r.Effect == "restart" {
 			continue
 		}
-		if !r.Departed || r.Error != "" {
+		// A run that departed before it failed (a step budget spent
+		// long after) has its horizon all the same.
+		if !r.Departed {
 			return 0, false
 		}
 		last, found = math.Max(last, r.AgreesUntil), true
@@ -508,7 +549,7 @@ func spanCovers(rep *Report, until, local float64) bool {
 		return false
 	}
 	for _, r := range append([]RungReport{rep.Reference}, rep.Rungs...) {
-		if !r.Departed || r.Error != "" {
+		if !r.Departed {
 			return false
 		}
 		if r.AgreesUntil < until {

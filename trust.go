@@ -80,6 +80,12 @@ type TrustSettings struct {
 	Lambda float64
 	// NoReversal skips the reversibility check.
 	NoReversal bool
+	// MaxSteps bounds the attempted steps of every float64 run of the
+	// audit (a rung's own Rung.MaxSteps overrides it); zero means
+	// integrate.DefaultMaxSteps. Long horizons need more: the reference
+	// run of Lorenz takes about 80 steps per time unit. Must be >= 0;
+	// otherwise integrate.ErrSettings.
+	MaxSteps int
 	// Progress, if not nil, is called as work completes with the stage
 	// ("audit" with runs done and total, then "exponent" with 0 and 1, and 1
 	// and 1 when done). It must not block for long; the CLI draws its
@@ -258,6 +264,9 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	if err := checkTolLambda("TrustSettings", s.Tol, s.Lambda); err != nil {
 		return nil, err
 	}
+	if s.MaxSteps < 0 {
+		return nil, fmt.Errorf("plumb: TrustSettings.MaxSteps = %d: must be >= 0: %w", s.MaxSteps, integrate.ErrSettings)
+	}
 	t1 := problem.T0 + horizon
 	ladder := integrate.DefaultLadder(problem.T0, t1)
 	if s.Ladder != nil {
@@ -269,6 +278,7 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	}
 	as := &integrate.AuditSettings{
 		Tol: s.Tol, Relative: s.Relative, Every: s.Every, Periods: s.Periods, Reverse: !s.NoReversal,
+		MaxSteps: s.MaxSteps,
 	}
 	progress := func(stage string, done, total int) {
 		if s.Progress != nil {

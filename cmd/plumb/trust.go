@@ -111,6 +111,7 @@ type trustFlags struct {
 	restartAt     float64
 	restartPlaces int
 	exact         bool
+	maxSteps      int
 }
 
 func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
@@ -122,6 +123,7 @@ func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	fs.StringVar(&f.rungs, "rungs", strings.Join(rungGroupNames(), ","), "comma-separated `LIST` of the rungs to compare with the reference: "+strings.Join(rungGroupNames(), ", "))
 	finiteVar(fs, &f.restartAt, "restart-at", 0, "time `T` of the restart rung, inside the audited span (default 0.8 of --horizon)")
 	fs.IntVar(&f.restartPlaces, "restart-places", trustRestartPlaces, "the restart rung rounds the state to `K` decimal places")
+	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps per run (long horizons need more: the reference takes about 80 per time unit on the demo)")
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -261,7 +263,10 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
-	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Periods: sys.Periods()}
+	if f.maxSteps < 1 {
+		return usagef("--max-steps %d: must be >= 1", f.maxSteps)
+	}
+	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Periods: sys.Periods(), MaxSteps: f.maxSteps}
 	var bar *progressBar
 	if cl.progress {
 		// One unit per audit run, and as many again for the exponent
