@@ -102,7 +102,9 @@ type Ladder struct {
 
 // Trajectory returns the states of the audited problem's solution at the
 // given increasing times (one slice of the state's length per time). Errors
-// end the audit.
+// end the audit. Audit calls it first with the comparison times, then once
+// more with the times at which it locates the horizons (inside the span);
+// the second call's error only leaves the horizons as the grid gives them.
 type Trajectory func(ctx context.Context, times []float64) ([][]float64, error)
 
 // Default tolerances of the reference rung.
