@@ -131,7 +131,7 @@ func (a *auditor) windows(rr rerun, ws [][2]float64) []*denseWindow {
 // trajectory, its states resampled at the step boundaries of the rungs'
 // repeats inside their windows, each step divided in hermiteSubdiv, and
 // joined by cubic Hermite interpolation with the field's derivatives there
-// (error h^4/384·max|y''''| for a resample spacing h).
+// (error h^4/384·max|y””| for a resample spacing h).
 type refTraj struct {
 	dense *denseWindow
 	t     []float64
