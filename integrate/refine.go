@@ -24,7 +24,7 @@ const (
 	scanBackFactor = 1e3
 	// hermiteSubdiv divides each step of a rung's repeat into that many
 	// intervals of the exact reference's resample: the cubic Hermite error
-	// h^4/384·max|y''''| falls by hermiteSubdiv^4 = 4096 below that on the
+	// h^4/384·max|y^(4)| falls by hermiteSubdiv^4 = 4096 below that on the
 	// rung's own steps (about 1e-6 in the distance on Lorenz at the largest
 	// steps of DormandPrince853 at 1e-8, a relative 1e-8 in the horizon).
 	hermiteSubdiv = 8
@@ -131,7 +131,7 @@ func (a *auditor) windows(rr rerun, ws [][2]float64) []*denseWindow {
 // trajectory, its states resampled at the step boundaries of the rungs'
 // repeats inside their windows, each step divided in hermiteSubdiv, and
 // joined by cubic Hermite interpolation with the field's derivatives there
-// (error h^4/384·max|y””| for a resample spacing h).
+// (error h^4/384·max|y^(4)| for a resample spacing h).
 type refTraj struct {
 	dense *denseWindow
 	t     []float64
