@@ -400,6 +400,11 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		return Trust(ctx, problem, horizon, settings) // its validation and errors
 	}
 	s := *settings
+	ladder, err := trustLadder(&s, problem.T0, problem.T0+horizon)
+	if err != nil {
+		return nil, err // before any work
+	}
+	s.Run = nil // built into the ladder, which the audits below are given
 	var est *ExponentEstimate
 	if s.Lambda == 0 {
 		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
@@ -435,10 +440,6 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 	digits, digitsErr := ReferenceDigits(s.Lambda, horizon, refTolFraction*s.Tol, scale)
 	if digitsErr != nil {
 		digits = MaxReferenceDigits + 1
-	}
-	ladder := integrate.DefaultLadder(problem.T0, problem.T0+horizon)
-	if s.Ladder != nil {
-		ladder = *s.Ladder
 	}
 	end := problem.T0 + horizon
 	audit := func(d int, until float64) (*Report, error) {

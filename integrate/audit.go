@@ -199,7 +199,9 @@ type AuditResult struct {
 	// Trusted is the earliest agreement horizon over the rungs that
 	// departed (a failed run counts only if it departed before failing),
 	// or T1 if none did. Limit is the index in Rungs of the rung that set
-	// it, -1 if none departed.
+	// it, -1 if none departed. With a KindRun rung (the caller's own run)
+	// Trusted is that rung's horizon (where it departed, or stopped) and
+	// MaxDivergence its largest divergence up to there.
 	Trusted float64
 	Limit   int
 	// MaxDivergence is the largest divergence of any rung on [T0, Trusted].
@@ -316,9 +318,15 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 	if err := validateRung(refRung, p.T0, t1, true); err != nil {
 		return nil, &RungError{Index: -1, Name: refRung.Name, Err: err}
 	}
+	runs := 0
 	for i, r := range l.Rungs {
 		if err := validateRung(r, p.T0, t1, false); err != nil {
 			return nil, &RungError{Index: i, Name: r.Name, Err: err}
+		}
+		if r.Kind == KindRun {
+			if runs++; runs > 1 {
+				return nil, &RungError{Index: i, Name: r.Name, Err: fmt.Errorf("a second rung of kind run (a ladder audits one run of the caller's): %w", ErrLadder)}
+			}
 		}
 	}
 
@@ -420,12 +428,27 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		return res, fmt.Errorf("integrate: audit canceled while locating the horizons: %w", err)
 	}
 	res.Trusted = t1
+	own := -1
 	for i, r := range res.Rungs {
-		if r.Departed && r.Horizon < res.Trusted {
+		if r.Rung.Kind == KindRun {
+			own = i
+		}
+	}
+	for i, r := range res.Rungs {
+		switch {
+		case own >= 0:
+			// The caller's run: trusted until it departs (or stops).
+			if i == own && (r.Departed || r.Err != nil) {
+				res.Trusted, res.Limit = r.Horizon, i
+			}
+		case r.Departed && r.Horizon < res.Trusted:
 			res.Trusted, res.Limit = r.Horizon, i
 		}
 	}
-	for _, r := range res.Rungs {
+	for i, r := range res.Rungs {
+		if own >= 0 && i != own {
+			continue
+		}
 		for k, d := range r.Divergence {
 			if a.times[r.Start+k] > res.Trusted {
 				break

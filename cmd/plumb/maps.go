@@ -41,7 +41,7 @@ func refuseFlags(cl *call, sys *plumb.System, why string, names ...string) error
 var flowOnlySolve = []string{"t0", "t1", "dt", "rtol", "atol", "method", "step", "max-steps", "cross-state", "cross-sense", "rows"}
 
 // flowOnlyTrust are plumb trust's flags that only a flow takes.
-var flowOnlyTrust = []string{"max-steps"}
+var flowOnlyTrust = []string{"max-steps", "method", "rtol", "atol", "step"}
 
 // mapSolveJSON is the --format json result of plumb solve on a map.
 type mapSolveJSON struct {
