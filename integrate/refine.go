@@ -309,10 +309,10 @@ func (a *auditor) bisect(s *subject, ref *refTraj) {
 		return
 	}
 	for range refineMaxIter {
-		if hi-lo <= refineRelTol*math.Max(math.Abs(hi), 1) {
+		if hi-lo <= float64(refineRelTol*math.Max(math.Abs(hi), 1)) {
 			break
 		}
-		mid := lo + 0.5*(hi-lo)
+		mid := lo + float64(0.5*(hi-lo))
 		v, ok := d(mid)
 		if !ok {
 			return
