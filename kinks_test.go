@@ -298,7 +298,8 @@ func TestTrustSystemKinkedLorenz(t *testing.T) {
 			sr, err := sys.series()
 			require.NoError(t, err)
 			var ex *ExactReference
-			digits := ReferenceDigits(lambda, horizon, refTolFraction*tol, 1)
+			digits, err := ReferenceDigits(lambda, horizon, refTolFraction*tol, 1)
+			require.NoError(t, err)
 			a, err := exactTrajectory(sr, p, digits, p.T0+horizon, lambda, &ex)(ctx, exact.Times)
 			require.NoError(t, err)
 			pieces = 0

@@ -106,14 +106,40 @@ type ReferenceCheck struct {
 //
 // and at least MinReferenceDigits: lambda·T/ln 10 digits are consumed by
 // the growth e^(lambda T) of the local errors, log10(scale/tol) are wanted
-// at the end.
-func ReferenceDigits(lambda, T, tol, scale float64) int {
-	d := float64(detmath.Log(math.Max(1, scale)/tol) / math.Ln10)
+// at the end. The logarithms are summed, never 10^-D formed, so any D up
+// to MaxReferenceDigits comes out right.
+//
+// It refuses, with an error wrapping integrate.ErrSettings, input that
+// gives no precision: a lambda, T or scale that is not finite, a negative
+// T, a tol that is not finite and > 0, and a rule that asks for more than
+// MaxReferenceDigits digits (the span is then too long for any reference:
+// shorten it, or accept a larger tol).
+func ReferenceDigits(lambda, T, tol, scale float64) (int, error) {
+	switch {
+	case !finite(lambda):
+		return 0, fmt.Errorf("plumb: ReferenceDigits lambda = %v: must be finite: %w", lambda, integrate.ErrSettings)
+	case !finite(T) || T < 0:
+		return 0, fmt.Errorf("plumb: ReferenceDigits span T = %v: must be finite and >= 0: %w", T, integrate.ErrSettings)
+	case !(tol > 0) || math.IsInf(tol, 0):
+		return 0, fmt.Errorf("plumb: ReferenceDigits tol = %v: must be finite and > 0: %w", tol, integrate.ErrSettings)
+	case !finite(scale):
+		return 0, fmt.Errorf("plumb: ReferenceDigits scale = %v: must be finite: %w", scale, integrate.ErrSettings)
+	}
+	d := float64((detmath.Log(math.Max(1, scale)) - detmath.Log(tol)) / math.Ln10)
 	if lambda > 0 {
 		d += float64(float64(lambda*T) / math.Ln10)
 	}
-	return max(MinReferenceDigits, int(math.Ceil(d))+GuardDigits)
+	d = math.Ceil(d) + GuardDigits
+	if !(d <= MaxReferenceDigits) {
+		return 0, fmt.Errorf("plumb: a reference over T = %g at lambda = %g and tol = %g needs %.4g digits, more than %d: %w",
+			T, lambda, tol, d, MaxReferenceDigits, integrate.ErrSettings)
+	}
+	return max(MinReferenceDigits, int(d)), nil
 }
+
+// MaxReferenceDigits is the largest working precision of Reference and
+// ReferenceDigits (ReferenceSettings.Digits' range).
+const MaxReferenceDigits = 10000
 
 // Reference integrates a system's formulas from its start over [0, t1]
 // with the adaptive Taylor method of integrate.SolveTaylor, at a working
@@ -163,7 +189,7 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 		return nil, fmt.Errorf("plumb: ReferenceSettings.Lambda = %v: must be finite: %w", set.Lambda, integrate.ErrSettings)
 	case !(set.Tol >= 0) || math.IsInf(set.Tol, 0):
 		return nil, fmt.Errorf("plumb: ReferenceSettings.Tol = %v: must be finite and >= 0: %w", set.Tol, integrate.ErrSettings)
-	case set.Digits < 0 || set.Digits > 10000:
+	case set.Digits < 0 || set.Digits > MaxReferenceDigits:
 		return nil, fmt.Errorf("plumb: ReferenceSettings.Digits = %d: must be in [0, 10000]: %w", set.Digits, integrate.ErrSettings)
 	case set.MaxSteps < 0:
 		return nil, fmt.Errorf("plumb: ReferenceSettings.MaxSteps = %d: must be >= 0: %w", set.MaxSteps, integrate.ErrSettings)
@@ -198,7 +224,9 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 		if tol == 0 {
 			tol = detmath.Pow(10, -DefaultReferenceDigits) * math.Max(1, scale)
 		}
-		digits = ReferenceDigits(lambda, t1, tol, scale)
+		if digits, err = ReferenceDigits(lambda, t1, tol, scale); err != nil {
+			return nil, fmt.Errorf("plumb: Reference: %w", err)
+		}
 	}
 	main, err := integrate.SolveTaylor(ctx, sr, 0, y0, ts, &integrate.TaylorSettings{Digits: digits, MaxSteps: set.MaxSteps})
 	if main != nil {
@@ -383,7 +411,8 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		settings = &named
 	}
 	if settings == nil || !(settings.Tol > 0) || math.IsInf(settings.Tol, 0) ||
-		!(horizon > 0) || math.IsInf(horizon, 0) || !(settings.Lambda >= 0) || math.IsInf(settings.Lambda, 0) {
+		!(horizon > 0) || math.IsInf(horizon, 0) || !(settings.Lambda >= 0) || math.IsInf(settings.Lambda, 0) ||
+		settings.MaxSteps < 0 {
 		return Trust(ctx, problem, horizon, settings) // its validation and errors
 	}
 	s := *settings
@@ -400,6 +429,11 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 	// so the absolute accuracy asked for is that times the smallest
 	// observed scale.
 	refTol := refTolFraction * s.Tol * minScale(scales)
+	ladder, err := trustLadder(&s, problem.T0, problem.T0+horizon)
+	if err != nil {
+		return nil, err // before any work
+	}
+	s.Run = nil // built into the ladder, which the audits below are given
 	var est *ExponentEstimate
 	if s.Lambda == 0 {
 		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
@@ -429,10 +463,12 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 	for _, v := range problem.Y0 {
 		scale = math.Max(scale, math.Abs(v))
 	}
-	digits := ReferenceDigits(s.Lambda, horizon, refTol, scale)
-	ladder := integrate.DefaultLadder(problem.T0, problem.T0+horizon)
-	if s.Ladder != nil {
-		ladder = *s.Ladder
+	// A span too long for any full-span reference (more than
+	// MaxReferenceDigits digits) may still be audited with the shortened
+	// one below; digitsErr says why the full-span one cannot be made.
+	digits, digitsErr := ReferenceDigits(s.Lambda, horizon, refTol, scale)
+	if digitsErr != nil {
+		digits = MaxReferenceDigits + 1
 	}
 	end := problem.T0 + horizon
 	audit := func(d int, until float64) (*Report, error) {
@@ -477,7 +513,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		}
 		if last, ok := lastDeparture(first); err == nil && ok {
 			until := problem.T0 + float64(spanMargin*(last-problem.T0)) + spanLyapunovTimes/s.Lambda
-			if d := ReferenceDigits(s.Lambda, until-problem.T0, refTol, scale); until < end && d < digits {
+			if d, derr := ReferenceDigits(s.Lambda, until-problem.T0, refTol, scale); derr == nil && until < end && d < digits {
 				rep, err := audit(d, until)
 				if (err != nil && ctx.Err() != nil) || (rep != nil && rep.Exact != nil && rep.Exact.SetAside != "") {
 					return rep, err
@@ -488,6 +524,9 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 				}
 			}
 		}
+	}
+	if digitsErr != nil {
+		return nil, fmt.Errorf("plumb: TrustSystem: no multiprecision reference covers this audit (compare with the float64 reference instead, Trust): %w", digitsErr)
 	}
 	return audit(digits, end)
 }
@@ -504,7 +543,8 @@ const (
 
 // lastDeparture returns the latest agreement horizon of the report's rungs
 // that start at t0 (restart rungs are judged apart, see spanCovers), and
-// false when one of them failed or never departed.
+// false when one of them never departed (a run that failed after it
+// departed counts with its horizon).
 func lastDeparture(rep *Report) (float64, bool) {
 	if rep == nil {
 		return 0, false
@@ -514,7 +554,9 @@ func lastDeparture(rep *Report) (float64, bool) {
 		if r.Effect == "restart" {
 			continue
 		}
-		if !r.Departed || r.Error != "" {
+		// A run that departed before it failed (a step budget spent
+		// long after) has its horizon all the same.
+		if !r.Departed {
 			return 0, false
 		}
 		last, found = math.Max(last, r.AgreesUntil), true
@@ -542,7 +584,7 @@ func spanCovers(rep *Report, until, local float64) bool {
 		return false
 	}
 	for _, r := range append([]RungReport{rep.Reference}, rep.Rungs...) {
-		if !r.Departed || r.Error != "" {
+		if !r.Departed {
 			return false
 		}
 		if r.AgreesUntil < until {
@@ -569,8 +611,11 @@ func exactTrajectory(sr integrate.Series, problem integrate.Problem, digits int,
 		if k < len(times) {
 			head, accurate = append(append([]float64(nil), times[:k]...), until), until
 		}
+		// The audit asks again, for the times at which it locates the
+		// horizons; *ex describes the first run, over the whole span.
+		describe := *ex == nil
 		r, err := integrate.SolveTaylor(ctx, sr, problem.T0, problem.Y0, head, &integrate.TaylorSettings{Digits: digits})
-		if r != nil {
+		if r != nil && describe {
 			*ex = &ExactReference{Method: "Taylor (Jorba–Zou order and step)", Arithmetic: r.Arithmetic,
 				Digits: r.Digits, Order: r.Order, Steps: r.Stats.Steps, Lambda: lambda, AccurateUntil: accurate,
 				KinkRestarts: r.Stats.KinkRestarts}
@@ -591,7 +636,7 @@ func exactTrajectory(sr integrate.Series, problem integrate.Problem, digits int,
 			return out, nil
 		}
 		tail, err := integrate.SolveTaylor(ctx, sr, until, r.Float64[k], rest, &integrate.TaylorSettings{Digits: MinReferenceDigits, Start: r.States[k]})
-		if tail != nil {
+		if tail != nil && describe {
 			(*ex).Continued = tail.Arithmetic
 			(*ex).ContinuedDigits = tail.Digits
 			(*ex).Steps += tail.Stats.Steps

@@ -65,8 +65,15 @@ type TrustSettings struct {
 	// Relative makes Tol a fraction of the spread.
 	Relative bool
 	// Ladder is the set of runs compared; nil means
-	// integrate.DefaultLadder over the audited span.
+	// integrate.DefaultLadder over the audited span, or with Run the ladder
+	// around it.
 	Ladder *integrate.Ladder
+	// Run, if not nil, is the caller's own run (method and tolerances, or a
+	// fixed-step method and its step; see integrate.RunLadder, which
+	// validates it): the audit is built around it, and the report's
+	// TrustedUntil, verdict and YourRun speak of it. Set Run or Ladder, not
+	// both (integrate.ErrSettings).
+	Run *integrate.Rung
 	// Periods gives, per component, the period of an angle (0 for the
 	// others), for wrapped distances; see System.Periods. Nil: none.
 	Periods []float64
@@ -88,6 +95,12 @@ type TrustSettings struct {
 	Lambda float64
 	// NoReversal skips the reversibility check.
 	NoReversal bool
+	// MaxSteps bounds the attempted steps of every float64 run of the
+	// audit (a rung's own Rung.MaxSteps overrides it); zero means
+	// integrate.DefaultMaxSteps. Long horizons need more: the reference
+	// run of Lorenz takes about 80 steps per time unit. Must be >= 0;
+	// otherwise integrate.ErrSettings.
+	MaxSteps int
 	// Progress, if not nil, is called as work completes with the stage
 	// ("audit" with runs done and total, then "exponent" with 0 and 1, and 1
 	// and 1 when done). It must not block for long; the CLI draws its
@@ -158,6 +171,9 @@ type Report struct {
 	Times     []float64    `json:"times"`
 	// Failed counts the rungs whose run failed (see RungReport.Error).
 	Failed int `json:"failed"`
+	// YourRun is the audit of the caller's own run (TrustSettings.Run),
+	// nil without one; TrustedUntil and Verdict then speak of that run.
+	YourRun *YourRunReport `json:"your_run,omitempty"`
 	// Exact is the multiprecision reference every rung was compared with
 	// (TrustSystem), nil when they were compared with Reference.
 	Exact *ExactReference `json:"exact_reference,omitempty"`
@@ -292,10 +308,13 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	if err != nil {
 		return nil, err
 	}
+	if s.MaxSteps < 0 {
+		return nil, fmt.Errorf("plumb: TrustSettings.MaxSteps = %d: must be >= 0: %w", s.MaxSteps, integrate.ErrSettings)
+	}
 	t1 := problem.T0 + horizon
-	ladder := integrate.DefaultLadder(problem.T0, t1)
-	if s.Ladder != nil {
-		ladder = *s.Ladder
+	ladder, err := trustLadder(&s, problem.T0, t1)
+	if err != nil {
+		return nil, err
 	}
 	rep := &Report{
 		T0: problem.T0, Horizon: horizon, Tol: s.Tol, Relative: s.Relative,
@@ -304,6 +323,7 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	}
 	as := &integrate.AuditSettings{
 		Tol: s.Tol, Relative: s.Relative, Every: s.Every, Periods: s.Periods, Scales: scales, Reverse: !s.NoReversal,
+		MaxSteps: s.MaxSteps,
 	}
 	progress := func(stage string, done, total int) {
 		if s.Progress != nil {
@@ -359,6 +379,7 @@ func (rep *Report) fill(res *integrate.AuditResult) {
 	}
 	uniqueIDs(ids, TightestID)
 	rep.TrustedUntil = res.Trusted
+	rep.YourRun = yourRun(res, rep.Rungs)
 	if res.Limit >= 0 {
 		r := res.Rungs[res.Limit]
 		rep.LimitedBy = r.Rung.Kind.String()
@@ -646,9 +667,11 @@ func (rep *Report) Write(w io.Writer) error {
 	if rep.Failed > 0 {
 		fmt.Fprintf(&b, "%d rung(s) failed; their curves end where they stopped\n", rep.Failed)
 	}
+	rep.writeYourRun(&b)
 	switch {
 	case rep.Verdict == Incomplete:
 		b.WriteString("the audit did not finish: the table holds the rungs completed, and no trusted horizon is read off them\n")
+	case rep.YourRun != nil:
 	case rep.LimitedBy != "":
 		fmt.Fprintf(&b, "trusted until t = %.4g%s, limited by %s (%s)\n", rep.TrustedUntil, u, rep.LimitedBy, rep.LimitingRung)
 	default:
@@ -657,6 +680,10 @@ func (rep *Report) Write(w io.Writer) error {
 	verdict := rep.Verdict.words()
 	switch rep.Verdict {
 	case NotTrusted:
+		if rep.YourRun != nil {
+			fmt.Fprintf(&b, "verdict for your run to t = %.4g%s: %s (it parts from the reference by more than the tolerance at t = %.4g%s)\n", rep.T0+rep.Horizon, u, verdict, rep.TrustedUntil, u)
+			break
+		}
 		fmt.Fprintf(&b, "verdict for t = %.4g%s: %s (the runs part by more than the tolerance at t = %.4g%s)\n", rep.T0+rep.Horizon, u, verdict, rep.TrustedUntil, u)
 	case Incomplete:
 		fmt.Fprintf(&b, "verdict for t = %.4g%s: %s\n", rep.T0+rep.Horizon, u, verdict)

@@ -169,6 +169,7 @@ func TestTrustBadInput(t *testing.T) {
 		{"ladder with one rung", 10, &plumb.TrustSettings{Tol: 1, Ladder: &only}, integrate.ErrLadder},
 		{"periods length", 10, &plumb.TrustSettings{Tol: 1, Periods: []float64{1}}, integrate.ErrDimension},
 		{"negative lambda", 10, &plumb.TrustSettings{Tol: 1, Lambda: -1}, integrate.ErrSettings},
+		{"negative max steps", 10, &plumb.TrustSettings{Tol: 1, MaxSteps: -1}, integrate.ErrSettings},
 	} {
 		rep, err := plumb.Trust(context.Background(), p, c.horizon, c.s)
 		if !errors.Is(err, c.want) || rep != nil {

@@ -123,9 +123,22 @@ type RungResult struct {
 	// failed.
 	Divergence []float64
 	// Horizon is the agreement horizon: the first time the divergence
-	// exceeds the tolerance, located by log-linear interpolation between
-	// grid points. When it never does, Horizon is the last time compared
-	// (t1, or where a failed run stopped) and Departed is false.
+	// exceeds the tolerance. The grid brackets it; it is then located on
+	// the continuous solutions, independent of the grid's spacing: the run
+	// is repeated (the same steps, bit for bit) over the bracket and up to
+	// maxScanIntervals grid intervals before it (back to where the
+	// divergence was below tol/1000), its distance from the reference is
+	// checked at each of its step boundaries there, and the first crossing
+	// is bisected to a relative 1e-9 of the time. The run's side is its own
+	// continuous extension (Solution.At's); the reference's side is the
+	// reference run's continuous extension, or for Ladder.Exact the exact
+	// states at the run's step boundaries (each step divided in eight) joined
+	// by cubic Hermite interpolation with the field's derivatives. A run
+	// that cannot be repeated over the window, or a method without a
+	// continuous extension, keeps the log-linear interpolation between grid
+	// points. When the divergence never exceeds the tolerance, Horizon is
+	// the last time compared (t1, or where a failed run stopped) and
+	// Departed is false.
 	Horizon  float64
 	Departed bool
 	// Delta0 is the a-priori size of the rung's perturbation: the exact
@@ -196,7 +209,9 @@ type AuditResult struct {
 	// Trusted is the earliest agreement horizon over the rungs that
 	// departed (a failed run counts only if it departed before failing),
 	// or T1 if none did. Limit is the index in Rungs of the rung that set
-	// it, -1 if none departed.
+	// it, -1 if none departed. With a KindRun rung (the caller's own run)
+	// Trusted is that rung's horizon (where it departed, or stopped) and
+	// MaxDivergence its largest divergence up to there.
 	Trusted float64
 	Limit   int
 	// MaxDivergence is the largest divergence of any rung on [T0, Trusted].
@@ -246,8 +261,11 @@ const (
 // canceled context ends the audit with the rungs done so far.
 //
 // Cost: one solve per rung plus the reference (and one backward solve for
-// the reversibility check); memory O(grid·(rungs + n)), whatever the number
-// of steps.
+// the reversibility check); then, to locate the horizons (see
+// RungResult.Horizon), each departed rung repeated up to its horizon, the
+// reference repeated up to the latest horizon (or Ladder.Exact asked once
+// more, for times up to it); memory O(grid·(rungs + n)) plus the steps of
+// the runs inside the windows where the horizons are located.
 //
 // References:
 //
@@ -314,9 +332,15 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 	if err := validateRung(refRung, p.T0, t1, true); err != nil {
 		return nil, &RungError{Index: -1, Name: refRung.Name, Err: err}
 	}
+	runs := 0
 	for i, r := range l.Rungs {
 		if err := validateRung(r, p.T0, t1, false); err != nil {
 			return nil, &RungError{Index: i, Name: r.Name, Err: err}
+		}
+		if r.Kind == KindRun {
+			if runs++; runs > 1 {
+				return nil, &RungError{Index: i, Name: r.Name, Err: fmt.Errorf("a second rung of kind run (a ladder audits one run of the caller's): %w", ErrLadder)}
+			}
 		}
 	}
 
@@ -388,6 +412,7 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		panic(fmt.Sprintf("integrate: audit reference has %d samples for %d times", n, len(a.refT)))
 	}
 
+	reruns := make([]*rerun, len(l.Rungs))
 	for i, r := range l.Rungs {
 		if err := ctx.Err(); err != nil {
 			return res, fmt.Errorf("integrate: audit canceled before rung %d: %w", i, err)
@@ -400,6 +425,7 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 			continue
 		}
 		out := a.run(rr, res.Magnitude)
+		reruns[i] = a.lastRun
 		res.Rungs = append(res.Rungs, out)
 		progress(i + 2)
 		if out.Err != nil {
@@ -410,13 +436,33 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 		}
 	}
 
+	// The grid brackets each horizon; the continuous solutions locate it.
+	a.refine(a.subjects(res, reruns, rerun{p: p, r: ref}, l.Exact != nil), rerun{p: p, r: ref}, l.Exact)
+	if err := ctx.Err(); err != nil {
+		return res, fmt.Errorf("integrate: audit canceled while locating the horizons: %w", err)
+	}
 	res.Trusted = t1
+	own := -1
 	for i, r := range res.Rungs {
-		if r.Departed && r.Horizon < res.Trusted {
+		if r.Rung.Kind == KindRun {
+			own = i
+		}
+	}
+	for i, r := range res.Rungs {
+		switch {
+		case own >= 0:
+			// The caller's run: trusted until it departs (or stops).
+			if i == own && (r.Departed || r.Err != nil) {
+				res.Trusted, res.Limit = r.Horizon, i
+			}
+		case r.Departed && r.Horizon < res.Trusted:
 			res.Trusted, res.Limit = r.Horizon, i
 		}
 	}
-	for _, r := range res.Rungs {
+	for i, r := range res.Rungs {
+		if own >= 0 && i != own {
+			continue
+		}
 		for k, d := range r.Divergence {
 			if a.times[r.Start+k] > res.Trusted {
 				break
@@ -521,6 +567,8 @@ type auditor struct {
 	refStats Stats
 	tol      float64
 	ceil     float64
+	// lastRun repeats the last rung run (for the refinement of horizons).
+	lastRun *rerun
 }
 
 func (a *auditor) settings(r resolvedRung, times []float64, drop bool) *Settings {
@@ -630,6 +678,7 @@ func (a *auditor) run(r resolvedRung, mag float64) RungResult {
 		}
 	}
 	out.Start = start
+	a.lastRun = &rerun{p: p, r: r}
 	sol, err := Solve(a.ctx, p, a.t1, r.m, a.settings(r, a.times[start:], true))
 	out.Err = err
 	if sol == nil {

@@ -27,10 +27,14 @@ const (
 	// KindRestart restarts the reference run at a chosen time from its state
 	// rounded as a printout would be (see Places, Digits).
 	KindRestart
+	// KindRun is the caller's own run, the one being audited (see
+	// RunLadder): at most one per ladder. With it, AuditResult.Trusted is
+	// its horizon, and the other rungs say what changing it would buy.
+	KindRun
 )
 
 // String returns the effect in lower case: "reference", "tolerance",
-// "method", "precision" or "restart".
+// "method", "precision", "restart" or "run".
 func (k RungKind) String() string {
 	switch k {
 	case KindReference:
@@ -43,6 +47,8 @@ func (k RungKind) String() string {
 		return "precision"
 	case KindRestart:
 		return "restart"
+	case KindRun:
+		return "run"
 	}
 	return fmt.Sprintf("RungKind(%d)", int(k))
 }
@@ -67,7 +73,8 @@ type Rung struct {
 	// finite and >= 0.
 	Step float64
 	// RelTol and AbsTol are the run's tolerances; zero means the
-	// reference's. A KindTolerance rung must set RelTol > 0.
+	// reference's. A KindTolerance rung must set RelTol > 0 (or, with
+	// Fixed, a Step > 0: its step is the tolerance it varies).
 	RelTol, AbsTol float64
 	// Rounding is the emulated storage of a KindPrecision rung (its run uses
 	// Rounded(method, Rounding)); it must not be NoRounding there.
@@ -102,7 +109,9 @@ type Ladder struct {
 
 // Trajectory returns the states of the audited problem's solution at the
 // given increasing times (one slice of the state's length per time). Errors
-// end the audit.
+// end the audit. Audit calls it first with the comparison times, then once
+// more with the times at which it locates the horizons (inside the span);
+// the second call's error only leaves the horizons as the grid gives them.
 type Trajectory func(ctx context.Context, times []float64) ([][]float64, error)
 
 // Default tolerances of the reference rung.
@@ -175,7 +184,7 @@ func validateRung(r Rung, t0, t1 float64, isRef bool) error {
 	if !isRef && r.Kind == KindReference {
 		return bad("only Ladder.Reference may have kind reference")
 	}
-	if r.Kind < KindReference || r.Kind > KindRestart {
+	if r.Kind < KindReference || r.Kind > KindRun {
 		return bad("unknown kind %d", int(r.Kind))
 	}
 	for _, f := range []struct {
@@ -194,8 +203,8 @@ func validateRung(r Rung, t0, t1 float64, isRef bool) error {
 	}
 	switch r.Kind {
 	case KindTolerance:
-		if r.RelTol == 0 {
-			return bad("a tolerance rung needs RelTol > 0")
+		if r.RelTol == 0 && (r.Fixed == nil || r.Step == 0) {
+			return bad("a tolerance rung needs RelTol > 0 (or, for a fixed-step method, Step > 0)")
 		}
 	case KindPrecision:
 		if r.Rounding.Kind == NoRounding {

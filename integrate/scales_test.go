@@ -8,7 +8,6 @@ import (
 
 	"github.com/stretchr/testify/require"
 
-	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // scalesLadder is a small ladder over Lorenz: two tolerance rungs and a
@@ -90,18 +89,21 @@ func TestAuditObserveOneComponent(t *testing.T) {
 	for i, r := range l.Rungs {
 		run := solve(r)
 		got := res.Rungs[i]
-		horizon, departed := res.Times[len(res.Times)-1], false
+		lo, hi, departed := res.Times[0], res.Times[len(res.Times)-1], false
 		for k, smp := range run.Samples {
 			d := math.Abs(smp.Y[0] - ref.Samples[k].Y[0])
 			require.Equalf(t, d, got.Divergence[k], "rung %s at t=%g: |x - x_ref| (exact identity)", r.Name, res.Times[k])
 			if !departed && d > tol {
 				departed = true
-				tp, dp := res.Times[k-1], math.Abs(run.Samples[k-1].Y[0]-ref.Samples[k-1].Y[0])
-				horizon = tp + (res.Times[k]-tp)*detmath.Log(tol/dp)/detmath.Log(d/dp)
+				lo, hi = res.Times[k-1], res.Times[k]
 			}
 		}
 		require.Truef(t, departed, "rung %s must depart by t=%d for the check to bite", r.Name, t1)
-		require.Equalf(t, horizon, got.Horizon, "rung %s agreement horizon over x alone (exact identity)", r.Name)
+		// The horizon is located inside the bracket on the runs' dense
+		// output (refine.go), so it lies in the grid interval where |dx|
+		// first exceeds the tolerance.
+		require.GreaterOrEqualf(t, got.Horizon, lo, "rung %s agreement horizon over x alone", r.Name)
+		require.LessOrEqualf(t, got.Horizon, hi, "rung %s agreement horizon over x alone", r.Name)
 		differs = differs || got.Horizon != full.Rungs[i].Horizon
 	}
 	// The full-state distance is at least |dx|, so it departs no later;

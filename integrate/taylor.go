@@ -97,9 +97,35 @@ type TaylorResult struct {
 // the choice of Jorba & Zou (2005, Sect. 3.2) that minimises the work per
 // unit time for analytic fields (the step is then about ρ/e², ρ the radius
 // of convergence of the solution's series).
+//
+// An eps that is not in (0, 1) (zero from an underflow, or a NaN) has no
+// order: TaylorOrder returns 0 then, and callers with more digits than a
+// float64 eps can hold (about 307) use TaylorOrderDigits.
 func TaylorOrder(eps float64) int {
+	if !(eps > 0 && eps < 1) {
+		return 0
+	}
 	return int(math.Ceil(-detmath.Log(eps)/2)) + 1
 }
+
+// TaylorOrderDigits is TaylorOrder for eps = 10^-digits, computed from the
+// logarithm so that it holds for any number of digits (10^-digits itself
+// underflows float64 beyond about 323 digits): ceil(digits·ln 10/2) + 1,
+// and 0 for digits < 1.
+func TaylorOrderDigits(digits int) int {
+	if digits < 1 {
+		return 0
+	}
+	return int(math.Ceil(float64(float64(digits)*math.Ln10)/2)) + 1
+}
+
+// MaxTaylorOrder caps the series order of SolveTaylor (the coefficient
+// providers of package plumb take orders up to 1000). Up to 867 digits the
+// Jorba–Zou order is below it; beyond, the order stays at the cap and the
+// step rule, which holds for any order, takes shorter steps: h scales as
+// eps^(1/p), so at 10000 digits a step is about 10^-10 of the radius of
+// convergence instead of e^-2 (slow, but correct).
+const MaxTaylorOrder = 1000
 
 // stepSafety shrinks the step of the Jorba–Zou rule (common practice: it
 // keeps the first neglected term below eps when the last two coefficients
@@ -217,9 +243,16 @@ func SolveTaylor(ctx context.Context, f Series, t0 float64, y0 []float64, times 
 		}
 		prev = t
 	}
+	// Past about 300 digits 10^-Digits is subnormal or zero in float64:
+	// the step rule then works with ln eps alone (see stepSize).
 	eps := detmath.Pow(10, -float64(set.Digits))
-	r := &taylorRun{ctx: ctx, n: n, eps: eps, order: TaylorOrder(eps), times: times, maxSteps: set.MaxSteps, t0: t0,
-		start: set.Start, outTimes: set.OutTimes}
+	order := TaylorOrder(eps)
+	if !(eps > 0x1p-1000) {
+		order = TaylorOrderDigits(set.Digits)
+	}
+	order = min(order, MaxTaylorOrder)
+	r := &taylorRun{ctx: ctx, n: n, eps: eps, logEps: -float64(float64(set.Digits) * math.Ln10), order: order,
+		times: times, maxSteps: set.MaxSteps, t0: t0, start: set.Start, outTimes: set.OutTimes}
 	res := &TaylorResult{Digits: set.Digits, Order: r.order}
 	r.res = res
 	var err error
@@ -238,6 +271,7 @@ type taylorRun struct {
 	ctx      context.Context
 	n        int
 	eps      float64
+	logEps   float64 // ln eps, -Digits·ln 10 (eps itself underflows past ~300 digits)
 	order    int
 	times    []float64
 	maxSteps int
@@ -252,7 +286,13 @@ type taylorRun struct {
 // coefficient) and the state scale; +Inf when both vanish (a polynomial
 // solution).
 func (r *taylorRun) stepSize(lc [2]float64, scale float64) float64 {
-	le := detmath.Log(float64(r.eps * scale))
+	var le float64
+	if es := float64(r.eps * scale); es > 0x1p-1000 {
+		le = detmath.Log(es)
+	} else {
+		// eps·scale is subnormal or zero: sum the logarithms instead.
+		le = r.logEps + detmath.Log(scale)
+	}
 	h := math.Inf(1)
 	for i, j := range []int{r.order - 1, r.order} {
 		if j < 1 || math.IsInf(lc[i], -1) {

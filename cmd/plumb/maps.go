@@ -40,6 +40,9 @@ func refuseFlags(cl *call, sys *plumb.System, why string, names ...string) error
 // flowOnlySolve are plumb solve's flags that only a flow takes.
 var flowOnlySolve = []string{"t0", "t1", "dt", "rtol", "atol", "method", "step", "max-steps", "cross-state", "cross-sense", "rows"}
 
+// flowOnlyTrust are plumb trust's flags that only a flow takes.
+var flowOnlyTrust = []string{"max-steps", "method", "rtol", "atol", "step"}
+
 // mapSolveJSON is the --format json result of plumb solve on a map.
 type mapSolveJSON struct {
 	header
@@ -407,6 +410,9 @@ var mapTrustUnits = mapTrustUnitsJSON{
 
 // runMap audits a map with plumb.TrustMap: --horizon is a number of iterates.
 func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, dist plumb.Distance) error {
+	if err := refuseFlags(cl, sys, "plumb trust iterates it exactly (the integrator flags are for flows)", flowOnlyTrust...); err != nil {
+		return err
+	}
 	horizon, tol := f.horizon, f.tol
 	if !cl.sh.given["horizon"] {
 		horizon = mapTrustHorizon

@@ -50,6 +50,14 @@ horizon it is kept accurate until every run from the start has departed
 from it, then continued in double-double (later restarts start from
 that continuation).
 
+With --method, --rtol, --atol or --step, the audit is of your own run:
+that run (dp54 at Solve's tolerances unless told otherwise) is a rung of
+its own, and the ladder is built around it: its tolerances 100 times
+tighter and looser (half and twice the step for a fixed-step method),
+another method of similar accuracy, its state stored at 40 and 24 bits,
+and a restart. The trusted horizon and the verdict are then your run's,
+with what tightening it buys; in JSON, your_run names its rung.
+
 With no flags it audits the built-in convection loop (lorenz, sigma=10,
 rho=28, beta=8/3) to t=50 at tolerance 1. --format json writes the whole
 report as one object; JSON keys: plumb_version, arch, command, system,
@@ -137,7 +145,15 @@ type trustFlags struct {
 	restartPlaces int
 	exact         bool
 	dist          distanceFlags
+	maxSteps      int
+	// The caller's own run (--method, --rtol, --atol, --step).
+	method     string
+	rtol, atol float64
+	h          float64
 }
+
+// yourRunFlags are the flags that name the caller's own run.
+var yourRunFlags = []string{"method", "rtol", "atol", "step"}
 
 func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
 	f := &trustFlags{}
@@ -149,6 +165,11 @@ func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	finiteVar(fs, &f.restartAt, "restart-at", 0, "time `T` of the restart rung, inside the audited span (default 0.8 of --horizon)")
 	fs.IntVar(&f.restartPlaces, "restart-places", trustRestartPlaces, "the restart rung rounds the state to `K` decimal places")
 	addDistanceFlags(fs, &f.dist)
+	fs.StringVar(&f.method, "method", methods[0].name, "the integration `METHOD` of your own run, which is then audited (see 'plumb help solve'; with --rtol, --atol or --step alone, dp54)")
+	finiteVar(fs, &f.rtol, "rtol", integrate.DefaultRelTol, "relative tolerance `RTOL` of your own run (audited around it)")
+	finiteVar(fs, &f.atol, "atol", integrate.DefaultAbsTol, "absolute tolerance `ATOL` of your own run, in state units")
+	finiteVar(fs, &f.h, "step", 0, "step size `H` of your own run's fixed-step method (-h is help)")
+	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps per run (long horizons need more: the reference takes about 80 per time unit on the demo)")
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -197,6 +218,17 @@ func (f *trustFlags) ladder(cl *call, t0 float64) (integrate.Ladder, []string, e
 	}
 	def := integrate.DefaultLadder(t0, t1)
 	l := integrate.Ladder{Reference: def.Reference}
+	if run, ok, err := f.yourRun(cl); err != nil {
+		return integrate.Ladder{}, nil, err
+	} else if ok {
+		// The SDK validates the run and builds the ladder around it; the
+		// run itself is always compared.
+		if def, err = integrate.RunLadder(t0, t1, run); err != nil {
+			return integrate.Ladder{}, nil, usagef("--%s: %v", strings.Join(givenOf(cl, yourRunFlags), ", --"), err)
+		}
+		l.Reference = def.Reference
+		l.Rungs = append(l.Rungs, def.Rungs[0])
+	}
 	for _, g := range rungGroups {
 		if !seen[g.name] {
 			continue
@@ -212,6 +244,39 @@ func (f *trustFlags) ladder(cl *call, t0 float64) (integrate.Ladder, []string, e
 		}
 	}
 	return l, want, nil
+}
+
+// yourRun is the caller's own run named by --method, --rtol, --atol and
+// --step; ok is false when none of them was given.
+func (f *trustFlags) yourRun(cl *call) (run integrate.Rung, ok bool, err error) {
+	if len(givenOf(cl, yourRunFlags)) == 0 {
+		return run, false, nil
+	}
+	m, im, err := pickMethod(f.method, f.h, cl.sh.given["step"])
+	if err != nil {
+		return run, false, err
+	}
+	if m.fixed {
+		return integrate.Rung{Fixed: m.make, Step: f.h}, true, nil
+	}
+	if cl.sh.given["rtol"] && !(f.rtol > 0) {
+		return run, false, usagef("--rtol %s: must be > 0", formatFloat(f.rtol))
+	}
+	if cl.sh.given["atol"] && !(f.atol > 0) {
+		return run, false, usagef("--atol %s: must be > 0", formatFloat(f.atol))
+	}
+	return integrate.Rung{Method: im, RelTol: f.rtol, AbsTol: f.atol}, true, nil
+}
+
+// givenOf lists the flags of names given on the command line.
+func givenOf(cl *call, names []string) []string {
+	var out []string
+	for _, n := range names {
+		if cl.sh.given[n] {
+			out = append(out, n)
+		}
+	}
+	return out
 }
 
 // trustJSON is the --format json result of plumb trust: the header, the
@@ -254,6 +319,12 @@ type trustSettingsJSON struct {
 	// Scales are the --scale values as given.
 	Observe []string    `json:"observe"`
 	Scales  []scaleJSON `json:"scales"`
+	// Method, RelTol, AbsTol and Step name your own run when it was given
+	// (--method, --rtol, --atol, --step); the report's your_run audits it.
+	Method string  `json:"method,omitempty"`
+	RelTol float64 `json:"rtol,omitempty"`
+	AbsTol float64 `json:"atol,omitempty"`
+	Step   float64 `json:"step,omitempty"`
 }
 
 // trustUnitsJSON says in what units the numbers of a trust result are.
@@ -296,11 +367,19 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		return f.runMap(ctx, cl, sys, dist)
 	}
 	p := sys.Problem()
+	if m, ok := findMethod(f.method); ok && len(givenOf(cl, yourRunFlags)) > 0 {
+		if err := m.fits(sys); err != nil {
+			return err
+		}
+	}
 	ladder, names, err := f.ladder(cl, p.T0)
 	if err != nil {
 		return err
 	}
-	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Periods: sys.Periods(), States: sys.States, Distance: dist}
+	if f.maxSteps < 1 {
+		return usagef("--max-steps %d: must be >= 1", f.maxSteps)
+	}
+	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Periods: sys.Periods(), States: sys.States, Distance: dist, MaxSteps: f.maxSteps}
 	var bar *progressBar
 	if cl.progress {
 		// One unit per audit run, and as many again for the exponent
@@ -364,6 +443,14 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	out.Units.Time = out.System.timeUnit(trustUnits.Time)
 	if rep.TimeUnit == "" {
 		rep.TimeUnit = sys.TimeUnit() // plumb.Trust on a problem knows no unit
+	}
+	if run, ok, _ := f.yourRun(cl); ok {
+		out.Settings.Method = f.method
+		if run.Fixed != nil {
+			out.Settings.Step = run.Step
+		} else {
+			out.Settings.RelTol, out.Settings.AbsTol = f.rtol, f.atol
+		}
 	}
 	out.Status, out.Error = runStatus(err)
 	if rep.Verdict != plumb.Incomplete {
