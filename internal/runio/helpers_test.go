@@ -89,3 +89,5 @@ func npy1D(v []float64) []byte {
 }
 
 func itoa(i int) string { return fmt.Sprint(i) }
+
+func nan() float64 { return math.NaN() }

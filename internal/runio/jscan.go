@@ -121,7 +121,10 @@ func (s *jscan) fields(b []byte) ([]jfield, *jerr) {
 					return e
 				}
 			}
-		case c == '-' || (c >= '0' && c <= '9'):
+		case c != '"' && c != '{' && !s.word("true") && !s.word("false") && !s.word("null"):
+			// A bare value that is not true, false or null must be a
+			// number: NaN, Infinity and the like are refused here rather
+			// than dropped from the columns.
 			var v float64
 			if e := s.number(f.name, &v); e != nil {
 				return e
@@ -182,6 +185,23 @@ func (s *jscan) strEscaped(field string, start int) ([]byte, *jerr) {
 	return s.keybuf, nil
 }
 
+// word reports whether the next bare value is w.
+func (s *jscan) word(w string) bool {
+	s.ws()
+	end := s.i + len(w)
+	if end > len(s.b) || string(s.b[s.i:end]) != w {
+		return false
+	}
+	if end == len(s.b) {
+		return true
+	}
+	switch s.b[end] {
+	case ',', '}', ']', ' ', '\t', '\r', '\n':
+		return true
+	}
+	return false
+}
+
 // token returns the bytes of a bare value (number or word).
 func (s *jscan) token() []byte {
 	s.ws()
@@ -199,10 +219,10 @@ func (s *jscan) token() []byte {
 // number reads a finite number into dst.
 func (s *jscan) number(field string, dst *float64) *jerr {
 	switch s.at() {
-	case '"':
-		return s.here(field, "expected a number, found a string")
-	case '[', '{':
-		return s.here(field, "expected a number")
+	case '"', '[', '{':
+		e := s.here(field, "expected a number")
+		e.kind = ErrNumber
+		return e
 	}
 	tok := s.token()
 	v, err := parseNumber(tok)

@@ -60,7 +60,11 @@ func ReadJSONL(r io.Reader, opt Options) (*Run, error) {
 			// The first line fixes the shape and the columns.
 			first, err := sc.fields(b)
 			if err != nil {
-				return nil, fail(err.field, ErrSyntax, err.detail)
+				kind := err.kind
+				if kind == nil {
+					kind = ErrSyntax
+				}
+				return nil, fail(err.field, kind, err.detail)
 			}
 			all := []string{}
 			hasTime := false
@@ -89,8 +93,13 @@ func ReadJSONL(r io.Reader, opt Options) (*Run, error) {
 					return nil, fail("y", ErrOptions, fmt.Sprintf("%d names for %d entries", len(all), arrLen))
 				}
 			}
-			lay, err2 := plan(file, all, &opt, -1)
+			popt := opt
+			popt.Time = "" // the time is a field of its own, outside all
+			lay, err2 := plan(file, all, &popt, -1)
 			if err2 != nil {
+				if e, ok := err2.(*Error); ok {
+					e.Line = line
+				}
 				return nil, err2
 			}
 			run, err2 = newRun(file, tname, lay.names, &opt)

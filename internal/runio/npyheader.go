@@ -3,7 +3,6 @@ package runio
 import (
 	"bufio"
 	"encoding/binary"
-	"errors"
 	"fmt"
 	"io"
 	"strconv"
@@ -71,11 +70,10 @@ func readNPYHeader(r *bufio.Reader, file string) (*npyHeader, error) {
 	}
 	h.dataFrom += int64(hlen)
 	if err := h.parse(string(text)); err != nil {
-		kind := ErrSyntax
-		if errors.Is(err, ErrUnsupported) {
-			kind = ErrUnsupported
+		if u, ok := err.(unsupported); ok {
+			return nil, bad(h.dataFrom-int64(hlen), ErrUnsupported, "%s", string(u))
 		}
-		return nil, bad(h.dataFrom-int64(hlen), kind, "header %s: %v", found(text), err)
+		return nil, bad(h.dataFrom-int64(hlen), ErrSyntax, "header %s: %v", found(text), err)
 	}
 	return h, nil
 }
@@ -146,7 +144,7 @@ func (h *npyHeader) parse(s string) error {
 	case ">f8", ">f4":
 		h.order = binary.BigEndian
 	default:
-		return fmt.Errorf("%w: dtype %q (read: '<f8', '>f8', '<f4', '>f4', that is float64 or float32 with a stated byte order)", ErrUnsupported, descr)
+		return unsupported(fmt.Sprintf("dtype %q (read: '<f8', '>f8', '<f4', '>f4', that is float64 or float32 with a stated byte order)", descr))
 	}
 	h.size = 8
 	if descr[2] == '4' {
@@ -155,7 +153,12 @@ func (h *npyHeader) parse(s string) error {
 	return nil
 }
 
-var errStructured = fmt.Errorf("%w: a structured dtype (a list of fields); save a plain 2-D float array", ErrUnsupported)
+// unsupported is a header that is valid but asks for what is not read.
+type unsupported string
+
+func (u unsupported) Error() string { return string(u) }
+
+const errStructured = unsupported("a structured dtype (a list of fields); save a plain 2-D float array")
 
 // pyLit is a tiny reader of the Python literals a .npy header uses.
 type pyLit struct {
