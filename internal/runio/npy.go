@@ -61,6 +61,9 @@ func ReadNPY(r io.Reader, opt Options) (*Run, error) {
 	if k > maxColumns {
 		return nil, &Error{File: file, Err: ErrUnsupported, Detail: fmt.Sprintf("%d columns (at most %d read)", k, maxColumns)}
 	}
+	if k > 0 && n > (1<<60)/(k*h.size) {
+		return nil, &Error{File: file, Err: ErrUnsupported, Detail: fmt.Sprintf("shape %v is too large", h.shape)}
+	}
 	names := opt.Names
 	if names == nil {
 		names = make([]string, k)

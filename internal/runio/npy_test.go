@@ -129,3 +129,18 @@ func TestReadNPYErrors(t *testing.T) {
 		})
 	}
 }
+
+// A header announcing an absurd shape must not make the reader allocate
+// for it, from a stream or from a file.
+func TestReadNPYHugeShape(t *testing.T) {
+	b := makeNPY(npySpec{major: 1, descr: "<f8", shape: "(1125899906842624, 65536)"})
+	_, err := ReadNPY(bytes.NewReader(b), Options{})
+	require.ErrorIs(t, err, ErrUnsupported)
+	b = makeNPY(npySpec{major: 1, descr: "<f8", shape: "(1000000000000, 2)", rows: npyRows[:1]})
+	_, err = ReadNPY(bytes.NewReader(b), Options{})
+	require.ErrorIs(t, err, ErrTruncated)
+	p := filepath.Join(t.TempDir(), "huge.npy")
+	require.NoError(t, os.WriteFile(p, b, 0o600))
+	_, err = Open(p, Options{})
+	require.ErrorIs(t, err, ErrTruncated)
+}
