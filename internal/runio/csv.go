@@ -104,8 +104,10 @@ func ReadCSV(r io.Reader, opt Options) (*Run, error) {
 				Detail: fmt.Sprintf("%v after %v", t, prev)}
 		}
 		prev = t
-		run.T = append(run.T, t)
-		run.Y = append(run.Y, row...)
+		run.T = grow(run.T, 1, 0) // doubling: less copying than append's 1.25x
+		run.T[len(run.T)-1] = t
+		run.Y = grow(run.Y, len(run.Names), 0)
+		copy(run.Y[len(run.Y)-len(run.Names):], row)
 	}
 	if len(run.T) == 0 {
 		return nil, &Error{File: file, Line: headLine, Err: ErrEmpty, Detail: "a header and no rows"}

@@ -180,8 +180,10 @@ func ReadJSONL(r io.Reader, opt Options) (*Run, error) {
 			return run, fail(tname, ErrTimeOrder, fmt.Sprintf("%v after %v", t, prev))
 		}
 		prev = t
-		run.T = append(run.T, t)
-		run.Y = append(run.Y, row[1:]...)
+		run.T = grow(run.T, 1, 0) // doubling: less copying than append's 1.25x
+		run.T[len(run.T)-1] = t
+		run.Y = grow(run.Y, len(run.Names), 0)
+		copy(run.Y[len(run.Y)-len(run.Names):], row[1:])
 	}
 	if run == nil || len(run.T) == 0 {
 		return nil, &Error{File: file, Err: ErrEmpty, Detail: "no JSON lines"}
