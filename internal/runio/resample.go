@@ -190,7 +190,7 @@ func (c *Common) grid(first *Run, g Grid) ([]float64, error) {
 		n := int((c.T1 - c.T0) / g.Step)
 		ts := make([]float64, 0, n+2)
 		for i := 0; ; i++ {
-			t := c.T0 + float64(i)*g.Step
+			t := c.T0 + float64(float64(i)*g.Step)
 			if t >= c.T1 {
 				break
 			}
@@ -244,7 +244,7 @@ func unwrap(ys []float64, p float64) {
 	for k := 1; k < len(ys); k++ {
 		v := ys[k] + off
 		if jump := math.Round((v - ys[k-1]) / p); jump != 0 {
-			off -= jump * p
+			off -= float64(jump * p)
 			v = ys[k] + off
 		}
 		ys[k] = v
