@@ -1,6 +1,7 @@
 package runio
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 )
@@ -34,6 +35,7 @@ func ReadCSV(r io.Reader, opt Options) (*Run, error) {
 		}
 	}
 	headLine := in.n
+	head = bytes.TrimPrefix(head, []byte("\xef\xbb\xbf")) // a UTF-8 byte-order mark, as spreadsheets write
 	var all []string
 	for j, cell := range splitCells(head) {
 		name, ok := unquote(trimSpace(cell))

@@ -26,6 +26,8 @@ func TestReadCSV(t *testing.T) {
 		{name: "time by name, columns chosen, others unparsed", in: "label,x,t,y\nabc,1,0,2\nxyz,3,1,4\n",
 			opt:   Options{Time: "t", Columns: []string{"y", "x"}},
 			tname: "t", names: []string{"y", "x"}, T: []float64{0, 1}, Y: []float64{2, 1, 4, 3}},
+		{name: "byte-order mark", in: "\xef\xbb\xbft,x\n0,1\n",
+			tname: "t", names: []string{"x"}, T: []float64{0}, Y: []float64{1}},
 		{name: "quoted header with a comma", in: "t,\"a,b\"\n0,1\n",
 			tname: "t", names: []string{"a,b"}, T: []float64{0}, Y: []float64{1}},
 	}

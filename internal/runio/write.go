@@ -36,7 +36,7 @@ func WriteCSV(w io.Writer, r *Run) error {
 }
 
 func csvName(s string) string {
-	if strings.ContainsAny(s, ",\"\r\n") || strings.TrimSpace(s) != s {
+	if strings.ContainsAny(s, ",\"\r\n") || strings.TrimSpace(s) != s || strings.HasPrefix(s, "\ufeff") {
 		return `"` + strings.ReplaceAll(s, `"`, `""`) + `"`
 	}
 	return s
