@@ -630,6 +630,9 @@ func (rep *Report) Write(w io.Writer) error {
 	case rep.Exponent != nil:
 		fmt.Fprintf(&b, "largest Lyapunov exponent: %.4g ± %.2g", rep.Exponent.Value, rep.Exponent.StdErr)
 		switch {
+		case rep.Growth == "undetermined":
+			// Too few comparison points to fit any law: nothing is said
+			// either way about chaos.
 		case rep.Growth != "exponential":
 			// A small positive finite-time estimate of a regular flow
 			// (it decays like ln(T)/T) is no sign of chaos.
@@ -649,7 +652,13 @@ func (rep *Report) Write(w io.Writer) error {
 	case "bounded":
 		b.WriteString("divergence stays bounded\n")
 	default:
-		b.WriteString("divergence growth undetermined (too few points)\n")
+		if len(rep.Times) > 1 {
+			// On a long horizon the grid (horizon/1000) can be coarser
+			// than the growth: the runs part between a few points.
+			fmt.Fprintf(&b, "divergence growth undetermined (too few comparison points before the runs part: the grid is every %.3g%s; a shorter --horizon resolves it)\n", rep.Times[1]-rep.Times[0], u)
+		} else {
+			b.WriteString("divergence growth undetermined (too few points)\n")
+		}
 	}
 	if rep.PredictedHorizon > 0 {
 		fmt.Fprintf(&b, "predicted horizon ln(tol/delta0)/lambda%s: %.4g%s\n", rep.Distance.deltaNote(), rep.PredictedHorizon, u)

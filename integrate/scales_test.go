@@ -7,7 +7,6 @@ import (
 	"testing"
 
 	"github.com/stretchr/testify/require"
-
 )
 
 // scalesLadder is a small ladder over Lorenz: two tolerance rungs and a
