@@ -40,7 +40,7 @@ case_ fifo-int INT 0.5 solve --file "$tmp/waits.json" --quiet
 case_ fifo-term TERM 0.5 solve --file "$tmp/waits.json" --quiet
 case_ models-fifo-int INT 0.5 models --file "$tmp/waits.json" --quiet
 case_ solve-int INT 1 solve --t1 1e7 --dt 1 --max-steps 2000000000 --format json --quiet
-case_ trust-term TERM 1 trust --horizon 1e6 --format json --quiet
+case_ trust-term TERM 1 trust --horizon 5000 --max-steps 10000000 --format json --quiet
 case_ map-trust-int INT 1 trust --model logistic --horizon 1e7 --format json --quiet
 
 # A canceled run writes what it completed: one whole JSON object whose
