@@ -106,24 +106,22 @@ func sharedPowTable(a float64) *powTable {
 	return t
 }
 
-// pow returns x^(-a) for a normal x in [2^ptKMin, 2^(ptKMax+1)).
+// pow returns x^(-a) for a normal x in [2^ptKMin, 2^(ptKMax+1)), by pow2
+// (off the per-step path: set-up and steps with err < 1e-4).
 func (t *powTable) pow(x float64) float64 {
-	b := math.Float64bits(x)
-	k := int(b>>52&0x7ff) - 1023 - ptKMin
-	j := int(b>>(52-5)) & (ptJ - 1)
-	m := math.Float64frombits(b&(1<<52-1) | 1023<<52) // in [1, 2)
-	r := float64(m*t.inv[j]) - 1
-	q := 1 + float64(r*(float64(t.c2*r)-t.a))
-	return float64(float64(t.k[k]*t.p[j]) * q)
+	p, _ := t.pow2(t, x)
+	return p
 }
 
 // pow2 returns x^(-t.a) and x^(-u.a) for the same x, sharing the range
-// reduction (both tables have the same layout and mantissa centres).
+// reduction (both tables have the same layout and mantissa centres), for a
+// normal x in [2^ptKMin, 2^(ptKMax+1)). It is the one evaluation of the
+// tables; the adaptive step calls it on every step with an error in range.
 func (t *powTable) pow2(u *powTable, x float64) (float64, float64) {
 	b := math.Float64bits(x)
 	k := int(b>>52&0x7ff) - 1023 - ptKMin
 	j := int(b>>(52-5)) & (ptJ - 1)
-	m := math.Float64frombits(b&(1<<52-1) | 1023<<52)
+	m := math.Float64frombits(b&(1<<52-1) | 1023<<52) // in [1, 2)
 	r := float64(m*t.inv[j]) - 1
 	q := 1 + float64(r*(float64(t.c2*r)-t.a))
 	qu := 1 + float64(r*(float64(u.c2*r)-u.a))

@@ -48,18 +48,10 @@ func (st *Stepper) nextAdaptive() bool {
 			finite = e2 <= math.MaxFloat64 // false for NaN and +Inf
 			accepted = e2 <= 1
 			if e2 >= 1e-8 && e2 < 0x1p65 {
-				// powTable.pow2, written out: this is the critical path.
 				x = e2
-				ta, tb := st.tA, st.tB
-				b := math.Float64bits(x)
-				k := int(b>>52&0x7ff) - 1023 - ptKMin
-				j := int(b>>(52-5)) & (ptJ - 1)
-				m := math.Float64frombits(b&(1<<52-1) | 1023<<52)
-				r := float64(m*ta.inv[j]) - 1
-				q := 1 + float64(r*(float64(ta.c2*r)-ta.a))
-				qb := 1 + float64(r*(float64(tb.c2*r)-tb.a))
-				pA = float64(float64(ta.k[k]*ta.p[j]) * q)
-				sBNext = float64(c.safety * float64(float64(tb.k[k]*tb.p[j])*qb))
+				var pB float64
+				pA, pB = st.tA.pow2(st.tB, x)
+				sBNext = float64(c.safety * pB)
 			} else if finite {
 				x = max(e2, errSqFloor)
 				pA, sBNext = st.errPow(x, 0)
