@@ -1,12 +1,112 @@
 package plumb
 
 import (
+	"fmt"
 	"math"
 
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/plumbdyn/plumb/internal/dd"
+	"github.com/plumbdyn/plumb/internal/expr"
 )
+
+// MapSystem is a map x -> f(x), built in or from a system file, with its
+// exact Jacobian. It satisfies the lyap.Map interface. Components with a
+// period (an angle) are reduced to [0, period) after every iterate. Not safe
+// for concurrent use. A zero MapSystem (not made by System.Map) has
+// dimension 0, and its Next and Jacobian do nothing.
+type MapSystem struct {
+	n    int
+	next *expr.Float64 // formulas, or nil for a built-in's Go map
+	jac  *expr.Float64
+	buf  []float64
+	jbuf []float64
+	// jacAt places the entries jac computes (see formulaSystem.jacAt);
+	// unused with goJac, whose dense n×n Jacobian jbuf holds.
+	jacAt []int
+	// goNext and goJac are a built-in's hand-written map and Jacobian.
+	goNext  func(t float64, x, dst []float64)
+	goJac   func(t float64, x []float64, dst *mat.Dense)
+	jm      *mat.Dense // n×n scratch of goJac
+	periods []float64
+}
+
+// Dim returns the dimension of the state (0 for a nil or zero MapSystem).
+func (m *MapSystem) Dim() int {
+	if m == nil {
+		return 0
+	}
+	return m.n
+}
+
+// zero reports a nil MapSystem or one not made by System.Map, whose Next
+// and Jacobian do nothing.
+func (m *MapSystem) zero() bool { return m == nil || (m.goNext == nil && m.next == nil) }
+
+// Next writes f(x) into dst. Both should have length Dim: Next reads the
+// first Dim components of x (missing ones keep the previous call's values)
+// and writes at most len(dst) components. It does not allocate.
+func (m *MapSystem) Next(x, dst []float64) {
+	if m.zero() {
+		return
+	}
+	if m.goNext != nil {
+		m.goNext(0, x, m.buf)
+	} else {
+		copy(m.next.Vars()[1:1+m.n], x)
+		m.next.Run(m.buf)
+	}
+	wrapPeriodic(m.buf, m.periods)
+	copy(dst, m.buf)
+}
+
+// Jacobian writes df/dx at x into dst, which should be Dim×Dim (a matrix of
+// another size gets the overlapping block). It does not allocate.
+func (m *MapSystem) Jacobian(x []float64, dst *mat.Dense) {
+	if m.zero() || dst == nil {
+		return
+	}
+	if m.goJac != nil {
+		m.goJac(0, x, m.jm)
+		copy(m.jbuf, m.jm.RawMatrix().Data)
+	} else {
+		copy(m.jac.Vars()[1:1+m.n], x)
+		m.jac.Run(m.jbuf)
+	}
+	r, c := dst.Dims()
+	if m.goJac == nil {
+		setSparse(dst, m.n, m.jacAt, m.jbuf)
+		return
+	}
+	for i := 0; i < min(m.n, r); i++ {
+		for j := 0; j < min(m.n, c); j++ {
+			dst.Set(i, j, m.jbuf[i*m.n+j])
+		}
+	}
+}
+
+// Map returns the map of a system of kind map at the current parameters, or
+// an error wrapping ErrKind for flows and Hamiltonians.
+func (s *System) Map() (*MapSystem, error) {
+	if s == nil {
+		return nil, s.check("Map")
+	}
+	if s.kind != KindMap {
+		return nil, fmt.Errorf("plumb: %s is a %s, not a map: %w", s.Name, s.kind, ErrKind)
+	}
+	if err := s.check("Map"); err != nil {
+		return nil, err
+	}
+	if s.flow != nil {
+		return s.builtinMap(), nil
+	}
+	f := s.form
+	m := &MapSystem{n: f.n, next: f.fieldProg.NewFloat64(), jac: f.jacProg.NewFloat64(),
+		buf: make([]float64, f.n), jbuf: make([]float64, len(f.jacAt)), jacAt: f.jacAt, periods: s.Periods()}
+	f.setParams(m.next.Vars(), s.params)
+	f.setParams(m.jac.Vars(), s.params)
+	return m, nil
+}
 
 // builtinMap returns the hand-written map and Jacobian of a built-in map at
 // the current parameters (copied now).
