@@ -201,29 +201,6 @@ func stateNames(field string, names []string, n int) ([]string, error) {
 	return names, nil
 }
 
-// absWeight converts a size given per component in the state's units (an
-// absolute tolerance, a rounding to decimal places) into the audit's
-// distance: the root-mean-square of 1/scale over the observed components,
-// 1 when scales is nil.
-func absWeight(scales []float64) float64 {
-	if scales == nil {
-		return 1
-	}
-	var s float64
-	k := 0
-	for _, v := range scales {
-		if v > 0 {
-			w := 1 / v
-			s += float64(w * w)
-			k++
-		}
-	}
-	if k == 0 {
-		return 1
-	}
-	return math.Sqrt(s / float64(k))
-}
-
 // minScale is the smallest scale of an observed component, 1 when scales
 // is nil.
 func minScale(scales []float64) float64 {

@@ -332,7 +332,7 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 			r.Delta0 = roundingUnit(run.r.Restart, rep.Magnitude)
 			if run.r.Restart.Kind == integrate.DecimalPlaces {
 				// An absolute rounding per component, in the audit's distance.
-				r.Delta0 *= absWeight(scales)
+				r.Delta0 *= integrate.AbsWeight(scales)
 			}
 		case run.store.Kind != integrate.NoRounding:
 			r.Delta0 = roundingUnit(run.store, rep.Magnitude)

@@ -139,11 +139,11 @@ func (a *auditor) run(r resolvedRung, mag float64) RungResult {
 		p.Y0 = r.Rounding.Vec(nil, p.Y0)
 		out.Delta0 = r.Rounding.unit(mag)
 		if r.Rounding.Kind == DecimalPlaces {
-			out.Delta0 *= absWeight(a.scales) // absolute per component
+			out.Delta0 *= AbsWeight(a.scales) // absolute per component
 		}
 	default:
 		if r.Fixed == nil {
-			out.Delta0 = float64(r.RelTol*mag) + float64(r.AbsTol*absWeight(a.scales))
+			out.Delta0 = float64(r.RelTol*mag) + float64(r.AbsTol*AbsWeight(a.scales))
 		}
 	}
 	out.Start = start

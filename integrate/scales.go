@@ -27,11 +27,11 @@ func checkScales(scales []float64, n int) error {
 	return nil
 }
 
-// absWeight converts an absolute size given per component in the state's
+// AbsWeight converts an absolute size given per component in the state's
 // units (an absolute tolerance, a rounding to decimal places) into the
 // audit's distance: the root-mean-square of 1/scale over the observed
 // components, 1 when scales is nil.
-func absWeight(scales []float64) float64 {
+func AbsWeight(scales []float64) float64 {
 	if scales == nil {
 		return 1
 	}
