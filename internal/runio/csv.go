@@ -20,19 +20,12 @@ import (
 func ReadCSV(r io.Reader, opt Options) (*Run, error) {
 	file := opt.source()
 	in := newLines(r)
-	var head []byte
-	for {
-		b, err := in.next()
-		if err == io.EOF {
-			return nil, &Error{File: file, Err: ErrEmpty, Detail: "no header line"}
-		}
-		if err != nil {
-			return nil, fmt.Errorf("runio: %s: %w", file, err)
-		}
-		if !blank(b) {
-			head = b
-			break
-		}
+	head, err := in.nextData(file)
+	if err == io.EOF {
+		return nil, &Error{File: file, Err: ErrEmpty, Detail: "no header line"}
+	}
+	if err != nil {
+		return nil, err
 	}
 	headLine := in.n
 	head = bytes.TrimPrefix(head, []byte("\xef\xbb\xbf")) // a UTF-8 byte-order mark, as spreadsheets write
@@ -62,15 +55,12 @@ func ReadCSV(r io.Reader, opt Options) (*Run, error) {
 	row := make([]float64, dim)
 	var t, prev float64
 	for {
-		b, err := in.next()
+		b, err := in.nextData(file)
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			return run, fmt.Errorf("runio: %s:%d: %w", file, in.n+1, err)
-		}
-		if blank(b) {
-			continue
+			return run, err
 		}
 		j := 0
 		for start := 0; ; j++ {

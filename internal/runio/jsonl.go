@@ -42,15 +42,12 @@ func ReadJSONL(r io.Reader, opt Options) (*Run, error) {
 		prev    float64
 	)
 	for {
-		b, err := in.next()
+		b, err := in.nextData(file)
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			return run, fmt.Errorf("runio: %s:%d: %w", file, in.n+1, err)
-		}
-		if blank(b) {
-			continue
+			return run, err
 		}
 		line := in.n
 		fail := func(field string, kind error, detail string) error {

@@ -3,6 +3,7 @@ package runio
 import (
 	"bufio"
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"strconv"
@@ -46,6 +47,23 @@ func (l *lines) next() ([]byte, error) {
 		b = b[:n-1]
 	}
 	return b, nil
+}
+
+// nextData returns the next line that is not blank, or io.EOF; a read
+// error names file and the line being read.
+func (l *lines) nextData(file string) ([]byte, error) {
+	for {
+		b, err := l.next()
+		if err == io.EOF {
+			return nil, err
+		}
+		if err != nil {
+			return nil, fmt.Errorf("runio: %s:%d: %w", file, l.n+1, err)
+		}
+		if !blank(b) {
+			return b, nil
+		}
+	}
 }
 
 // blank reports whether a line holds only spaces and tabs.
