@@ -77,6 +77,9 @@ type Report struct {
 	Exact *ExactReference `json:"exact_reference,omitempty"`
 	// Reversal is the reversibility check, nil if skipped.
 	Reversal *ReversalReport `json:"reversal,omitempty"`
+	// reach is the reference run's largest distance from its mean
+	// (integrate.AuditResult.Reach).
+	reach float64
 
 	// Caution is the standing caution (see the Caution constant).
 	Caution string `json:"caution"`

@@ -189,6 +189,7 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 func (rep *Report) fill(res *integrate.AuditResult) {
 	rep.TolAbs = res.Tol
 	rep.Spread = res.Spread
+	rep.reach = res.Reach
 	rep.Times = res.Times
 	rep.Reference = rungReport(res.Reference)
 	rep.Reference.Effect = TightestID

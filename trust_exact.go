@@ -48,6 +48,13 @@ const refTolFraction = 1e-3
 // full-span reference gives (every departure was judged against a
 // reference within refTolFraction·Tol of the solution); otherwise the
 // full-span reference is made. ExactReference.AccurateUntil says which.
+// When no run of that plain audit departs or fails and the tolerance
+// exceeds twice the tightest run's reach (the largest distance of its
+// sampled states from their mean, integrate.AuditResult.Reach), no two
+// states where the runs went are a tolerance apart and the reference would
+// decide nothing: the plain audit stands, with ExactReference.SetAside
+// saying why (an audit to t = 900 at Tol 1000 on Lorenz would otherwise make
+// a 357-digit big.Float reference over the whole span, minutes of work).
 // A restart rung after AccurateUntil restarts from the continuation's state,
 // a point of a trajectory of the model that follows the solution through
 // it over the span judged, not from the solution from the start (which no
@@ -201,6 +208,20 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		if err != nil && ctx.Err() != nil {
 			return first, err
 		}
+		if err == nil && beyondReach(first) {
+			// No run parted from the tightest by Tol, and Tol exceeds
+			// the widest separation of the tightest run's own states:
+			// the multiprecision reference would decide nothing, and
+			// over a long span it costs minutes.
+			first.Exact = &ExactReference{
+				Method: "Taylor (Jorba–Zou order and step)", Lambda: s.Lambda, Digits: digits,
+				SetAside: fmt.Sprintf("the tolerance %.4g exceeds %.4g, twice the largest distance of the tightest run's sampled states from their mean: runs that stay where it went cannot part by the tolerance, so the %s-digit reference was not made", first.TolAbs, 2*first.reach, digitWord(digits)),
+			}
+			if est != nil && first.Exponent != nil {
+				first.Exponent.Source, first.Exponent.StdErr = est.Source, est.StdErr
+			}
+			return first, nil
+		}
 		if last, ok := lastDeparture(first); err == nil && ok {
 			until := problem.T0 + float64(spanMargin*(last-problem.T0)) + spanLyapunovTimes/s.Lambda
 			if d, derr := ReferenceDigits(s.Lambda, until-problem.T0, refTol, scale); derr == nil && until < end && d < digits {
@@ -230,6 +251,31 @@ const (
 	spanMargin        = 1.5
 	spanLyapunovTimes = 3
 )
+
+// beyondReach reports whether no run of the plain audit rep failed or
+// departed and its tolerance exceeds twice the tightest run's reach (the
+// largest distance of its samples from their mean): two states of that
+// run are never a tolerance apart.
+func beyondReach(rep *Report) bool {
+	if rep == nil || rep.Failed > 0 || rep.Reference.Error != "" || !(rep.TolAbs > 2*rep.reach) {
+		return false
+	}
+	for _, r := range rep.Rungs {
+		if r.Departed || r.Error != "" {
+			return false
+		}
+	}
+	return true
+}
+
+// digitWord is n as digits, or "more than MaxReferenceDigits" when n is
+// past the supported range.
+func digitWord(n int) string {
+	if n > MaxReferenceDigits {
+		return fmt.Sprintf("more than %d", MaxReferenceDigits)
+	}
+	return fmt.Sprint(n)
+}
 
 // lastDeparture returns the latest agreement horizon of the report's rungs
 // that start at t0 (restart rungs are judged apart, see spanCovers), and

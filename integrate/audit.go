@@ -161,7 +161,7 @@ func Audit(ctx context.Context, p Problem, t1 float64, l Ladder, s *AuditSetting
 			return res, &RungError{Index: -1, Name: ref.Name, Err: err}
 		}
 	}
-	res.Spread, res.Magnitude = a.spread()
+	res.Spread, res.Magnitude, res.Reach = a.spread()
 	res.Tol = s.Tol
 	if s.Relative {
 		res.Tol = s.Tol * res.Spread

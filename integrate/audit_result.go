@@ -74,6 +74,9 @@ type AuditResult struct {
 	// reference samples. Both are in the audit's distance (observed
 	// components divided by their scales, AuditSettings.Scales).
 	Spread, Magnitude float64
+	// Reach is the largest distance of a reference sample from that mean,
+	// in the same distance: no two samples are farther apart than 2·Reach.
+	Reach float64
 	// Tol is the absolute divergence tolerance used (Tol·Spread with
 	// Relative).
 	Tol float64

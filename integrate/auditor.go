@@ -71,11 +71,14 @@ func (a *auditor) dist(x, y []float64) float64 {
 
 // spread returns the root-mean-square distance of the reference samples from
 // their mean (circular mean for periodic components) and their
-// root-mean-square norm, in the audit's distance (observed components,
-// divided by their scales).
-func (a *auditor) spread() (spread, mag float64) {
+// root-mean-square norm, and the largest distance of one sample from that
+// mean, in the audit's distance (observed components, divided by their
+// scales).
+func (a *auditor) spread() (spread, mag, reach float64) {
 	smp := a.refY
 	m := float64(len(smp))
+	// far[k] is the squared distance of sample k from the mean.
+	far := make([]float64, len(smp))
 	for i := 0; i < a.n; i++ {
 		P, sc := 0.0, 1.0
 		if a.periods != nil {
@@ -104,16 +107,20 @@ func (a *auditor) spread() (spread, mag float64) {
 		} else {
 			mean /= m
 		}
-		for _, v := range smp {
+		for k, v := range smp {
 			d := v[i] - mean
 			if P > 0 {
 				d = math.Remainder(d, P)
 			}
 			d /= sc
 			spread += float64(d * d)
+			far[k] += float64(d * d)
 		}
 	}
-	return math.Sqrt(spread / m), math.Sqrt(mag / m)
+	for _, f := range far {
+		reach = math.Max(reach, f)
+	}
+	return math.Sqrt(spread / m), math.Sqrt(mag / m), math.Sqrt(reach)
 }
 
 // run solves one rung and compares it with the reference.
