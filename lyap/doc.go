@@ -20,6 +20,11 @@
 //	FiniteTime, MapFiniteTime finite-time exponents over windows of length tau
 //	Covariant, MapCovariant   covariant Lyapunov vectors and their angles
 //	KaplanYorke, Entropy, LyapunovTime, Horizon   measures derived from exponents
+//	Spectrum.KaplanYorke, .Entropy, .LyapunovTime, .BeyondNoise
+//	                          the same read from an estimate: whether a
+//	                          partial spectrum gives only a lower bound
+//	                          (Bound), and whether lambda_max stands clear
+//	                          of its noise (NoiseFactor)
 //
 // Flows are integrate.Problem values (the Jacobian Problem.Jac is used when
 // given, central differences otherwise); maps satisfy the small Map interface

@@ -311,7 +311,7 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 		header: newHeader("spectrum"), System: describe(sys),
 		Settings:       mapSpectrumSettingsJSON{Exponents: k, Iterations: f.iterations, Discard: f.discard, Blocks: lyap.DefaultBlocks},
 		Units:          mapSpectrumUnits,
-		spectrumResult: newSpectrumResult(sys, k, sp, err),
+		spectrumResult: newSpectrumResult(sp, err),
 		Run: mapSpectrumRunJSON{Jacobian: sp.Jacobian, Start: int(sp.Start), Iterations: int(sp.Duration),
 			Blocks: sp.Blocks, BlockLength: sp.BlockLength, MeanInterval: sp.MeanInterval},
 		Stats: sp.Stats, History: sp.History,

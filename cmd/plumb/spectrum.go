@@ -7,7 +7,6 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"math"
 	"strconv"
 	"text/tabwriter"
 
@@ -64,11 +63,6 @@ const (
 	spectrumT1        = 1100
 	spectrumTransient = 100
 )
-
-// noiseFactor: an exponent more than this many standard errors above zero
-// (about 95% one-sided for batch means of 32 blocks), and this many times
-// ln(D)/D, counts as positive (common practice).
-const noiseFactor = 2
 
 // spectrumFlags are the flags of plumb spectrum beyond the shared ones.
 type spectrumFlags struct {
@@ -143,12 +137,10 @@ type spectrumResult struct {
 	// is largest first only up to fluctuations); null unless it is
 	// positive.
 	LyapunovTime *float64 `json:"lyapunov_time"`
-	// BeyondNoise reports that the largest exponent stands clear of zero:
-	// more than noiseFactor standard errors, and more than noiseFactor·
-	// ln(D)/D after averaging D time units (about what a merely
-	// polynomial growth, such as the shear of a regular orbit, leaves in
-	// a finite-time exponent). Without it a positive estimate is no sign
-	// of chaos.
+	// BeyondNoise reports that the largest exponent stands clear of zero
+	// (lyap.Spectrum.BeyondNoise): more than lyap.NoiseFactor standard
+	// errors, and more than lyap.NoiseFactor·ln(D)/D after averaging D
+	// time units. Without it a positive estimate is no sign of chaos.
 	BeyondNoise bool `json:"beyond_noise"`
 	// Checks are the sanity residuals that apply.
 	Checks []checkJSON `json:"checks"`
@@ -318,7 +310,7 @@ func (f *spectrumFlags) json(sys *plumb.System, m method, k int, sp *lyap.Spectr
 			Method: m.name, MethodName: sp.Method, Step: f.h, Blocks: lyap.DefaultBlocks,
 		},
 		Units:          spectrumUnits,
-		spectrumResult: newSpectrumResult(sys, k, sp, runErr),
+		spectrumResult: newSpectrumResult(sp, runErr),
 		Run: spectrumRunJSON{
 			Method: sp.Method, Jacobian: sp.Jacobian, Start: sp.Start, Duration: sp.Duration,
 			Blocks: sp.Blocks, BlockLength: sp.BlockLength, MeanInterval: sp.MeanInterval,
@@ -336,62 +328,26 @@ func (f *spectrumFlags) json(sys *plumb.System, m method, k int, sp *lyap.Spectr
 	return out
 }
 
-// newSpectrumResult reads an estimate sp of k exponents of sys, flow or
-// map; runErr is the error of the run, if any.
-func newSpectrumResult(sys *plumb.System, k int, sp *lyap.Spectrum, runErr error) spectrumResult {
+// newSpectrumResult reads an estimate sp, flow or map; runErr is the error
+// of the run, if any. The judgements (bounds, Lyapunov time, beyond noise)
+// are lyap.Spectrum's.
+func newSpectrumResult(sp *lyap.Spectrum, runErr error) spectrumResult {
 	out := spectrumResult{Exponents: sp.Exponents, StdErr: sp.StdErr, Checks: []checkJSON{}}
 	out.Status, out.Error = runStatus(runErr)
-	e := sp.Exponents
-	if allFinite(e) && len(e) > 0 {
-		ky := lyap.KaplanYorke(e)
-		out.KaplanYorke = &ky
-		out.KaplanYorkeBound = "exact"
-		if k < len(sys.States) && ky == float64(k) {
-			// Every partial sum of the exponents given is >= 0, so the
-			// next exponent decides where the dimension stops.
-			out.KaplanYorkeBound = "lower"
-		}
-		h := lyap.Entropy(e)
-		out.Entropy = &h
-		out.EntropyBound = "exact"
-		if k < len(sys.States) && minOf(e) > 0 {
-			out.EntropyBound = "lower"
-		}
-		top := 0
-		for i, v := range e {
-			if v > e[top] {
-				top = i
-			}
-		}
-		if e[top] > 0 {
-			lt := lyap.LyapunovTime(e[top])
-			out.LyapunovTime = &lt
-			d := sp.Duration
-			out.BeyondNoise = top < len(sp.StdErr) && e[top] > noiseFactor*sp.StdErr[top] &&
-				d > 1 && e[top] > noiseFactor*math.Log(d)/d
-		}
+	if ky, b, ok := sp.KaplanYorke(); ok {
+		out.KaplanYorke, out.KaplanYorkeBound = &ky, string(b)
+	}
+	if h, b, ok := sp.Entropy(); ok {
+		out.Entropy, out.EntropyBound = &h, string(b)
+	}
+	if lt, ok := sp.LyapunovTime(); ok {
+		out.LyapunovTime = &lt
+		out.BeyondNoise = sp.BeyondNoise()
 	}
 	for _, c := range sp.Checks {
 		out.Checks = append(out.Checks, checkJSON{Name: c.Name, Residual: c.Residual, StdErr: c.StdErr, Meaning: checkMeaning[c.Name]})
 	}
 	return out
-}
-
-func allFinite(v []float64) bool {
-	for _, x := range v {
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return false
-		}
-	}
-	return true
-}
-
-func minOf(v []float64) float64 {
-	m := math.Inf(1)
-	for _, x := range v {
-		m = math.Min(m, x)
-	}
-	return m
 }
 
 // spectrumTable writes the exponents, the derived measures, the checks and
@@ -457,7 +413,7 @@ func spectrumHead(w io.Writer, sys systemJSON, out spectrumResult, u spectrumUni
 	case out.LyapunovTime != nil && out.BeyondNoise:
 		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g%s\n", *out.LyapunovTime, u.time)
 	case out.LyapunovTime != nil:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g%s (no clear sign of chaos: the largest exponent is within %d standard errors or %d ln(D)/D of 0)\n", *out.LyapunovTime, u.time, noiseFactor, noiseFactor)
+		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g%s (no clear sign of chaos: the largest exponent is within %d standard errors or %d ln(D)/D of 0)\n", *out.LyapunovTime, u.time, lyap.NoiseFactor, lyap.NoiseFactor)
 	case len(out.Exponents) > 0:
 		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\tnone (no exponent is positive)\n")
 	}
