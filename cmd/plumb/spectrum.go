@@ -3,7 +3,6 @@ package main
 import (
 	"context"
 	"encoding/csv"
-	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -11,7 +10,6 @@ import (
 	"text/tabwriter"
 
 	"github.com/plumbdyn/plumb"
-	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
 )
 
@@ -253,51 +251,36 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 	p := sys.Problem()
 	p.T0 = f.t0
 	s := &lyap.Settings{Method: im, RelTol: f.rtol, AbsTol: f.atol, Duration: dur, Transient: f.transient}
-	var bar *progressBar
-	if cl.progress {
-		bar = newProgressBar(cl.stderr, "plumb spectrum", 0, f.t1-f.t0)
-		s.Progress = func(done, _ float64) { bar.at(done) }
-	}
-	start := now()
-	sp, err := lyap.Exponents(ctx, p, k, s)
-	if bar != nil {
-		bar.clear()
-	}
-	if sp == nil {
-		if isMisfit(err) {
-			return m.misfit(sys, err)
-		}
-		if errors.Is(err, lyap.ErrSettings) || errors.Is(err, lyap.ErrCount) || errors.Is(err, integrate.ErrSettings) || errors.Is(err, integrate.ErrSpan) {
-			return usagef("the estimator refused the settings: %v", err)
-		}
-		return fmt.Errorf("starting the spectrum of %s failed: %w", sys.Name, err)
-	}
-	out := f.json(sys, m, k, sp, err)
-	var werr error
-	switch cl.sh.format {
-	case "json":
-		werr = writeJSON(cl.stdout, out)
-	case "csv":
-		werr = spectrumCSV(cl, out.Exponents, out.History)
-	default:
-		werr = spectrumTable(cl, out)
-	}
-	if werr != nil {
-		return fmt.Errorf("writing the results failed: %w", werr)
-	}
-	if cl.sh.plot != "" {
-		if perr := spectrumChart(sys, out.Exponents, out.History).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
-			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-		}
-	}
-	if sp.Stats.Stiff {
-		cl.warnf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy (slow, not wrong)", sp.Stats.StiffAt)
-	}
-	cl.wallTime(start, count(k, "exponent")+", "+count(sp.Stats.Steps, "step")+", "+count(sp.Stats.QR, "re-orthonormalisation"))
-	if out.Status != "completed" {
-		return fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, statusVerb(out.Status), count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
-	}
-	return nil
+	return cl.runJob(ctx, job{
+		what:    "the spectrum of " + sys.Name,
+		refusal: "the estimator refused the settings",
+		span:    &[2]float64{0, f.t1 - f.t0},
+		reword:  m.reword(sys),
+		run: func(ctx context.Context, progress func(float64)) (*outcome, error) {
+			if progress != nil {
+				s.Progress = func(done, _ float64) { progress(done) }
+			}
+			sp, err := lyap.Exponents(ctx, p, k, s)
+			if sp == nil {
+				return nil, err
+			}
+			out := f.json(sys, m, k, sp, err)
+			res := &outcome{
+				json:  out,
+				table: func(w io.Writer) error { return spectrumTable(w, out) },
+				csv:   func(w io.Writer) error { return spectrumCSV(w, out.Exponents, out.History) },
+				chart: func() *lineChart { return spectrumChart(sys, out.Exponents, out.History) },
+				done:  count(k, "exponent") + ", " + count(sp.Stats.Steps, "step") + ", " + count(sp.Stats.QR, "re-orthonormalisation"),
+			}
+			if sp.Stats.Stiff {
+				res.warnings = append(res.warnings, fmt.Sprintf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy (slow, not wrong)", sp.Stats.StiffAt))
+			}
+			if out.Status != "completed" {
+				res.err = fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, statusVerb(out.Status), count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
+			}
+			return res, nil
+		},
+	})
 }
 
 // json builds the result; runErr is the error of the run, if any.
@@ -352,12 +335,12 @@ func newSpectrumResult(sp *lyap.Spectrum, runErr error) spectrumResult {
 
 // spectrumTable writes the exponents, the derived measures, the checks and
 // the run.
-func spectrumTable(cl *call, out spectrumJSON) error {
+func spectrumTable(w io.Writer, out spectrumJSON) error {
 	words := flowRates
 	if tu := out.System.TimeUnit; tu != "" {
 		words = spectrumUnitWords{rate: "per " + tu, time: " " + tu}
 	}
-	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, words)
+	tw, err := spectrumHead(w, out.System, out.spectrumResult, words)
 	if err != nil {
 		return err
 	}
@@ -429,8 +412,8 @@ func spectrumHead(w io.Writer, sys systemJSON, out spectrumResult, u spectrumUni
 
 // spectrumCSV writes the convergence history: t, blocks, then the running
 // estimate of each exponent.
-func spectrumCSV(cl *call, exponents []float64, history []lyap.Point) error {
-	w := csv.NewWriter(cl.stdout)
+func spectrumCSV(out io.Writer, exponents []float64, history []lyap.Point) error {
+	w := csv.NewWriter(out)
 	rec := []string{"t", "blocks"}
 	for i := range exponents {
 		rec = append(rec, "lambda_"+strconv.Itoa(i+1))
