@@ -296,6 +296,10 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 	if f.discard < 1 {
 		return usagef("--discard %d: must be > 0 (an unaligned start biases the estimate)", f.discard)
 	}
+	s := &lyap.Settings{Iterations: f.iterations, Discard: f.discard}
+	if err := s.Validate(); err != nil {
+		return settingUsage(err, spectrumSettingFlags)
+	}
 	m, err := sys.Map()
 	if err != nil {
 		return fmt.Errorf("preparing the map %s failed: %w", sys.Name, err)
@@ -304,7 +308,7 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 		what:    "the spectrum of " + sys.Name,
 		refusal: "the estimator refused the settings",
 		run: func(ctx context.Context, _ func(float64)) (*outcome, error) {
-			sp, err := lyap.MapExponents(ctx, m, sys.Start(), k, &lyap.Settings{Iterations: f.iterations, Discard: f.discard})
+			sp, err := lyap.MapExponents(ctx, m, sys.Start(), k, s)
 			if sp == nil {
 				return nil, err
 			}

@@ -62,6 +62,11 @@ const (
 	spectrumTransient = 100
 )
 
+// spectrumSettingFlags names the flag that sets each lyap.Settings field
+// plumb spectrum sets (Duration is --t1 - --t0 - --transient, checked
+// before).
+var spectrumSettingFlags = map[string]string{"RelTol": "rtol", "AbsTol": "atol", "Transient": "transient", "Iterations": "iterations", "Discard": "discard"}
+
 // spectrumFlags are the flags of plumb spectrum beyond the shared ones.
 type spectrumFlags struct {
 	k          int
@@ -80,8 +85,8 @@ func setupSpectrum(fs *flag.FlagSet, sh *shared) func(context.Context, *call) er
 	finiteVar(fs, &f.t0, "t0", 0, "start time `T0`, the time of the start state")
 	finiteVar(fs, &f.t1, "t1", spectrumT1, "end time `T1` of the run; the span after the transient is averaged")
 	finiteVar(fs, &f.transient, "transient", spectrumTransient, "time `T` integrated and discarded first, so that the tangent vectors align (> 0)")
-	finiteVar(fs, &f.rtol, "rtol", lyap.DefaultRelTol, "relative tolerance `RTOL` of the trajectory and its tangent vectors")
-	finiteVar(fs, &f.atol, "atol", lyap.DefaultAbsTol, "absolute tolerance `ATOL` of the trajectory and its tangent vectors")
+	finiteVar(fs, &f.rtol, "rtol", lyap.DefaultRelTol, "relative tolerance `RTOL` of the trajectory and its tangent vectors (0 also means the default)")
+	finiteVar(fs, &f.atol, "atol", lyap.DefaultAbsTol, "absolute tolerance `ATOL` of the trajectory and its tangent vectors (0 also means the default)")
 	fs.StringVar(&f.method, "method", methods[0].name, "integration `METHOD` of the trajectory and its tangent vectors: any of plumb solve's but the splittings (see 'plumb help solve')")
 	finiteVar(fs, &f.h, "step", 0, "step size `H` of a fixed-step method (-h is help)")
 	fs.IntVar(&f.iterations, "iterations", lyap.DefaultIterations, "average `N` iterates of a map after the discarded ones (maps only)")
@@ -239,18 +244,15 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 	if !(dur > 0) {
 		return usagef("--t1 %s: the run from --t0 %s must outlast --transient %s", formatFloat(f.t1), formatFloat(f.t0), formatFloat(f.transient))
 	}
-	if f.rtol <= 0 {
-		return usagef("--rtol %s: must be > 0", formatFloat(f.rtol))
-	}
-	if f.rtol < 1e-15 {
-		return usagef("--rtol %s: below 1e-15, float64 rounding decides the error, not the tolerance", formatFloat(f.rtol))
-	}
-	if f.atol <= 0 {
-		return usagef("--atol %s: must be > 0", formatFloat(f.atol))
-	}
 	p := sys.Problem()
 	p.T0 = f.t0
 	s := &lyap.Settings{Method: im, RelTol: f.rtol, AbsTol: f.atol, Duration: dur, Transient: f.transient}
+	if err := s.Validate(); err != nil {
+		return settingUsage(err, spectrumSettingFlags)
+	}
+	// Echo the tolerances the run uses (0 stands for the SDK's default).
+	eff := s.WithDefaults()
+	f.rtol, f.atol = eff.RelTol, eff.AbsTol
 	return cl.runJob(ctx, job{
 		what:    "the spectrum of " + sys.Name,
 		refusal: "the estimator refused the settings",
