@@ -71,3 +71,37 @@ func TestSettingsWithDefaults(t *testing.T) {
 		t.Errorf("WithDefaults wrote AbsTol = %g back into the caller's Settings", s.AbsTol)
 	}
 }
+
+// FuzzSettingsValidate: Validate never panics, Solve refuses with exactly
+// Validate's error when Validate refuses, and when Validate accepts, Solve
+// refuses only on the checks that need the problem (Every against the span,
+// MinStep against the span).
+func FuzzSettingsValidate(f *testing.F) {
+	f.Add(1e-6, 1e-9, 0.0, 0.0, 0.0, 0)
+	f.Add(1e-16, 1e-10, 0.1, 0.0, 0.0, 100)
+	f.Add(-1.0, 0.0, 0.0, 0.0, 0.0, 0)
+	f.Add(0.0, math.NaN(), 0.0, 0.0, 0.0, 0)
+	f.Add(1e-8, 1e-8, 1e-12, 0.0, 0.0, 10)
+	f.Add(1e-8, 1e-8, 0.0, 0.5, 0.1, 10)
+	f.Add(1e-8, 1e-8, 0.0, 2.0, 0.0, -5)
+	p := Problem{F: harmonic, Y0: []float64{1, 0}}
+	f.Fuzz(func(t *testing.T, rtol, atol, every, minStep, maxStep float64, maxSteps int) {
+		// A bounded budget keeps every accepted case short.
+		if maxSteps > 1000 || maxSteps == 0 {
+			maxSteps = 1000
+		}
+		s := &Settings{RelTol: rtol, AbsTol: atol, Every: every, MinStep: minStep, MaxStep: maxStep, MaxSteps: maxSteps}
+		err := s.Validate()
+		_, serr := Solve(context.Background(), p, 1, nil, s)
+		if err != nil {
+			if serr == nil || serr.Error() != err.Error() {
+				t.Fatalf("Validate: %v; Solve: %v (want the same refusal)", err, serr)
+			}
+			return
+		}
+		var se *SettingError
+		if errors.As(serr, &se) && se.Field != "Every" && se.Field != "MinStep" {
+			t.Fatalf("Validate accepted %+v but Solve refused %v", *s, serr)
+		}
+	})
+}
