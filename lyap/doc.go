@@ -60,7 +60,9 @@
 // # Errors
 //
 // Sentinels usable with errors.Is: ErrSettings, ErrCount, ErrDimension,
-// ErrNoJacobian, ErrNonFinite, ErrSystem, ErrTooShort; GrowthError says where a tangent
+// ErrNoJacobian, ErrNonFinite, ErrSystem, ErrTooShort; an invalid field of
+// Settings is an *integrate.SettingError naming lyap's Settings (see
+// Settings.Validate); GrowthError says where a tangent
 // growth stopped being finite. Once work began, errors come with the partial
 // result. A panic in the caller's vector field, Jacobian (a write outside its
 // matrix, say), map or map Jacobian during Exponents, FiniteTime,
