@@ -143,7 +143,7 @@ func (f *solveFlags) orbit(ctx context.Context, sys *plumb.System, m lyap.Map) *
 		out.Orbit[i] = iterateJSON{N: i, X: orbit[i*n : (i+1)*n]}
 	}
 	res := &outcome{
-		json:  out,
+		json:  func() any { return out },
 		table: func(w io.Writer) error { return orbitTable(w, sys, out) },
 		csv:   func(w io.Writer) error { return orbitCSV(w, sys, out) },
 		chart: func() *lineChart { return orbitChart(sys, out) },
@@ -333,7 +333,7 @@ func (f *spectrumFlags) mapResult(sys *plumb.System, k int, sp *lyap.Spectrum, r
 		out.History = []lyap.Point{}
 	}
 	res := &outcome{
-		json:  out,
+		json:  func() any { return out },
 		table: func(w io.Writer) error { return mapSpectrumTable(w, out) },
 		csv:   func(w io.Writer) error { return spectrumCSV(w, out.Exponents, out.History) },
 		chart: func() *lineChart {

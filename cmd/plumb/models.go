@@ -62,7 +62,7 @@ func runModels(ctx context.Context, cl *call) error {
 			for _, s := range systems {
 				out.Models = append(out.Models, describe(s))
 			}
-			return &outcome{json: out, table: func(w io.Writer) error { return modelTables(w, systems) }}, nil
+			return &outcome{json: func() any { return out }, table: func(w io.Writer) error { return modelTables(w, systems) }}, nil
 		},
 	})
 }

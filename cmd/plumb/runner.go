@@ -38,9 +38,10 @@ type job struct {
 // outcome is what a run computed (all of it, or the part done before it
 // stopped), ready to write.
 type outcome struct {
-	// json is the --format json document; table writes the readable
-	// table; csv (nil when the command writes no CSV) the CSV.
-	json  any
+	// json makes the --format json document (only when it is asked for:
+	// a long run's document holds a copy of every row); table writes the
+	// readable table; csv (nil when the command writes no CSV) the CSV.
+	json  func() any
 	table func(w io.Writer) error
 	csv   func(w io.Writer) error
 	// chart, when not nil, draws the --plot picture; nil from it draws
@@ -95,7 +96,7 @@ func (cl *call) runJob(ctx context.Context, j job) error {
 func (cl *call) writeResult(res *outcome) error {
 	switch {
 	case cl.sh.format == "json":
-		return writeJSON(cl.stdout, res.json)
+		return writeJSON(cl.stdout, res.json())
 	case cl.sh.format == "csv" && res.csv != nil:
 		return res.csv(cl.stdout)
 	}

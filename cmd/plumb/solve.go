@@ -330,7 +330,7 @@ func (r *solveRun) result(span float64) *outcome {
 		}
 	}
 	res := &outcome{
-		json:  r.json(),
+		json:  func() any { return r.json() },
 		table: r.table,
 		csv:   r.csv,
 		chart: r.chart,

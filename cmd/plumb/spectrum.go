@@ -268,7 +268,7 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 			}
 			out := f.json(sys, m, k, sp, err)
 			res := &outcome{
-				json:  out,
+				json:  func() any { return out },
 				table: func(w io.Writer) error { return spectrumTable(w, out) },
 				csv:   func(w io.Writer) error { return spectrumCSV(w, out.Exponents, out.History) },
 				chart: func() *lineChart { return spectrumChart(sys, out.Exponents, out.History) },

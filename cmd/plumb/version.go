@@ -45,7 +45,9 @@ func runVersion(ctx context.Context, cl *call) error {
 		refusal: "the version report refused the input",
 		run: func(context.Context, func(float64)) (*outcome, error) {
 			return &outcome{
-				json:  versionJSON{header: newHeader("version"), Status: "completed", OS: runtime.GOOS, GoVersion: runtime.Version()},
+				json: func() any {
+					return versionJSON{header: newHeader("version"), Status: "completed", OS: runtime.GOOS, GoVersion: runtime.Version()}
+				},
 				table: writeVersion,
 			}, nil
 		},
