@@ -111,8 +111,8 @@ type RungReport struct {
 	ID     string  `json:"id"`
 	Effect string  `json:"effect"`
 	Method string  `json:"method"`
-	RelTol float64 `json:"rel_tol,omitempty"`
-	AbsTol float64 `json:"abs_tol,omitempty"`
+	RelTol float64 `json:"rtol,omitempty"`
+	AbsTol float64 `json:"atol,omitempty"`
 	// Step is the step size of a fixed-step method.
 	Step float64 `json:"step,omitempty"`
 	// Rounding is the emulated storage or the restart's rounding.

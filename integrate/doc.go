@@ -91,7 +91,9 @@
 // Errors wrap the sentinels ErrSettings, ErrDimension, ErrNonFinite, ErrSpan,
 // ErrStepUnderflow, ErrStepBudget and ErrMethod (test with errors.Is); a
 // StepError says at which time and step size stepping failed; a FieldError
-// names the component of a non-finite value. Once stepping has begun, Solve
+// names the component of a non-finite value; a SettingError names the
+// invalid field of a Settings (Settings.Validate checks them without a
+// problem). Once stepping has begun, Solve
 // returns the partial Solution with the error. A step whose error estimate is
 // NaN is rejected and retried with a smaller step; if that persists, the solve
 // ends with a FieldError.

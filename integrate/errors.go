@@ -64,6 +64,38 @@ func (e *FieldError) Error() string {
 // Unwrap returns ErrNonFinite.
 func (e *FieldError) Unwrap() error { return ErrNonFinite }
 
+// SettingError reports an invalid field of a settings struct: which field,
+// the value given and why it was refused, so that a caller (the CLI) can
+// name its own spelling of the field. Its text is
+//
+//	PKG: TYPE.FIELD = VALUE: REASON: invalid setting
+//
+// ("integrate: Settings.RelTol = -1: must be finite and >= 0: invalid
+// setting"). Unwrap returns Err: ErrSettings for this package's Settings,
+// the owning package's sentinel for a struct of another package that
+// shares a rule of this one (lyap.Settings.RelTol).
+type SettingError struct {
+	// Pkg and Type name the struct as the caller wrote it: "integrate"
+	// and "Settings" for integrate.Settings.
+	Pkg, Type string
+	// Field is the field's name, with an index where it has one
+	// ("RelTols[2]").
+	Field string
+	// Value is the value given.
+	Value any
+	// Reason says what the field must be.
+	Reason string
+	// Err is the sentinel the error wraps.
+	Err error
+}
+
+func (e *SettingError) Error() string {
+	return fmt.Sprintf("%s: %s.%s = %v: %s: %v", e.Pkg, e.Type, e.Field, e.Value, e.Reason, e.Err)
+}
+
+// Unwrap returns the sentinel.
+func (e *SettingError) Unwrap() error { return e.Err }
+
 func settingErr(field string, v any, why string) error {
-	return fmt.Errorf("integrate: Settings.%s = %v: %s: %w", field, v, why, ErrSettings)
+	return &SettingError{Pkg: "integrate", Type: "Settings", Field: field, Value: v, Reason: why, Err: ErrSettings}
 }

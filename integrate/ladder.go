@@ -120,6 +120,12 @@ const (
 	ReferenceAbsTol = 1e-12
 )
 
+// TightRelTol is the tightest of DefaultLadder's tolerance rungs
+// (DormandPrince54 at RelTol = AbsTol = TightRelTol; the loosest is at
+// DefaultRelTol): the tightest everyday run the default audit compares
+// with its reference.
+const TightRelTol = 1e-10
+
 // DefaultLadder returns the ladder the audit uses when none is given, for
 // the span [t0, t1]:
 //
@@ -136,7 +142,7 @@ const (
 // storage itself (53 bits), which no run here can measure directly.
 func DefaultLadder(t0, t1 float64) Ladder {
 	l := Ladder{Reference: Rung{Kind: KindReference, Method: DormandPrince853, RelTol: ReferenceRelTol, AbsTol: ReferenceAbsTol}}
-	for _, tol := range []float64{1e-6, 1e-8, 1e-10} {
+	for _, tol := range []float64{DefaultRelTol, 1e-8, TightRelTol} {
 		l.Rungs = append(l.Rungs, Rung{Kind: KindTolerance, Method: DormandPrince54, RelTol: tol, AbsTol: tol})
 	}
 	l.Rungs = append(l.Rungs,

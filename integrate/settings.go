@@ -114,85 +114,154 @@ type config struct {
 
 func positiveFinite(v float64) bool { return v >= 0 && !math.IsInf(v, 0) && !math.IsNaN(v) }
 
-// resolve validates s for a problem of dimension n on [t0, t1] with method m.
-func resolve(s *Settings, n int, t0, t1 float64, m Method) (*config, error) {
-	var z Settings
+// WithDefaults returns a shallow copy of s (of the zero Settings for a nil
+// s) whose zero RelTol and AbsTol are replaced by DefaultRelTol and
+// DefaultAbsTol, the tolerances Solve and NewStepper use for them: what a
+// caller echoes as the tolerances of its run. It does not validate (see
+// Validate).
+func (s *Settings) WithDefaults() Settings {
+	var c Settings
+	if s != nil {
+		c = *s
+	}
+	if c.RelTol == 0 {
+		c.RelTol = DefaultRelTol
+	}
+	if c.AbsTol == 0 {
+		c.AbsTol = DefaultAbsTol
+	}
+	return c
+}
+
+// Validate reports the first field of s that is invalid whatever the
+// problem, as a *SettingError wrapping ErrSettings; nil means valid (a nil
+// s is). Solve and NewStepper call it first, then check what needs the
+// problem: the lengths of RelTols and AbsTols, Times inside the span and in
+// its direction, MinStep against the span, the number of Every samples,
+// and the Controller against the method's defaults.
+//
+// The tolerance rule: RelTol, AbsTol and every entry of RelTols and
+// AbsTols are finite and >= 0 (zero RelTol and AbsTol mean the defaults,
+// see WithDefaults); per component, the two tolerances are not both zero,
+// and a relative tolerance below 1e-15 needs an absolute one (without it
+// the test asks for less than float64 rounding can deliver).
+func (s *Settings) Validate() error {
 	if s == nil {
-		s = &z
+		return nil
 	}
-	c := &config{rtol: make([]float64, n), atol: make([]float64, n)}
-	rt, at := s.RelTol, s.AbsTol
-	if !positiveFinite(rt) {
-		return nil, settingErr("RelTol", rt, "must be finite and >= 0")
+	if !positiveFinite(s.RelTol) {
+		return settingErr("RelTol", s.RelTol, "must be finite and >= 0")
 	}
-	if !positiveFinite(at) {
-		return nil, settingErr("AbsTol", at, "must be finite and >= 0")
+	if !positiveFinite(s.AbsTol) {
+		return settingErr("AbsTol", s.AbsTol, "must be finite and >= 0")
 	}
-	if rt == 0 {
-		rt = DefaultRelTol
-	}
-	if at == 0 {
-		at = DefaultAbsTol
-	}
-	for i := range c.rtol {
-		c.rtol[i], c.atol[i] = rt, at
-	}
-	if s.RelTols != nil {
-		if len(s.RelTols) != n {
-			return nil, fmt.Errorf("integrate: Settings.RelTols has length %d, state has %d: %w", len(s.RelTols), n, ErrDimension)
-		}
-		for i, v := range s.RelTols {
-			if !positiveFinite(v) {
-				return nil, settingErr(fmt.Sprintf("RelTols[%d]", i), v, "must be finite and >= 0")
-			}
-			c.rtol[i] = v
+	for i, v := range s.RelTols {
+		if !positiveFinite(v) {
+			return settingErr(fmt.Sprintf("RelTols[%d]", i), v, "must be finite and >= 0")
 		}
 	}
-	if s.AbsTols != nil {
-		if len(s.AbsTols) != n {
-			return nil, fmt.Errorf("integrate: Settings.AbsTols has length %d, state has %d: %w", len(s.AbsTols), n, ErrDimension)
-		}
-		for i, v := range s.AbsTols {
-			if !positiveFinite(v) {
-				return nil, settingErr(fmt.Sprintf("AbsTols[%d]", i), v, "must be finite and >= 0")
-			}
-			c.atol[i] = v
+	for i, v := range s.AbsTols {
+		if !positiveFinite(v) {
+			return settingErr(fmt.Sprintf("AbsTols[%d]", i), v, "must be finite and >= 0")
 		}
 	}
-	for i := range c.rtol {
-		if c.rtol[i] == 0 && c.atol[i] == 0 {
-			return nil, settingErr(fmt.Sprintf("RelTols[%d]/AbsTols[%d]", i, i), 0, "both tolerances zero")
+	d := s.WithDefaults()
+	for i := range max(len(s.RelTols), len(s.AbsTols), 1) {
+		rt, at := d.RelTol, d.AbsTol
+		if i < len(s.RelTols) {
+			rt = s.RelTols[i]
 		}
-		if c.rtol[i] < 1e-15 && c.atol[i] == 0 {
-			return nil, settingErr("RelTol", c.rtol[i], "below 1e-15 with no absolute tolerance")
+		if i < len(s.AbsTols) {
+			at = s.AbsTols[i]
+		}
+		if rt == 0 && at == 0 {
+			return settingErr(fmt.Sprintf("RelTols[%d]/AbsTols[%d]", i, i), 0, "both tolerances zero")
+		}
+		if rt < 1e-15 && at == 0 {
+			return settingErr("RelTol", rt, "below 1e-15 with no absolute tolerance")
 		}
 	}
-	span := math.Abs(t1 - t0)
 	for _, f := range []struct {
 		name string
 		v    float64
 	}{{"InitialStep", s.InitialStep}, {"MinStep", s.MinStep}, {"MaxStep", s.MaxStep}, {"Every", s.Every}} {
 		if math.IsNaN(f.v) || math.IsInf(f.v, 0) {
-			return nil, settingErr(f.name, f.v, "must be finite")
+			return settingErr(f.name, f.v, "must be finite")
 		}
 	}
-	c.h0 = math.Abs(s.InitialStep)
 	if s.MinStep < 0 {
-		return nil, settingErr("MinStep", s.MinStep, "must be >= 0")
+		return settingErr("MinStep", s.MinStep, "must be >= 0")
 	}
-	c.hmin = s.MinStep
 	if s.MaxStep < 0 {
-		return nil, settingErr("MaxStep", s.MaxStep, "must be >= 0")
+		return settingErr("MaxStep", s.MaxStep, "must be >= 0")
 	}
+	if s.MaxStep > 0 && s.MinStep > s.MaxStep {
+		return settingErr("MinStep", s.MinStep, fmt.Sprintf("larger than MaxStep %g", s.MaxStep))
+	}
+	if s.MaxSteps < 0 {
+		return settingErr("MaxSteps", s.MaxSteps, "must be >= 0")
+	}
+	if s.Every < 0 {
+		return settingErr("Every", s.Every, "must be >= 0")
+	}
+	for i, tt := range s.Times {
+		if math.IsNaN(tt) || math.IsInf(tt, 0) {
+			return settingErr(fmt.Sprintf("Times[%d]", i), tt, "must be finite")
+		}
+	}
+	for i, cr := range s.Crossings {
+		if cr.G == nil {
+			return settingErr(fmt.Sprintf("Crossings[%d].G", i), "nil", "function missing")
+		}
+		if cr.Sense < Either || cr.Sense > Falling {
+			return settingErr(fmt.Sprintf("Crossings[%d].Sense", i), int(cr.Sense), "unknown sense")
+		}
+	}
+	if u := s.Controller; u != nil {
+		for _, f := range []struct {
+			name string
+			v    float64
+		}{{"Safety", u.Safety}, {"Alpha", u.Alpha}, {"Beta", u.Beta}, {"MinFactor", u.MinFactor}, {"MaxFactor", u.MaxFactor}} {
+			if !positiveFinite(f.v) {
+				return settingErr("Controller."+f.name, f.v, "must be finite and >= 0")
+			}
+		}
+	}
+	return nil
+}
+
+// resolve validates s for a problem of dimension n on [t0, t1] with method m.
+func resolve(s *Settings, n int, t0, t1 float64, m Method) (*config, error) {
+	if err := s.Validate(); err != nil {
+		return nil, err
+	}
+	eff := s.WithDefaults()
+	s = &eff
+	c := &config{rtol: make([]float64, n), atol: make([]float64, n)}
+	for i := range c.rtol {
+		c.rtol[i], c.atol[i] = s.RelTol, s.AbsTol
+	}
+	if s.RelTols != nil {
+		if len(s.RelTols) != n {
+			return nil, fmt.Errorf("integrate: Settings.RelTols has length %d, state has %d: %w", len(s.RelTols), n, ErrDimension)
+		}
+		copy(c.rtol, s.RelTols)
+	}
+	if s.AbsTols != nil {
+		if len(s.AbsTols) != n {
+			return nil, fmt.Errorf("integrate: Settings.AbsTols has length %d, state has %d: %w", len(s.AbsTols), n, ErrDimension)
+		}
+		copy(c.atol, s.AbsTols)
+	}
+	span := math.Abs(t1 - t0)
+	c.h0 = math.Abs(s.InitialStep)
+	c.hmin = s.MinStep
 	c.hmax = s.MaxStep
 	if c.hmax == 0 || c.hmax > span {
 		c.hmax = span
 	}
 	if c.hmin > c.hmax {
 		return nil, settingErr("MinStep", s.MinStep, fmt.Sprintf("larger than MaxStep %g", c.hmax))
-	}
-	if s.MaxSteps < 0 {
-		return nil, settingErr("MaxSteps", s.MaxSteps, "must be >= 0")
 	}
 	c.maxSteps = s.MaxSteps
 	if c.maxSteps == 0 {
@@ -204,9 +273,6 @@ func resolve(s *Settings, n int, t0, t1 float64, m Method) (*config, error) {
 			}
 		}
 	}
-	if s.Every < 0 {
-		return nil, settingErr("Every", s.Every, "must be >= 0")
-	}
 	c.every = s.Every
 	if c.every > 0 && span/c.every > 1e8 {
 		return nil, settingErr("Every", s.Every, fmt.Sprintf("gives more than 1e8 samples over a span of %g", span))
@@ -214,9 +280,6 @@ func resolve(s *Settings, n int, t0, t1 float64, m Method) (*config, error) {
 	if s.Times != nil {
 		dir := math.Copysign(1, t1-t0)
 		for i, tt := range s.Times {
-			if math.IsNaN(tt) || math.IsInf(tt, 0) {
-				return nil, settingErr(fmt.Sprintf("Times[%d]", i), tt, "must be finite")
-			}
 			if (tt-t0)*dir < 0 || (tt-t1)*dir > 0 {
 				return nil, settingErr(fmt.Sprintf("Times[%d]", i), tt, fmt.Sprintf("outside the span [%g, %g]", t0, t1))
 			}
@@ -228,14 +291,6 @@ func resolve(s *Settings, n int, t0, t1 float64, m Method) (*config, error) {
 	}
 	c.hasSampleSet = c.every > 0 || c.times != nil
 	c.drop = s.DropSteps
-	for i, cr := range s.Crossings {
-		if cr.G == nil {
-			return nil, settingErr(fmt.Sprintf("Crossings[%d].G", i), "nil", "function missing")
-		}
-		if cr.Sense < Either || cr.Sense > Falling {
-			return nil, settingErr(fmt.Sprintf("Crossings[%d].Sense", i), int(cr.Sense), "unknown sense")
-		}
-	}
 	c.crossings = append([]Crossing(nil), s.Crossings...)
 	c.stiffEvery = s.StiffCheck
 	if c.stiffEvery == 0 {
@@ -246,14 +301,6 @@ func resolve(s *Settings, n int, t0, t1 float64, m Method) (*config, error) {
 	d := m.controller()
 	if s.Controller != nil {
 		u := *s.Controller
-		for _, f := range []struct {
-			name string
-			v    float64
-		}{{"Safety", u.Safety}, {"Alpha", u.Alpha}, {"Beta", u.Beta}, {"MinFactor", u.MinFactor}, {"MaxFactor", u.MaxFactor}} {
-			if !positiveFinite(f.v) {
-				return nil, settingErr("Controller."+f.name, f.v, "must be finite and >= 0")
-			}
-		}
 		if u.Safety != 0 {
 			d.Safety = u.Safety
 		}

@@ -20,6 +20,11 @@
 //	FiniteTime, MapFiniteTime finite-time exponents over windows of length tau
 //	Covariant, MapCovariant   covariant Lyapunov vectors and their angles
 //	KaplanYorke, Entropy, LyapunovTime, Horizon   measures derived from exponents
+//	Spectrum.KaplanYorke, .Entropy, .LyapunovTime, .BeyondNoise
+//	                          the same read from an estimate: whether a
+//	                          partial spectrum gives only a lower bound
+//	                          (Bound), and whether lambda_max stands clear
+//	                          of its noise (NoiseFactor)
 //
 // Flows are integrate.Problem values (the Jacobian Problem.Jac is used when
 // given, central differences otherwise); maps satisfy the small Map interface
@@ -55,7 +60,9 @@
 // # Errors
 //
 // Sentinels usable with errors.Is: ErrSettings, ErrCount, ErrDimension,
-// ErrNoJacobian, ErrNonFinite, ErrSystem, ErrTooShort; GrowthError says where a tangent
+// ErrNoJacobian, ErrNonFinite, ErrSystem, ErrTooShort; an invalid field of
+// Settings is an *integrate.SettingError naming lyap's Settings (see
+// Settings.Validate); GrowthError says where a tangent
 // growth stopped being finite. Once work began, errors come with the partial
 // result. A panic in the caller's vector field, Jacobian (a write outside its
 // matrix, say), map or map Jacobian during Exponents, FiniteTime,

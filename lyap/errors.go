@@ -3,6 +3,8 @@ package lyap
 import (
 	"errors"
 	"fmt"
+
+	"github.com/plumbdyn/plumb/integrate"
 )
 
 // Sentinel errors. Every error returned by this package wraps one of them (or
@@ -56,7 +58,7 @@ func (e *GrowthError) Error() string {
 func (e *GrowthError) Unwrap() error { return ErrNonFinite }
 
 func settingErr(field string, v any, why string) error {
-	return fmt.Errorf("lyap: Settings.%s = %v: %s: %w", field, v, why, ErrSettings)
+	return &integrate.SettingError{Pkg: "lyap", Type: "Settings", Field: field, Value: v, Reason: why, Err: ErrSettings}
 }
 
 // withSentinel prefixes an error of another package with "lyap: " and makes

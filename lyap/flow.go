@@ -405,7 +405,7 @@ const fixedPointTol = 1e-8
 
 func (r *flowRun) spectrum() *Spectrum {
 	n, k := r.n, r.k
-	sp := &Spectrum{Units: UnitsFlow, Kind: "flow", Method: r.cfg.Method.Name(), Jacobian: "exact"}
+	sp := &Spectrum{Units: UnitsFlow, Kind: "flow", Dim: n, Method: r.cfg.Method.Name(), Jacobian: "exact"}
 	if !r.exact {
 		sp.Jacobian = "finite-difference"
 	}

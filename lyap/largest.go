@@ -196,7 +196,7 @@ func (r *twoRun) renorm(t float64, last bool) bool {
 }
 
 func (r *twoRun) spectrum() *Spectrum {
-	sp := &Spectrum{Units: UnitsFlow, Kind: "flow", Method: r.cfg.Method.Name(), Jacobian: "two-trajectory"}
+	sp := &Spectrum{Units: UnitsFlow, Kind: "flow", Dim: r.n, Method: r.cfg.Method.Name(), Jacobian: "two-trajectory"}
 	r.avg.fill(sp, 1, r.lastQR)
 	sp.Final = append([]float64(nil), r.st.Y()[:r.n]...)
 	ist := r.st.Stats()
@@ -372,7 +372,7 @@ func (r *mapTwoRun) renorm(last bool) bool {
 }
 
 func (r *mapTwoRun) spectrum() *Spectrum {
-	sp := &Spectrum{Units: UnitsMap, Kind: "map", Jacobian: "two-trajectory"}
+	sp := &Spectrum{Units: UnitsMap, Kind: "map", Dim: r.n, Jacobian: "two-trajectory"}
 	r.avg.fill(sp, 1, float64(r.last))
 	sp.Final = append([]float64(nil), r.x...)
 	sp.Stats = Stats{Steps: r.it, Evaluations: r.evals, QR: r.qrs}

@@ -385,7 +385,7 @@ func (r *mapRun) reorth(last bool) bool {
 
 func (r *mapRun) spectrum() *Spectrum {
 	n, k := r.n, r.k
-	sp := &Spectrum{Units: UnitsMap, Kind: "map", Jacobian: "exact", Target: r.cfg.Target, BlockLength: float64(r.blockLen)}
+	sp := &Spectrum{Units: UnitsMap, Kind: "map", Dim: n, Jacobian: "exact", Target: r.cfg.Target, BlockLength: float64(r.blockLen)}
 	sp.Exponents = make([]float64, k)
 	if r.averaging {
 		r.bm.estimate(sp.Exponents, float64(r.last), true)

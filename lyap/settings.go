@@ -1,6 +1,7 @@
 package lyap
 
 import (
+	"errors"
 	"fmt"
 	"math"
 
@@ -35,7 +36,8 @@ type Settings struct {
 	Method integrate.Method
 	// RelTol and AbsTol are the tolerances of the augmented system
 	// (trajectory and tangent vectors together). Zero means DefaultRelTol
-	// and DefaultAbsTol. Invalid values are reported by package integrate.
+	// and DefaultAbsTol. Invalid values (integrate's rule, see Validate)
+	// get an error naming lyap's Settings.
 	RelTol, AbsTol float64
 	// MaxSteps bounds the attempted integration steps. Zero means 1<<40
 	// (no practical bound); negative is invalid.
@@ -114,26 +116,15 @@ type config struct {
 
 func finiteNonNeg(v float64) bool { return v >= 0 && !math.IsInf(v, 0) && !math.IsNaN(v) }
 
-func resolve(s *Settings) (*config, error) {
-	var c config
+// WithDefaults returns a shallow copy of s (of the zero Settings for a nil
+// s) with every zero field that has a default replaced by the value the
+// estimators use: Duration, Transient (Duration/10), Iterations, Discard
+// (Iterations/10), RelTol, AbsTol, MaxSteps (1<<40), MaxGrowth, Blocks and
+// Method (integrate.DormandPrince54). It does not validate (see Validate).
+func (s *Settings) WithDefaults() Settings {
+	var c Settings
 	if s != nil {
-		c.Settings = *s
-	}
-	for _, f := range []struct {
-		name string
-		v    float64
-	}{{"Duration", c.Duration}, {"Transient", c.Transient}, {"Interval", c.Interval}, {"Target", c.Target}, {"FDStep", c.FDStep}, {"MaxGrowth", c.MaxGrowth}, {"Separation", c.Separation}} {
-		if !finiteNonNeg(f.v) {
-			return nil, settingErr(f.name, f.v, "must be finite and >= 0")
-		}
-	}
-	for _, f := range []struct {
-		name string
-		v    int
-	}{{"MaxSteps", c.MaxSteps}, {"Iterations", c.Iterations}, {"Discard", c.Discard}, {"IntervalSteps", c.IntervalSteps}, {"Blocks", c.Blocks}} {
-		if f.v < 0 {
-			return nil, settingErr(f.name, f.v, "must be >= 0")
-		}
+		c = *s
 	}
 	if c.Duration == 0 {
 		c.Duration = DefaultDuration
@@ -159,19 +150,63 @@ func resolve(s *Settings) (*config, error) {
 	if c.MaxGrowth == 0 {
 		c.MaxGrowth = DefaultMaxGrowth
 	}
-	if c.MaxGrowth <= 1 || c.MaxGrowth > 1e12 {
-		return nil, settingErr("MaxGrowth", c.MaxGrowth, "must be in (1, 1e12]")
-	}
-	c.maxGrowthLog = detmath.Log(c.MaxGrowth)
 	if c.Blocks == 0 {
 		c.Blocks = DefaultBlocks
-	}
-	if c.Blocks < 2 || c.Blocks > 1e5 {
-		return nil, settingErr("Blocks", c.Blocks, "must be in 2..100000")
 	}
 	if c.Method == nil {
 		c.Method = integrate.DormandPrince54
 	}
+	return c
+}
+
+// Validate reports the first invalid field of s as an
+// *integrate.SettingError naming lyap's Settings and wrapping ErrSettings;
+// nil means valid (a nil s is). Every estimator calls it first. RelTol and
+// AbsTol follow integrate's rule (see integrate.Settings.Validate): finite
+// and >= 0, zero meaning DefaultRelTol and DefaultAbsTol.
+func (s *Settings) Validate() error {
+	if s == nil {
+		return nil
+	}
+	for _, f := range []struct {
+		name string
+		v    float64
+	}{{"Duration", s.Duration}, {"Transient", s.Transient}, {"Interval", s.Interval}, {"Target", s.Target}, {"FDStep", s.FDStep}, {"MaxGrowth", s.MaxGrowth}, {"Separation", s.Separation}} {
+		if !finiteNonNeg(f.v) {
+			return settingErr(f.name, f.v, "must be finite and >= 0")
+		}
+	}
+	for _, f := range []struct {
+		name string
+		v    int
+	}{{"MaxSteps", s.MaxSteps}, {"Iterations", s.Iterations}, {"Discard", s.Discard}, {"IntervalSteps", s.IntervalSteps}, {"Blocks", s.Blocks}} {
+		if f.v < 0 {
+			return settingErr(f.name, f.v, "must be >= 0")
+		}
+	}
+	tol := integrate.Settings{RelTol: s.RelTol, AbsTol: s.AbsTol}
+	if err := tol.Validate(); err != nil {
+		var se *integrate.SettingError
+		if errors.As(err, &se) {
+			return settingErr(se.Field, se.Value, se.Reason)
+		}
+		return err
+	}
+	if s.MaxGrowth != 0 && (s.MaxGrowth <= 1 || s.MaxGrowth > 1e12) {
+		return settingErr("MaxGrowth", s.MaxGrowth, "must be in (1, 1e12]")
+	}
+	if s.Blocks != 0 && (s.Blocks < 2 || s.Blocks > 1e5) {
+		return settingErr("Blocks", s.Blocks, "must be in 2..100000")
+	}
+	return nil
+}
+
+func resolve(s *Settings) (*config, error) {
+	if err := s.Validate(); err != nil {
+		return nil, err
+	}
+	c := config{Settings: s.WithDefaults()}
+	c.maxGrowthLog = detmath.Log(c.MaxGrowth)
 	return &c, nil
 }
 

@@ -43,6 +43,10 @@ type Spectrum struct {
 	Units string `json:"units"`
 	// Kind is "flow" or "map".
 	Kind string `json:"kind"`
+	// Dim is the state dimension n of the system; len(Exponents) is the
+	// number k <= n of exponents estimated. The derived measures use it
+	// to tell a full spectrum from a partial one (see KaplanYorke).
+	Dim int `json:"dim"`
 	// Method names the integration method ("" for maps); Jacobian says how
 	// tangent vectors were propagated: "exact", "finite-difference", or
 	// "two-trajectory" for Largest.

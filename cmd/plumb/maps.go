@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"strconv"
 	"strings"
@@ -96,7 +97,18 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	if err != nil {
 		return fmt.Errorf("preparing the map %s failed: %w", sys.Name, err)
 	}
-	start := now()
+	return cl.runJob(ctx, job{
+		what:    "the orbit of " + sys.Name,
+		refusal: "the map refused the settings",
+		run: func(ctx context.Context, _ func(float64)) (*outcome, error) {
+			return f.orbit(ctx, sys, m), nil
+		},
+	})
+}
+
+// orbit iterates m from the start of sys --steps times, stopping early on
+// a canceled ctx or a state that is not finite.
+func (f *solveFlags) orbit(ctx context.Context, sys *plumb.System, m lyap.Map) *outcome {
 	n := m.Dim()
 	x := sys.Start()
 	orbit := make([]float64, 0, n*(f.steps+1))
@@ -130,28 +142,17 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	for i := range out.Orbit {
 		out.Orbit[i] = iterateJSON{N: i, X: orbit[i*n : (i+1)*n]}
 	}
-	var werr error
-	switch cl.sh.format {
-	case "json":
-		werr = writeJSON(cl.stdout, out)
-	case "csv":
-		werr = orbitCSV(cl, sys, out)
-	default:
-		werr = orbitTable(cl, sys, out)
+	res := &outcome{
+		json:  func() any { return out },
+		table: func(w io.Writer) error { return orbitTable(w, sys, out) },
+		csv:   func(w io.Writer) error { return orbitCSV(w, sys, out) },
+		chart: func() *lineChart { return orbitChart(sys, out) },
+		done:  count(end, "iterate"),
 	}
-	if werr != nil {
-		return fmt.Errorf("writing the results failed: %w", werr)
-	}
-	if cl.sh.plot != "" {
-		if perr := orbitChart(sys, out).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
-			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-		}
-	}
-	cl.wallTime(start, count(end, "iterate"))
 	if runErr != nil {
-		return fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, statusVerb(status), end, runErr)
+		res.err = fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, statusVerb(status), end, runErr)
 	}
-	return nil
+	return res
 }
 
 func firstNonFinite(x []float64) int {
@@ -163,8 +164,8 @@ func firstNonFinite(x []float64) int {
 	return -1
 }
 
-func orbitCSV(cl *call, sys *plumb.System, out mapSolveJSON) error {
-	w := csv.NewWriter(cl.stdout)
+func orbitCSV(dst io.Writer, sys *plumb.System, out mapSolveJSON) error {
+	w := csv.NewWriter(dst)
 	rec := append([]string{"n"}, sys.States...)
 	if err := w.Write(rec); err != nil {
 		return err
@@ -182,8 +183,8 @@ func orbitCSV(cl *call, sys *plumb.System, out mapSolveJSON) error {
 	return w.Error()
 }
 
-func orbitTable(cl *call, sys *plumb.System, out mapSolveJSON) error {
-	tw := newTable(cl.stdout)
+func orbitTable(w io.Writer, sys *plumb.System, out mapSolveJSON) error {
+	tw := newTable(w)
 	fmt.Fprintf(tw, "n\t%s\n", strings.Join(sys.States, "\t"))
 	for _, it := range out.Orbit {
 		fmt.Fprint(tw, it.N)
@@ -195,8 +196,8 @@ func orbitTable(cl *call, sys *plumb.System, out mapSolveJSON) error {
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	fmt.Fprintln(cl.stdout)
-	tw = newTable(cl.stdout)
+	fmt.Fprintln(w)
+	tw = newTable(w)
 	fmt.Fprintf(tw, "system\t%s\n", describe(sys).heading())
 	fmt.Fprintf(tw, "status\t%s at iterate %d\n", out.Status, out.End)
 	return tw.Flush()
@@ -295,23 +296,35 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 	if f.discard < 1 {
 		return usagef("--discard %d: must be > 0 (an unaligned start biases the estimate)", f.discard)
 	}
+	s := &lyap.Settings{Iterations: f.iterations, Discard: f.discard}
+	if err := s.Validate(); err != nil {
+		return settingUsage(err, spectrumSettingFlags)
+	}
 	m, err := sys.Map()
 	if err != nil {
 		return fmt.Errorf("preparing the map %s failed: %w", sys.Name, err)
 	}
-	start := now()
-	sp, err := lyap.MapExponents(ctx, m, sys.Start(), k, &lyap.Settings{Iterations: f.iterations, Discard: f.discard})
-	if sp == nil {
-		if errors.Is(err, lyap.ErrSettings) || errors.Is(err, lyap.ErrCount) || errors.Is(err, lyap.ErrDimension) {
-			return usagef("the estimator refused the settings: %v", err)
-		}
-		return fmt.Errorf("starting the spectrum of %s failed: %w", sys.Name, err)
-	}
+	return cl.runJob(ctx, job{
+		what:    "the spectrum of " + sys.Name,
+		refusal: "the estimator refused the settings",
+		run: func(ctx context.Context, _ func(float64)) (*outcome, error) {
+			sp, err := lyap.MapExponents(ctx, m, sys.Start(), k, s)
+			if sp == nil {
+				return nil, err
+			}
+			return f.mapResult(sys, k, sp, err), nil
+		},
+	})
+}
+
+// mapResult is a map's spectrum sp of k exponents ready to write; runErr
+// is the error of the run, if any.
+func (f *spectrumFlags) mapResult(sys *plumb.System, k int, sp *lyap.Spectrum, runErr error) *outcome {
 	out := mapSpectrumJSON{
 		header: newHeader("spectrum"), System: describe(sys),
 		Settings:       mapSpectrumSettingsJSON{Exponents: k, Iterations: f.iterations, Discard: f.discard, Blocks: lyap.DefaultBlocks},
 		Units:          mapSpectrumUnits,
-		spectrumResult: newSpectrumResult(sys, k, sp, err),
+		spectrumResult: newSpectrumResult(sp, runErr),
 		Run: mapSpectrumRunJSON{Jacobian: sp.Jacobian, Start: int(sp.Start), Iterations: int(sp.Duration),
 			Blocks: sp.Blocks, BlockLength: sp.BlockLength, MeanInterval: sp.MeanInterval},
 		Stats: sp.Stats, History: sp.History,
@@ -319,34 +332,25 @@ func (f *spectrumFlags) runMap(ctx context.Context, cl *call, sys *plumb.System)
 	if out.History == nil {
 		out.History = []lyap.Point{}
 	}
-	var werr error
-	switch cl.sh.format {
-	case "json":
-		werr = writeJSON(cl.stdout, out)
-	case "csv":
-		werr = spectrumCSV(cl, out.Exponents, out.History)
-	default:
-		werr = mapSpectrumTable(cl, out)
+	res := &outcome{
+		json:  func() any { return out },
+		table: func(w io.Writer) error { return mapSpectrumTable(w, out) },
+		csv:   func(w io.Writer) error { return spectrumCSV(w, out.Exponents, out.History) },
+		chart: func() *lineChart {
+			c := spectrumChart(sys, out.Exponents, out.History)
+			c.XLabel, c.YLabel = "iterate", "running estimate - final estimate (per iterate)"
+			return c
+		},
+		done: count(k, "exponent") + ", " + count(sp.Stats.Steps, "iterate") + ", " + count(sp.Stats.QR, "re-orthonormalisation"),
 	}
-	if werr != nil {
-		return fmt.Errorf("writing the results failed: %w", werr)
-	}
-	if cl.sh.plot != "" {
-		c := spectrumChart(sys, out.Exponents, out.History)
-		c.XLabel, c.YLabel = "iterate", "running estimate - final estimate (per iterate)"
-		if perr := c.save(cl.sh.plot, cl.sh.plotSize); perr != nil {
-			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-		}
-	}
-	cl.wallTime(start, count(k, "exponent")+", "+count(sp.Stats.Steps, "iterate")+", "+count(sp.Stats.QR, "re-orthonormalisation"))
 	if out.Status != "completed" {
-		return fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, out.Status, count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
+		res.err = fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, statusVerb(out.Status), count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, runErr)
 	}
-	return nil
+	return res
 }
 
-func mapSpectrumTable(cl *call, out mapSpectrumJSON) error {
-	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, mapRates)
+func mapSpectrumTable(w io.Writer, out mapSpectrumJSON) error {
+	tw, err := spectrumHead(w, out.System, out.spectrumResult, mapRates)
 	if err != nil {
 		return err
 	}

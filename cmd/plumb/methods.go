@@ -128,8 +128,16 @@ func (m method) misfit(sys *plumb.System, err error) error {
 	return usagef("%s", msg)
 }
 
-// isMisfit reports whether err says a method cannot be used on a problem.
-func isMisfit(err error) bool { return errors.Is(err, integrate.ErrMethod) }
+// reword returns the job hook (see job.reword) that turns integrate's
+// ErrMethod for sys into the usage error naming --method and the model.
+func (m method) reword(sys *plumb.System) func(error) error {
+	return func(err error) error {
+		if errors.Is(err, integrate.ErrMethod) {
+			return m.misfit(sys, err)
+		}
+		return nil
+	}
+}
 
 // separableModels lists the built-in models whose Problem carries the
 // separable parts that the splittings need.

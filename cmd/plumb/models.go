@@ -4,6 +4,7 @@ import (
 	"context"
 	"flag"
 	"fmt"
+	"io"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
@@ -36,7 +37,7 @@ type modelsJSON struct {
 	Models []systemJSON `json:"models"`
 }
 
-func runModels(_ context.Context, cl *call) error {
+func runModels(ctx context.Context, cl *call) error {
 	names := plumb.Models()
 	if cl.sh.model != "" || cl.sh.file != "" {
 		names = []string{cl.sh.model}
@@ -53,18 +54,27 @@ func runModels(_ context.Context, cl *call) error {
 		}
 		systems = append(systems, sys)
 	}
-	if cl.sh.format == "json" {
-		out := modelsJSON{header: newHeader("models"), Status: "completed", Models: []systemJSON{}}
-		for _, s := range systems {
-			out.Models = append(out.Models, describe(s))
-		}
-		return writeJSON(cl.stdout, out)
-	}
+	return cl.runJob(ctx, job{
+		what:    "the listing of the models",
+		refusal: "the catalog refused the input",
+		run: func(context.Context, func(float64)) (*outcome, error) {
+			out := modelsJSON{header: newHeader("models"), Status: "completed", Models: []systemJSON{}}
+			for _, s := range systems {
+				out.Models = append(out.Models, describe(s))
+			}
+			return &outcome{json: func() any { return out }, table: func(w io.Writer) error { return modelTables(w, systems) }}, nil
+		},
+	})
+}
+
+// modelTables writes the systems as blocks of aligned lines, a blank line
+// between two.
+func modelTables(w io.Writer, systems []*plumb.System) error {
 	for i, s := range systems {
 		if i > 0 {
-			fmt.Fprintln(cl.stdout)
+			fmt.Fprintln(w)
 		}
-		if err := modelTable(cl, s); err != nil {
+		if err := modelTable(w, s); err != nil {
 			return err
 		}
 	}
@@ -72,11 +82,11 @@ func runModels(_ context.Context, cl *call) error {
 }
 
 // modelTable writes one system as a block of aligned lines.
-func modelTable(cl *call, s *plumb.System) error {
+func modelTable(w io.Writer, s *plumb.System) error {
 	d := describe(s)
-	fmt.Fprintf(cl.stdout, "%s: %s (%s)\n", d.Name, d.Title, kindWords(s.Kind()))
+	fmt.Fprintf(w, "%s: %s (%s)\n", d.Name, d.Title, kindWords(s.Kind()))
 	if d.TimeUnit != "" {
-		fmt.Fprintf(cl.stdout, "  time unit: %s\n", d.TimeUnit)
+		fmt.Fprintf(w, "  time unit: %s\n", d.TimeUnit)
 	}
 	// A unit column only where the system file gives units.
 	stateUnits, paramUnits := false, false
@@ -95,7 +105,7 @@ func modelTable(cl *call, s *plumb.System) error {
 		}
 		return "\t" + u
 	}
-	tw := newTable(cl.stdout)
+	tw := newTable(w)
 	fmt.Fprintf(tw, "  state\tstart\tperiod%s\n", unitCell(stateUnits, "unit"))
 	for _, st := range d.States {
 		period := "-"
@@ -107,7 +117,7 @@ func modelTable(cl *call, s *plumb.System) error {
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	tw = newTable(cl.stdout)
+	tw = newTable(w)
 	if len(d.Parameters) == 0 {
 		fmt.Fprintf(tw, "  (no parameters)\n")
 	} else {
@@ -119,7 +129,7 @@ func modelTable(cl *call, s *plumb.System) error {
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	_, err := fmt.Fprintf(cl.stdout, "  source: %s\n", strings.TrimSpace(d.Source))
+	_, err := fmt.Fprintf(w, "  source: %s\n", strings.TrimSpace(d.Source))
 	return err
 }
 

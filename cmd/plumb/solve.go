@@ -6,6 +6,7 @@ import (
 	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"math"
 	"strings"
 
@@ -57,10 +58,16 @@ type solveFlags struct {
 
 // Defaults of plumb solve, echoed in every result.
 const (
-	solveT1   = 20    // a few dozen Lyapunov times of the convection demo
-	solveDt   = 0.01  // sampling interval
-	solveRtol = 1e-10 // tight enough that the demo's first 20 time units are converged
-	solveAtol = 1e-10
+	solveT1 = 20   // a few dozen Lyapunov times of the convection demo
+	solveDt = 0.01 // sampling interval
+	// solveRtol and solveAtol are the tightest tolerance rung of plumb
+	// trust's default ladder, so that the default run is one the audit
+	// vouches for: at the SDK's default (integrate.DefaultRelTol, 1e-6)
+	// the audit of the convection demo parts from the reference at
+	// t = 18.3 < solveT1 (plumb trust --horizon 20), at 1e-10 it agrees
+	// to the end.
+	solveRtol = integrate.TightRelTol
+	solveAtol = integrate.TightRelTol
 	// maxSamples bounds the rows one solve writes; beyond it --dt is
 	// surely a typo.
 	maxSamples = 10_000_000
@@ -71,17 +78,21 @@ func setupSolve(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	finiteVar(fs, &f.t0, "t0", 0, "start time `T0`, the time of the start state")
 	finiteVar(fs, &f.t1, "t1", solveT1, "end time `T1`; below --t0 integrates backwards")
 	finiteVar(fs, &f.dt, "dt", solveDt, "sampling interval `DT`; 0 writes every accepted step instead")
-	finiteVar(fs, &f.rtol, "rtol", solveRtol, "relative tolerance `RTOL` of the local error test")
-	finiteVar(fs, &f.atol, "atol", solveAtol, "absolute tolerance `ATOL` of the local error test, in state units")
+	finiteVar(fs, &f.rtol, "rtol", solveRtol, "relative tolerance `RTOL` of the local error test; by default the tightest tolerance rung of 'plumb trust', 0 means the SDK's "+formatFloat(integrate.DefaultRelTol))
+	finiteVar(fs, &f.atol, "atol", solveAtol, "absolute tolerance `ATOL` of the local error test, in state units; 0 means the SDK's "+formatFloat(integrate.DefaultAbsTol))
 	fs.StringVar(&f.method, "method", methods[0].name, methodHelp())
 	finiteVar(fs, &f.h, "step", 0, "step size `H` of a fixed-step method (-h is help)")
-	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps; the run fails beyond them")
+	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps; the run fails beyond them (0 means the SDK's default, raised for a fixed step to what its span needs)")
 	fs.Var(&f.cross, "cross-state", "find the times at which a state crosses a value, given as `NAME=VALUE` (repeatable)")
 	fs.StringVar(&f.sense, "cross-sense", "either", "`SENSE` of the crossings that count: rising, falling or either")
 	fs.StringVar(&f.rows, "rows", "samples", "`ROWS` that --format csv writes: samples or crossings")
 	fs.IntVar(&f.steps, "steps", mapSteps, "iterate a map `N` times, writing iterates 0..N (maps only)")
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
+
+// solveSettingFlags names the flag that sets each integrate.Settings field
+// plumb solve sets.
+var solveSettingFlags = map[string]string{"RelTol": "rtol", "AbsTol": "atol", "MaxSteps": "max-steps", "Every": "dt"}
 
 // crossSpec is one --cross-state NAME=VALUE.
 type crossSpec struct {
@@ -259,23 +270,8 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 		return usagef("--t1 %s equals --t0: the time span is empty", formatFloat(f.t1))
 	}
 	span := math.Abs(f.t1 - f.t0)
-	if f.dt < 0 {
-		return usagef("--dt %s: must be >= 0", formatFloat(f.dt))
-	}
 	if f.dt > 0 && span/f.dt > maxSamples {
 		return usagef("--dt %s: would write %.3g samples over a span of %s (at most %d)", formatFloat(f.dt), span/f.dt, formatFloat(span), maxSamples)
-	}
-	if f.rtol <= 0 {
-		return usagef("--rtol %s: must be > 0", formatFloat(f.rtol))
-	}
-	if f.rtol < 1e-15 {
-		return usagef("--rtol %s: below 1e-15, float64 rounding decides the error, not the tolerance", formatFloat(f.rtol))
-	}
-	if f.atol <= 0 {
-		return usagef("--atol %s: must be > 0", formatFloat(f.atol))
-	}
-	if f.maxSteps <= 0 {
-		return usagef("--max-steps %d: must be > 0", f.maxSteps)
 	}
 	var crossings []integrate.Crossing
 	for _, c := range f.cross {
@@ -297,27 +293,35 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 		RelTol: f.rtol, AbsTol: f.atol, MaxSteps: f.maxSteps,
 		Every: f.dt, DropSteps: f.dt > 0, Crossings: crossings,
 	}
-	var bar *progressBar
-	if cl.progress {
-		bar = newProgressBar(cl.stderr, "plumb solve", f.t0, f.t1)
-		s.Progress = bar.at
+	if err := s.Validate(); err != nil {
+		return settingUsage(err, solveSettingFlags)
 	}
-	start := now()
-	sol, err := integrate.Solve(ctx, p, f.t1, im, s)
-	if bar != nil {
-		bar.clear()
-	}
-	if sol == nil {
-		// Nothing was stepped: the input was refused or the field failed at the start.
-		if isMisfit(err) {
-			return m.misfit(sys, err)
-		}
-		if errors.Is(err, integrate.ErrSettings) || errors.Is(err, integrate.ErrSpan) || errors.Is(err, integrate.ErrMethod) || errors.Is(err, integrate.ErrDimension) {
-			return usagef("the integrator refused the settings: %v", err)
-		}
-		return fmt.Errorf("starting the integration of %s failed: %w", sys.Name, err)
-	}
-	r := &solveRun{f: f, sys: sys, m: m, sol: sol, cross: f.cross, err: err}
+	// Echo the tolerances the run uses (0 stands for the SDK's default).
+	eff := s.WithDefaults()
+	f.rtol, f.atol = eff.RelTol, eff.AbsTol
+	return cl.runJob(ctx, job{
+		what:    "the integration of " + sys.Name,
+		refusal: "the integrator refused the settings",
+		span:    &[2]float64{f.t0, f.t1},
+		reword:  m.reword(sys),
+		run: func(ctx context.Context, progress func(float64)) (*outcome, error) {
+			s.Progress = progress
+			sol, err := integrate.Solve(ctx, p, f.t1, im, s)
+			if sol == nil {
+				// Nothing was stepped: the input was refused or the field failed at the start.
+				return nil, err
+			}
+			r := &solveRun{f: f, sys: sys, m: m, sol: sol, cross: f.cross, err: err}
+			return r.result(span), nil
+		},
+	})
+}
+
+// result is the run ready to write: the samples (or the accepted steps
+// with --dt 0), and the error worded with what was written; span is
+// |t1 - t0|.
+func (r *solveRun) result(span float64) *outcome {
+	f, sol := r.f, r.sol
 	r.rows = sol.Samples
 	if f.dt == 0 {
 		r.rows = make([]integrate.Sample, len(sol.T))
@@ -325,33 +329,31 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 			r.rows[i] = integrate.Sample{T: sol.T[i], Y: sol.Y[i*sol.Dim : (i+1)*sol.Dim]}
 		}
 	}
-	if werr := r.write(cl); werr != nil {
-		return fmt.Errorf("writing the results failed: %w", werr)
-	}
-	if cl.sh.plot != "" {
-		if perr := r.plot(cl.sh.plot, cl.sh.plotSize); perr != nil {
-			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-		}
+	res := &outcome{
+		json:  func() any { return r.json() },
+		table: r.table,
+		csv:   r.csv,
+		chart: r.chart,
+		done:  count(len(r.rows), "sample") + ", " + count(len(sol.Hits), "crossing") + ", " + count(sol.Stats.Accepted, "step"),
 	}
 	if sol.Stats.Stiff {
-		cl.warnf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy", sol.Stats.StiffAt)
+		res.warnings = append(res.warnings, fmt.Sprintf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy", sol.Stats.StiffAt))
 	}
-	cl.wallTime(start, count(len(r.rows), "sample")+", "+count(len(sol.Hits), "crossing")+", "+count(sol.Stats.Accepted, "step"))
-	if err != nil {
+	if err := r.err; err != nil {
 		what := "failed"
 		if sol.Status == integrate.Canceled {
 			what = "was canceled"
 		}
 		err = fmt.Errorf("integrating %s from t=%g to %g %s at t=%g (%s up to there written): %w",
-			sys.Name, f.t0, f.t1, what, sol.End, count(len(r.rows), "sample"), err)
-		if m.fixed && errors.Is(err, integrate.ErrStepBudget) {
+			r.sys.Name, f.t0, f.t1, what, sol.End, count(len(r.rows), "sample"), err)
+		if r.m.fixed && errors.Is(err, integrate.ErrStepBudget) {
 			// A fixed step has no tolerance to loosen: the span fixes the count.
 			need := math.Ceil(span / f.h)
 			err = &hintError{err: err, hint: fmt.Sprintf("a fixed step of %s takes %.0f steps over the span of %s: raise --max-steps to at least that, or take a larger --step", formatFloat(f.h), need, formatFloat(span))}
 		}
-		return err
+		res.err = err
 	}
-	return nil
+	return res
 }
 
 // stateIndex returns the index of the named state, or -1.
@@ -362,17 +364,6 @@ func stateIndex(sys *plumb.System, name string) int {
 		}
 	}
 	return -1
-}
-
-// write writes the result in the chosen format.
-func (r *solveRun) write(cl *call) error {
-	switch cl.sh.format {
-	case "json":
-		return writeJSON(cl.stdout, r.json())
-	case "csv":
-		return r.csv(cl)
-	}
-	return r.table(cl)
 }
 
 func (r *solveRun) json() solveJSON {
@@ -419,8 +410,8 @@ func (r *solveRun) json() solveJSON {
 	return out
 }
 
-func (r *solveRun) csv(cl *call) error {
-	w := csv.NewWriter(cl.stdout)
+func (r *solveRun) csv(out io.Writer) error {
+	w := csv.NewWriter(out)
 	rec := make([]string, 0, 3+len(r.sys.States))
 	if r.f.rows == "crossings" {
 		rec = append(append(append(rec, "t"), r.sys.States...), "crossing", "sense")
@@ -456,8 +447,8 @@ func (r *solveRun) csv(cl *call) error {
 	return w.Error()
 }
 
-func (r *solveRun) table(cl *call) error {
-	tw := newTable(cl.stdout)
+func (r *solveRun) table(w io.Writer) error {
+	tw := newTable(w)
 	d := describe(r.sys)
 	heads := make([]string, len(d.States))
 	for i, st := range d.States {
@@ -476,8 +467,8 @@ func (r *solveRun) table(cl *call) error {
 	}
 	sol := r.sol
 	if len(r.cross) > 0 {
-		fmt.Fprintf(cl.stdout, "\ncrossings (%s)\n", r.f.sense)
-		tw = newTable(cl.stdout)
+		fmt.Fprintf(w, "\ncrossings (%s)\n", r.f.sense)
+		tw = newTable(w)
 		fmt.Fprintf(tw, "crossing\tsense\tt\t%s\n", strings.Join(r.sys.States, "\t"))
 		for _, h := range sol.Hits {
 			fmt.Fprintf(tw, "%s\t%s\t%s", r.cross[h.Which].label(), h.Sense, tableFloat(h.T))
@@ -493,8 +484,8 @@ func (r *solveRun) table(cl *call) error {
 			return err
 		}
 	}
-	fmt.Fprintln(cl.stdout)
-	tw = newTable(cl.stdout)
+	fmt.Fprintln(w)
+	tw = newTable(w)
 	fmt.Fprintf(tw, "system\t%s\n", describe(r.sys).heading())
 	meth := sol.Method
 	if r.m.fixed {
@@ -508,8 +499,8 @@ func (r *solveRun) table(cl *call) error {
 	return tw.Flush()
 }
 
-// plot draws the state components against time.
-func (r *solveRun) plot(name string, size plotSize) error {
+// chart draws the state components against time.
+func (r *solveRun) chart() *lineChart {
 	c := &lineChart{
 		Title:  fmt.Sprintf("%s: state against time", r.sys.Title),
 		XLabel: "t",
@@ -526,5 +517,5 @@ func (r *solveRun) plot(name string, size plotSize) error {
 		}
 		c.Series = append(c.Series, series{Name: n, X: ts, Y: ys})
 	}
-	return c.save(name, size)
+	return c
 }

@@ -3,16 +3,13 @@ package main
 import (
 	"context"
 	"encoding/csv"
-	"errors"
 	"flag"
 	"fmt"
 	"io"
-	"math"
 	"strconv"
 	"text/tabwriter"
 
 	"github.com/plumbdyn/plumb"
-	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
 )
 
@@ -65,10 +62,10 @@ const (
 	spectrumTransient = 100
 )
 
-// noiseFactor: an exponent more than this many standard errors above zero
-// (about 95% one-sided for batch means of 32 blocks), and this many times
-// ln(D)/D, counts as positive (common practice).
-const noiseFactor = 2
+// spectrumSettingFlags names the flag that sets each lyap.Settings field
+// plumb spectrum sets (Duration is --t1 - --t0 - --transient, checked
+// before).
+var spectrumSettingFlags = map[string]string{"RelTol": "rtol", "AbsTol": "atol", "Transient": "transient", "Iterations": "iterations", "Discard": "discard"}
 
 // spectrumFlags are the flags of plumb spectrum beyond the shared ones.
 type spectrumFlags struct {
@@ -88,8 +85,8 @@ func setupSpectrum(fs *flag.FlagSet, sh *shared) func(context.Context, *call) er
 	finiteVar(fs, &f.t0, "t0", 0, "start time `T0`, the time of the start state")
 	finiteVar(fs, &f.t1, "t1", spectrumT1, "end time `T1` of the run; the span after the transient is averaged")
 	finiteVar(fs, &f.transient, "transient", spectrumTransient, "time `T` integrated and discarded first, so that the tangent vectors align (> 0)")
-	finiteVar(fs, &f.rtol, "rtol", lyap.DefaultRelTol, "relative tolerance `RTOL` of the trajectory and its tangent vectors")
-	finiteVar(fs, &f.atol, "atol", lyap.DefaultAbsTol, "absolute tolerance `ATOL` of the trajectory and its tangent vectors")
+	finiteVar(fs, &f.rtol, "rtol", lyap.DefaultRelTol, "relative tolerance `RTOL` of the trajectory and its tangent vectors (0 also means the default)")
+	finiteVar(fs, &f.atol, "atol", lyap.DefaultAbsTol, "absolute tolerance `ATOL` of the trajectory and its tangent vectors (0 also means the default)")
 	fs.StringVar(&f.method, "method", methods[0].name, "integration `METHOD` of the trajectory and its tangent vectors: any of plumb solve's but the splittings (see 'plumb help solve')")
 	finiteVar(fs, &f.h, "step", 0, "step size `H` of a fixed-step method (-h is help)")
 	fs.IntVar(&f.iterations, "iterations", lyap.DefaultIterations, "average `N` iterates of a map after the discarded ones (maps only)")
@@ -143,12 +140,10 @@ type spectrumResult struct {
 	// is largest first only up to fluctuations); null unless it is
 	// positive.
 	LyapunovTime *float64 `json:"lyapunov_time"`
-	// BeyondNoise reports that the largest exponent stands clear of zero:
-	// more than noiseFactor standard errors, and more than noiseFactor·
-	// ln(D)/D after averaging D time units (about what a merely
-	// polynomial growth, such as the shear of a regular orbit, leaves in
-	// a finite-time exponent). Without it a positive estimate is no sign
-	// of chaos.
+	// BeyondNoise reports that the largest exponent stands clear of zero
+	// (lyap.Spectrum.BeyondNoise): more than lyap.NoiseFactor standard
+	// errors, and more than lyap.NoiseFactor·ln(D)/D after averaging D
+	// time units. Without it a positive estimate is no sign of chaos.
 	BeyondNoise bool `json:"beyond_noise"`
 	// Checks are the sanity residuals that apply.
 	Checks []checkJSON `json:"checks"`
@@ -249,63 +244,45 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 	if !(dur > 0) {
 		return usagef("--t1 %s: the run from --t0 %s must outlast --transient %s", formatFloat(f.t1), formatFloat(f.t0), formatFloat(f.transient))
 	}
-	if f.rtol <= 0 {
-		return usagef("--rtol %s: must be > 0", formatFloat(f.rtol))
-	}
-	if f.rtol < 1e-15 {
-		return usagef("--rtol %s: below 1e-15, float64 rounding decides the error, not the tolerance", formatFloat(f.rtol))
-	}
-	if f.atol <= 0 {
-		return usagef("--atol %s: must be > 0", formatFloat(f.atol))
-	}
 	p := sys.Problem()
 	p.T0 = f.t0
 	s := &lyap.Settings{Method: im, RelTol: f.rtol, AbsTol: f.atol, Duration: dur, Transient: f.transient}
-	var bar *progressBar
-	if cl.progress {
-		bar = newProgressBar(cl.stderr, "plumb spectrum", 0, f.t1-f.t0)
-		s.Progress = func(done, _ float64) { bar.at(done) }
+	if err := s.Validate(); err != nil {
+		return settingUsage(err, spectrumSettingFlags)
 	}
-	start := now()
-	sp, err := lyap.Exponents(ctx, p, k, s)
-	if bar != nil {
-		bar.clear()
-	}
-	if sp == nil {
-		if isMisfit(err) {
-			return m.misfit(sys, err)
-		}
-		if errors.Is(err, lyap.ErrSettings) || errors.Is(err, lyap.ErrCount) || errors.Is(err, integrate.ErrSettings) || errors.Is(err, integrate.ErrSpan) {
-			return usagef("the estimator refused the settings: %v", err)
-		}
-		return fmt.Errorf("starting the spectrum of %s failed: %w", sys.Name, err)
-	}
-	out := f.json(sys, m, k, sp, err)
-	var werr error
-	switch cl.sh.format {
-	case "json":
-		werr = writeJSON(cl.stdout, out)
-	case "csv":
-		werr = spectrumCSV(cl, out.Exponents, out.History)
-	default:
-		werr = spectrumTable(cl, out)
-	}
-	if werr != nil {
-		return fmt.Errorf("writing the results failed: %w", werr)
-	}
-	if cl.sh.plot != "" {
-		if perr := spectrumChart(sys, out.Exponents, out.History).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
-			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-		}
-	}
-	if sp.Stats.Stiff {
-		cl.warnf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy (slow, not wrong)", sp.Stats.StiffAt)
-	}
-	cl.wallTime(start, count(k, "exponent")+", "+count(sp.Stats.Steps, "step")+", "+count(sp.Stats.QR, "re-orthonormalisation"))
-	if out.Status != "completed" {
-		return fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, statusVerb(out.Status), count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
-	}
-	return nil
+	// Echo the tolerances the run uses (0 stands for the SDK's default).
+	eff := s.WithDefaults()
+	f.rtol, f.atol = eff.RelTol, eff.AbsTol
+	return cl.runJob(ctx, job{
+		what:    "the spectrum of " + sys.Name,
+		refusal: "the estimator refused the settings",
+		span:    &[2]float64{0, f.t1 - f.t0},
+		reword:  m.reword(sys),
+		run: func(ctx context.Context, progress func(float64)) (*outcome, error) {
+			if progress != nil {
+				s.Progress = func(done, _ float64) { progress(done) }
+			}
+			sp, err := lyap.Exponents(ctx, p, k, s)
+			if sp == nil {
+				return nil, err
+			}
+			out := f.json(sys, m, k, sp, err)
+			res := &outcome{
+				json:  func() any { return out },
+				table: func(w io.Writer) error { return spectrumTable(w, out) },
+				csv:   func(w io.Writer) error { return spectrumCSV(w, out.Exponents, out.History) },
+				chart: func() *lineChart { return spectrumChart(sys, out.Exponents, out.History) },
+				done:  count(k, "exponent") + ", " + count(sp.Stats.Steps, "step") + ", " + count(sp.Stats.QR, "re-orthonormalisation"),
+			}
+			if sp.Stats.Stiff {
+				res.warnings = append(res.warnings, fmt.Sprintf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy (slow, not wrong)", sp.Stats.StiffAt))
+			}
+			if out.Status != "completed" {
+				res.err = fmt.Errorf("the spectrum of %s %s (%s of %d completed, the estimate so far written): %w", sys.Name, statusVerb(out.Status), count(sp.Blocks, "averaging block"), lyap.DefaultBlocks, err)
+			}
+			return res, nil
+		},
+	})
 }
 
 // json builds the result; runErr is the error of the run, if any.
@@ -318,7 +295,7 @@ func (f *spectrumFlags) json(sys *plumb.System, m method, k int, sp *lyap.Spectr
 			Method: m.name, MethodName: sp.Method, Step: f.h, Blocks: lyap.DefaultBlocks,
 		},
 		Units:          spectrumUnits,
-		spectrumResult: newSpectrumResult(sys, k, sp, runErr),
+		spectrumResult: newSpectrumResult(sp, runErr),
 		Run: spectrumRunJSON{
 			Method: sp.Method, Jacobian: sp.Jacobian, Start: sp.Start, Duration: sp.Duration,
 			Blocks: sp.Blocks, BlockLength: sp.BlockLength, MeanInterval: sp.MeanInterval,
@@ -336,40 +313,21 @@ func (f *spectrumFlags) json(sys *plumb.System, m method, k int, sp *lyap.Spectr
 	return out
 }
 
-// newSpectrumResult reads an estimate sp of k exponents of sys, flow or
-// map; runErr is the error of the run, if any.
-func newSpectrumResult(sys *plumb.System, k int, sp *lyap.Spectrum, runErr error) spectrumResult {
+// newSpectrumResult reads an estimate sp, flow or map; runErr is the error
+// of the run, if any. The judgements (bounds, Lyapunov time, beyond noise)
+// are lyap.Spectrum's.
+func newSpectrumResult(sp *lyap.Spectrum, runErr error) spectrumResult {
 	out := spectrumResult{Exponents: sp.Exponents, StdErr: sp.StdErr, Checks: []checkJSON{}}
 	out.Status, out.Error = runStatus(runErr)
-	e := sp.Exponents
-	if allFinite(e) && len(e) > 0 {
-		ky := lyap.KaplanYorke(e)
-		out.KaplanYorke = &ky
-		out.KaplanYorkeBound = "exact"
-		if k < len(sys.States) && ky == float64(k) {
-			// Every partial sum of the exponents given is >= 0, so the
-			// next exponent decides where the dimension stops.
-			out.KaplanYorkeBound = "lower"
-		}
-		h := lyap.Entropy(e)
-		out.Entropy = &h
-		out.EntropyBound = "exact"
-		if k < len(sys.States) && minOf(e) > 0 {
-			out.EntropyBound = "lower"
-		}
-		top := 0
-		for i, v := range e {
-			if v > e[top] {
-				top = i
-			}
-		}
-		if e[top] > 0 {
-			lt := lyap.LyapunovTime(e[top])
-			out.LyapunovTime = &lt
-			d := sp.Duration
-			out.BeyondNoise = top < len(sp.StdErr) && e[top] > noiseFactor*sp.StdErr[top] &&
-				d > 1 && e[top] > noiseFactor*math.Log(d)/d
-		}
+	if ky, b, ok := sp.KaplanYorke(); ok {
+		out.KaplanYorke, out.KaplanYorkeBound = &ky, string(b)
+	}
+	if h, b, ok := sp.Entropy(); ok {
+		out.Entropy, out.EntropyBound = &h, string(b)
+	}
+	if lt, ok := sp.LyapunovTime(); ok {
+		out.LyapunovTime = &lt
+		out.BeyondNoise = sp.BeyondNoise()
 	}
 	for _, c := range sp.Checks {
 		out.Checks = append(out.Checks, checkJSON{Name: c.Name, Residual: c.Residual, StdErr: c.StdErr, Meaning: checkMeaning[c.Name]})
@@ -377,31 +335,14 @@ func newSpectrumResult(sys *plumb.System, k int, sp *lyap.Spectrum, runErr error
 	return out
 }
 
-func allFinite(v []float64) bool {
-	for _, x := range v {
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return false
-		}
-	}
-	return true
-}
-
-func minOf(v []float64) float64 {
-	m := math.Inf(1)
-	for _, x := range v {
-		m = math.Min(m, x)
-	}
-	return m
-}
-
 // spectrumTable writes the exponents, the derived measures, the checks and
 // the run.
-func spectrumTable(cl *call, out spectrumJSON) error {
+func spectrumTable(w io.Writer, out spectrumJSON) error {
 	words := flowRates
 	if tu := out.System.TimeUnit; tu != "" {
 		words = spectrumUnitWords{rate: "per " + tu, time: " " + tu}
 	}
-	tw, err := spectrumHead(cl.stdout, out.System, out.spectrumResult, words)
+	tw, err := spectrumHead(w, out.System, out.spectrumResult, words)
 	if err != nil {
 		return err
 	}
@@ -457,7 +398,7 @@ func spectrumHead(w io.Writer, sys systemJSON, out spectrumResult, u spectrumUni
 	case out.LyapunovTime != nil && out.BeyondNoise:
 		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g%s\n", *out.LyapunovTime, u.time)
 	case out.LyapunovTime != nil:
-		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g%s (no clear sign of chaos: the largest exponent is within %d standard errors or %d ln(D)/D of 0)\n", *out.LyapunovTime, u.time, noiseFactor, noiseFactor)
+		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\t%.4g%s (no clear sign of chaos: the largest exponent is within %d standard errors or %d ln(D)/D of 0)\n", *out.LyapunovTime, u.time, lyap.NoiseFactor, lyap.NoiseFactor)
 	case len(out.Exponents) > 0:
 		fmt.Fprintf(tw, "Lyapunov time 1/lambda_max\tnone (no exponent is positive)\n")
 	}
@@ -473,8 +414,8 @@ func spectrumHead(w io.Writer, sys systemJSON, out spectrumResult, u spectrumUni
 
 // spectrumCSV writes the convergence history: t, blocks, then the running
 // estimate of each exponent.
-func spectrumCSV(cl *call, exponents []float64, history []lyap.Point) error {
-	w := csv.NewWriter(cl.stdout)
+func spectrumCSV(out io.Writer, exponents []float64, history []lyap.Point) error {
+	w := csv.NewWriter(out)
 	rec := []string{"t", "blocks"}
 	for i := range exponents {
 		rec = append(rec, "lambda_"+strconv.Itoa(i+1))

@@ -223,7 +223,7 @@ func TestSpectrumBadInput(t *testing.T) {
 		{"not an int", []string{"--exponents", "two"}, "--exponents"},
 		{"transient zero", []string{"--transient", "0"}, "--transient"},
 		{"t1 before transient ends", []string{"--t1", "50"}, "--t1"},
-		{"rtol zero", []string{"--rtol", "0"}, "--rtol"},
+		{"rtol negative", []string{"--rtol", "-1e-9"}, "--rtol"},
 		{"atol negative", []string{"--atol", "-1"}, "--atol"},
 		{"unknown method", []string{"--method", "rk9"}, "--method"},
 		{"fixed without step", []string{"--method", "rk4"}, "--step"},

@@ -39,11 +39,19 @@ type versionJSON struct {
 	GoVersion string `json:"go_version"`
 }
 
-func runVersion(_ context.Context, cl *call) error {
-	if cl.sh.format == "json" {
-		return writeJSON(cl.stdout, versionJSON{header: newHeader("version"), Status: "completed", OS: runtime.GOOS, GoVersion: runtime.Version()})
-	}
-	return writeVersion(cl.stdout)
+func runVersion(ctx context.Context, cl *call) error {
+	return cl.runJob(ctx, job{
+		what:    "the version report",
+		refusal: "the version report refused the input",
+		run: func(context.Context, func(float64)) (*outcome, error) {
+			return &outcome{
+				json: func() any {
+					return versionJSON{header: newHeader("version"), Status: "completed", OS: runtime.GOOS, GoVersion: runtime.Version()}
+				},
+				table: writeVersion,
+			}, nil
+		},
+	})
 }
 
 // writeVersion writes the line of 'plumb --version': "plumb VERSION

@@ -1,0 +1,107 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"strings"
+	"testing"
+
+	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/lyap"
+)
+
+// TestStartFailureExit: a run that computed nothing exits 2 when the SDK
+// refused its input and 1 when it failed, the same in every command (a
+// dimension error used to exit 2 from solve and 1 from spectrum).
+func TestStartFailureExit(t *testing.T) {
+	cmd := &command{name: "spectrum"}
+	j := job{what: "the spectrum of lorenz", refusal: "the estimator refused the settings"}
+	for _, c := range []struct {
+		name string
+		err  error
+		want int
+	}{
+		{"integrate settings", fmt.Errorf("integrate: Settings.RelTol = -1: %w", integrate.ErrSettings), exitUsage},
+		{"integrate dimension", fmt.Errorf("integrate: Y0 has length 2: %w", integrate.ErrDimension), exitUsage},
+		{"integrate span", integrate.ErrSpan, exitUsage},
+		{"integrate method", integrate.ErrMethod, exitUsage},
+		{"integrate ladder", integrate.ErrLadder, exitUsage},
+		{"lyap settings", fmt.Errorf("lyap: Settings.Blocks = 1: %w", lyap.ErrSettings), exitUsage},
+		{"lyap count", lyap.ErrCount, exitUsage},
+		{"lyap dimension", lyap.ErrDimension, exitUsage},
+		{"horizon", plumb.ErrHorizon, exitUsage},
+		{"steps", plumb.ErrSteps, exitUsage},
+		{"tolerance", plumb.ErrTolerance, exitUsage},
+		{"non-finite start", fmt.Errorf("derivative is NaN at t=0: %w", integrate.ErrNonFinite), exitFailed},
+		{"step budget", integrate.ErrStepBudget, exitFailed},
+		{"canceled", context.Canceled, exitFailed},
+		{"no jacobian", lyap.ErrNoJacobian, exitFailed},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			var stderr bytes.Buffer
+			err := startFailure(j, c.err)
+			if got := report(&stderr, cmd, err); got != c.want {
+				t.Errorf("exit %d, want %d (%s)", got, c.want, stderr.String())
+			}
+			if !strings.Contains(stderr.String(), c.err.Error()) {
+				t.Errorf("stderr %q does not say why (%q)", stderr.String(), c.err)
+			}
+		})
+	}
+}
+
+// TestStartFailureReword: a command's own wording of a refusal (a method
+// that does not fit the model) comes before the table.
+func TestStartFailureReword(t *testing.T) {
+	own := usagef("--method verlet does not fit model lorenz")
+	j := job{what: "the integration of lorenz", refusal: "the integrator refused the settings",
+		reword: func(err error) error {
+			if errors.Is(err, integrate.ErrMethod) {
+				return own
+			}
+			return nil
+		}}
+	if got := startFailure(j, integrate.ErrMethod); got != own {
+		t.Errorf("ErrMethod: got %v, want the command's own %v", got, own)
+	}
+	var ue *usageError
+	if got := startFailure(j, integrate.ErrSpan); !errors.As(got, &ue) || !strings.HasPrefix(ue.msg, "the integrator refused the settings: ") {
+		t.Errorf("ErrSpan: got %v, want the refusal", got)
+	}
+}
+
+// TestRunJobPartial: a run that stopped early writes what it did, draws
+// nothing when there is nothing to draw, reports its warnings and wall
+// time, and returns the run's error (exit 1).
+func TestRunJobPartial(t *testing.T) {
+	var stdout, stderr bytes.Buffer
+	stop := errors.New("stopped at t=3")
+	cl := &call{cmd: &command{name: "solve"}, sh: &shared{format: "table", plot: "never-written.svg"}, stdout: &stdout, stderr: &stderr}
+	err := cl.runJob(context.Background(), job{
+		what: "the test run", refusal: "refused",
+		run: func(context.Context, func(float64)) (*outcome, error) {
+			return &outcome{
+				table:    func(w io.Writer) error { _, err := io.WriteString(w, "row 1\n"); return err },
+				chart:    func() *lineChart { return nil },
+				warnings: []string{"looks stiff"},
+				done:     "1 sample",
+				err:      stop,
+			}, nil
+		},
+	})
+	if err != stop {
+		t.Errorf("error %v, want the run's %v", err, stop)
+	}
+	if stdout.String() != "row 1\n" {
+		t.Errorf("stdout %q, want the partial table", stdout.String())
+	}
+	for _, want := range []string{"plumb solve: warning: looks stiff\n", "plumb solve: 1 sample in "} {
+		if !strings.Contains(stderr.String(), want) {
+			t.Errorf("stderr %q lacks %q", stderr.String(), want)
+		}
+	}
+}
