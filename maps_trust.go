@@ -2,7 +2,6 @@ package plumb
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -10,50 +9,24 @@ import (
 	"strings"
 
 	"github.com/plumbdyn/plumb/integrate"
-	"github.com/plumbdyn/plumb/internal/detmath"
 	"github.com/plumbdyn/plumb/lyap"
+	"github.com/plumbdyn/plumb/maps"
 )
 
 // ErrSteps reports an iteration count that TrustMap cannot audit.
-var ErrSteps = errors.New("invalid number of iterations")
+var ErrSteps = maps.ErrSteps
 
-// MaxMapSteps bounds the iterations TrustMap audits (its run time; memory
-// does not grow with the horizon, see MapCurvePoints).
-const MaxMapSteps = 10_000_000
+// MaxMapSteps bounds the iterations TrustMap audits.
+const MaxMapSteps = maps.MaxSteps
 
-// MapRung is one run of a map audit, compared iterate by iterate with the
-// double-double reference orbit.
-type MapRung struct {
-	// Name labels the rung in reports.
-	Name string
-	// Kind is integrate.KindPrecision (the orbit from the start, every
-	// iterate stored with Storage; NoRounding is plain float64) or
-	// integrate.KindRestart (a float64 orbit from the reference state at
-	// iterate RestartAt, rounded by Restart).
-	Kind integrate.RungKind
-	// Storage is the emulated storage of a precision rung.
-	Storage integrate.Rounding
-	// RestartAt, 1 <= RestartAt < steps, and Restart are the restart's
-	// iterate and rounding.
-	RestartAt int
-	Restart   integrate.Rounding
-}
+// MapCurvePoints bounds the points each divergence curve of a map audit keeps.
+const MapCurvePoints = maps.CurvePoints
 
-// DefaultMapRungs is the ladder TrustMap runs over steps iterations when
-// MapTrustSettings.Rungs is nil: float64 itself, storage emulated at 40 and
-// 24 bits, and a restart at 0.8·steps from the reference state rounded to 3
-// decimal places (a printout).
-func DefaultMapRungs(steps int) []MapRung {
-	rs := []MapRung{
-		{Name: "float64", Kind: integrate.KindPrecision},
-		{Name: "40 bits", Kind: integrate.KindPrecision, Storage: integrate.Bits(40)},
-		{Name: "24 bits", Kind: integrate.KindPrecision, Storage: integrate.Bits(24)},
-	}
-	if at := int(0.8 * float64(steps)); at >= 1 && at < steps {
-		rs = append(rs, MapRung{Name: "restart", Kind: integrate.KindRestart, RestartAt: at, Restart: integrate.Places(3)})
-	}
-	return rs
-}
+// MapRung is one run of a map audit.
+type MapRung = maps.Rung
+
+// DefaultMapRungs is maps.DefaultRungs.
+func DefaultMapRungs(steps int) []MapRung { return maps.DefaultRungs(steps) }
 
 // MapTrustSettings controls TrustMap. A nil *MapTrustSettings is invalid:
 // the tolerance is the caller's statement of what difference matters.
@@ -184,16 +157,6 @@ type MapRungReport struct {
 	Error string `json:"error,omitempty"`
 }
 
-// boundedFactor: a divergence that never exceeds this many times the
-// rounding that started it is rounding noise, not growth (common practice:
-// a stable orbit forgets each rounding, so the noise stays within a few
-// units).
-const boundedFactor = 10
-
-// mapFitMin is the fewest points a growth fit takes (common practice:
-// fewer cannot tell a line from a curve).
-const mapFitMin = 5
-
 // TrustMap audits how many iterates of the map sys can be believed: it
 // iterates sys from its start for steps iterations in double-double
 // arithmetic (the reference, about 32 digits, System.DoubleDoubleEvaluator)
@@ -261,198 +224,80 @@ func TrustMap(ctx context.Context, sys *System, steps int, settings *MapTrustSet
 		return nil, err
 	}
 	rungs := s.Rungs
-	if rungs == nil {
-		rungs = DefaultMapRungs(steps)
-	}
-	if len(rungs) == 0 {
-		return nil, fmt.Errorf("plumb: MapTrustSettings.Rungs is empty: nothing to compare with the reference: %w", integrate.ErrLadder)
-	}
-	for i, r := range rungs {
-		if err := checkMapRung(r, steps); err != nil {
-			return nil, fmt.Errorf("plumb: MapTrustSettings.Rungs[%d] (%s): %w", i, r.Name, err)
-		}
-	}
 	scales, err := s.Distance.PerComponent(sys.States)
 	if err != nil {
 		return nil, err
-	}
-	ev, err := sys.DoubleDoubleEvaluator()
-	if err != nil {
-		return nil, fmt.Errorf("plumb: TrustMap: %w", err)
 	}
 	m, err := sys.Map()
 	if err != nil {
 		return nil, fmt.Errorf("plumb: TrustMap: %w", err)
 	}
 	x0 := sys.Start()
-	for i, v := range x0 {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, fmt.Errorf("plumb: TrustMap: start[%d] = %v: %w", i, v, integrate.ErrNonFinite)
-		}
-	}
-	periods := sys.Periods()
 	rep := &MapReport{
 		Steps: steps, Tol: s.Tol, Relative: s.Relative, TolAbs: s.Tol, Reference: "double-double (about 32 digits)",
 		Rungs: []MapRungReport{}, Caution: Caution, Arch: runtime.GOARCH, Version: buildVersion(),
-		Distance: newDistanceReport(sys.States, scales, periods),
+		Distance: newDistanceReport(sys.States, scales, sys.Periods()),
 	}
-
-	// The reference and the rungs advance together, so that nothing of
-	// length steps is stored. A relative tolerance needs the reference's
-	// spread first: a pass over the reference alone gives it.
-	tol := s.Tol
-	if s.Relative {
-		pre := newMapLockstep(ev, m, nil, x0, steps, periods, math.Inf(1))
-		pre.scales = scales
-		preErr := pre.run(ctx)
-		rep.Magnitude, rep.Spread = pre.size()
-		if preErr != nil {
-			rep.Verdict = Incomplete
-			rep.TrustedUntil = 0
-			return rep, fmt.Errorf("plumb: TrustMap: reference orbit stopped at iterate %d: %w", pre.reached, preErr)
-		}
-		tol = float64(s.Tol * rep.Spread)
-		rep.TolAbs = tol
-		if !(tol > 0) {
-			rep.Verdict = Incomplete
-			return rep, fmt.Errorf("plumb: TrustMap: a relative tolerance needs an orbit with spread, and this one has none (a fixed point): %w", integrate.ErrSettings)
-		}
+	res, runErr := maps.Audit(ctx, m, x0, steps, &maps.AuditSettings{Tol: s.Tol, Relative: s.Relative, Rungs: rungs, Scales: scales})
+	if res == nil {
+		return nil, fmt.Errorf("plumb: TrustMap: %w", runErr)
 	}
-	a := newMapLockstep(ev, m, rungs, x0, steps, periods, tol)
-	a.scales = scales
-	runErr := a.run(ctx)
-	if !s.Relative || runErr != nil {
-		rep.Magnitude, rep.Spread = a.size()
-	}
-	rep.Stride = a.stride
-	for _, run := range a.runs {
-		r := &run.out
-		switch {
-		case run.r.Kind == integrate.KindRestart:
-			r.Delta0 = roundingUnit(run.r.Restart, rep.Magnitude)
-			if run.r.Restart.Kind == integrate.DecimalPlaces {
-				// An absolute rounding per component, in the audit's distance.
-				r.Delta0 *= integrate.AbsWeight(scales)
+	if runErr == nil {
+		lambda := s.Lambda
+		if lambda > 0 {
+			rep.Exponent = givenExponent(lambda)
+		} else {
+			sp, err := lyap.MapExponents(ctx, m, x0, 1, s.Exponent)
+			if err != nil && ctx.Err() != nil {
+				runErr = fmt.Errorf("plumb: TrustMap canceled during the exponent estimate: %w", err)
 			}
-		case run.store.Kind != integrate.NoRounding:
-			r.Delta0 = roundingUnit(run.store, rep.Magnitude)
-		default:
-			r.Delta0 = roundingUnit(integrate.Bits(53), rep.Magnitude)
+			rep.Exponent, rep.ExponentError, lambda = estimatedExponent(sp, err)
 		}
-		run.finish()
-		rep.Rungs = append(rep.Rungs, *r)
+		res.Predict(lambda)
 	}
-	ids := make([]*string, len(rep.Rungs))
-	for i := range rep.Rungs {
-		ids[i] = &rep.Rungs[i].ID
-	}
-	uniqueIDs(ids, "")
+	rep.fill(res)
 	if runErr != nil {
-		rep.fill(a.maxDiv)
 		rep.Verdict = Incomplete
-		if ctx.Err() != nil {
-			return rep, fmt.Errorf("plumb: TrustMap canceled at iterate %d: %w", a.reached, runErr)
-		}
-		return rep, fmt.Errorf("plumb: TrustMap: reference orbit stopped at iterate %d: %w", a.reached, runErr)
+		return rep, runErr
 	}
-
-	lambda := s.Lambda
-	if lambda > 0 {
-		rep.Exponent = givenExponent(lambda)
-	} else {
-		sp, err := lyap.MapExponents(ctx, m, x0, 1, s.Exponent)
-		if err != nil && ctx.Err() != nil {
-			rep.fill(a.maxDiv)
-			rep.Verdict = Incomplete
-			return rep, fmt.Errorf("plumb: TrustMap canceled during the exponent estimate: %w", err)
-		}
-		rep.Exponent, rep.ExponentError, lambda = estimatedExponent(sp, err)
-	}
-	if lambda > 0 {
-		for i := range rep.Rungs {
-			r := &rep.Rungs[i]
-			r.Predicted = float64(r.Start)
-			if r.Delta0 < tol {
-				r.Predicted += detmath.Log(tol/r.Delta0) / lambda
-			}
-		}
-	}
-	rep.fill(a.maxDiv)
 	return rep, nil
 }
 
-// checkMapRung validates one rung for an audit of steps iterations.
-func checkMapRung(r MapRung, steps int) error {
-	switch r.Kind {
-	case integrate.KindPrecision:
-		if r.Storage.Kind != integrate.NoRounding {
-			if err := r.Storage.Validate(); err != nil {
-				return err
-			}
-		}
-	case integrate.KindRestart:
-		if r.RestartAt < 1 || r.RestartAt >= steps {
-			return fmt.Errorf("restart at iterate %d: must be 1 to %d: %w", r.RestartAt, steps-1, integrate.ErrLadder)
-		}
-		if err := r.Restart.Validate(); err != nil {
-			return err
-		}
-	default:
-		return fmt.Errorf("kind %s: a map audit takes precision and restart rungs: %w", r.Kind, integrate.ErrLadder)
-	}
-	return nil
-}
-
-// roundingUnit is half a unit in the last place that r keeps, at magnitude
-// mag: 2^-p·mag for p bits, 5·10^-k·mag for k digits, 5·10^-(k+1) for k
-// decimal places (the perturbation a rounding makes, common practice).
-func roundingUnit(r integrate.Rounding, mag float64) float64 {
-	if mag == 0 {
-		mag = 1
-	}
-	switch r.Kind {
-	case integrate.BinaryBits:
-		return math.Ldexp(mag, -r.N)
-	case integrate.SignificantDigits:
-		return 5 * detmath.Pow(10, -float64(r.N)) * mag
-	case integrate.DecimalPlaces:
-		return 5 * detmath.Pow(10, -float64(r.N+1))
-	}
-	return 0
-}
-
-func finiteOr0(v float64) float64 {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0
-	}
-	return v
-}
-
-// fill draws the conclusions from the rungs; maxDiv is the largest
-// divergence of any rung up to the trusted iterate, which the lockstep
-// iteration measured at full resolution.
-func (rep *MapReport) fill(maxDiv float64) {
-	rep.TrustedUntil = rep.Steps
-	limit := -1
+// fill copies the audit into the report and draws the conclusions.
+func (rep *MapReport) fill(res *maps.AuditResult) {
+	rep.TolAbs, rep.Spread, rep.Magnitude, rep.Stride = res.Tol, res.Spread, res.Magnitude, res.Stride
+	rep.Rungs = make([]MapRungReport, len(res.Rungs))
+	ids := make([]*string, len(res.Rungs))
 	var vote growthVote
-	rep.Failed = 0
-	for i, r := range rep.Rungs {
-		if r.Error != "" {
-			rep.Failed++
+	for i, r := range res.Rungs {
+		out := MapRungReport{
+			Name: r.Rung.Name, Effect: r.Rung.Kind.String(), ID: rungID(r.Rung.Kind, "", 0, r.Rung.Storage),
+			AgreesUntil: r.AgreesUntil, Departed: r.Departed, DepartsAt: r.DepartsAt,
+			Delta0: r.Delta0, Predicted: r.Predicted, Growth: r.Growth.Kind.String(),
+			Rate: finiteOr0(r.Growth.Rate), RateErr: finiteOr0(r.Growth.RateErr), Power: finiteOr0(r.Growth.Power), PowerErr: finiteOr0(r.Growth.PowerErr),
+			Start: r.Start, Stride: res.Stride, Divergence: r.Divergence,
 		}
-		vote.add(r.Growth)
-		if r.Departed && r.AgreesUntil < rep.TrustedUntil {
-			rep.TrustedUntil, limit = r.AgreesUntil, i
+		switch {
+		case r.Rung.Kind == integrate.KindRestart:
+			out.Rounding, out.RestartAt = r.Rung.Restart.String(), r.Rung.RestartAt
+		case r.Rung.Storage.Kind != integrate.NoRounding:
+			out.Rounding = r.Rung.Storage.String()
+		default:
+			out.Rounding = "float64"
 		}
-		if !r.Departed && r.Error != "" && r.AgreesUntil < rep.TrustedUntil {
-			// A run that stopped early vouches for nothing beyond it.
-			rep.TrustedUntil, limit = r.AgreesUntil, i
+		if r.Err != nil {
+			out.Error = r.Err.Error()
 		}
+		rep.Rungs[i] = out
+		ids[i] = &rep.Rungs[i].ID
+		vote.add(out.Growth)
 	}
-	rep.TolUsed = maxDiv / rep.TolAbs
+	uniqueIDs(ids, "")
+	rep.TrustedUntil, rep.Failed = res.Trusted, res.Failed
+	rep.TolUsed = res.MaxDivergence / rep.TolAbs
 	rep.LimitedBy, rep.LimitingRung = "", ""
-	if limit >= 0 {
-		rep.LimitedBy, rep.LimitingRung = rep.Rungs[limit].Effect, rep.Rungs[limit].Name
+	if res.Limit >= 0 {
+		rep.LimitedBy, rep.LimitingRung = rep.Rungs[res.Limit].Effect, rep.Rungs[res.Limit].Name
 	}
 	rep.Growth = vote.law()
 	rep.PredictedHorizon = 0
@@ -469,6 +314,13 @@ func (rep *MapReport) fill(maxDiv float64) {
 		}
 	}
 	rep.Verdict = verdictOf(len(rep.Rungs), rep.Failed, rep.TrustedUntil < rep.Steps, rep.TolUsed)
+}
+
+func finiteOr0(v float64) float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0
+	}
+	return v
 }
 
 // Write writes the report as a short readable summary: the rungs with

@@ -4,13 +4,11 @@ import (
 	"context"
 	"errors"
 	"math"
-	"math/big"
 	"os"
 	"reflect"
 	"testing"
 
 	"github.com/plumbdyn/plumb/integrate"
-	"github.com/plumbdyn/plumb/internal/dd"
 	"github.com/plumbdyn/plumb/lyap"
 )
 
@@ -109,30 +107,6 @@ func TestBuiltinMapKind(t *testing.T) {
 	}
 	if _, err := Model("lorenz"); err != nil {
 		t.Fatal(err)
-	}
-}
-
-// TestWrapAngleDD checks the double-double reduction against math/big's
-// exact x - k·p (reference library: math/big).
-func TestWrapAngleDD(t *testing.T) {
-	p := 2 * math.Pi
-	for _, x := range []float64{7, -0.5, 100.25, -1e6, 3, 6.283185307179586, 1e-20} {
-		got := wrapAngleDD(dd.Float{Hi: x, Lo: x * 1e-18}, p)
-		xb := new(big.Float).SetPrec(200).SetFloat64(x)
-		xb.Add(xb, new(big.Float).SetFloat64(x*1e-18))
-		k := math.Floor((x + x*1e-18) / p)
-		want := new(big.Float).SetPrec(200).Sub(xb, new(big.Float).SetPrec(200).Mul(big.NewFloat(k), big.NewFloat(p)))
-		if w, _ := want.Float64(); w < 0 || w >= p {
-			continue // k off by one in float64: the case the loop corrects; checked by the range test below
-		}
-		diff, _ := new(big.Float).Sub(got.Big(), want).Float64()
-		// double-double keeps about 1e-32 relative; the reduction is exact.
-		if math.Abs(diff) > 1e-30*math.Max(1, math.Abs(x)) {
-			t.Errorf("wrap(%v) differs from big by %g", x, diff)
-		}
-		if got.Hi < 0 || got.Hi >= p {
-			t.Errorf("wrap(%v) = %v, outside [0, p)", x, got.Hi)
-		}
 	}
 }
 

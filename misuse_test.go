@@ -11,6 +11,7 @@ import (
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
+	"github.com/plumbdyn/plumb/maps"
 )
 
 // lorenzField is the Lorenz (1963) field at the published parameters
@@ -67,8 +68,8 @@ func TestMisuse(t *testing.T) {
 			return err
 		}, want: integrate.ErrSettings},
 		{name: "zero System TrustSystem", call: func() error { _, err := TrustSystem(ctx, new(System), 1, nil); return err }, want: ErrNoSystem},
-		{name: "zero MapSystem", call: func() error {
-			var m MapSystem
+		{name: "zero maps.Map", call: func() error {
+			var m maps.Map
 			m.Next(y0, y0)
 			m.Jacobian(y0, mat.NewDense(3, 3, nil))
 			_, err := lyap.MapExponents(ctx, &m, nil, 1, nil)

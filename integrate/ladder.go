@@ -114,6 +114,13 @@ type Ladder struct {
 // the second call's error only leaves the horizons as the grid gives them.
 type Trajectory func(ctx context.Context, times []float64) ([][]float64, error)
 
+// RestartFraction places the default restart rung at this fraction of the
+// audited span, t0 + RestartFraction·(t1 - t0) (of a map's iterates, see
+// maps.DefaultRungs): late enough that the audit has compared the runs from
+// the start for most of the span, early enough that the restarted run has
+// time to part (common practice).
+const RestartFraction = 0.8
+
 // Default tolerances of the reference rung.
 const (
 	ReferenceRelTol = 1e-12
@@ -129,7 +136,7 @@ const (
 //	           at 1e-8: the method's effect at equal tolerance); RK4 with an
 //	           eighth of the reference's mean step
 //	precision  the reference with the state stored at 24 bits (float32) and at 40 bits
-//	restart    the reference restarted at t0 + 0.8·(t1 - t0) from its state
+//	restart    the reference restarted at t0 + RestartFraction·(t1 - t0) from its state
 //	           rounded to 3 decimal places
 //
 // The two precisions let the audit extrapolate the horizon of float64
@@ -144,7 +151,7 @@ func DefaultLadder(t0, t1 float64) Ladder {
 		Rung{Kind: KindMethod, Fixed: RK4},
 		Rung{Kind: KindPrecision, Rounding: Bits(24)},
 		Rung{Kind: KindPrecision, Rounding: Bits(40)},
-		Rung{Kind: KindRestart, RestartAt: t0 + float64(0.8*(t1-t0)), Restart: Places(3)},
+		Rung{Kind: KindRestart, RestartAt: t0 + float64(RestartFraction*(t1-t0)), Restart: Places(3)},
 	)
 	return l
 }
