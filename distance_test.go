@@ -227,7 +227,7 @@ func TestTrustMapObserveByHand(t *testing.T) {
 	require.Positive(t, departs, "the float64 orbit must depart within %d iterates for the check to bite", steps)
 	require.True(t, r.Departed)
 	require.Equal(t, departs, r.DepartsAt, "first iterate beyond tol (exact identity)")
-	require.Equal(t, departs-1, r.AgreesUntil)
+	require.Equal(t, float64(departs-1), r.AgreesUntil)
 	require.Equal(t, "Euclidean over x (y not compared)", rep.Distance.String())
 }
 

@@ -137,7 +137,7 @@ func TestTrustMapHorizons(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			rung := map[string]MapRungReport{}
+			rung := map[string]RungReport{}
 			for _, r := range rep.Rungs {
 				rung[r.Name] = r
 			}
@@ -160,7 +160,7 @@ func TestTrustMapHorizons(t *testing.T) {
 				t.Errorf("exponent %+v, want %.5g (%s)", rep.Exponent, c.lambda, c.source)
 			}
 			if rep.TrustedUntil != b24.AgreesUntil || rep.LimitingRung != "24 bits" {
-				t.Errorf("trusted until %d limited by %q; want the 24-bit rung's %d", rep.TrustedUntil, rep.LimitingRung, b24.AgreesUntil)
+				t.Errorf("trusted until %v limited by %q; want the 24-bit rung's %v", rep.TrustedUntil, rep.LimitingRung, b24.AgreesUntil)
 			}
 		})
 	}
@@ -181,7 +181,7 @@ func TestTrustMapStableCycle(t *testing.T) {
 		t.Fatal(err)
 	}
 	if rep.Verdict != TrustedWithMargin || rep.TrustedUntil != 500 {
-		t.Errorf("verdict %s until %d, want trusted_with_margin until 500", rep.Verdict, rep.TrustedUntil)
+		t.Errorf("verdict %s until %v, want trusted_with_margin until 500", rep.Verdict, rep.TrustedUntil)
 	}
 	if rep.Growth != "bounded" || rep.PredictedHorizon != 0 {
 		t.Errorf("growth %s, predicted %v; want bounded and no prediction", rep.Growth, rep.PredictedHorizon)

@@ -22,6 +22,17 @@ var (
 	ErrTolerance = errors.New("invalid tolerance")
 )
 
+// Stage names the part of an audit that TrustSettings.Progress reports on.
+type Stage string
+
+// Stages of an audit.
+const (
+	// StageAudit: the runs of the ladder (or the orbits of a map).
+	StageAudit Stage = "audit"
+	// StageExponent: the estimate of the largest Lyapunov exponent.
+	StageExponent Stage = "exponent"
+)
+
 // Caution is the statement every trust report carries.
 const Caution = "A trust horizon is a statement about the numerical model and how it was computed, " +
 	"not a safety certificate for the real system it describes. " +
@@ -75,10 +86,10 @@ type TrustSettings struct {
 	// otherwise integrate.ErrSettings.
 	MaxSteps int
 	// Progress, if not nil, is called as work completes with the stage
-	// ("audit" with runs done and total, then "exponent" with 0 and 1, and 1
-	// and 1 when done). It must not block for long; the CLI draws its
-	// progress bar from it.
-	Progress func(stage string, done, total int)
+	// (StageAudit with runs done and total, StageExponent with 0 and 1,
+	// and 1 and 1 when done; the two may come in either order). It must
+	// not block for long; the CLI draws its progress bar from it.
+	Progress func(stage Stage, done, total int)
 }
 
 // Trust audits how far ahead a computed trajectory of problem can be
@@ -147,12 +158,12 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 		Tol: s.Tol, Relative: s.Relative, Every: s.Every, Periods: s.Periods, Scales: scales, Reverse: !s.NoReversal,
 		MaxSteps: s.MaxSteps,
 	}
-	progress := func(stage string, done, total int) {
+	progress := func(stage Stage, done, total int) {
 		if s.Progress != nil {
 			s.Progress(stage, done, total)
 		}
 	}
-	as.Progress = func(done, total int) { progress("audit", done, total) }
+	as.Progress = func(done, total int) { progress(StageAudit, done, total) }
 
 	// The audit first: it validates its input before any work, so bad input
 	// costs nothing. The exponent then sets predictions beside the measured
@@ -170,9 +181,9 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	if lambda > 0 {
 		rep.Exponent = givenExponent(lambda)
 	} else {
-		progress("exponent", 0, 1)
+		progress(StageExponent, 0, 1)
 		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
-		progress("exponent", 1, 1)
+		progress(StageExponent, 1, 1)
 		if err != nil && ctx.Err() != nil {
 			rep.fill(res)
 			rep.Verdict = Incomplete
@@ -204,31 +215,13 @@ func (rep *Report) fill(res *integrate.AuditResult) {
 	rep.YourRun = yourRun(res, rep.Rungs)
 	if res.Limit >= 0 {
 		r := res.Rungs[res.Limit]
-		rep.LimitedBy = r.Rung.Kind.String()
+		rep.LimitedBy = integrate.RungKind(r.Rung.Kind.String())
 		rep.LimitingRung = r.Rung.Name
 	}
 	if res.Tol > 0 {
 		rep.TolUsed = res.MaxDivergence / res.Tol
 	}
-	end := rep.T0 + rep.Horizon
-	rep.Verdict = verdictOf(len(res.Rungs), res.Failed, res.Trusted < end, rep.TolUsed)
-	var vote growthVote
-	for _, r := range rep.Rungs {
-		vote.add(r.Growth)
-	}
-	rep.Growth = vote.law()
-	if rep.Growth == "exponential" {
-		for _, r := range res.Rungs {
-			if r.Predicted > 0 && (rep.PredictedHorizon == 0 || r.Predicted < rep.PredictedHorizon) {
-				rep.PredictedHorizon = r.Predicted
-			}
-		}
-	} else {
-		// Without exponential growth a Lyapunov prediction means nothing.
-		for i := range rep.Rungs {
-			rep.Rungs[i].Predicted = 0
-		}
-	}
+	rep.conclude()
 	if rf := res.Roundoff; rf != nil && finite(rf.Float64Horizon) {
 		rep.Float64Horizon, rep.Float64PerBit = rf.Float64Horizon, rf.Slope
 	}

@@ -146,7 +146,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		}
 		s.Lambda = est.Value
 		if s.Progress != nil {
-			s.Progress("exponent", 1, 1)
+			s.Progress(StageExponent, 1, 1)
 		}
 	}
 	scale := 0.0

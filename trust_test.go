@@ -266,7 +266,7 @@ func TestTrustCanceled(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	p := model(t, "lorenz").Problem()
 	var stages []string
-	rep, err := plumb.Trust(ctx, p, 20, &plumb.TrustSettings{Tol: 1, Lambda: lorenzLambda1, Progress: func(stage string, done, total int) {
+	rep, err := plumb.Trust(ctx, p, 20, &plumb.TrustSettings{Tol: 1, Lambda: lorenzLambda1, Progress: func(stage plumb.Stage, done, total int) {
 		stages = append(stages, fmt.Sprintf("%s %d/%d", stage, done, total))
 		if done == 3 {
 			cancel()

@@ -12,45 +12,46 @@ import (
 var ErrLadder = errors.New("invalid audit ladder")
 
 // RungKind says which numerical effect a rung of the audit ladder varies.
-type RungKind int
+// Its value is the effect as the reports write it (JSON as text).
+type RungKind string
 
 const (
-	// KindReference is the tightest run, the one every rung is compared with.
-	KindReference RungKind = iota
+	// KindReference is the tightest run, the one every rung is compared
+	// with (without Ladder.Exact). The zero RungKind means it in
+	// Ladder.Reference and in RunLadder's run.
+	KindReference RungKind = "tightest"
 	// KindTolerance varies the tolerances of an error-controlled method.
-	KindTolerance
+	KindTolerance RungKind = "tolerance"
 	// KindMethod varies the method (another pair, or a fixed-step method).
-	KindMethod
+	KindMethod RungKind = "method"
 	// KindPrecision stores the state (and optionally every stage) at an
 	// emulated precision (see Rounded).
-	KindPrecision
+	KindPrecision RungKind = "precision"
 	// KindRestart restarts the reference run at a chosen time from its state
 	// rounded as a printout would be (see Places, Digits).
-	KindRestart
+	KindRestart RungKind = "restart"
 	// KindRun is the caller's own run, the one being audited (see
 	// RunLadder): at most one per ladder. With it, AuditResult.Trusted is
 	// its horizon, and the other rungs say what changing it would buy.
-	KindRun
+	KindRun RungKind = "run"
 )
 
-// String returns the effect in lower case: "reference", "tolerance",
-// "method", "precision", "restart" or "run".
+// String returns the effect: "tightest", "tolerance", "method",
+// "precision", "restart" or "run" ("tightest" for the zero RungKind).
 func (k RungKind) String() string {
-	switch k {
-	case KindReference:
-		return "reference"
-	case KindTolerance:
-		return "tolerance"
-	case KindMethod:
-		return "method"
-	case KindPrecision:
-		return "precision"
-	case KindRestart:
-		return "restart"
-	case KindRun:
-		return "run"
+	if k == "" {
+		return string(KindReference)
 	}
-	return fmt.Sprintf("RungKind(%d)", int(k))
+	return string(k)
+}
+
+// valid reports a known kind (the zero kind included).
+func (k RungKind) valid() bool {
+	switch k {
+	case "", KindReference, KindTolerance, KindMethod, KindPrecision, KindRestart, KindRun:
+		return true
+	}
+	return false
 }
 
 // Rung is one run of the audit ladder. A field left zero takes the
@@ -185,14 +186,15 @@ func validateRung(r Rung, t0, t1 float64, isRef bool) error {
 	bad := func(format string, a ...any) error {
 		return fmt.Errorf(format+": %w", append(a, ErrLadder)...)
 	}
-	if isRef && r.Kind != KindReference {
+	if !r.Kind.valid() {
+		return bad("unknown kind %q", string(r.Kind))
+	}
+	isRefKind := r.Kind == KindReference || r.Kind == ""
+	if isRef && !isRefKind {
 		return bad("reference has kind %v", r.Kind)
 	}
-	if !isRef && r.Kind == KindReference {
-		return bad("only Ladder.Reference may have kind reference")
-	}
-	if r.Kind < KindReference || r.Kind > KindRun {
-		return bad("unknown kind %d", int(r.Kind))
+	if !isRef && isRefKind {
+		return bad("only Ladder.Reference may have kind %s (a rung needs its effect as Kind)", KindReference)
 	}
 	for _, f := range []struct {
 		name string

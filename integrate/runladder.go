@@ -56,7 +56,7 @@ func RunLadder(t0, t1 float64, run Rung) (Ladder, error) {
 	if !(t1 > t0) || math.IsInf(t1-t0, 0) {
 		return bad("span [%v, %v] is not a finite forward span", t0, t1)
 	}
-	if run.Kind != KindReference && run.Kind != KindRun {
+	if run.Kind != "" && run.Kind != KindReference && run.Kind != KindRun {
 		return bad("the run has kind %v; it is the caller's run (kind run)", run.Kind)
 	}
 	run.Kind = KindRun

@@ -330,7 +330,7 @@ func refDist(x []float64, ref []dd.Float, periods, scales []float64) float64 {
 // mapFitMin points is undetermined; an envelope env that never passes
 // boundedFactor·Delta0 is bounded. out.Delta0 must be set first.
 func fitGrowth(out *RungResult, env float64, xs, ly []float64) {
-	out.Growth = integrate.Growth{Kind: integrate.GrowthUnknown, Points: len(xs)}
+	out.Growth = integrate.Growth{Kind: integrate.GrowthUndetermined, Points: len(xs)}
 	if len(xs) < mapFitMin {
 		return
 	}

@@ -361,7 +361,7 @@ func mapSpectrumTable(cl *call, out mapSpectrumJSON) error {
 var mapRungGroups = []string{"precision", "restart"}
 
 // mapTrustJSON is the --format json result of plumb trust on a map: the
-// header, the system and settings, then every field of plumb.MapReport
+// header, the system and settings, then every field of plumb.Report
 // (its own arch and plumb_version are shadowed by the header's).
 type mapTrustJSON struct {
 	PlumbVersion string               `json:"plumb_version"`
@@ -374,8 +374,8 @@ type mapTrustJSON struct {
 	Error        errText              `json:"error"`
 	// TrustedUntil shadows the report's: null when the audit did not
 	// finish (verdict incomplete).
-	TrustedUntil *int `json:"trusted_until"`
-	*plumb.MapReport
+	TrustedUntil *float64 `json:"trusted_until"`
+	*plumb.Report
 }
 
 // mapTrustSettingsJSON echoes the settings of a map audit.
@@ -401,7 +401,7 @@ type mapTrustUnitsJSON struct {
 }
 
 var mapTrustUnits = mapTrustUnitsJSON{
-	Iterates: "iterates from the start (horizon, steps, trusted_until, predicted_horizon, agrees_until, departs_at, predicted, restart_at, start)",
+	Iterates: "iterates from the start (horizon, steps, trusted_until, predicted_horizon, times, agrees_until, departs_at, predicted, restart_at); rungs[].start is an index into times",
 	Distance: "Euclidean norm of a state difference over the observed components, each divided by its scale, angles wrapped (see distance; tol_abs, spread, magnitude, divergence, delta0)",
 	Tol:      "the distance's units, or with relative a fraction of spread",
 	Exponent: "per iterate, natural log (exponent.value, exponent.std_err, rungs[].rate, rate_err); exponent.lyapunov_time in iterates",
@@ -490,7 +490,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	out := mapTrustJSON{
 		PlumbVersion: version, Arch: goarch, Command: "trust", System: describe(sys),
 		Settings: mapTrustSettingsJSON{Horizon: steps, Tol: tol, Relative: f.relative, Rungs: want, RestartAt: restartAt},
-		Units:    mapTrustUnits, MapReport: rep,
+		Units:    mapTrustUnits, Report: rep,
 	}
 	out.Status, out.Error = runStatus(err)
 	out.Settings.Observe, out.Settings.Scales = echoDistance(sys, dist)
@@ -538,11 +538,11 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 // rung (empty before a restart and after a failure). Past
 // plumb.MapCurvePoints iterates a row covers rep.Stride iterates from n and
 // holds the largest divergence over them.
-func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
+func mapTrustCSV(cl *call, rep *plumb.Report) error {
 	stride := max(rep.Stride, 1)
 	curves := make([]curveCSV, len(rep.Rungs))
 	for i, r := range rep.Rungs {
-		curves[i] = curveCSV{name: r.ID, start: r.Start / stride, values: r.Divergence}
+		curves[i] = curveCSV{name: r.ID, start: r.Start, values: r.Divergence}
 	}
 	rows := (rep.Steps + stride) / stride
 	return writeCurvesCSV(cl.stdout, "n", rows, func(i int) string { return strconv.Itoa(i * stride) }, curves)
@@ -551,7 +551,7 @@ func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
 // mapTrustChart draws the divergence per iterate on a log axis, the
 // tolerance, and the Lyapunov prediction delta0·exp(lambda·(n - start)) of
 // the rung with the earliest predicted horizon.
-func mapTrustChart(rep *plumb.MapReport) *lineChart {
+func mapTrustChart(rep *plumb.Report) *lineChart {
 	c := &lineChart{
 		Title:  "divergence from the double-double orbit",
 		XLabel: "iterate n", YLabel: "distance from the reference",
@@ -560,9 +560,11 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 	top := rep.TolAbs
 	for _, r := range rep.Rungs {
 		s := series{Name: r.Name}
-		stride := max(r.Stride, 1)
 		for k, d := range r.Divergence {
-			s.X = append(s.X, float64(max((r.Start/stride+k)*stride, r.Start)))
+			if r.Start+k >= len(rep.Times) {
+				break
+			}
+			s.X = append(s.X, math.Max(rep.Times[r.Start+k], r.RestartAt))
 			s.Y = append(s.Y, d)
 			top = math.Max(top, d)
 		}
@@ -570,7 +572,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 	}
 	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, 0, float64(rep.Steps)))
 	if rep.Verdict != plumb.Incomplete && rep.LimitedBy != "" {
-		c.Marks = append(c.Marks, mark{X: float64(rep.TrustedUntil), Label: fmt.Sprintf("trusted until iterate %d", rep.TrustedUntil)})
+		c.Marks = append(c.Marks, mark{X: rep.TrustedUntil, Label: fmt.Sprintf("trusted until iterate %d", int(rep.TrustedUntil))})
 	}
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
@@ -580,7 +582,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		if r.Predicted != rep.PredictedHorizon || !(r.Delta0 > 0) {
 			continue
 		}
-		if s, ok := predictionSeries("n", r.ID, lambda, r.Delta0, float64(r.Start), float64(rep.Steps), top); ok {
+		if s, ok := predictionSeries("n", r.ID, lambda, r.Delta0, r.RestartAt, float64(rep.Steps), top); ok {
 			c.Series = append(c.Series, s)
 		}
 		break

@@ -162,7 +162,7 @@ func TestTrustMapCLI(t *testing.T) {
 	}
 	var out struct {
 		Settings mapTrustSettingsJSON `json:"settings"`
-		plumb.MapReport
+		plumb.Report
 	}
 	if err := json.Unmarshal([]byte(r.stdout), &out); err != nil {
 		t.Fatal(err)
@@ -173,7 +173,7 @@ func TestTrustMapCLI(t *testing.T) {
 		t.Fatal(err)
 	}
 	if out.Steps != 60 || out.TrustedUntil != rep.TrustedUntil || out.Verdict != rep.Verdict || len(out.Rungs) != len(rep.Rungs) {
-		t.Fatalf("CLI steps %d until %d verdict %s; SDK until %d verdict %s", out.Steps, out.TrustedUntil, out.Verdict, rep.TrustedUntil, rep.Verdict)
+		t.Fatalf("CLI steps %d until %v verdict %s; SDK until %v verdict %s", out.Steps, out.TrustedUntil, out.Verdict, rep.TrustedUntil, rep.Verdict)
 	}
 	for i := range rep.Rungs {
 		if out.Rungs[i].DepartsAt != rep.Rungs[i].DepartsAt {

@@ -86,11 +86,13 @@ storage at 40 and 24 bits (precision) and a restart at 0.8 of the horizon
 (restart); --horizon counts iterates (default 100), --tol defaults to 0.1,
 --restart-at is an iterate, and the exponent is per iterate; map JSON
 keys: plumb_version, arch, command, system, settings, units, status,
-error, trusted_until, steps, tol, relative, tol_abs, spread, magnitude,
-distance, limited_by (when a rung departs), limiting_rung (when a rung
-departs), predicted_horizon (when predicted), verdict, tol_used, growth,
-exponent (when estimated), exponent_error (when the estimate failed),
-stride, reference, rungs, failed, caution. --format csv writes n, then
+error, trusted_until, t0, horizon, steps, tol, relative, tol_abs, spread,
+magnitude, distance, limited_by (when a rung departs), limiting_rung
+(when a rung departs), predicted_horizon (when predicted), verdict,
+tol_used, growth, exponent (when estimated), exponent_error (when the
+estimate failed), rungs, times, stride, failed, exact_reference (the
+double-double orbit), caution, time_unit (iterate: every time is an
+iterate). --format csv writes n, then
 one column per rung, headed by its id: precision_float64,
 precision_40bit, precision_24bit, restart. Past 4096 iterates each
 curve keeps at most 4096 points: a row (and a point of a rung's
@@ -386,13 +388,13 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		// The two stages may come in either order (TrustSystem estimates
 		// the exponent first, to choose the reference's precision).
 		var audit, expo float64
-		settings.Progress = func(stage string, done, total int) {
+		settings.Progress = func(stage plumb.Stage, done, total int) {
 			switch stage {
-			case "audit":
+			case plumb.StageAudit:
 				if total > 0 {
 					audit = float64(done) / float64(total)
 				}
-			case "exponent":
+			case plumb.StageExponent:
 				expo = float64(done)
 			}
 			bar.at(0.5*audit + 0.5*expo)
