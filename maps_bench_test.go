@@ -6,14 +6,14 @@ import (
 	"testing"
 )
 
-// BenchmarkTrustMap audits 200 iterates of the Hénon map with the exponent
+// BenchmarkSystemTrustMap audits 200 iterates of the Hénon map with the exponent
 // given, so that the cost is the reference orbit and the rungs.
-func BenchmarkTrustMap(b *testing.B) {
+func BenchmarkSystemTrustMap(b *testing.B) {
 	sys, _ := Model("henon")
-	s := &MapTrustSettings{Tol: 0.1, Lambda: henonLambda1}
+	s := &TrustSettings{Tol: 0.1, Lambda: henonLambda1}
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := TrustMap(context.Background(), sys, 200, s); err != nil {
+		if _, err := sys.Trust(context.Background(), 200, s); err != nil {
 			b.Fatal(err)
 		}
 	}

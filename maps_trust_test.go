@@ -3,6 +3,7 @@ package plumb
 import (
 	"context"
 	"errors"
+	"github.com/plumbdyn/plumb/maps"
 	"math"
 	"os"
 	"reflect"
@@ -133,7 +134,7 @@ func TestTrustMapHorizons(t *testing.T) {
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			s, _ := Model(c.name)
-			rep, err := TrustMap(context.Background(), s, 200, &MapTrustSettings{Tol: tol})
+			rep, err := s.Trust(context.Background(), 200, &TrustSettings{Tol: tol})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -176,7 +177,7 @@ func TestTrustMapStableCycle(t *testing.T) {
 	}
 	// 0.01: above the restart rung's rounding to 3 places (5e-4), which
 	// the cycle then forgets as well.
-	rep, err := TrustMap(context.Background(), s, 500, &MapTrustSettings{Tol: 0.01})
+	rep, err := s.Trust(context.Background(), 500, &TrustSettings{Tol: 0.01})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -206,11 +207,11 @@ func TestTrustMapFile(t *testing.T) {
 		}
 		return s
 	}
-	a, err := TrustMap(context.Background(), load(), 100, &MapTrustSettings{Tol: 0.05})
+	a, err := load().Trust(context.Background(), 100, &TrustSettings{Tol: 0.05})
 	if err != nil {
 		t.Fatal(err)
 	}
-	b, _ := TrustMap(context.Background(), load(), 100, &MapTrustSettings{Tol: 0.05})
+	b, _ := load().Trust(context.Background(), 100, &TrustSettings{Tol: 0.05})
 	if !reflect.DeepEqual(a, b) {
 		t.Error("two audits of the same file differ")
 	}
@@ -223,27 +224,35 @@ func TestTrustMapErrors(t *testing.T) {
 	ctx := context.Background()
 	henon, _ := Model("henon")
 	lorenz, _ := Model("lorenz")
-	ok := &MapTrustSettings{Tol: 0.1}
+	ok := &TrustSettings{Tol: 0.1}
 	cases := []struct {
 		name  string
 		sys   *System
-		steps int
-		s     *MapTrustSettings
+		steps float64
+		s     *TrustSettings
 		want  error
 	}{
-		{"flow", lorenz, 10, ok, ErrKind},
-		{"nil system", nil, 10, ok, ErrKind},
-		{"no steps", henon, 0, ok, ErrSteps},
+		{"map rungs on a flow", lorenz, 10, &TrustSettings{Tol: 1, MapRungs: maps.DefaultRungs(10)}, integrate.ErrSettings},
+		{"nil system", nil, 10, ok, ErrNoSystem},
+		{"no steps", henon, 0, ok, maps.ErrSteps},
+		{"part of an iterate", henon, 10.5, ok, ErrHorizon},
+		{"too many iterates", henon, maps.MaxSteps + 1, ok, maps.ErrSteps},
+		{"ladder on a map", henon, 10, &TrustSettings{Tol: 1, Ladder: &integrate.Ladder{}}, integrate.ErrSettings},
+		{"run on a map", henon, 10, &TrustSettings{Tol: 1, Run: &integrate.Rung{}}, integrate.ErrSettings},
+		{"grid on a map", henon, 10, &TrustSettings{Tol: 1, Every: 1}, integrate.ErrSettings},
+		{"step budget on a map", henon, 10, &TrustSettings{Tol: 1, MaxSteps: 5}, integrate.ErrSettings},
+		{"own state names", henon, 10, &TrustSettings{Tol: 1, States: []string{"a", "b"}}, integrate.ErrSettings},
+		{"own periods", henon, 10, &TrustSettings{Tol: 1, Periods: []float64{0, 0}}, integrate.ErrSettings},
 		{"nil settings", henon, 10, nil, ErrTolerance},
-		{"zero tol", henon, 10, &MapTrustSettings{}, ErrTolerance},
-		{"negative lambda", henon, 10, &MapTrustSettings{Tol: 1, Lambda: -1}, integrate.ErrSettings},
-		{"empty rungs", henon, 10, &MapTrustSettings{Tol: 1, Rungs: []MapRung{}}, integrate.ErrLadder},
-		{"late restart", henon, 10, &MapTrustSettings{Tol: 1, Rungs: []MapRung{{Name: "r", Kind: integrate.KindRestart, RestartAt: 10, Restart: integrate.Places(3)}}}, integrate.ErrLadder},
-		{"method rung", henon, 10, &MapTrustSettings{Tol: 1, Rungs: []MapRung{{Name: "m", Kind: integrate.KindMethod}}}, integrate.ErrLadder},
-		{"bad bits", henon, 10, &MapTrustSettings{Tol: 1, Rungs: []MapRung{{Name: "b", Kind: integrate.KindPrecision, Storage: integrate.Bits(99)}}}, integrate.ErrSettings},
+		{"zero tol", henon, 10, &TrustSettings{}, ErrTolerance},
+		{"negative lambda", henon, 10, &TrustSettings{Tol: 1, Lambda: -1}, integrate.ErrSettings},
+		{"empty rungs", henon, 10, &TrustSettings{Tol: 1, MapRungs: []maps.Rung{}}, integrate.ErrLadder},
+		{"late restart", henon, 10, &TrustSettings{Tol: 1, MapRungs: []maps.Rung{{Name: "r", Kind: integrate.KindRestart, RestartAt: 10, Restart: integrate.Places(3)}}}, integrate.ErrLadder},
+		{"method rung", henon, 10, &TrustSettings{Tol: 1, MapRungs: []maps.Rung{{Name: "m", Kind: integrate.KindMethod}}}, integrate.ErrLadder},
+		{"bad bits", henon, 10, &TrustSettings{Tol: 1, MapRungs: []maps.Rung{{Name: "b", Kind: integrate.KindPrecision, Storage: integrate.Bits(99)}}}, integrate.ErrSettings},
 	}
 	for _, c := range cases {
-		rep, err := TrustMap(ctx, c.sys, c.steps, c.s)
+		rep, err := c.sys.Trust(ctx, c.steps, c.s)
 		if !errors.Is(err, c.want) || rep != nil {
 			t.Errorf("%s: report %v, error %v; want nil and %v", c.name, rep != nil, err, c.want)
 		}
@@ -252,14 +261,14 @@ func TestTrustMapErrors(t *testing.T) {
 	// escapes to -Inf; the reference fails and the report is incomplete.
 	s, _ := Model("logistic")
 	_ = s.Set("r", 5)
-	rep, err := TrustMap(ctx, s, 100, ok)
+	rep, err := s.Trust(ctx, 100, ok)
 	if err == nil || rep == nil || rep.Verdict != Incomplete {
 		t.Errorf("escaping orbit: report %v, error %v; want an incomplete report and an error", rep, err)
 	}
 	// Canceled before the work: partial report with the context's error.
 	cctx, cancel := context.WithCancel(ctx)
 	cancel()
-	rep, err = TrustMap(cctx, henon, 100, ok)
+	rep, err = henon.Trust(cctx, 100, ok)
 	if !errors.Is(err, context.Canceled) || rep == nil || rep.Verdict != Incomplete {
 		t.Errorf("canceled: report %v, error %v", rep, err)
 	}
@@ -269,7 +278,7 @@ func TestTrustMapErrors(t *testing.T) {
 // reference orbit's spread (definition), and a fixed point has none.
 func TestTrustMapRelative(t *testing.T) {
 	s, _ := Model("henon")
-	rep, err := TrustMap(context.Background(), s, 100, &MapTrustSettings{Tol: 0.1, Relative: true})
+	rep, err := s.Trust(context.Background(), 100, &TrustSettings{Tol: 0.1, Relative: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -280,7 +289,7 @@ func TestTrustMapRelative(t *testing.T) {
 	l, _ := Model("logistic")
 	_ = l.Set("r", 2)
 	_ = l.SetStart([]float64{0.5})
-	rep, err = TrustMap(context.Background(), l, 50, &MapTrustSettings{Tol: 0.1, Relative: true})
+	rep, err = l.Trust(context.Background(), 50, &TrustSettings{Tol: 0.1, Relative: true})
 	if !errors.Is(err, integrate.ErrSettings) || rep == nil || rep.Verdict != Incomplete {
 		t.Errorf("fixed point: error %v, report %v", err, rep)
 	}

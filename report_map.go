@@ -8,8 +8,8 @@ import (
 	"github.com/plumbdyn/plumb/maps"
 )
 
-// IterateUnit is the TimeUnit of a map's report: its times count iterates.
-const IterateUnit = "iterate"
+// iterateUnit is the TimeUnit of a map's report: its times count iterates.
+const iterateUnit = "iterate"
 
 // ddDigits is the precision of a double-double number in decimal digits
 // (about 32: two float64 significands, 106 bits).

@@ -10,6 +10,7 @@ import (
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
+	"github.com/plumbdyn/plumb/maps"
 )
 
 // Errors of Trust, usable with errors.Is.
@@ -38,8 +39,10 @@ const Caution = "A trust horizon is a statement about the numerical model and ho
 	"not a safety certificate for the real system it describes. " +
 	"Safety-critical use follows the field's own codes and licensed review."
 
-// TrustSettings controls Trust. A nil *TrustSettings is invalid: the
-// tolerance is the caller's statement of what difference matters.
+// TrustSettings controls System.Trust and TrustProblem. A nil
+// *TrustSettings is invalid: the tolerance is the caller's statement of
+// what difference matters. Fields marked "flow only" must be zero for a
+// map, those marked "map only" nil for a flow.
 type TrustSettings struct {
 	// Tol is the divergence between runs the caller accepts, in the state's
 	// units (or, with Relative, as a fraction of the reference run's
@@ -48,39 +51,54 @@ type TrustSettings struct {
 	Tol float64
 	// Relative makes Tol a fraction of the spread.
 	Relative bool
-	// Ladder is the set of runs compared; nil means
+	// Ladder is the set of runs compared (flow only); nil means
 	// integrate.DefaultLadder over the audited span, or with Run the ladder
 	// around it.
 	Ladder *integrate.Ladder
-	// Run, if not nil, is the caller's own run (method and tolerances, or a
-	// fixed-step method and its step; see integrate.RunLadder, which
+	// Run, if not nil, is the caller's own run (flow only: a method and
+	// tolerances, or a fixed-step method and its step; see integrate.RunLadder, which
 	// validates it): the audit is built around it, and the report's
 	// TrustedUntil, verdict and YourRun speak of it. Set Run or Ladder, not
 	// both (integrate.ErrSettings).
 	Run *integrate.Rung
 	// Periods gives, per component, the period of an angle (0 for the
-	// others), for wrapped distances; see System.Periods. Nil: none.
+	// others), for wrapped distances (TrustProblem only: System.Trust takes
+	// the system's). Nil: none.
 	Periods []float64
-	// States names the state components, for Distance and the report; nil
-	// means "y[0]", "y[1]", ... (TrustSystem takes the system's names).
+	// States names the state components, for Distance and the report
+	// (TrustProblem only: System.Trust takes the system's); nil means
+	// "y[0]", "y[1]", ....
 	// Otherwise its length must equal the state's (integrate.ErrDimension).
 	States []string
 	// Distance chooses the components compared and their scales; the zero
 	// value is the Euclidean distance over every component. Errors:
 	// *DistanceError, before any work.
 	Distance Distance
-	// Every is the spacing of the comparison grid; zero means horizon/1000.
+	// Every is the spacing of the comparison grid (flow only); zero means
+	// horizon/1000.
 	Every float64
 	// Exponent controls the estimate of the largest Lyapunov exponent
-	// (lyap.Exponents with k = 1); nil means lyap's defaults.
+	// (lyap.Exponents, for a map lyap.MapExponents, with k = 1); nil means
+	// lyap's defaults.
 	Exponent *lyap.Settings
-	// Lambda, when positive, is used as the largest Lyapunov exponent and
-	// no estimate is made (Exponent is ignored).
+	// Lambda, when positive, is used as the largest Lyapunov exponent (per
+	// unit time, for a map per iterate) and no estimate is made (Exponent
+	// is ignored). Must be finite and >= 0.
 	Lambda float64
-	// NoReversal skips the reversibility check.
+	// NoReversal skips the reversibility check (a map has none).
 	NoReversal bool
+	// NoExact compares the runs of a flow with the tightest float64 run
+	// instead of the multiprecision Taylor reference System.Trust makes
+	// for a system with formulas (a map always has its double-double
+	// orbit).
+	NoExact bool
+	// MapRungs are the orbits a map's audit compares with the
+	// double-double orbit (map only); nil means maps.DefaultRungs of the
+	// horizon. An empty non-nil list is invalid (integrate.ErrLadder), as
+	// is a rung of another kind or a restart outside the horizon.
+	MapRungs []maps.Rung
 	// MaxSteps bounds the attempted steps of every float64 run of the
-	// audit (a rung's own Rung.MaxSteps overrides it); zero means
+	// audit (flow only) (a rung's own Rung.MaxSteps overrides it); zero means
 	// integrate.DefaultMaxSteps. Long horizons need more: the reference
 	// run of Lorenz takes about 80 steps per time unit. Must be >= 0;
 	// otherwise integrate.ErrSettings.
@@ -92,8 +110,9 @@ type TrustSettings struct {
 	Progress func(stage Stage, done, total int)
 }
 
-// Trust audits how far ahead a computed trajectory of problem can be
-// believed: it re-runs the problem over [T0, T0+horizon] on every rung of a
+// TrustProblem audits how far ahead a computed trajectory of a raw problem
+// can be believed (System.Trust does it for a system, with a better
+// reference): it re-runs the problem over [T0, T0+horizon] on every rung of a
 // ladder of numerical choices (tolerances, methods, emulated precisions,
 // restarts from rounded states), compares each run with the tightest one,
 // estimates the largest Lyapunov exponent, and says up to which time all
@@ -119,7 +138,7 @@ type TrustSettings struct {
 //	G. Boffetta, M. Cencini, M. Falcioni, A. Vulpiani, Predictability: a way
 //	  to characterize complexity, Phys. Rep. 356 (2002) 367–474 (the
 //	  predicted horizon ln(tol/delta0)/lambda_1).
-func Trust(ctx context.Context, problem integrate.Problem, horizon float64, settings *TrustSettings) (*Report, error) {
+func TrustProblem(ctx context.Context, problem integrate.Problem, horizon float64, settings *TrustSettings) (*Report, error) {
 	if ctx == nil {
 		ctx = context.Background()
 	}
@@ -143,6 +162,9 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	}
 	if s.MaxSteps < 0 {
 		return nil, fmt.Errorf("plumb: TrustSettings.MaxSteps = %d: must be >= 0: %w", s.MaxSteps, integrate.ErrSettings)
+	}
+	if s.MapRungs != nil {
+		return nil, fmt.Errorf("plumb: TrustSettings.MapRungs: a problem is a flow, audited with Ladder: %w", integrate.ErrSettings)
 	}
 	t1 := problem.T0 + horizon
 	ladder, err := trustLadder(&s, problem.T0, t1)
@@ -238,7 +260,7 @@ func (rep *Report) fill(res *integrate.AuditResult) {
 }
 
 // checkTolLambda validates the tolerance and the given exponent of the
-// settings type named name (TrustSettings, MapTrustSettings).
+// settings type named name (TrustSettings).
 func checkTolLambda(name string, tol, lambda float64) error {
 	if !(tol > 0) || math.IsInf(tol, 0) {
 		return fmt.Errorf("plumb: %s.Tol = %v: must be positive and finite: %w", name, tol, ErrTolerance)

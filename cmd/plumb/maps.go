@@ -12,6 +12,7 @@ import (
 	"github.com/plumbdyn/plumb"
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
+	"github.com/plumbdyn/plumb/maps"
 )
 
 // The map side of solve, spectrum and trust: a map is iterated, so its
@@ -408,7 +409,7 @@ var mapTrustUnits = mapTrustUnitsJSON{
 	TolUsed:  "fraction of tol_abs",
 }
 
-// runMap audits a map with plumb.TrustMap: --horizon is a number of iterates.
+// runMap audits a map with System.Trust: --horizon is a number of iterates.
 func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, dist plumb.Distance) error {
 	if err := refuseFlags(cl, sys, "plumb trust iterates it exactly (the integrator flags are for flows)", flowOnlyTrust...); err != nil {
 		return err
@@ -420,8 +421,8 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	if !cl.sh.given["tol"] {
 		tol = mapTrustTol
 	}
-	if horizon != math.Trunc(horizon) || horizon < 1 || horizon > plumb.MaxMapSteps {
-		return usagef("--horizon %s: %s is a map, so the horizon counts iterates: a whole number from 1 to %d", formatFloat(horizon), sys.Name, plumb.MaxMapSteps)
+	if horizon != math.Trunc(horizon) || horizon < 1 || horizon > maps.MaxSteps {
+		return usagef("--horizon %s: %s is a map, so the horizon counts iterates: a whole number from 1 to %d", formatFloat(horizon), sys.Name, maps.MaxSteps)
 	}
 	steps := int(horizon)
 	var want []string
@@ -450,9 +451,9 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	if !seen["restart"] && (cl.sh.given["restart-at"] || cl.sh.given["restart-places"]) {
 		return usagef("--restart-at and --restart-places set the restart rung, which --rungs %s leaves out", f.rungs)
 	}
-	var rungs []plumb.MapRung
+	var rungs []maps.Rung
 	restartAt := 0
-	for _, r := range plumb.DefaultMapRungs(steps) {
+	for _, r := range maps.DefaultRungs(steps) {
 		switch {
 		case r.Kind == integrate.KindPrecision && seen["precision"]:
 			rungs = append(rungs, r)
@@ -477,9 +478,9 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 		return usagef("--horizon %d: too short for a restart rung; give --rungs precision or a longer horizon", steps)
 	}
 	start := now()
-	rep, err := plumb.TrustMap(ctx, sys, steps, &plumb.MapTrustSettings{Tol: tol, Relative: f.relative, Rungs: rungs, Distance: dist})
+	rep, err := sys.Trust(ctx, float64(steps), &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist})
 	if rep == nil {
-		if errors.Is(err, plumb.ErrSteps) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) || errors.Is(err, integrate.ErrSettings) {
+		if errors.Is(err, maps.ErrSteps) || errors.Is(err, plumb.ErrHorizon) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) || errors.Is(err, integrate.ErrSettings) {
 			return usagef("the audit refused its input: %v", err)
 		}
 		return fmt.Errorf("the audit of %s could not start: %w", sys.Name, err)

@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
+	"github.com/plumbdyn/plumb/maps"
 	"math"
 	"os"
 	"path/filepath"
@@ -168,7 +169,7 @@ func TestTrustMapCLI(t *testing.T) {
 		t.Fatal(err)
 	}
 	sys, _ := plumb.Model("logistic")
-	rep, err := plumb.TrustMap(context.Background(), sys, 60, &plumb.MapTrustSettings{Tol: mapTrustTol, Rungs: plumb.DefaultMapRungs(60)})
+	rep, err := sys.Trust(context.Background(), 60, &plumb.TrustSettings{Tol: mapTrustTol, MapRungs: maps.DefaultRungs(60)})
 	if err != nil {
 		t.Fatal(err)
 	}

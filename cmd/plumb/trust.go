@@ -379,13 +379,13 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	if f.maxSteps < 1 {
 		return usagef("--max-steps %d: must be >= 1", f.maxSteps)
 	}
-	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Periods: sys.Periods(), States: sys.States, Distance: dist, MaxSteps: f.maxSteps}
+	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Distance: dist, MaxSteps: f.maxSteps, NoExact: !f.exact}
 	var bar *progressBar
 	if cl.progress {
 		// One unit per audit run, and as many again for the exponent
 		// estimate, which takes about as long as the audit.
 		bar = newProgressBar(cl.stderr, "plumb trust", 0, 1)
-		// The two stages may come in either order (TrustSystem estimates
+		// The two stages may come in either order (System.Trust estimates
 		// the exponent first, to choose the reference's precision).
 		var audit, expo float64
 		settings.Progress = func(stage plumb.Stage, done, total int) {
@@ -401,12 +401,7 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		}
 	}
 	start := now()
-	var rep *plumb.Report
-	if f.exact && sys.HasFormulas() {
-		rep, err = plumb.TrustSystem(ctx, sys, f.horizon, settings)
-	} else {
-		rep, err = plumb.Trust(ctx, p, f.horizon, settings)
-	}
+	rep, err := sys.Trust(ctx, f.horizon, settings)
 	if bar != nil {
 		bar.clear()
 	}
@@ -441,9 +436,6 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		Report: rep,
 	}
 	out.Units.Time = out.System.timeUnit(trustUnits.Time)
-	if rep.TimeUnit == "" {
-		rep.TimeUnit = sys.TimeUnit() // plumb.Trust on a problem knows no unit
-	}
 	if run, ok, _ := f.yourRun(cl); ok {
 		out.Settings.Method = f.method
 		if run.Fixed != nil {

@@ -131,7 +131,7 @@ func TestTrustMatchesSDK(t *testing.T) {
 			ladder.Rungs = append(ladder.Rungs, g)
 		}
 	}
-	want, err := plumb.Trust(context.Background(), sys.Problem(), 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
+	want, err := plumb.TrustProblem(context.Background(), sys.Problem(), 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -141,7 +141,7 @@ func TestTrustMatchesSDK(t *testing.T) {
 	if r.code != exitOK {
 		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
 	}
-	wantExact, err := plumb.TrustSystem(context.Background(), sys, 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
+	wantExact, err := sys.Trust(context.Background(), 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -445,7 +445,7 @@ func TestTrustPeriodicModel(t *testing.T) {
 		if wrapped {
 			s.Periods = sys.Periods()
 		}
-		want, err := plumb.Trust(context.Background(), sys.Problem(), 12, s)
+		want, err := plumb.TrustProblem(context.Background(), sys.Problem(), 12, s)
 		if err != nil {
 			t.Fatal(err)
 		}
