@@ -256,3 +256,20 @@ func TestMapJacobianBlock(t *testing.T) {
 	h.Jacobian([]float64{0.5, 0}, small)
 	assert.Equal(t, -1.4, small.At(0, 0), "-2·a·x at a = 1.4, x = 0.5 (exact)")
 }
+
+// TestSelectRungs: selecting kinds of DefaultRungs keeps exactly those
+// rungs in order (DefaultRungs as documented: three precision rungs and a
+// restart at RestartFraction·steps), and WithRestart moves only the
+// restart, leaving the original as it was.
+func TestSelectRungs(t *testing.T) {
+	def := DefaultRungs(100)
+	require.Len(t, def, 4)
+	assert.Len(t, Select(def, integrate.KindPrecision), 3)
+	assert.Equal(t, []Rung{def[3]}, Select(def, integrate.KindRestart))
+	assert.Empty(t, Select(def, integrate.KindMethod))
+	moved := WithRestart(def, 30, integrate.Places(2))
+	assert.Equal(t, 30, moved[3].RestartAt)
+	assert.Equal(t, integrate.Places(2), moved[3].Restart)
+	assert.Equal(t, int(integrate.RestartFraction*100), def[3].RestartAt, "the original keeps its restart (definition)")
+	assert.Equal(t, def[:3], moved[:3])
+}

@@ -1,6 +1,8 @@
 package maps
 
 import (
+	"slices"
+
 	"fmt"
 
 	"github.com/plumbdyn/plumb/integrate"
@@ -61,4 +63,28 @@ func (r Rung) validate(steps int) error {
 		return fmt.Errorf("kind %s: a map audit takes precision and restart rungs: %w", r.Kind, integrate.ErrLadder)
 	}
 	return nil
+}
+
+// Select returns the rungs of rs whose kind is one of kinds, in the order
+// of rs (the map counterpart of integrate.Ladder.Select).
+func Select(rs []Rung, kinds ...integrate.RungKind) []Rung {
+	var out []Rung
+	for _, r := range rs {
+		if slices.Contains(kinds, r.Kind) {
+			out = append(out, r)
+		}
+	}
+	return out
+}
+
+// WithRestart returns a copy of rs whose restart rungs restart at iterate
+// at from the reference state rounded by rounding (validated by Audit).
+func WithRestart(rs []Rung, at int, rounding integrate.Rounding) []Rung {
+	out := append([]Rung(nil), rs...)
+	for i := range out {
+		if out[i].Kind == integrate.KindRestart {
+			out[i].RestartAt, out[i].Restart = at, rounding
+		}
+	}
+	return out
 }

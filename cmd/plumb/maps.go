@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -99,24 +100,16 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 	}
 	start := now()
 	n := m.Dim()
-	x := sys.Start()
-	orbit := make([]float64, 0, n*(f.steps+1))
-	orbit = append(orbit, x...)
-	var runErr error
+	orbit, runErr := maps.Orbit(ctx, m, sys.Start(), f.steps)
 	status := "completed"
-	for it := 1; it <= f.steps; it++ {
-		if it%1024 == 0 {
-			if err := ctx.Err(); err != nil {
-				runErr, status = fmt.Errorf("canceled after iterate %d: %w", it-1, err), "canceled"
-				break
-			}
-		}
-		m.Next(x, x)
-		if i := firstNonFinite(x); i >= 0 {
-			runErr, status = fmt.Errorf("iterate %d: %s = %v is not finite: %w", it, sys.States[i], x[i], integrate.ErrNonFinite), "failed"
-			break
-		}
-		orbit = append(orbit, x...)
+	var nf *maps.NonFiniteError
+	switch {
+	case errors.As(runErr, &nf):
+		runErr, status = fmt.Errorf("iterate %d: %s = %v is not finite: %w", nf.Iterate, sys.States[nf.Component], nf.Value, integrate.ErrNonFinite), "failed"
+	case runErr != nil && ctx.Err() != nil:
+		runErr, status = fmt.Errorf("canceled after iterate %d: %w", len(orbit)/n-1, ctx.Err()), "canceled"
+	case runErr != nil:
+		return fmt.Errorf("iterating %s failed: %w", sys.Name, runErr)
 	}
 	end := len(orbit)/n - 1
 	out := mapSolveJSON{
@@ -153,15 +146,6 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		return fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, statusVerb(status), end, runErr)
 	}
 	return nil
-}
-
-func firstNonFinite(x []float64) int {
-	for i, v := range x {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return i
-		}
-	}
-	return -1
 }
 
 func orbitCSV(cl *call, sys *plumb.System, out mapSolveJSON) error {
@@ -358,8 +342,8 @@ func mapSpectrumTable(cl *call, out mapSpectrumJSON) error {
 	return tw.Flush()
 }
 
-// mapRungGroups are the --rungs names a map audit takes.
-var mapRungGroups = []string{"precision", "restart"}
+// mapRungKinds are the kinds of rung a map audit takes (maps.DefaultRungs).
+var mapRungKinds = []integrate.RungKind{integrate.KindPrecision, integrate.KindRestart}
 
 // mapTrustJSON is the --format json result of plumb trust on a map: the
 // header, the system and settings, then every field of plumb.Report
@@ -425,54 +409,37 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 		return usagef("--horizon %s: %s is a map, so the horizon counts iterates: a whole number from 1 to %d", formatFloat(horizon), sys.Name, maps.MaxSteps)
 	}
 	steps := int(horizon)
-	var want []string
-	seen := map[string]bool{}
+	// The flow's default --rungs names tolerance and method rungs, which a
+	// map has none of: left out unless named on the command line.
+	var list []string
 	for _, name := range strings.Split(f.rungs, ",") {
-		name = strings.TrimSpace(name)
-		switch {
-		case name == "" || name == "reference" || name == "ref":
-			continue
-		case name == "tol" || name == "method":
+		if name = strings.TrimSpace(name); name == "tol" || name == "method" {
 			if cl.sh.given["rungs"] {
-				return usagef("--rungs %s: %s is a map, iterated exactly: there is no tolerance or method to vary (choose from %s)", f.rungs, sys.Name, strings.Join(mapRungGroups, ", "))
+				return usagef("--rungs %s: %s is a map, iterated exactly: there is no tolerance or method to vary (choose from %s)", f.rungs, sys.Name, mapRungKinds[0].String()+", "+mapRungKinds[1].String())
 			}
 			continue
-		case name != "precision" && name != "restart":
-			return usagef("--rungs %s: unknown rung %q (a map takes %s)", f.rungs, name, strings.Join(mapRungGroups, ", "))
-		case seen[name]:
-			return usagef("--rungs %s: %q is named twice", f.rungs, name)
 		}
-		seen[name] = true
-		want = append(want, name)
+		list = append(list, name)
 	}
-	if len(want) == 0 {
-		return usagef("--rungs %q leaves only the reference orbit: an audit compares at least one rung with it (choose from %s)", f.rungs, strings.Join(mapRungGroups, ", "))
+	kinds, want, err := pickRungs(cl, strings.Join(list, ","), mapRungKinds, "orbit")
+	if err != nil {
+		return err
 	}
-	if !seen["restart"] && (cl.sh.given["restart-at"] || cl.sh.given["restart-places"]) {
-		return usagef("--restart-at and --restart-places set the restart rung, which --rungs %s leaves out", f.rungs)
-	}
-	var rungs []maps.Rung
+	rungs := maps.Select(maps.DefaultRungs(steps), kinds...)
 	restartAt := 0
-	for _, r := range maps.DefaultRungs(steps) {
-		switch {
-		case r.Kind == integrate.KindPrecision && seen["precision"]:
-			rungs = append(rungs, r)
-		case r.Kind == integrate.KindRestart && seen["restart"]:
-			at := r.RestartAt
-			if cl.sh.given["restart-at"] {
-				if f.restartAt != math.Trunc(f.restartAt) || !(f.restartAt >= 1 && f.restartAt < horizon) {
-					return usagef("--restart-at %s: for a map, a whole iterate strictly inside the horizon, 1 to %d", formatFloat(f.restartAt), steps-1)
-				}
-				at = int(f.restartAt)
+	if len(maps.Select(rungs, integrate.KindRestart)) > 0 {
+		restartAt = int(integrate.RestartFraction * horizon)
+		if cl.sh.given["restart-at"] {
+			if f.restartAt != math.Trunc(f.restartAt) || !(f.restartAt >= 1 && f.restartAt < horizon) {
+				return usagef("--restart-at %s: for a map, a whole iterate strictly inside the horizon, 1 to %d", formatFloat(f.restartAt), steps-1)
 			}
-			places := integrate.Places(f.restartPlaces)
-			if err := places.Validate(); err != nil {
-				return usagef("--restart-places %d: %v", f.restartPlaces, err)
-			}
-			r.RestartAt, r.Restart = at, places
-			restartAt = at
-			rungs = append(rungs, r)
+			restartAt = int(f.restartAt)
 		}
+		places := integrate.Places(f.restartPlaces)
+		if err := places.Validate(); err != nil {
+			return usagef("--restart-places %d: %v", f.restartPlaces, err)
+		}
+		rungs = maps.WithRestart(rungs, restartAt, places)
 	}
 	if len(rungs) == 0 {
 		return usagef("--horizon %d: too short for a restart rung; give --rungs precision or a longer horizon", steps)
@@ -498,7 +465,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	if rep.Verdict != plumb.Incomplete {
 		out.TrustedUntil = &rep.TrustedUntil
 	}
-	if seen["restart"] {
+	if slices.Contains(kinds, integrate.KindRestart) {
 		out.Settings.RestartPlaces = f.restartPlaces
 	}
 	var werr error
