@@ -130,14 +130,13 @@ func Audit(ctx context.Context, m *Map, x0 []float64, steps int, settings *Audit
 	if ctx == nil {
 		ctx = context.Background()
 	}
+	if err := checkStart("Audit", m, x0); err != nil {
+		return nil, err
+	}
 	n := m.Dim()
 	switch {
-	case n == 0:
-		return nil, fmt.Errorf("maps: Audit of a nil or zero map: %w", integrate.ErrSettings)
 	case m.f.NextDD == nil:
 		return nil, fmt.Errorf("maps: Audit: the map has no double-double form (Funcs.NextDD) for the reference orbit: %w", integrate.ErrSettings)
-	case len(x0) != n:
-		return nil, fmt.Errorf("maps: start of length %d for a map of dimension %d: %w", len(x0), n, integrate.ErrDimension)
 	case steps < 1 || steps > MaxSteps:
 		return nil, fmt.Errorf("maps: Audit: steps = %d: must be 1 to %d: %w", steps, MaxSteps, ErrSteps)
 	case settings == nil:

@@ -36,15 +36,13 @@ func Orbit(ctx context.Context, m *Map, x0 []float64, steps int) ([]float64, err
 	if ctx == nil {
 		ctx = context.Background()
 	}
-	n := m.Dim()
-	switch {
-	case n == 0:
-		return nil, fmt.Errorf("maps: Orbit of a nil or zero map: %w", integrate.ErrSettings)
-	case len(x0) != n:
-		return nil, fmt.Errorf("maps: start of length %d for a map of dimension %d: %w", len(x0), n, integrate.ErrDimension)
-	case steps < 0:
+	if err := checkStart("Orbit", m, x0); err != nil {
+		return nil, err
+	}
+	if steps < 0 {
 		return nil, fmt.Errorf("maps: steps = %d: must be >= 0: %w", steps, integrate.ErrSettings)
 	}
+	n := m.Dim()
 	x := append([]float64(nil), x0...)
 	orbit := make([]float64, 0, n*(steps+1))
 	orbit = append(orbit, x...)
@@ -63,4 +61,16 @@ func Orbit(ctx context.Context, m *Map, x0 []float64, steps int) ([]float64, err
 		orbit = append(orbit, x...)
 	}
 	return orbit, nil
+}
+
+// checkStart refuses a nil or zero map and a start x0 of another length,
+// for the entry point named what.
+func checkStart(what string, m *Map, x0 []float64) error {
+	switch n := m.Dim(); {
+	case n == 0:
+		return fmt.Errorf("maps: %s of a nil or zero map: %w", what, integrate.ErrSettings)
+	case len(x0) != n:
+		return fmt.Errorf("maps: start of length %d for a map of dimension %d: %w", len(x0), n, integrate.ErrDimension)
+	}
+	return nil
 }
