@@ -23,7 +23,7 @@ var ErrKind = errors.New("wrong kind of system")
 // parameters, which can be changed with Set.
 //
 // A System is not safe for concurrent use; the functions it returns (in
-// Problem, Evaluator, DoubleDoubleEvaluator, Map) each own their workspace
+// Problem and Map) each own their workspace
 // and are not safe for concurrent use either: call the method once per
 // goroutine.
 type System struct {

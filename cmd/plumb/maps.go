@@ -504,7 +504,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 
 // mapTrustCSV writes the divergence per iterate: n, then one column per
 // rung (empty before a restart and after a failure). Past
-// plumb.MapCurvePoints iterates a row covers rep.Stride iterates from n and
+// maps.CurvePoints iterates a row covers rep.Stride iterates from n and
 // holds the largest divergence over them.
 func mapTrustCSV(cl *call, rep *plumb.Report) error {
 	stride := max(rep.Stride, 1)
