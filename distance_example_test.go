@@ -21,7 +21,7 @@ func ExampleDistance() {
 		fmt.Println(err)
 		return
 	}
-	rep, err := plumb.TrustMap(context.Background(), sys, 120, &plumb.MapTrustSettings{
+	rep, err := sys.Trust(context.Background(), 120, &plumb.TrustSettings{
 		Tol: 1,
 		Distance: plumb.Distance{
 			Observe: []string{"x"},

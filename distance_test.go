@@ -3,6 +3,7 @@ package plumb
 import (
 	"context"
 	"errors"
+	"github.com/plumbdyn/plumb/maps"
 	"math"
 	"strings"
 	"testing"
@@ -106,10 +107,10 @@ func TestTrustScaleIdentity(t *testing.T) {
 		trust func(*TrustSettings) (*Report, error)
 	}{
 		{"float64 reference", func(s *TrustSettings) (*Report, error) {
-			return Trust(context.Background(), sys.Problem(), 25, s)
+			return TrustProblem(context.Background(), sys.Problem(), 25, s)
 		}},
 		{"multiprecision reference", func(s *TrustSettings) (*Report, error) {
-			return TrustSystem(context.Background(), sys, 25, s)
+			return sys.Trust(context.Background(), 25, s)
 		}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -145,9 +146,9 @@ func TestTrustObserveSubset(t *testing.T) {
 	sys, err := Model("lorenz")
 	require.NoError(t, err)
 	p := sys.Problem()
-	full, err := Trust(context.Background(), p, 25, &TrustSettings{Tol: 1, Ladder: lorenzLadder(), Lambda: 0.9056, States: sys.States})
+	full, err := TrustProblem(context.Background(), p, 25, &TrustSettings{Tol: 1, Ladder: lorenzLadder(), Lambda: 0.9056, States: sys.States})
 	require.NoError(t, err)
-	x, err := Trust(context.Background(), p, 25, &TrustSettings{Tol: 1, Ladder: lorenzLadder(), Lambda: 0.9056, States: sys.States, Distance: Distance{Observe: []string{"x"}}})
+	x, err := TrustProblem(context.Background(), p, 25, &TrustSettings{Tol: 1, Ladder: lorenzLadder(), Lambda: 0.9056, States: sys.States, Distance: Distance{Observe: []string{"x"}}})
 	require.NoError(t, err)
 	require.Equal(t, "Euclidean over x (y, z not compared)", x.Distance.String())
 	require.Equal(t, []string{"y", "z"}, x.Distance.Omitted)
@@ -169,23 +170,23 @@ func TestTrustDistanceRefused(t *testing.T) {
 	sys, err := Model("lorenz")
 	require.NoError(t, err)
 	bad := Distance{Observe: []string{"x", "w"}}
-	rep, err := Trust(context.Background(), sys.Problem(), 10, &TrustSettings{Tol: 1, States: sys.States, Distance: bad})
+	rep, err := TrustProblem(context.Background(), sys.Problem(), 10, &TrustSettings{Tol: 1, States: sys.States, Distance: bad})
 	require.Nil(t, rep)
 	require.ErrorIs(t, err, ErrUnknown)
-	rep, err = TrustSystem(context.Background(), sys, 10, &TrustSettings{Tol: 1, Distance: bad})
+	rep, err = sys.Trust(context.Background(), 10, &TrustSettings{Tol: 1, Distance: bad})
 	require.Nil(t, rep)
 	require.ErrorIs(t, err, ErrUnknown)
 	// Without States the components are y[0], y[1], y[2].
-	rep, err = Trust(context.Background(), sys.Problem(), 10, &TrustSettings{Tol: 1, Distance: Distance{Observe: []string{"x"}}})
+	rep, err = TrustProblem(context.Background(), sys.Problem(), 10, &TrustSettings{Tol: 1, Distance: Distance{Observe: []string{"x"}}})
 	require.Nil(t, rep)
 	require.ErrorIs(t, err, ErrUnknown)
 	require.Contains(t, err.Error(), "y[0], y[1], y[2]")
-	rep, err = Trust(context.Background(), sys.Problem(), 10, &TrustSettings{Tol: 1, States: []string{"x"}})
+	rep, err = TrustProblem(context.Background(), sys.Problem(), 10, &TrustSettings{Tol: 1, States: []string{"x"}})
 	require.Nil(t, rep)
 	require.ErrorIs(t, err, integrate.ErrDimension)
 	h, err := Model("henon")
 	require.NoError(t, err)
-	mrep, err := TrustMap(context.Background(), h, 50, &MapTrustSettings{Tol: 0.1, Distance: Distance{Scales: []Scale{{"x", -1}}}})
+	mrep, err := h.Trust(context.Background(), 50, &TrustSettings{Tol: 0.1, Distance: Distance{Scales: []Scale{{"x", -1}}}})
 	require.Nil(t, mrep)
 	require.ErrorIs(t, err, integrate.ErrSettings)
 }
@@ -199,10 +200,10 @@ func TestTrustMapObserveByHand(t *testing.T) {
 	const steps, tol = 120, 0.1
 	sys, err := Model("henon")
 	require.NoError(t, err)
-	rungs := []MapRung{{Name: "float64", Kind: integrate.KindPrecision}}
-	rep, err := TrustMap(context.Background(), sys, steps, &MapTrustSettings{Tol: tol, Rungs: rungs, Lambda: henonLambda1, Distance: Distance{Observe: []string{"x"}}})
+	rungs := []maps.Rung{{Name: "float64", Kind: integrate.KindPrecision}}
+	rep, err := sys.Trust(context.Background(), steps, &TrustSettings{Tol: tol, MapRungs: rungs, Lambda: henonLambda1, Distance: Distance{Observe: []string{"x"}}})
 	require.NoError(t, err)
-	ev, err := sys.DoubleDoubleEvaluator()
+	ev, err := sys.ddEval()
 	require.NoError(t, err)
 	m, err := sys.Map()
 	require.NoError(t, err)
@@ -227,7 +228,7 @@ func TestTrustMapObserveByHand(t *testing.T) {
 	require.Positive(t, departs, "the float64 orbit must depart within %d iterates for the check to bite", steps)
 	require.True(t, r.Departed)
 	require.Equal(t, departs, r.DepartsAt, "first iterate beyond tol (exact identity)")
-	require.Equal(t, departs-1, r.AgreesUntil)
+	require.Equal(t, float64(departs-1), r.AgreesUntil)
 	require.Equal(t, "Euclidean over x (y not compared)", rep.Distance.String())
 }
 
@@ -257,9 +258,9 @@ func TestTrustMapScaleIdentity(t *testing.T) {
 		if c.relative {
 			plainTol, scaledTol = 0.05, 0.05
 		}
-		plain, err := TrustMap(context.Background(), sys, c.steps, &MapTrustSettings{Tol: plainTol, Relative: c.relative, Lambda: 0.4})
+		plain, err := sys.Trust(context.Background(), float64(c.steps), &TrustSettings{Tol: plainTol, Relative: c.relative, Lambda: 0.4})
 		require.NoError(t, err)
-		scaled, err := TrustMap(context.Background(), sys, c.steps, &MapTrustSettings{Tol: scaledTol, Relative: c.relative, Lambda: 0.4, Distance: Distance{Scales: half}})
+		scaled, err := sys.Trust(context.Background(), float64(c.steps), &TrustSettings{Tol: scaledTol, Relative: c.relative, Lambda: 0.4, Distance: Distance{Scales: half}})
 		require.NoError(t, err)
 		require.Equalf(t, plain.TrustedUntil, scaled.TrustedUntil, "%s", c.model)
 		require.Equalf(t, plain.PredictedHorizon, scaled.PredictedHorizon, "%s prediction: tol and delta0 both halve (exact identity)", c.model)
@@ -295,9 +296,9 @@ func TestTrustPeriodicScaleIdentity(t *testing.T) {
 	}
 	l := integrate.DefaultLadder(0, 20)
 	l.Rungs = l.Rungs[:1]
-	plain, err := Trust(context.Background(), sys.Problem(), 20, &TrustSettings{Tol: 0.1, Ladder: &l, Lambda: 1, Periods: sys.Periods(), States: sys.States})
+	plain, err := TrustProblem(context.Background(), sys.Problem(), 20, &TrustSettings{Tol: 0.1, Ladder: &l, Lambda: 1, Periods: sys.Periods(), States: sys.States})
 	require.NoError(t, err)
-	scaled, err := Trust(context.Background(), sys.Problem(), 20, &TrustSettings{Tol: 0.05, Ladder: &l, Lambda: 1, Periods: sys.Periods(), States: sys.States, Distance: Distance{Scales: half}})
+	scaled, err := TrustProblem(context.Background(), sys.Problem(), 20, &TrustSettings{Tol: 0.05, Ladder: &l, Lambda: 1, Periods: sys.Periods(), States: sys.States, Distance: Distance{Scales: half}})
 	require.NoError(t, err)
 	require.True(t, plain.Rungs[0].Departed, "the rung must depart for the check to bite")
 	require.Equal(t, plain.TrustedUntil, scaled.TrustedUntil, "exact identity")
@@ -339,7 +340,7 @@ func TestSetStartValue(t *testing.T) {
 func TestTrustSystemFallbackNames(t *testing.T) {
 	sys, err := Model("lorenz")
 	require.NoError(t, err)
-	rep, err := TrustSystem(context.Background(), sys, 15, &TrustSettings{
+	rep, err := sys.Trust(context.Background(), 15, &TrustSettings{
 		Tol: 1, Ladder: lorenzLadder(), NoReversal: true,
 		Exponent: &lyap.Settings{Duration: -1},
 		Distance: Distance{Observe: []string{"z"}},

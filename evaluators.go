@@ -9,21 +9,16 @@ import (
 	"github.com/plumbdyn/plumb/internal/expr"
 )
 
-// DoubleDouble is a double-double number Hi + Lo (about 32 significant
-// digits), the arithmetic of DoubleDoubleEvaluator. Its operations are
-// those of plumb's internal double-double package; see DDEvaluator.
-type DoubleDouble = dd.Float
-
-// BigEvaluator computes a system's right-hand side (the vector field of a
+// bigEvaluator computes a system's right-hand side (the vector field of a
 // flow or Hamiltonian, the next state of a map) in math/big.Float arithmetic
 // at a fixed precision, for reference-precision runs. Not safe for
 // concurrent use.
-type BigEvaluator struct {
+type bigEvaluator struct {
 	n  int
 	ev *expr.Big
 }
 
-// Evaluator returns the right-hand side at prec bits of precision (for
+// bigEval returns the right-hand side at prec bits of precision (for
 // instance 256 for a reference run to compare with float64). The formulas'
 // numbers and the parameters are the float64 values the float64 field uses,
 // so both compute the same model and differ only in rounding. Each
@@ -32,8 +27,8 @@ type BigEvaluator struct {
 //
 // Built-in models use their catalog formulas. prec must be in [2,
 // big.MaxPrec].
-func (s *System) Evaluator(prec uint) (*BigEvaluator, error) {
-	if err := s.check("Evaluator"); err != nil {
+func (s *System) bigEval(prec uint) (*bigEvaluator, error) {
+	if err := s.check("bigEval"); err != nil {
 		return nil, err
 	}
 	if s.form == nil {
@@ -47,11 +42,11 @@ func (s *System) Evaluator(prec uint) (*BigEvaluator, error) {
 	for i, p := range s.params {
 		vars[1+s.form.n+i].SetFloat64(p)
 	}
-	return &BigEvaluator{n: s.form.n, ev: ev}, nil
+	return &bigEvaluator{n: s.form.n, ev: ev}, nil
 }
 
 // Prec returns the evaluator's precision in bits.
-func (e *BigEvaluator) Prec() uint {
+func (e *bigEvaluator) Prec() uint {
 	if e == nil || e.ev == nil {
 		return 0
 	}
@@ -63,9 +58,9 @@ func (e *BigEvaluator) Prec() uint {
 // Wrong lengths are errors wrapping integrate.ErrDimension, a nil entry of
 // y one wrapping integrate.ErrNonFinite; a value that is not a real number
 // (0/0, log of a negative number) is an error wrapping expr's ErrNaN.
-func (e *BigEvaluator) Eval(t *big.Float, y, dydt []*big.Float) error {
+func (e *bigEvaluator) Eval(t *big.Float, y, dydt []*big.Float) error {
 	if e == nil || e.ev == nil {
-		return noEvaluator("BigEvaluator.Eval")
+		return noEvaluator("bigEvaluator.Eval")
 	}
 	if len(y) != e.n || len(dydt) != e.n {
 		return fmt.Errorf("plumb: Eval with %d states and %d outputs, system has %d: %w", len(y), len(dydt), e.n, integrate.ErrDimension)
@@ -88,22 +83,22 @@ func (e *BigEvaluator) Eval(t *big.Float, y, dydt []*big.Float) error {
 	return nil
 }
 
-// DDEvaluator computes a system's right-hand side in double-double
+// ddEvaluator computes a system's right-hand side in double-double
 // arithmetic: about 32 significant digits at a few times the cost of
 // float64, for reference runs cheaper than big.Float. + - * / have relative
 // error below 2e-31 (Joldes, Muller & Popescu, ACM TOMS 44, 2017); the
 // elementary functions about 1e-31 (see internal/dd). Not safe for
 // concurrent use; Eval does not allocate.
-type DDEvaluator struct {
+type ddEvaluator struct {
 	n  int
 	ev *expr.DD
 }
 
-// DoubleDoubleEvaluator returns the right-hand side in double-double
+// ddEval returns the right-hand side in double-double
 // arithmetic at the current parameters (see Evaluator for the model's
 // numbers). Built-in models use their catalog formulas.
-func (s *System) DoubleDoubleEvaluator() (*DDEvaluator, error) {
-	if err := s.check("DoubleDoubleEvaluator"); err != nil {
+func (s *System) ddEval() (*ddEvaluator, error) {
+	if err := s.check("ddEval"); err != nil {
 		return nil, err
 	}
 	if s.form == nil {
@@ -114,14 +109,14 @@ func (s *System) DoubleDoubleEvaluator() (*DDEvaluator, error) {
 	for i, p := range s.params {
 		vars[1+s.form.n+i] = dd.From(p)
 	}
-	return &DDEvaluator{n: s.form.n, ev: ev}, nil
+	return &ddEvaluator{n: s.form.n, ev: ev}, nil
 }
 
 // Eval writes the right-hand side at (t, y) into dydt (t is ignored for
 // maps). Wrong lengths are errors wrapping integrate.ErrDimension.
-func (e *DDEvaluator) Eval(t DoubleDouble, y, dydt []DoubleDouble) error {
+func (e *ddEvaluator) Eval(t dd.Float, y, dydt []dd.Float) error {
 	if e == nil || e.ev == nil {
-		return noEvaluator("DDEvaluator.Eval")
+		return noEvaluator("ddEvaluator.Eval")
 	}
 	if len(y) != e.n || len(dydt) != e.n {
 		return fmt.Errorf("plumb: Eval with %d states and %d outputs, system has %d: %w", len(y), len(dydt), e.n, integrate.ErrDimension)

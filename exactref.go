@@ -1,7 +1,8 @@
 package plumb
 
-// ExactReference describes the multiprecision reference of a TrustSystem
-// audit.
+// ExactReference describes the reference every run of an audit was
+// compared with: a flow's multiprecision Taylor run, or a map's orbit in
+// double-double arithmetic (Method "the map iterated", Digits 32).
 type ExactReference struct {
 	Method     string `json:"method"`
 	Arithmetic string `json:"arithmetic"`
@@ -16,7 +17,7 @@ type ExactReference struct {
 	// a thousandth of the tolerance: the end of the span, or, for a long
 	// audit of a chaotic system, a time after every run had departed from
 	// it, from which it was continued in the arithmetic Continued at
-	// ContinuedDigits digits (see TrustSystem).
+	// ContinuedDigits digits (see System.Trust).
 	AccurateUntil   float64 `json:"accurate_until"`
 	Continued       string  `json:"continued,omitempty"`
 	ContinuedDigits int     `json:"continued_digits,omitempty"`

@@ -93,7 +93,7 @@ func (f *systemSeries) KinkBig(order int, prec uint) (integrate.KinkJetBig, erro
 	return bigJet{ty}, nil
 }
 
-// setAside is TrustSystem's audit when its multiprecision reference
+// setAside is System.Trust's audit when its multiprecision reference
 // stopped at a kink it cannot pass (integrate.ErrKink): the audit against
 // the float64 reference run, with Report.Exact saying why (SetAside) and
 // how far the Taylor run came.
@@ -101,7 +101,7 @@ func setAside(ctx context.Context, problem integrate.Problem, horizon float64, s
 	lad := *s.Ladder
 	lad.Exact = nil
 	s.Ladder = &lad
-	rep, err := Trust(ctx, problem, horizon, &s)
+	rep, err := TrustProblem(ctx, problem, horizon, &s)
 	if rep != nil {
 		if ex == nil {
 			ex = &ExactReference{Method: "Taylor (Jorba–Zou order and step)"}

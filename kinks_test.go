@@ -127,7 +127,7 @@ func TestReferenceKinks(t *testing.T) {
 		for _, digits := range []int{30, 40} { // double-double, big.Float
 			t.Run(tc.name+map[int]string{30: " dd", 40: " big"}[digits], func(t *testing.T) {
 				sys := loadKinkSystem(t, "kinks", tc.vars...)
-				ref, err := Reference(context.Background(), sys, tc.t1, nil, &ReferenceSettings{Digits: digits, NoCheck: true})
+				ref, err := referenceRun(context.Background(), sys, tc.t1, nil, &referenceSettings{Digits: digits, NoCheck: true})
 				require.NoError(t, err)
 				got := ref.Float64[len(ref.Float64)-1][tc.comp]
 				t.Logf("%d restarts, %d steps, off by %.3g", ref.Stats.KinkRestarts, ref.Stats.Steps, got-tc.want)
@@ -173,7 +173,7 @@ func TestReferenceKinksRefused(t *testing.T) {
 		for _, digits := range []int{30, 40} {
 			t.Run(tc.name, func(t *testing.T) {
 				sys := loadKinkSystem(t, "refused", tc.vars...)
-				_, err := Reference(context.Background(), sys, 2, nil, &ReferenceSettings{Digits: digits, NoCheck: true})
+				_, err := referenceRun(context.Background(), sys, 2, nil, &referenceSettings{Digits: digits, NoCheck: true})
 				require.ErrorIs(t, err, integrate.ErrKink)
 				assert.Contains(t, err.Error(), tc.want)
 			})
@@ -275,7 +275,7 @@ func TestTrustSystemKinkedLorenz(t *testing.T) {
 			ctx := context.Background()
 			sys := loadKinkSystem(t, "lorenz-"+tc.name, tc.vars...)
 			set := &TrustSettings{Tol: tol, Lambda: lambda, NoReversal: true}
-			exact, err := TrustSystem(ctx, sys, horizon, set)
+			exact, err := sys.Trust(ctx, horizon, set)
 			require.NoError(t, err)
 			require.NotNil(t, exact.Exact)
 			require.Empty(t, exact.Exact.SetAside)
@@ -289,7 +289,7 @@ func TestTrustSystemKinkedLorenz(t *testing.T) {
 				lad.Exact = tr
 				s := *set
 				s.Ladder = &lad
-				rep, err := Trust(ctx, p, horizon, &s)
+				rep, err := TrustProblem(ctx, p, horizon, &s)
 				require.NoError(t, err)
 				return rep
 			}
@@ -298,7 +298,7 @@ func TestTrustSystemKinkedLorenz(t *testing.T) {
 			sr, err := sys.series()
 			require.NoError(t, err)
 			var ex *ExactReference
-			digits, err := ReferenceDigits(lambda, horizon, refTolFraction*tol, 1)
+			digits, err := referenceDigits(lambda, horizon, refTolFraction*tol, 1)
 			require.NoError(t, err)
 			a, err := exactTrajectory(sr, p, digits, p.T0+horizon, lambda, &ex)(ctx, exact.Times)
 			require.NoError(t, err)
@@ -413,7 +413,7 @@ func TestReferenceKinkDigits(t *testing.T) {
 	sys := loadKinkSystem(t, "kinked",
 		`{"name": "x", "start": 1, "rate": "v"}`, `{"name": "v", "start": 0, "rate": "-x"}`,
 		`{"name": "z", "start": 0, "rate": "abs(x)"}`)
-	ref, err := Reference(context.Background(), sys, 8, nil, &ReferenceSettings{Digits: digits, NoCheck: true})
+	ref, err := referenceRun(context.Background(), sys, 8, nil, &referenceSettings{Digits: digits, NoCheck: true})
 	require.NoError(t, err)
 	require.Equal(t, 3, ref.Stats.KinkRestarts)
 	want := expr.BigSin(new(big.Float).SetPrec(300), new(big.Float).SetPrec(300).SetInt64(8))
@@ -444,7 +444,7 @@ func FuzzReferenceKinks(f *testing.F) {
 			return
 		}
 		for _, d := range []int{20, 35} {
-			ref, err := Reference(context.Background(), sys, 1, nil, &ReferenceSettings{Digits: d, NoCheck: true, MaxSteps: 2000})
+			ref, err := referenceRun(context.Background(), sys, 1, nil, &referenceSettings{Digits: d, NoCheck: true, MaxSteps: 2000})
 			if err == nil && len(ref.Float64) == 0 {
 				t.Fatalf("%q: no error and no states", rate)
 			}

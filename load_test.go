@@ -252,11 +252,11 @@ func TestEvaluators(t *testing.T) {
 		if err := s.Set(firstParam(s), firstValue(s)*1.01); err != nil && len(s.Params()) > 0 {
 			t.Fatal(err)
 		}
-		be, err := s.Evaluator(256)
+		be, err := s.bigEval(256)
 		if err != nil {
 			t.Fatalf("%s: %v", name, err)
 		}
-		de, err := s.DoubleDoubleEvaluator()
+		de, err := s.ddEval()
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -273,15 +273,15 @@ func TestEvaluators(t *testing.T) {
 			s.Problem().F(0.5, y0, f64)
 		}
 		by, bd := make([]*big.Float, n), make([]*big.Float, n)
-		dy, ddv := make([]DoubleDouble, n), make([]DoubleDouble, n)
+		dy, ddv := make([]dd.Float, n), make([]dd.Float, n)
 		for i, v := range y0 {
 			by[i] = new(big.Float).SetPrec(256).SetFloat64(v)
-			dy[i] = DoubleDouble{Hi: v}
+			dy[i] = dd.Float{Hi: v}
 		}
 		if err := be.Eval(big.NewFloat(0.5), by, bd); err != nil {
 			t.Fatal(err)
 		}
-		if err := de.Eval(DoubleDouble{Hi: 0.5}, dy, ddv); err != nil {
+		if err := de.Eval(dd.Float{Hi: 0.5}, dy, ddv); err != nil {
 			t.Fatal(err)
 		}
 		for i := range f64 {
@@ -458,15 +458,15 @@ func FuzzLoadSystem(f *testing.F) {
 				p.Split.H(y[:n/2], y[n/2:])
 			}
 		}
-		de, err := s.DoubleDoubleEvaluator()
+		de, err := s.ddEval()
 		if err != nil {
 			t.Fatal(err)
 		}
-		dy := make([]DoubleDouble, n)
+		dy := make([]dd.Float, n)
 		for i, v := range y {
-			dy[i] = DoubleDouble{Hi: v}
+			dy[i] = dd.Float{Hi: v}
 		}
-		de.Eval(DoubleDouble{}, dy, make([]DoubleDouble, n))
+		de.Eval(dd.Float{}, dy, make([]dd.Float, n))
 		for _, fm := range s.Formulas() {
 			if fm == "" {
 				t.Fatal("empty formula")
@@ -475,7 +475,7 @@ func FuzzLoadSystem(f *testing.F) {
 		if n > 8 {
 			return
 		}
-		be, err := s.Evaluator(64)
+		be, err := s.bigEval(64)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -485,16 +485,16 @@ func FuzzLoadSystem(f *testing.F) {
 		}
 		be.Eval(new(big.Float), by, make([]*big.Float, n)) // errors (NaN) are fine, panics are not
 		if s.Kind() != KindMap {
-			ts, err := s.Taylor(4)
+			ts, err := s.taylor(4)
 			if err != nil {
 				t.Fatal(err)
 			}
 			ts.Step(0, y, 0.01, make([]float64, n))
-			td, err := s.TaylorDD(4)
+			td, err := s.taylorDD(4)
 			if err != nil {
 				t.Fatal(err)
 			}
-			td.Step(DoubleDouble{}, dy, DoubleDouble{Hi: 0.01}, make([]DoubleDouble, n))
+			td.Step(dd.Float{}, dy, dd.Float{Hi: 0.01}, make([]dd.Float, n))
 		}
 	})
 }
@@ -531,7 +531,7 @@ func BenchmarkSolveLorenz(b *testing.B) {
 // 2006, ch. I).
 func TestTaylorStepper(t *testing.T) {
 	m, _ := Model("lorenz")
-	ts, err := m.Taylor(20)
+	ts, err := m.taylor(20)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -556,7 +556,7 @@ func TestTaylorStepper(t *testing.T) {
 		}
 	}
 	k, _ := Model("kepler")
-	kt, err := k.Taylor(16)
+	kt, err := k.taylor(16)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -571,7 +571,7 @@ func TestTaylorStepper(t *testing.T) {
 	if e := h(q[:2], q[2:]); math.Abs(e+0.5) > 1e-12 {
 		t.Errorf("Kepler energy after one orbit = %.16g, want -0.5", e)
 	}
-	if _, err := (&System{kind: KindMap, form: &formulaSystem{}}).Taylor(3); !errors.Is(err, ErrKind) {
+	if _, err := (&System{kind: KindMap, form: &formulaSystem{}}).taylor(3); !errors.Is(err, ErrKind) {
 		t.Errorf("Taylor of a map: %v", err)
 	}
 	if err := ts.Step(0, y[:2], 0.1, y); !errors.Is(err, integrate.ErrDimension) {
@@ -597,7 +597,7 @@ func TestConcurrentModels(t *testing.T) {
 			p.F(0, p.Y0, d)
 			p.Jac(0, p.Y0, j)
 			_ = s.Formulas()
-			be, err := s.Evaluator(128)
+			be, err := s.bigEval(128)
 			if err == nil {
 				y := make([]*big.Float, n)
 				for i, v := range p.Y0 {
@@ -622,16 +622,16 @@ func TestConcurrentModels(t *testing.T) {
 // float64 resolution. E is that of the float64 start (1.4e-16 from -1/2).
 func TestTaylorDDStepper(t *testing.T) {
 	k, _ := Model("kepler")
-	ts, err := k.TaylorDD(30)
+	ts, err := k.taylorDD(30)
 	if err != nil {
 		t.Fatal(err)
 	}
 	start := k.Start()
-	y := make([]DoubleDouble, 4)
+	y := make([]dd.Float, 4)
 	for i, v := range start {
-		y[i] = DoubleDouble{Hi: v}
+		y[i] = dd.Float{Hi: v}
 	}
-	energy := func(y []DoubleDouble) dd.Float {
+	energy := func(y []dd.Float) dd.Float {
 		r := dd.Sqrt(dd.Add(dd.Mul(y[0], y[0]), dd.Mul(y[1], y[1])))
 		kin := dd.MulFloat(dd.Add(dd.Mul(y[2], y[2]), dd.Mul(y[3], y[3])), 0.5)
 		return dd.Sub(kin, dd.Div(dd.From(1), r))
@@ -651,12 +651,12 @@ func TestTaylorDDStepper(t *testing.T) {
 	// in energy and 5e-30 in position; the bounds 1e-29 and 1e-28 leave a
 	// factor 20-50 for the shear of the orbit amplifying other roundings.
 	t.Logf("energy drift %.3g, closure error %.3g", dd.Sub(energy(y), e0).Float64(),
-		math.Hypot(dd.Sub(y[0], DoubleDouble{Hi: start[0]}).Float64(), dd.Sub(y[1], DoubleDouble{Hi: start[1]}).Float64()))
+		math.Hypot(dd.Sub(y[0], dd.Float{Hi: start[0]}).Float64(), dd.Sub(y[1], dd.Float{Hi: start[1]}).Float64()))
 	if d := dd.Sub(energy(y), e0).Float64(); math.Abs(d) > 1e-29 {
 		t.Errorf("energy after one orbit drifted by %g", d)
 	}
 	for i := range y {
-		if d := dd.Sub(y[i], DoubleDouble{Hi: start[i]}).Float64(); math.Abs(d) > 1e-28 {
+		if d := dd.Sub(y[i], dd.Float{Hi: start[i]}).Float64(); math.Abs(d) > 1e-28 {
 			t.Errorf("component %d after one period differs from the start by %g", i, d)
 		}
 	}

@@ -9,13 +9,13 @@ import (
 
 // A fish stock counted once a year follows the logistic map at r = 4: how
 // many years of a float64 forecast agree with a double-double one to 0.1?
-func ExampleTrustMap() {
+func ExampleSystem_Trust_map() {
 	sys, err := plumb.Model("logistic")
 	if err != nil {
 		fmt.Println(err)
 		return
 	}
-	rep, err := plumb.TrustMap(context.Background(), sys, 100, &plumb.MapTrustSettings{Tol: 0.1})
+	rep, err := sys.Trust(context.Background(), 100, &plumb.TrustSettings{Tol: 0.1})
 	if err != nil {
 		fmt.Println(err)
 		return

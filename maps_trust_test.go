@@ -3,14 +3,13 @@ package plumb
 import (
 	"context"
 	"errors"
+	"github.com/plumbdyn/plumb/maps"
 	"math"
-	"math/big"
 	"os"
 	"reflect"
 	"testing"
 
 	"github.com/plumbdyn/plumb/integrate"
-	"github.com/plumbdyn/plumb/internal/dd"
 	"github.com/plumbdyn/plumb/lyap"
 )
 
@@ -112,30 +111,6 @@ func TestBuiltinMapKind(t *testing.T) {
 	}
 }
 
-// TestWrapAngleDD checks the double-double reduction against math/big's
-// exact x - k·p (reference library: math/big).
-func TestWrapAngleDD(t *testing.T) {
-	p := 2 * math.Pi
-	for _, x := range []float64{7, -0.5, 100.25, -1e6, 3, 6.283185307179586, 1e-20} {
-		got := wrapAngleDD(dd.Float{Hi: x, Lo: x * 1e-18}, p)
-		xb := new(big.Float).SetPrec(200).SetFloat64(x)
-		xb.Add(xb, new(big.Float).SetFloat64(x*1e-18))
-		k := math.Floor((x + x*1e-18) / p)
-		want := new(big.Float).SetPrec(200).Sub(xb, new(big.Float).SetPrec(200).Mul(big.NewFloat(k), big.NewFloat(p)))
-		if w, _ := want.Float64(); w < 0 || w >= p {
-			continue // k off by one in float64: the case the loop corrects; checked by the range test below
-		}
-		diff, _ := new(big.Float).Sub(got.Big(), want).Float64()
-		// double-double keeps about 1e-32 relative; the reduction is exact.
-		if math.Abs(diff) > 1e-30*math.Max(1, math.Abs(x)) {
-			t.Errorf("wrap(%v) differs from big by %g", x, diff)
-		}
-		if got.Hi < 0 || got.Hi >= p {
-			t.Errorf("wrap(%v) = %v, outside [0, p)", x, got.Hi)
-		}
-	}
-}
-
 // TestTrustMapHorizons checks TrustMap's measured departures against the
 // predictability horizon ln(tol/delta0)/lambda_1 (Boffetta et al. 2002,
 // Sect. 2.1): float64 (delta0 = eps ≈ 1.1e-16) leaves the double-double
@@ -159,11 +134,11 @@ func TestTrustMapHorizons(t *testing.T) {
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			s, _ := Model(c.name)
-			rep, err := TrustMap(context.Background(), s, 200, &MapTrustSettings{Tol: tol})
+			rep, err := s.Trust(context.Background(), 200, &TrustSettings{Tol: tol})
 			if err != nil {
 				t.Fatal(err)
 			}
-			rung := map[string]MapRungReport{}
+			rung := map[string]RungReport{}
 			for _, r := range rep.Rungs {
 				rung[r.Name] = r
 			}
@@ -186,7 +161,7 @@ func TestTrustMapHorizons(t *testing.T) {
 				t.Errorf("exponent %+v, want %.5g (%s)", rep.Exponent, c.lambda, c.source)
 			}
 			if rep.TrustedUntil != b24.AgreesUntil || rep.LimitingRung != "24 bits" {
-				t.Errorf("trusted until %d limited by %q; want the 24-bit rung's %d", rep.TrustedUntil, rep.LimitingRung, b24.AgreesUntil)
+				t.Errorf("trusted until %v limited by %q; want the 24-bit rung's %v", rep.TrustedUntil, rep.LimitingRung, b24.AgreesUntil)
 			}
 		})
 	}
@@ -202,12 +177,12 @@ func TestTrustMapStableCycle(t *testing.T) {
 	}
 	// 0.01: above the restart rung's rounding to 3 places (5e-4), which
 	// the cycle then forgets as well.
-	rep, err := TrustMap(context.Background(), s, 500, &MapTrustSettings{Tol: 0.01})
+	rep, err := s.Trust(context.Background(), 500, &TrustSettings{Tol: 0.01})
 	if err != nil {
 		t.Fatal(err)
 	}
 	if rep.Verdict != TrustedWithMargin || rep.TrustedUntil != 500 {
-		t.Errorf("verdict %s until %d, want trusted_with_margin until 500", rep.Verdict, rep.TrustedUntil)
+		t.Errorf("verdict %s until %v, want trusted_with_margin until 500", rep.Verdict, rep.TrustedUntil)
 	}
 	if rep.Growth != "bounded" || rep.PredictedHorizon != 0 {
 		t.Errorf("growth %s, predicted %v; want bounded and no prediction", rep.Growth, rep.PredictedHorizon)
@@ -232,11 +207,11 @@ func TestTrustMapFile(t *testing.T) {
 		}
 		return s
 	}
-	a, err := TrustMap(context.Background(), load(), 100, &MapTrustSettings{Tol: 0.05})
+	a, err := load().Trust(context.Background(), 100, &TrustSettings{Tol: 0.05})
 	if err != nil {
 		t.Fatal(err)
 	}
-	b, _ := TrustMap(context.Background(), load(), 100, &MapTrustSettings{Tol: 0.05})
+	b, _ := load().Trust(context.Background(), 100, &TrustSettings{Tol: 0.05})
 	if !reflect.DeepEqual(a, b) {
 		t.Error("two audits of the same file differ")
 	}
@@ -249,27 +224,35 @@ func TestTrustMapErrors(t *testing.T) {
 	ctx := context.Background()
 	henon, _ := Model("henon")
 	lorenz, _ := Model("lorenz")
-	ok := &MapTrustSettings{Tol: 0.1}
+	ok := &TrustSettings{Tol: 0.1}
 	cases := []struct {
 		name  string
 		sys   *System
-		steps int
-		s     *MapTrustSettings
+		steps float64
+		s     *TrustSettings
 		want  error
 	}{
-		{"flow", lorenz, 10, ok, ErrKind},
-		{"nil system", nil, 10, ok, ErrKind},
-		{"no steps", henon, 0, ok, ErrSteps},
+		{"map rungs on a flow", lorenz, 10, &TrustSettings{Tol: 1, MapRungs: maps.DefaultRungs(10)}, integrate.ErrSettings},
+		{"nil system", nil, 10, ok, ErrNoSystem},
+		{"no steps", henon, 0, ok, maps.ErrSteps},
+		{"part of an iterate", henon, 10.5, ok, ErrHorizon},
+		{"too many iterates", henon, maps.MaxSteps + 1, ok, maps.ErrSteps},
+		{"ladder on a map", henon, 10, &TrustSettings{Tol: 1, Ladder: &integrate.Ladder{}}, integrate.ErrSettings},
+		{"run on a map", henon, 10, &TrustSettings{Tol: 1, Run: &integrate.Rung{}}, integrate.ErrSettings},
+		{"grid on a map", henon, 10, &TrustSettings{Tol: 1, Every: 1}, integrate.ErrSettings},
+		{"step budget on a map", henon, 10, &TrustSettings{Tol: 1, MaxSteps: 5}, integrate.ErrSettings},
+		{"own state names", henon, 10, &TrustSettings{Tol: 1, States: []string{"a", "b"}}, integrate.ErrSettings},
+		{"own periods", henon, 10, &TrustSettings{Tol: 1, Periods: []float64{0, 0}}, integrate.ErrSettings},
 		{"nil settings", henon, 10, nil, ErrTolerance},
-		{"zero tol", henon, 10, &MapTrustSettings{}, ErrTolerance},
-		{"negative lambda", henon, 10, &MapTrustSettings{Tol: 1, Lambda: -1}, integrate.ErrSettings},
-		{"empty rungs", henon, 10, &MapTrustSettings{Tol: 1, Rungs: []MapRung{}}, integrate.ErrLadder},
-		{"late restart", henon, 10, &MapTrustSettings{Tol: 1, Rungs: []MapRung{{Name: "r", Kind: integrate.KindRestart, RestartAt: 10, Restart: integrate.Places(3)}}}, integrate.ErrLadder},
-		{"method rung", henon, 10, &MapTrustSettings{Tol: 1, Rungs: []MapRung{{Name: "m", Kind: integrate.KindMethod}}}, integrate.ErrLadder},
-		{"bad bits", henon, 10, &MapTrustSettings{Tol: 1, Rungs: []MapRung{{Name: "b", Kind: integrate.KindPrecision, Storage: integrate.Bits(99)}}}, integrate.ErrSettings},
+		{"zero tol", henon, 10, &TrustSettings{}, ErrTolerance},
+		{"negative lambda", henon, 10, &TrustSettings{Tol: 1, Lambda: -1}, integrate.ErrSettings},
+		{"empty rungs", henon, 10, &TrustSettings{Tol: 1, MapRungs: []maps.Rung{}}, integrate.ErrLadder},
+		{"late restart", henon, 10, &TrustSettings{Tol: 1, MapRungs: []maps.Rung{{Name: "r", Kind: integrate.KindRestart, RestartAt: 10, Restart: integrate.Places(3)}}}, integrate.ErrLadder},
+		{"method rung", henon, 10, &TrustSettings{Tol: 1, MapRungs: []maps.Rung{{Name: "m", Kind: integrate.KindMethod}}}, integrate.ErrLadder},
+		{"bad bits", henon, 10, &TrustSettings{Tol: 1, MapRungs: []maps.Rung{{Name: "b", Kind: integrate.KindPrecision, Storage: integrate.Bits(99)}}}, integrate.ErrSettings},
 	}
 	for _, c := range cases {
-		rep, err := TrustMap(ctx, c.sys, c.steps, c.s)
+		rep, err := c.sys.Trust(ctx, c.steps, c.s)
 		if !errors.Is(err, c.want) || rep != nil {
 			t.Errorf("%s: report %v, error %v; want nil and %v", c.name, rep != nil, err, c.want)
 		}
@@ -278,14 +261,14 @@ func TestTrustMapErrors(t *testing.T) {
 	// escapes to -Inf; the reference fails and the report is incomplete.
 	s, _ := Model("logistic")
 	_ = s.Set("r", 5)
-	rep, err := TrustMap(ctx, s, 100, ok)
+	rep, err := s.Trust(ctx, 100, ok)
 	if err == nil || rep == nil || rep.Verdict != Incomplete {
 		t.Errorf("escaping orbit: report %v, error %v; want an incomplete report and an error", rep, err)
 	}
 	// Canceled before the work: partial report with the context's error.
 	cctx, cancel := context.WithCancel(ctx)
 	cancel()
-	rep, err = TrustMap(cctx, henon, 100, ok)
+	rep, err = henon.Trust(cctx, 100, ok)
 	if !errors.Is(err, context.Canceled) || rep == nil || rep.Verdict != Incomplete {
 		t.Errorf("canceled: report %v, error %v", rep, err)
 	}
@@ -295,7 +278,7 @@ func TestTrustMapErrors(t *testing.T) {
 // reference orbit's spread (definition), and a fixed point has none.
 func TestTrustMapRelative(t *testing.T) {
 	s, _ := Model("henon")
-	rep, err := TrustMap(context.Background(), s, 100, &MapTrustSettings{Tol: 0.1, Relative: true})
+	rep, err := s.Trust(context.Background(), 100, &TrustSettings{Tol: 0.1, Relative: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -306,7 +289,7 @@ func TestTrustMapRelative(t *testing.T) {
 	l, _ := Model("logistic")
 	_ = l.Set("r", 2)
 	_ = l.SetStart([]float64{0.5})
-	rep, err = TrustMap(context.Background(), l, 50, &MapTrustSettings{Tol: 0.1, Relative: true})
+	rep, err = l.Trust(context.Background(), 50, &TrustSettings{Tol: 0.1, Relative: true})
 	if !errors.Is(err, integrate.ErrSettings) || rep == nil || rep.Verdict != Incomplete {
 		t.Errorf("fixed point: error %v, report %v", err, rep)
 	}

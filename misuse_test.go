@@ -3,6 +3,7 @@ package plumb
 import (
 	"context"
 	"errors"
+	"github.com/plumbdyn/plumb/internal/dd"
 	"math/big"
 	"testing"
 
@@ -11,6 +12,7 @@ import (
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
+	"github.com/plumbdyn/plumb/maps"
 )
 
 // lorenzField is the Lorenz (1963) field at the published parameters
@@ -44,15 +46,15 @@ func TestMisuse(t *testing.T) {
 		{name: "nil System Set", call: func() error { var s *System; return s.Set("a", 1) }, want: ErrNoSystem},
 		{name: "nil System SetStart", call: func() error { var s *System; return s.SetStart(y0) }, want: ErrNoSystem},
 		{name: "nil System Map", call: func() error { var s *System; _, err := s.Map(); return err }, want: ErrNoSystem},
-		{name: "nil System Evaluator", call: func() error { var s *System; _, err := s.Evaluator(64); return err }, want: ErrNoSystem},
-		{name: "nil System DoubleDoubleEvaluator", call: func() error { var s *System; _, err := s.DoubleDoubleEvaluator(); return err }, want: ErrNoSystem},
-		{name: "nil System Taylor", call: func() error { var s *System; _, err := s.Taylor(10); return err }, want: ErrNoSystem},
-		{name: "nil System TaylorDD", call: func() error { var s *System; _, err := s.TaylorDD(10); return err }, want: ErrNoSystem},
+		{name: "nil System Evaluator", call: func() error { var s *System; _, err := s.bigEval(64); return err }, want: ErrNoSystem},
+		{name: "nil System DoubleDoubleEvaluator", call: func() error { var s *System; _, err := s.ddEval(); return err }, want: ErrNoSystem},
+		{name: "nil System Taylor", call: func() error { var s *System; _, err := s.taylor(10); return err }, want: ErrNoSystem},
+		{name: "nil System TaylorDD", call: func() error { var s *System; _, err := s.taylorDD(10); return err }, want: ErrNoSystem},
 		{name: "nil System Problem", call: func() error {
 			var s *System
 			_ = s.Kind() + Kind(s.TimeUnit())
 			_, _, _, _, _ = s.Units(), s.Params(), s.Start(), s.Periods(), s.Formulas()
-			_, _ = s.Known("period")
+			_, _ = s.known("period")
 			_ = s.Separable() || s.HasFormulas()
 			_, err := integrate.Solve(ctx, s.Problem(), 1, nil, nil)
 			return err
@@ -66,9 +68,9 @@ func TestMisuse(t *testing.T) {
 			_, err := integrate.Solve(ctx, s.Problem(), 1, nil, nil)
 			return err
 		}, want: integrate.ErrSettings},
-		{name: "zero System TrustSystem", call: func() error { _, err := TrustSystem(ctx, new(System), 1, nil); return err }, want: ErrNoSystem},
-		{name: "zero MapSystem", call: func() error {
-			var m MapSystem
+		{name: "zero System TrustSystem", call: func() error { _, err := new(System).Trust(ctx, 1, nil); return err }, want: ErrNoSystem},
+		{name: "zero maps.Map", call: func() error {
+			var m maps.Map
 			m.Next(y0, y0)
 			m.Jacobian(y0, mat.NewDense(3, 3, nil))
 			_, err := lyap.MapExponents(ctx, &m, nil, 1, nil)
@@ -87,25 +89,25 @@ func TestMisuse(t *testing.T) {
 			st.Next(ctx)
 			return st.Err()
 		}, want: integrate.ErrSettings},
-		{name: "BigEvaluator nil y entry", call: func() error {
-			ev, err := lor.Evaluator(64)
+		{name: "bigEvaluator nil y entry", call: func() error {
+			ev, err := lor.bigEval(64)
 			require.NoError(t, err)
 			return ev.Eval(nil, []*big.Float{new(big.Float), nil, new(big.Float)}, big3())
 		}, want: integrate.ErrNonFinite},
-		{name: "BigEvaluator nil dydt entries are allocated", call: func() error {
-			ev, err := lor.Evaluator(64)
+		{name: "bigEvaluator nil dydt entries are allocated", call: func() error {
+			ev, err := lor.bigEval(64)
 			require.NoError(t, err)
 			return ev.Eval(nil, big3(), make([]*big.Float, 3))
 		}},
-		{name: "BigEvaluator wrong length", call: func() error {
-			ev, err := lor.Evaluator(64)
+		{name: "bigEvaluator wrong length", call: func() error {
+			ev, err := lor.bigEval(64)
 			require.NoError(t, err)
 			return ev.Eval(nil, big3()[:2], big3())
 		}, want: integrate.ErrDimension},
-		{name: "zero BigEvaluator", call: func() error { return new(BigEvaluator).Eval(nil, big3(), big3()) }, want: ErrNoSystem},
-		{name: "zero DDEvaluator", call: func() error { return new(DDEvaluator).Eval(DoubleDouble{}, nil, nil) }, want: ErrNoSystem},
-		{name: "zero TaylorStepper", call: func() error { return new(TaylorStepper).Step(0, y0, 0.1, y0) }, want: ErrNoSystem},
-		{name: "zero TaylorDDStepper", call: func() error { return new(TaylorDDStepper).Step(DoubleDouble{}, nil, DoubleDouble{}, nil) }, want: ErrNoSystem},
+		{name: "zero bigEvaluator", call: func() error { return new(bigEvaluator).Eval(nil, big3(), big3()) }, want: ErrNoSystem},
+		{name: "zero ddEvaluator", call: func() error { return new(ddEvaluator).Eval(dd.Float{}, nil, nil) }, want: ErrNoSystem},
+		{name: "zero taylorStepper", call: func() error { return new(taylorStepper).Step(0, y0, 0.1, y0) }, want: ErrNoSystem},
+		{name: "zero taylorDDStepper", call: func() error { return new(taylorDDStepper).Step(dd.Float{}, nil, dd.Float{}, nil) }, want: ErrNoSystem},
 		{name: "vector field panics at t0", call: func() error {
 			_, err := integrate.NewStepper(integrate.Problem{F: func(float64, []float64, []float64) { panic("no field here") }, Y0: y0}, 1, nil, nil)
 			return err

@@ -11,9 +11,9 @@ import (
 	"github.com/plumbdyn/plumb/lyap"
 )
 
-// Precision rules of Reference.
+// Precision rules of referenceRun.
 const (
-	// GuardDigits are the decimal digits Reference adds beyond the digits
+	// guardDigits are the decimal digits referenceRun adds beyond the digits
 	// the error growth consumes and the digits wanted at the end. They
 	// cover the accumulation of the local errors over the steps (N steps
 	// add at most log10 N digits, 3 for a thousand steps, when they add up
@@ -21,32 +21,32 @@ const (
 	// finite-time exponent fluctuates around λ_1); on Lorenz at T = 100 the
 	// self-check of the tests measures what the margin leaves (common
 	// practice: a few digits of margin, checked by a second run).
-	GuardDigits = 4
-	// MinReferenceDigits is the least working precision of Reference: 20
+	guardDigits = 4
+	// minReferenceDigits is the least working precision of referenceRun: 20
 	// digits keep the reference error below float64 rounding (16 digits)
 	// at every time, so that every float64 run's divergence from it is its
 	// own and not the reference's.
-	MinReferenceDigits = 20
-	// CheckDrop is how many digits fewer the self-check run of Reference
+	minReferenceDigits = 20
+	// checkDrop is how many digits fewer the self-check run of referenceRun
 	// carries: its difference from the main run estimates the check run's
-	// error, 10^CheckDrop times the main run's.
-	CheckDrop = 5
-	// DefaultReferenceDigits is the number of correct digits wanted at t1
-	// (relative to max(1, |y0|_inf)) when ReferenceSettings.Tol is zero.
-	DefaultReferenceDigits = 20
+	// error, 10^checkDrop times the main run's.
+	checkDrop = 5
+	// defaultReferenceDigits is the number of correct digits wanted at t1
+	// (relative to max(1, |y0|_inf)) when referenceSettings.Tol is zero.
+	defaultReferenceDigits = 20
 )
 
-// ReferenceSettings controls Reference. A nil *ReferenceSettings means the
+// referenceSettings controls referenceRun. A nil *referenceSettings means the
 // zero value: the exponent estimated, 20 correct digits wanted at t1, and
 // the self-check run.
-type ReferenceSettings struct {
+type referenceSettings struct {
 	// Lambda is the largest Lyapunov exponent (per time unit) used to
 	// choose the precision. Zero means estimated with lyap.Exponents (k = 1,
 	// lyap's defaults); a negative value means no exponential growth (the
 	// precision is then set by Tol alone). Must be finite.
 	Lambda float64
 	// Tol is the absolute error wanted at t1. Zero means
-	// 10^-DefaultReferenceDigits · max(1, |y0|_inf). Must be finite and >= 0.
+	// 10^-defaultReferenceDigits · max(1, |y0|_inf). Must be finite and >= 0.
 	Tol float64
 	// Digits, if positive, is the working precision in decimal digits,
 	// overriding the rule from Lambda and Tol (and no exponent is
@@ -58,15 +58,15 @@ type ReferenceSettings struct {
 	MaxSteps int
 }
 
-// ReferenceResult is a multiprecision reference trajectory.
-type ReferenceResult struct {
+// referenceResult is a multiprecision reference trajectory.
+type referenceResult struct {
 	// Times are the output times; States the states there at the working
 	// precision, Float64 the same rounded to float64.
 	Times   []float64
 	States  [][]*big.Float
 	Float64 [][]float64
 	// Lambda is the exponent that set the precision (zero when
-	// ReferenceSettings.Digits was given).
+	// referenceSettings.Digits was given).
 	Lambda float64
 	// Digits is the working precision in decimal digits; Arithmetic
 	// "double-double" (Digits <= integrate.MaxDDDigits) or "big.Float";
@@ -77,12 +77,12 @@ type ReferenceResult struct {
 	Order      int
 	Stats      integrate.TaylorStats
 	// Check is the self-check, nil with NoCheck.
-	Check *ReferenceCheck
+	Check *referenceCheck
 }
 
-// ReferenceCheck compares the reference with a second run CheckDrop digits
+// referenceCheck compares the reference with a second run checkDrop digits
 // less precise (another order and step sequence).
-type ReferenceCheck struct {
+type referenceCheck struct {
 	Digits     int
 	Arithmetic string
 	Steps      int
@@ -90,61 +90,61 @@ type ReferenceCheck struct {
 	// output times; AtEnd the same at the last time.
 	Difference, AtEnd float64
 	// Error estimates the main run's error at the last time: AtEnd /
-	// 10^CheckDrop.
+	// 10^checkDrop.
 	Error float64
 }
 
-// ReferenceDigits returns the working precision Reference uses for a span
+// referenceDigits returns the working precision referenceRun uses for a span
 // T, largest exponent lambda and wanted absolute error tol at the end, for
 // states of size scale:
 //
-//	D = ceil(lambda·T/ln 10 + log10(max(1, scale)/tol)) + GuardDigits,
+//	D = ceil(lambda·T/ln 10 + log10(max(1, scale)/tol)) + guardDigits,
 //
-// and at least MinReferenceDigits: lambda·T/ln 10 digits are consumed by
+// and at least minReferenceDigits: lambda·T/ln 10 digits are consumed by
 // the growth e^(lambda T) of the local errors, log10(scale/tol) are wanted
 // at the end. The logarithms are summed, never 10^-D formed, so any D up
-// to MaxReferenceDigits comes out right.
+// to maxReferenceDigits comes out right.
 //
 // It refuses, with an error wrapping integrate.ErrSettings, input that
 // gives no precision: a lambda, T or scale that is not finite, a negative
 // T, a tol that is not finite and > 0, and a rule that asks for more than
-// MaxReferenceDigits digits (the span is then too long for any reference:
+// maxReferenceDigits digits (the span is then too long for any reference:
 // shorten it, or accept a larger tol).
-func ReferenceDigits(lambda, T, tol, scale float64) (int, error) {
+func referenceDigits(lambda, T, tol, scale float64) (int, error) {
 	switch {
 	case !finite(lambda):
-		return 0, fmt.Errorf("plumb: ReferenceDigits lambda = %v: must be finite: %w", lambda, integrate.ErrSettings)
+		return 0, fmt.Errorf("plumb: referenceDigits lambda = %v: must be finite: %w", lambda, integrate.ErrSettings)
 	case !finite(T) || T < 0:
-		return 0, fmt.Errorf("plumb: ReferenceDigits span T = %v: must be finite and >= 0: %w", T, integrate.ErrSettings)
+		return 0, fmt.Errorf("plumb: referenceDigits span T = %v: must be finite and >= 0: %w", T, integrate.ErrSettings)
 	case !(tol > 0) || math.IsInf(tol, 0):
-		return 0, fmt.Errorf("plumb: ReferenceDigits tol = %v: must be finite and > 0: %w", tol, integrate.ErrSettings)
+		return 0, fmt.Errorf("plumb: referenceDigits tol = %v: must be finite and > 0: %w", tol, integrate.ErrSettings)
 	case !finite(scale):
-		return 0, fmt.Errorf("plumb: ReferenceDigits scale = %v: must be finite: %w", scale, integrate.ErrSettings)
+		return 0, fmt.Errorf("plumb: referenceDigits scale = %v: must be finite: %w", scale, integrate.ErrSettings)
 	}
 	d := float64((detmath.Log(math.Max(1, scale)) - detmath.Log(tol)) / math.Ln10)
 	if lambda > 0 {
 		d += float64(float64(lambda*T) / math.Ln10)
 	}
-	d = math.Ceil(d) + GuardDigits
-	if !(d <= MaxReferenceDigits) {
+	d = math.Ceil(d) + guardDigits
+	if !(d <= maxReferenceDigits) {
 		return 0, fmt.Errorf("plumb: a reference over T = %g at lambda = %g and tol = %g needs %.4g digits, more than %d: %w",
-			T, lambda, tol, d, MaxReferenceDigits, integrate.ErrSettings)
+			T, lambda, tol, d, maxReferenceDigits, integrate.ErrSettings)
 	}
-	return max(MinReferenceDigits, int(d)), nil
+	return max(minReferenceDigits, int(d)), nil
 }
 
-// MaxReferenceDigits is the largest working precision of Reference and
-// ReferenceDigits (ReferenceSettings.Digits' range).
-const MaxReferenceDigits = 10000
+// maxReferenceDigits is the largest working precision of referenceRun and
+// referenceDigits (referenceSettings.Digits' range).
+const maxReferenceDigits = 10000
 
-// Reference integrates a system's formulas from its start over [0, t1]
+// referenceRun integrates a system's formulas from its start over [0, t1]
 // with the adaptive Taylor method of integrate.SolveTaylor, at a working
 // precision chosen so that the states at the output times (times, sorted,
 // in [0, t1]; t1 is appended when missing) are correct to the tolerance
-// despite the exponential growth of errors (see ReferenceDigits), in
+// despite the exponential growth of errors (see referenceDigits), in
 // double-double when that precision fits (integrate.MaxDDDigits) and in
-// big.Float beyond. A second run CheckDrop digits less precise checks the
-// result (ReferenceResult.Check).
+// big.Float beyond. A second run checkDrop digits less precise checks the
+// result (referenceResult.Check).
 //
 // The model is the float64 model: formulas' numbers and parameters are
 // their float64 values, computed on in higher precision, so the reference
@@ -162,14 +162,14 @@ const MaxReferenceDigits = 10000
 //	G. Boffetta, M. Cencini, M. Falcioni, A. Vulpiani, Predictability: a way
 //	  to characterize complexity, Phys. Rep. 356 (2002) 367–474 (error
 //	  growth e^(λ_1 t)).
-func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s *ReferenceSettings) (*ReferenceResult, error) {
+func referenceRun(ctx context.Context, sys *System, t1 float64, times []float64, s *referenceSettings) (*referenceResult, error) {
 	if ctx == nil {
 		ctx = context.Background()
 	}
 	if sys == nil {
 		return nil, fmt.Errorf("plumb: Reference of a nil system: %w", integrate.ErrSettings)
 	}
-	var set ReferenceSettings
+	var set referenceSettings
 	if s != nil {
 		set = *s
 	}
@@ -182,13 +182,13 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 	}
 	switch {
 	case math.IsNaN(set.Lambda) || math.IsInf(set.Lambda, 0):
-		return nil, fmt.Errorf("plumb: ReferenceSettings.Lambda = %v: must be finite: %w", set.Lambda, integrate.ErrSettings)
+		return nil, fmt.Errorf("plumb: referenceSettings.Lambda = %v: must be finite: %w", set.Lambda, integrate.ErrSettings)
 	case !(set.Tol >= 0) || math.IsInf(set.Tol, 0):
-		return nil, fmt.Errorf("plumb: ReferenceSettings.Tol = %v: must be finite and >= 0: %w", set.Tol, integrate.ErrSettings)
-	case set.Digits < 0 || set.Digits > MaxReferenceDigits:
-		return nil, fmt.Errorf("plumb: ReferenceSettings.Digits = %d: must be in [0, 10000]: %w", set.Digits, integrate.ErrSettings)
+		return nil, fmt.Errorf("plumb: referenceSettings.Tol = %v: must be finite and >= 0: %w", set.Tol, integrate.ErrSettings)
+	case set.Digits < 0 || set.Digits > maxReferenceDigits:
+		return nil, fmt.Errorf("plumb: referenceSettings.Digits = %d: must be in [0, 10000]: %w", set.Digits, integrate.ErrSettings)
 	case set.MaxSteps < 0:
-		return nil, fmt.Errorf("plumb: ReferenceSettings.MaxSteps = %d: must be >= 0: %w", set.MaxSteps, integrate.ErrSettings)
+		return nil, fmt.Errorf("plumb: referenceSettings.MaxSteps = %d: must be >= 0: %w", set.MaxSteps, integrate.ErrSettings)
 	}
 	ts := append([]float64(nil), times...)
 	for i, t := range ts {
@@ -204,7 +204,7 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 	for _, v := range y0 {
 		scale = math.Max(scale, math.Abs(v))
 	}
-	res := &ReferenceResult{}
+	res := &referenceResult{}
 	digits := set.Digits
 	if digits == 0 {
 		lambda := set.Lambda
@@ -218,9 +218,9 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 		res.Lambda = lambda
 		tol := set.Tol
 		if tol == 0 {
-			tol = detmath.Pow(10, -DefaultReferenceDigits) * math.Max(1, scale)
+			tol = detmath.Pow(10, -defaultReferenceDigits) * math.Max(1, scale)
 		}
-		if digits, err = ReferenceDigits(lambda, t1, tol, scale); err != nil {
+		if digits, err = referenceDigits(lambda, t1, tol, scale); err != nil {
 			return nil, fmt.Errorf("plumb: Reference: %w", err)
 		}
 	}
@@ -235,12 +235,12 @@ func Reference(ctx context.Context, sys *System, t1 float64, times []float64, s 
 	if set.NoCheck {
 		return res, nil
 	}
-	cd := max(digits-CheckDrop, 8)
+	cd := max(digits-checkDrop, 8)
 	chk, err := integrate.SolveTaylor(ctx, sr, 0, y0, ts, &integrate.TaylorSettings{Digits: cd, MaxSteps: set.MaxSteps})
 	if err != nil {
 		return res, fmt.Errorf("plumb: reference check run at %d digits: %w", cd, err)
 	}
-	c := &ReferenceCheck{Digits: cd, Arithmetic: chk.Arithmetic, Steps: chk.Stats.Steps}
+	c := &referenceCheck{Digits: cd, Arithmetic: chk.Arithmetic, Steps: chk.Stats.Steps}
 	d := new(big.Float).SetPrec(main.Prec)
 	for k := range main.States {
 		m := 0.0

@@ -21,7 +21,7 @@ func BenchmarkReferenceLorenz(b *testing.B) {
 			b.ReportAllocs()
 			steps := 0
 			for b.Loop() {
-				r, err := Reference(context.Background(), sys, 20, nil, &ReferenceSettings{Digits: c.digits, NoCheck: true})
+				r, err := referenceRun(context.Background(), sys, 20, nil, &referenceSettings{Digits: c.digits, NoCheck: true})
 				if err != nil {
 					b.Fatal(err)
 				}
@@ -33,16 +33,17 @@ func BenchmarkReferenceLorenz(b *testing.B) {
 	}
 }
 
-// BenchmarkTrustSystem compares the audit of Lorenz over 50 time units
-// against the Taylor reference (TrustSystem) with the plain audit (Trust),
+// BenchmarkSystemTrust compares the audit of Lorenz over 50 time units
+// against the Taylor reference (System.Trust) with the plain audit
+// (TrustProblem),
 // with the exponent given so that both do the same other work.
-func BenchmarkTrustSystem(b *testing.B) {
+func BenchmarkSystemTrust(b *testing.B) {
 	sys, _ := Model("lorenz")
 	s := &TrustSettings{Tol: 1e-3, Lambda: lorenzLambda}
 	b.Run("taylor-reference", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
-			if _, err := TrustSystem(context.Background(), sys, 50, s); err != nil {
+			if _, err := sys.Trust(context.Background(), 50, s); err != nil {
 				b.Fatal(err)
 			}
 		}
@@ -50,7 +51,7 @@ func BenchmarkTrustSystem(b *testing.B) {
 	b.Run("float64-reference", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
-			if _, err := Trust(context.Background(), sys.Problem(), 50, s); err != nil {
+			if _, err := TrustProblem(context.Background(), sys.Problem(), 50, s); err != nil {
 				b.Fatal(err)
 			}
 		}

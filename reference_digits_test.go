@@ -26,9 +26,9 @@ func TestReferenceManyDigits(t *testing.T) {
 	// manyDigitsSlack allows 50·(a few steps)·e^(λ_1 t1) ≈ 10^3.5 above
 	// 10^-400 (common practice: the bound of TestReferenceLorenzStored).
 	const manyDigitsSlack = 4
-	runs := map[int]*ReferenceResult{}
+	runs := map[int]*referenceResult{}
 	for _, d := range []int{400, 1000} {
-		r, err := Reference(context.Background(), sys, t1, []float64{0.01}, &ReferenceSettings{Digits: d, NoCheck: true})
+		r, err := referenceRun(context.Background(), sys, t1, []float64{0.01}, &referenceSettings{Digits: d, NoCheck: true})
 		if err != nil {
 			t.Fatalf("Digits %d: %v", d, err)
 		}
@@ -57,7 +57,7 @@ func TestReferenceManyDigits(t *testing.T) {
 	}
 }
 
-// TestReferenceDigitsRefuses checks that ReferenceDigits refuses input that
+// TestReferenceDigitsRefuses checks that referenceDigits refuses input that
 // gives no precision instead of returning a silent default.
 func TestReferenceDigitsRefuses(t *testing.T) {
 	inf, nan := math.Inf(1), math.NaN()
@@ -73,20 +73,20 @@ func TestReferenceDigitsRefuses(t *testing.T) {
 		{"tol zero", 1, 1, 0, 1},
 		{"tol Inf", 1, 1, inf, 1},
 		{"scale NaN", 1, 1, 1, nan},
-		// 0.9·1e5/ln 10 ≈ 39000 digits, beyond MaxReferenceDigits.
+		// 0.9·1e5/ln 10 ≈ 39000 digits, beyond maxReferenceDigits.
 		{"too many digits", 0.9, 1e5, 1, 1},
 	}
 	for _, c := range cases {
-		d, err := ReferenceDigits(c.lambda, c.T, c.tol, c.scale)
+		d, err := referenceDigits(c.lambda, c.T, c.tol, c.scale)
 		if !errors.Is(err, integrate.ErrSettings) {
-			t.Errorf("%s: ReferenceDigits = %d, %v; want an error wrapping ErrSettings", c.name, d, err)
+			t.Errorf("%s: referenceDigits = %d, %v; want an error wrapping ErrSettings", c.name, d, err)
 		}
 	}
 	// The rule itself, past the float64 range of 10^-D: λ = 0.9 over
 	// T = 1e4 at tol 1e-3, scale 1: ceil(0.9·1e4/ln 10 + 3) + 4 digits
 	// (arithmetic of the documented formula).
-	want := int(math.Ceil(0.9*1e4/math.Ln10+3)) + GuardDigits
-	if d, err := ReferenceDigits(0.9, 1e4, 1e-3, 1); err != nil || d != want {
-		t.Errorf("ReferenceDigits(0.9, 1e4, 1e-3, 1) = %d, %v; want %d", d, err, want)
+	want := int(math.Ceil(0.9*1e4/math.Ln10+3)) + guardDigits
+	if d, err := referenceDigits(0.9, 1e4, 1e-3, 1); err != nil || d != want {
+		t.Errorf("referenceDigits(0.9, 1e4, 1e-3, 1) = %d, %v; want %d", d, err, want)
 	}
 }

@@ -71,7 +71,7 @@ func (f *systemSeries) Big(order int, prec uint) (func(t *big.Float, y []*big.Fl
 }
 
 // HasFormulas reports whether the system's vector field has formulas, so
-// that Reference and TrustSystem can compute a multiprecision reference
+// that referenceRun and System.Trust can compute a multiprecision reference
 // (true for every built-in flow and every flow or Hamiltonian file).
 func (s *System) HasFormulas() bool {
 	_, err := s.series()

@@ -93,7 +93,7 @@ func TestReferenceLorenzStored(t *testing.T) {
 		{"big 40 digits", 40, "big.Float", 1e-27},
 	}
 	for _, c := range cases {
-		r, err := Reference(context.Background(), sys, 20, []float64{10, 20}, &ReferenceSettings{Digits: c.digits})
+		r, err := referenceRun(context.Background(), sys, 20, []float64{10, 20}, &referenceSettings{Digits: c.digits})
 		if err != nil {
 			t.Fatalf("%s: %v", c.name, err)
 		}
@@ -106,15 +106,15 @@ func TestReferenceLorenzStored(t *testing.T) {
 		if e20 > c.tol20 {
 			t.Errorf("%s: error at t=20 is %.3g, want below %.3g", c.name, e20, c.tol20)
 		}
-		// The self-check run is CheckDrop digits less precise, so its
+		// The self-check run is checkDrop digits less precise, so its
 		// difference must exceed the true error of the main run.
 		if !(r.Check.AtEnd > e20) {
 			t.Errorf("%s: self-check difference %.3g does not exceed the true error %.3g", c.name, r.Check.AtEnd, e20)
 		}
 	}
 	// The automatic choice: λ_1 = 0.9056, 20 digits wanted at t = 20 give
-	// ceil(0.9056·20/ln 10 + 20) + GuardDigits = 32 digits (big.Float).
-	r, err := Reference(context.Background(), sys, 20, nil, &ReferenceSettings{Lambda: lorenzLambda})
+	// ceil(0.9056·20/ln 10 + 20) + guardDigits = 32 digits (big.Float).
+	r, err := referenceRun(context.Background(), sys, 20, nil, &referenceSettings{Lambda: lorenzLambda})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -132,7 +132,7 @@ func TestReferenceLorenzStored(t *testing.T) {
 // digits) and checks (a) the stored 80-digit value at t = 100 (whose
 // 60-digit check agrees to 2e-24, so the 80-digit value is good to about
 // 1e-43) to the requested 1e-20, and (b) the self-check: the 59-digit run
-// must agree within 10^CheckDrop·Tol (its error is at most 10^CheckDrop
+// must agree within 10^checkDrop·Tol (its error is at most 10^checkDrop
 // times the main run's if the precision rule holds).
 func TestReferenceSelfConsistency(t *testing.T) {
 	if testing.Short() {
@@ -140,7 +140,7 @@ func TestReferenceSelfConsistency(t *testing.T) {
 	}
 	ref := loadLorenzRef(t)
 	sys, _ := Model("lorenz")
-	r, err := Reference(context.Background(), sys, 100, nil, &ReferenceSettings{Lambda: lorenzLambda})
+	r, err := referenceRun(context.Background(), sys, 100, nil, &referenceSettings{Lambda: lorenzLambda})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -154,7 +154,7 @@ func TestReferenceSelfConsistency(t *testing.T) {
 	if e > tol {
 		t.Errorf("error at t=100 is %.3g, want below %.3g", e, tol)
 	}
-	if lim := tol * math.Pow(10, CheckDrop); r.Check.AtEnd > lim {
+	if lim := tol * math.Pow(10, checkDrop); r.Check.AtEnd > lim {
 		t.Errorf("self-check differs by %.3g, want below %.3g", r.Check.AtEnd, lim)
 	}
 }
@@ -171,7 +171,7 @@ func TestReferenceConvergence(t *testing.T) {
 	var xs, ys []float64
 	prevSteps := 0
 	for _, d := range []int{14, 18, 22, 26} {
-		r, err := Reference(context.Background(), sys, 10, nil, &ReferenceSettings{Digits: d, NoCheck: true})
+		r, err := referenceRun(context.Background(), sys, 10, nil, &referenceSettings{Digits: d, NoCheck: true})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -260,7 +260,7 @@ func TestReferenceBadInput(t *testing.T) {
 		sys   *System
 		t1    float64
 		times []float64
-		s     *ReferenceSettings
+		s     *referenceSettings
 		want  error
 	}{
 		{"nil system", nil, 1, nil, nil, integrate.ErrSettings},
@@ -271,15 +271,15 @@ func TestReferenceBadInput(t *testing.T) {
 		{"time negative", sys, 1, []float64{-1}, nil, integrate.ErrSpan},
 		{"times not increasing", sys, 1, []float64{0.5, 0.5}, nil, integrate.ErrSpan},
 		{"time NaN", sys, 1, []float64{math.NaN()}, nil, integrate.ErrSpan},
-		{"lambda NaN", sys, 1, nil, &ReferenceSettings{Lambda: math.NaN()}, integrate.ErrSettings},
-		{"tol negative", sys, 1, nil, &ReferenceSettings{Tol: -1}, integrate.ErrSettings},
-		{"digits negative", sys, 1, nil, &ReferenceSettings{Digits: -3}, integrate.ErrSettings},
-		{"digits huge", sys, 1, nil, &ReferenceSettings{Digits: 1 << 20}, integrate.ErrSettings},
-		{"max steps negative", sys, 1, nil, &ReferenceSettings{Digits: 20, MaxSteps: -1}, integrate.ErrSettings},
-		{"step budget", sys, 1, nil, &ReferenceSettings{Digits: 20, MaxSteps: 3}, integrate.ErrStepBudget},
+		{"lambda NaN", sys, 1, nil, &referenceSettings{Lambda: math.NaN()}, integrate.ErrSettings},
+		{"tol negative", sys, 1, nil, &referenceSettings{Tol: -1}, integrate.ErrSettings},
+		{"digits negative", sys, 1, nil, &referenceSettings{Digits: -3}, integrate.ErrSettings},
+		{"digits huge", sys, 1, nil, &referenceSettings{Digits: 1 << 20}, integrate.ErrSettings},
+		{"max steps negative", sys, 1, nil, &referenceSettings{Digits: 20, MaxSteps: -1}, integrate.ErrSettings},
+		{"step budget", sys, 1, nil, &referenceSettings{Digits: 20, MaxSteps: 3}, integrate.ErrStepBudget},
 	}
 	for _, c := range cases {
-		r, err := Reference(ctx, c.sys, c.t1, c.times, c.s)
+		r, err := referenceRun(ctx, c.sys, c.t1, c.times, c.s)
 		if !errors.Is(err, c.want) {
 			t.Errorf("%s: err = %v, want %v", c.name, err, c.want)
 		}
@@ -289,16 +289,16 @@ func TestReferenceBadInput(t *testing.T) {
 	}
 	canceled, cancel := context.WithCancel(ctx)
 	cancel()
-	if _, err := Reference(canceled, sys, 1, nil, &ReferenceSettings{Digits: 20}); !errors.Is(err, context.Canceled) {
+	if _, err := referenceRun(canceled, sys, 1, nil, &referenceSettings{Digits: 20}); !errors.Is(err, context.Canceled) {
 		t.Errorf("canceled: err = %v", err)
 	}
-	if _, err := TrustSystem(ctx, nil, 1, &TrustSettings{Tol: 1}); err == nil {
-		t.Error("TrustSystem of a nil system: no error")
+	if _, err := (*System)(nil).Trust(ctx, 1, &TrustSettings{Tol: 1}); err == nil {
+		t.Error("System.Trust of a nil system: no error")
 	}
-	if _, err := TrustSystem(ctx, sys, -1, &TrustSettings{Tol: 1}); !errors.Is(err, ErrHorizon) {
-		t.Errorf("TrustSystem horizon -1: err = %v", err)
+	if _, err := sys.Trust(ctx, -1, &TrustSettings{Tol: 1}); !errors.Is(err, ErrHorizon) {
+		t.Errorf("System.Trust horizon -1: err = %v", err)
 	}
-	if _, err := TrustSystem(ctx, sys, 1, nil); !errors.Is(err, ErrTolerance) {
+	if _, err := sys.Trust(ctx, 1, nil); !errors.Is(err, ErrTolerance) {
 		t.Errorf("TrustSystem nil settings: err = %v", err)
 	}
 }
@@ -314,7 +314,7 @@ func TestReferenceBadInput(t *testing.T) {
 // same allowance.
 func TestTrustSystemReference(t *testing.T) {
 	sys, _ := Model("lorenz")
-	rep, err := TrustSystem(context.Background(), sys, 30, &TrustSettings{Tol: 1e-3, Lambda: lorenzLambda, NoReversal: true})
+	rep, err := sys.Trust(context.Background(), 30, &TrustSettings{Tol: 1e-3, Lambda: lorenzLambda, NoReversal: true})
 	if err != nil {
 		t.Fatal(err)
 	}

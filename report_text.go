@@ -14,6 +14,13 @@ import (
 // what limits it, the verdict and the caution.
 func (rep *Report) Write(w io.Writer) error {
 	var b strings.Builder
+	if rep.Steps > 0 {
+		if err := rep.writeMap(&b); err != nil {
+			return err
+		}
+		_, err := io.WriteString(w, b.String())
+		return err
+	}
 	u := "" // the time unit after a time, " s"
 	if rep.TimeUnit != "" {
 		u = " " + rep.TimeUnit
@@ -42,7 +49,7 @@ func (rep *Report) Write(w io.Writer) error {
 	table := make([]rungRow, len(rows))
 	for i, r := range rows {
 		table[i] = rungRow{
-			name: r.Name, effect: r.Effect, until: fmt.Sprintf("%.4g", r.AgreesUntil),
+			name: r.Name, effect: r.Effect.String(), until: fmt.Sprintf("%.4g", r.AgreesUntil),
 			departed: r.Departed, failed: r.Error != "", predicted: r.Predicted,
 			growth: growthCell(r.Growth, r.Rate, r.Power, "", "t"),
 		}
@@ -57,10 +64,10 @@ func (rep *Report) Write(w io.Writer) error {
 	case rep.Exponent != nil:
 		fmt.Fprintf(&b, "largest Lyapunov exponent: %.4g ± %.2g", rep.Exponent.Value, rep.Exponent.StdErr)
 		switch {
-		case rep.Growth == "undetermined":
+		case rep.Growth == integrate.GrowthUndetermined:
 			// Too few comparison points to fit any law: nothing is said
 			// either way about chaos.
-		case rep.Growth != "exponential":
+		case rep.Growth != integrate.GrowthExponential:
 			// A small positive finite-time estimate of a regular flow
 			// (it decays like ln(T)/T) is no sign of chaos.
 			b.WriteString(" (the ladder sees no exponential growth)")
@@ -72,11 +79,11 @@ func (rep *Report) Write(w io.Writer) error {
 		fmt.Fprintf(&b, "largest Lyapunov exponent: not estimated (%s)\n", rep.ExponentError)
 	}
 	switch rep.Growth {
-	case "exponential":
+	case integrate.GrowthExponential:
 		b.WriteString("divergence grows exponentially (the runs are chaotic)\n")
-	case "polynomial":
+	case integrate.GrowthPolynomial:
 		b.WriteString("divergence grows polynomially (a power law fits better than an exponential)\n")
-	case "bounded":
+	case integrate.GrowthBounded:
 		b.WriteString("divergence stays bounded\n")
 	default:
 		if len(rep.Times) > 1 {
@@ -173,12 +180,12 @@ func writeRungTable(b *strings.Builder, rows []rungRow) error {
 
 // growthCell is a rung's growth law as its table cell: with the rate (in
 // units of per, e.g. " per iterate") or with the power of the variable v.
-func growthCell(law string, rate, power float64, per, v string) string {
+func growthCell(law integrate.GrowthKind, rate, power float64, per, v string) string {
 	switch law {
-	case integrate.GrowthExponential.String():
+	case integrate.GrowthExponential:
 		return fmt.Sprintf("exponential, rate %.3g%s", rate, per)
-	case integrate.GrowthPower.String():
+	case integrate.GrowthPolynomial:
 		return fmt.Sprintf("power law, %s^%.2g", v, power)
 	}
-	return law
+	return law.String()
 }

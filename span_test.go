@@ -2,6 +2,7 @@ package plumb
 
 import (
 	"context"
+	"github.com/plumbdyn/plumb/integrate"
 	"math"
 	"testing"
 )
@@ -84,7 +85,7 @@ func TestTrustSystemShortSpan(t *testing.T) {
 func TestSpanCovers(t *testing.T) {
 	const until, local = 50, 20
 	run := func(effect string, restart, agrees float64, departed bool) RungReport {
-		return RungReport{Name: effect, Effect: effect, RestartAt: restart, AgreesUntil: agrees, Departed: departed}
+		return RungReport{Name: effect, Effect: integrate.RungKind(effect), RestartAt: restart, AgreesUntil: agrees, Departed: departed}
 	}
 	ref := run("tightest", 0, 35, true)
 	for _, c := range []struct {

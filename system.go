@@ -23,7 +23,7 @@ var ErrKind = errors.New("wrong kind of system")
 // parameters, which can be changed with Set.
 //
 // A System is not safe for concurrent use; the functions it returns (in
-// Problem, Evaluator, DoubleDoubleEvaluator, Map) each own their workspace
+// Problem and Map) each own their workspace
 // and are not safe for concurrent use either: call the method once per
 // goroutine.
 type System struct {
@@ -240,9 +240,9 @@ func (s *System) Periods() []float64 {
 	return append([]float64(nil), s.periods...)
 }
 
-// Known returns a published fact of the default configuration (e.g.
+// known returns a published fact of the default configuration (e.g.
 // "period", "energy"), and whether it exists. Systems from files have none.
-func (s *System) Known(key string) (float64, bool) {
+func (s *System) known(key string) (float64, bool) {
 	if s == nil || s.flow == nil {
 		return 0, false
 	}

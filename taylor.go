@@ -8,20 +8,20 @@ import (
 	"github.com/plumbdyn/plumb/internal/expr"
 )
 
-// TaylorStepper advances a flow by fixed steps of the Taylor method of a
+// taylorStepper advances a flow by fixed steps of the Taylor method of a
 // chosen order, with Taylor coefficients from the recurrences of Taylor-mode
 // differentiation of the system's formulas (Jorba & Zou, Experimental
 // Mathematics 14, 2005). Not safe for concurrent use; Step does not
 // allocate.
-type TaylorStepper struct {
+type taylorStepper struct {
 	n  int
 	ty *expr.Taylor
 }
 
-// Taylor returns a Taylor stepper of the given order (1 to 1000) at the
+// taylor returns a Taylor stepper of the given order (1 to 1000) at the
 // current parameters, for flows and Hamiltonians (maps get an error
 // wrapping ErrKind). Built-in models use their catalog formulas.
-func (s *System) Taylor(order int) (*TaylorStepper, error) {
+func (s *System) taylor(order int) (*taylorStepper, error) {
 	if err := s.check("Taylor"); err != nil {
 		return nil, err
 	}
@@ -38,11 +38,11 @@ func (s *System) Taylor(order int) (*TaylorStepper, error) {
 	for i, p := range s.params {
 		ty.SetParam(1+s.form.n+i, p)
 	}
-	return &TaylorStepper{n: s.form.n, ty: ty}, nil
+	return &taylorStepper{n: s.form.n, ty: ty}, nil
 }
 
 // Order returns the stepper's order.
-func (ts *TaylorStepper) Order() int {
+func (ts *taylorStepper) Order() int {
 	if ts == nil || ts.ty == nil {
 		return 0
 	}
@@ -51,9 +51,9 @@ func (ts *TaylorStepper) Order() int {
 
 // Step writes the Taylor polynomial's value at t+h, from y at t, into dst
 // (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
-func (ts *TaylorStepper) Step(t float64, y []float64, h float64, dst []float64) error {
+func (ts *taylorStepper) Step(t float64, y []float64, h float64, dst []float64) error {
 	if ts == nil || ts.ty == nil {
-		return noEvaluator("TaylorStepper.Step")
+		return noEvaluator("taylorStepper.Step")
 	}
 	if len(y) != ts.n || len(dst) != ts.n {
 		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
@@ -63,9 +63,9 @@ func (ts *TaylorStepper) Step(t float64, y []float64, h float64, dst []float64) 
 
 // Coefficients writes the Taylor coefficients of the solution through
 // (t, y): dst[i][k] is the coefficient of h^k of component i, k = 0..Order.
-func (ts *TaylorStepper) Coefficients(t float64, y []float64, dst [][]float64) error {
+func (ts *taylorStepper) Coefficients(t float64, y []float64, dst [][]float64) error {
 	if ts == nil || ts.ty == nil {
-		return noEvaluator("TaylorStepper.Coefficients")
+		return noEvaluator("taylorStepper.Coefficients")
 	}
 	if len(y) != ts.n || len(dst) != ts.n {
 		return fmt.Errorf("plumb: Taylor coefficients with %d states and %d rows, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)
@@ -78,17 +78,17 @@ func (ts *TaylorStepper) Coefficients(t float64, y []float64, dst [][]float64) e
 	return ts.ty.ODE(t, y, dst)
 }
 
-// TaylorDDStepper is TaylorStepper in double-double arithmetic (about 32
+// taylorDDStepper is taylorStepper in double-double arithmetic (about 32
 // significant digits), for reference solutions. Not safe for concurrent
 // use; Step does not allocate.
-type TaylorDDStepper struct {
+type taylorDDStepper struct {
 	n  int
 	ty *expr.TaylorDD
 }
 
-// TaylorDD returns a double-double Taylor stepper of the given order (1 to
+// taylorDD returns a double-double Taylor stepper of the given order (1 to
 // 1000) at the current parameters; see Taylor.
-func (s *System) TaylorDD(order int) (*TaylorDDStepper, error) {
+func (s *System) taylorDD(order int) (*taylorDDStepper, error) {
 	if err := s.check("TaylorDD"); err != nil {
 		return nil, err
 	}
@@ -105,11 +105,11 @@ func (s *System) TaylorDD(order int) (*TaylorDDStepper, error) {
 	for i, p := range s.params {
 		ty.SetParam(1+s.form.n+i, dd.From(p))
 	}
-	return &TaylorDDStepper{n: s.form.n, ty: ty}, nil
+	return &taylorDDStepper{n: s.form.n, ty: ty}, nil
 }
 
 // Order returns the stepper's order.
-func (ts *TaylorDDStepper) Order() int {
+func (ts *taylorDDStepper) Order() int {
 	if ts == nil || ts.ty == nil {
 		return 0
 	}
@@ -118,9 +118,9 @@ func (ts *TaylorDDStepper) Order() int {
 
 // Step writes the Taylor polynomial's value at t+h, from y at t, into dst
 // (which may be y). Wrong lengths are errors wrapping integrate.ErrDimension.
-func (ts *TaylorDDStepper) Step(t DoubleDouble, y []DoubleDouble, h DoubleDouble, dst []DoubleDouble) error {
+func (ts *taylorDDStepper) Step(t dd.Float, y []dd.Float, h dd.Float, dst []dd.Float) error {
 	if ts == nil || ts.ty == nil {
-		return noEvaluator("TaylorDDStepper.Step")
+		return noEvaluator("taylorDDStepper.Step")
 	}
 	if len(y) != ts.n || len(dst) != ts.n {
 		return fmt.Errorf("plumb: Taylor step with %d states and %d outputs, system has %d: %w", len(y), len(dst), ts.n, integrate.ErrDimension)

@@ -10,6 +10,7 @@ import (
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
+	"github.com/plumbdyn/plumb/maps"
 )
 
 // Errors of Trust, usable with errors.Is.
@@ -22,13 +23,26 @@ var (
 	ErrTolerance = errors.New("invalid tolerance")
 )
 
+// Stage names the part of an audit that TrustSettings.Progress reports on.
+type Stage string
+
+// Stages of an audit.
+const (
+	// StageAudit: the runs of the ladder (or the orbits of a map).
+	StageAudit Stage = "audit"
+	// StageExponent: the estimate of the largest Lyapunov exponent.
+	StageExponent Stage = "exponent"
+)
+
 // Caution is the statement every trust report carries.
 const Caution = "A trust horizon is a statement about the numerical model and how it was computed, " +
 	"not a safety certificate for the real system it describes. " +
 	"Safety-critical use follows the field's own codes and licensed review."
 
-// TrustSettings controls Trust. A nil *TrustSettings is invalid: the
-// tolerance is the caller's statement of what difference matters.
+// TrustSettings controls System.Trust and TrustProblem. A nil
+// *TrustSettings is invalid: the tolerance is the caller's statement of
+// what difference matters. Fields marked "flow only" must be zero for a
+// map, those marked "map only" nil for a flow.
 type TrustSettings struct {
 	// Tol is the divergence between runs the caller accepts, in the state's
 	// units (or, with Relative, as a fraction of the reference run's
@@ -37,52 +51,68 @@ type TrustSettings struct {
 	Tol float64
 	// Relative makes Tol a fraction of the spread.
 	Relative bool
-	// Ladder is the set of runs compared; nil means
+	// Ladder is the set of runs compared (flow only); nil means
 	// integrate.DefaultLadder over the audited span, or with Run the ladder
 	// around it.
 	Ladder *integrate.Ladder
-	// Run, if not nil, is the caller's own run (method and tolerances, or a
-	// fixed-step method and its step; see integrate.RunLadder, which
+	// Run, if not nil, is the caller's own run (flow only: a method and
+	// tolerances, or a fixed-step method and its step; see integrate.RunLadder, which
 	// validates it): the audit is built around it, and the report's
 	// TrustedUntil, verdict and YourRun speak of it. Set Run or Ladder, not
 	// both (integrate.ErrSettings).
 	Run *integrate.Rung
 	// Periods gives, per component, the period of an angle (0 for the
-	// others), for wrapped distances; see System.Periods. Nil: none.
+	// others), for wrapped distances (TrustProblem only: System.Trust takes
+	// the system's). Nil: none.
 	Periods []float64
-	// States names the state components, for Distance and the report; nil
-	// means "y[0]", "y[1]", ... (TrustSystem takes the system's names).
+	// States names the state components, for Distance and the report
+	// (TrustProblem only: System.Trust takes the system's); nil means
+	// "y[0]", "y[1]", ....
 	// Otherwise its length must equal the state's (integrate.ErrDimension).
 	States []string
 	// Distance chooses the components compared and their scales; the zero
 	// value is the Euclidean distance over every component. Errors:
 	// *DistanceError, before any work.
 	Distance Distance
-	// Every is the spacing of the comparison grid; zero means horizon/1000.
+	// Every is the spacing of the comparison grid (flow only); zero means
+	// horizon/1000.
 	Every float64
 	// Exponent controls the estimate of the largest Lyapunov exponent
-	// (lyap.Exponents with k = 1); nil means lyap's defaults.
+	// (lyap.Exponents, for a map lyap.MapExponents, with k = 1); nil means
+	// lyap's defaults.
 	Exponent *lyap.Settings
-	// Lambda, when positive, is used as the largest Lyapunov exponent and
-	// no estimate is made (Exponent is ignored).
+	// Lambda, when positive, is used as the largest Lyapunov exponent (per
+	// unit time, for a map per iterate) and no estimate is made (Exponent
+	// is ignored). Must be finite and >= 0.
 	Lambda float64
-	// NoReversal skips the reversibility check.
+	// NoReversal skips the reversibility check (a map has none).
 	NoReversal bool
+	// NoExact compares the runs of a flow with the tightest float64 run
+	// instead of the multiprecision Taylor reference System.Trust makes
+	// for a system with formulas (a map always has its double-double
+	// orbit).
+	NoExact bool
+	// MapRungs are the orbits a map's audit compares with the
+	// double-double orbit (map only); nil means maps.DefaultRungs of the
+	// horizon. An empty non-nil list is invalid (integrate.ErrLadder), as
+	// is a rung of another kind or a restart outside the horizon.
+	MapRungs []maps.Rung
 	// MaxSteps bounds the attempted steps of every float64 run of the
-	// audit (a rung's own Rung.MaxSteps overrides it); zero means
+	// audit (flow only) (a rung's own Rung.MaxSteps overrides it); zero means
 	// integrate.DefaultMaxSteps. Long horizons need more: the reference
 	// run of Lorenz takes about 80 steps per time unit. Must be >= 0;
 	// otherwise integrate.ErrSettings.
 	MaxSteps int
 	// Progress, if not nil, is called as work completes with the stage
-	// ("audit" with runs done and total, then "exponent" with 0 and 1, and 1
-	// and 1 when done). It must not block for long; the CLI draws its
-	// progress bar from it.
-	Progress func(stage string, done, total int)
+	// (StageAudit with runs done and total, StageExponent with 0 and 1,
+	// and 1 and 1 when done; the two may come in either order). It must
+	// not block for long; the CLI draws its progress bar from it.
+	Progress func(stage Stage, done, total int)
 }
 
-// Trust audits how far ahead a computed trajectory of problem can be
-// believed: it re-runs the problem over [T0, T0+horizon] on every rung of a
+// TrustProblem audits how far ahead a computed trajectory of a raw problem
+// can be believed (System.Trust does it for a system, with a better
+// reference): it re-runs the problem over [T0, T0+horizon] on every rung of a
 // ladder of numerical choices (tolerances, methods, emulated precisions,
 // restarts from rounded states), compares each run with the tightest one,
 // estimates the largest Lyapunov exponent, and says up to which time all
@@ -108,7 +138,7 @@ type TrustSettings struct {
 //	G. Boffetta, M. Cencini, M. Falcioni, A. Vulpiani, Predictability: a way
 //	  to characterize complexity, Phys. Rep. 356 (2002) 367–474 (the
 //	  predicted horizon ln(tol/delta0)/lambda_1).
-func Trust(ctx context.Context, problem integrate.Problem, horizon float64, settings *TrustSettings) (*Report, error) {
+func TrustProblem(ctx context.Context, problem integrate.Problem, horizon float64, settings *TrustSettings) (*Report, error) {
 	if ctx == nil {
 		ctx = context.Background()
 	}
@@ -133,6 +163,9 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	if s.MaxSteps < 0 {
 		return nil, fmt.Errorf("plumb: TrustSettings.MaxSteps = %d: must be >= 0: %w", s.MaxSteps, integrate.ErrSettings)
 	}
+	if s.MapRungs != nil {
+		return nil, fmt.Errorf("plumb: TrustSettings.MapRungs: a problem is a flow, audited with Ladder: %w", integrate.ErrSettings)
+	}
 	t1 := problem.T0 + horizon
 	ladder, err := trustLadder(&s, problem.T0, t1)
 	if err != nil {
@@ -147,12 +180,12 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 		Tol: s.Tol, Relative: s.Relative, Every: s.Every, Periods: s.Periods, Scales: scales, Reverse: !s.NoReversal,
 		MaxSteps: s.MaxSteps,
 	}
-	progress := func(stage string, done, total int) {
+	progress := func(stage Stage, done, total int) {
 		if s.Progress != nil {
 			s.Progress(stage, done, total)
 		}
 	}
-	as.Progress = func(done, total int) { progress("audit", done, total) }
+	as.Progress = func(done, total int) { progress(StageAudit, done, total) }
 
 	// The audit first: it validates its input before any work, so bad input
 	// costs nothing. The exponent then sets predictions beside the measured
@@ -170,9 +203,9 @@ func Trust(ctx context.Context, problem integrate.Problem, horizon float64, sett
 	if lambda > 0 {
 		rep.Exponent = givenExponent(lambda)
 	} else {
-		progress("exponent", 0, 1)
+		progress(StageExponent, 0, 1)
 		sp, err := lyap.Exponents(ctx, problem, 1, s.Exponent)
-		progress("exponent", 1, 1)
+		progress(StageExponent, 1, 1)
 		if err != nil && ctx.Err() != nil {
 			rep.fill(res)
 			rep.Verdict = Incomplete
@@ -205,31 +238,13 @@ func (rep *Report) fill(res *integrate.AuditResult) {
 	rep.YourRun = yourRun(res, rep.Rungs)
 	if res.Limit >= 0 {
 		r := res.Rungs[res.Limit]
-		rep.LimitedBy = r.Rung.Kind.String()
+		rep.LimitedBy = integrate.RungKind(r.Rung.Kind.String())
 		rep.LimitingRung = r.Rung.Name
 	}
 	if res.Tol > 0 {
 		rep.TolUsed = res.MaxDivergence / res.Tol
 	}
-	end := rep.T0 + rep.Horizon
-	rep.Verdict = verdictOf(len(res.Rungs), res.Failed, res.Trusted < end, rep.TolUsed)
-	var vote growthVote
-	for _, r := range rep.Rungs {
-		vote.add(r.Growth)
-	}
-	rep.Growth = vote.law()
-	if rep.Growth == "exponential" {
-		for _, r := range res.Rungs {
-			if r.Predicted > 0 && (rep.PredictedHorizon == 0 || r.Predicted < rep.PredictedHorizon) {
-				rep.PredictedHorizon = r.Predicted
-			}
-		}
-	} else {
-		// Without exponential growth a Lyapunov prediction means nothing.
-		for i := range rep.Rungs {
-			rep.Rungs[i].Predicted = 0
-		}
-	}
+	rep.conclude()
 	if rf := res.Roundoff; rf != nil && finite(rf.Float64Horizon) {
 		rep.Float64Horizon, rep.Float64PerBit = rf.Float64Horizon, rf.Slope
 	}
@@ -246,7 +261,7 @@ func (rep *Report) fill(res *integrate.AuditResult) {
 }
 
 // checkTolLambda validates the tolerance and the given exponent of the
-// settings type named name (TrustSettings, MapTrustSettings).
+// settings type named name (TrustSettings).
 func checkTolLambda(name string, tol, lambda float64) error {
 	if !(tol > 0) || math.IsInf(tol, 0) {
 		return fmt.Errorf("plumb: %s.Tol = %v: must be positive and finite: %w", name, tol, ErrTolerance)

@@ -13,24 +13,25 @@ import (
 )
 
 // refTolFraction is how far below the audit's tolerance the reference of
-// TrustSystem is made accurate at the end of the span (common practice: a
+// System.Trust is made accurate at the end of the span (common practice: a
 // reference a thousand times more accurate than the differences it
 // judges).
 const refTolFraction = 1e-3
 
-// TrustSystem is Trust for a system with formulas, with a multiprecision
+// trustSystem is System.Trust for a flow with formulas, with a multiprecision
 // reference: every rung of the ladder is compared with a Taylor reference
-// trajectory (see Reference) accurate to refTolFraction·Tol at the end of
+// trajectory (see referenceRun) accurate to refTolFraction·Tol at the end of
 // the span (in the audit's distance: the absolute accuracy is that times
 // the smallest observed scale, see Distance) and at least
-// MinReferenceDigits digits throughout, instead of with the tightest float64 run; that run becomes one more comparison
+// minReferenceDigits digits throughout, instead of with the tightest
+// float64 run; that run becomes one more comparison
 // (Report.Reference gets a divergence curve and its agreement horizon).
-// The precision follows ReferenceDigits from the largest exponent
-// (TrustSettings.Lambda, or the estimate Trust would make, made first),
+// The precision follows referenceDigits from the largest exponent
+// (TrustSettings.Lambda, or the estimate TrustProblem would make, made first),
 // the horizon and Tol (a relative Tol is taken as absolute there, which is
 // conservative for a spread above 1); at most integrate.MaxDDDigits digits
 // run in double-double, more in big.Float. The reference runs at the
-// audit's comparison times, without its self-check (see Reference for a
+// audit's comparison times, without its self-check (see referenceRun for a
 // checked run); Report.Exact describes it. A Ladder's own Exact is
 // replaced.
 //
@@ -39,7 +40,7 @@ const refTolFraction = 1e-3
 // against the float64 reference run (cheap), which says when the last run
 // from the start departs, t_last. The reference is then made accurate only
 // to t0 + 1.5·(t_last - t0) + 3/λ and continued in double-double at
-// MinReferenceDigits digits from its full-precision state there. That
+// minReferenceDigits digits from its full-precision state there. That
 // audit stands when it confirms that every run was judged where the
 // reference was accurate: the tightest float64 run and the rungs from the
 // start departed before that time, and each restart rung restarted after it
@@ -64,36 +65,21 @@ const refTolFraction = 1e-3
 // t = 300 from 126 digits in big.Float (35 s here) to 29 in double-double
 // (0.3 s), with the same agreement horizons.
 //
-// When the exponent estimate fails (not by cancellation), TrustSystem
-// falls back to Trust against the float64 reference run, whose report
+// When the exponent estimate fails (not by cancellation), trustSystem
+// falls back to TrustProblem against the float64 reference run, whose report
 // says why in ExponentError.
 //
-// Errors: those of Trust, and ErrKind for a system without vector-field
+// Errors: those of TrustProblem, and ErrKind for a system without vector-field
 // formulas.
 //
-// # Caution
-//
-// A trust horizon is a numerical statement about a model, not a safety
-// certificate for the real system; safety-critical use follows the field's
-// own codes and licensed review.
-//
-// References: see Trust and Reference.
-func TrustSystem(ctx context.Context, sys *System, horizon float64, settings *TrustSettings) (*Report, error) {
-	rep, err := trustSystem(ctx, sys, horizon, settings, true)
-	if rep != nil {
-		rep.TimeUnit = sys.TimeUnit()
-	}
-	return rep, err
-}
-
-// trustSystem is TrustSystem; shorten false always makes the reference
-// accurate over the whole span.
+// References: see TrustProblem and reference.
+// shorten false always makes the reference accurate over the whole span.
 func trustSystem(ctx context.Context, sys *System, horizon float64, settings *TrustSettings, shorten bool) (*Report, error) {
 	if ctx == nil {
 		ctx = context.Background()
 	}
 	if sys == nil {
-		return nil, fmt.Errorf("plumb: TrustSystem of a nil system: %w", integrate.ErrSettings)
+		return nil, fmt.Errorf("plumb: trust of a nil system: %w", integrate.ErrSettings)
 	}
 	sr, err := sys.series()
 	if err != nil {
@@ -110,7 +96,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 	if settings == nil || !(settings.Tol > 0) || math.IsInf(settings.Tol, 0) ||
 		!(horizon > 0) || math.IsInf(horizon, 0) || !(settings.Lambda >= 0) || math.IsInf(settings.Lambda, 0) ||
 		settings.MaxSteps < 0 {
-		return Trust(ctx, problem, horizon, settings) // its validation and errors
+		return TrustProblem(ctx, problem, horizon, settings) // its validation and errors
 	}
 	s := *settings
 	names, err := stateNames("TrustSettings.States", s.States, len(problem.Y0))
@@ -138,11 +124,11 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 			if ctx.Err() != nil {
 				// Canceled: the plain audit returns its (empty)
 				// incomplete report and the context's error.
-				return Trust(ctx, problem, horizon, settings)
+				return TrustProblem(ctx, problem, horizon, settings)
 			}
 			// Without an exponent there is no precision rule: the plain
 			// audit, which reports why the estimate failed.
-			return Trust(ctx, problem, horizon, settings)
+			return TrustProblem(ctx, problem, horizon, settings)
 		}
 		est = &ExponentEstimate{Value: sp.Exponents[0], Source: "estimated"}
 		if len(sp.StdErr) == 1 && finite(sp.StdErr[0]) {
@@ -153,7 +139,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		}
 		s.Lambda = est.Value
 		if s.Progress != nil {
-			s.Progress("exponent", 1, 1)
+			s.Progress(StageExponent, 1, 1)
 		}
 	}
 	scale := 0.0
@@ -161,11 +147,11 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		scale = math.Max(scale, math.Abs(v))
 	}
 	// A span too long for any full-span reference (more than
-	// MaxReferenceDigits digits) may still be audited with the shortened
+	// maxReferenceDigits digits) may still be audited with the shortened
 	// one below; digitsErr says why the full-span one cannot be made.
-	digits, digitsErr := ReferenceDigits(s.Lambda, horizon, refTol, scale)
+	digits, digitsErr := referenceDigits(s.Lambda, horizon, refTol, scale)
 	if digitsErr != nil {
-		digits = MaxReferenceDigits + 1
+		digits = maxReferenceDigits + 1
 	}
 	end := problem.T0 + horizon
 	audit := func(d int, until float64) (*Report, error) {
@@ -174,7 +160,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		lad.Exact = exactTrajectory(sr, problem, d, until, s.Lambda, &ex)
 		ss := s
 		ss.Ladder = &lad
-		rep, err := Trust(ctx, problem, horizon, &ss)
+		rep, err := TrustProblem(ctx, problem, horizon, &ss)
 		if errors.Is(err, integrate.ErrKink) && ctx.Err() == nil {
 			rep, err = setAside(ctx, problem, horizon, ss, ex, err)
 		}
@@ -204,7 +190,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		lad := ladder
 		lad.Exact = nil
 		pre.Ladder = &lad
-		first, err := Trust(ctx, problem, horizon, &pre)
+		first, err := TrustProblem(ctx, problem, horizon, &pre)
 		if err != nil && ctx.Err() != nil {
 			return first, err
 		}
@@ -224,7 +210,7 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		}
 		if last, ok := lastDeparture(first); err == nil && ok {
 			until := problem.T0 + float64(spanMargin*(last-problem.T0)) + spanLyapunovTimes/s.Lambda
-			if d, derr := ReferenceDigits(s.Lambda, until-problem.T0, refTol, scale); derr == nil && until < end && d < digits {
+			if d, derr := referenceDigits(s.Lambda, until-problem.T0, refTol, scale); derr == nil && until < end && d < digits {
 				rep, err := audit(d, until)
 				if (err != nil && ctx.Err() != nil) || (rep != nil && rep.Exact != nil && rep.Exact.SetAside != "") {
 					return rep, err
@@ -237,16 +223,16 @@ func trustSystem(ctx context.Context, sys *System, horizon float64, settings *Tr
 		}
 	}
 	if digitsErr != nil {
-		return nil, fmt.Errorf("plumb: TrustSystem: no multiprecision reference covers this audit (compare with the float64 reference instead, Trust): %w", digitsErr)
+		return nil, fmt.Errorf("plumb: trust: no multiprecision reference covers this audit (compare with the float64 reference instead, TrustSettings.NoExact): %w", digitsErr)
 	}
 	return audit(digits, end)
 }
 
 // spanMargin and spanLyapunovTimes set how far past the last departure of
-// the plain audit TrustSystem keeps its reference accurate: to
+// the plain audit System.Trust keeps its reference accurate: to
 // t0 + spanMargin·(t_last - t0) + spanLyapunovTimes/λ (common practice:
 // a margin of half the span plus a few e-foldings; the audit against the
-// reference confirms it, see TrustSystem).
+// reference confirms it, see System.Trust).
 const (
 	spanMargin        = 1.5
 	spanLyapunovTimes = 3
@@ -268,11 +254,11 @@ func beyondReach(rep *Report) bool {
 	return true
 }
 
-// digitWord is n as digits, or "more than MaxReferenceDigits" when n is
+// digitWord is n as digits, or "more than maxReferenceDigits" when n is
 // past the supported range.
 func digitWord(n int) string {
-	if n > MaxReferenceDigits {
-		return fmt.Sprintf("more than %d", MaxReferenceDigits)
+	if n > maxReferenceDigits {
+		return fmt.Sprintf("more than %d", maxReferenceDigits)
 	}
 	return fmt.Sprint(n)
 }
@@ -300,12 +286,12 @@ func lastDeparture(rep *Report) (float64, bool) {
 	return last, found
 }
 
-// localSpan is how long the double-double continuation of TrustSystem's
+// localSpan is how long the double-double continuation of System.Trust's
 // reference stays within tol of the solution through its own state at any
-// time: MinReferenceDigits digits of local accuracy, less those wanted,
+// time: minReferenceDigits digits of local accuracy, less those wanted,
 // consumed at λ/ln 10 digits per time unit, and divided by spanMargin.
 func localSpan(lambda, tol, scale float64) float64 {
-	d := float64(MinReferenceDigits) - float64(detmath.Log(math.Max(1, scale)/tol)/math.Ln10)
+	d := float64(minReferenceDigits) - float64(detmath.Log(math.Max(1, scale)/tol)/math.Ln10)
 	return math.Max(0, float64(d*math.Ln10)/lambda) / spanMargin
 }
 
@@ -333,9 +319,9 @@ func spanCovers(rep *Report, until, local float64) bool {
 	return true
 }
 
-// exactTrajectory is the reference of TrustSystem: the Taylor method at
+// exactTrajectory is the reference of System.Trust: the Taylor method at
 // digits until the time until, and from there (when it comes before the
-// last output time) in double-double at MinReferenceDigits, started from
+// last output time) in double-double at minReferenceDigits, started from
 // the full-precision state at until. *ex describes the run once it is made.
 func exactTrajectory(sr integrate.Series, problem integrate.Problem, digits int, until, lambda float64, ex **ExactReference) integrate.Trajectory {
 	return func(ctx context.Context, times []float64) ([][]float64, error) {
@@ -371,7 +357,7 @@ func exactTrajectory(sr integrate.Series, problem integrate.Problem, digits int,
 		if len(rest) == 0 {
 			return out, nil
 		}
-		tail, err := integrate.SolveTaylor(ctx, sr, until, r.Float64[k], rest, &integrate.TaylorSettings{Digits: MinReferenceDigits, Start: r.States[k]})
+		tail, err := integrate.SolveTaylor(ctx, sr, until, r.Float64[k], rest, &integrate.TaylorSettings{Digits: minReferenceDigits, Start: r.States[k]})
 		if tail != nil && describe {
 			(*ex).Continued = tail.Arithmetic
 			(*ex).ContinuedDigits = tail.Digits
@@ -379,7 +365,7 @@ func exactTrajectory(sr integrate.Series, problem integrate.Problem, digits int,
 			(*ex).KinkRestarts += tail.Stats.KinkRestarts
 		}
 		if err != nil {
-			return nil, fmt.Errorf("plumb: reference run continued at %d digits from t=%g: %w", MinReferenceDigits, until, err)
+			return nil, fmt.Errorf("plumb: reference run continued at %d digits from t=%g: %w", minReferenceDigits, until, err)
 		}
 		return append(out, tail.Float64...), nil
 	}

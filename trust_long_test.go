@@ -70,12 +70,12 @@ func TestTrustSystemLongHorizon(t *testing.T) {
 	}
 	sys, _ := Model("lorenz")
 	set := &TrustSettings{Tol: 1, Lambda: lorenzLambda, Ladder: spanFreeLadder(), NoReversal: true}
-	short, err := TrustSystem(context.Background(), sys, 100, set)
+	short, err := sys.Trust(context.Background(), 100, set)
 	if err != nil {
 		t.Fatal(err)
 	}
 	start := time.Now()
-	long, err := TrustSystem(context.Background(), sys, 1e4, set)
+	long, err := sys.Trust(context.Background(), 1e4, set)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -96,18 +96,18 @@ func TestTrustSystemLongHorizon(t *testing.T) {
 func TestTrustSystemPastDoubleDigits(t *testing.T) {
 	sys, _ := Model("lorenz")
 	set := &TrustSettings{Tol: 1, Lambda: lorenzLambda, Ladder: spanFreeLadder(), NoReversal: true, MaxSteps: 200000}
-	short, err := TrustSystem(context.Background(), sys, 100, set)
+	short, err := sys.Trust(context.Background(), 100, set)
 	if err != nil {
 		t.Fatal(err)
 	}
-	long, err := TrustSystem(context.Background(), sys, 1000, set)
+	long, err := sys.Trust(context.Background(), 1000, set)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if long.Exact == nil || long.Exact.Continued == "" || long.Failed == 0 {
 		t.Fatalf("exact %+v, failed %d: want a shortened reference and a rung stopped by the step budget", long.Exact, long.Failed)
 	}
-	if d, err := ReferenceDigits(lorenzLambda, 1000, 1e-3, 1); err != nil || d <= 323 {
+	if d, err := referenceDigits(lorenzLambda, 1000, 1e-3, 1); err != nil || d <= 323 {
 		t.Fatalf("full-span digits %d (%v): the test no longer crosses float64's range", d, err)
 	}
 	checkSameHorizons(t, "t = 1000", short, long)
@@ -131,7 +131,7 @@ func TestTrustSystemHorizonSpans(t *testing.T) {
 	set := &TrustSettings{Tol: 1, Lambda: lorenzLambda, Ladder: spanFreeLadder(), NoReversal: true}
 	var first *Report
 	for _, span := range spans {
-		rep, err := TrustSystem(context.Background(), sys, span, set)
+		rep, err := sys.Trust(context.Background(), span, set)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -8,17 +8,17 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-// TestTrustSystemToleranceBeyondReach: Lorenz at its published parameters
+// TestTrustToleranceBeyondReach: Lorenz at its published parameters
 // stays within about 32 of its mean (the attractor's size, from memory:
 // |x|, |y| < 25, 0 < z < 50), so a tolerance of 1000 can never be exceeded
 // by two states of the attractor. The full-span reference to t = 900 would
 // need more than 350 digits in big.Float (minutes); the audit must instead
 // say that it was not made and why, and trust the whole span.
-func TestTrustSystemToleranceBeyondReach(t *testing.T) {
+func TestTrustToleranceBeyondReach(t *testing.T) {
 	sys, err := Model("lorenz")
 	require.NoError(t, err)
 	const horizon = 900
-	rep, err := TrustSystem(context.Background(), sys, horizon, &TrustSettings{Tol: 1000, Lambda: lorenzLambda, NoReversal: true})
+	rep, err := sys.Trust(context.Background(), horizon, &TrustSettings{Tol: 1000, Lambda: lorenzLambda, NoReversal: true})
 	require.NoError(t, err)
 	require.NotNil(t, rep.Exact)
 	require.Contains(t, rep.Exact.SetAside, "was not made")

@@ -32,7 +32,7 @@ func model(t testing.TB, name string) *plumb.System {
 // TestTrustDefaultDemo audits the convection-loop demo (Lorenz 1963
 // parameters, start (1,1,1)) to t=50 at tolerance 1.
 func TestTrustDefaultDemo(t *testing.T) {
-	rep, err := plumb.Trust(context.Background(), model(t, "lorenz").Problem(), 50, &plumb.TrustSettings{Tol: 1})
+	rep, err := plumb.TrustProblem(context.Background(), model(t, "lorenz").Problem(), 50, &plumb.TrustSettings{Tol: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -124,7 +124,7 @@ func TestTrustNonChaotic(t *testing.T) {
 		p       integrate.Problem
 		periods []float64
 	}{{"kepler", model(t, "kepler").Problem(), nil}, {"oscillator", osc, nil}, {"pendulum", pend, []float64{2 * math.Pi, 0}}} {
-		rep, err := plumb.Trust(context.Background(), c.p, 50, &plumb.TrustSettings{Tol: 0.05, Relative: true, Periods: c.periods})
+		rep, err := plumb.TrustProblem(context.Background(), c.p, 50, &plumb.TrustSettings{Tol: 0.05, Relative: true, Periods: c.periods})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -171,7 +171,7 @@ func TestTrustBadInput(t *testing.T) {
 		{"negative lambda", 10, &plumb.TrustSettings{Tol: 1, Lambda: -1}, integrate.ErrSettings},
 		{"negative max steps", 10, &plumb.TrustSettings{Tol: 1, MaxSteps: -1}, integrate.ErrSettings},
 	} {
-		rep, err := plumb.Trust(context.Background(), p, c.horizon, c.s)
+		rep, err := plumb.TrustProblem(context.Background(), p, c.horizon, c.s)
 		if !errors.Is(err, c.want) || rep != nil {
 			t.Errorf("%s: got (%v, %v), want nil and %v", c.name, rep, err, c.want)
 		}
@@ -183,7 +183,7 @@ func TestTrustBadInput(t *testing.T) {
 func TestTrustFailedRung(t *testing.T) {
 	l := integrate.DefaultLadder(0, 20)
 	l.Rungs = append(l.Rungs[:2], integrate.Rung{Kind: integrate.KindMethod, Fixed: integrate.Euler, Step: 0.05})
-	rep, err := plumb.Trust(context.Background(), model(t, "lorenz").Problem(), 20, &plumb.TrustSettings{Tol: 1, Lambda: lorenzLambda1, Ladder: &l})
+	rep, err := plumb.TrustProblem(context.Background(), model(t, "lorenz").Problem(), 20, &plumb.TrustSettings{Tol: 1, Lambda: lorenzLambda1, Ladder: &l})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -212,7 +212,7 @@ func TestTrustFailedRung(t *testing.T) {
 // compared wrapped (System.Periods).
 func TestTrustPeriodic(t *testing.T) {
 	s := model(t, "double-pendulum")
-	rep, err := plumb.Trust(context.Background(), s.Problem(), 10, &plumb.TrustSettings{Tol: 0.1, Periods: s.Periods(), NoReversal: true})
+	rep, err := plumb.TrustProblem(context.Background(), s.Problem(), 10, &plumb.TrustSettings{Tol: 0.1, Periods: s.Periods(), NoReversal: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -233,20 +233,21 @@ func BenchmarkTrustDefault(b *testing.B) {
 	p := model(b, "lorenz").Problem()
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := plumb.Trust(context.Background(), p, 50, &plumb.TrustSettings{Tol: 1}); err != nil {
+		if _, err := plumb.TrustProblem(context.Background(), p, 50, &plumb.TrustSettings{Tol: 1}); err != nil {
 			b.Fatal(err)
 		}
 	}
 }
 
-// ExampleTrust audits the convection-loop demo to t=50.
-func ExampleTrust() {
+// ExampleSystem_Trust audits the convection-loop demo to t=50 against
+// the multiprecision reference.
+func ExampleSystem_Trust() {
 	sys, err := plumb.Model("lorenz")
 	if err != nil {
 		fmt.Println(err)
 		return
 	}
-	rep, err := plumb.Trust(context.Background(), sys.Problem(), 50, &plumb.TrustSettings{Tol: 1})
+	rep, err := sys.Trust(context.Background(), 50, &plumb.TrustSettings{Tol: 1})
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -266,7 +267,7 @@ func TestTrustCanceled(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	p := model(t, "lorenz").Problem()
 	var stages []string
-	rep, err := plumb.Trust(ctx, p, 20, &plumb.TrustSettings{Tol: 1, Lambda: lorenzLambda1, Progress: func(stage string, done, total int) {
+	rep, err := plumb.TrustProblem(ctx, p, 20, &plumb.TrustSettings{Tol: 1, Lambda: lorenzLambda1, Progress: func(stage plumb.Stage, done, total int) {
 		stages = append(stages, fmt.Sprintf("%s %d/%d", stage, done, total))
 		if done == 3 {
 			cancel()
@@ -287,7 +288,7 @@ func TestTrustCanceled(t *testing.T) {
 // overflows still gives a report that encodes as JSON (no +Inf in it).
 func TestTrustTinyLambdaEncodes(t *testing.T) {
 	osc := integrate.Problem{F: func(_ float64, y, d []float64) { d[0] = y[1]; d[1] = -y[0] }, Y0: []float64{1, 0}}
-	rep, err := plumb.Trust(context.Background(), osc, 5, &plumb.TrustSettings{Tol: 0.1, Lambda: 1e-310})
+	rep, err := plumb.TrustProblem(context.Background(), osc, 5, &plumb.TrustSettings{Tol: 0.1, Lambda: 1e-310})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -56,30 +56,53 @@ func (v Verdict) words() string {
 }
 
 // growthVote counts the rungs' growth laws (RungReport.Growth). Its law is
-// the one most rungs follow: "exponential", "polynomial", "bounded", or
-// "undetermined" when no rung could be fitted. Ties between exponential
-// and the others go to exponential (the cautious reading).
+// the one most rungs follow, integrate.GrowthUndetermined when no rung
+// could be fitted. Ties between exponential and the others go to
+// exponential (the cautious reading).
 type growthVote struct{ exp, pow, bnd int }
 
-func (v *growthVote) add(law string) {
+func (v *growthVote) add(law integrate.GrowthKind) {
 	switch law {
-	case integrate.GrowthExponential.String():
+	case integrate.GrowthExponential:
 		v.exp++
-	case integrate.GrowthPower.String():
+	case integrate.GrowthPolynomial:
 		v.pow++
-	case integrate.GrowthBounded.String():
+	case integrate.GrowthBounded:
 		v.bnd++
 	}
 }
 
-func (v growthVote) law() string {
+func (v growthVote) law() integrate.GrowthKind {
 	switch {
 	case v.exp+v.pow+v.bnd == 0:
-		return "undetermined"
+		return integrate.GrowthUndetermined
 	case v.exp >= v.pow && v.exp >= v.bnd:
-		return "exponential"
+		return integrate.GrowthExponential
 	case v.pow >= v.bnd:
-		return "polynomial"
+		return integrate.GrowthPolynomial
 	}
-	return "bounded"
+	return integrate.GrowthBounded
+}
+
+// conclude draws the conclusions every audit shares from its rungs and
+// TrustedUntil: the growth law of the vote, the earliest predicted horizon
+// (only with exponential growth: otherwise a Lyapunov prediction means
+// nothing, and the rungs' predictions are cleared) and the verdict.
+func (rep *Report) conclude() {
+	var vote growthVote
+	for _, r := range rep.Rungs {
+		vote.add(r.Growth)
+	}
+	rep.Growth = vote.law()
+	rep.PredictedHorizon = 0
+	for i := range rep.Rungs {
+		r := &rep.Rungs[i]
+		switch {
+		case rep.Growth != integrate.GrowthExponential:
+			r.Predicted = 0
+		case r.Predicted > 0 && (rep.PredictedHorizon == 0 || r.Predicted < rep.PredictedHorizon):
+			rep.PredictedHorizon = r.Predicted
+		}
+	}
+	rep.Verdict = verdictOf(len(rep.Rungs), rep.Failed, rep.TrustedUntil < rep.T0+rep.Horizon, rep.TolUsed)
 }

@@ -21,7 +21,7 @@ import (
 func TestTrustYourRun(t *testing.T) {
 	sys, _ := Model("lorenz")
 	ctx := context.Background()
-	def, err := TrustSystem(ctx, sys, 50, &TrustSettings{Tol: 1, Lambda: lorenzLambda})
+	def, err := sys.Trust(ctx, 50, &TrustSettings{Tol: 1, Lambda: lorenzLambda})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -38,7 +38,7 @@ func TestTrustYourRun(t *testing.T) {
 			hi = r.AgreesUntil
 		}
 	}
-	rep, err := TrustSystem(ctx, sys, 50, &TrustSettings{Tol: 1, Lambda: lorenzLambda,
+	rep, err := sys.Trust(ctx, 50, &TrustSettings{Tol: 1, Lambda: lorenzLambda,
 		Run: &integrate.Rung{Method: integrate.DormandPrince853, RelTol: 1e-9}})
 	if err != nil {
 		t.Fatal(err)
@@ -73,8 +73,8 @@ func TestTrustYourRunBadInput(t *testing.T) {
 		{"fixed without step", &TrustSettings{Tol: 1, Run: &integrate.Rung{Fixed: integrate.RK4}}, integrate.ErrLadder},
 	} {
 		for name, f := range map[string]func() (*Report, error){
-			"Trust":       func() (*Report, error) { return Trust(context.Background(), sys.Problem(), 10, c.s) },
-			"TrustSystem": func() (*Report, error) { return TrustSystem(context.Background(), sys, 10, c.s) },
+			"Trust":       func() (*Report, error) { return TrustProblem(context.Background(), sys.Problem(), 10, c.s) },
+			"TrustSystem": func() (*Report, error) { return sys.Trust(context.Background(), 10, c.s) },
 		} {
 			if rep, err := f(); rep != nil || !errors.Is(err, c.want) {
 				t.Errorf("%s, %s: (%v, %v), want nil and %v", name, c.name, rep, err, c.want)

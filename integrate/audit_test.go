@@ -222,7 +222,7 @@ func TestAuditNonChaotic(t *testing.T) {
 			case GrowthExponential:
 				exp++
 				t.Logf("%s: %s reads exponential (rate %.3g, power %.3g)", c.name, r.Rung.Name, r.Growth.Rate, r.Growth.Power)
-			case GrowthUnknown:
+			case GrowthUndetermined:
 				t.Errorf("%s: %s growth unknown, want power law or bounded", c.name, r.Rung.Name)
 			}
 		}
@@ -410,7 +410,7 @@ func TestFitGrowth(t *testing.T) {
 		t.Errorf("exponential: %v rate %v, want exponential 0.9", g.Kind, g.Rate)
 	}
 	g = fitGrowth(tt, dp, 0, math.Inf(1))
-	if g.Kind != GrowthPower || math.Abs(g.Power-2) > tol {
+	if g.Kind != GrowthPolynomial || math.Abs(g.Power-2) > tol {
 		t.Errorf("power: %v power %v, want power law 2", g.Kind, g.Power)
 	}
 	// Saturation cuts the range.
@@ -419,7 +419,7 @@ func TestFitGrowth(t *testing.T) {
 		t.Errorf("saturated: range to %v rate %v", g.To, g.Rate)
 	}
 	g = fitGrowth(tt[:5], de[:5], 0, math.Inf(1))
-	if g.Kind != GrowthUnknown {
+	if g.Kind != GrowthUndetermined {
 		t.Errorf("5 points: %v, want unknown", g.Kind)
 	}
 }
@@ -443,11 +443,11 @@ func TestFitGrowthPoints(t *testing.T) {
 		rate, pow float64 // checked where nonzero
 	}{
 		{name: "exponential", t: tt, logEnv: le, kind: GrowthExponential, rate: 0.7},
-		{name: "power law", t: tt, logEnv: lp, kind: GrowthPower, pow: 3},
+		{name: "power law", t: tt, logEnv: lp, kind: GrowthPolynomial, pow: 3},
 		{name: "bounded", t: tt, logEnv: lb, kind: GrowthBounded},
-		{name: "two points", t: tt[:2], logEnv: le[:2], kind: GrowthUnknown},
-		{name: "short logEnv", t: tt, logEnv: le[:5], kind: GrowthUnknown},
-		{name: "empty", kind: GrowthUnknown},
+		{name: "two points", t: tt[:2], logEnv: le[:2], kind: GrowthUndetermined},
+		{name: "short logEnv", t: tt, logEnv: le[:5], kind: GrowthUndetermined},
+		{name: "empty", kind: GrowthUndetermined},
 	}
 	for _, tc := range tests {
 		g := FitGrowth(tc.t, tc.logEnv, 0)

@@ -6,33 +6,32 @@ import (
 	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
-// GrowthKind names the law that fits a divergence curve best.
-type GrowthKind int
+// GrowthKind names the law that fits a divergence curve best; its value is
+// the law as the reports write it (JSON as text), the same for one curve
+// and for the vote over a ladder's rungs.
+type GrowthKind string
 
 const (
-	// GrowthUnknown: too few points to fit (fewer than minFitPoints
-	// positive divergences before saturation).
-	GrowthUnknown GrowthKind = iota
+	// GrowthUndetermined: too few points to fit (fewer than minFitPoints
+	// positive divergences before saturation). The zero GrowthKind reads
+	// as it too (String).
+	GrowthUndetermined GrowthKind = "undetermined"
 	// GrowthExponential: log d is linear in t.
-	GrowthExponential
-	// GrowthPower: log d is linear in log(t - t_start) (polynomial growth).
-	GrowthPower
+	GrowthExponential GrowthKind = "exponential"
+	// GrowthPolynomial: log d is linear in log(t - t_start) (a power law).
+	GrowthPolynomial GrowthKind = "polynomial"
 	// GrowthBounded: the divergence does not grow: its envelope less than
 	// doubles over the fitted range.
-	GrowthBounded
+	GrowthBounded GrowthKind = "bounded"
 )
 
-// String returns "unknown", "exponential", "power law" or "bounded".
+// String returns "undetermined", "exponential", "polynomial" or "bounded"
+// ("undetermined" for the zero GrowthKind).
 func (g GrowthKind) String() string {
-	switch g {
-	case GrowthExponential:
-		return "exponential"
-	case GrowthPower:
-		return "power law"
-	case GrowthBounded:
-		return "bounded"
+	if g == "" {
+		return string(GrowthUndetermined)
 	}
-	return "unknown"
+	return string(g)
 }
 
 // Growth is the fit of a divergence curve d(t) in its growth range: the grid
@@ -108,7 +107,7 @@ func fitGrowth(t, d []float64, tStart, ceil float64) Growth {
 		}
 	}
 	if len(x) < minFitPoints {
-		return Growth{Points: len(x)}
+		return Growth{Kind: GrowthUndetermined, Points: len(x)}
 	}
 	return FitGrowth(x, ly, tStart)
 }
@@ -125,7 +124,7 @@ func fitGrowth(t, d []float64, tStart, ceil float64) Growth {
 // smaller residual sum of squares if its slope is positive, else
 // GrowthExponential. The caller picks the points (the growth range) and the
 // fewest it accepts; Audit takes eight. Fewer than three points, or fewer
-// values of logEnv than of t, give GrowthUnknown with Points set and no fit.
+// values of logEnv than of t, give GrowthUndetermined with Points set and no fit.
 //
 // Cost: O(len(t)), one allocation.
 //
@@ -135,7 +134,7 @@ func fitGrowth(t, d []float64, tStart, ceil float64) Growth {
 //	  to characterize complexity, Phys. Rep. 356 (2002) 367–474, Sect. 3
 //	  (the growth rate of a perturbation as a finite-time Lyapunov exponent).
 func FitGrowth(t, logEnv []float64, tStart float64) Growth {
-	g := Growth{Points: len(t)}
+	g := Growth{Kind: GrowthUndetermined, Points: len(t)}
 	if len(t) < 3 || len(logEnv) < len(t) {
 		return g
 	}
@@ -154,7 +153,7 @@ func FitGrowth(t, logEnv []float64, tStart float64) Growth {
 	case g.RSSExp < g.RSSPower && g.Rate > 0:
 		g.Kind = GrowthExponential
 	case g.Power > 0:
-		g.Kind = GrowthPower
+		g.Kind = GrowthPolynomial
 	default:
 		g.Kind = GrowthExponential
 	}

@@ -12,45 +12,46 @@ import (
 var ErrLadder = errors.New("invalid audit ladder")
 
 // RungKind says which numerical effect a rung of the audit ladder varies.
-type RungKind int
+// Its value is the effect as the reports write it (JSON as text).
+type RungKind string
 
 const (
-	// KindReference is the tightest run, the one every rung is compared with.
-	KindReference RungKind = iota
+	// KindReference is the tightest run, the one every rung is compared
+	// with (without Ladder.Exact). The zero RungKind means it in
+	// Ladder.Reference and in RunLadder's run.
+	KindReference RungKind = "tightest"
 	// KindTolerance varies the tolerances of an error-controlled method.
-	KindTolerance
+	KindTolerance RungKind = "tolerance"
 	// KindMethod varies the method (another pair, or a fixed-step method).
-	KindMethod
+	KindMethod RungKind = "method"
 	// KindPrecision stores the state (and optionally every stage) at an
 	// emulated precision (see Rounded).
-	KindPrecision
+	KindPrecision RungKind = "precision"
 	// KindRestart restarts the reference run at a chosen time from its state
 	// rounded as a printout would be (see Places, Digits).
-	KindRestart
+	KindRestart RungKind = "restart"
 	// KindRun is the caller's own run, the one being audited (see
 	// RunLadder): at most one per ladder. With it, AuditResult.Trusted is
 	// its horizon, and the other rungs say what changing it would buy.
-	KindRun
+	KindRun RungKind = "run"
 )
 
-// String returns the effect in lower case: "reference", "tolerance",
-// "method", "precision", "restart" or "run".
+// String returns the effect: "tightest", "tolerance", "method",
+// "precision", "restart" or "run" ("tightest" for the zero RungKind).
 func (k RungKind) String() string {
-	switch k {
-	case KindReference:
-		return "reference"
-	case KindTolerance:
-		return "tolerance"
-	case KindMethod:
-		return "method"
-	case KindPrecision:
-		return "precision"
-	case KindRestart:
-		return "restart"
-	case KindRun:
-		return "run"
+	if k == "" {
+		return string(KindReference)
 	}
-	return fmt.Sprintf("RungKind(%d)", int(k))
+	return string(k)
+}
+
+// valid reports a known kind (the zero kind included).
+func (k RungKind) valid() bool {
+	switch k {
+	case "", KindReference, KindTolerance, KindMethod, KindPrecision, KindRestart, KindRun:
+		return true
+	}
+	return false
 }
 
 // Rung is one run of the audit ladder. A field left zero takes the
@@ -114,6 +115,13 @@ type Ladder struct {
 // the second call's error only leaves the horizons as the grid gives them.
 type Trajectory func(ctx context.Context, times []float64) ([][]float64, error)
 
+// RestartFraction places the default restart rung at this fraction of the
+// audited span, t0 + RestartFraction·(t1 - t0) (of a map's iterates, see
+// maps.DefaultRungs): late enough that the audit has compared the runs from
+// the start for most of the span, early enough that the restarted run has
+// time to part (common practice).
+const RestartFraction = 0.8
+
 // Default tolerances of the reference rung.
 const (
 	ReferenceRelTol = 1e-12
@@ -135,7 +143,7 @@ const TightRelTol = 1e-10
 //	           at 1e-8: the method's effect at equal tolerance); RK4 with an
 //	           eighth of the reference's mean step
 //	precision  the reference with the state stored at 24 bits (float32) and at 40 bits
-//	restart    the reference restarted at t0 + 0.8·(t1 - t0) from its state
+//	restart    the reference restarted at t0 + RestartFraction·(t1 - t0) from its state
 //	           rounded to 3 decimal places
 //
 // The two precisions let the audit extrapolate the horizon of float64
@@ -150,7 +158,7 @@ func DefaultLadder(t0, t1 float64) Ladder {
 		Rung{Kind: KindMethod, Fixed: RK4},
 		Rung{Kind: KindPrecision, Rounding: Bits(24)},
 		Rung{Kind: KindPrecision, Rounding: Bits(40)},
-		Rung{Kind: KindRestart, RestartAt: t0 + float64(0.8*(t1-t0)), Restart: Places(3)},
+		Rung{Kind: KindRestart, RestartAt: t0 + float64(RestartFraction*(t1-t0)), Restart: Places(3)},
 	)
 	return l
 }
@@ -184,14 +192,15 @@ func validateRung(r Rung, t0, t1 float64, isRef bool) error {
 	bad := func(format string, a ...any) error {
 		return fmt.Errorf(format+": %w", append(a, ErrLadder)...)
 	}
-	if isRef && r.Kind != KindReference {
+	if !r.Kind.valid() {
+		return bad("unknown kind %q", string(r.Kind))
+	}
+	isRefKind := r.Kind == KindReference || r.Kind == ""
+	if isRef && !isRefKind {
 		return bad("reference has kind %v", r.Kind)
 	}
-	if !isRef && r.Kind == KindReference {
-		return bad("only Ladder.Reference may have kind reference")
-	}
-	if r.Kind < KindReference || r.Kind > KindRun {
-		return bad("unknown kind %d", int(r.Kind))
+	if !isRef && isRefKind {
+		return bad("only Ladder.Reference may have kind %s (a rung needs its effect as Kind)", KindReference)
 	}
 	for _, f := range []struct {
 		name string

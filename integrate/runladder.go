@@ -37,7 +37,7 @@ const (
 //	           two-stage Gauss–Legendre method (order 4) at the same step for
 //	           RK4, RK4 at the same step for the others
 //	precision  the run with its state stored at 40 and at 24 bits
-//	restart    the run restarted at t0 + 0.8·(t1 - t0) from the reference's
+//	restart    the run restarted at t0 + RestartFraction·(t1 - t0) from the reference's
 //	           state rounded to 3 decimal places
 //
 // The reference is DormandPrince853 at RelTol = AbsTol = min(1e-12,
@@ -56,7 +56,7 @@ func RunLadder(t0, t1 float64, run Rung) (Ladder, error) {
 	if !(t1 > t0) || math.IsInf(t1-t0, 0) {
 		return bad("span [%v, %v] is not a finite forward span", t0, t1)
 	}
-	if run.Kind != KindReference && run.Kind != KindRun {
+	if run.Kind != "" && run.Kind != KindReference && run.Kind != KindRun {
 		return bad("the run has kind %v; it is the caller's run (kind run)", run.Kind)
 	}
 	run.Kind = KindRun
@@ -70,7 +70,7 @@ func RunLadder(t0, t1 float64, run Rung) (Ladder, error) {
 	}
 	ref := Rung{Kind: KindReference, Method: DormandPrince853, RelTol: ReferenceRelTol, AbsTol: ReferenceAbsTol}
 	l := Ladder{Reference: ref}
-	at := t0 + float64(0.8*(t1-t0))
+	at := t0 + float64(RestartFraction*(t1-t0))
 	var tighter, looser, other Rung
 	hasLooser := true
 	if run.Fixed != nil {

@@ -151,7 +151,7 @@ const guardBitsTaylor = 32
 // c_j the solution's coefficients; the two last coefficients guard against
 // a series with vanishing odd or even terms. The local error is then about
 // eps·s. The global error of a chaotic flow grows as e^(λ_1 t): choose
-// Digits from the span (see plumb.Reference).
+// Digits from the span (as plumb.System.Trust does for its reference).
 //
 // Kinks: when f is a KinkSeries, every step ends at the first zero within
 // it of a kink's switching function, and the next series takes the branch

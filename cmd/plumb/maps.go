@@ -7,12 +7,14 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
+	"github.com/plumbdyn/plumb/maps"
 )
 
 // The map side of solve, spectrum and trust: a map is iterated, so its
@@ -101,33 +103,25 @@ func (f *solveFlags) runMap(ctx context.Context, cl *call, sys *plumb.System) er
 		what:    "the orbit of " + sys.Name,
 		refusal: "the map refused the settings",
 		run: func(ctx context.Context, _ func(float64)) (*outcome, error) {
-			return f.orbit(ctx, sys, m), nil
+			return f.orbit(ctx, sys, m)
 		},
 	})
 }
 
 // orbit iterates m from the start of sys --steps times, stopping early on
 // a canceled ctx or a state that is not finite.
-func (f *solveFlags) orbit(ctx context.Context, sys *plumb.System, m lyap.Map) *outcome {
+func (f *solveFlags) orbit(ctx context.Context, sys *plumb.System, m *maps.Map) (*outcome, error) {
 	n := m.Dim()
-	x := sys.Start()
-	orbit := make([]float64, 0, n*(f.steps+1))
-	orbit = append(orbit, x...)
-	var runErr error
+	orbit, runErr := maps.Orbit(ctx, m, sys.Start(), f.steps)
 	status := "completed"
-	for it := 1; it <= f.steps; it++ {
-		if it%1024 == 0 {
-			if err := ctx.Err(); err != nil {
-				runErr, status = fmt.Errorf("canceled after iterate %d: %w", it-1, err), "canceled"
-				break
-			}
-		}
-		m.Next(x, x)
-		if i := firstNonFinite(x); i >= 0 {
-			runErr, status = fmt.Errorf("iterate %d: %s = %v is not finite: %w", it, sys.States[i], x[i], integrate.ErrNonFinite), "failed"
-			break
-		}
-		orbit = append(orbit, x...)
+	var nf *maps.NonFiniteError
+	switch {
+	case errors.As(runErr, &nf):
+		runErr, status = fmt.Errorf("iterate %d: %s = %v is not finite: %w", nf.Iterate, sys.States[nf.Component], nf.Value, integrate.ErrNonFinite), "failed"
+	case runErr != nil && ctx.Err() != nil:
+		runErr, status = fmt.Errorf("canceled after iterate %d: %w", len(orbit)/n-1, ctx.Err()), "canceled"
+	case runErr != nil:
+		return nil, fmt.Errorf("iterating %s failed: %w", sys.Name, runErr)
 	}
 	end := len(orbit)/n - 1
 	out := mapSolveJSON{
@@ -152,16 +146,7 @@ func (f *solveFlags) orbit(ctx context.Context, sys *plumb.System, m lyap.Map) *
 	if runErr != nil {
 		res.err = fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, statusVerb(status), end, runErr)
 	}
-	return res
-}
-
-func firstNonFinite(x []float64) int {
-	for i, v := range x {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return i
-		}
-	}
-	return -1
+	return res, nil
 }
 
 func orbitCSV(dst io.Writer, sys *plumb.System, out mapSolveJSON) error {
@@ -361,11 +346,11 @@ func mapSpectrumTable(w io.Writer, out mapSpectrumJSON) error {
 	return tw.Flush()
 }
 
-// mapRungGroups are the --rungs names a map audit takes.
-var mapRungGroups = []string{"precision", "restart"}
+// mapRungKinds are the kinds of rung a map audit takes (maps.DefaultRungs).
+var mapRungKinds = []integrate.RungKind{integrate.KindPrecision, integrate.KindRestart}
 
 // mapTrustJSON is the --format json result of plumb trust on a map: the
-// header, the system and settings, then every field of plumb.MapReport
+// header, the system and settings, then every field of plumb.Report
 // (its own arch and plumb_version are shadowed by the header's).
 type mapTrustJSON struct {
 	PlumbVersion string               `json:"plumb_version"`
@@ -378,8 +363,8 @@ type mapTrustJSON struct {
 	Error        errText              `json:"error"`
 	// TrustedUntil shadows the report's: null when the audit did not
 	// finish (verdict incomplete).
-	TrustedUntil *int `json:"trusted_until"`
-	*plumb.MapReport
+	TrustedUntil *float64 `json:"trusted_until"`
+	*plumb.Report
 }
 
 // mapTrustSettingsJSON echoes the settings of a map audit.
@@ -405,14 +390,14 @@ type mapTrustUnitsJSON struct {
 }
 
 var mapTrustUnits = mapTrustUnitsJSON{
-	Iterates: "iterates from the start (horizon, steps, trusted_until, predicted_horizon, agrees_until, departs_at, predicted, restart_at, start)",
+	Iterates: "iterates from the start (horizon, steps, trusted_until, predicted_horizon, times, agrees_until, departs_at, predicted, restart_at); rungs[].start is an index into times",
 	Distance: "Euclidean norm of a state difference over the observed components, each divided by its scale, angles wrapped (see distance; tol_abs, spread, magnitude, divergence, delta0)",
 	Tol:      "the distance's units, or with relative a fraction of spread",
 	Exponent: "per iterate, natural log (exponent.value, exponent.std_err, rungs[].rate, rate_err); exponent.lyapunov_time in iterates",
 	TolUsed:  "fraction of tol_abs",
 }
 
-// runMap audits a map with plumb.TrustMap: --horizon is a number of iterates.
+// runMap audits a map with System.Trust: --horizon is a number of iterates.
 func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, dist plumb.Distance) error {
 	if err := refuseFlags(cl, sys, "plumb trust iterates it exactly (the integrator flags are for flows)", flowOnlyTrust...); err != nil {
 		return err
@@ -424,66 +409,49 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	if !cl.sh.given["tol"] {
 		tol = mapTrustTol
 	}
-	if horizon != math.Trunc(horizon) || horizon < 1 || horizon > plumb.MaxMapSteps {
-		return usagef("--horizon %s: %s is a map, so the horizon counts iterates: a whole number from 1 to %d", formatFloat(horizon), sys.Name, plumb.MaxMapSteps)
+	if horizon != math.Trunc(horizon) || horizon < 1 || horizon > maps.MaxSteps {
+		return usagef("--horizon %s: %s is a map, so the horizon counts iterates: a whole number from 1 to %d", formatFloat(horizon), sys.Name, maps.MaxSteps)
 	}
 	steps := int(horizon)
-	var want []string
-	seen := map[string]bool{}
+	// The flow's default --rungs names tolerance and method rungs, which a
+	// map has none of: left out unless named on the command line.
+	var list []string
 	for _, name := range strings.Split(f.rungs, ",") {
-		name = strings.TrimSpace(name)
-		switch {
-		case name == "" || name == "reference" || name == "ref":
-			continue
-		case name == "tol" || name == "method":
+		if name = strings.TrimSpace(name); name == "tol" || name == "method" {
 			if cl.sh.given["rungs"] {
-				return usagef("--rungs %s: %s is a map, iterated exactly: there is no tolerance or method to vary (choose from %s)", f.rungs, sys.Name, strings.Join(mapRungGroups, ", "))
+				return usagef("--rungs %s: %s is a map, iterated exactly: there is no tolerance or method to vary (choose from %s)", f.rungs, sys.Name, mapRungKinds[0].String()+", "+mapRungKinds[1].String())
 			}
 			continue
-		case name != "precision" && name != "restart":
-			return usagef("--rungs %s: unknown rung %q (a map takes %s)", f.rungs, name, strings.Join(mapRungGroups, ", "))
-		case seen[name]:
-			return usagef("--rungs %s: %q is named twice", f.rungs, name)
 		}
-		seen[name] = true
-		want = append(want, name)
+		list = append(list, name)
 	}
-	if len(want) == 0 {
-		return usagef("--rungs %q leaves only the reference orbit: an audit compares at least one rung with it (choose from %s)", f.rungs, strings.Join(mapRungGroups, ", "))
+	kinds, want, err := pickRungs(cl, strings.Join(list, ","), mapRungKinds, "orbit")
+	if err != nil {
+		return err
 	}
-	if !seen["restart"] && (cl.sh.given["restart-at"] || cl.sh.given["restart-places"]) {
-		return usagef("--restart-at and --restart-places set the restart rung, which --rungs %s leaves out", f.rungs)
-	}
-	var rungs []plumb.MapRung
+	rungs := maps.Select(maps.DefaultRungs(steps), kinds...)
 	restartAt := 0
-	for _, r := range plumb.DefaultMapRungs(steps) {
-		switch {
-		case r.Kind == integrate.KindPrecision && seen["precision"]:
-			rungs = append(rungs, r)
-		case r.Kind == integrate.KindRestart && seen["restart"]:
-			at := r.RestartAt
-			if cl.sh.given["restart-at"] {
-				if f.restartAt != math.Trunc(f.restartAt) || !(f.restartAt >= 1 && f.restartAt < horizon) {
-					return usagef("--restart-at %s: for a map, a whole iterate strictly inside the horizon, 1 to %d", formatFloat(f.restartAt), steps-1)
-				}
-				at = int(f.restartAt)
+	if len(maps.Select(rungs, integrate.KindRestart)) > 0 {
+		restartAt = int(integrate.RestartFraction * horizon)
+		if cl.sh.given["restart-at"] {
+			if f.restartAt != math.Trunc(f.restartAt) || !(f.restartAt >= 1 && f.restartAt < horizon) {
+				return usagef("--restart-at %s: for a map, a whole iterate strictly inside the horizon, 1 to %d", formatFloat(f.restartAt), steps-1)
 			}
-			places := integrate.Places(f.restartPlaces)
-			if err := places.Validate(); err != nil {
-				return usagef("--restart-places %d: %v", f.restartPlaces, err)
-			}
-			r.RestartAt, r.Restart = at, places
-			restartAt = at
-			rungs = append(rungs, r)
+			restartAt = int(f.restartAt)
 		}
+		places := integrate.Places(f.restartPlaces)
+		if err := places.Validate(); err != nil {
+			return usagef("--restart-places %d: %v", f.restartPlaces, err)
+		}
+		rungs = maps.WithRestart(rungs, restartAt, places)
 	}
 	if len(rungs) == 0 {
 		return usagef("--horizon %d: too short for a restart rung; give --rungs precision or a longer horizon", steps)
 	}
 	start := now()
-	rep, err := plumb.TrustMap(ctx, sys, steps, &plumb.MapTrustSettings{Tol: tol, Relative: f.relative, Rungs: rungs, Distance: dist})
+	rep, err := sys.Trust(ctx, float64(steps), &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist})
 	if rep == nil {
-		if errors.Is(err, plumb.ErrSteps) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) || errors.Is(err, integrate.ErrSettings) {
+		if errors.Is(err, maps.ErrSteps) || errors.Is(err, plumb.ErrHorizon) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) || errors.Is(err, integrate.ErrSettings) {
 			return usagef("the audit refused its input: %v", err)
 		}
 		return fmt.Errorf("the audit of %s could not start: %w", sys.Name, err)
@@ -494,14 +462,14 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	out := mapTrustJSON{
 		PlumbVersion: version, Arch: goarch, Command: "trust", System: describe(sys),
 		Settings: mapTrustSettingsJSON{Horizon: steps, Tol: tol, Relative: f.relative, Rungs: want, RestartAt: restartAt},
-		Units:    mapTrustUnits, MapReport: rep,
+		Units:    mapTrustUnits, Report: rep,
 	}
 	out.Status, out.Error = runStatus(err)
 	out.Settings.Observe, out.Settings.Scales = echoDistance(sys, dist)
 	if rep.Verdict != plumb.Incomplete {
 		out.TrustedUntil = &rep.TrustedUntil
 	}
-	if seen["restart"] {
+	if slices.Contains(kinds, integrate.KindRestart) {
 		out.Settings.RestartPlaces = f.restartPlaces
 	}
 	var werr error
@@ -540,13 +508,13 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 
 // mapTrustCSV writes the divergence per iterate: n, then one column per
 // rung (empty before a restart and after a failure). Past
-// plumb.MapCurvePoints iterates a row covers rep.Stride iterates from n and
+// maps.CurvePoints iterates a row covers rep.Stride iterates from n and
 // holds the largest divergence over them.
-func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
+func mapTrustCSV(cl *call, rep *plumb.Report) error {
 	stride := max(rep.Stride, 1)
 	curves := make([]curveCSV, len(rep.Rungs))
 	for i, r := range rep.Rungs {
-		curves[i] = curveCSV{name: r.ID, start: r.Start / stride, values: r.Divergence}
+		curves[i] = curveCSV{name: r.ID, start: r.Start, values: r.Divergence}
 	}
 	rows := (rep.Steps + stride) / stride
 	return writeCurvesCSV(cl.stdout, "n", rows, func(i int) string { return strconv.Itoa(i * stride) }, curves)
@@ -555,7 +523,7 @@ func mapTrustCSV(cl *call, rep *plumb.MapReport) error {
 // mapTrustChart draws the divergence per iterate on a log axis, the
 // tolerance, and the Lyapunov prediction delta0·exp(lambda·(n - start)) of
 // the rung with the earliest predicted horizon.
-func mapTrustChart(rep *plumb.MapReport) *lineChart {
+func mapTrustChart(rep *plumb.Report) *lineChart {
 	c := &lineChart{
 		Title:  "divergence from the double-double orbit",
 		XLabel: "iterate n", YLabel: "distance from the reference",
@@ -564,9 +532,11 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 	top := rep.TolAbs
 	for _, r := range rep.Rungs {
 		s := series{Name: r.Name}
-		stride := max(r.Stride, 1)
 		for k, d := range r.Divergence {
-			s.X = append(s.X, float64(max((r.Start/stride+k)*stride, r.Start)))
+			if r.Start+k >= len(rep.Times) {
+				break
+			}
+			s.X = append(s.X, math.Max(rep.Times[r.Start+k], r.RestartAt))
 			s.Y = append(s.Y, d)
 			top = math.Max(top, d)
 		}
@@ -574,7 +544,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 	}
 	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, 0, float64(rep.Steps)))
 	if rep.Verdict != plumb.Incomplete && rep.LimitedBy != "" {
-		c.Marks = append(c.Marks, mark{X: float64(rep.TrustedUntil), Label: fmt.Sprintf("trusted until iterate %d", rep.TrustedUntil)})
+		c.Marks = append(c.Marks, mark{X: rep.TrustedUntil, Label: fmt.Sprintf("trusted until iterate %d", int(rep.TrustedUntil))})
 	}
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
@@ -584,7 +554,7 @@ func mapTrustChart(rep *plumb.MapReport) *lineChart {
 		if r.Predicted != rep.PredictedHorizon || !(r.Delta0 > 0) {
 			continue
 		}
-		if s, ok := predictionSeries("n", r.ID, lambda, r.Delta0, float64(r.Start), float64(rep.Steps), top); ok {
+		if s, ok := predictionSeries("n", r.ID, lambda, r.Delta0, r.RestartAt, float64(rep.Steps), top); ok {
 			c.Series = append(c.Series, s)
 		}
 		break

@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
+	"github.com/plumbdyn/plumb/maps"
 	"math"
 	"os"
 	"path/filepath"
@@ -162,18 +163,18 @@ func TestTrustMapCLI(t *testing.T) {
 	}
 	var out struct {
 		Settings mapTrustSettingsJSON `json:"settings"`
-		plumb.MapReport
+		plumb.Report
 	}
 	if err := json.Unmarshal([]byte(r.stdout), &out); err != nil {
 		t.Fatal(err)
 	}
 	sys, _ := plumb.Model("logistic")
-	rep, err := plumb.TrustMap(context.Background(), sys, 60, &plumb.MapTrustSettings{Tol: mapTrustTol, Rungs: plumb.DefaultMapRungs(60)})
+	rep, err := sys.Trust(context.Background(), 60, &plumb.TrustSettings{Tol: mapTrustTol, MapRungs: maps.DefaultRungs(60)})
 	if err != nil {
 		t.Fatal(err)
 	}
 	if out.Steps != 60 || out.TrustedUntil != rep.TrustedUntil || out.Verdict != rep.Verdict || len(out.Rungs) != len(rep.Rungs) {
-		t.Fatalf("CLI steps %d until %d verdict %s; SDK until %d verdict %s", out.Steps, out.TrustedUntil, out.Verdict, rep.TrustedUntil, rep.Verdict)
+		t.Fatalf("CLI steps %d until %v verdict %s; SDK until %v verdict %s", out.Steps, out.TrustedUntil, out.Verdict, rep.TrustedUntil, rep.Verdict)
 	}
 	for i := range rep.Rungs {
 		if out.Rungs[i].DepartsAt != rep.Rungs[i].DepartsAt {

@@ -9,6 +9,7 @@ import (
 	"github.com/plumbdyn/plumb"
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
+	"github.com/plumbdyn/plumb/maps"
 )
 
 // job is one command's computation, described so that runJob can drive the
@@ -137,7 +138,7 @@ var refusals = []error{
 	lyap.ErrCount,
 	lyap.ErrDimension,
 	plumb.ErrHorizon,
-	plumb.ErrSteps,
+	maps.ErrSteps,
 	plumb.ErrTolerance,
 }
 

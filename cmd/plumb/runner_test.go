@@ -12,6 +12,7 @@ import (
 	"github.com/plumbdyn/plumb"
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
+	"github.com/plumbdyn/plumb/maps"
 )
 
 // TestStartFailureExit: a run that computed nothing exits 2 when the SDK
@@ -34,7 +35,7 @@ func TestStartFailureExit(t *testing.T) {
 		{"lyap count", lyap.ErrCount, exitUsage},
 		{"lyap dimension", lyap.ErrDimension, exitUsage},
 		{"horizon", plumb.ErrHorizon, exitUsage},
-		{"steps", plumb.ErrSteps, exitUsage},
+		{"steps", maps.ErrSteps, exitUsage},
 		{"tolerance", plumb.ErrTolerance, exitUsage},
 		{"non-finite start", fmt.Errorf("derivative is NaN at t=0: %w", integrate.ErrNonFinite), exitFailed},
 		{"step budget", integrate.ErrStepBudget, exitFailed},

@@ -7,6 +7,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
@@ -86,11 +87,13 @@ storage at 40 and 24 bits (precision) and a restart at 0.8 of the horizon
 (restart); --horizon counts iterates (default 100), --tol defaults to 0.1,
 --restart-at is an iterate, and the exponent is per iterate; map JSON
 keys: plumb_version, arch, command, system, settings, units, status,
-error, trusted_until, steps, tol, relative, tol_abs, spread, magnitude,
-distance, limited_by (when a rung departs), limiting_rung (when a rung
-departs), predicted_horizon (when predicted), verdict, tol_used, growth,
-exponent (when estimated), exponent_error (when the estimate failed),
-stride, reference, rungs, failed, caution. --format csv writes n, then
+error, trusted_until, t0, horizon, steps, tol, relative, tol_abs, spread,
+magnitude, distance, limited_by (when a rung departs), limiting_rung
+(when a rung departs), predicted_horizon (when predicted), verdict,
+tol_used, growth, exponent (when estimated), exponent_error (when the
+estimate failed), rungs, times, stride, failed, exact_reference (the
+double-double orbit), caution, time_unit (iterate: every time is an
+iterate). --format csv writes n, then
 one column per rung, headed by its id: precision_float64,
 precision_40bit, precision_24bit, restart. Past 4096 iterates each
 curve keeps at most 4096 points: a row (and a point of a rung's
@@ -106,30 +109,26 @@ still written; the exit status is then 1.`,
 
 // Defaults of plumb trust.
 const (
-	trustHorizon = 50 // a few dozen Lyapunov times of the demo: well past its horizon
-	trustTol     = 1  // a difference of 1 in the demo's units is visible on a plot
-	// trustRestartFraction places the default restart at this fraction of
-	// the horizon, as integrate.DefaultLadder does.
-	trustRestartFraction = 0.8
-	trustRestartPlaces   = 3 // a printout with three decimals
+	trustHorizon       = 50 // a few dozen Lyapunov times of the demo: well past its horizon
+	trustTol           = 1  // a difference of 1 in the demo's units is visible on a plot
+	trustRestartPlaces = 3  // a printout with three decimals
 )
 
-// rungGroups are the names --rungs takes, each the rungs of
-// integrate.DefaultLadder of one kind, in the ladder's order.
-var rungGroups = []struct {
-	name string
-	kind integrate.RungKind
-}{
-	{"tol", integrate.KindTolerance},
-	{"method", integrate.KindMethod},
-	{"precision", integrate.KindPrecision},
-	{"restart", integrate.KindRestart},
+// rungGroupName is the --rungs name of the rungs of one kind: the kind
+// itself, "tol" for the tolerance rungs.
+func rungGroupName(k integrate.RungKind) string {
+	if k == integrate.KindTolerance {
+		return "tol"
+	}
+	return k.String()
 }
 
+// rungGroupNames are the names --rungs takes for a flow, one per kind of
+// integrate.DefaultLadder, in the ladder's order.
 func rungGroupNames() []string {
-	out := make([]string, len(rungGroups))
-	for i, g := range rungGroups {
-		out[i] = g.name
+	var out []string
+	for _, k := range integrate.DefaultLadder(0, 1).Kinds() {
+		out = append(out, rungGroupName(k))
 	}
 	return out
 }
@@ -174,36 +173,12 @@ func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 // ladder builds the audit ladder the flags ask for on [t0, t0+horizon].
 func (f *trustFlags) ladder(cl *call, t0 float64) (integrate.Ladder, []string, error) {
 	t1 := t0 + f.horizon
-	var want []string
-	seen := map[string]bool{}
-	for _, name := range strings.Split(f.rungs, ",") {
-		name = strings.TrimSpace(name)
-		if name == "" {
-			continue
-		}
-		ok := false
-		for _, g := range rungGroups {
-			ok = ok || g.name == name
-		}
-		switch {
-		case name == "reference" || name == "ref" || name == plumb.TightestID:
-			// Always there: it is what the rungs are compared with.
-			continue
-		case !ok:
-			return integrate.Ladder{}, nil, usagef("--rungs %s: unknown rung %q (known: %s)", f.rungs, name, strings.Join(rungGroupNames(), ", "))
-		case seen[name]:
-			return integrate.Ladder{}, nil, usagef("--rungs %s: %q is named twice", f.rungs, name)
-		}
-		seen[name] = true
-		want = append(want, name)
+	def := integrate.DefaultLadder(t0, t1)
+	kinds, want, err := pickRungs(cl, f.rungs, def.Kinds(), "run")
+	if err != nil {
+		return integrate.Ladder{}, nil, err
 	}
-	if len(want) == 0 {
-		return integrate.Ladder{}, nil, usagef("--rungs %q leaves only the reference run: an audit compares at least one rung with it (choose from %s)", f.rungs, strings.Join(rungGroupNames(), ", "))
-	}
-	if !seen["restart"] && (cl.sh.given["restart-at"] || cl.sh.given["restart-places"]) {
-		return integrate.Ladder{}, nil, usagef("--restart-at and --restart-places set the restart rung, which --rungs %s leaves out", f.rungs)
-	}
-	at := t0 + float64(trustRestartFraction*f.horizon)
+	at := t0 + float64(integrate.RestartFraction*f.horizon)
 	if cl.sh.given["restart-at"] {
 		at = f.restartAt
 		if !(at > t0 && at < t1) {
@@ -214,8 +189,6 @@ func (f *trustFlags) ladder(cl *call, t0 float64) (integrate.Ladder, []string, e
 	if err := places.Validate(); err != nil {
 		return integrate.Ladder{}, nil, usagef("--restart-places %d: %v", f.restartPlaces, err)
 	}
-	def := integrate.DefaultLadder(t0, t1)
-	l := integrate.Ladder{Reference: def.Reference}
 	if run, ok, err := f.yourRun(cl); err != nil {
 		return integrate.Ladder{}, nil, err
 	} else if ok {
@@ -224,24 +197,45 @@ func (f *trustFlags) ladder(cl *call, t0 float64) (integrate.Ladder, []string, e
 		if def, err = integrate.RunLadder(t0, t1, run); err != nil {
 			return integrate.Ladder{}, nil, usagef("--%s: %v", strings.Join(givenOf(cl, yourRunFlags), ", --"), err)
 		}
-		l.Reference = def.Reference
-		l.Rungs = append(l.Rungs, def.Rungs[0])
 	}
-	for _, g := range rungGroups {
-		if !seen[g.name] {
+	return def.Select(kinds...).WithRestart(at, places), want, nil
+}
+
+// pickRungs reads --rungs (list) against the kinds the audit has, in their
+// order: the kinds chosen and their names as given. "reference", "ref" and
+// plumb.TightestID name the reference, which is always there; what is the
+// audited thing ("run" or "orbit") fills the messages.
+func pickRungs(cl *call, list string, kinds []integrate.RungKind, what string) ([]integrate.RungKind, []string, error) {
+	names := make([]string, len(kinds))
+	for i, k := range kinds {
+		names[i] = rungGroupName(k)
+	}
+	var chosen []integrate.RungKind
+	var want []string
+	seen := map[string]bool{}
+	for _, name := range strings.Split(list, ",") {
+		name = strings.TrimSpace(name)
+		i := slices.Index(names, name)
+		switch {
+		case name == "" || name == "reference" || name == "ref" || name == plumb.TightestID:
+			// Always there: it is what the rungs are compared with.
 			continue
+		case i < 0:
+			return nil, nil, usagef("--rungs %s: unknown rung %q (known: %s)", list, name, strings.Join(names, ", "))
+		case seen[name]:
+			return nil, nil, usagef("--rungs %s: %q is named twice", list, name)
 		}
-		for _, r := range def.Rungs {
-			if r.Kind != g.kind {
-				continue
-			}
-			if r.Kind == integrate.KindRestart {
-				r.RestartAt, r.Restart = at, places
-			}
-			l.Rungs = append(l.Rungs, r)
-		}
+		seen[name] = true
+		want = append(want, name)
+		chosen = append(chosen, kinds[i])
 	}
-	return l, want, nil
+	if len(want) == 0 {
+		return nil, nil, usagef("--rungs %q leaves only the reference %s: an audit compares at least one rung with it (choose from %s)", list, what, strings.Join(names, ", "))
+	}
+	if !seen["restart"] && (cl.sh.given["restart-at"] || cl.sh.given["restart-places"]) {
+		return nil, nil, usagef("--restart-at and --restart-places set the restart rung, which --rungs %s leaves out", list)
+	}
+	return chosen, want, nil
 }
 
 // yourRun is the caller's own run named by --method, --rtol, --atol and
@@ -377,34 +371,29 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	if f.maxSteps < 1 {
 		return usagef("--max-steps %d: must be >= 1", f.maxSteps)
 	}
-	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Periods: sys.Periods(), States: sys.States, Distance: dist, MaxSteps: f.maxSteps}
+	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Distance: dist, MaxSteps: f.maxSteps, NoExact: !f.exact}
 	var bar *progressBar
 	if cl.progress {
 		// One unit per audit run, and as many again for the exponent
 		// estimate, which takes about as long as the audit.
 		bar = newProgressBar(cl.stderr, "plumb trust", 0, 1)
-		// The two stages may come in either order (TrustSystem estimates
+		// The two stages may come in either order (System.Trust estimates
 		// the exponent first, to choose the reference's precision).
 		var audit, expo float64
-		settings.Progress = func(stage string, done, total int) {
+		settings.Progress = func(stage plumb.Stage, done, total int) {
 			switch stage {
-			case "audit":
+			case plumb.StageAudit:
 				if total > 0 {
 					audit = float64(done) / float64(total)
 				}
-			case "exponent":
+			case plumb.StageExponent:
 				expo = float64(done)
 			}
 			bar.at(0.5*audit + 0.5*expo)
 		}
 	}
 	start := now()
-	var rep *plumb.Report
-	if f.exact && sys.HasFormulas() {
-		rep, err = plumb.TrustSystem(ctx, sys, f.horizon, settings)
-	} else {
-		rep, err = plumb.Trust(ctx, p, f.horizon, settings)
-	}
+	rep, err := sys.Trust(ctx, f.horizon, settings)
 	if bar != nil {
 		bar.clear()
 	}
@@ -439,9 +428,6 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		Report: rep,
 	}
 	out.Units.Time = out.System.timeUnit(trustUnits.Time)
-	if rep.TimeUnit == "" {
-		rep.TimeUnit = sys.TimeUnit() // plumb.Trust on a problem knows no unit
-	}
 	if run, ok, _ := f.yourRun(cl); ok {
 		out.Settings.Method = f.method
 		if run.Fixed != nil {

@@ -131,7 +131,7 @@ func TestTrustMatchesSDK(t *testing.T) {
 			ladder.Rungs = append(ladder.Rungs, g)
 		}
 	}
-	want, err := plumb.Trust(context.Background(), sys.Problem(), 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
+	want, err := plumb.TrustProblem(context.Background(), sys.Problem(), 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -141,7 +141,7 @@ func TestTrustMatchesSDK(t *testing.T) {
 	if r.code != exitOK {
 		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
 	}
-	wantExact, err := plumb.TrustSystem(context.Background(), sys, 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
+	wantExact, err := sys.Trust(context.Background(), 30, &plumb.TrustSettings{Tol: 0.01, Ladder: &ladder})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -445,7 +445,7 @@ func TestTrustPeriodicModel(t *testing.T) {
 		if wrapped {
 			s.Periods = sys.Periods()
 		}
-		want, err := plumb.Trust(context.Background(), sys.Problem(), 12, s)
+		want, err := plumb.TrustProblem(context.Background(), sys.Problem(), 12, s)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -456,15 +456,25 @@ func TestTrustPeriodicModel(t *testing.T) {
 	}
 }
 
-// FuzzRungsFlag: --rungs never panics; a refused list is a usage error
-// naming --rungs, an accepted one names known groups once each, gives a
-// ladder with at least one rung, and reads back from its own echo.
+// FuzzRungsFlag: --rungs never panics, for a flow or a map; a refused list
+// is a usage error naming --rungs, an accepted one names known groups once
+// each, gives a ladder with at least one rung, and reads back from its own
+// echo.
 func FuzzRungsFlag(f *testing.F) {
-	for _, s := range []string{"tol,method,precision,restart", "restart", "tol,,method", " tol , precision ", "", "reference", "ref,tol", "tol,tol", "stepsize", ",", "TOL"} {
+	for _, s := range []string{"tol,method,precision,restart", "restart", "tol,,method", " tol , precision ", "", "reference", "ref,tol", "tol,tol", "stepsize", ",", "TOL", "precision,restart", "restart,precision,restart"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {
 		cl := &call{sh: &shared{given: map[string]bool{}}}
+		// The map audit's kinds go through the same parser: what it
+		// accepts is among them, once each.
+		if kinds, names, err := pickRungs(cl, s, mapRungKinds, "orbit"); err == nil {
+			if len(kinds) == 0 || len(kinds) != len(names) || len(kinds) > len(mapRungKinds) {
+				t.Fatalf("map --rungs %q gave kinds %v, names %v", s, kinds, names)
+			}
+		} else if ue := (*usageError)(nil); !errors.As(err, &ue) || !strings.Contains(ue.msg, "--rungs") {
+			t.Fatalf("map --rungs %q: %v; want a usage error naming --rungs", s, err)
+		}
 		fl := &trustFlags{horizon: 50, rungs: s, restartPlaces: trustRestartPlaces}
 		l, names, err := fl.ladder(cl, 0)
 		if err != nil {

@@ -47,7 +47,7 @@ func run(w io.Writer) (*plumb.Report, error) {
 	if err := sys.SetStart([]float64{1.745, 2.443, 0, 0}); err != nil {
 		return nil, err
 	}
-	rep, err := plumb.TrustSystem(context.Background(), sys, 20, &plumb.TrustSettings{Tol: 0.01, Periods: sys.Periods()})
+	rep, err := sys.Trust(context.Background(), 20, &plumb.TrustSettings{Tol: 0.01})
 	if err != nil {
 		return nil, err
 	}

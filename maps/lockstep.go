@@ -1,4 +1,4 @@
-package plumb
+package maps
 
 import (
 	"context"
@@ -10,23 +10,23 @@ import (
 	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
-// MapCurvePoints bounds the points each divergence curve of a map audit
+// CurvePoints bounds the points each divergence curve of a map audit
 // keeps. An audit of more iterates than this keeps, per point, the largest
-// distance over a run of MapRungReport.Stride iterates (a power of two), so
+// distance over a run of AuditResult.Stride iterates (a power of two), so
 // that its memory and output do not grow with the horizon; agreement
 // horizons, departures and growth fits are still read iterate by iterate.
-const MapCurvePoints = 4096
+const CurvePoints = 4096
 
-// mapFitPoints bounds the points a growth fit keeps: beyond it, every other
+// fitPoints bounds the points a growth fit keeps: beyond it, every other
 // point is dropped and the spacing doubles (the fit then sees the envelope
 // at evenly spaced iterates; common practice for bounded-memory sampling).
-const mapFitPoints = 8192
+const fitPoints = 8192
 
 // curveStride is the smallest power of two s with ceil((steps+1)/s) <=
-// MapCurvePoints.
+// CurvePoints.
 func curveStride(steps int) int {
 	s := 1
-	for (steps+s)/s > MapCurvePoints {
+	for (steps+s)/s > CurvePoints {
 		s *= 2
 	}
 	return s
@@ -34,8 +34,8 @@ func curveStride(steps int) int {
 
 // mapRun is one rung advancing in lockstep with the reference.
 type mapRun struct {
-	r     MapRung
-	out   MapRungReport
+	r     Rung
+	out   RungResult
 	store integrate.Rounding
 	x, y  []float64
 	live  bool // started and not stopped
@@ -51,11 +51,10 @@ type mapRun struct {
 	fitDone    bool
 }
 
-// mapLockstep iterates the double-double reference and every rung together,
+// lockstep iterates the double-double reference and every rung together,
 // one iterate at a time, so that nothing of length steps is stored.
-type mapLockstep struct {
-	ev      *DDEvaluator
-	m       *MapSystem
+type lockstep struct {
+	m       *Map
 	periods []float64
 	scales  []float64 // Distance.PerComponent: nil, or per component (0: not observed)
 	steps   int
@@ -78,10 +77,12 @@ type mapLockstep struct {
 	prevMax float64
 }
 
-func newMapLockstep(ev *DDEvaluator, m *MapSystem, rungs []MapRung, x0 []float64, steps int, periods []float64, tol float64) *mapLockstep {
+// newLockstep prepares the reference orbit of m from x0 and the rungs for
+// steps iterations at the absolute tolerance tol in the distance of scales.
+func newLockstep(m *Map, rungs []Rung, x0 []float64, steps int, tol float64, scales []float64) *lockstep {
 	n := len(x0)
-	a := &mapLockstep{
-		ev: ev, m: m, periods: periods, steps: steps, stride: curveStride(steps), tol: tol,
+	a := &lockstep{
+		m: m, periods: m.periods, scales: scales, steps: steps, stride: curveStride(steps), tol: tol,
 		cur: make([]dd.Float, n), nxt: make([]dd.Float, n), mean: make([]float64, n),
 	}
 	for i, v := range x0 {
@@ -89,21 +90,17 @@ func newMapLockstep(ev *DDEvaluator, m *MapSystem, rungs []MapRung, x0 []float64
 	}
 	for _, r := range rungs {
 		run := &mapRun{r: r, x: make([]float64, n), y: make([]float64, n), fitStep: 1}
-		run.out = MapRungReport{Name: r.Name, Effect: r.Kind.String(), AgreesUntil: -1, Stride: a.stride, Divergence: []float64{}, ID: rungID(r.Kind, "", 0, r.Storage)}
+		run.out = RungResult{Rung: r, AgreesUntil: -1, Divergence: []float64{}}
 		switch r.Kind {
 		case integrate.KindPrecision:
 			run.store = r.Storage
 			copy(run.x, x0)
 			if run.store.Kind != integrate.NoRounding {
-				run.out.Rounding = run.store.String()
 				run.store.Vec(run.x, run.x)
-			} else {
-				run.out.Rounding = "float64"
 			}
 			run.live = true
 		case integrate.KindRestart:
-			run.out.Start, run.out.RestartAt = r.RestartAt, r.RestartAt
-			run.out.Rounding = r.Restart.String()
+			run.out.Start = r.RestartAt
 		}
 		run.bin = run.out.Start / a.stride
 		a.runs = append(a.runs, run)
@@ -113,8 +110,8 @@ func newMapLockstep(ev *DDEvaluator, m *MapSystem, rungs []MapRung, x0 []float64
 
 // run iterates to a.steps. It returns the reference's failure or the
 // context's error; every rung then stops at the last iterate reached, with
-// the reason in its Error.
-func (a *mapLockstep) run(ctx context.Context) error {
+// the reason in its Err.
+func (a *lockstep) run(ctx context.Context) error {
 	n := len(a.cur)
 	for it := 0; ; it++ {
 		a.reached = it
@@ -131,17 +128,17 @@ func (a *mapLockstep) run(ctx context.Context) error {
 		}
 		curMax, event, eventAt := 0.0, false, it
 		for _, run := range a.runs {
-			if !run.live && run.out.Error == "" && run.r.Kind == integrate.KindRestart && it == run.r.RestartAt {
+			if !run.live && run.out.Err == nil && run.r.Kind == integrate.KindRestart && it == run.r.RestartAt {
 				for i := range run.x {
 					run.x[i] = run.r.Restart.Round(a.cur[i].Hi + a.cur[i].Lo)
 				}
-				wrapPeriodic(run.x, a.periods)
+				WrapPeriodic(run.x, a.periods)
 				run.live = true
 			}
 			if !run.live {
 				continue
 			}
-			d := refDistScaled(run.x, a.cur, a.periods, a.scales)
+			d := refDist(run.x, a.cur, a.periods, a.scales)
 			curMax = math.Max(curMax, d)
 			if at, ok := run.record(it, d, a); ok {
 				event, eventAt = true, min(eventAt, at)
@@ -169,7 +166,7 @@ func (a *mapLockstep) run(ctx context.Context) error {
 			err = ctx.Err()
 		}
 		if err == nil {
-			err = a.ev.Eval(dd.Float{}, a.cur, a.nxt)
+			err = a.m.f.NextDD(a.cur, a.nxt)
 		}
 		for i := 0; err == nil && i < n; i++ {
 			if !a.nxt[i].IsFinite() {
@@ -191,14 +188,14 @@ func (a *mapLockstep) run(ctx context.Context) error {
 }
 
 // stopAll stops every live rung at iterate it because the reference stopped.
-func (a *mapLockstep) stopAll(it int, err error) {
+func (a *lockstep) stopAll(it int, err error) {
 	if !a.settled {
 		a.settled, a.trusted, a.maxDiv = true, it, a.prevMax
 	}
 	for _, run := range a.runs {
 		if run.live {
 			run.live = false
-			run.out.Error = fmt.Sprintf("stopped at iterate %d with the reference: %v", it, err)
+			run.out.Err = fmt.Errorf("stopped at iterate %d with the reference: %w", it, err)
 		}
 	}
 }
@@ -206,7 +203,7 @@ func (a *mapLockstep) stopAll(it int, err error) {
 // size returns the root-mean-square norm of the reference's iterates
 // 0..reached and its root-mean-square distance from their mean, with the
 // sums of orbitSize in the same order.
-func (a *mapLockstep) size() (mag, spread float64) {
+func (a *lockstep) size() (mag, spread float64) {
 	cnt := float64(a.reached + 1)
 	var msq float64
 	for _, m := range a.mean {
@@ -219,7 +216,7 @@ func (a *mapLockstep) size() (mag, spread float64) {
 // record takes the divergence d at iterate it into the curve, the fit and
 // the departure. It reports a first departure with the rung's agreement
 // horizon.
-func (run *mapRun) record(it int, d float64, a *mapLockstep) (agreesUntil int, departed bool) {
+func (run *mapRun) record(it int, d float64, a *lockstep) (agreesUntil int, departed bool) {
 	if b := it / a.stride; b != run.bin || len(run.out.Divergence) == 0 {
 		if len(run.out.Divergence) > 0 {
 			run.bin = b
@@ -233,7 +230,7 @@ func (run *mapRun) record(it int, d float64, a *mapLockstep) (agreesUntil int, d
 		run.fitEnv = run.env
 	}
 	if !run.fitDone && it > run.out.Start && run.env > 0 && (it-run.out.Start)%run.fitStep == 0 {
-		if len(run.fitX) == mapFitPoints {
+		if len(run.fitX) == fitPoints {
 			run.thin()
 		}
 		if (it-run.out.Start)%run.fitStep == 0 {
@@ -270,7 +267,7 @@ func (run *mapRun) thin() {
 // advance maps the rung from iterate it to it+1. A value that is not
 // finite stops the rung; it then reports a failure with its agreement
 // horizon (it has vouched for nothing beyond it).
-func (run *mapRun) advance(m *MapSystem, it int) (agreesUntil int, failed bool) {
+func (run *mapRun) advance(m *Map, it int) (agreesUntil int, failed bool) {
 	m.Next(run.x, run.y)
 	if run.store.Kind != integrate.NoRounding {
 		run.store.Vec(run.y, run.y)
@@ -282,7 +279,7 @@ func (run *mapRun) advance(m *MapSystem, it int) (agreesUntil int, failed bool) 
 		}
 	}
 	if bad >= 0 {
-		run.out.Error = fmt.Sprintf("component %d is %v after iterate %d", bad, run.y[bad], it)
+		run.out.Err = &NonFiniteError{Iterate: it + 1, Component: bad, Value: run.y[bad]}
 		run.live = false
 		if !run.out.Departed {
 			return max(run.out.AgreesUntil, run.out.Start), true
@@ -290,6 +287,7 @@ func (run *mapRun) advance(m *MapSystem, it int) (agreesUntil int, failed bool) 
 		return 0, false
 	}
 	copy(run.x, run.y)
+	run.out.Iterates++
 	return 0, false
 }
 
@@ -299,34 +297,23 @@ func (run *mapRun) finish() {
 	if run.out.AgreesUntil < run.out.Start {
 		run.out.AgreesUntil = run.out.Start
 	}
-	fitMapGrowth(&run.out, run.fitEnv, run.fitX, run.fitY)
+	fitGrowth(&run.out, run.fitEnv, run.fitX, run.fitY)
 }
 
 // refDist is the Euclidean distance between the float64 state x and the
-// double-double reference state ref, with wrapped differences on periodic
-// components. The difference is taken in double-double, so it is exact to
-// the reference's accuracy.
-func refDist(x []float64, ref []dd.Float, periods []float64) float64 {
-	return refDistScaled(x, ref, periods, nil)
-}
-
-// refDistScaled is refDist over the observed components, each wrapped
-// difference divided by its scale (scales nil: all, at scale 1).
-func refDistScaled(x []float64, ref []dd.Float, periods, scales []float64) float64 {
+// double-double reference state ref over the observed components, with
+// wrapped differences on periodic components, each divided by its scale
+// (scales nil: all, at scale 1). The difference is taken in double-double,
+// so it is exact to the reference's accuracy.
+func refDist(x []float64, ref []dd.Float, periods, scales []float64) float64 {
 	var s float64
 	for i, v := range x {
 		if scales != nil && scales[i] == 0 {
 			continue
 		}
 		d := dd.Sub(dd.From(v), ref[i]).Float64()
-		if i < len(periods) && periods[i] > 0 {
-			p := periods[i]
-			d = math.Mod(d, p)
-			if d > p/2 {
-				d -= p
-			} else if d < -p/2 {
-				d += p
-			}
+		if i < len(periods) {
+			d = wrappedDiff(d, periods[i])
 		}
 		if scales != nil {
 			d /= scales[i]
@@ -336,23 +323,30 @@ func refDistScaled(x []float64, ref []dd.Float, periods, scales []float64) float
 	return math.Sqrt(s)
 }
 
-// fitMapGrowth fits ln d = a + rate·n and ln d = a + power·ln(n - start)
-// to the running maximum of the divergence (the points xs, ly, from its
-// first positive value after the start up to the first iterate at or
-// beyond the tolerance) and names the better law (integrate.FitGrowth).
-// Less than a doubling over the range, or an envelope env that never
-// passes boundedFactor·Delta0, is "bounded"; Delta0 must be set first.
-func fitMapGrowth(out *MapRungReport, env float64, xs, ly []float64) {
-	out.Growth = "unknown"
+// fitGrowth fits ln d = a + rate·n and ln d = a + power·ln(n - start) to
+// the running maximum of the divergence (the points xs, ly, from its first
+// positive value after the start up to the first iterate at or beyond the
+// tolerance) and names the better law (integrate.FitGrowth). Fewer than
+// mapFitMin points is undetermined; an envelope env that never passes
+// boundedFactor·Delta0 is bounded. out.Delta0 must be set first.
+func fitGrowth(out *RungResult, env float64, xs, ly []float64) {
+	out.Growth = integrate.Growth{Kind: integrate.GrowthUndetermined, Points: len(xs)}
 	if len(xs) < mapFitMin {
 		return
 	}
-	g := integrate.FitGrowth(xs, ly, float64(out.Start))
-	out.Rate, out.RateErr = finiteOr0(g.Rate), finiteOr0(g.RateErr)
-	out.Power, out.PowerErr = finiteOr0(g.Power), finiteOr0(g.PowerErr)
-	out.Growth = g.Kind.String()
+	out.Growth = integrate.FitGrowth(xs, ly, float64(out.Start))
 	if env <= boundedFactor*out.Delta0 {
 		// Rounding noise, however it is shaped.
-		out.Growth = "bounded"
+		out.Growth.Kind = integrate.GrowthBounded
 	}
 }
+
+// boundedFactor: a divergence that never exceeds this many times the
+// rounding that started it is rounding noise, not growth (common practice:
+// a stable orbit forgets each rounding, so the noise stays within a few
+// units).
+const boundedFactor = 10
+
+// mapFitMin is the fewest points a growth fit takes (common practice:
+// fewer cannot tell a line from a curve).
+const mapFitMin = 5
