@@ -369,6 +369,12 @@ func (e *Float64) Field(t float64, y, dydt []float64) {
 // every call, so values written into Vars later take effect. The results
 // are bit-identical to Field.
 func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
+	switch forceTier {
+	case tierTape:
+		return e.tapeField
+	case tierFused:
+		return e.Field
+	}
 	rs := e.rs
 	nstate := e.p.nvar - 1
 	if rs == nil || nstate < 0 {
@@ -396,7 +402,7 @@ func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
 	if len(outs) <= nstate && len(pre) == 0 {
 		// When every output has an inline kind, the lean version evaluates
 		// them in place, with no call at all (inline_gen.go).
-		if pl.inline {
+		if pl.inline && forceTier != tierClosure {
 			switch k := pl.kinds; len(k) {
 			case 1:
 				return inlineField1(rs, (*[1]inlineOut)(k), nstate)
