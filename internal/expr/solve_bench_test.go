@@ -12,26 +12,32 @@ import (
 
 	"github.com/plumbdyn/plumb"
 	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/detmath"
 	"github.com/plumbdyn/plumb/internal/expr"
 	"github.com/plumbdyn/plumb/internal/models"
 )
 
 // The end-to-end benchmarks time whole solves (integrate.Solve with
-// DormandPrince54) of a system file against the same system as the
-// hand-written Go field of the built-in catalog, with FieldFunc forced onto
-// each float64 evaluation tier in turn. A field's own cost ratio says little
-// about what a user waits for: the stepper's arithmetic, the error norm and
-// the set-up of a run (Problem.Own compiles nothing but makes fresh
+// DormandPrince54, steps dropped) of a system file, parsed once outside the
+// timer, against the same system as a hand-written Go field (the built-in
+// catalog's, or for the driven pendulum one written here), with FieldFunc
+// forced onto each float64 evaluation tier in turn: go (the Go field), tape
+// (the plain tape), fused (the fused tape), closure (the closures, never the
+// inline switch) and auto (FieldFunc's own choice). A field's own cost
+// ratio says little about what a user waits for: the stepper's arithmetic,
+// the error norm and the set-up of a run (Problem.Own makes fresh
 // evaluators) are paid by every variant alike.
 //
 // Every iteration of the benchmark loop solves once with each variant, in an
 // order rotated by one each iteration, so the noise of a shared machine
-// falls on all of them alike; the reported figures are medians over the
-// iterations: <variant>-ns/solve, and <variant>/go, the median of the
-// per-iteration ratios of that variant's time to the Go field's. Run with a
-// fixed count of iterations, e.g.
+// falls on all of them alike (ns/op is the time of the whole iteration).
+// The reported figures are medians over the iterations: <variant>-ns/solve,
+// and <variant>/go, the median of the per-iteration ratios of that
+// variant's time to the Go field's; <variant>-allocs/solve counts the
+// allocations of one solve (set-up and result; the steps allocate none). Run
+// with a fixed count of iterations, e.g.
 //
-//	go test -run '^$' -bench Solve -benchtime 40x ./internal/expr
+//	go test -run '^$' -bench Solve -benchtime 100x -count 5 ./internal/expr
 
 // solveVariant is one way of evaluating the field of a solve.
 type solveVariant struct {
@@ -170,13 +176,20 @@ func median(xs []float64) float64 {
 	return (xs[n/2-1] + xs[n/2]) / 2
 }
 
-// tierVariants returns the Go field and the system forced onto each tier.
+// tierVariants returns the catalog's Go field of goName and the system
+// forced onto each tier.
 func tierVariants(b *testing.B, goName string, sys *plumb.System) []solveVariant {
 	m, err := models.Lookup(goName)
 	if err != nil {
 		b.Fatal(err)
 	}
-	goProb := integrate.Problem{F: m.Field(m.Defaults()), Y0: sys.Problem().Y0}
+	return goTierVariants(m.Field(m.Defaults()), sys)
+}
+
+// goTierVariants returns the Go field f and the system forced onto each
+// tier.
+func goTierVariants(f integrate.Func, sys *plumb.System) []solveVariant {
+	goProb := integrate.Problem{F: f, Y0: sys.Problem().Y0}
 	return []solveVariant{
 		{name: "go", prob: func() integrate.Problem { return goProb }},
 		formulaVariant("tape", sys, expr.TierTape),
@@ -211,4 +224,34 @@ func BenchmarkSolveRossler(b *testing.B) {
 func BenchmarkSolveRing(b *testing.B) {
 	sys := loadSystemText(b, catalogFile(b, "lorenz96"))
 	benchSolves(b, 20, 1e-9, tierVariants(b, "lorenz96", sys))
+}
+
+// pendulumFile is a damped pendulum driven by a periodic torque, in the
+// scaled form d²x/dt² + c·dx/dt + sin x = A·cos(w·t) with c = 0.5, A = 1.5,
+// w = 2/3, a chaotic setting (G. L. Baker, J. P. Gollub, Chaotic Dynamics:
+// An Introduction, Cambridge University Press 1990, ch. 3; from memory).
+// Its rates call sin and cos, so FieldFunc cannot take the inline
+// closures and uses the closure form.
+const pendulumFile = `{"name": "driven-pendulum", "kind": "flow",
+ "parameters": [{"name": "c", "value": 0.5}, {"name": "A", "value": 1.5}, {"name": "w", "value": 0.6666666666666666}],
+ "variables": [{"name": "x", "start": 0.2, "rate": "v"},
+               {"name": "v", "start": 0, "rate": "-c*v - sin(x) + A*cos(w*t)"}]}`
+
+// pendulumGo is pendulumFile's field written by hand, with the operations
+// of the formulas in the same order (products rounded before sums, sin and
+// cos from detmath as in the compiled program), so that both solves take
+// the same steps.
+func pendulumGo(c, a, w float64) integrate.Func {
+	return func(t float64, y, d []float64) {
+		x, v := y[0], y[1]
+		d[0] = v
+		d[1] = float64(-c*v) - detmath.Sin(x) + float64(a*detmath.Cos(float64(w*t)))
+	}
+}
+
+// BenchmarkSolvePendulum solves pendulumFile on t in [0, 1000] at
+// rtol = atol = 1e-9, against the same field written in Go.
+func BenchmarkSolvePendulum(b *testing.B) {
+	sys := loadSystemText(b, pendulumFile)
+	benchSolves(b, 1000, 1e-9, goTierVariants(pendulumGo(0.5, 1.5, 0.6666666666666666), sys))
 }
