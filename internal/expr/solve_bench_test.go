@@ -31,9 +31,11 @@ import (
 // Every iteration of the benchmark loop solves once with each variant, in an
 // order rotated by one each iteration, so the noise of a shared machine
 // falls on all of them alike (ns/op is the time of the whole iteration).
-// The reported figures are medians over the iterations: <variant>-ns/solve,
-// and <variant>/go, the median of the per-iteration ratios of that
-// variant's time to the Go field's; <variant>-allocs/solve counts the
+// The reported figures: <variant>-ns/solve, the median time of a solve;
+// <variant>/go, the median of the per-iteration ratios of that variant's
+// time to the Go field's; <variant>/go-fastest, the ratio of the fastest
+// solves (a solve is only ever slowed by the others' load, so on a busy
+// machine this is often the steadier figure); <variant>-allocs/solve, the
 // allocations of one solve (set-up and result; the steps allocate none). Run
 // with a fixed count of iterations, e.g.
 //
@@ -150,6 +152,7 @@ func benchSolves(b *testing.B, t1 float64, tol float64, vs []solveVariant) {
 				r[j] = times[i][j] / times[0][j]
 			}
 			b.ReportMetric(median(r), v.name+"/go")
+			b.ReportMetric(slices.Min(times[i])/slices.Min(times[0]), v.name+"/go-fastest")
 		}
 		b.ReportMetric(median(times[i]), v.name+"-ns/solve")
 		if v.name != "go" {
