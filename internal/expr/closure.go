@@ -114,6 +114,21 @@ func wordKind(w uint64) (inlineOut, bool) {
 	return o, true
 }
 
+// inlinePre reports whether the inline field closures can run the tape
+// instructions pre themselves: each is one + - * / of two registers, a
+// square or a negation (the operations of their small switch, see
+// gen_inline.go).
+func inlinePre(pre []uint64) bool {
+	for _, w := range pre {
+		switch Op(w) {
+		case OpAdd, OpSub, OpMul, OpDiv, opSq, OpNeg:
+		default:
+			return false
+		}
+	}
+	return true
+}
+
 // plan builds the closure form of p's fast tape.
 func (p *Program) plan() fieldPlan {
 	code := p.fast

@@ -247,3 +247,75 @@ func FuzzFieldFunc(f *testing.F) {
 		}
 	})
 }
+
+// TestInlinePre checks that outputs with inline kinds take the inline
+// closure when the tape instructions left over are simple (each operation
+// its small switch runs, see inlinePre), and the closure form otherwise,
+// with the bits of the plain tape (exact identity: the same operations in
+// the same order) for y and dydt of every length up to one past the
+// outputs, so both the unrolled part and the loop part of inline_gen.go run.
+func TestInlinePre(t *testing.T) {
+	cases := []struct {
+		name   string
+		outs   []string
+		pre    Op // an operation the tape keeps
+		inline bool
+	}{
+		{"negation (the Rössler rates)", []string{"-y - z", "x + a*y", "b + z*(x - a)"}, OpNeg, true},
+		{"shared sum", []string{"(x + y)*z", "(x + y)*a"}, OpAdd, true},
+		{"shared difference", []string{"(x - y)*z", "(x - y)*a"}, OpSub, true},
+		{"shared product", []string{"x*y*z", "x*y*a", "t"}, OpMul, true},
+		{"shared quotient", []string{"(x/y)*z", "(x/y)*a", "y", "z - x"}, OpDiv, true},
+		{"shared square", []string{"x^2*z"}, opSq, true},
+		{"shared sine", []string{"sin(x)*z", "sin(x)*a"}, OpSin, false},
+	}
+	rng := rand.New(rand.NewPCG(41, 42))
+	for _, c := range cases {
+		g := NewGraph(testVars)
+		outs := make([]Expr, len(c.outs))
+		for i, s := range c.outs {
+			e, err := g.Parse(s)
+			if err != nil {
+				t.Fatal(err)
+			}
+			outs[i] = e
+		}
+		p := g.Compile(outs)
+		pl := p.plan()
+		found := false
+		for _, w := range pl.pre {
+			found = found || Op(w) == c.pre
+		}
+		if !found || !pl.inline {
+			t.Fatalf("%s: %d tape instructions without op %d, or outputs without inline kinds (%v)", c.name, len(pl.pre), c.pre, pl.inline)
+		}
+		fast, tape := p.NewFloat64(), p.NewFloat64()
+		tape.rs = nil // force the plain tape
+		f := fast.FieldFunc()
+		name := runtime.FuncForPC(reflect.ValueOf(f).Pointer()).Name()
+		if got := strings.Contains(name, fmt.Sprintf("inlineField%d", len(outs))); got != c.inline {
+			t.Fatalf("%s: FieldFunc is %s, want the inline closure: %v", c.name, name, c.inline)
+		}
+		y, d := []float64{1, 2, 3, 1.5, 0.5}[:len(outs)], make([]float64, len(outs))
+		if n := testing.AllocsPerRun(100, func() { f(0, y, d) }); n != 0 {
+			t.Errorf("%s: FieldFunc allocates %v times", c.name, n)
+		}
+		for range 3 {
+			x := samplePoint(rng)
+			copy(fast.Vars(), x)
+			copy(tape.Vars(), x)
+			for ny := 0; ny < len(x); ny++ {
+				for nd := 0; nd <= len(outs)+1; nd++ {
+					a, b := make([]float64, nd), make([]float64, nd)
+					f(x[0], x[1:1+ny], a)
+					tape.Field(x[0], x[1:1+ny], b)
+					for i := range a {
+						if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
+							t.Fatalf("%s (y %d, dydt %d), output %d: FieldFunc %v, tape %v", c.name, ny, nd, i, a[i], b[i])
+						}
+					}
+				}
+			}
+		}
+	}
+}

@@ -362,13 +362,20 @@ func (e *Float64) Field(t float64, y, dydt []float64) {
 // FieldFunc returns Field as a function value that holds the evaluator's
 // registers directly and evaluates each output by one specialised closure
 // (see fieldPlan), written straight into dydt; for up to four outputs the
-// calls are unrolled. When there are at most four outputs, nothing is left
-// to run on the tape and every output has an inline kind (see inlineOut),
-// the outputs are evaluated in place instead, by a switch on each kind and
-// no call (inline_gen.go). The parameters are read from the registers at
+// calls are unrolled. When there are at most four outputs, every output
+// has an inline kind (see inlineOut) and what is left to run on the tape is
+// simple (+ - * /, squares and negations, see inlinePre), the outputs are
+// evaluated in place instead, by a switch on each kind and no call
+// (inline_gen.go). The parameters are read from the registers at
 // every call, so values written into Vars later take effect. The results
 // are bit-identical to Field.
 func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
+	switch forceTier {
+	case tierTape:
+		return e.tapeField
+	case tierFused:
+		return e.Field
+	}
 	rs := e.rs
 	nstate := e.p.nvar - 1
 	if rs == nil || nstate < 0 {
@@ -390,24 +397,25 @@ func (e *Float64) FieldFunc() func(t float64, y, dydt []float64) {
 			dydt[i] = f(rs)
 		}
 	}
+	// When there are at most four outputs, every output has an inline kind
+	// and the tape instructions left are simple, the outputs are evaluated
+	// in place, with no call at all (inline_gen.go).
+	if len(outs) <= nstate && pl.inline && inlinePre(pre) && forceTier != tierClosure {
+		switch k := pl.kinds; len(k) {
+		case 1:
+			return inlineField1(rs, (*[1]inlineOut)(k), pre, nstate)
+		case 2:
+			return inlineField2(rs, (*[2]inlineOut)(k), pre, nstate)
+		case 3:
+			return inlineField3(rs, (*[3]inlineOut)(k), pre, nstate)
+		case 4:
+			return inlineField4(rs, (*[4]inlineOut)(k), pre, nstate)
+		}
+	}
 	// Up to four outputs the calls are unrolled; when y has one value per
 	// output and nothing runs on the tape, the lean version copies the
 	// state without a loop.
 	if len(outs) <= nstate && len(pre) == 0 {
-		// When every output has an inline kind, the lean version evaluates
-		// them in place, with no call at all (inline_gen.go).
-		if pl.inline {
-			switch k := pl.kinds; len(k) {
-			case 1:
-				return inlineField1(rs, (*[1]inlineOut)(k), nstate)
-			case 2:
-				return inlineField2(rs, (*[2]inlineOut)(k), nstate)
-			case 3:
-				return inlineField3(rs, (*[3]inlineOut)(k), nstate)
-			case 4:
-				return inlineField4(rs, (*[4]inlineOut)(k), nstate)
-			}
-		}
 		switch len(outs) {
 		case 1:
 			f0 := outs[0]

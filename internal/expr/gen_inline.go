@@ -8,10 +8,12 @@
 // and a dydt long enough: the state is copied without a loop and each
 // output has its own switch, unrolled, writing straight into dydt; the
 // switch of the last output returns from its cases. The second serves any
-// other lengths, with one switch in a loop over the outputs. Neither calls
-// anything, so the closure needs no stack frame; a call on the rare path
-// (to the closure form, say) would give every call a frame, which measured
-// dearer than the second copy of the switch.
+// other lengths, with one switch in a loop over the outputs. Both first
+// run the instructions no output absorbed (pre: one + - * / or square or
+// negation each, see inlinePre in closure.go) by a small switch in a loop.
+// Nothing calls anything, so the closure needs no stack frame; a call on
+// the rare path (to the closure form, say) would give every call a frame,
+// which measured dearer than the second copy of the switch.
 package main
 
 import (
@@ -139,6 +141,29 @@ func site(w *bytes.Buffer, k int, last bool, dst string) {
 	fmt.Fprintf(w, ":\n\t\t%s[%s] = %s%s\n\t}\n", dst, kv, reg('a'), end)
 }
 
+// preLoop runs the tape instructions in pre, each one of the operations
+// inlinePre (closure.go) lets through, in tape order.
+const preLoop = `	for _, w := range pre {
+		x := r[uint8(w>>16)]
+		var v float64
+		switch Op(w) {
+		case OpAdd:
+			v = x + r[uint8(w>>24)]
+		case OpSub:
+			v = x - r[uint8(w>>24)]
+		case OpMul:
+			v = float64(x * r[uint8(w>>24)])
+		case OpDiv:
+			v = x / r[uint8(w>>24)]
+		case opSq:
+			v = float64(x * x)
+		default: // OpNeg, the only other operation inlinePre lets through
+			v = -x
+		}
+		r[uint8(w>>8)] = v
+	}
+`
+
 // list returns f(0), f(1), ..., f(n-1) joined by commas.
 func list(n int, f func(k int) string) string {
 	var s string
@@ -163,10 +188,10 @@ package expr
 		packs := list(n, func(k int) string { return fmt.Sprintf("o[%d].word()", k) })
 		fmt.Fprintf(&w, `// inlineField%[1]d returns Field for the %[1]d outputs o over the registers rs
 // (nstate state slots), each output evaluated in place by a switch on its
-// kind. A y of %[1]d values with a dydt of at least %[1]d takes the unrolled
-// switches; other lengths copy the state by a loop and evaluate the
-// outputs that fit in dydt by the switch in a loop.
-func inlineField%[1]d(rs *[256]float64, o *[%[1]d]inlineOut, nstate int) func(t float64, y, dydt []float64) {
+// kind after the instructions pre. A y of %[1]d values with a dydt of at
+// least %[1]d takes the unrolled switches; other lengths copy the state by a
+// loop and evaluate the outputs that fit in dydt by the switch in a loop.
+func inlineField%[1]d(rs *[256]float64, o *[%[1]d]inlineOut, pre []uint64, nstate int) func(t float64, y, dydt []float64) {
 	%[2]s := %[3]s
 	ws := [%[1]d]uint64{%[2]s}
 	return func(t float64, y, dydt []float64) {
@@ -178,6 +203,7 @@ func inlineField%[1]d(rs *[256]float64, o *[%[1]d]inlineOut, nstate int) func(t 
 		for k := range n {
 			fmt.Fprintf(&w, "\t\tr[%d] = s[%d]\n", k+1, k)
 		}
+		w.WriteString(preLoop)
 		for k := range n {
 			site(&w, k, k == n-1, "out")
 		}
@@ -185,7 +211,7 @@ func inlineField%[1]d(rs *[256]float64, o *[%[1]d]inlineOut, nstate int) func(t 
 	for i := 0; i < len(y) && i < nstate; i++ {
 		r[uint8(1+i)] = y[i] // 1+i <= nstate < 256
 	}
-	for k := range min(len(dydt), %d) {
+`+preLoop+`	for k := range min(len(dydt), %d) {
 		w := ws[k]
 `, n)
 		site(&w, -1, false, "dydt")

@@ -4,10 +4,10 @@ package expr
 
 // inlineField1 returns Field for the 1 outputs o over the registers rs
 // (nstate state slots), each output evaluated in place by a switch on its
-// kind. A y of 1 values with a dydt of at least 1 takes the unrolled
-// switches; other lengths copy the state by a loop and evaluate the
-// outputs that fit in dydt by the switch in a loop.
-func inlineField1(rs *[256]float64, o *[1]inlineOut, nstate int) func(t float64, y, dydt []float64) {
+// kind after the instructions pre. A y of 1 values with a dydt of at
+// least 1 takes the unrolled switches; other lengths copy the state by a
+// loop and evaluate the outputs that fit in dydt by the switch in a loop.
+func inlineField1(rs *[256]float64, o *[1]inlineOut, pre []uint64, nstate int) func(t float64, y, dydt []float64) {
 	w0 := o[0].word()
 	ws := [1]uint64{w0}
 	return func(t float64, y, dydt []float64) {
@@ -16,6 +16,25 @@ func inlineField1(rs *[256]float64, o *[1]inlineOut, nstate int) func(t float64,
 		if len(y) == 1 && len(dydt) >= 1 {
 			s, out := (*[1]float64)(y), (*[1]float64)(dydt)
 			r[1] = s[0]
+			for _, w := range pre {
+				x := r[uint8(w>>16)]
+				var v float64
+				switch Op(w) {
+				case OpAdd:
+					v = x + r[uint8(w>>24)]
+				case OpSub:
+					v = x - r[uint8(w>>24)]
+				case OpMul:
+					v = float64(x * r[uint8(w>>24)])
+				case OpDiv:
+					v = x / r[uint8(w>>24)]
+				case opSq:
+					v = float64(x * x)
+				default: // OpNeg, the only other operation inlinePre lets through
+					v = -x
+				}
+				r[uint8(w>>8)] = v
+			}
 			switch uint8(w0) {
 			case kAdd:
 				out[0] = r[uint8(w0>>8)] + r[uint8(w0>>16)]
@@ -502,6 +521,25 @@ func inlineField1(rs *[256]float64, o *[1]inlineOut, nstate int) func(t float64,
 		for i := 0; i < len(y) && i < nstate; i++ {
 			r[uint8(1+i)] = y[i] // 1+i <= nstate < 256
 		}
+		for _, w := range pre {
+			x := r[uint8(w>>16)]
+			var v float64
+			switch Op(w) {
+			case OpAdd:
+				v = x + r[uint8(w>>24)]
+			case OpSub:
+				v = x - r[uint8(w>>24)]
+			case OpMul:
+				v = float64(x * r[uint8(w>>24)])
+			case OpDiv:
+				v = x / r[uint8(w>>24)]
+			case opSq:
+				v = float64(x * x)
+			default: // OpNeg, the only other operation inlinePre lets through
+				v = -x
+			}
+			r[uint8(w>>8)] = v
+		}
 		for k := range min(len(dydt), 1) {
 			w := ws[k]
 			switch uint8(w) {
@@ -832,10 +870,10 @@ func inlineField1(rs *[256]float64, o *[1]inlineOut, nstate int) func(t float64,
 
 // inlineField2 returns Field for the 2 outputs o over the registers rs
 // (nstate state slots), each output evaluated in place by a switch on its
-// kind. A y of 2 values with a dydt of at least 2 takes the unrolled
-// switches; other lengths copy the state by a loop and evaluate the
-// outputs that fit in dydt by the switch in a loop.
-func inlineField2(rs *[256]float64, o *[2]inlineOut, nstate int) func(t float64, y, dydt []float64) {
+// kind after the instructions pre. A y of 2 values with a dydt of at
+// least 2 takes the unrolled switches; other lengths copy the state by a
+// loop and evaluate the outputs that fit in dydt by the switch in a loop.
+func inlineField2(rs *[256]float64, o *[2]inlineOut, pre []uint64, nstate int) func(t float64, y, dydt []float64) {
 	w0, w1 := o[0].word(), o[1].word()
 	ws := [2]uint64{w0, w1}
 	return func(t float64, y, dydt []float64) {
@@ -845,6 +883,25 @@ func inlineField2(rs *[256]float64, o *[2]inlineOut, nstate int) func(t float64,
 			s, out := (*[2]float64)(y), (*[2]float64)(dydt)
 			r[1] = s[0]
 			r[2] = s[1]
+			for _, w := range pre {
+				x := r[uint8(w>>16)]
+				var v float64
+				switch Op(w) {
+				case OpAdd:
+					v = x + r[uint8(w>>24)]
+				case OpSub:
+					v = x - r[uint8(w>>24)]
+				case OpMul:
+					v = float64(x * r[uint8(w>>24)])
+				case OpDiv:
+					v = x / r[uint8(w>>24)]
+				case opSq:
+					v = float64(x * x)
+				default: // OpNeg, the only other operation inlinePre lets through
+					v = -x
+				}
+				r[uint8(w>>8)] = v
+			}
 			switch uint8(w0) {
 			case kAdd:
 				out[0] = r[uint8(w0>>8)] + r[uint8(w0>>16)]
@@ -1653,6 +1710,25 @@ func inlineField2(rs *[256]float64, o *[2]inlineOut, nstate int) func(t float64,
 		for i := 0; i < len(y) && i < nstate; i++ {
 			r[uint8(1+i)] = y[i] // 1+i <= nstate < 256
 		}
+		for _, w := range pre {
+			x := r[uint8(w>>16)]
+			var v float64
+			switch Op(w) {
+			case OpAdd:
+				v = x + r[uint8(w>>24)]
+			case OpSub:
+				v = x - r[uint8(w>>24)]
+			case OpMul:
+				v = float64(x * r[uint8(w>>24)])
+			case OpDiv:
+				v = x / r[uint8(w>>24)]
+			case opSq:
+				v = float64(x * x)
+			default: // OpNeg, the only other operation inlinePre lets through
+				v = -x
+			}
+			r[uint8(w>>8)] = v
+		}
 		for k := range min(len(dydt), 2) {
 			w := ws[k]
 			switch uint8(w) {
@@ -1983,10 +2059,10 @@ func inlineField2(rs *[256]float64, o *[2]inlineOut, nstate int) func(t float64,
 
 // inlineField3 returns Field for the 3 outputs o over the registers rs
 // (nstate state slots), each output evaluated in place by a switch on its
-// kind. A y of 3 values with a dydt of at least 3 takes the unrolled
-// switches; other lengths copy the state by a loop and evaluate the
-// outputs that fit in dydt by the switch in a loop.
-func inlineField3(rs *[256]float64, o *[3]inlineOut, nstate int) func(t float64, y, dydt []float64) {
+// kind after the instructions pre. A y of 3 values with a dydt of at
+// least 3 takes the unrolled switches; other lengths copy the state by a
+// loop and evaluate the outputs that fit in dydt by the switch in a loop.
+func inlineField3(rs *[256]float64, o *[3]inlineOut, pre []uint64, nstate int) func(t float64, y, dydt []float64) {
 	w0, w1, w2 := o[0].word(), o[1].word(), o[2].word()
 	ws := [3]uint64{w0, w1, w2}
 	return func(t float64, y, dydt []float64) {
@@ -1997,6 +2073,25 @@ func inlineField3(rs *[256]float64, o *[3]inlineOut, nstate int) func(t float64,
 			r[1] = s[0]
 			r[2] = s[1]
 			r[3] = s[2]
+			for _, w := range pre {
+				x := r[uint8(w>>16)]
+				var v float64
+				switch Op(w) {
+				case OpAdd:
+					v = x + r[uint8(w>>24)]
+				case OpSub:
+					v = x - r[uint8(w>>24)]
+				case OpMul:
+					v = float64(x * r[uint8(w>>24)])
+				case OpDiv:
+					v = x / r[uint8(w>>24)]
+				case opSq:
+					v = float64(x * x)
+				default: // OpNeg, the only other operation inlinePre lets through
+					v = -x
+				}
+				r[uint8(w>>8)] = v
+			}
 			switch uint8(w0) {
 			case kAdd:
 				out[0] = r[uint8(w0>>8)] + r[uint8(w0>>16)]
@@ -3127,6 +3222,25 @@ func inlineField3(rs *[256]float64, o *[3]inlineOut, nstate int) func(t float64,
 		for i := 0; i < len(y) && i < nstate; i++ {
 			r[uint8(1+i)] = y[i] // 1+i <= nstate < 256
 		}
+		for _, w := range pre {
+			x := r[uint8(w>>16)]
+			var v float64
+			switch Op(w) {
+			case OpAdd:
+				v = x + r[uint8(w>>24)]
+			case OpSub:
+				v = x - r[uint8(w>>24)]
+			case OpMul:
+				v = float64(x * r[uint8(w>>24)])
+			case OpDiv:
+				v = x / r[uint8(w>>24)]
+			case opSq:
+				v = float64(x * x)
+			default: // OpNeg, the only other operation inlinePre lets through
+				v = -x
+			}
+			r[uint8(w>>8)] = v
+		}
 		for k := range min(len(dydt), 3) {
 			w := ws[k]
 			switch uint8(w) {
@@ -3457,10 +3571,10 @@ func inlineField3(rs *[256]float64, o *[3]inlineOut, nstate int) func(t float64,
 
 // inlineField4 returns Field for the 4 outputs o over the registers rs
 // (nstate state slots), each output evaluated in place by a switch on its
-// kind. A y of 4 values with a dydt of at least 4 takes the unrolled
-// switches; other lengths copy the state by a loop and evaluate the
-// outputs that fit in dydt by the switch in a loop.
-func inlineField4(rs *[256]float64, o *[4]inlineOut, nstate int) func(t float64, y, dydt []float64) {
+// kind after the instructions pre. A y of 4 values with a dydt of at
+// least 4 takes the unrolled switches; other lengths copy the state by a
+// loop and evaluate the outputs that fit in dydt by the switch in a loop.
+func inlineField4(rs *[256]float64, o *[4]inlineOut, pre []uint64, nstate int) func(t float64, y, dydt []float64) {
 	w0, w1, w2, w3 := o[0].word(), o[1].word(), o[2].word(), o[3].word()
 	ws := [4]uint64{w0, w1, w2, w3}
 	return func(t float64, y, dydt []float64) {
@@ -3472,6 +3586,25 @@ func inlineField4(rs *[256]float64, o *[4]inlineOut, nstate int) func(t float64,
 			r[2] = s[1]
 			r[3] = s[2]
 			r[4] = s[3]
+			for _, w := range pre {
+				x := r[uint8(w>>16)]
+				var v float64
+				switch Op(w) {
+				case OpAdd:
+					v = x + r[uint8(w>>24)]
+				case OpSub:
+					v = x - r[uint8(w>>24)]
+				case OpMul:
+					v = float64(x * r[uint8(w>>24)])
+				case OpDiv:
+					v = x / r[uint8(w>>24)]
+				case opSq:
+					v = float64(x * x)
+				default: // OpNeg, the only other operation inlinePre lets through
+					v = -x
+				}
+				r[uint8(w>>8)] = v
+			}
 			switch uint8(w0) {
 			case kAdd:
 				out[0] = r[uint8(w0>>8)] + r[uint8(w0>>16)]
@@ -4923,6 +5056,25 @@ func inlineField4(rs *[256]float64, o *[4]inlineOut, nstate int) func(t float64,
 		}
 		for i := 0; i < len(y) && i < nstate; i++ {
 			r[uint8(1+i)] = y[i] // 1+i <= nstate < 256
+		}
+		for _, w := range pre {
+			x := r[uint8(w>>16)]
+			var v float64
+			switch Op(w) {
+			case OpAdd:
+				v = x + r[uint8(w>>24)]
+			case OpSub:
+				v = x - r[uint8(w>>24)]
+			case OpMul:
+				v = float64(x * r[uint8(w>>24)])
+			case OpDiv:
+				v = x / r[uint8(w>>24)]
+			case opSq:
+				v = float64(x * x)
+			default: // OpNeg, the only other operation inlinePre lets through
+				v = -x
+			}
+			r[uint8(w>>8)] = v
 		}
 		for k := range min(len(dydt), 4) {
 			w := ws[k]
