@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/big"
 
+	"github.com/plumbdyn/plumb/internal/bigadd"
 	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
@@ -58,14 +59,14 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 		yn[i] = nf()
 	}
 	horner := func(at *big.Float) error {
-		dt.Sub(at, t)
+		bigadd.Sub(dt, at, t)
 		for i := range n {
 			// Horner with two values in turn: big.Float's Mul allocates
 			// when the result aliases an operand.
 			s.SetInt64(0)
 			for j := p; j >= 0; j-- {
 				sm.Mul(s, dt)
-				s.Add(sm, c[i][j])
+				bigadd.Add(s, sm, c[i][j])
 			}
 			if s.IsInf() {
 				return r.fail(tf, h, fmt.Errorf("component %d: %w", i, ErrNonFinite))
@@ -132,15 +133,15 @@ func (r *taylorRun) runBig(f Series, y0 []float64, prec uint) (err error) {
 		hb.SetFloat64(h)
 		if land != nil {
 			hb.Set(land)
-			if !(h > 0) || s.Add(t, hb).Cmp(t) == 0 {
+			if !(h > 0) || bigadd.Add(s, t, hb).Cmp(t) == 0 {
 				continue // a kink at the point itself: restart here
 			}
 		}
-		if !(h > 0) || math.IsInf(h, 0) || s.Add(t, hb).Cmp(t) == 0 {
+		if !(h > 0) || math.IsInf(h, 0) || bigadd.Add(s, t, hb).Cmp(t) == 0 {
 			return r.fail(tf, h, ErrStepUnderflow)
 		}
 		r.stats(h)
-		tn.Add(t, hb)
+		bigadd.Add(tn, t, hb)
 		if err := horner(tn); err != nil {
 			return err
 		}

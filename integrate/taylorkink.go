@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/big"
 
+	"github.com/plumbdyn/plumb/internal/bigadd"
 	"github.com/plumbdyn/plumb/internal/dd"
 )
 
@@ -441,14 +442,14 @@ func (k *kinkTrack) polish(j int, a, b float64) *big.Float {
 		v.SetInt64(0)
 		dv.SetInt64(0)
 		for i := len(gb) - 1; i >= 0; i-- {
-			dv.Add(tmp.Mul(dv, tau), v)
-			v.Add(x.Mul(v, tau), gb[i])
+			bigadd.Add(dv, tmp.Mul(dv, tau), v)
+			bigadd.Add(v, x.Mul(v, tau), gb[i])
 		}
 		if dv.Sign() == 0 {
 			break
 		}
 		x.Quo(v, dv)
-		tmp.Sub(tau, x)
+		bigadd.Sub(tmp, tau, x)
 		if tmp.Cmp(lo) < 0 || tmp.Cmp(hi) > 0 {
 			break // Newton leaves the bracket: keep the bisection value
 		}

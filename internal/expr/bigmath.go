@@ -5,6 +5,7 @@ import (
 	"math/big"
 	"sync"
 
+	"github.com/plumbdyn/plumb/internal/bigadd"
 	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
@@ -55,7 +56,7 @@ func atanInv(n int64, prec uint) *big.Float {
 		t.Mul(t, x2)
 		t.Neg(t)
 		q := newF(prec).Quo(t, newF(prec).SetInt64(k))
-		sum.Add(sum, q)
+		bigadd.Add(sum, sum, q)
 		if q.Sign() == 0 || new(big.Float).Abs(q).Cmp(eps) < 0 {
 			return sum
 		}
@@ -71,7 +72,7 @@ func BigPi(prec uint) *big.Float {
 		a := atanInv(5, w)
 		b := atanInv(239, w)
 		p := newF(w).Mul(a, newF(w).SetInt64(16))
-		p.Sub(p, newF(w).Mul(b, newF(w).SetInt64(4)))
+		bigadd.Sub(p, p, newF(w).Mul(b, newF(w).SetInt64(4)))
 		constCache.pi = p
 	}
 	return newF(prec).Set(constCache.pi)
@@ -101,7 +102,7 @@ func atanhSeries(z *big.Float, prec uint) *big.Float {
 		if q.Sign() == 0 || q.MantExp(nil)-sum.MantExp(nil) < -int(prec) {
 			return sum
 		}
-		sum.Add(sum, q)
+		bigadd.Add(sum, sum, q)
 	}
 }
 
@@ -147,7 +148,7 @@ func BigExp(z, x *big.Float) *big.Float {
 	ex := x.MantExp(nil)
 	w := prec + guardBits + uint(max(ex, 0))
 	k := math.Round(xf / math.Ln2)
-	r := newF(w).Sub(x, newF(w).Mul(BigLn2(w), newF(w).SetFloat64(k)))
+	r := bigadd.Sub(newF(w), x, newF(w).Mul(BigLn2(w), newF(w).SetFloat64(k)))
 	s := uint(math.Sqrt(float64(prec))) + 1
 	w += s
 	r.SetPrec(w)
@@ -161,14 +162,14 @@ func BigExp(z, x *big.Float) *big.Float {
 		if t.Sign() == 0 || t.MantExp(nil)-sum.MantExp(nil) < -int(w) {
 			break
 		}
-		sum.Add(sum, t)
+		bigadd.Add(sum, sum, t)
 	}
 	two := newF(w).SetInt64(2)
 	for range s {
 		// e^(2r) - 1 = s(s+2)
-		sum.Mul(sum, newF(w).Add(sum, two))
+		sum.Mul(sum, bigadd.Add(newF(w), sum, two))
 	}
-	sum.Add(sum, newF(w).SetInt64(1))
+	bigadd.Add(sum, sum, newF(w).SetInt64(1))
 	sum.SetMantExp(sum, int(k))
 	return z.SetPrec(prec).Set(sum)
 }
@@ -193,8 +194,8 @@ func BigLog(z, x *big.Float) *big.Float {
 		e--
 	}
 	one := newF(w).SetInt64(1)
-	num := newF(w).Sub(m, one)
-	den := newF(w).Add(m, one)
+	num := bigadd.Sub(newF(w), m, one)
+	den := bigadd.Add(newF(w), m, one)
 	zz := newF(w).Quo(num, den)
 	var l *big.Float
 	if zz.Sign() == 0 {
@@ -206,7 +207,7 @@ func BigLog(z, x *big.Float) *big.Float {
 	if e != 0 {
 		ext := w + 64
 		l.SetPrec(ext)
-		l.Add(l, newF(ext).Mul(BigLn2(ext), newF(ext).SetInt64(int64(e))))
+		bigadd.Add(l, l, newF(ext).Mul(BigLn2(ext), newF(ext).SetInt64(int64(e))))
 	}
 	return z.SetPrec(prec).Set(l)
 }
@@ -229,8 +230,8 @@ func bigSinCos(x *big.Float, prec uint) (sin, cos *big.Float) {
 	if q.Sign() < 0 {
 		half.Neg(half)
 	}
-	kInt, _ := newF(w).Add(q, half).Int(nil)
-	r := newF(w).Sub(x, newF(w).Mul(halfPi, newF(w).SetInt(kInt)))
+	kInt, _ := bigadd.Add(newF(w), q, half).Int(nil)
+	r := bigadd.Sub(newF(w), x, newF(w).Mul(halfPi, newF(w).SetInt(kInt)))
 	quad := new(big.Int).Mod(kInt, big.NewInt(4)).Int64()
 	// Extra precision for small r (relative accuracy of sin near 0).
 	if r.Sign() != 0 {
@@ -249,8 +250,8 @@ func bigSinCos(x *big.Float, prec uint) (sin, cos *big.Float) {
 		ts.Mul(ts, r2)
 		ts.Quo(ts, newF(w).SetInt64((n+1)*(n+2)))
 		ts.Neg(ts)
-		c.Add(c, tc)
-		s.Add(s, ts)
+		bigadd.Add(c, c, tc)
+		bigadd.Add(s, s, ts)
 		if tc.Sign() == 0 || tc.MantExp(nil) < -int(w)-4 {
 			if ts.Sign() == 0 || ts.MantExp(nil)-s.MantExp(nil) < -int(w) {
 				break
@@ -335,9 +336,9 @@ func BigAtan(z, x *big.Float) *big.Float {
 	const halvings = 4
 	for range halvings {
 		d := newF(w).Mul(a, a)
-		d.Add(d, one)
+		bigadd.Add(d, d, one)
 		d.Sqrt(d)
-		d.Add(d, one)
+		bigadd.Add(d, d, one)
 		a.Quo(a, d)
 	}
 	if re := a.MantExp(nil); re < 0 {
@@ -348,7 +349,7 @@ func BigAtan(z, x *big.Float) *big.Float {
 	if inv {
 		p := BigPi(w)
 		p.SetMantExp(p, -1)
-		sum.Sub(p, sum)
+		bigadd.Sub(sum, p, sum)
 	}
 	if neg {
 		sum.Neg(sum)
@@ -368,7 +369,7 @@ func atanSeries(a *big.Float, prec uint) *big.Float {
 		if q.Sign() == 0 || q.MantExp(nil)-sum.MantExp(nil) < -int(prec) {
 			return sum
 		}
-		sum.Add(sum, q)
+		bigadd.Add(sum, sum, q)
 	}
 }
 
@@ -405,9 +406,9 @@ func BigAtan2(z, y, x *big.Float) *big.Float {
 	if x.Sign() < 0 {
 		p := BigPi(w)
 		if y.Sign() < 0 || (y.Sign() == 0 && y.Signbit()) {
-			a.Sub(a, p)
+			bigadd.Sub(a, a, p)
 		} else {
-			a.Add(a, p)
+			bigadd.Add(a, a, p)
 		}
 	}
 	return z.SetPrec(prec).Set(a)
@@ -432,7 +433,7 @@ func BigSinh(z, x *big.Float) *big.Float {
 		return z.SetPrec(prec).SetInf(true)
 	}
 	inv := newF(w).Quo(newF(w).SetInt64(1), e)
-	e.Sub(e, inv)
+	bigadd.Sub(e, e, inv)
 	e.SetMantExp(e, -1)
 	return z.SetPrec(prec).Set(e)
 }
@@ -449,7 +450,7 @@ func BigCosh(z, x *big.Float) *big.Float {
 		return z.SetPrec(prec).SetInf(false)
 	}
 	inv := newF(w).Quo(newF(w).SetInt64(1), e)
-	e.Add(e, inv)
+	bigadd.Add(e, e, inv)
 	e.SetMantExp(e, -1)
 	return z.SetPrec(prec).Set(e)
 }

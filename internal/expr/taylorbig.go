@@ -3,6 +3,8 @@ package expr
 import (
 	"fmt"
 	"math/big"
+
+	"github.com/plumbdyn/plumb/internal/bigadd"
 )
 
 // TaylorBig is Taylor in math/big.Float arithmetic at a precision the
@@ -105,7 +107,7 @@ func (t *TaylorBig) bconv(z *big.Float, a, b []*big.Float, k, lo, hi int) *big.F
 	x, y := t.acc[0], t.acc[1]
 	x.SetInt64(0)
 	for j := lo; j <= hi; j++ {
-		y.Add(x, t.m.Mul(a[j], b[k-j]))
+		bigadd.Add(y, x, t.m.Mul(a[j], b[k-j]))
 		x, y = y, x
 	}
 	return z.Set(x)
@@ -117,7 +119,7 @@ func (t *TaylorBig) bwconv(z *big.Float, a, b []*big.Float, k, hi int) *big.Floa
 	x.SetInt64(0)
 	for j := 1; j <= hi; j++ {
 		t.m.Mul(a[j], b[k-j])
-		y.Add(x, t.q.Mul(t.m, t.g.SetInt64(int64(j))))
+		bigadd.Add(y, x, t.q.Mul(t.m, t.g.SetInt64(int64(j))))
 		x, y = y, x
 	}
 	return z.Set(x)
@@ -146,9 +148,9 @@ func (t *TaylorBig) order(k int) {
 		}
 		switch in.op {
 		case OpAdd:
-			v[k].Add(u[k], w[k])
+			bigadd.Add(v[k], u[k], w[k])
 		case OpSub:
-			v[k].Sub(u[k], w[k])
+			bigadd.Sub(v[k], u[k], w[k])
 		case OpNeg:
 			v[k].Neg(u[k])
 		case OpMul:
@@ -157,7 +159,7 @@ func (t *TaylorBig) order(k int) {
 			v[k].Set(t.bconv(s, u, u, k, 0, k))
 		case OpDiv:
 			t.bconv(s, v, w, k, 0, k-1)
-			v[k].Quo(s.Sub(u[k], s), w[0])
+			v[k].Quo(bigadd.Sub(s, u[k], s), w[0])
 		case opPowi:
 			t.powi(i, u, v, int(in.b), k)
 		case OpPow:
@@ -170,7 +172,7 @@ func (t *TaylorBig) order(k int) {
 			}
 			t.bwconv(s, l, u, k, k-1)
 			s.Quo(s, t.g.SetInt64(fk))
-			l[k].Quo(s.Sub(u[k], s), u[0])
+			l[k].Quo(bigadd.Sub(s, u[k], s), u[0])
 			m[k].Set(t.bconv(s, w, l, k, 0, k))
 			t.bwconv(s, m, v, k, k)
 			v[k].Quo(s, t.g.SetInt64(fk))
@@ -187,7 +189,7 @@ func (t *TaylorBig) order(k int) {
 			} else {
 				t.bwconv(s, v, u, k, k-1)
 				s.Quo(s, t.g.SetInt64(fk))
-				v[k].Quo(s.Sub(u[k], s), u[0])
+				v[k].Quo(bigadd.Sub(s, u[k], s), u[0])
 			}
 		case OpSqrt:
 			if k == 0 {
@@ -197,7 +199,7 @@ func (t *TaylorBig) order(k int) {
 				v[0].Sqrt(u[0])
 			} else {
 				t.bconv(s, v, v, k, 1, k-1)
-				s.Sub(u[k], s)
+				bigadd.Sub(s, u[k], s)
 				v[k].Quo(s, t.q.Mul(v[0], t.g.SetInt64(2)))
 			}
 		case OpSin, OpCos, OpSinh, OpCosh:
@@ -228,10 +230,10 @@ func (t *TaylorBig) order(k int) {
 			if k == 0 {
 				if in.op == OpTan {
 					need(BigTan(v[0], u[0]), OpTan)
-					q[0].Add(t.g.SetInt64(1), t.m.Mul(v[0], v[0]))
+					bigadd.Add(q[0], t.g.SetInt64(1), t.m.Mul(v[0], v[0]))
 				} else {
 					need(BigTanh(v[0], u[0]), OpTanh)
-					q[0].Sub(t.g.SetInt64(1), t.m.Mul(v[0], v[0]))
+					bigadd.Sub(q[0], t.g.SetInt64(1), t.m.Mul(v[0], v[0]))
 				}
 				break
 			}
@@ -245,7 +247,7 @@ func (t *TaylorBig) order(k int) {
 			q := t.aux[i]
 			if k == 0 {
 				need(BigAtan(v[0], u[0]), OpAtan)
-				q[0].Add(t.g.SetInt64(1), t.m.Mul(u[0], u[0]))
+				bigadd.Add(q[0], t.g.SetInt64(1), t.m.Mul(u[0], u[0]))
 				break
 			}
 			q[k].Set(t.bconv(s, u, u, k, 0, k))
@@ -253,38 +255,38 @@ func (t *TaylorBig) order(k int) {
 			s.SetInt64(0)
 			for j := 1; j <= k-1; j++ {
 				t.m.Mul(q[j], v[k-j])
-				s.Add(s, t.q.Mul(t.m, t.g.SetInt64(int64(k-j))))
+				bigadd.Add(s, s, t.q.Mul(t.m, t.g.SetInt64(int64(k-j))))
 			}
 			t.m.Mul(t.g.SetInt64(fk), u[k])
-			s.Sub(t.m, s)
+			bigadd.Sub(s, t.m, s)
 			v[k].Quo(s, t.m.Mul(t.g.SetInt64(fk), q[0]))
 		case OpAtan2:
 			q := t.aux[i]
 			if k == 0 {
 				need(BigAtan2(v[0], u[0], w[0]), OpAtan2)
-				q[0].Add(t.m.Mul(u[0], u[0]), t.g.Mul(w[0], w[0]))
+				bigadd.Add(q[0], t.m.Mul(u[0], u[0]), t.g.Mul(w[0], w[0]))
 				break
 			}
 			// q_k = (u²)_k + (w²)_k, with au2 as the second sum.
 			t.bconv(s, u, u, k, 0, k)
 			q[k].Set(s)
 			t.bconv(s, w, w, k, 0, k)
-			q[k].Add(q[k], s)
+			bigadd.Add(q[k], q[k], s)
 			// g = Σ_{j=0..k-1} (k-j)(w_j u_{k-j} - u_j w_{k-j}), kept in au2[k].
 			gs := t.au2[i][k]
 			gs.SetInt64(0)
 			for j := 0; j <= k-1; j++ {
 				t.m.Mul(w[j], u[k-j])
 				t.g.Mul(u[j], w[k-j])
-				t.m.Sub(t.m, t.g)
-				gs.Add(gs, t.q.Mul(t.m, t.g.SetInt64(int64(k-j))))
+				bigadd.Sub(t.m, t.m, t.g)
+				bigadd.Add(gs, gs, t.q.Mul(t.m, t.g.SetInt64(int64(k-j))))
 			}
 			s.SetInt64(0)
 			for j := 1; j <= k-1; j++ {
 				t.m.Mul(q[j], v[k-j])
-				s.Add(s, t.q.Mul(t.m, t.g.SetInt64(int64(k-j))))
+				bigadd.Add(s, s, t.q.Mul(t.m, t.g.SetInt64(int64(k-j))))
 			}
-			s.Sub(gs, s)
+			bigadd.Sub(s, gs, s)
 			v[k].Quo(s, t.m.Mul(t.g.SetInt64(fk), q[0]))
 		case OpAbs:
 			if sd := sideOf(t.side[i], u[0].Sign()); sd < 0 {
@@ -351,7 +353,7 @@ func (t *TaylorBig) powi(i int, u, v []*big.Float, n, k int) {
 	}
 	t.bconv(t.s, v, r, k, 0, k-1)
 	if k == 0 {
-		t.s.Sub(t.g.SetInt64(1), t.s)
+		bigadd.Sub(t.s, t.g.SetInt64(1), t.s)
 	} else {
 		t.s.Neg(t.s)
 	}
