@@ -77,6 +77,10 @@ type Report struct {
 	Exact *ExactReference `json:"exact_reference,omitempty"`
 	// Reversal is the reversibility check, nil if skipped.
 	Reversal *ReversalReport `json:"reversal,omitempty"`
+	// Recorded describes an audit of runs computed by another program
+	// (TrustRuns): the compared span and grid, each run's source, and how
+	// the exponent was estimated from the runs; nil otherwise.
+	Recorded *RecordedReport `json:"recorded,omitempty"`
 
 	// Caution is the standing caution (see the Caution constant).
 	Caution string `json:"caution"`

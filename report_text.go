@@ -21,7 +21,9 @@ func (rep *Report) Write(w io.Writer) error {
 	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g%s at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, u, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
 	fmt.Fprintf(&b, "distance: %s\n", rep.Distance)
 	rows := rep.Rungs
-	if ex := rep.Exact; ex != nil && ex.SetAside != "" {
+	if rc := rep.Recorded; rc != nil {
+		rc.writeHead(&b)
+	} else if ex := rep.Exact; ex != nil && ex.SetAside != "" {
 		fmt.Fprintf(&b, "reference: %s (the multiprecision reference was set aside: %s)\n\n", rep.Reference.Name, ex.SetAside)
 	} else if ex != nil {
 		kinks := ""
@@ -104,6 +106,9 @@ func (rep *Report) Write(w io.Writer) error {
 		fmt.Fprintf(&b, "%d rung(s) failed; their curves end where they stopped\n", rep.Failed)
 	}
 	rep.writeYourRun(&b)
+	if rc := rep.Recorded; rc != nil {
+		rc.writeNotes(&b)
+	}
 	switch {
 	case rep.Verdict == Incomplete:
 		b.WriteString("the audit did not finish: the table holds the rungs completed, and no trusted horizon is read off them\n")
