@@ -232,10 +232,14 @@ func (rep *Report) finishRuns(effects []RunEffect, lambda float64) {
 		rep.Exponent = givenExponent(lambda)
 	} else {
 		var why string
-		rep.Exponent, rc.ExponentFrom, why = runsExponent(rep.Times, rep.Spread, rep.Rungs, effects)
+		var nudged bool
+		rep.Exponent, rc.ExponentFrom, nudged, why = runsExponent(rep.Times, rep.Spread, rep.Rungs, effects)
 		if rep.Exponent != nil {
 			rc.ExponentNote = "an estimate from the runs: the growth rate fitted to the divergence of " + joinNames(rc.ExponentFrom) +
 				", not a tangent-space computation on the model"
+			if !nudged {
+				rc.ExponentNote += " (no nudged-start or restart run grows exponentially: runs that keep adding error as they go, as at another tolerance, tend to grow slower than the exponent; add a run from a nudged start)"
+			}
 			lambda = math.Max(rep.Exponent.Value, 0)
 		} else {
 			rep.ExponentError = why
@@ -260,10 +264,12 @@ func (rep *Report) finishRuns(effects []RunEffect, lambda float64) {
 // among them where there are any), each rate's standard error widened for
 // the serial correlation of its fit's residuals (serialRateErr), with the
 // larger of the mean's standard error and that of the rates' scatter; from
-// names the rungs used, why says why there is none.
-func runsExponent(times []float64, spread float64, rungs []RungReport, effects []RunEffect) (e *ExponentEstimate, from []string, why string) {
+// names the rungs used, nudged whether they are start or restart runs, why
+// says why there is none.
+func runsExponent(times []float64, spread float64, rungs []RungReport, effects []RunEffect) (e *ExponentEstimate, from []string, nudged bool, why string) {
 	var pick []int
 	for pass := range 2 {
+		nudged = pass == 0
 		for i, r := range rungs {
 			if r.Error != "" || r.Growth != integrate.GrowthExponential.String() || !(r.Rate > 0) {
 				continue
@@ -278,7 +284,7 @@ func runsExponent(times []float64, spread float64, rungs []RungReport, effects [
 		}
 	}
 	if len(pick) == 0 {
-		return nil, nil, "no run's divergence grows exponentially, so no growth rate estimates the exponent"
+		return nil, nil, false, "no run's divergence grows exponentially, so no growth rate estimates the exponent"
 	}
 	var sw, swr, mean float64
 	weighted := true
@@ -313,7 +319,7 @@ func runsExponent(times []float64, spread float64, rungs []RungReport, effects [
 	if e.Value > 0 {
 		e.LyapunovTime = clean(1 / e.Value)
 	}
-	return e, from, ""
+	return e, from, nudged, ""
 }
 
 // recordedRunReport describes run r in the report.
@@ -388,6 +394,9 @@ func (a *runsAuditor) compare(r *RecordedRun, i int, tol, spread float64) (RungR
 	rd.SameAsReference = same
 	out.Start = start
 	ts := a.times[start:]
+	if r.Effect == VariesRestart {
+		out.RestartAt = ts[0]
+	}
 	out.AgreesUntil, out.Departed = horizonOn(ts, d, tol)
 	g := integrate.FitDivergence(ts, d, ts[0], spread)
 	out.Growth = g.Kind.String()
