@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"strings"
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/detmath"
@@ -354,7 +355,7 @@ func (a *runsAuditor) resample(r *RecordedRun, i, start int) (y []float64, inter
 
 // compare compares run r (the i-th) with the reference.
 func (a *runsAuditor) compare(r *RecordedRun, i int, tol, spread float64) (RungReport, RecordedRunReport, error) {
-	out := RungReport{Name: r.Label, ID: slug(r.Label), Effect: string(r.Effect), Delta0: r.Delta0,
+	out := RungReport{Name: r.Label, ID: labelID(r.Label), Effect: string(r.Effect), Delta0: r.Delta0,
 		Growth: integrate.GrowthUnknown.String(), AgreesUntil: a.times[0], Divergence: []float64{}}
 	if r.Failure != nil {
 		out.Error = r.Failure.Why
@@ -565,4 +566,20 @@ func serialRateErr(ts, d []float64, spread, se float64) float64 {
 		return se
 	}
 	return se * math.Sqrt((1+r1)/(1-r1))
+}
+
+// labelID is a run's label as a stable machine name (the CSV column): in
+// lower case, with every character other than ASCII letters, digits, '_',
+// '-' and '.' turned into '_' ("rung" when nothing is left).
+func labelID(label string) string {
+	b := []byte(strings.ToLower(strings.TrimSpace(label)))
+	for i, c := range b {
+		if !(c >= 'a' && c <= 'z' || c >= '0' && c <= '9' || c == '_' || c == '-' || c == '.') {
+			b[i] = '_'
+		}
+	}
+	if len(b) == 0 {
+		return "rung"
+	}
+	return string(b)
 }
