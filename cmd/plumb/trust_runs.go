@@ -97,6 +97,9 @@ func (l *runList) Set(s string) error {
 	if spec.label == "" {
 		base := filepath.Base(path)
 		spec.label = strings.TrimSuffix(base, filepath.Ext(base))
+		if strings.TrimSpace(spec.label) == "" {
+			spec.label = base // a name that is all extension, ".0"
+		}
 		if path == "-" {
 			spec.label = "stdin"
 		}
