@@ -271,7 +271,7 @@ func RunProgram(ctx context.Context, p Program) ([]RecordedRun, []PlannedRun, er
 	sem := make(chan struct{}, jobs)
 	var wg sync.WaitGroup
 	for i, pr := range plan {
-		runs[i] = RecordedRun{Label: pr.Label, Reference: pr.Reference, Effect: pr.Effect}
+		runs[i] = RecordedRun{Label: pr.Label, Reference: pr.Reference, Effect: pr.Effect, Source: strings.Join(p.argv(pr, "{out}"), " ")}
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
@@ -292,7 +292,6 @@ func RunProgram(ctx context.Context, p Program) ([]RecordedRun, []PlannedRun, er
 
 // launch runs one program and reads its output into r (or sets r.Failure).
 func (p Program) launch(ctx context.Context, r *RecordedRun, args []string, out string) {
-	r.Source = strings.Join(args, " ")
 	if err := ctx.Err(); err != nil {
 		r.Failure = &RunFailure{Why: "not started: " + err.Error(), ExitStatus: -1}
 		return
