@@ -169,23 +169,25 @@ func TrustRuns(ctx context.Context, runs []RecordedRun, settings *RecordedSettin
 	}
 	progress(1)
 	var effects []RunEffect
+	var fits []integrate.Growth // the rungs' growth fits
 	for i := range runs {
 		if i == ri {
 			continue
 		}
 		if err := ctx.Err(); err != nil {
-			rep.finishRuns(effects, s.Lambda)
+			rep.finishRuns(effects, fits, s.Lambda)
 			rep.Verdict = Incomplete
 			return rep, fmt.Errorf("plumb: runs: canceled before run %d (%s): %w", i+1, runs[i].Label, err)
 		}
 		r := &runs[i]
-		rr, rd, err := a.compare(r, i, rep.TolAbs, rep.Spread)
+		rr, rd, fit, err := a.compare(r, i, rep.TolAbs, rep.Spread)
 		if err != nil {
 			return nil, err
 		}
 		rep.Rungs = append(rep.Rungs, rr)
 		rc.Runs = append(rc.Runs, rd)
 		effects = append(effects, r.Effect)
+		fits = append(fits, fit)
 		if rr.Error != "" {
 			rep.Failed++
 		}
@@ -195,14 +197,14 @@ func TrustRuns(ctx context.Context, runs []RecordedRun, settings *RecordedSettin
 		ids = append(ids, &rep.Rungs[i].ID)
 	}
 	uniqueIDs(ids, TightestID)
-	rep.finishRuns(effects, s.Lambda)
+	rep.finishRuns(effects, fits, s.Lambda)
 	return rep, nil
 }
 
 // finishRuns draws the conclusions of an audit of recorded runs from its
 // rungs: the trusted horizon and its limit, the verdict, the growth vote,
 // the exponent (given, or fitted to the rungs) and the predictions.
-func (rep *Report) finishRuns(effects []RunEffect, lambda float64) {
+func (rep *Report) finishRuns(effects []RunEffect, fits []integrate.Growth, lambda float64) {
 	end := rep.T0 + rep.Horizon
 	rep.TrustedUntil = end
 	for _, r := range rep.Rungs {
@@ -234,7 +236,7 @@ func (rep *Report) finishRuns(effects []RunEffect, lambda float64) {
 	} else {
 		var why string
 		var nudged bool
-		rep.Exponent, rc.ExponentFrom, nudged, why = runsExponent(rep.Times, rep.Spread, rep.Rungs, effects)
+		rep.Exponent, rc.ExponentFrom, nudged, why = runsExponent(rep.Times, rep.Rungs, effects, fits)
 		if rep.Exponent != nil {
 			rc.ExponentNote = "an estimate from the runs: the growth rate fitted to the divergence of " + joinNames(rc.ExponentFrom) +
 				", not a tangent-space computation on the model"
@@ -259,15 +261,15 @@ func (rep *Report) finishRuns(effects []RunEffect, lambda float64) {
 }
 
 // runsExponent is the largest Lyapunov exponent fitted to the rungs'
-// divergence curves on times (spread: the reference's, see
-// integrate.FitDivergence): the inverse-variance weighted mean of the
-// rates of the rungs that grow exponentially (of the start and restart runs
-// among them where there are any), each rate's standard error widened for
-// the serial correlation of its fit's residuals (serialRateErr), with the
+// divergence curves: the inverse-variance weighted mean of the rates of the
+// rungs that grow exponentially (of the start and restart runs among them
+// where there are any), each rate's standard error widened for the serial
+// correlation of its fit's residuals (serialRateErr on fits, the rungs'
+// growth fits on times), with the
 // larger of the mean's standard error and that of the rates' scatter; from
 // names the rungs used, nudged whether they are start or restart runs, why
 // says why there is none.
-func runsExponent(times []float64, spread float64, rungs []RungReport, effects []RunEffect) (e *ExponentEstimate, from []string, nudged bool, why string) {
+func runsExponent(times []float64, rungs []RungReport, effects []RunEffect, fits []integrate.Growth) (e *ExponentEstimate, from []string, nudged bool, why string) {
 	var pick []int
 	for pass := range 2 {
 		nudged = pass == 0
@@ -293,7 +295,7 @@ func runsExponent(times []float64, spread float64, rungs []RungReport, effects [
 		r := rungs[i]
 		from = append(from, r.Name)
 		mean += r.Rate
-		se := serialRateErr(times[r.Start:], r.Divergence, spread, r.RateErr)
+		se := serialRateErr(times[r.Start:], r.Divergence, fits[i])
 		if !(se > 0) || math.IsInf(se, 0) {
 			weighted = false
 			continue
@@ -354,12 +356,12 @@ func (a *runsAuditor) resample(r *RecordedRun, i, start int) (y []float64, inter
 }
 
 // compare compares run r (the i-th) with the reference.
-func (a *runsAuditor) compare(r *RecordedRun, i int, tol, spread float64) (RungReport, RecordedRunReport, error) {
+func (a *runsAuditor) compare(r *RecordedRun, i int, tol, spread float64) (RungReport, RecordedRunReport, integrate.Growth, error) {
 	out := RungReport{Name: r.Label, ID: labelID(r.Label), Effect: string(r.Effect), Delta0: r.Delta0,
 		Growth: integrate.GrowthUnknown.String(), AgreesUntil: a.times[0], Divergence: []float64{}}
 	if r.Failure != nil {
 		out.Error = r.Failure.Why
-		return out, recordedRunReport(r, false), nil
+		return out, recordedRunReport(r, false), integrate.Growth{}, nil
 	}
 	start := 0
 	if r.Effect == VariesRestart {
@@ -368,12 +370,12 @@ func (a *runsAuditor) compare(r *RecordedRun, i int, tol, spread float64) (RungR
 		}
 	}
 	if len(a.times)-start < 2 {
-		return out, RecordedRunReport{}, &RunsError{Index: i, Label: r.Label, Source: r.Source,
+		return out, RecordedRunReport{}, integrate.Growth{}, &RunsError{Index: i, Label: r.Label, Source: r.Source,
 			Why: fmt.Sprintf("begins at t = %v, with fewer than two comparison times left before %v", r.T[0], a.times[len(a.times)-1])}
 	}
 	y, interp, err := a.resample(r, i, start)
 	if err != nil {
-		return out, RecordedRunReport{}, err
+		return out, RecordedRunReport{}, integrate.Growth{}, err
 	}
 	rd := recordedRunReport(r, interp)
 	nc := len(a.cols)
@@ -406,7 +408,7 @@ func (a *runsAuditor) compare(r *RecordedRun, i int, tol, spread float64) (RungR
 		out.Delta0 = d[0]
 	}
 	out.Divergence = d
-	return out, rd, nil
+	return out, rd, g, nil
 }
 
 // horizonOn is the first time the divergence d on times ts exceeds tol,
@@ -497,16 +499,15 @@ func (a *runsAuditor) spread() float64 {
 // count, beyond which the correction says nothing more (common practice).
 const maxSerialCorrelation = 0.99
 
-// serialRateErr widens se, the ordinary least-squares standard error of the
-// exponential rate fitted to the divergence d on times ts (spread as for
-// integrate.FitDivergence), for the serial
-// correlation of the fit's residuals: the fit is to a running envelope,
+// serialRateErr widens g.RateErr, the ordinary least-squares standard error
+// of the exponential rate of g, the fit (integrate.FitDivergence) of the
+// divergence d on times ts, for the serial correlation of the fit's
+// residuals: the fit is to a running envelope,
 // whose residuals are strongly correlated, so that the ordinary error is
 // too small. With r1 the lag-1 autocorrelation of the residuals of the line
 // fitted to log(envelope) over the growth range, the effective number of
 // points is n(1-r1)/(1+r1), and the error grows by sqrt((1+r1)/(1-r1))
-// (unchanged when r1 <= 0). The growth range is recomputed as
-// integrate.FitDivergence picks it.
+// (unchanged when r1 <= 0). The growth range is g's, [g.From, g.To].
 //
 // References:
 //
@@ -515,12 +516,13 @@ const maxSerialCorrelation = 0.99
 //	  trends and trend differences in layer-average atmospheric temperature
 //	  time series, J. Geophys. Res. 105 (2000) 7337–7356, Sect. 3
 //	  (the effective sample size n(1-r1)/(1+r1)).
-func serialRateErr(ts, d []float64, spread, se float64) float64 {
-	g := integrate.FitDivergence(ts, d, ts[0], spread)
-	if g.Points < 3 {
+func serialRateErr(ts, d []float64, g integrate.Growth) float64 {
+	se := g.RateErr
+	if g.Points < 3 || g.Kind == integrate.GrowthUnknown {
 		return se
 	}
-	var x, y []float64
+	x := make([]float64, 0, g.Points)
+	y := make([]float64, 0, g.Points)
 	env := 0.0
 	for k, v := range d {
 		env = math.Max(env, v)
