@@ -255,3 +255,51 @@ func TestTrustRunsSameAsReference(t *testing.T) {
 		assert.Contains(t, b.String(), w)
 	}
 }
+
+// TestTrustRunsGridRestartAngle: with Every, runs are interpolated onto a
+// uniform grid; a restart run begins later and its curve starts there; an
+// angle column is compared modulo its period.
+func TestTrustRunsGridRestartAngle(t *testing.T) {
+	// The interpolant reproduces quadratics exactly (Bessel's slopes, de
+	// Boor 1978, ch. IV), so on linear data the only error is rounding.
+	const roundTol = 1e-12
+	mk := func(label string, effect plumb.RunEffect, t0, dt float64, n int, phase float64) plumb.RecordedRun {
+		r := plumb.RecordedRun{Label: label, Effect: effect, Names: []string{"a", "u"}}
+		for k := range n {
+			tt := t0 + float64(k)*dt
+			r.T = append(r.T, tt)
+			// a: an angle winding at rate 1, wrapped into [0, 2π); u linear.
+			r.Y = append(r.Y, math.Mod(tt+phase, 2*math.Pi), 3*tt)
+		}
+		return r
+	}
+	runs := []plumb.RecordedRun{
+		mk("ref", "", 0, 0.1, 101, 0),                    // t in [0, 10]
+		mk("coarse", plumb.VariesMethod, 0, 0.25, 41, 0), // same motion, other times
+		mk("late", plumb.VariesRestart, 4, 0.1, 61, 0.5), // from t = 4, angle off by 0.5
+	}
+	runs[0].Reference = true
+	rep, err := plumb.TrustRuns(context.Background(), runs, &plumb.RecordedSettings{
+		Tol: 1, Every: 0.5, Periods: map[string]float64{"a": 2 * math.Pi}, Distance: plumb.Distance{Observe: []string{"a"}}})
+	require.NoError(t, err)
+	rc := rep.Recorded
+	assert.Equal(t, "every", rc.Grid)
+	assert.Equal(t, 21, len(rep.Times)) // 0, 0.5, ..., 10
+	assert.True(t, rc.Runs[0].Interpolated && rc.Runs[1].Interpolated)
+	// The coarse run is the same motion: zero divergence up to the
+	// interpolation of a wrapped angle (unwrapped first), to rounding.
+	for k, d := range rep.Rungs[0].Divergence {
+		assert.InDeltaf(t, 0, d, roundTol, "coarse run at t = %v", rep.Times[k])
+	}
+	// The late run starts at t = 4 (index 8) and differs by 0.5 in the
+	// angle throughout, wrapped or not (exact identity).
+	late := rep.Rungs[1]
+	assert.Equal(t, 8, late.Start)
+	assert.Equal(t, 4.0, late.RestartAt)
+	for _, d := range late.Divergence {
+		assert.InDelta(t, 0.5, d, roundTol)
+	}
+	assert.InDelta(t, 0.5, late.Delta0, roundTol, "delta0 measured at the restart")
+	assert.Equal(t, []string{"a"}, []string{rep.Distance.Components[0].Name})
+	assert.Equal(t, plumb.Trusted, rep.Verdict, "largest divergence 0.5 of tol 1")
+}
