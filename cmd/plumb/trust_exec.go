@@ -8,6 +8,7 @@ import (
 	"errors"
 	"flag"
 	"fmt"
+	"os/exec"
 	"strings"
 	"time"
 
@@ -130,6 +131,9 @@ func (f *trustFlags) runExec(ctx context.Context, cl *call, settings *plumb.Reco
 	}
 	if len(argv) == 0 {
 		return nil, nil, usagef("--exec %q: no command", e.template)
+	}
+	if _, err := exec.LookPath(argv[0]); err != nil {
+		return nil, nil, usagef("--exec %q: %v", e.template, err)
 	}
 	tols, err := parseTols(e.tols)
 	if err != nil {

@@ -235,12 +235,13 @@ esac`
 
 	// Template errors are usage errors naming --exec.
 	for _, c := range []struct{ args, want []string }{
-		{[]string{"--exec", "prog --in {rtol}"}, []string{"--exec", "{out}"}},
-		{[]string{"--exec", "prog {out} {speed}"}, []string{"--exec", "{speed}"}},
-		{[]string{"--exec", "prog 'unclosed {out}"}, []string{"--exec", "unclosed"}},
-		{[]string{"--exec", "prog {out}"}, []string{"--exec", "varies anything"}},
-		{[]string{"--exec", "prog {out} {rtol}", "--tols", "1e-6,x"}, []string{"--tols"}},
-		{[]string{"--exec", "prog {out} {m}", "--vary", "m=precision:a"}, []string{"--vary", "one value"}},
+		{[]string{"--exec", "./no-such-program {out} {rtol}"}, []string{"--exec", "no-such-program"}},
+		{[]string{"--exec", "sh --in {rtol}"}, []string{"--exec", "{out}"}},
+		{[]string{"--exec", "sh {out} {speed}"}, []string{"--exec", "{speed}"}},
+		{[]string{"--exec", "sh 'unclosed {out}"}, []string{"--exec", "unclosed"}},
+		{[]string{"--exec", "sh {out}"}, []string{"--exec", "varies anything"}},
+		{[]string{"--exec", "sh {out} {rtol}", "--tols", "1e-6,x"}, []string{"--tols"}},
+		{[]string{"--exec", "sh {out} {m}", "--vary", "m=precision:a"}, []string{"--vary", "one value"}},
 	} {
 		r := plumbRun(t, append([]string{"trust", "--quiet"}, c.args...)...)
 		assert.Equal(t, exitUsage, r.code, "%v: %s", c.args, r.stderr)
