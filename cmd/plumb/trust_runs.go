@@ -191,7 +191,7 @@ func (f *trustFlags) runRecorded(ctx context.Context, cl *call) error {
 		rep, specs, err = f.runExec(ctx, cl, settings)
 	} else {
 		var runs []plumb.RecordedRun
-		runs, specs, err = r.read(cl)
+		runs, specs, err = r.readCtx(ctx, cl)
 		if err != nil {
 			return err
 		}
@@ -255,6 +255,27 @@ func (f *trustFlags) runRecorded(ctx context.Context, cl *call) error {
 		return fmt.Errorf("the audit of the runs %s (%s completed, written): %w", statusVerb(out.Status), count(len(rep.Rungs), "run"), err)
 	}
 	return nil
+}
+
+// readCtx reads the --run files beside the command, so that Ctrl-C ends a
+// read that blocks (a FIFO waiting for its writer) or takes long.
+func (r *runsFlags) readCtx(ctx context.Context, cl *call) ([]plumb.RecordedRun, []runJSON, error) {
+	type read struct {
+		runs  []plumb.RecordedRun
+		specs []runJSON
+		err   error
+	}
+	done := make(chan read, 1) // buffered: an abandoned read does not leak a blocked send
+	go func() {
+		runs, specs, err := r.read(cl)
+		done <- read{runs, specs, err}
+	}()
+	select {
+	case d := <-done:
+		return d.runs, d.specs, d.err
+	case <-ctx.Done():
+		return nil, nil, fmt.Errorf("reading the --run files: stopped before they were read: %w", ctx.Err())
+	}
 }
 
 // read reads the --run files (and stdin for PATH -).
