@@ -1,6 +1,7 @@
 package plumb
 
 import (
+	"context"
 	"fmt"
 	"io"
 
@@ -76,4 +77,35 @@ func wrapRead(err error) error {
 		return nil
 	}
 	return fmt.Errorf("plumb: %w", err)
+}
+
+// RunFile names one run in a file for TrustFiles: its path, label (empty:
+// the path), effect, whether it is the reference, and its perturbation size
+// when known (see RecordedRun).
+type RunFile struct {
+	Path      string
+	Label     string
+	Effect    RunEffect
+	Reference bool
+	Delta0    float64
+}
+
+// TrustFiles reads each run with OpenRun (every file with opt) and audits
+// them with TrustRuns: the one call behind plumb trust --run. A file that
+// cannot be read is an error naming it (with the line or row and column),
+// before any comparison.
+func TrustFiles(ctx context.Context, files []RunFile, opt RunReadOptions, s *RecordedSettings) (*Report, error) {
+	runs := make([]RecordedRun, len(files))
+	for i, f := range files {
+		r, err := OpenRun(f.Path, opt)
+		if err != nil {
+			return nil, fmt.Errorf("plumb: run %d (%s): %w", i+1, f.Path, err)
+		}
+		r.Label, r.Effect, r.Reference, r.Delta0 = f.Label, f.Effect, f.Reference, f.Delta0
+		if r.Label == "" {
+			r.Label = f.Path
+		}
+		runs[i] = r
+	}
+	return TrustRuns(ctx, runs, s)
 }

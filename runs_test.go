@@ -3,8 +3,12 @@ package plumb_test
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -302,4 +306,44 @@ func TestTrustRunsGridRestartAngle(t *testing.T) {
 	assert.InDelta(t, 0.5, late.Delta0, roundTol, "delta0 measured at the restart")
 	assert.Equal(t, []string{"a"}, []string{rep.Distance.Components[0].Name})
 	assert.Equal(t, plumb.Trusted, rep.Verdict, "largest divergence 0.5 of tol 1")
+}
+
+// TestTrustFiles: runs read from files in the three formats give the same
+// report as the same runs held in memory (runio's readers return the very
+// doubles written: CSV with shortest round-trip numbers, exact identity).
+func TestTrustFiles(t *testing.T) {
+	dir := t.TempDir()
+	ref := circleRun("ref", "", 200, 0.05, zero)
+	loose := circleRun("loose", plumb.VariesTolerance, 200, 0.05, func(t float64) float64 { return 1e-4 * math.Exp(t) })
+	write := func(name, text string) string {
+		p := filepath.Join(dir, name)
+		require.NoError(t, os.WriteFile(p, []byte(text), 0o644))
+		return p
+	}
+	var csv, jsonl strings.Builder
+	csv.WriteString("t,x,y\n")
+	for k, tt := range ref.T {
+		fmt.Fprintf(&csv, "%s,%s,%s\n", strconv.FormatFloat(tt, 'g', -1, 64), strconv.FormatFloat(ref.Y[2*k], 'g', -1, 64), strconv.FormatFloat(ref.Y[2*k+1], 'g', -1, 64))
+	}
+	for k, tt := range loose.T {
+		fmt.Fprintf(&jsonl, "{\"t\": %s, \"x\": %s, \"y\": %s}\n", strconv.FormatFloat(tt, 'g', -1, 64), strconv.FormatFloat(loose.Y[2*k], 'g', -1, 64), strconv.FormatFloat(loose.Y[2*k+1], 'g', -1, 64))
+	}
+	files := []plumb.RunFile{
+		{Path: write("ref.csv", csv.String()), Label: "ref", Reference: true},
+		{Path: write("loose.jsonl", jsonl.String()), Label: "loose", Effect: plumb.VariesTolerance},
+	}
+	got, err := plumb.TrustFiles(context.Background(), files, plumb.RunReadOptions{}, &plumb.RecordedSettings{Tol: 1})
+	require.NoError(t, err)
+	ref.Reference = true
+	want, err := plumb.TrustRuns(context.Background(), []plumb.RecordedRun{ref, loose}, &plumb.RecordedSettings{Tol: 1})
+	require.NoError(t, err)
+	assert.Equal(t, want.Rungs[0].Divergence, got.Rungs[0].Divergence)
+	assert.Equal(t, want.TrustedUntil, got.TrustedUntil)
+	// 1e-4·e^t = 1 at t = ln(1e4) = 9.21 (exact identity), to the grid.
+	assert.InDelta(t, math.Log(1e4), got.TrustedUntil, 0.05)
+
+	files[1].Path = write("bad.csv", "t,x,y\n0,1,2\n0.05,oops,3\n")
+	_, err = plumb.TrustFiles(context.Background(), files, plumb.RunReadOptions{}, &plumb.RecordedSettings{Tol: 1})
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "bad.csv:3")
 }
