@@ -81,7 +81,7 @@ func (rep *Report) Write(w io.Writer) error {
 	case "bounded":
 		b.WriteString("divergence stays bounded\n")
 	default:
-		if len(rep.Times) > 1 {
+		if len(rep.Times) > 1 && rep.Recorded == nil {
 			// On a long horizon the grid (horizon/1000) can be coarser
 			// than the growth: the runs part between a few points.
 			fmt.Fprintf(&b, "divergence growth undetermined (too few comparison points before the runs part: the grid is every %.3g%s; a shorter --horizon resolves it)\n", rep.Times[1]-rep.Times[0], u)
@@ -107,7 +107,7 @@ func (rep *Report) Write(w io.Writer) error {
 	}
 	rep.writeYourRun(&b)
 	if rc := rep.Recorded; rc != nil {
-		rc.writeNotes(&b)
+		rc.writeNotes(&b, rep.Growth)
 	}
 	switch {
 	case rep.Verdict == Incomplete:

@@ -27,7 +27,11 @@ func (rc *RecordedReport) writeHead(b *strings.Builder) {
 // writeNotes writes what the summary must say about the recorded runs:
 // the exponent's origin, interpolated runs, runs equal to the reference to
 // the last bit, and failed runs with their exit status and stderr.
-func (rc *RecordedReport) writeNotes(b *strings.Builder) {
+func (rc *RecordedReport) writeNotes(b *strings.Builder, growth string) {
+	undetermined := growth == "undetermined"
+	if undetermined {
+		b.WriteString("(the runs part within a few output times: write them at shorter intervals to see how their difference grows)\n")
+	}
 	if rc.ExponentNote != "" {
 		fmt.Fprintf(b, "the exponent is %s\n", rc.ExponentNote)
 	}
@@ -51,7 +55,7 @@ func (rc *RecordedReport) writeNotes(b *strings.Builder) {
 			continue
 		}
 		fmt.Fprintf(b, "run %s failed: %s", r.Label, f.Why)
-		if f.ExitStatus >= 0 {
+		if f.ExitStatus >= 0 && !strings.Contains(f.Why, "status") {
 			fmt.Fprintf(b, " (exit status %d)", f.ExitStatus)
 		}
 		b.WriteByte('\n')

@@ -244,7 +244,7 @@ func (f *trustFlags) runRecorded(ctx context.Context, cl *call) error {
 	}
 	for _, rr := range rep.Recorded.Runs {
 		if rr.SameAsReference {
-			cl.warnf("run %q equals the reference to the last bit: the %s it varies probably did nothing", rr.Label, rr.Effect)
+			cl.warnf("run %q equals the reference to the last bit: what it varies (%s) probably did nothing", rr.Label, rr.Effect)
 		}
 		if rr.Failure != nil {
 			cl.warnf("run %q failed: %s", rr.Label, rr.Failure.Why)
