@@ -196,6 +196,11 @@ type RecordedReport struct {
 	// Interpolant names the interpolation of runs not written at the
 	// grid's times.
 	Interpolant string `json:"interpolant"`
+	// ToleranceNote, when not empty, warns that the tolerance exceeds
+	// twice the reference's largest distance from its mean: runs that
+	// stay on the same attractor cannot part by it, and an agreement
+	// proves little.
+	ToleranceNote string `json:"tolerance_note,omitempty"`
 	// ExponentFrom names the runs whose fitted growth rates make the
 	// exponent (empty when the exponent was given or none could be
 	// fitted); ExponentNote says it is an estimate from the runs.

@@ -347,3 +347,28 @@ func TestTrustFiles(t *testing.T) {
 	require.Error(t, err)
 	assert.Contains(t, err.Error(), "bad.csv:3")
 }
+
+// TestTrustRunsToleranceBeyondReach: a tolerance above twice the
+// reference's largest distance from its mean is flagged: runs that stay
+// where the reference went cannot part by it. The reference alternates
+// between x = -1 and x = 1 (mean 0, largest distance 1: exact identity).
+func TestTrustRunsToleranceBeyondReach(t *testing.T) {
+	mk := func(label string, scale float64) plumb.RecordedRun {
+		r := plumb.RecordedRun{Label: label, Effect: plumb.VariesPlatform, Names: []string{"x"}}
+		for k := range 20 {
+			r.T = append(r.T, float64(k))
+			r.Y = append(r.Y, scale*float64(1-2*(k%2)))
+		}
+		return r
+	}
+	runs := []plumb.RecordedRun{mk("ref", 1), mk("other", 0.5)}
+	runs[0].Reference = true
+	for _, c := range []struct {
+		tol  float64
+		note bool
+	}{{1.99, false}, {2.01, true}} {
+		rep, err := plumb.TrustRuns(context.Background(), runs, &plumb.RecordedSettings{Tol: c.tol})
+		require.NoError(t, err)
+		assert.Equal(t, c.note, rep.Recorded.ToleranceNote != "", "tol %v: %q", c.tol, rep.Recorded.ToleranceNote)
+	}
+}

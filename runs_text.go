@@ -29,6 +29,9 @@ func (rc *RecordedReport) writeHead(b *strings.Builder) {
 // the last bit, and failed runs with their exit status and stderr.
 func (rc *RecordedReport) writeNotes(b *strings.Builder, growth string) {
 	undetermined := growth == "undetermined"
+	if rc.ToleranceNote != "" {
+		fmt.Fprintf(b, "warning: %s\n", rc.ToleranceNote)
+	}
 	if undetermined {
 		b.WriteString("(the runs part within a few output times: write them at shorter intervals to see how their difference grows)\n")
 	}

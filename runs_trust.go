@@ -150,13 +150,17 @@ func TrustRuns(ctx context.Context, runs []RecordedRun, settings *RecordedSettin
 	}
 	a.refY = refY
 	rc.Runs = append(rc.Runs, recordedRunReport(ref, interp))
-	rep.Spread = a.spread()
+	var reach float64
+	rep.Spread, reach = a.spread()
 	rep.TolAbs = s.Tol
 	if s.Relative {
 		rep.TolAbs = s.Tol * rep.Spread
 		if !(rep.TolAbs > 0) {
 			return nil, &RunsError{Index: ri, Label: ref.Label, Source: ref.Source, Why: "the reference run has zero spread, so a relative tolerance is zero; give the tolerance in the runs' units"}
 		}
+	}
+	if rep.TolAbs > 2*reach {
+		rc.ToleranceNote = fmt.Sprintf("the tolerance %.4g exceeds %.4g, twice the reference's largest distance from its mean: runs that stay where it went cannot part by the tolerance, so their agreement says little", rep.TolAbs, 2*reach)
 	}
 	rep.Reference = RungReport{Name: ref.Label, ID: TightestID, Effect: "reference", AgreesUntil: to, Growth: integrate.GrowthUnknown.String(), Divergence: []float64{}}
 
@@ -453,20 +457,15 @@ func (a *runsAuditor) dist(x, y []float64) float64 {
 }
 
 // spread is the reference's root-mean-square distance from its mean on the
-// grid (the circular mean for angles), as integrate.Audit measures it.
-func (a *runsAuditor) spread() float64 {
+// grid (the circular mean for angles), as integrate.Audit measures it;
+// reach is its largest distance from the mean.
+func (a *runsAuditor) spread() (spread, reach float64) {
 	nc := len(a.cols)
 	m := len(a.times)
-	var spread float64
+	mean := make([]float64, nc)
 	for j := range nc {
-		sc := 1.0
-		if a.scales != nil {
-			if sc = a.scales[j]; sc == 0 {
-				continue
-			}
-		}
 		P := a.periods[j]
-		var mean, c, sn float64
+		var sum, c, sn float64
 		for k := range m {
 			x := a.refY[k*nc+j]
 			if P > 0 {
@@ -474,24 +473,21 @@ func (a *runsAuditor) spread() float64 {
 				sn += s0
 				c += c0
 			} else {
-				mean += x
+				sum += x
 			}
 		}
 		if P > 0 {
-			mean = detmath.Atan2(sn, c) * P / (2 * math.Pi)
+			mean[j] = detmath.Atan2(sn, c) * P / (2 * math.Pi)
 		} else {
-			mean /= float64(m)
-		}
-		for k := range m {
-			d := a.refY[k*nc+j] - mean
-			if P > 0 {
-				d = math.Remainder(d, P)
-			}
-			d /= sc
-			spread += float64(d * d)
+			mean[j] = sum / float64(m)
 		}
 	}
-	return math.Sqrt(spread / float64(m))
+	for k := range m {
+		d := a.dist(a.refY[k*nc:(k+1)*nc], mean)
+		spread += float64(d * d)
+		reach = math.Max(reach, d)
+	}
+	return math.Sqrt(spread / float64(m)), reach
 }
 
 // maxSerialCorrelation bounds the lag-1 autocorrelation used to widen a
