@@ -103,6 +103,10 @@ type Report struct {
 	// reach is the reference run's largest distance from its mean
 	// (integrate.AuditResult.Reach).
 	reach float64
+	// Recorded describes an audit of runs computed by another program
+	// (TrustRuns): the compared span and grid, each run's source, and how
+	// the exponent was estimated from the runs; nil otherwise.
+	Recorded *RecordedReport `json:"recorded,omitempty"`
 
 	// Caution is the standing caution (see the Caution constant).
 	Caution string `json:"caution"`

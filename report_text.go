@@ -28,7 +28,9 @@ func (rep *Report) Write(w io.Writer) error {
 	fmt.Fprintf(&b, "audit of t = %.4g .. %.4g%s at tolerance %s\n", rep.T0, rep.T0+rep.Horizon, u, tolPhrase(rep.Tol, rep.TolAbs, rep.Relative))
 	fmt.Fprintf(&b, "distance: %s\n", rep.Distance)
 	rows := rep.Rungs
-	if ex := rep.Exact; ex != nil && ex.SetAside != "" {
+	if rc := rep.Recorded; rc != nil {
+		rc.writeHead(&b)
+	} else if ex := rep.Exact; ex != nil && ex.SetAside != "" {
 		fmt.Fprintf(&b, "reference: %s (the multiprecision reference was set aside: %s)\n\n", rep.Reference.Name, ex.SetAside)
 	} else if ex != nil {
 		kinks := ""
@@ -86,7 +88,7 @@ func (rep *Report) Write(w io.Writer) error {
 	case integrate.GrowthBounded:
 		b.WriteString("divergence stays bounded\n")
 	default:
-		if len(rep.Times) > 1 {
+		if len(rep.Times) > 1 && rep.Recorded == nil {
 			// On a long horizon the grid (horizon/1000) can be coarser
 			// than the growth: the runs part between a few points.
 			fmt.Fprintf(&b, "divergence growth undetermined (too few comparison points before the runs part: the grid is every %.3g%s; a shorter --horizon resolves it)\n", rep.Times[1]-rep.Times[0], u)
@@ -111,6 +113,9 @@ func (rep *Report) Write(w io.Writer) error {
 		fmt.Fprintf(&b, "%d rung(s) failed; their curves end where they stopped\n", rep.Failed)
 	}
 	rep.writeYourRun(&b)
+	if rc := rep.Recorded; rc != nil {
+		rc.writeNotes(&b, rep.Growth)
+	}
 	switch {
 	case rep.Verdict == Incomplete:
 		b.WriteString("the audit did not finish: the table holds the rungs completed, and no trusted horizon is read off them\n")

@@ -100,7 +100,39 @@ curve keeps at most 4096 points: a row (and a point of a rung's
 divergence in JSON) is the largest distance over stride iterates from n.
 
 On Ctrl-C, or when the reference run fails, the rungs completed so far are
-still written; the exit status is then 1.`,
+still written; the exit status is then 1.
+
+Runs made by another program are audited with --run EFFECT[:LABEL]=PATH,
+once per run: exactly one with EFFECT ref (the run you trust most), the
+others tolerance, method, precision, restart, start (a nudged start),
+platform or other. PATH is CSV (a header row; the time is the first column
+or --time-column), .npy or JSON Lines ({"t": .., "y": [..]} or named
+fields), or - for stdin (--run-format). The runs are compared on the
+reference's own times (--every DT: a uniform grid, runs interpolated) over
+the intersection of their spans (--horizon cuts it; nothing is
+extrapolated); --observe, --scale and --period NAME=P (angles) choose the
+distance. The exponent is then fitted to the divergence curves (of the
+start runs where there are any): an estimate from the runs. A run equal to
+the reference to the last bit is flagged: what it varies did nothing.
+
+--exec COMMAND launches your own program once per rung instead (no
+shell): {rtol} and {atol} take each of --tols (the smallest is the
+reference's), {perturb} is 0 or --perturb (the nudged-start rung), {out}
+is a fresh file the program writes and plumb reads back (--out-ext), and
+--vary NAME=EFFECT:V1,V2 adds {NAME} (V1 the reference's). --jobs runs at
+a time, each stopped after --time-limit; a run that fails, times out or
+writes nothing is a failed rung with its exit status and stderr, and the
+others stand. For example:
+
+  plumb trust --exec './convection --rtol {rtol} --atol {atol}
+    --perturb {perturb} --out {out} {store}' --vary store=precision:,--float32
+
+The JSON of an audit of runs holds plumb_version, arch, command,
+settings, units, status, error, trusted_until and the report's fields as
+above, with recorded (span, grid and each run: source, rows,
+interpolated, same_as_reference, failure) in place of exact_reference and
+reversal. Runs that share a bug agree with each other: this audit
+measures numerical effects, not the model's correctness.`,
 	model:   "lorenz",
 	formats: []string{"table", "json", "csv"},
 	plots:   true,
@@ -147,6 +179,8 @@ type trustFlags struct {
 	method     string
 	rtol, atol float64
 	h          float64
+	// recorded audits runs made by another program (trust_runs.go).
+	recorded runsFlags
 }
 
 // yourRunFlags are the flags that name the caller's own run.
@@ -167,6 +201,7 @@ func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	finiteVar(fs, &f.atol, "atol", integrate.DefaultAbsTol, "absolute tolerance `ATOL` of your own run, in state units")
 	finiteVar(fs, &f.h, "step", 0, "step size `H` of your own run's fixed-step method (-h is help)")
 	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps per run (long horizons need more: the reference takes about 80 per time unit on the demo)")
+	addRunsFlags(fs, &f.recorded)
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -341,6 +376,9 @@ var trustUnits = trustUnitsJSON{
 const trustGrid = 1000
 
 func (f *trustFlags) run(ctx context.Context, cl *call) error {
+	if f.recorded.active(cl) {
+		return f.runRecorded(ctx, cl)
+	}
 	if !(f.horizon > 0) {
 		return usagef("--horizon %s: must be > 0", formatFloat(f.horizon))
 	}

@@ -72,7 +72,9 @@ func ReadJSONL(r io.Reader, opt Options) (*Run, error) {
 				case f.name == "y" && f.arr >= 0:
 					arrayed = true
 					arrLen = f.arr
-				case f.num && f.name != "y":
+				case f.num:
+					// A number named "y" is a field like any other (only
+					// an array "y" is the state).
 					all = append(all, f.name)
 				}
 			}

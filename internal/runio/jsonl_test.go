@@ -26,6 +26,8 @@ func TestReadJSONL(t *testing.T) {
 		{name: "named fields, other fields skipped", in: "{\"time\":0,\"x\":1,\"note\":\"start\",\"v\":2,\"meta\":{\"a\":[1,{\"b\":null}]}}\n\n{\"v\":4,\"x\":3,\"time\":1,\"note\":\"a \\\"quoted\\\" word\",\"flag\":true}\r\n",
 			opt:   Options{Time: "time"},
 			tname: "time", names: []string{"x", "v"}, T: []float64{0, 1}, Y: []float64{1, 2, 3, 4}},
+		{name: "named fields, one of them a number named y", in: "{\"t\":0,\"x\":1,\"y\":2}\n{\"t\":1,\"x\":3,\"y\":4}\n",
+			tname: "t", names: []string{"x", "y"}, T: []float64{0, 1}, Y: []float64{1, 2, 3, 4}},
 		{name: "escaped key", in: "{\"t\":0,\"\\u0078\":1}\n{\"t\":1,\"x\":2}\n",
 			tname: "t", names: []string{"x"}, T: []float64{0, 1}, Y: []float64{1, 2}},
 	}
