@@ -1,0 +1,46 @@
+// Package embed analyses a measured scalar series — a thermocouple, a
+// vibration sensor, a river gauge, a daily count — when no equations are
+// known: it reconstructs the dynamics by delay embedding and measures, from
+// the data alone, how many variables drive it, how fast nearby states part
+// and how far ahead it can be forecast.
+//
+// The package stands alone: it imports no other plumb package but the
+// deterministic elementary functions of internal/detmath.
+//
+// # Notation
+//
+//	x        the series, x[0..n-1], sampled every Dt
+//	lag      the delay in samples; dim (m) the embedding dimension
+//	theiler  the Theiler window: neighbours closer in time than this many
+//	         samples are not neighbours
+//
+// # Methods
+//
+//	Embed                 delay vectors as a view over the series (Takens 1981)
+//	AverageMutualInfo     the delay from the first minimum of the mutual
+//	                      information (Fraser & Swinney 1986)
+//	Autocorrelate         the autocorrelation's 1/e time and first zero
+//	FalseNeighbours       false nearest neighbours (Kennel, Brown &
+//	                      Abarbanel 1992), both criteria
+//	CaoDimension          Cao's E1 and E2 (Cao 1997)
+//
+// Neighbours are found in k-d trees built by gonum's spatial/kdtree and
+// searched exactly (ties broken towards the smaller index), so results do
+// not depend on the tree's random pivots.
+//
+// # Errors
+//
+// Sentinels usable with errors.Is: ErrTooShort, ErrConstant, ErrNonFinite,
+// ErrNonUniform, ErrEmbedding, ErrSettings, ErrSyntax, ErrColumn. An
+// *InputError says where in the input (line and column, or the index of a
+// value). Nothing a caller supplies makes the package panic.
+//
+// # Caution
+//
+// Every number here is an estimate from finite, noisy data under the
+// assumption that the series comes from a stationary deterministic
+// system; each result carries the choices that shaped it. A forecast
+// horizon from data is a statement about the recorded signal, not a
+// safety certificate for the real system; safety-critical use follows the
+// field's own codes and licensed review.
+package embed
