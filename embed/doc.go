@@ -23,6 +23,10 @@
 //	FalseNeighbours       false nearest neighbours (Kennel, Brown &
 //	                      Abarbanel 1992), both criteria
 //	CaoDimension          Cao's E1 and E2 (Cao 1997)
+//	CorrelationDimension  D2 from correlation sums (Grassberger & Procaccia
+//	                      1983) with a Theiler window and a scaling-region rule
+//	Rosenstein, Kantz     the largest Lyapunov exponent from divergence
+//	                      curves (Rosenstein, Collins & De Luca 1993; Kantz 1994)
 //
 // Neighbours are found in k-d trees built by gonum's spatial/kdtree and
 // searched exactly (ties broken towards the smaller index), so results do

@@ -154,12 +154,11 @@ func (t *tree) nearestIn(n *kdtree.Node, q, theiler int, best *int, bd *float64)
 	}
 }
 
-// countWithin adds to hist[b] the number of points j > q+theiler whose
-// distance to q is at most edges[b] but above edges[b-1] (b = 0 counts
-// distances up to edges[0]); edges increase. Points beyond the last edge
-// are not counted. Only later points are counted, so that each pair counts
-// once when q runs over all points.
-func (t *tree) countWithin(q, theiler int, edges []float64, hist []int64) {
+// countAround adds to hist[b] the number of points j with |j-q| > theiler
+// whose distance to q is at most edges[b] but above edges[b-1] (b = 0
+// counts distances up to edges[0]); edges increase. Points beyond the last
+// edge are not counted.
+func (t *tree) countAround(q, theiler int, edges []float64, hist []int64) {
 	t.countIn(t.root, q, theiler, edges, hist)
 }
 
@@ -168,7 +167,7 @@ func (t *tree) countIn(n *kdtree.Node, q, theiler int, edges []float64, hist []i
 	for n != nil {
 		p := n.Point.(*point)
 		j := p.i
-		if j-q > theiler {
+		if j-q > theiler || q-j > theiler {
 			if d := t.dist(q, j); d <= rmax {
 				hist[binOf(edges, d)]++
 			}
