@@ -27,10 +27,28 @@
 //	                      1983) with a Theiler window and a scaling-region rule
 //	Rosenstein, Kantz     the largest Lyapunov exponent from divergence
 //	                      curves (Rosenstein, Collins & De Luca 1993; Kantz 1994)
+//	Forecast              the error of analogue forecasts against lead time and
+//	                      the lead where it reaches a fraction of the spread
+//	ZeroOneTest           the 0-1 test for chaos, correlation form with random
+//	                      frequencies and the median K (Gottwald & Melbourne
+//	                      2004, 2009)
+//	Surrogates            phase-randomised and IAAFT surrogates (Theiler et al.
+//	                      1992; Schreiber & Schmitz 1996, gonum's FFT)
+//	SurrogateTest         the rank test of a statistic (PredictionError, or any
+//	                      other) against surrogates
 //
 // Neighbours are found in k-d trees built by gonum's spatial/kdtree and
 // searched exactly (ties broken towards the smaller index), so results do
-// not depend on the tree's random pivots.
+// not depend on the tree's random pivots. Sums run in index order and
+// elementary functions come from internal/detmath, so results are
+// bit-identical on every architecture, with one exception: surrogates use
+// gonum's FFT, whose last bits may differ between amd64 and arm64.
+//
+// What tells chaos from noise: the 0-1 test gives K near 1 for white
+// noise as well as for chaos; Cao's E2 (near 1 at every dimension for
+// noise), the surrogate test (deterministic structure forecasts better
+// than its surrogates) and a linear rise of the divergence curve are the
+// checks that separate them.
 //
 // # Errors
 //

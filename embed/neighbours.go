@@ -232,3 +232,46 @@ func binOf(edges []float64, d float64) int {
 	}
 	return lo
 }
+
+// kNearest finds the k nearest points to point q outside the Theiler
+// window (distance 0 allowed), ordered by distance and then index, into
+// idx and dist (each of length >= k); it returns how many it found.
+func (t *tree) kNearest(q, theiler, k int, idx []int, dist []float64) int {
+	found := 0
+	t.kNearestIn(t.root, q, theiler, k, idx, dist, &found)
+	return found
+}
+
+func (t *tree) kNearestIn(n *kdtree.Node, q, theiler, k int, idx []int, dist []float64, found *int) {
+	for n != nil {
+		p := n.Point.(*point)
+		j := p.i
+		if j-q > theiler || q-j > theiler {
+			d := t.dist(q, j)
+			if *found < k || d < dist[k-1] || d == dist[k-1] && j < idx[k-1] {
+				// insert (d, j) in order, dropping the last when full
+				pos := min(*found, k-1)
+				for pos > 0 && (dist[pos-1] > d || dist[pos-1] == d && idx[pos-1] > j) {
+					if pos < k {
+						dist[pos], idx[pos] = dist[pos-1], idx[pos-1]
+					}
+					pos--
+				}
+				dist[pos], idx[pos] = d, j
+				if *found < k {
+					*found++
+				}
+			}
+		}
+		c := t.e.Coord(q, int(n.Plane)) - t.e.Coord(j, int(n.Plane))
+		near, far := n.Left, n.Right
+		if c > 0 {
+			near, far = n.Right, n.Left
+		}
+		t.kNearestIn(near, q, theiler, k, idx, dist, found)
+		if *found == k && math.Abs(c) > dist[k-1] {
+			return
+		}
+		n = far
+	}
+}
