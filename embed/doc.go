@@ -37,6 +37,10 @@
 //	SurrogateTest         the rank test of a statistic (PredictionError, or any
 //	                      other) against surrogates
 //
+// Analyze runs all of them on one series with the embedding chosen by
+// documented rules and returns one Report, with the choices made and notes
+// where an assumption fails. ReadColumn reads one column of a CSV file.
+//
 // Neighbours are found in k-d trees built by gonum's spatial/kdtree and
 // searched exactly (ties broken towards the smaller index), so results do
 // not depend on the tree's random pivots. Sums run in index order and

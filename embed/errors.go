@@ -3,6 +3,7 @@ package embed
 import (
 	"errors"
 	"fmt"
+	"strings"
 )
 
 // Sentinel errors, usable with errors.Is. Every error the package returns
@@ -46,30 +47,26 @@ type InputError struct {
 	Err error
 }
 
-// Error returns "embed: SOURCE:LINE:COLUMN: ERR: DETAIL" with the parts that
-// are known.
+// Error returns "embed: SOURCE: line L, column C: ERR: DETAIL" (or "value
+// I" for a position in a series) with the parts that are known.
 func (e *InputError) Error() string {
-	s := "embed: "
+	var parts []string
 	if e.Source != "" {
-		s += e.Source + ":"
+		parts = append(parts, e.Source)
 	}
-	if e.Line > 0 {
-		s += fmt.Sprintf("line %d:", e.Line)
-		if e.Column > 0 {
-			s += fmt.Sprintf("column %d:", e.Column)
-		}
+	switch {
+	case e.Line > 0 && e.Column > 0:
+		parts = append(parts, fmt.Sprintf("line %d, column %d", e.Line, e.Column))
+	case e.Line > 0:
+		parts = append(parts, fmt.Sprintf("line %d", e.Line))
+	case e.Index >= 0:
+		parts = append(parts, fmt.Sprintf("value %d", e.Index))
 	}
-	if e.Index >= 0 && e.Line == 0 {
-		s += fmt.Sprintf("value %d:", e.Index)
-	}
-	if s[len(s)-1] == ':' {
-		s += " "
-	}
-	s += e.Err.Error()
+	parts = append(parts, e.Err.Error())
 	if e.Detail != "" {
-		s += ": " + e.Detail
+		parts = append(parts, e.Detail)
 	}
-	return s
+	return "embed: " + strings.Join(parts, ": ")
 }
 
 // Unwrap returns the sentinel.

@@ -1,7 +1,6 @@
 package embed
 
 import (
-	"cmp"
 	"context"
 	"fmt"
 	"math"
@@ -85,6 +84,7 @@ type surrogateMaker struct {
 	coef   []complex128 // workspace
 	rank   []int
 	prev   []int
+	order  []ranked
 }
 
 func newSurrogateMaker(x []float64) (*surrogateMaker, error) {
@@ -178,19 +178,30 @@ func (g *surrogateMaker) make(kind SurrogateKind, rng *rand.Rand) Surrogate {
 
 // ranks writes into dst the rank of each value of v (ties by index).
 func (g *surrogateMaker) ranks(v []float64, dst []int) {
-	order := make([]int, len(v))
-	for i := range order {
-		order[i] = i
+	if len(g.order) != len(v) {
+		g.order = make([]ranked, len(v))
 	}
-	slices.SortFunc(order, func(a, b int) int {
-		if c := cmp.Compare(v[a], v[b]); c != 0 {
-			return c
+	for i, x := range v {
+		g.order[i] = ranked{x, i}
+	}
+	slices.SortFunc(g.order, func(a, b ranked) int {
+		switch {
+		case a.v < b.v:
+			return -1
+		case a.v > b.v:
+			return 1
 		}
-		return a - b
+		return a.i - b.i
 	})
-	for r, i := range order {
-		dst[i] = r
+	for r, o := range g.order {
+		dst[o.i] = r
 	}
+}
+
+// ranked is a value with its position, for sorting.
+type ranked struct {
+	v float64
+	i int
 }
 
 // spectrumErr is Surrogate.SpectrumErr for s.
