@@ -102,8 +102,9 @@ type Choices struct {
 //     of the prediction error one lag ahead, and the 0-1 test on the
 //     series sampled every lag.
 //
-// A step that cannot run on this series (too short for it) leaves its
-// field nil and says so in Notes; a failure of the lag or dimension
+// A given lag and dimension that reach beyond the series are an
+// ErrEmbedding error. A step that cannot run on this series (too short for
+// it) leaves its field nil and says so in Notes; a failure of the lag or dimension
 // choice, bad settings and cancellation return the error with the partial
 // report.
 func Analyze(ctx context.Context, s *Series, set *Settings) (*Report, error) {
@@ -141,6 +142,11 @@ func Analyze(ctx context.Context, s *Series, set *Settings) (*Report, error) {
 		return nil, settingf("Settings.SurrogatePoints = %d (want >= %d)", c.SurrogatePoints, MinLen)
 	}
 	x := s.Values
+	if c.Lag > 0 && c.Dim > 0 {
+		if _, err := Embed(x, c.Lag, c.Dim); err != nil {
+			return nil, err
+		}
+	}
 	r := &Report{N: len(x), Dt: s.Dt, ExponentHorizon: math.NaN()}
 	r.Mean, r.SD = moments(x)
 	var err error

@@ -54,9 +54,10 @@ func fitLine(xs, ys []float64, lo, hi int) Line {
 // halvesSpread returns half the difference of the slopes fitted to the
 // first and the second half of lo..hi: a measure of curvature that the
 // residual-based standard error misses (common practice: a straight
-// region gives the same slope on both halves). Zero below 6 points.
+// region gives the same slope on both halves). The halves share the
+// middle point, so 5 points make two halves of 3; zero below 5 points.
 func halvesSpread(xs, ys []float64, lo, hi int) float64 {
-	if hi-lo+1 < 6 {
+	if hi-lo+1 < 5 {
 		return 0
 	}
 	mid := (lo + hi) / 2
