@@ -97,7 +97,7 @@ func AverageMutualInfo(x []float64, maxLag int) (*MutualInfo, error) {
 				}
 				// p_ac ln(p_ac/(p_a p_c)) = (j/m) ln(j m / (n_a n_c))
 				r := float64(j) * fm / (float64(pa[a]) * float64(pb[c]))
-				s += float64(float64(j)/fm) * detmath.Log(r)
+				s += float64(float64(j) / fm * detmath.Log(r))
 			}
 		}
 		mi.Info = append(mi.Info, s)

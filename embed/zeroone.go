@@ -182,7 +182,7 @@ func quantile(sorted []float64, q float64) float64 {
 	if len(sorted) == 0 {
 		return math.NaN()
 	}
-	h := float64(len(sorted)-1) * q
+	h := float64(float64(len(sorted)-1) * q)
 	i := int(h)
 	if i >= len(sorted)-1 {
 		return sorted[len(sorted)-1]
