@@ -34,7 +34,16 @@ type CorrSettings struct {
 	// Decades is the span of the fitted region in decades of radius
 	// (default 0.75).
 	Decades float64
+	// CoarseReferences is the number of reference points that count
+	// pairs at every radius (default 200); the others count only up to
+	// the radius where the coarse sum reaches 2·MaxSum (CorrDim.Cut).
+	CoarseReferences int
 }
+
+// cutFactor: the full count runs to the radius where the coarse sum
+// reaches cutFactor·MaxSum, so the whole fitted range (sums <= MaxSum)
+// has every reference, with a margin for the coarse sum's sampling error.
+const cutFactor = 2
 
 // Defaults of CorrSettings.
 const (
@@ -45,6 +54,7 @@ const (
 	DefaultCorrMinPairs   = 100
 	DefaultCorrMaxSum     = 0.1
 	DefaultCorrDecades    = 0.75
+	DefaultCorrCoarseRefs = 200
 )
 
 func (s *CorrSettings) withDefaults() (CorrSettings, error) {
@@ -73,6 +83,9 @@ func (s *CorrSettings) withDefaults() (CorrSettings, error) {
 	if c.Decades == 0 {
 		c.Decades = DefaultCorrDecades
 	}
+	if c.CoarseReferences == 0 {
+		c.CoarseReferences = DefaultCorrCoarseRefs
+	}
 	switch {
 	case c.Theiler < 0:
 		return c, settingf("CorrSettings.Theiler = %d (want >= 0)", c.Theiler)
@@ -86,6 +99,8 @@ func (s *CorrSettings) withDefaults() (CorrSettings, error) {
 		return c, settingf("CorrSettings.MinPairs = %d (want >= 1)", c.MinPairs)
 	case !(c.MaxSum > 0 && c.MaxSum <= 1):
 		return c, settingf("CorrSettings.MaxSum = %g (want in (0, 1])", c.MaxSum)
+	case c.CoarseReferences < 1:
+		return c, settingf("CorrSettings.CoarseReferences = %d (want >= 1)", c.CoarseReferences)
 	case !(c.Decades > 0 && c.Decades < 10):
 		return c, settingf("CorrSettings.Decades = %g (want in (0, 10))", c.Decades)
 	}
@@ -114,9 +129,12 @@ type CorrDim struct {
 	// and last radius used.
 	Fit Line
 	// References is the number of reference points used, TotalPairs the
-	// number of pairs the sums are fractions of.
-	References int
-	TotalPairs int64
+	// number of pairs the sums are fractions of, up to radius Cut; beyond
+	// it the sums grow by what CoarseReferences reference points counted.
+	References       int
+	TotalPairs       int64
+	Cut              int
+	CoarseReferences int
 	// Found is false when no region satisfied the rule; D2 is then NaN.
 	Found bool
 }
@@ -130,8 +148,10 @@ type CorrDim struct {
 //
 // Pairs are counted from up to References reference points spread evenly
 // over the series, each against every other point, in a k-d tree (gonum
-// spatial/kdtree) searched only up to the largest radius: the cost is
-// O(R log n + R·n·C(rmax)) after an O(n log n) build, never the n² loop.
+// spatial/kdtree) searched only up to a radius: CoarseReferences of them
+// count every radius, and the rest only up to the radius where the sum
+// reaches twice MaxSum, past the fitted range. The cost is O(n log n) for
+// the tree and O(R (log n + n·C(r))) for the searches, never the n² loop.
 //
 // Scaling-region rule: among windows of consecutive radii that span
 // Decades decades, in which every radius has at least MinPairs pairs and a
@@ -180,26 +200,54 @@ func CorrelationDimension(ctx context.Context, x []float64, lag, dim int, s *Cor
 	}
 	t := newTree(e, m, maxNorm)
 	refs := min(set.References, m)
-	hist := make([]int64, nr)
-	var total int64
-	for r := 0; r < refs; r++ {
-		if r%64 == 0 {
-			if err := ctx.Err(); err != nil {
-				return nil, fmt.Errorf("embed: correlation dimension canceled after %d of %d reference points: %w", r, refs, err)
+	// Pass 1: a few references count every radius, to find where the
+	// sums pass the fitted range; pass 2: every reference counts up to
+	// that radius only (the pairs beyond it are most of the work and
+	// serve only the picture of the saturation).
+	coarse := min(set.CoarseReferences, refs)
+	histC := make([]int64, nr)
+	totalC, err := countPairs(ctx, t, coarse, m, set.Theiler, radii, histC)
+	if err != nil {
+		return nil, err
+	}
+	cut := nr - 1
+	if coarse < refs {
+		var cum int64
+		for k := range histC {
+			cum += histC[k]
+			if float64(cum) >= float64(cutFactor*set.MaxSum)*float64(totalC) {
+				cut = k
+				break
 			}
 		}
-		q := int(int64(r) * int64(m) / int64(refs))
-		t.countAround(q, set.Theiler, radii, hist)
-		// points outside the window [q-theiler, q+theiler]
-		total += int64(m - (min(q+set.Theiler, m-1) - max(q-set.Theiler, 0) + 1))
+	}
+	hist := histC
+	total := totalC
+	if coarse < refs {
+		hist = make([]int64, cut+1)
+		if total, err = countPairs(ctx, t, refs, m, set.Theiler, radii[:cut+1], hist); err != nil {
+			return nil, err
+		}
 	}
 	out := &CorrDim{Dim: dim, Lag: lag, Radii: radii, Sum: make([]float64, nr), Pairs: make([]int64, nr),
-		References: refs, TotalPairs: total}
-	var cum int64
-	for k := range hist {
-		cum += hist[k]
-		out.Pairs[k] = cum
-		out.Sum[k] = float64(cum) / float64(total)
+		References: refs, TotalPairs: total, Cut: cut, CoarseReferences: coarse}
+	var cum, cumC int64
+	for k := range radii {
+		cumC += histC[k]
+		if k <= cut {
+			cum += hist[k]
+			out.Pairs[k] = cum
+			out.Sum[k] = float64(cum) / float64(total)
+			continue
+		}
+		// beyond the cut: the coarse pass's increments on top of the
+		// full pass's sum at the cut (so the sums still increase)
+		var atCut int64
+		for _, h := range histC[:cut+1] {
+			atCut += h
+		}
+		out.Pairs[k] = out.Pairs[cut] + (cumC - atCut)
+		out.Sum[k] = out.Sum[cut] + float64(cumC-atCut)/float64(totalC)
 	}
 	lr := make([]float64, nr)
 	lc := make([]float64, nr)
@@ -239,4 +287,23 @@ func CorrelationDimension(ctx context.Context, x []float64, lag, dim int, s *Cor
 		out.D2Err = max(out.Fit.SlopeErr, bestSpread/2)
 	}
 	return out, nil
+}
+
+// countPairs counts, for refs reference points spread evenly over the m
+// points, the points outside each one's Theiler window by distance bin
+// (see countAround), and returns the number of pairs considered.
+func countPairs(ctx context.Context, t *tree, refs, m, theiler int, edges []float64, hist []int64) (int64, error) {
+	var total int64
+	for r := 0; r < refs; r++ {
+		if r%64 == 0 {
+			if err := ctx.Err(); err != nil {
+				return 0, fmt.Errorf("embed: correlation dimension canceled after %d of %d reference points: %w", r, refs, err)
+			}
+		}
+		q := int(int64(r) * int64(m) / int64(refs))
+		t.countAround(q, theiler, edges, hist)
+		// points outside the window [q-theiler, q+theiler]
+		total += int64(m - (min(q+theiler, m-1) - max(q-theiler, 0) + 1))
+	}
+	return total, nil
 }

@@ -56,7 +56,7 @@ func TestCorrelationSumBruteForce(t *testing.T) {
 	x := henonX(600)
 	const lag, dim, theiler = 1, 3, 4
 	d, err := embed.CorrelationDimension(context.Background(), x, lag, dim,
-		&embed.CorrSettings{Theiler: theiler, References: 1 << 20, Radii: 12, MinRadius: 0.01})
+		&embed.CorrSettings{Theiler: theiler, References: 1 << 20, CoarseReferences: 1 << 20, Radii: 12, MinRadius: 0.01})
 	require.NoError(t, err)
 	e, err := embed.Embed(x, lag, dim)
 	require.NoError(t, err)
@@ -82,6 +82,17 @@ func TestCorrelationSumBruteForce(t *testing.T) {
 	}
 	assert.Equal(t, total, d.TotalPairs, "ordered pairs outside the Theiler window")
 	assert.Equal(t, count, d.Pairs, "pairs within each radius: tree against brute force")
+	// With 200 coarse references the full count stops at the cut; up to
+	// there every pair is still counted.
+	d2, err := embed.CorrelationDimension(context.Background(), x, lag, dim,
+		&embed.CorrSettings{Theiler: theiler, References: 1 << 20, Radii: 12, MinRadius: 0.01, MaxSum: 0.01})
+	require.NoError(t, err)
+	require.Less(t, d2.Cut, len(d2.Radii)-1, "the two-pass count is exercised")
+	assert.Equal(t, count[:d2.Cut+1], d2.Pairs[:d2.Cut+1], "pairs up to the cut: tree against brute force")
+	assert.Equal(t, total, d2.TotalPairs)
+	for k := 1; k < len(d2.Sum); k++ {
+		assert.GreaterOrEqual(t, d2.Sum[k], d2.Sum[k-1], "sums increase across the cut")
+	}
 }
 
 func TestCorrelationDimensionNoise(t *testing.T) {
