@@ -54,6 +54,16 @@
 // than its surrogates) and a linear rise of the divergence curve are the
 // checks that separate them.
 //
+// # Allocation and cost
+//
+// Each method builds its k-d trees (O(n log n), allocating the tree) and
+// a few workspaces once; the neighbour searches inside its loops allocate
+// nothing (TestSearchesDoNotAllocate). Methods that visit many points
+// spread a bounded number of reference points evenly over the series
+// (2000 by default), so their cost grows like n log n, not n². IAAFT
+// surrogates cost tens of transforms and sorts each; Analyze runs them on
+// at most 4096 values.
+//
 // # Errors
 //
 // Sentinels usable with errors.Is: ErrTooShort, ErrConstant, ErrNonFinite,
