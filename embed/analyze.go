@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/plumbdyn/plumb/internal/detmath"
 )
@@ -199,7 +200,7 @@ func (r *Report) optional(step string, err error) error {
 		return nil
 	}
 	if errors.Is(err, ErrTooShort) || errors.Is(err, ErrEmbedding) {
-		r.note("%s skipped: %v", step, err)
+		r.note("%s skipped: %s", step, strings.TrimPrefix(err.Error(), "embed: "))
 		return nil
 	}
 	return fmt.Errorf("%s: %w", step, err)
