@@ -4,6 +4,12 @@ import (
 	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
+// DefaultMaxLag bounds the lags AverageMutualInfo and Autocorrelate try by
+// default: each lag costs a pass over the series, and a series whose
+// memory outlasts 2000 samples is sampled far finer than its dynamics
+// need (common practice: decimate it first).
+const DefaultMaxLag = 2000
+
 // MutualInfo is the average mutual information between x(t) and x(t+lag),
 // lag = 0 .. len(Info)-1, with the first minimum that chooses the delay.
 type MutualInfo struct {
@@ -32,7 +38,8 @@ func AMIBins(n int) int {
 // AverageMutualInfo returns the average mutual information of the pairs
 // (x[i], x[i+lag]) for lag = 0 .. maxLag, stopping early once the first
 // minimum is found and the curve has been followed to twice its lag (at
-// least 10 lags further). maxLag <= 0 means len(x)/4.
+// least 10 lags further). maxLag <= 0 means len(x)/4, at most
+// DefaultMaxLag.
 //
 // Binning rule: the range [min x, max x] of the whole series is cut into
 // b = AMIBins(n) equal-width bins (Sturges' rule), the same for both
@@ -55,7 +62,7 @@ func AverageMutualInfo(x []float64, maxLag int) (*MutualInfo, error) {
 		return nil, shortf("mutual information: %d values (want at least %d)", n, MinLen)
 	}
 	if maxLag <= 0 {
-		maxLag = n / 4
+		maxLag = min(n/4, DefaultMaxLag)
 	}
 	maxLag = min(maxLag, n-MinLen)
 	lo, hi := extent(x)
@@ -128,7 +135,8 @@ type Autocorrelation struct {
 //	R(l) = sum_{i<n-l} (x_i - m)(x_{i+l} - m) / sum_i (x_i - m)²
 //
 // (the biased estimator, so |R| <= 1), computed directly for l = 0, 1, ...
-// until it has passed both 1/e and zero, or maxLag (<= 0: len(x)/4).
+// until it has passed both 1/e and zero, or maxLag (<= 0: len(x)/4, at
+// most DefaultMaxLag).
 // Cost O(n) per lag.
 //
 // References:
@@ -141,7 +149,7 @@ func Autocorrelate(x []float64, maxLag int) (*Autocorrelation, error) {
 		return nil, shortf("autocorrelation: %d values (want at least %d)", n, MinLen)
 	}
 	if maxLag <= 0 {
-		maxLag = n / 4
+		maxLag = min(n/4, DefaultMaxLag)
 	}
 	maxLag = min(maxLag, n-2)
 	m, sd := moments(x)
