@@ -94,7 +94,8 @@ type Choices struct {
 //     floor); otherwise the first minimum of the mutual information; when
 //     that has none, the autocorrelation's 1/e time.
 //  2. The Theiler window (unless set): the autocorrelation's first zero
-//     (its 1/e time when there is no zero), at least 1 and at most n/20.
+//     (its 1/e time when there is no zero, the longest lag computed when
+//     it stays above 1/e), at least 1 and at most n/20.
 //  3. The dimension (unless set): the larger of the false-neighbour and
 //     Cao dimensions up to MaxDim; when neither settles, 5, with a note.
 //  4. With that embedding: the correlation dimension, the largest exponent
@@ -177,8 +178,13 @@ func Analyze(ctx context.Context, s *Series, set *Settings) (*Report, error) {
 		r.Theiler, r.Choices.Theiler = c.Theiler, "given"
 	case ac.FirstZero > 0:
 		r.Theiler, r.Choices.Theiler = min(ac.FirstZero, maxW), "the autocorrelation's first zero"
+	case ac.EFold > 0:
+		r.Theiler, r.Choices.Theiler = min(ac.EFold, maxW), "the autocorrelation's 1/e time (it has no zero)"
 	default:
-		r.Theiler, r.Choices.Theiler = min(max(ac.EFold, 1), maxW), "the autocorrelation's 1/e time (it has no zero)"
+		r.Theiler, r.Choices.Theiler = min(max(len(ac.R)-1, 1), maxW), "the longest lag computed (the autocorrelation stays above 1/e)"
+	}
+	if ac.EFold == 0 {
+		r.note("the autocorrelation stays above 1/e for %d samples: the series drifts (a trend, a random walk) or is sampled far finer than it changes; the measures below assume a stationary signal", len(ac.R)-1)
 	}
 	if err := r.chooseDim(ctx, x, c); err != nil {
 		return r, err

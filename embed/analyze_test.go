@@ -72,3 +72,22 @@ func TestAnalyzeBadInput(t *testing.T) {
 	require.NotNil(t, r, "the partial report comes with the error")
 	assert.NotNil(t, r.Autocorrelation)
 }
+
+// TestAnalyzeTrend: for a linear ramp of n values the biased
+// autocorrelation at lag l = a·n is 12·∫_0^(1-a) (u-1/2)(u+a-1/2) du
+// (exact identity, continuous limit), 0.509 at a = 2000/12000 > 1/e; so
+// over the 2000 lags computed it stays above 1/e, and the report must say
+// that the stationarity the methods assume is missing.
+func TestAnalyzeTrend(t *testing.T) {
+	x := whiteNoise(12000, 8)
+	for i := range x {
+		x[i] = 0.001*float64(i) + 0.1*x[i]
+	}
+	s, err := embed.NewSeries(x, 1)
+	require.NoError(t, err)
+	r, err := embed.Analyze(context.Background(), s, &embed.Settings{Surrogates: -1})
+	require.NoError(t, err)
+	require.Zero(t, r.Autocorrelation.EFold, "the ramp's autocorrelation fell below 1/e")
+	assert.Contains(t, strings.Join(r.Notes, "\n"), "the series drifts")
+	assert.Greater(t, r.Theiler, 1, "a window as long as the memory, not one sample")
+}
