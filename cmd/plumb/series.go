@@ -8,40 +8,44 @@ import (
 	"io"
 	"math"
 	"os"
+	"path/filepath"
 	"strconv"
 	"strings"
 
 	"github.com/plumbdyn/plumb/embed"
+	"github.com/plumbdyn/plumb/internal/runio"
 )
 
 var seriesCmd = &command{
 	name:    "series",
 	summary: "analyse a measured series: lag, dimension, D2, exponent, forecast horizon",
-	doc: `Analyse one column of a CSV file (FILE, or - for stdin) as a measured
-signal whose equations are unknown: the delay (first minimum of the mutual
-information, or 1 for a series that decorrelates within one sample), the
-embedding dimension (false nearest neighbours and Cao's E1, E2), the
-correlation dimension D2 with its scaling region, the largest Lyapunov
-exponent from divergence curves (Rosenstein; Kantz), the forecast horizon
-of nearest-neighbour forecasts (the lead where their error reaches
---fraction of the spread) beside the horizon the exponent predicts, a rank
-test against IAAFT surrogates, and the 0-1 test for chaos. Every number
-comes with its error and the choice that shaped it; notes say where a
-method's assumptions look doubtful (noise, too few points).
+	doc: `Analyse one column of a CSV file or a 2-D NumPy .npy array (FILE, or - for
+stdin, read as CSV) as a measured signal whose equations are unknown: the
+delay (first minimum of the mutual information, or 1 for a series that
+decorrelates within one sample), the embedding dimension (false nearest
+neighbours and Cao's E1, E2), the correlation dimension D2 with its
+scaling region, the largest Lyapunov exponent from divergence curves
+(Rosenstein; Kantz), the forecast horizon of nearest-neighbour forecasts
+(the lead where their error reaches --fraction of the spread) beside the
+horizon the exponent predicts, a rank test against IAAFT surrogates, and
+the 0-1 test for chaos. Every number comes with its error and the choice
+that shaped it; notes say where a method's assumptions look doubtful
+(noise, too few points).
 
-The file has a header of column names (or no header: columns are numbered
-from 1); --column picks the data, --time a time column whose steps must be
-equal (or give --dt). Empty cells, text and NaN are errors naming the line
-and column. --format json writes one object; JSON keys: plumb_version,
-arch, command, source, settings, status, error (null unless the analysis
-failed), series (when read), embedding (when chosen), delay (when
-computed), dimension (when computed), correlation_dimension (when
-computed), exponent (when computed), forecast (when computed),
-surrogate_test (when run), zero_one (when run), notes, caution. --plot
-draws five panels: mutual information, false neighbours with Cao's E1 and
-E2, correlation sums with the fitted region, divergence curves with their
-fitted lines, forecast error against lead time (1200x1350 pixels unless
---plot-size says otherwise).
+A CSV file has a header of column names (or no header: columns are
+numbered from 1); --column picks the data, --time a time column whose
+steps must be equal (or give --dt). A .npy file's columns are numbered
+from 1; its time is --time (default column 1). Empty cells, text and NaN
+are errors naming the line and column. --format json writes one object;
+JSON keys: plumb_version, arch, command, source, settings, status, error
+(null unless the analysis failed), series (when read), embedding (when
+chosen), delay (when computed), dimension (when computed),
+correlation_dimension (when computed), exponent (when computed), forecast
+(when computed), surrogate_test (when run), zero_one (when run), notes,
+caution. --plot draws five panels: mutual information, false neighbours
+with Cao's E1 and E2, correlation sums with the fitted region, divergence
+curves with their fitted lines, forecast error against lead time
+(1200x1350 pixels unless --plot-size says otherwise).
 
 A forecast horizon from data describes the recorded signal, not a safety
 certificate for the real system; safety-critical use follows the field's
@@ -150,7 +154,12 @@ func (f *seriesFlags) run(ctx context.Context, cl *call, fs *flag.FlagSet) error
 		defer fh.Close()
 		in, source = fh, file
 	}
-	s, err := embed.ReadColumn(in, embed.ReadOptions{Source: source, Column: f.column, Time: f.timeCol, Dt: f.dt})
+	var s *embed.Series
+	if strings.EqualFold(filepath.Ext(file), ".npy") {
+		s, err = f.readNPY(in, source)
+	} else {
+		s, err = embed.ReadColumn(in, embed.ReadOptions{Source: source, Column: f.column, Time: f.timeCol, Dt: f.dt})
+	}
 	if err != nil {
 		return readError(err)
 	}
@@ -185,11 +194,59 @@ func (f *seriesFlags) run(ctx context.Context, cl *call, fs *flag.FlagSet) error
 	return nil
 }
 
+// readNPY reads a 2-D NumPy array (internal/runio): its columns are
+// numbered from 1 as in a CSV file without a header; the time is --time
+// (default column 1), the data --column (default the last).
+func (f *seriesFlags) readNPY(in io.Reader, source string) (*embed.Series, error) {
+	if f.dt != 0 {
+		return nil, usagef("--dt %g: a .npy file's time column sets the interval (see --time)", f.dt)
+	}
+	index := func(flag, v string) (string, error) {
+		k, err := strconv.Atoi(v)
+		if err != nil || k < 1 {
+			return "", usagef("--%s %s: a .npy file's columns are numbered from 1", flag, v)
+		}
+		return strconv.Itoa(k - 1), nil
+	}
+	opt := runio.Options{Source: source}
+	var err error
+	if f.timeCol != "" {
+		if opt.Time, err = index("time", f.timeCol); err != nil {
+			return nil, err
+		}
+	}
+	if f.column != "" {
+		col, err := index("column", f.column)
+		if err != nil {
+			return nil, err
+		}
+		opt.Columns = []string{col}
+	}
+	run, err := runio.ReadNPY(in, opt)
+	if err != nil {
+		return nil, err
+	}
+	k := run.Dim()
+	if k == 0 {
+		return nil, usagef("FILE %s: no data column beside the time column", source)
+	}
+	x := make([]float64, run.Len())
+	for i := range x {
+		x[i] = run.Y[i*k+k-1]
+	}
+	return embed.FromTimes(run.T, x)
+}
+
 // readError turns a reading error into a usage error (bad input: exit 2).
 func readError(err error) error {
 	var ie *embed.InputError
-	if errors.As(err, &ie) || errors.Is(err, embed.ErrSettings) {
-		return usagef("%s", strings.TrimPrefix(err.Error(), "embed: "))
+	var re *runio.Error
+	var ue *usageError
+	switch {
+	case errors.As(err, &ue):
+		return err
+	case errors.As(err, &ie) || errors.Is(err, embed.ErrSettings) || errors.As(err, &re):
+		return usagef("%s", strings.TrimPrefix(strings.TrimPrefix(err.Error(), "embed: "), "runio: "))
 	}
 	return err
 }

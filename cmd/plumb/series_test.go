@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -162,6 +163,74 @@ func TestSeriesPlot(t *testing.T) {
 	for _, title := range []string{"Mutual information", "False neighbours", "Correlation sums", "Divergence of neighbours", "Nearest-neighbour forecasts"} {
 		if !bytes.Contains(b, []byte(title)) {
 			t.Errorf("the picture has no panel %q", title)
+		}
+	}
+}
+
+// npyOf writes rows as a 2-D little-endian float64 .npy array, version
+// 1.0 (magic, version, header length, a Python dict literal padded with
+// spaces to a multiple of 64 bytes and ending in a newline, then the data).
+func npyOf(rows [][]float64) []byte {
+	dict := "{'descr': '<f8', 'fortran_order': False, 'shape': (" + strconv.Itoa(len(rows)) + ", " + strconv.Itoa(len(rows[0])) + "), }"
+	pad := 64 - (10+len(dict)+1)%64
+	dict += strings.Repeat(" ", pad%64) + "\n"
+	var b bytes.Buffer
+	b.WriteString("\x93NUMPY\x01\x00")
+	b.WriteByte(byte(len(dict)))
+	b.WriteByte(byte(len(dict) >> 8))
+	b.WriteString(dict)
+	for _, r := range rows {
+		for _, v := range r {
+			bits := math.Float64bits(v)
+			for k := 0; k < 8; k++ {
+				b.WriteByte(byte(bits >> (8 * k)))
+			}
+		}
+	}
+	return b.Bytes()
+}
+
+// TestSeriesNPY: the same Hénon values as a .npy array give the same
+// report as the CSV file, but for the source's name.
+func TestSeriesNPY(t *testing.T) {
+	var rows [][]float64
+	for i, line := range strings.Split(strings.TrimSpace(henonCSV()), "\n")[1:] {
+		_, v, _ := strings.Cut(line, ",")
+		x, err := strconv.ParseFloat(v, 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rows = append(rows, []float64{float64(i), x})
+	}
+	dir := t.TempDir()
+	path := filepath.Join(dir, "henon.npy")
+	if err := os.WriteFile(path, npyOf(rows), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	res := plumbRun(t, "series", path, "--column", "2", "--surrogates", "3", "--quiet")
+	if res.code != exitOK {
+		t.Fatalf("exit %d: %s", res.code, res.stderr)
+	}
+	csv := plumbRun(t, "series", seriesFile, "--column", "x", "--surrogates", "3", "--quiet")
+	if got, want := res.stdout, strings.Replace(csv.stdout, seriesFile, path, 1); got != want {
+		t.Errorf(".npy report differs from the CSV's:\n%s", firstDiff(got, want))
+	}
+	rows[7][1] = math.NaN()
+	bad := filepath.Join(dir, "nan.npy")
+	if err := os.WriteFile(bad, npyOf(rows), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		args []string
+		says string
+	}{
+		{[]string{"series", path, "--column", "x"}, "--column x: a .npy file's columns are numbered from 1"},
+		{[]string{"series", path, "--dt", "2"}, "--dt 2: a .npy file's time column sets the interval"},
+		{[]string{"series", bad, "--column", "2"}, "row 8: column 2"}, // runio counts rows from 1
+	} {
+		res := plumbRun(t, c.args...)
+		if res.code != exitUsage || !strings.Contains(res.stderr, c.says) {
+			t.Errorf("%v: exit %d, stderr %q; want %d and %q", c.args, res.code, res.stderr, exitUsage, c.says)
 		}
 	}
 }
