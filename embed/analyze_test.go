@@ -85,7 +85,7 @@ func TestAnalyzeTrend(t *testing.T) {
 	}
 	s, err := embed.NewSeries(x, 1)
 	require.NoError(t, err)
-	r, err := embed.Analyze(context.Background(), s, &embed.Settings{Surrogates: -1})
+	r, err := embed.Analyze(context.Background(), s, &embed.Settings{Surrogates: -1, MaxDim: 2})
 	require.NoError(t, err)
 	require.Zero(t, r.Autocorrelation.EFold, "the ramp's autocorrelation fell below 1/e")
 	assert.Contains(t, strings.Join(r.Notes, "\n"), "the series drifts")
