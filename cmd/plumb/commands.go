@@ -40,6 +40,7 @@ func init() {
 		trustCmd,
 		spectrumCmd,
 		solveCmd,
+		seriesCmd,
 		modelsCmd,
 		versionCmd,
 		helpCmd,

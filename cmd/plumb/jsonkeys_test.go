@@ -81,6 +81,7 @@ func TestJSONKeysMatchHelp(t *testing.T) {
 		{"solve", true, true, []string{"--model", "henon", "--steps", "10"}},
 		{"spectrum", false, true, []string{"--t1", "200"}},
 		{"spectrum", true, true, []string{"--model", "henon"}},
+		{"series", false, true, []string{"testdata/series_henon.csv", "--column", "x", "--surrogates", "5"}},
 		{"models", false, true, nil},
 		{"version", false, true, nil},
 	}
