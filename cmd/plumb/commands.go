@@ -40,6 +40,7 @@ func init() {
 		trustCmd,
 		spectrumCmd,
 		solveCmd,
+		ensembleCmd,
 		modelsCmd,
 		versionCmd,
 		helpCmd,
