@@ -3,6 +3,7 @@ package plumb
 import (
 	"context"
 	"math"
+	"os"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -243,4 +244,37 @@ func TestEnsembleGivenStarts(t *testing.T) {
 	require.InDelta(t, 0.002, rep.Delta, 1e-15, "the largest distance from the start (exact up to rounding)")
 	require.Equal(t, []float64{1.001, 1, 1}, rep.Run.Member(0, 1))
 	require.Len(t, rep.PartingTimes, 2)
+}
+
+// System.BatchProblem: a system read from formulas runs on the compiled
+// batch evaluator, a built-in on its own field; either way a one-member
+// batch gives the bits of Solve on the System's Problem (exact identity:
+// the batch evaluator repeats the tape's operations, the batch stepper
+// Solve's).
+func TestSystemBatchProblemBits(t *testing.T) {
+	file, err := os.Open("examples/systems/lab-loop.json")
+	require.NoError(t, err)
+	defer file.Close()
+	fromFile, err := LoadSystem(file)
+	require.NoError(t, err)
+	builtin, err := Model("lorenz")
+	require.NoError(t, err)
+	for _, sys := range []*System{fromFile, builtin} {
+		s := integrate.Settings{RelTol: 1e-10, AbsTol: 1e-10, Every: 0.5}
+		bp, err := sys.BatchProblem([][]float64{sys.Start()})
+		require.NoError(t, err)
+		got, err := integrate.SolveBatch(context.Background(), bp, 20, &integrate.BatchSettings{Settings: s, Workers: 2})
+		require.NoError(t, err)
+		s.DropSteps = true
+		want, err := integrate.Solve(context.Background(), sys.Problem(), 20, integrate.DormandPrince54, &s)
+		require.NoError(t, err)
+		require.Equal(t, want.Stats.Accepted, got.Stats.Accepted, sys.Name)
+		for j := range want.Samples {
+			require.Equalf(t, want.Samples[j].Y, got.Samples[j].Y, "%s at t=%g", sys.Name, want.Samples[j].T)
+		}
+	}
+	m, err := Model("henon")
+	require.NoError(t, err)
+	_, err = m.BatchProblem(nil)
+	require.ErrorIs(t, err, ErrKind)
 }

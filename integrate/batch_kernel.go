@@ -79,27 +79,28 @@ func (b *batchBlock) attempt(t, h, sqrtInvN float64, rtol, atol []float64) {
 	for c := 0; c < b.n; c++ {
 		at, rt := atol[c], rtol[c]
 		o := c * m
+		yc, k1c, k3c, k4c, k5c, k6c := y[o:o+m], k1[o:o+m], k3[o:o+m], k4[o:o+m], k5[o:o+m], k6[o:o+m]
+		y1c, pwc, ewc := y1[o:o+m], pw[o:o+m], ew[o:o+m]
 		for k := range sum {
-			i := o + k
-			yn := (y[i] + ((float64(ha71*k1[i]) + float64(ha73*k3[i])) + (float64(ha74*k4[i]) + float64(ha75*k5[i])))) + float64(ha76*k6[i])
-			y1[i] = yn
+			yn := (yc[k] + ((float64(ha71*k1c[k]) + float64(ha73*k3c[k])) + (float64(ha74*k4c[k]) + float64(ha75*k5c[k])))) + float64(ha76*k6c[k])
+			y1c[k] = yn
 			sum[k] += yn - yn // 0, or NaN for a NaN or Inf in y1
-			ay, ay1 := math.Abs(y[i]), math.Abs(yn)
+			ay, ay1 := math.Abs(yc[k]), math.Abs(yn)
 			if ay1 > ay {
 				ay = ay1
 			}
 			wt := hs / (at + float64(rt*ay)) // h/(sk·√n)
-			pe := ((float64(dpE1*k1[i]) + float64(dpE3*k3[i])) + (float64(dpE4*k4[i]) + float64(dpE5*k5[i]))) + float64(dpE6*k6[i])
-			pw[i] = float64(pe * wt)
-			ew[i] = float64(dpE7 * wt)
+			pe := ((float64(dpE1*k1c[k]) + float64(dpE3*k3c[k])) + (float64(dpE4*k4c[k]) + float64(dpE5*k5c[k]))) + float64(dpE6*k6c[k])
+			pwc[k] = float64(pe * wt)
+			ewc[k] = float64(dpE7 * wt)
 		}
 	}
 	b.f(th, m, y1, k7)
 	for c := 0; c < b.n; c++ {
 		o := c * m
+		pwc, ewc, k7c := pw[o:o+m], ew[o:o+m], k7[o:o+m]
 		for k := range sum {
-			i := o + k
-			r := pw[i] + float64(ew[i]*k7[i]) // e_i/(sk_i·√n)
+			r := pwc[k] + float64(ewc[k]*k7c[k]) // e_i/(sk_i·√n)
 			sum[k] += float64(r * r)
 		}
 	}
