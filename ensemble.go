@@ -18,7 +18,8 @@ type EnsembleSettings struct {
 	// difference divided by its scale). Required (> 0) unless Starts is
 	// given; it is also the smallest scale of the finite-size exponent.
 	Delta float64
-	// Spread places the members: SpreadBall (default) or SpreadLine.
+	// Spread places the members: SpreadBall (default) or SpreadLine. The
+	// report says "given" for members from Starts.
 	Spread Spread
 	// Along names the perturbed components; nil means the observed ones
 	// (Distance.Observe, or all). SpreadLine takes exactly one (nil: the
@@ -184,6 +185,9 @@ func Ensemble(ctx context.Context, sys *System, t1 float64, s *EnsembleSettings)
 	}
 	starts := cfg.starts
 	rep.Members = len(starts) - 1
+	if es.Starts != nil {
+		rep.Spread, rep.Along = "given", nil
+	}
 
 	// Releases along the control's orbit: saturation level and λ(δ).
 	if es.Releases > 0 {

@@ -8,6 +8,7 @@ import (
 	"flag"
 	"fmt"
 	"math"
+	"os"
 	"sort"
 	"strings"
 
@@ -66,6 +67,7 @@ type ensembleFlags struct {
 	workers, maxSteps   int
 	seed                uint64
 	spread, along, rows string
+	membersFile         string
 	view, axes, at      string
 	dist                distanceFlags
 	alongList, axisList []string
@@ -92,6 +94,7 @@ func setupEnsemble(fs *flag.FlagSet, sh *shared) func(context.Context, *call) er
 	fs.IntVar(&f.members, "members", ensembleMembers, "`N` perturbed members beside the control")
 	finiteVar(fs, &f.delta, "delta", ensembleDelta, "distance `DELTA` of the members from the start, and the smallest scale of lambda(delta)")
 	fs.StringVar(&f.spread, "spread", "ball", "`KIND` of placement: ball (random directions at distance delta) or line (k·delta along one component)")
+	fs.StringVar(&f.membersFile, "members-file", "", "read the members' starts from `FILE` instead: a CSV header of the state names, then one member per line (--delta then defaults to their largest distance from the start)")
 	fs.StringVar(&f.along, "along", "", "comma-separated state `NAMES` perturbed (default: the observed ones; line: the first)")
 	fs.Uint64Var(&f.seed, "seed", 1, "`SEED` of the random directions")
 	finiteVar(fs, &f.tol, "tol", 0, "distance `TOL` at which a member has parted from the control; 0: a tenth of the saturation level")
@@ -284,6 +287,33 @@ func (f *ensembleFlags) check(cl *call, sys *plumb.System) error {
 	f.settings = plumb.EnsembleSettings{Members: f.members, Delta: f.delta, Spread: f.spreadKind, Along: f.alongList,
 		Seed: f.seed, Tol: f.tol, Every: f.dt, RelTol: f.rtol, AbsTol: f.atol, MaxSteps: f.maxSteps,
 		Ratio: f.ratio, Releases: releases, ReleaseEvery: f.releaseEvery, Workers: f.workers}
+	if f.membersFile != "" {
+		return f.readMembers(cl, sys)
+	}
+	return nil
+}
+
+// readMembers reads --members-file into the settings' Starts.
+func (f *ensembleFlags) readMembers(cl *call, sys *plumb.System) error {
+	for _, name := range []string{"members", "spread", "seed"} {
+		if cl.sh.given[name] {
+			return usagef("--%s: the members come from --members-file %s", name, f.membersFile)
+		}
+	}
+	file, err := os.Open(f.membersFile)
+	if err != nil {
+		return usagef("--members-file %s: %v", f.membersFile, err)
+	}
+	defer file.Close()
+	starts, err := plumb.ReadMembers(file, sys.States)
+	if err != nil {
+		return usagef("--members-file %s: %v", f.membersFile, strings.TrimPrefix(err.Error(), "plumb: "))
+	}
+	f.settings.Starts = starts
+	f.members = len(starts)
+	if !cl.sh.given["delta"] {
+		f.settings.Delta = 0
+	}
 	return nil
 }
 
@@ -455,7 +485,11 @@ func (f *ensembleFlags) table(cl *call, sys *plumb.System, rep *plumb.EnsembleRe
 	fmt.Fprintln(cl.stdout)
 	tw = newTable(cl.stdout)
 	fmt.Fprintf(tw, "system\t%s\n", d.heading())
-	fmt.Fprintf(tw, "members\t%d around the start, %s spread, delta %s along %s, seed %d\n", rep.Members, rep.Spread, fmtSig(rep.Delta), strings.Join(rep.Along, ", "), rep.Seed)
+	if rep.Spread == "given" {
+		fmt.Fprintf(tw, "members\t%d from %s, at most %s from the start\n", rep.Members, f.membersFile, fmtSig(rep.Delta))
+	} else {
+		fmt.Fprintf(tw, "members\t%d around the start, %s spread, delta %s along %s, seed %d\n", rep.Members, rep.Spread, fmtSig(rep.Delta), strings.Join(rep.Along, ", "), rep.Seed)
+	}
 	fmt.Fprintf(tw, "distance\t%s\n", rep.Distance.String())
 	fmt.Fprintf(tw, "method\t%s, rtol %s, atol %s\n", rep.Method, formatFloat(rep.RelTol), formatFloat(rep.AbsTol))
 	fmt.Fprintf(tw, "tol\t%s\n", fmtSig(rep.Tol))

@@ -150,3 +150,33 @@ func TestEnsemblePlots(t *testing.T) {
 		require.Greater(t, st.Size(), int64(1000))
 	}
 }
+
+// --members-file: the members are the file's rows (the control is the
+// start); a bad file is a usage error naming the flag, line and column.
+func TestEnsembleMembersFile(t *testing.T) {
+	dir := t.TempDir()
+	good := filepath.Join(dir, "m.csv")
+	require.NoError(t, os.WriteFile(good, []byte("z,x,y\n1,1.001,1\n1,1,1.002\n"), 0o644))
+	r := plumbRun(t, "ensemble", "--members-file", good, "--t1", "2", "--releases", "0", "--tol", "1", "--dt", "1", "--format", "jsonl", "--quiet")
+	require.Equal(t, exitOK, r.code, r.stderr)
+	lines := strings.Split(strings.TrimSpace(r.stdout), "\n")
+	require.Len(t, lines, 3)
+	var l memberLine
+	require.NoError(t, json.Unmarshal([]byte(lines[1]), &l))
+	require.Equal(t, []float64{1.001, 1, 1}, l.Start)
+
+	bad := filepath.Join(dir, "bad.csv")
+	require.NoError(t, os.WriteFile(bad, []byte("x,y,z\n1,2\n"), 0o644))
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--members-file", bad}, "line 2"},
+		{[]string{"--members-file", filepath.Join(dir, "none.csv")}, "--members-file"},
+		{[]string{"--members-file", good, "--members", "3"}, "--members"},
+	} {
+		r := plumbRun(t, append([]string{"ensemble"}, c.args...)...)
+		require.Equal(t, exitUsage, r.code, r.stderr)
+		require.Contains(t, r.stderr, c.want)
+	}
+}
