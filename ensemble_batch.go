@@ -30,7 +30,7 @@ func (s *System) BatchProblem(starts [][]float64) (integrate.BatchProblem, error
 	}
 	prog := s.form.fieldProg
 	bp.Fork = func() integrate.BatchFunc {
-		ev := prog.NewBatch(integrate.BatchBlock)
+		ev := prog.NewBatch(n, integrate.BatchBlock)
 		for i, v := range params {
 			// Slots: t, the n states, then the parameters in order.
 			if err := ev.SetVar(1+n+i, v); err != nil {

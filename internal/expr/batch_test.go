@@ -20,6 +20,7 @@ func TestBatchFieldMatchesFloat64(t *testing.T) {
 		{"functions", []string{"sin(x)*exp(-y^2) + atan2(y, z) - t", "sqrt(abs(x)) + x^3 - y^-2 + min(x, z)*max(y, sigma)",
 			"tanh(z)/cosh(x) + sinh(y) + atan(x) + log(1 + z^2) + cos(t*x) + tan(0.1*y) + sign(x) + step(y) + x^1.5"}},
 		{"constant rate", []string{"rho", "x", "-beta"}},
+		{"uniform parts and a repeated output", []string{"(2*sigma + rho)*x - t*beta", "(2*sigma + rho)*x - t*beta", "sin(rho)/(1 + y^2) + exp(-t)"}},
 	}
 	rng := rand.New(rand.NewPCG(1, 2))
 	for _, tc := range cases {
@@ -37,7 +38,7 @@ func TestBatchFieldMatchesFloat64(t *testing.T) {
 			params := []float64{10, 28, 8.0 / 3}
 			one := p.NewFloat64()
 			copy(one.Vars()[4:], params)
-			b := p.NewBatch(4)
+			b := p.NewBatch(3, 4)
 			for i, v := range params {
 				if err := b.SetVar(4+i, v); err != nil {
 					t.Fatal(err)
@@ -72,7 +73,7 @@ func TestBatchFieldNoAlloc(t *testing.T) {
 	g := NewGraph([]string{"t", "x", "y"})
 	a, _ := g.Parse("x*y - sin(t)")
 	c, _ := g.Parse("x^2 + y")
-	b := g.Compile([]Expr{a, c}).NewBatch(64)
+	b := g.Compile([]Expr{a, c}).NewBatch(2, 64)
 	y, d := make([]float64, 128), make([]float64, 128)
 	if n := testing.AllocsPerRun(100, func() { b.Field(0.5, 64, y, d) }); n != 0 {
 		t.Fatalf("%v allocations per run", n)
