@@ -101,8 +101,10 @@ func unitDirections(seed uint64, count, n int, along []int) [][]float64 {
 			var s float64
 			for j, i := range along {
 				if j%2 == 0 {
-					// Two deviates per pair of uniforms; 1 - Float64() is in (0, 1].
-					r := math.Sqrt(-2 * detmath.Log(1-rng.Float64()))
+					// Two deviates per pair of uniforms; the first is in
+					// (0, 1], k/2^53 with k = 1..2^53 (exact).
+					lg := detmath.Log(float64(float64(rng.Uint64()>>11+1) * 0x1p-53))
+					r := math.Sqrt(float64(-2 * lg))
 					a := float64(2*math.Pi) * rng.Float64()
 					u[i] = float64(r * detmath.Cos(a))
 					if j+1 < len(along) {
@@ -134,7 +136,7 @@ func perturbedStarts(start []float64, members int, delta float64, spread Spread,
 		i := along[0]
 		for k := 1; k <= members; k++ {
 			y := append([]float64(nil), start...)
-			y[i] += float64(float64(k)*delta) * m.scale(i)
+			y[i] += float64(float64(float64(k)*delta) * m.scale(i))
 			out = append(out, y)
 		}
 	default:
