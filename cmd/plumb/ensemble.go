@@ -48,7 +48,9 @@ is the control): its start, parting time and states at the report times.
 against time), spread (spread and largest pair on a log axis with the
 growth delta·exp(lambda·t) that the small-scale exponent predicts, and
 --tol) or projection (two components, --axes X,Y: the control's path drawn
-lightly and the members marked at the --at times).
+lightly and the members marked at the --at times). --animate FILE.gif
+writes the members moving across two components (--axes X,Y), the
+control in black, at most 120 frames of at most 800x500 pixels.
 
 This is a statement about the numerical model, not the real system;
 safety-critical use follows the field's codes and licensed review.`,
@@ -69,6 +71,7 @@ type ensembleFlags struct {
 	spread, along, rows string
 	membersFile         string
 	view, axes, at      string
+	animate             string
 	dist                distanceFlags
 	alongList, axisList []string
 	atList              []float64
@@ -110,6 +113,7 @@ func setupEnsemble(fs *flag.FlagSet, sh *shared) func(context.Context, *call) er
 	fs.StringVar(&f.view, "view", "members", "`VIEW` that --plot draws: members, spread or projection")
 	fs.StringVar(&f.axes, "axes", "", "state `NAMES` of the picture's axes: one for --view members, two (X,Y) for projection (default: the first one or two)")
 	fs.StringVar(&f.at, "at", "", "comma-separated `TIMES` at which --view projection marks the members (default: t1/4, t1/2, 3t1/4, t1)")
+	fs.StringVar(&f.animate, "animate", "", "write an animated GIF `FILE` of the members moving across two components (--axes X,Y, default the first two)")
 	addDistanceFlags(fs, &f.dist)
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
@@ -169,10 +173,16 @@ func (f *ensembleFlags) run(ctx context.Context, cl *call) error {
 	if cl.sh.given["rows"] && cl.sh.format != "csv" {
 		return usagef("--rows %s: only --format csv chooses its rows", f.rows)
 	}
-	for _, v := range []string{"view", "axes", "at"} {
+	for _, v := range []string{"view", "at"} {
 		if cl.sh.given[v] && cl.sh.plot == "" {
 			return usagef("--%s: give --plot FILE too; it shapes that picture", v)
 		}
+	}
+	if cl.sh.given["axes"] && cl.sh.plot == "" && f.animate == "" {
+		return usagef("--axes: give --plot FILE or --animate FILE too; it names that picture's axes")
+	}
+	if f.animate != "" && !strings.HasSuffix(strings.ToLower(f.animate), ".gif") {
+		return usagef("--animate %s: the animation is a GIF; name the file FILE.gif", f.animate)
 	}
 	sys, err := cl.sh.loadSystem(cl.sh.model)
 	if err != nil {
@@ -204,6 +214,15 @@ func (f *ensembleFlags) run(ctx context.Context, cl *call) error {
 	if cl.sh.plot != "" && rep.Run != nil {
 		if perr := f.plot(cl.sh.plot, cl.sh.plotSize, sys, rep); perr != nil {
 			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
+		}
+	}
+	if f.animate != "" && rep.Run != nil {
+		ix, iy := 0, 1
+		if len(f.axisList) == 2 {
+			ix, iy = stateIndex(sys, f.axisList[0]), stateIndex(sys, f.axisList[1])
+		}
+		if aerr := saveAnimation(f.animate, cl.sh.plotSize, sys, rep, ix, iy); aerr != nil {
+			return fmt.Errorf("writing --animate %s failed: %w", f.animate, aerr)
 		}
 	}
 	steps := 0
@@ -260,13 +279,19 @@ func (f *ensembleFlags) check(cl *call, sys *plumb.System) error {
 	if f.spreadKind == plumb.SpreadLine && len(f.alongList) > 1 {
 		return usagef("--along %s: --spread line moves one component", f.along)
 	}
-	switch want := map[string]int{"members": 1, "spread": 0, "projection": 2}[f.view]; {
+	want := map[string]int{"members": 1, "spread": 0, "projection": 2}[f.view]
+	if cl.sh.plot == "" {
+		want = 2 // the axes of --animate
+	}
+	switch {
 	case cl.sh.given["axes"] && want == 0:
 		return usagef("--axes %s: --view spread has no state axes", f.axes)
 	case len(f.axisList) > 0 && len(f.axisList) != want:
 		return usagef("--axes %s: --view %s takes %d name(s)", f.axes, f.view, want)
 	case f.view == "projection" && len(f.axisList) == 0 && len(sys.States) < 2:
 		return usagef("--view projection: %s has one state component; draw --view members", sys.Name)
+	case f.animate != "" && len(sys.States) < 2:
+		return usagef("--animate %s: %s has one state component; there is no plane to move across", f.animate, sys.Name)
 	}
 	if cl.sh.given["at"] {
 		for _, s := range strings.Split(f.at, ",") {

@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"context"
 	"encoding/json"
+	"image/gif"
 	"math"
 	"os"
 	"path/filepath"
@@ -108,6 +109,8 @@ func TestEnsembleUsage(t *testing.T) {
 		{[]string{"--model", "henon"}, "--model"},
 		{[]string{"--t1", "-1"}, "--t1"},
 		{[]string{"--format", "xml"}, "--format"},
+		{[]string{"--animate", "a.png"}, "--animate"},
+		{[]string{"--axes", "x,z"}, "--axes"},
 	}
 	for _, c := range cases {
 		t.Run(strings.Join(c.args, " "), func(t *testing.T) {
@@ -179,4 +182,21 @@ func TestEnsembleMembersFile(t *testing.T) {
 		require.Equal(t, exitUsage, r.code, r.stderr)
 		require.Contains(t, r.stderr, c.want)
 	}
+}
+
+// --animate writes a GIF within its bounds: at most 120 frames of at most
+// 800x500 pixels, one per report time when there are fewer.
+func TestEnsembleAnimate(t *testing.T) {
+	name := filepath.Join(t.TempDir(), "a.gif")
+	r := plumbRun(t, "ensemble", "--t1", "5", "--dt", "0.1", "--members", "3", "--releases", "0", "--tol", "1", "--animate", name, "--axes", "x,z", "--quiet")
+	require.Equal(t, exitOK, r.code, r.stderr)
+	f, err := os.Open(name)
+	require.NoError(t, err)
+	defer f.Close()
+	g, err := gif.DecodeAll(f)
+	require.NoError(t, err)
+	require.Len(t, g.Image, 51) // 51 report times: 0, 0.1, ..., 5
+	b := g.Image[0].Bounds()
+	require.LessOrEqual(t, b.Dx(), 800)
+	require.LessOrEqual(t, b.Dy(), 500)
 }
