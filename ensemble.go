@@ -78,7 +78,8 @@ type EnsembleReport struct {
 
 	// Times are the reported times; at each, MeanSpread is the
 	// root-mean-square distance of the members (control included) from
-	// their mean, LargestPair the largest distance between two of them,
+	// their mean, LargestPair the largest distance between two of them
+	// (null for more than 2000 members: the cost grows as their square),
 	// Within the fraction of perturbed members within Tol of the control.
 	Times       []float64 `json:"times"`
 	MeanSpread  []float64 `json:"spread"`
@@ -131,6 +132,13 @@ type EnsembleReport struct {
 
 // ensembleCaution is the usual caution on what an ensemble shows.
 const ensembleCaution = "a statement about the numerical model, not the real system; safety-critical use follows the field's codes and licensed review"
+
+// maxEnsembleBytes bounds the memory of the members' samples (4 GB).
+const maxEnsembleBytes = 4e9
+
+// maxPairMembers is the most members (the control included) whose largest
+// pairwise distance is computed: the cost grows as their square.
+const maxPairMembers = 2000
 
 // releaseAlign is how far below Delta the releases start (a factor of
 // 100: about 4.6/λ1 of alignment with the growing direction before the
@@ -355,6 +363,11 @@ func resolveEnsemble(sys *System, t1 float64, es *EnsembleSettings) (*ensembleCo
 	} else {
 		cfg.starts = perturbedStarts(start, es.Members, es.Delta, es.Spread, cfg.along, es.Seed, cfg.m)
 	}
+	// The members' samples are kept: bound their memory.
+	if bytes := (t1/es.Every + 2) * float64(len(cfg.starts)*n) * 8; bytes > maxEnsembleBytes {
+		return nil, bad("Every", es.Every, fmt.Sprintf("with %d members of %d components the samples would take %.3g GB (at most %g): report fewer times or run fewer members",
+			len(cfg.starts), n, bytes/1e9, maxEnsembleBytes/1e9))
+	}
 	return cfg, nil
 }
 
@@ -518,23 +531,9 @@ func ensembleCurves(rep *EnsembleReport, sol *integrate.BatchSolution, m ensMetr
 			}
 		}
 		rep.MeanSpread = append(rep.MeanSpread, math.Sqrt(ss/float64(mem)))
-		var largest float64
-		for a := 0; a < mem; a++ {
-			for b := a + 1; b < mem; b++ {
-				var s float64
-				for i := 0; i < n; i++ {
-					if obs[i] {
-						d := dev[a*n+i] - dev[b*n+i]
-						if pi := periodOf(m, i); pi > 0 {
-							d = math.Remainder(d, pi)
-						}
-						s += float64(d * d)
-					}
-				}
-				largest = math.Max(largest, s)
-			}
+		if mem <= maxPairMembers {
+			rep.LargestPair = append(rep.LargestPair, largestPair(dev, mem, n, obs, m))
 		}
-		rep.LargestPair = append(rep.LargestPair, math.Sqrt(largest))
 		within := 0
 		for k := 1; k < mem; k++ {
 			var s float64
@@ -567,6 +566,28 @@ func ensembleCurves(rep *EnsembleReport, sol *integrate.BatchSolution, m ensMetr
 			rep.PartingTimes[k] = &t0
 		}
 	}
+}
+
+// largestPair returns the largest distance between two of the mem
+// members whose wrapped, scaled differences from the control are dev.
+func largestPair(dev []float64, mem, n int, obs []bool, m ensMetric) float64 {
+	var largest float64
+	for a := 0; a < mem; a++ {
+		for b := a + 1; b < mem; b++ {
+			var s float64
+			for i := 0; i < n; i++ {
+				if obs[i] {
+					d := dev[a*n+i] - dev[b*n+i]
+					if pi := periodOf(m, i); pi > 0 {
+						d = math.Remainder(d, pi)
+					}
+					s += float64(d * d)
+				}
+			}
+			largest = math.Max(largest, s)
+		}
+	}
+	return math.Sqrt(largest)
 }
 
 // periodOf returns the period of component i in scaled units (0: none).

@@ -278,3 +278,17 @@ func TestSystemBatchProblemBits(t *testing.T) {
 	_, err = m.BatchProblem(nil)
 	require.ErrorIs(t, err, ErrKind)
 }
+
+// The members' samples are bounded in memory, and the largest pair is
+// left out (not estimated) past maxPairMembers.
+func TestEnsembleLimits(t *testing.T) {
+	sys, err := Model("lorenz")
+	require.NoError(t, err)
+	_, err = Ensemble(context.Background(), sys, 10, &EnsembleSettings{Delta: 1e-6, Members: 1_000_000, Every: 1e-4, Releases: -1, Tol: 1})
+	require.ErrorIs(t, err, integrate.ErrSettings)
+	require.Contains(t, err.Error(), "GB")
+	rep, err := Ensemble(context.Background(), sys, 0.1, &EnsembleSettings{Delta: 1e-6, Members: maxPairMembers, Every: 0.05, Releases: -1, Tol: 1})
+	require.NoError(t, err)
+	require.Empty(t, rep.LargestPair)
+	require.Len(t, rep.MeanSpread, 3)
+}

@@ -425,7 +425,11 @@ func (f *ensembleFlags) csv(cl *call, rep *plumb.EnsembleReport) error {
 			return err
 		}
 		for i, t := range rep.Times {
-			if err := w.Write([]string{formatFloat(t), formatFloat(rep.MeanSpread[i]), formatFloat(rep.LargestPair[i]), formatFloat(rep.Within[i])}); err != nil {
+			lp := ""
+			if i < len(rep.LargestPair) {
+				lp = formatFloat(rep.LargestPair[i])
+			}
+			if err := w.Write([]string{formatFloat(t), formatFloat(rep.MeanSpread[i]), lp, formatFloat(rep.Within[i])}); err != nil {
 				return err
 			}
 		}
@@ -487,7 +491,11 @@ func (f *ensembleFlags) table(cl *call, sys *plumb.System, rep *plumb.EnsembleRe
 		if r > 0 && j == (r-1)*(n-1)/(ensembleTableRows-1) {
 			continue
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%.0f%%\n", tableFloat(rep.Times[j]), fmtSig(rep.MeanSpread[j]), fmtSig(rep.LargestPair[j]), 100*rep.Within[j])
+		lp := "-"
+		if j < len(rep.LargestPair) {
+			lp = fmtSig(rep.LargestPair[j])
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%.0f%%\n", tableFloat(rep.Times[j]), fmtSig(rep.MeanSpread[j]), lp, 100*rep.Within[j])
 	}
 	if err := tw.Flush(); err != nil {
 		return err
