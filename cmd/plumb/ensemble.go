@@ -189,7 +189,11 @@ func (f *ensembleFlags) run(ctx context.Context, cl *call) error {
 		return err
 	}
 	if sys.Kind() == plumb.KindMap {
-		return usagef("--model %s: a map; plumb ensemble integrates flows (iterate maps with plumb solve --steps)", sys.Name)
+		src := "--model " + sys.Name
+		if cl.sh.file != "" {
+			src = "--file " + cl.sh.file
+		}
+		return usagef("%s: %s is a map; plumb ensemble integrates flows (iterate maps with plumb solve --steps)", src, sys.Name)
 	}
 	if err := f.check(cl, sys); err != nil {
 		return err
