@@ -76,6 +76,16 @@
 // field slides along, kinks that accumulate) it stops with ErrKink rather
 // than step over the kink. TaylorStats.KinkRestarts counts the restarts.
 //
+// # Batches
+//
+// SolveBatch and BatchStepper advance M copies of one problem (a
+// BatchProblem: one field, M starts) in lockstep with DormandPrince54 and
+// one step size, whose error norm is the largest member's. The field is a
+// BatchFunc over the members' states stored component-major; Loop and
+// LoopFork adapt a plain Func. Blocks of members go to several goroutines
+// with results bit-identical whatever their number; a one-member batch
+// gives Solve's bits.
+//
 // # Step control
 //
 // The local error of a trial step is measured in the root-mean-square norm

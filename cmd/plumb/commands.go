@@ -41,6 +41,7 @@ func init() {
 		spectrumCmd,
 		solveCmd,
 		seriesCmd,
+		ensembleCmd,
 		modelsCmd,
 		versionCmd,
 		helpCmd,

@@ -79,6 +79,7 @@ func TestJSONKeysMatchHelp(t *testing.T) {
 		{"solve", false, true, []string{"--t1", "1"}},
 		{"solve", false, false, []string{"--t1", "1", "--max-steps", "5"}},
 		{"solve", true, true, []string{"--model", "henon", "--steps", "10"}},
+		{"ensemble", false, true, []string{"--t1", "2", "--members", "3", "--releases", "4"}},
 		{"spectrum", false, true, []string{"--t1", "200"}},
 		{"spectrum", true, true, []string{"--model", "henon"}},
 		{"series", false, true, []string{"testdata/series_henon.csv", "--column", "x", "--surrogates", "5"}},
