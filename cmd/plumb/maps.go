@@ -140,7 +140,7 @@ func (f *solveFlags) orbit(ctx context.Context, sys *plumb.System, m *maps.Map) 
 		json:  func() any { return out },
 		table: func(w io.Writer) error { return orbitTable(w, sys, out) },
 		csv:   func(w io.Writer) error { return orbitCSV(w, sys, out) },
-		chart: func() *lineChart { return orbitChart(sys, out) },
+		chart: func() *lineChart { return orbitChart(sys, out, f.axisList) },
 		done:  count(end, "iterate"),
 	}
 	if runErr != nil {
@@ -190,15 +190,19 @@ func orbitTable(w io.Writer, sys *plumb.System, out mapSolveJSON) error {
 
 // orbitChart draws an orbit as dots: the first two components against each
 // other, or for a one-component map the return map x_(n+1) against x_n.
-func orbitChart(sys *plumb.System, out mapSolveJSON) *lineChart {
+func orbitChart(sys *plumb.System, out mapSolveJSON, axes []string) *lineChart {
 	c := &lineChart{Scatter: true}
 	var s series
 	if len(sys.States) >= 2 {
+		ix, iy := 0, 1
+		if len(axes) == 2 {
+			ix, iy = stateIndex(sys, axes[0]), stateIndex(sys, axes[1])
+		}
 		c.Title = fmt.Sprintf("%s: orbit of %d iterates", sys.Title, out.End)
-		c.XLabel, c.YLabel = sys.States[0], sys.States[1]
+		c.XLabel, c.YLabel = sys.States[ix], sys.States[iy]
 		for _, it := range out.Orbit {
-			s.X = append(s.X, it.X[0])
-			s.Y = append(s.Y, it.X[1])
+			s.X = append(s.X, it.X[ix])
+			s.Y = append(s.Y, it.X[iy])
 		}
 	} else {
 		c.Title = fmt.Sprintf("%s: return map of %d iterates", sys.Title, out.End)

@@ -54,6 +54,11 @@ type solveFlags struct {
 	sense      string
 	rows       string
 	steps      int
+	// axes names two state components: --plot then draws the second
+	// against the first (a projection of the orbit) instead of the
+	// states against time.
+	axes     string
+	axisList []string
 }
 
 // Defaults of plumb solve, echoed in every result.
@@ -87,6 +92,7 @@ func setupSolve(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	fs.StringVar(&f.sense, "cross-sense", "either", "`SENSE` of the crossings that count: rising, falling or either")
 	fs.StringVar(&f.rows, "rows", "samples", "`ROWS` that --format csv writes: samples or crossings")
 	fs.IntVar(&f.steps, "steps", mapSteps, "iterate a map `N` times, writing iterates 0..N (maps only)")
+	fs.StringVar(&f.axes, "axes", "", "two state `NAMES` X,Y: --plot draws Y against X, a projection of the orbit, instead of the states against time (a map's default is its first two states)")
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -251,6 +257,9 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	}
 	sys, err := cl.sh.loadSystem(cl.sh.model)
 	if err != nil {
+		return err
+	}
+	if err := f.pickAxes(cl, sys); err != nil {
 		return err
 	}
 	if sys.Kind() == plumb.KindMap {
@@ -499,8 +508,32 @@ func (r *solveRun) table(w io.Writer) error {
 	return tw.Flush()
 }
 
-// chart draws the state components against time.
+// pickAxes checks --axes: two distinct states of sys, and a --plot to
+// draw them on.
+func (f *solveFlags) pickAxes(cl *call, sys *plumb.System) error {
+	if !cl.sh.given["axes"] {
+		return nil
+	}
+	if cl.sh.plot == "" {
+		return usagef("--axes %s: give --plot FILE too; it names that picture's axes", f.axes)
+	}
+	list, err := nameList("axes", f.axes, sys)
+	if err != nil {
+		return err
+	}
+	if len(list) != 2 {
+		return usagef("--axes %s: name two states, X,Y (states: %s)", f.axes, strings.Join(sys.States, ", "))
+	}
+	f.axisList = list
+	return nil
+}
+
+// chart draws the state components against time, or with --axes X,Y the
+// path of (X, Y).
 func (r *solveRun) chart() *lineChart {
+	if len(r.f.axisList) == 2 {
+		return r.projection()
+	}
 	c := &lineChart{
 		Title:  fmt.Sprintf("%s: state against time", r.sys.Title),
 		XLabel: "t",
@@ -518,4 +551,21 @@ func (r *solveRun) chart() *lineChart {
 		c.Series = append(c.Series, series{Name: n, X: ts, Y: ys})
 	}
 	return c
+}
+
+// projection draws the samples' path in the plane of the two --axes
+// components, labelled with their names and units.
+func (r *solveRun) projection() *lineChart {
+	ix, iy := stateIndex(r.sys, r.f.axisList[0]), stateIndex(r.sys, r.f.axisList[1])
+	d := describe(r.sys)
+	s := series{Name: "path, t = " + formatFloat(r.f.t0) + " to " + formatFloat(r.f.t1), X: make([]float64, len(r.rows)), Y: make([]float64, len(r.rows))}
+	for i, smp := range r.rows {
+		s.X[i], s.Y[i] = smp.Y[ix], smp.Y[iy]
+	}
+	return &lineChart{
+		Title:  fmt.Sprintf("%s: %s against %s", r.sys.Title, r.f.axisList[1], r.f.axisList[0]),
+		XLabel: withUnit(d.States[ix].Name, d.States[ix].Unit),
+		YLabel: withUnit(d.States[iy].Name, d.States[iy].Unit),
+		Series: []series{s},
+	}
 }
