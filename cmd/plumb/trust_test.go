@@ -43,11 +43,14 @@ func TestTrustGolden(t *testing.T) {
 	}
 }
 
+// flowTrustJSON is the JSON of the audit of a system, as decoded.
+type flowTrustJSON = trustJSON[trustSettingsJSON]
+
 // decodeTrust runs plumb trust --format json and decodes the result.
-func decodeTrust(t *testing.T, args ...string) (trustJSON, map[string]json.RawMessage, result) {
+func decodeTrust(t *testing.T, args ...string) (flowTrustJSON, map[string]json.RawMessage, result) {
 	t.Helper()
 	r := plumbRun(t, append(append([]string{"trust"}, args...), "--format", "json", "--quiet")...)
-	var out trustJSON
+	var out flowTrustJSON
 	var raw map[string]json.RawMessage
 	if err := json.Unmarshal([]byte(r.stdout), &out); err != nil {
 		t.Fatalf("stdout is not one JSON object: %v\n%.400s", err, r.stdout)
@@ -367,7 +370,7 @@ func TestTrustCanceled(t *testing.T) {
 	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") {
 		t.Fatalf("canceled part way: exit %d, stderr %q", r.code, r.stderr)
 	}
-	var part trustJSON
+	var part flowTrustJSON
 	if err := json.Unmarshal([]byte(r.stdout), &part); err != nil {
 		t.Fatalf("a canceled audit wrote no JSON: %v", err)
 	}
