@@ -406,19 +406,9 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 		echo.RestartPlaces = f.restartPlaces
 	}
 	settings := &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist}
-	return cl.runJob(ctx, trustJob(auditJob{
-		what:     "the audit of " + sys.Name,
-		compared: "orbit",
-		progress: true,
-		audit: func(ctx context.Context, stage func(plumb.Stage, int, int)) (*plumb.Report, error) {
-			settings.Progress = stage
-			return f.audit(ctx, sys, float64(steps), settings)
-		},
-		wrap: func(rep *plumb.Report, runErr error) any {
-			e := echo
-			e.Exact = rep.Exact != nil // the double-double orbit
-			return newTrustJSON(sys, e, mapTrustUnits, rep, runErr)
-		},
-		head: systemHead(sys),
+	return cl.runJob(ctx, f.systemJob(sys, float64(steps), settings, "orbit", func(rep *plumb.Report, runErr error) any {
+		e := echo
+		e.Exact = rep.Exact != nil // the double-double orbit
+		return newTrustJSON(sys, e, mapTrustUnits, rep, runErr)
 	}))
 }

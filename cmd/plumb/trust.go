@@ -366,29 +366,31 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	}
 	units := trustUnits
 	units.Time = describe(sys).timeUnit(trustUnits.Time)
-	return cl.runJob(ctx, trustJob(auditJob{
-		what:     "the audit of " + sys.Name,
-		compared: "run",
-		progress: true,
-		audit: func(ctx context.Context, stage func(plumb.Stage, int, int)) (*plumb.Report, error) {
-			settings.Progress = stage
-			return f.audit(ctx, sys, f.horizon, settings)
-		},
-		wrap: func(rep *plumb.Report, runErr error) any {
-			return newTrustJSON(sys, echo, units, rep, runErr)
-		},
-		head: systemHead(sys),
+	return cl.runJob(ctx, f.systemJob(sys, f.horizon, settings, "run", func(rep *plumb.Report, runErr error) any {
+		return newTrustJSON(sys, echo, units, rep, runErr)
 	}))
 }
 
-// audit runs System.Trust; a relative tolerance that the reference run
-// leaves without a size (a fixed point has no spread) is a usage error
-// naming --relative.
-func (f *trustFlags) audit(ctx context.Context, sys *plumb.System, horizon float64, settings *plumb.TrustSettings) (*plumb.Report, error) {
-	rep, err := sys.Trust(ctx, horizon, settings)
-	if rep != nil && err != nil && f.relative && errors.Is(err, integrate.ErrSettings) && len(rep.Rungs) == 0 {
-		// Found only once the reference run has been made.
-		return nil, usagef("--relative: %v; give --tol in state units instead", err)
-	}
-	return rep, err
+// systemJob is the job of auditing sys with System.Trust over horizon
+// (time units, or iterates for a map), reporting its stages; compared
+// names what the wall-time line counts, wrap makes the JSON. A relative
+// tolerance that the reference run leaves without a size (a fixed point
+// has no spread) is a usage error naming --relative.
+func (f *trustFlags) systemJob(sys *plumb.System, horizon float64, settings *plumb.TrustSettings, compared string, wrap func(*plumb.Report, error) any) job {
+	return trustJob(auditJob{
+		what:     "the audit of " + sys.Name,
+		compared: compared,
+		progress: true,
+		audit: func(ctx context.Context, stage func(plumb.Stage, int, int)) (*plumb.Report, error) {
+			settings.Progress = stage
+			rep, err := sys.Trust(ctx, horizon, settings)
+			if rep != nil && err != nil && f.relative && errors.Is(err, integrate.ErrSettings) && len(rep.Rungs) == 0 {
+				// Found only once the reference run has been made.
+				return nil, usagef("--relative: %v; give --tol in state units instead", err)
+			}
+			return rep, err
+		},
+		wrap: wrap,
+		head: systemHead(sys),
+	})
 }
