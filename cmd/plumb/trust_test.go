@@ -400,23 +400,28 @@ func TestTrustCanceled(t *testing.T) {
 	}
 }
 
-// TestTrustProgress: with stderr a terminal a bar is drawn there, and
-// stdout is unchanged; --quiet draws nothing.
+// TestTrustProgress: with stderr a terminal a bar is drawn there, for a
+// flow and a map alike, and stdout is unchanged; --quiet draws nothing.
 func TestTrustProgress(t *testing.T) {
-	args := []string{"trust", "--horizon", "10", "--rungs", "tol", "--format", "csv"}
-	plain := plumbRun(t, args...)
-	saved := isTerminal
-	defer func() { isTerminal = saved }()
-	isTerminal = func(io.Writer) bool { return true }
-	bar := plumbRun(t, args...)
-	if bar.stdout != plain.stdout {
-		t.Error("the progress bar changed stdout")
-	}
-	if !strings.Contains(bar.stderr, "plumb trust [") || !strings.Contains(bar.stderr, "100%") {
-		t.Errorf("no progress bar on stderr: %q", bar.stderr)
-	}
-	if q := plumbRun(t, append(args, "--quiet")...); q.stderr != "" {
-		t.Errorf("--quiet still wrote %q", q.stderr)
+	for _, args := range [][]string{
+		{"trust", "--horizon", "10", "--rungs", "tol", "--format", "csv"},
+		{"trust", "--model", "henon", "--horizon", "40", "--format", "csv"},
+	} {
+		plain := plumbRun(t, args...)
+		saved := isTerminal
+		isTerminal = func(io.Writer) bool { return true }
+		bar := plumbRun(t, args...)
+		q := plumbRun(t, append(args, "--quiet")...)
+		isTerminal = saved
+		if bar.stdout != plain.stdout {
+			t.Errorf("%v: the progress bar changed stdout", args)
+		}
+		if !strings.Contains(bar.stderr, "plumb trust [") || !strings.Contains(bar.stderr, "100%") {
+			t.Errorf("%v: no progress bar on stderr: %q", args, bar.stderr)
+		}
+		if q.stderr != "" {
+			t.Errorf("%v: --quiet still wrote %q", args, q.stderr)
+		}
 	}
 }
 
