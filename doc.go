@@ -11,13 +11,17 @@
 // Taylor run for a flow, the double-double orbit for a map), estimates the
 // largest Lyapunov exponent and says up to which time all runs agree within
 // Tol, which effect limits that, and whether the horizon is trusted.
-// TrustProblem audits a raw integrate.Problem against its tightest run.
+// TrustProblem audits a raw integrate.Problem against its tightest run;
+// TrustRuns (TrustFiles, TrustProgram) audits runs another program made;
+// Ensemble releases members around a start and measures how they part.
 //
-//	plumb          System (Model, LoadSystem), Trust, the Report, Distance
-//	integrate      ODE solvers with error control, the audit ladder, Taylor references
+//	plumb          System (Model, LoadSystem), Trust, the Report, runs, Ensemble, Distance
+//	integrate      ODE solvers with error control, batches, the audit ladder, Taylor references
 //	lyap           Lyapunov spectra, finite-time exponents, derived measures
 //	maps           discrete maps: iteration and the iterate-by-iterate audit
-//	internal/...   formulas (expr), double-double (dd), the model catalog (models)
+//	embed          measured series: delay embedding, dimensions, exponents from data
+//	internal/...   formulas (expr), double-double (dd), big.Float sums (bigadd),
+//	               elementary functions (detmath), run files (runio), the catalog (models)
 //	cmd/plumb      the command-line binary, a thin shell over this package
 //
 // A trust horizon is a numerical statement about a model, not a safety

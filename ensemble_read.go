@@ -12,10 +12,6 @@ import (
 	"github.com/plumbdyn/plumb/integrate"
 )
 
-// ErrMembersFile reports a members file that cannot be read; the
-// *MembersFileError that wraps it says where.
-var ErrMembersFile = errors.New("bad members file")
-
 // MembersFileError says where a members file is wrong: its line and
 // column (1-based; column 0 when the whole line is meant) and why.
 type MembersFileError struct {

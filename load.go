@@ -15,10 +15,6 @@ import (
 	"github.com/plumbdyn/plumb/internal/expr"
 )
 
-// ErrSystemFile reports a system file that cannot be used; every *FileError
-// matches it with errors.Is.
-var ErrSystemFile = errors.New("invalid system file")
-
 // FileError is an error in a system file with its place: the JSON path of
 // the offending field (e.g. "variables[1].rate") and, for JSON syntax and
 // unknown fields, the line and column in the file. A formula error also

@@ -1,15 +1,8 @@
 package plumb
 
 import (
-	"errors"
 	"fmt"
 )
-
-// ErrNoSystem reports a method called on a nil *System, or on a zero System
-// or evaluator not made by Model, LoadSystem or the System's methods. Such a
-// System's getters return zero values and its Problem has a nil F, which
-// the integrators refuse with integrate.ErrSettings.
-var ErrNoSystem = errors.New("no system")
 
 // check returns an error wrapping ErrNoSystem for a nil or zero System.
 func (s *System) check(what string) error {

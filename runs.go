@@ -1,7 +1,6 @@
 package plumb
 
 import (
-	"errors"
 	"fmt"
 	"strings"
 )
@@ -127,15 +126,6 @@ type RecordedSettings struct {
 	// are compared.
 	Progress func(stage string, done, total int)
 }
-
-// Errors of TrustRuns, usable with errors.Is.
-var (
-	// ErrRuns reports a set of runs that cannot be audited: no reference
-	// or two, no run besides it, a run without data, a column missing
-	// from a run, spans that do not overlap. The *RunsError wrapping it
-	// names the run.
-	ErrRuns = errors.New("unusable runs")
-)
 
 // RunsError names the run that made a set of runs unusable.
 type RunsError struct {

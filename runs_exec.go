@@ -86,11 +86,6 @@ var (
 	varyName    = regexp.MustCompile(`^[A-Za-z_][A-Za-z0-9_]*$`)
 )
 
-// ErrProgram reports that the reference run of a Program failed (exited
-// non-zero, timed out, wrote nothing readable): with nothing to compare
-// with, the audit cannot be made.
-var ErrProgram = errors.New("program failed")
-
 // Plan lists the runs of the program: the reference first, then a
 // tolerance run per other tolerance, the nudged-start run, then each Vary
 // value after the first. Errors (ErrRuns) name the field: no Args, no

@@ -1,7 +1,6 @@
 package plumb
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"sync"
@@ -10,13 +9,6 @@ import (
 	"github.com/plumbdyn/plumb/internal/expr"
 	"github.com/plumbdyn/plumb/internal/models"
 )
-
-// ErrUnknown reports an unknown model or parameter name.
-var ErrUnknown = errors.New("unknown name")
-
-// ErrKind reports a request that does not fit the system's kind, such as the
-// vector field of a map.
-var ErrKind = errors.New("wrong kind of system")
 
 // System is a dynamical system ready to integrate or iterate: a built-in
 // model (Model) or a system read from formulas (LoadSystem), with its

@@ -2,7 +2,6 @@ package plumb
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 	"runtime"
@@ -11,16 +10,6 @@ import (
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
 	"github.com/plumbdyn/plumb/maps"
-)
-
-// Errors of Trust, usable with errors.Is.
-var (
-	// ErrHorizon reports a requested horizon that is not a positive, finite
-	// time.
-	ErrHorizon = errors.New("invalid horizon")
-	// ErrTolerance reports a divergence tolerance that is not positive and
-	// finite.
-	ErrTolerance = errors.New("invalid tolerance")
 )
 
 // Stage names the part of an audit that TrustSettings.Progress reports on.

@@ -4,9 +4,9 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
-	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"sort"
@@ -204,40 +204,51 @@ func (f *ensembleFlags) run(ctx context.Context, cl *call) error {
 	}
 	s := f.settings
 	s.Distance = dist
-	start := now()
-	rep, err := plumb.Ensemble(ctx, sys, f.t1, &s)
-	if rep == nil {
-		if errors.Is(err, integrate.ErrSettings) || errors.Is(err, integrate.ErrSpan) || errors.Is(err, plumb.ErrUnknown) {
-			return usagef("the ensemble's settings were refused: %v", err)
-		}
-		return fmt.Errorf("starting the ensemble of %s failed: %w", sys.Name, err)
-	}
-	if werr := f.write(cl, sys, dist, rep, err); werr != nil {
-		return fmt.Errorf("writing the results failed: %w", werr)
-	}
-	if cl.sh.plot != "" && rep.Run != nil {
-		if perr := f.plot(cl.sh.plot, cl.sh.plotSize, sys, rep); perr != nil {
-			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-		}
-	}
-	if f.animate != "" && rep.Run != nil {
-		ix, iy := 0, 1
-		if len(f.axisList) == 2 {
-			ix, iy = stateIndex(sys, f.axisList[0]), stateIndex(sys, f.axisList[1])
-		}
-		if aerr := saveAnimation(f.animate, cl.sh.plotSize, sys, rep, ix, iy); aerr != nil {
-			return fmt.Errorf("writing --animate %s failed: %w", f.animate, aerr)
-		}
-	}
+	return cl.runJob(ctx, job{
+		what:    "the ensemble of " + sys.Name,
+		refusal: "the ensemble's settings were refused",
+		run: func(ctx context.Context, _ func(float64)) (*outcome, error) {
+			rep, err := plumb.Ensemble(ctx, sys, f.t1, &s)
+			if rep == nil {
+				return nil, err
+			}
+			return f.outcome(cl, sys, dist, rep, err), nil
+		},
+	})
+}
+
+// outcome is the ensemble rep of sys, which ended with runErr, ready to
+// write: the result in every format, the --plot view and the --animate
+// file (both only when the members ran).
+func (f *ensembleFlags) outcome(cl *call, sys *plumb.System, dist plumb.Distance, rep *plumb.EnsembleReport, runErr error) *outcome {
 	steps := 0
 	if rep.Run != nil {
 		steps = rep.Run.Stats.Accepted
 	}
-	cl.wallTime(start, count(rep.Members, "member")+", "+count(rep.Releases, "release")+", "+count(steps, "step"))
-	if err != nil {
-		return fmt.Errorf("the ensemble of %s %s: %w", sys.Name, statusVerb(rep.Status), err)
+	res := &outcome{
+		json:  func() any { return f.json(sys, dist, rep, runErr) },
+		table: func(w io.Writer) error { return f.table(w, sys, rep) },
+		csv:   func(w io.Writer) error { return f.csv(w, rep) },
+		jsonl: func(w io.Writer) error { return f.jsonl(w, rep) },
+		done:  count(rep.Members, "member") + ", " + count(rep.Releases, "release") + ", " + count(steps, "step"),
 	}
-	return nil
+	if runErr != nil {
+		res.err = fmt.Errorf("the ensemble of %s %s: %w", sys.Name, statusVerb(rep.Status), runErr)
+	}
+	if rep.Run == nil {
+		return res
+	}
+	res.draw = func(name string, size plotSize) error { return f.plot(name, size, sys, rep) }
+	if f.animate != "" {
+		ix, iy := 0, 1
+		if len(f.axisList) == 2 {
+			ix, iy = stateIndex(sys, f.axisList[0]), stateIndex(sys, f.axisList[1])
+		}
+		res.files = append(res.files, extraFile{flag: "animate", name: f.animate, write: func() error {
+			return saveAnimation(f.animate, cl.sh.plotSize, sys, rep, ix, iy)
+		}})
+	}
+	return res
 }
 
 // check validates the flags against sys and fills f.settings.
@@ -368,19 +379,6 @@ func nameList(flagName, list string, sys *plumb.System) ([]string, error) {
 	return out, nil
 }
 
-// write writes the result in the chosen format.
-func (f *ensembleFlags) write(cl *call, sys *plumb.System, dist plumb.Distance, rep *plumb.EnsembleReport, runErr error) error {
-	switch cl.sh.format {
-	case "json":
-		return writeJSON(cl.stdout, f.json(sys, dist, rep, runErr))
-	case "csv":
-		return f.csv(cl, rep)
-	case "jsonl":
-		return f.jsonl(cl, rep)
-	}
-	return f.table(cl, sys, rep)
-}
-
 func (f *ensembleFlags) json(sys *plumb.System, dist plumb.Distance, rep *plumb.EnsembleReport, runErr error) ensembleJSON {
 	obs, scales := echoDistance(sys, dist)
 	out := ensembleJSON{
@@ -412,8 +410,8 @@ func (f *ensembleFlags) settingsDt() float64 {
 	return f.dt
 }
 
-func (f *ensembleFlags) csv(cl *call, rep *plumb.EnsembleReport) error {
-	w := csv.NewWriter(cl.stdout)
+func (f *ensembleFlags) csv(dst io.Writer, rep *plumb.EnsembleReport) error {
+	w := csv.NewWriter(dst)
 	if f.rows == "scales" {
 		if err := w.Write([]string{"delta", "lambda", "std_err", "pairs", "unfinished", "mean_time"}); err != nil {
 			return err
@@ -460,12 +458,12 @@ type memberLine struct {
 	Y           [][]float64 `json:"y"`
 }
 
-func (f *ensembleFlags) jsonl(cl *call, rep *plumb.EnsembleReport) error {
+func (f *ensembleFlags) jsonl(w io.Writer, rep *plumb.EnsembleReport) error {
 	run := rep.Run
 	if run == nil {
 		return nil
 	}
-	enc := json.NewEncoder(cl.stdout)
+	enc := json.NewEncoder(w)
 	for k := 0; k < run.Members; k++ {
 		line := memberLine{Member: k, Control: k == 0, T: rep.Times, Y: make([][]float64, len(run.Samples))}
 		if len(run.Samples) > 0 {
@@ -484,10 +482,10 @@ func (f *ensembleFlags) jsonl(cl *call, rep *plumb.EnsembleReport) error {
 	return nil
 }
 
-func (f *ensembleFlags) table(cl *call, sys *plumb.System, rep *plumb.EnsembleReport) error {
+func (f *ensembleFlags) table(w io.Writer, sys *plumb.System, rep *plumb.EnsembleReport) error {
 	d := describe(sys)
 	tu := d.TimeUnit
-	tw := newTable(cl.stdout)
+	tw := newTable(w)
 	fmt.Fprintf(tw, "%s\tspread\tlargest pair\twithin tol\n", withUnit("t", tu))
 	n := len(rep.Times)
 	for r := 0; r < ensembleTableRows && n > 0; r++ {
@@ -505,8 +503,8 @@ func (f *ensembleFlags) table(cl *call, sys *plumb.System, rep *plumb.EnsembleRe
 		return err
 	}
 	if len(rep.Scales) > 0 {
-		fmt.Fprintf(cl.stdout, "\nfinite-size Lyapunov exponent (%d pairs released %s apart along the orbit)\n", rep.Releases, fmtSig(rep.ReleaseEvery))
-		tw = newTable(cl.stdout)
+		fmt.Fprintf(w, "\nfinite-size Lyapunov exponent (%d pairs released %s apart along the orbit)\n", rep.Releases, fmtSig(rep.ReleaseEvery))
+		tw = newTable(w)
 		fmt.Fprintln(tw, "delta\tlambda\tstd err\tpairs\tunfinished")
 		for _, s := range rep.Scales {
 			l, e := "-", "-"
@@ -519,8 +517,8 @@ func (f *ensembleFlags) table(cl *call, sys *plumb.System, rep *plumb.EnsembleRe
 			return err
 		}
 	}
-	fmt.Fprintln(cl.stdout)
-	tw = newTable(cl.stdout)
+	fmt.Fprintln(w)
+	tw = newTable(w)
 	fmt.Fprintf(tw, "system\t%s\n", d.heading())
 	if rep.Spread == "given" {
 		fmt.Fprintf(tw, "members\t%d from %s, at most %s from the start\n", rep.Members, f.membersFile, fmtSig(rep.Delta))
@@ -546,7 +544,7 @@ func (f *ensembleFlags) table(cl *call, sys *plumb.System, rep *plumb.EnsembleRe
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	_, err := fmt.Fprintf(cl.stdout, "\nThis is %s.\n", rep.Caution)
+	_, err := fmt.Fprintf(w, "\nThis is %s.\n", rep.Caution)
 	return err
 }
 

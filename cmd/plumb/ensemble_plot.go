@@ -3,7 +3,6 @@ package main
 import (
 	"fmt"
 	"image/color"
-	"io"
 	"math"
 
 	"gonum.org/v1/plot"
@@ -178,14 +177,7 @@ func saveProjection(name string, size plotSize, rep *plumb.EnsembleReport, ix, i
 		return err
 	}
 	layout(p, entries, drawn, false, draw.New(cw))
-	var wt io.WriterTo = cw
-	if format == "svg" {
-		wt = svgFontStack{cw}
-	}
-	return writeFileAtomic(name, func(w io.Writer) error {
-		_, err := wt.WriteTo(w)
-		return err
-	})
+	return savePicture(name, picture(cw, format))
 }
 
 // nearestTime returns the index of the report time nearest t.

@@ -353,54 +353,6 @@ func mapSpectrumTable(w io.Writer, out mapSpectrumJSON) error {
 // mapRungKinds are the kinds of rung a map audit takes (maps.DefaultRungs).
 var mapRungKinds = []integrate.RungKind{integrate.KindPrecision, integrate.KindRestart}
 
-// mapTrustJSON is the --format json result of plumb trust on a map: the
-// header, the system and settings, then every field of plumb.Report
-// (its own arch and plumb_version are shadowed by the header's).
-type mapTrustJSON struct {
-	PlumbVersion string               `json:"plumb_version"`
-	Arch         string               `json:"arch"`
-	Command      string               `json:"command"`
-	System       systemJSON           `json:"system"`
-	Settings     mapTrustSettingsJSON `json:"settings"`
-	Units        mapTrustUnitsJSON    `json:"units"`
-	Status       string               `json:"status"`
-	Error        errText              `json:"error"`
-	// TrustedUntil shadows the report's: null when the audit did not
-	// finish (verdict incomplete).
-	TrustedUntil *float64 `json:"trusted_until"`
-	*plumb.Report
-}
-
-// mapTrustSettingsJSON echoes the settings of a map audit.
-type mapTrustSettingsJSON struct {
-	Horizon       int      `json:"horizon"`
-	Tol           float64  `json:"tol"`
-	Relative      bool     `json:"relative"`
-	Rungs         []string `json:"rungs"`
-	RestartAt     int      `json:"restart_at,omitempty"`
-	RestartPlaces int      `json:"restart_places,omitempty"`
-	// Observe names the compared components (--observe, default all);
-	// Scales are the --scale values as given.
-	Observe []string    `json:"observe"`
-	Scales  []scaleJSON `json:"scales"`
-}
-
-type mapTrustUnitsJSON struct {
-	Iterates string `json:"iterates"`
-	Distance string `json:"distance"`
-	Tol      string `json:"tol"`
-	Exponent string `json:"exponent"`
-	TolUsed  string `json:"tol_used"`
-}
-
-var mapTrustUnits = mapTrustUnitsJSON{
-	Iterates: "iterates from the start (horizon, steps, trusted_until, predicted_horizon, times, agrees_until, departs_at, predicted, restart_at); rungs[].start is an index into times",
-	Distance: "Euclidean norm of a state difference over the observed components, each divided by its scale, angles wrapped (see distance; tol_abs, spread, magnitude, divergence, delta0)",
-	Tol:      "the distance's units, or with relative a fraction of spread",
-	Exponent: "per iterate, natural log (exponent.value, exponent.std_err, rungs[].rate, rate_err); exponent.lyapunov_time in iterates",
-	TolUsed:  "fraction of tol_abs",
-}
-
 // runMap audits a map with System.Trust: --horizon is a number of iterates.
 func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, dist plumb.Distance) error {
 	if err := refuseFlags(cl, sys, "plumb trust iterates it exactly (the integrator flags are for flows)", flowOnlyTrust...); err != nil {
@@ -452,116 +404,15 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	if len(rungs) == 0 {
 		return usagef("--horizon %d: too short for a restart rung; give --rungs precision or a longer horizon", steps)
 	}
-	start := now()
-	rep, err := sys.Trust(ctx, float64(steps), &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist})
-	if rep == nil {
-		if errors.Is(err, maps.ErrSteps) || errors.Is(err, plumb.ErrHorizon) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) || errors.Is(err, integrate.ErrSettings) {
-			return usagef("the audit refused its input: %v", err)
-		}
-		return fmt.Errorf("the audit of %s could not start: %w", sys.Name, err)
-	}
-	if err != nil && f.relative && errors.Is(err, integrate.ErrSettings) && len(rep.Rungs) == 0 {
-		return usagef("--relative: %v; give --tol in state units instead", err)
-	}
-	out := mapTrustJSON{
-		PlumbVersion: version, Arch: goarch, Command: "trust", System: describe(sys),
-		Settings: mapTrustSettingsJSON{Horizon: steps, Tol: tol, Relative: f.relative, Rungs: want, RestartAt: restartAt},
-		Units:    mapTrustUnits, Report: rep,
-	}
-	out.Status, out.Error = runStatus(err)
-	out.Settings.Observe, out.Settings.Scales = echoDistance(sys, dist)
-	if rep.Verdict != plumb.Incomplete {
-		out.TrustedUntil = &rep.TrustedUntil
-	}
+	echo := trustSettingsJSON{Horizon: float64(steps), Tol: tol, Relative: f.relative, Rungs: want, RestartAt: float64(restartAt)}
+	echo.Observe, echo.Scales = echoDistance(sys, dist)
 	if slices.Contains(kinds, integrate.KindRestart) {
-		out.Settings.RestartPlaces = f.restartPlaces
+		echo.RestartPlaces = f.restartPlaces
 	}
-	var werr error
-	switch cl.sh.format {
-	case "json":
-		werr = writeJSON(cl.stdout, out)
-	case "csv":
-		werr = mapTrustCSV(cl, rep)
-	default:
-		if _, werr = fmt.Fprintf(cl.stdout, "system: %s\n", out.System.heading()); werr == nil {
-			werr = rep.Write(cl.stdout)
-		}
-	}
-	if werr != nil {
-		return fmt.Errorf("writing the results failed: %w", werr)
-	}
-	if cl.sh.plot != "" && len(rep.Rungs) > 0 {
-		if perr := mapTrustChart(rep).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
-			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-		}
-	}
-	for _, r := range rep.Rungs {
-		if r.Error != "" {
-			cl.warnf("rung %q stopped early, its curve ends there: %s", r.Name, r.Error)
-		}
-	}
-	if rep.ExponentError != "" {
-		cl.warnf("the largest Lyapunov exponent could not be estimated, so nothing is predicted: %s", rep.ExponentError)
-	}
-	cl.wallTime(start, count(len(rep.Rungs)+1, "orbit")+" compared, verdict "+string(rep.Verdict))
-	if err != nil {
-		return fmt.Errorf("the audit of %s %s (%s completed, written): %w", sys.Name, out.Status, count(len(rep.Rungs), "rung"), err)
-	}
-	return nil
-}
-
-// mapTrustCSV writes the divergence per iterate: n, then one column per
-// rung (empty before a restart and after a failure). Past
-// maps.CurvePoints iterates a row covers rep.Stride iterates from n and
-// holds the largest divergence over them.
-func mapTrustCSV(cl *call, rep *plumb.Report) error {
-	stride := max(rep.Stride, 1)
-	curves := make([]curveCSV, len(rep.Rungs))
-	for i, r := range rep.Rungs {
-		curves[i] = curveCSV{name: r.ID, start: r.Start, values: r.Divergence}
-	}
-	rows := (rep.Steps + stride) / stride
-	return writeCurvesCSV(cl.stdout, "n", rows, func(i int) string { return strconv.Itoa(i * stride) }, curves)
-}
-
-// mapTrustChart draws the divergence per iterate on a log axis, the
-// tolerance, and the Lyapunov prediction delta0·exp(lambda·(n - start)) of
-// the rung with the earliest predicted horizon.
-func mapTrustChart(rep *plumb.Report) *lineChart {
-	c := &lineChart{
-		Title:  "divergence from the double-double orbit",
-		XLabel: "iterate n", YLabel: "distance from the reference",
-		LogY: true,
-	}
-	top := rep.TolAbs
-	for _, r := range rep.Rungs {
-		s := series{Name: r.Name}
-		for k, d := range r.Divergence {
-			if r.Start+k >= len(rep.Times) {
-				break
-			}
-			s.X = append(s.X, math.Max(rep.Times[r.Start+k], r.RestartAt))
-			s.Y = append(s.Y, d)
-			top = math.Max(top, d)
-		}
-		c.Series = append(c.Series, s)
-	}
-	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, 0, float64(rep.Steps)))
-	if rep.Verdict != plumb.Incomplete && rep.LimitedBy != "" {
-		c.Marks = append(c.Marks, mark{X: rep.TrustedUntil, Label: fmt.Sprintf("trusted until iterate %d", int(rep.TrustedUntil))})
-	}
-	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
-		return c
-	}
-	lambda := rep.Exponent.Value
-	for _, r := range rep.Rungs {
-		if r.Predicted != rep.PredictedHorizon || !(r.Delta0 > 0) {
-			continue
-		}
-		if s, ok := predictionSeries("n", r.ID, lambda, r.Delta0, r.RestartAt, float64(rep.Steps), top); ok {
-			c.Series = append(c.Series, s)
-		}
-		break
-	}
-	return c
+	settings := &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist}
+	return cl.runJob(ctx, f.systemJob(sys, float64(steps), settings, "orbit", func(rep *plumb.Report, runErr error) any {
+		e := echo
+		e.Exact = rep.Exact != nil // the double-double orbit
+		return newTrustJSON(sys, e, mapTrustUnits, rep, runErr)
+	}))
 }

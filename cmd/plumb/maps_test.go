@@ -162,7 +162,8 @@ func TestTrustMapCLI(t *testing.T) {
 		t.Fatalf("exit %d, stderr %q", r.code, r.stderr)
 	}
 	var out struct {
-		Settings mapTrustSettingsJSON `json:"settings"`
+		Settings trustSettingsJSON `json:"settings"`
+		Units    trustUnitsJSON    `json:"units"`
 		plumb.Report
 	}
 	if err := json.Unmarshal([]byte(r.stdout), &out); err != nil {
@@ -183,6 +184,12 @@ func TestTrustMapCLI(t *testing.T) {
 	}
 	if out.Caution == "" || out.Verdict != plumb.NotTrusted {
 		t.Errorf("caution %q, verdict %s", out.Caution, out.Verdict)
+	}
+	// One wrapper for flows and maps: a map's units.time says iterates,
+	// its settings echo the horizon in iterates and the double-double
+	// reference as exact.
+	if !strings.HasPrefix(out.Units.Time, "iterates") || out.TimeUnit != "iterate" || out.Settings.Horizon != 60 || !out.Settings.Exact || out.Settings.Every != 0 {
+		t.Errorf("units.time %q, time_unit %q, settings %+v", out.Units.Time, out.TimeUnit, out.Settings)
 	}
 
 	// The table says iterates, the CSV has one row per iterate.

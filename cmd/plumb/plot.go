@@ -203,10 +203,25 @@ func (c *lineChart) render(format string) (io.WriterTo, error) {
 		return nil, err
 	}
 	layout(p, entries, drawn, c.LogY, draw.New(cw))
+	return picture(cw, format), nil
+}
+
+// picture is the drawn canvas cw ready to write in format: an SVG with the
+// font stack (svgFontStack), a PNG as it is.
+func picture(cw io.WriterTo, format string) io.WriterTo {
 	if format == "svg" {
-		return svgFontStack{cw}, nil
+		return svgFontStack{cw}
 	}
-	return cw, nil
+	return cw
+}
+
+// savePicture writes the picture wt into the file name, whole (a failure
+// leaves an existing file alone).
+func savePicture(name string, wt io.WriterTo) error {
+	return writeFileAtomic(name, func(w io.Writer) error {
+		_, err := wt.WriteTo(w)
+		return err
+	})
 }
 
 // write draws the chart in format ("svg" or "png") to w.
@@ -233,8 +248,5 @@ func (c *lineChart) save(name string, size plotSize) (err error) {
 	if err != nil {
 		return err
 	}
-	return writeFileAtomic(name, func(w io.Writer) error {
-		_, err := wt.WriteTo(w)
-		return err
-	})
+	return savePicture(name, wt)
 }

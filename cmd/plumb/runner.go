@@ -7,6 +7,7 @@ import (
 	"io"
 
 	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/embed"
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
 	"github.com/plumbdyn/plumb/maps"
@@ -41,13 +42,20 @@ type job struct {
 type outcome struct {
 	// json makes the --format json document (only when it is asked for:
 	// a long run's document holds a copy of every row); table writes the
-	// readable table; csv (nil when the command writes no CSV) the CSV.
+	// readable table; csv (nil when the command writes no CSV) the CSV;
+	// jsonl (nil when the command writes none) --format jsonl.
 	json  func() any
 	table func(w io.Writer) error
 	csv   func(w io.Writer) error
+	jsonl func(w io.Writer) error
 	// chart, when not nil, draws the --plot picture; nil from it draws
-	// nothing (no curve to draw).
+	// nothing (no curve to draw). draw, for a picture that is not one
+	// chart (panels, a projection), saves it to the --plot file instead.
 	chart func() *lineChart
+	draw  func(name string, size plotSize) error
+	// files are further files the command writes beside the result (an
+	// animation), each after the --plot picture.
+	files []extraFile
 	// warnings go to stderr after the result (unless --quiet).
 	warnings []string
 	// done says what was done, for the wall-time line ("" writes none).
@@ -55,6 +63,14 @@ type outcome struct {
 	// err is why the run stopped early, worded for the user; the result
 	// holds what was done before.
 	err error
+}
+
+// extraFile is a file a command writes besides its result and --plot: the
+// flag and name that asked for it, and how to write it (whole, through
+// writeFileAtomic).
+type extraFile struct {
+	flag, name string
+	write      func() error
 }
 
 // runJob runs j and writes its result; the error it returns decides the
@@ -77,11 +93,12 @@ func (cl *call) runJob(ctx context.Context, j job) error {
 	if werr := cl.writeResult(res); werr != nil {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
-	if cl.sh.plot != "" && res.chart != nil {
-		if c := res.chart(); c != nil {
-			if perr := c.save(cl.sh.plot, cl.sh.plotSize); perr != nil {
-				return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-			}
+	if perr := cl.drawPlot(res); perr != nil {
+		return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
+	}
+	for _, f := range res.files {
+		if ferr := f.write(); ferr != nil {
+			return fmt.Errorf("writing --%s %s failed: %w", f.flag, f.name, ferr)
 		}
 	}
 	for _, w := range res.warnings {
@@ -93,6 +110,22 @@ func (cl *call) runJob(ctx context.Context, j job) error {
 	return res.err
 }
 
+// drawPlot saves res's picture to the --plot file, when one is asked for
+// and res has one.
+func (cl *call) drawPlot(res *outcome) error {
+	switch {
+	case cl.sh.plot == "":
+		return nil
+	case res.draw != nil:
+		return res.draw(cl.sh.plot, cl.sh.plotSize)
+	case res.chart != nil:
+		if c := res.chart(); c != nil {
+			return c.save(cl.sh.plot, cl.sh.plotSize)
+		}
+	}
+	return nil
+}
+
 // writeResult writes res in the chosen --format.
 func (cl *call) writeResult(res *outcome) error {
 	switch {
@@ -100,16 +133,24 @@ func (cl *call) writeResult(res *outcome) error {
 		return writeJSON(cl.stdout, res.json())
 	case cl.sh.format == "csv" && res.csv != nil:
 		return res.csv(cl.stdout)
+	case cl.sh.format == "jsonl" && res.jsonl != nil:
+		return res.jsonl(cl.stdout)
 	}
 	return res.table(cl.stdout)
 }
 
-// startFailure is the error of job j when its run computed nothing: the
-// command's own wording (j.reword), a usage error when the refusals table
-// says the input was refused, else a failure.
+// startFailure is the error of job j when its run computed nothing: a
+// usage error the run itself worded (a flag found wrong only once the run
+// began, such as a file it reads), the command's own wording (j.reword), a
+// usage error when the refusals table says the input was refused, else a
+// failure.
 func startFailure(j job, err error) error {
-	if err == nil {
+	var ue *usageError
+	switch {
+	case err == nil:
 		return fmt.Errorf("starting %s failed: no result and no error (a bug in plumb)", j.what)
+	case errors.As(err, &ue):
+		return err
 	}
 	if j.reword != nil {
 		if e := j.reword(err); e != nil {
@@ -140,6 +181,10 @@ var refusals = []error{
 	plumb.ErrHorizon,
 	maps.ErrSteps,
 	plumb.ErrTolerance,
+	plumb.ErrRuns,
+	plumb.ErrUnknown,
+	embed.ErrEmbedding,
+	embed.ErrSettings,
 }
 
 // refused reports whether err is in the refusals table.

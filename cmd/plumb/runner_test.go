@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/embed"
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/lyap"
 	"github.com/plumbdyn/plumb/maps"
@@ -37,6 +38,11 @@ func TestStartFailureExit(t *testing.T) {
 		{"horizon", plumb.ErrHorizon, exitUsage},
 		{"steps", maps.ErrSteps, exitUsage},
 		{"tolerance", plumb.ErrTolerance, exitUsage},
+		{"unusable runs", fmt.Errorf("plumb: run \"loose\": no rows: %w", plumb.ErrRuns), exitUsage},
+		{"unknown name", fmt.Errorf("plumb: no state \"w\": %w", plumb.ErrUnknown), exitUsage},
+		{"embedding beyond the series", embed.ErrEmbedding, exitUsage},
+		{"embed settings", fmt.Errorf("embed: Settings.Lag = -1: %w", embed.ErrSettings), exitUsage},
+		{"a usage error of the run's own", usagef("--run tol=x.csv: no such file"), exitUsage},
 		{"non-finite start", fmt.Errorf("derivative is NaN at t=0: %w", integrate.ErrNonFinite), exitFailed},
 		{"step budget", integrate.ErrStepBudget, exitFailed},
 		{"canceled", context.Canceled, exitFailed},
@@ -104,5 +110,41 @@ func TestRunJobPartial(t *testing.T) {
 		if !strings.Contains(stderr.String(), want) {
 			t.Errorf("stderr %q lacks %q", stderr.String(), want)
 		}
+	}
+}
+
+// TestRunJobHooks: --format jsonl writes the outcome's jsonl, --plot goes
+// to draw when the picture is not one chart, and a further file is
+// written after it; a failure to write that file names its flag.
+func TestRunJobHooks(t *testing.T) {
+	var stdout, stderr bytes.Buffer
+	var drawn, wrote []string
+	cl := &call{cmd: &command{name: "ensemble"}, sh: &shared{format: "jsonl", plot: "view.svg"}, stdout: &stdout, stderr: &stderr}
+	bad := errors.New("disk full")
+	err := cl.runJob(context.Background(), job{
+		what: "the test run", refusal: "refused",
+		run: func(context.Context, func(float64)) (*outcome, error) {
+			return &outcome{
+				table: func(w io.Writer) error { _, err := io.WriteString(w, "table\n"); return err },
+				jsonl: func(w io.Writer) error { _, err := io.WriteString(w, "{\"member\":0}\n"); return err },
+				draw: func(name string, _ plotSize) error {
+					drawn = append(drawn, name)
+					return nil
+				},
+				files: []extraFile{{flag: "animate", name: "a.gif", write: func() error {
+					wrote = append(wrote, "a.gif")
+					return bad
+				}}},
+			}, nil
+		},
+	})
+	if stdout.String() != "{\"member\":0}\n" {
+		t.Errorf("stdout %q, want the jsonl", stdout.String())
+	}
+	if len(drawn) != 1 || drawn[0] != "view.svg" || len(wrote) != 1 {
+		t.Errorf("drawn %v, wrote %v", drawn, wrote)
+	}
+	if !errors.Is(err, bad) || !strings.Contains(err.Error(), "--animate a.gif") {
+		t.Errorf("error %v, want the file's failure naming --animate", err)
 	}
 }

@@ -143,7 +143,6 @@ func (f *seriesFlags) run(ctx context.Context, cl *call, fs *flag.FlagSet) error
 	if err := f.check(cl); err != nil {
 		return err
 	}
-	start := now()
 	var in io.Reader = cl.stdin
 	source := "stdin"
 	if file != "-" {
@@ -168,30 +167,41 @@ func (f *seriesFlags) run(ctx context.Context, cl *call, fs *flag.FlagSet) error
 	if f.surrogates == 0 {
 		set.Surrogates = -1
 	}
-	r, aerr := embed.Analyze(ctx, s, set)
-	if errors.Is(aerr, embed.ErrEmbedding) || errors.Is(aerr, embed.ErrSettings) {
-		return usagef("--lag %d, --dim %d: %s", f.lag, f.dim, strings.TrimPrefix(aerr.Error(), "embed: "))
+	return cl.runJob(ctx, job{
+		what:    "the analysis of " + source,
+		refusal: "the analysis refused the settings",
+		reword: func(err error) error {
+			if errors.Is(err, embed.ErrEmbedding) || errors.Is(err, embed.ErrSettings) {
+				return usagef("--lag %d, --dim %d: %s", f.lag, f.dim, strings.TrimPrefix(err.Error(), "embed: "))
+			}
+			return nil
+		},
+		run: func(ctx context.Context, _ func(float64)) (*outcome, error) {
+			r, err := embed.Analyze(ctx, s, set)
+			if r == nil {
+				return nil, err
+			}
+			return f.outcome(source, s, r, err), nil
+		},
+	})
+}
+
+// outcome is the analysis r of series s read from source, which ended
+// with runErr, ready to write. The panels are drawn only for an analysis
+// that finished (one that stopped early may have none to draw).
+func (f *seriesFlags) outcome(source string, s *embed.Series, r *embed.Report, runErr error) *outcome {
+	out := newSeriesJSON(source, f, s, r, runErr)
+	res := &outcome{
+		json:  func() any { return out },
+		table: func(w io.Writer) error { return writeSeriesTable(w, out) },
+		done:  count(s.Len(), "value") + " analysed",
 	}
-	out := newSeriesJSON(source, f, s, r, aerr)
-	switch cl.sh.format {
-	case "json":
-		err = writeJSON(cl.stdout, out)
-	default:
-		err = writeSeriesTable(cl.stdout, out)
+	if runErr != nil {
+		res.err = fmt.Errorf("the analysis %s: %w", statusVerb(out.Status), runErr)
+	} else {
+		res.draw = func(name string, size plotSize) error { return saveSeriesPanels(name, size, r) }
 	}
-	if err != nil {
-		return err
-	}
-	if aerr != nil {
-		return fmt.Errorf("the analysis %s: %w", statusVerb(out.Status), aerr)
-	}
-	if cl.sh.plot != "" && r != nil {
-		if err := saveSeriesPanels(cl.sh.plot, cl.sh.plotSize, r); err != nil {
-			return fmt.Errorf("--plot %s: %w", cl.sh.plot, err)
-		}
-	}
-	cl.wallTime(start, count(s.Len(), "value")+" analysed")
-	return nil
+	return res
 }
 
 // readNPY reads a 2-D NumPy array (internal/runio): its columns are

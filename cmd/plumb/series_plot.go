@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"io"
 	"math"
 
 	"gonum.org/v1/plot/vg"
@@ -148,12 +147,5 @@ func saveSeriesPanels(name string, size plotSize, r *embed.Report) error {
 		}
 		layout(p, entries, drawn, c.LogY, tiles.At(dc, i%2, i/2))
 	}
-	var wt io.WriterTo = cw
-	if format == "svg" {
-		wt = svgFontStack{cw}
-	}
-	return writeFileAtomic(name, func(w io.Writer) error {
-		_, err := wt.WriteTo(w)
-		return err
-	})
+	return savePicture(name, picture(cw, format))
 }

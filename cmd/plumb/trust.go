@@ -1,12 +1,9 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"flag"
-	"fmt"
-	"io"
 	"slices"
 	"strings"
 
@@ -197,8 +194,8 @@ func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	fs.IntVar(&f.restartPlaces, "restart-places", trustRestartPlaces, "the restart rung rounds the state to `K` decimal places")
 	addDistanceFlags(fs, &f.dist)
 	fs.StringVar(&f.method, "method", methods[0].name, "the integration `METHOD` of your own run, which is then audited (see 'plumb help solve'; with --rtol, --atol or --step alone, dp54)")
-	finiteVar(fs, &f.rtol, "rtol", integrate.DefaultRelTol, "relative tolerance `RTOL` of your own run (audited around it)")
-	finiteVar(fs, &f.atol, "atol", integrate.DefaultAbsTol, "absolute tolerance `ATOL` of your own run, in state units")
+	finiteVar(fs, &f.rtol, "rtol", integrate.DefaultRelTol, "relative tolerance `RTOL` of your own run (audited around it); 0 means the SDK's "+formatFloat(integrate.DefaultRelTol))
+	finiteVar(fs, &f.atol, "atol", integrate.DefaultAbsTol, "absolute tolerance `ATOL` of your own run, in state units; 0 means the SDK's "+formatFloat(integrate.DefaultAbsTol))
 	finiteVar(fs, &f.h, "step", 0, "step size `H` of your own run's fixed-step method (-h is help)")
 	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps per run (long horizons need more: the reference takes about 80 per time unit on the demo)")
 	addRunsFlags(fs, &f.recorded)
@@ -286,14 +283,18 @@ func (f *trustFlags) yourRun(cl *call) (run integrate.Rung, ok bool, err error) 
 	if m.fixed {
 		return integrate.Rung{Fixed: m.make, Step: f.h}, true, nil
 	}
-	if cl.sh.given["rtol"] && !(f.rtol > 0) {
-		return run, false, usagef("--rtol %s: must be > 0", formatFloat(f.rtol))
+	// The SDK's rules, its defaults for zeros (as in every command).
+	s := &integrate.Settings{RelTol: f.rtol, AbsTol: f.atol}
+	if err := s.Validate(); err != nil {
+		return run, false, settingUsage(err, trustSettingFlags)
 	}
-	if cl.sh.given["atol"] && !(f.atol > 0) {
-		return run, false, usagef("--atol %s: must be > 0", formatFloat(f.atol))
-	}
-	return integrate.Rung{Method: im, RelTol: f.rtol, AbsTol: f.atol}, true, nil
+	eff := s.WithDefaults()
+	return integrate.Rung{Method: im, RelTol: eff.RelTol, AbsTol: eff.AbsTol}, true, nil
 }
+
+// trustSettingFlags names the flag that sets each integrate.Settings field
+// of your own run.
+var trustSettingFlags = map[string]string{"RelTol": "rtol", "AbsTol": "atol"}
 
 // givenOf lists the flags of names given on the command line.
 func givenOf(cl *call, names []string) []string {
@@ -304,71 +305,6 @@ func givenOf(cl *call, names []string) []string {
 		}
 	}
 	return out
-}
-
-// trustJSON is the --format json result of plumb trust: the header, the
-// system and settings, then every field of plumb.Report (its own arch and
-// plumb_version are shadowed by the header's, which name this build).
-type trustJSON struct {
-	PlumbVersion string `json:"plumb_version"`
-	Arch         string `json:"arch"`
-	Command      string `json:"command"`
-	// System is the system audited, with the parameters as used.
-	System systemJSON `json:"system"`
-	// Settings echoes the flags that shaped the audit, defaults included.
-	Settings trustSettingsJSON `json:"settings"`
-	// Units says in what units the numbers are.
-	Units trustUnitsJSON `json:"units"`
-	// Status is completed, canceled or failed; Error says why (null when
-	// completed).
-	Status string  `json:"status"`
-	Error  errText `json:"error"`
-	// TrustedUntil shadows the report's: null when the audit did not
-	// finish (verdict incomplete), which answers nothing.
-	TrustedUntil *float64 `json:"trusted_until"`
-	*plumb.Report
-}
-
-// trustSettingsJSON echoes the settings of an audit.
-type trustSettingsJSON struct {
-	Horizon       float64  `json:"horizon"`
-	Tol           float64  `json:"tol"`
-	Relative      bool     `json:"relative"`
-	Rungs         []string `json:"rungs"`
-	RestartAt     float64  `json:"restart_at"`
-	RestartPlaces int      `json:"restart_places"`
-	// Exact: the runs were compared with a multiprecision reference (see
-	// the report's exact field).
-	Exact bool `json:"exact"`
-	// Every is the spacing of the comparison grid (horizon/1000).
-	Every float64 `json:"every"`
-	// Observe names the compared components (--observe, default all);
-	// Scales are the --scale values as given.
-	Observe []string    `json:"observe"`
-	Scales  []scaleJSON `json:"scales"`
-	// Method, RelTol, AbsTol and Step name your own run when it was given
-	// (--method, --rtol, --atol, --step); the report's your_run audits it.
-	Method string  `json:"method,omitempty"`
-	RelTol float64 `json:"rtol,omitempty"`
-	AbsTol float64 `json:"atol,omitempty"`
-	Step   float64 `json:"step,omitempty"`
-}
-
-// trustUnitsJSON says in what units the numbers of a trust result are.
-type trustUnitsJSON struct {
-	Time     string `json:"time"`
-	Distance string `json:"distance"`
-	Tol      string `json:"tol"`
-	Exponent string `json:"exponent"`
-	TolUsed  string `json:"tol_used"`
-}
-
-var trustUnits = trustUnitsJSON{
-	Time:     "the model's time unit (t0, horizon, trusted_until, predicted_horizon, float64_horizon, times, agrees_until, predicted, restart_at)",
-	Distance: "Euclidean norm of a state difference over the observed components, each divided by its scale, angles wrapped (see distance; tol_abs, spread, divergence, delta0, reversal.miss)",
-	Tol:      "the distance's units, or with relative a fraction of spread",
-	Exponent: "per unit time, natural log (exponent.value, exponent.std_err, rungs[].rate, rate_err); float64_per_bit in time units per bit",
-	TolUsed:  "fraction of tol_abs",
 }
 
 // trustGrid is the number of intervals of the comparison grid (the audit's
@@ -410,121 +346,51 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		return usagef("--max-steps %d: must be >= 1", f.maxSteps)
 	}
 	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Distance: dist, MaxSteps: f.maxSteps, NoExact: !f.exact}
-	var bar *progressBar
-	if cl.progress {
-		// One unit per audit run, and as many again for the exponent
-		// estimate, which takes about as long as the audit.
-		bar = newProgressBar(cl.stderr, "plumb trust", 0, 1)
-		// The two stages may come in either order (System.Trust estimates
-		// the exponent first, to choose the reference's precision).
-		var audit, expo float64
-		settings.Progress = func(stage plumb.Stage, done, total int) {
-			switch stage {
-			case plumb.StageAudit:
-				if total > 0 {
-					audit = float64(done) / float64(total)
-				}
-			case plumb.StageExponent:
-				expo = float64(done)
-			}
-			bar.at(0.5*audit + 0.5*expo)
-		}
+	echo := trustSettingsJSON{
+		Horizon: f.horizon, Tol: f.tol, Relative: f.relative, Rungs: names,
+		Exact: f.exact && sys.HasFormulas(), Every: f.horizon / trustGrid,
 	}
-	start := now()
-	rep, err := sys.Trust(ctx, f.horizon, settings)
-	if bar != nil {
-		bar.clear()
-	}
-	if rep == nil {
-		if errors.Is(err, plumb.ErrHorizon) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) ||
-			errors.Is(err, integrate.ErrSettings) || errors.Is(err, integrate.ErrSpan) || errors.Is(err, integrate.ErrDimension) {
-			return usagef("the audit refused its input: %v", err)
-		}
-		return fmt.Errorf("the audit of %s could not start: %w", sys.Name, err)
-	}
-	if err != nil && f.relative && errors.Is(err, integrate.ErrSettings) && len(rep.Rungs) == 0 {
-		// Found only once the reference run has been made: a run without
-		// spread (a fixed point) gives no size for a relative tolerance.
-		return usagef("--relative: %v; give --tol in state units instead", err)
-	}
-	restartAt := 0.0
+	echo.Observe, echo.Scales = echoDistance(sys, dist)
 	for _, r := range ladder.Rungs {
 		if r.Kind == integrate.KindRestart {
-			restartAt = r.RestartAt
+			echo.RestartAt, echo.RestartPlaces = r.RestartAt, f.restartPlaces
 		}
 	}
-	observe, scales := echoDistance(sys, dist)
-	out := trustJSON{
-		PlumbVersion: version, Arch: goarch, Command: "trust",
-		System: describe(sys),
-		Settings: trustSettingsJSON{
-			Horizon: f.horizon, Tol: f.tol, Relative: f.relative, Rungs: names,
-			RestartAt: restartAt, RestartPlaces: f.restartPlaces, Exact: f.exact && sys.HasFormulas(), Every: f.horizon / trustGrid,
-			Observe: observe, Scales: scales,
-		},
-		Units:  trustUnits,
-		Report: rep,
-	}
-	out.Units.Time = out.System.timeUnit(trustUnits.Time)
 	if run, ok, _ := f.yourRun(cl); ok {
-		out.Settings.Method = f.method
+		echo.Method = f.method
 		if run.Fixed != nil {
-			out.Settings.Step = run.Step
+			echo.Step = run.Step
 		} else {
-			out.Settings.RelTol, out.Settings.AbsTol = f.rtol, f.atol
+			echo.RelTol, echo.AbsTol = run.RelTol, run.AbsTol
 		}
 	}
-	out.Status, out.Error = runStatus(err)
-	if rep.Verdict != plumb.Incomplete {
-		out.TrustedUntil = &rep.TrustedUntil
-	}
-	if werr := writeTrust(cl, &out); werr != nil {
-		return fmt.Errorf("writing the results failed: %w", werr)
-	}
-	if cl.sh.plot != "" && len(rep.Rungs) > 0 {
-		if perr := trustChart(rep).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
-			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-		}
-	}
-	for _, r := range rep.Rungs {
-		if r.Error != "" {
-			cl.warnf("rung %q failed at t=%g, its curve ends there: %s", r.Name, r.AgreesUntil, r.Error)
-		}
-	}
-	if rep.Exact != nil && rep.Exact.SetAside != "" {
-		cl.warnf("the multiprecision reference was set aside, every run is compared with the float64 reference run instead: %s", rep.Exact.SetAside)
-	}
-	if rep.ExponentError != "" {
-		cl.warnf("the largest Lyapunov exponent could not be estimated, so nothing is predicted: %s", rep.ExponentError)
-	}
-	cl.wallTime(start, count(len(rep.Rungs)+1, "run")+" compared, verdict "+string(rep.Verdict))
-	if err != nil {
-		return fmt.Errorf("the audit of %s %s (%s completed, written): %w", sys.Name, statusVerb(out.Status), count(len(rep.Rungs), "rung"), err)
-	}
-	return nil
+	units := trustUnits
+	units.Time = describe(sys).timeUnit(trustUnits.Time)
+	return cl.runJob(ctx, f.systemJob(sys, f.horizon, settings, "run", func(rep *plumb.Report, runErr error) any {
+		return newTrustJSON(sys, echo, units, rep, runErr)
+	}))
 }
 
-// writeTrust writes the result in the chosen format.
-func writeTrust(cl *call, out *trustJSON) error {
-	switch cl.sh.format {
-	case "json":
-		return writeJSON(cl.stdout, out)
-	case "csv":
-		return trustCSV(cl.stdout, out.Report)
-	}
-	return trustTable(cl.stdout, out)
-}
-
-// trustTable writes the system line and the report's own summary.
-func trustTable(w io.Writer, out *trustJSON) error {
-	if _, err := fmt.Fprintf(w, "system: %s\n", out.System.heading()); err != nil {
-		return err
-	}
-	var b bytes.Buffer
-	if err := out.Report.Write(&b); err != nil {
-		return err
-	}
-	text := b.String()
-	_, err := io.WriteString(w, text)
-	return err
+// systemJob is the job of auditing sys with System.Trust over horizon
+// (time units, or iterates for a map), reporting its stages; compared
+// names what the wall-time line counts, wrap makes the JSON. A relative
+// tolerance that the reference run leaves without a size (a fixed point
+// has no spread) is a usage error naming --relative.
+func (f *trustFlags) systemJob(sys *plumb.System, horizon float64, settings *plumb.TrustSettings, compared string, wrap func(*plumb.Report, error) any) job {
+	return trustJob(auditJob{
+		what:     "the audit of " + sys.Name,
+		compared: compared,
+		progress: true,
+		audit: func(ctx context.Context, stage func(plumb.Stage, int, int)) (*plumb.Report, error) {
+			settings.Progress = stage
+			rep, err := sys.Trust(ctx, horizon, settings)
+			if rep != nil && err != nil && f.relative && errors.Is(err, integrate.ErrSettings) && len(rep.Rungs) == 0 {
+				// Found only once the reference run has been made.
+				return nil, usagef("--relative: %v; give --tol in state units instead", err)
+			}
+			return rep, err
+		},
+		wrap: wrap,
+		head: systemHead(sys),
+	})
 }

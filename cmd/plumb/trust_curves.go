@@ -1,19 +1,26 @@
 package main
 
 // The outputs of plumb trust other than the table and JSON: the divergence
-// curves as CSV (shared with the map audit) and as a chart.
+// curves as CSV and as a chart, the same for a flow, a map and recorded
+// runs.
 
 import (
 	"encoding/csv"
 	"fmt"
 	"io"
 	"math"
+	"slices"
+	"strconv"
 
 	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/integrate"
 )
 
-// trustCSV writes the divergence curves: t, then one column per rung (empty
-// where a rung has no value: before a restart, after a failure).
+// trustCSV writes the divergence curves: t (n, the iterate, for a map),
+// then one column per rung (empty where a rung has no value: before a
+// restart, after a failure). Past maps.CurvePoints iterates a map's row
+// covers rep.Stride iterates from n and holds the largest divergence over
+// them.
 func trustCSV(w io.Writer, rep *plumb.Report) error {
 	var curves []curveCSV
 	if len(rep.Reference.Divergence) > 0 {
@@ -23,8 +30,16 @@ func trustCSV(w io.Writer, rep *plumb.Report) error {
 	for _, r := range rep.Rungs {
 		curves = append(curves, curveCSV{name: r.ID, start: r.Start, values: r.Divergence})
 	}
-	return writeCurvesCSV(w, "t", len(rep.Times), func(i int) string { return formatFloat(rep.Times[i]) }, curves)
+	axis, label := "t", func(i int) string { return formatFloat(rep.Times[i]) }
+	if isMapReport(rep) {
+		axis, label = "n", func(i int) string { return strconv.Itoa(int(rep.Times[i])) }
+	}
+	return writeCurvesCSV(w, axis, len(rep.Times), label, curves)
 }
+
+// isMapReport reports whether rep is the audit of a map (its times are
+// iterates; only a map's report counts Steps).
+func isMapReport(rep *plumb.Report) bool { return rep.Steps > 0 }
 
 // curveCSV is one column of writeCurvesCSV: values[k] stands in row
 // start+k.
@@ -68,13 +83,19 @@ const predictionPoints = 200
 
 // trustChart draws the divergence curves on a log axis, the tolerance as a
 // horizontal line, and the Lyapunov prediction delta0·exp(lambda·(t −
-// t_start)) of the rung with the earliest predicted horizon.
+// t_start)) of the rung with the earliest predicted horizon; for a map, t
+// is the iterate n.
 func trustChart(rep *plumb.Report) *lineChart {
 	c := &lineChart{
 		Title:  "divergence from the reference run",
 		XLabel: "t",
 		YLabel: "distance from the reference",
 		LogY:   true,
+	}
+	v, until := "t", fmt.Sprintf("trusted until t = %.4g", rep.TrustedUntil)
+	if isMapReport(rep) {
+		c.Title, c.XLabel = "divergence from the double-double orbit", "iterate n"
+		v, until = "n", fmt.Sprintf("trusted until iterate %d", int(rep.TrustedUntil))
 	}
 	t1 := rep.T0 + rep.Horizon
 	top := rep.TolAbs
@@ -87,14 +108,20 @@ func trustChart(rep *plumb.Report) *lineChart {
 	}
 	for _, r := range rungs {
 		n := min(len(r.Divergence), max(len(rep.Times)-r.Start, 0))
-		c.Series = append(c.Series, series{Name: r.Name, X: rep.Times[r.Start : r.Start+n], Y: r.Divergence[:n]})
+		s := series{Name: r.Name, X: slices.Clone(rep.Times[r.Start : r.Start+n]), Y: r.Divergence[:n]}
+		if r.Effect == integrate.KindRestart && n > 0 {
+			// A map's grid point may fall before the restart when
+			// a point stands for several iterates.
+			s.X[0] = math.Max(s.X[0], r.RestartAt)
+		}
+		c.Series = append(c.Series, s)
 		for _, d := range r.Divergence[:n] {
 			top = math.Max(top, d)
 		}
 	}
 	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, rep.T0, t1))
 	if rep.Verdict != plumb.Incomplete && rep.LimitedBy != "" {
-		c.Marks = append(c.Marks, mark{X: rep.TrustedUntil, Label: fmt.Sprintf("trusted until t = %.4g", rep.TrustedUntil)})
+		c.Marks = append(c.Marks, mark{X: rep.TrustedUntil, Label: until})
 	}
 	if rep.Exponent == nil || !(rep.Exponent.Value > 0) || rep.PredictedHorizon <= 0 {
 		return c
@@ -105,10 +132,10 @@ func trustChart(rep *plumb.Report) *lineChart {
 			continue
 		}
 		from := rep.T0
-		if r.Effect == "restart" {
+		if r.Effect == integrate.KindRestart {
 			from = r.RestartAt
 		}
-		if s, ok := predictionSeries("t", r.ID, lambda, r.Delta0, from, t1, top); ok {
+		if s, ok := predictionSeries(v, r.ID, lambda, r.Delta0, from, t1, top); ok {
 			c.Series = append(c.Series, s)
 		}
 		break

@@ -3,6 +3,8 @@ package main
 import (
 	"strings"
 	"testing"
+
+	"github.com/plumbdyn/plumb/integrate"
 )
 
 // TestTrustYourRun: --method and --rtol make the audit one of the user's
@@ -50,7 +52,7 @@ func TestTrustYourRunBadInput(t *testing.T) {
 		flag string
 	}{
 		{"unknown method", []string{"--method", "leapfrog"}, "--method"},
-		{"rtol zero", []string{"--rtol", "0"}, "--rtol"},
+		{"rtol negative", []string{"--rtol", "-1e-6"}, "--rtol"},
 		{"rtol too tight", []string{"--rtol", "1e-16"}, "--rtol"},
 		{"atol negative", []string{"--atol", "-1"}, "--atol"},
 		{"step on adaptive", []string{"--step", "0.01"}, "--step"},
@@ -62,5 +64,26 @@ func TestTrustYourRunBadInput(t *testing.T) {
 		if r.code != exitUsage || r.stdout != "" || !strings.Contains(r.stderr, c.flag) {
 			t.Errorf("%s: exit %d, stdout %q, stderr %q; want 2 naming %s", c.name, r.code, r.stdout, r.stderr, c.flag)
 		}
+	}
+}
+
+// TestTrustYourRunZeroTol: --rtol 0 and --atol 0 stand for the SDK's
+// defaults, as in every command (integrate.Settings.WithDefaults: an exact
+// identity, the same constants), and the echo says what was used.
+func TestTrustYourRunZeroTol(t *testing.T) {
+	out, _, r := decodeTrust(t, "--rtol", "0", "--atol", "0", "--rungs", "tol", "--exact=false", "--horizon", "10")
+	if r.code != exitOK {
+		t.Fatalf("exit %d: %s", r.code, r.stderr)
+	}
+	y := out.Report.YourRun
+	if y == nil {
+		t.Fatal("no your_run")
+	}
+	own := out.Report.Rungs[y.Rung]
+	if own.RelTol != integrate.DefaultRelTol || own.AbsTol != integrate.DefaultAbsTol {
+		t.Errorf("your run's rung rtol %g atol %g, want the SDK's %g, %g", own.RelTol, own.AbsTol, integrate.DefaultRelTol, integrate.DefaultAbsTol)
+	}
+	if s := out.Settings; s.RelTol != integrate.DefaultRelTol || s.AbsTol != integrate.DefaultAbsTol {
+		t.Errorf("settings echo rtol %g atol %g, want the defaults used", s.RelTol, s.AbsTol)
 	}
 }

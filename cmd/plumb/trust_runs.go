@@ -7,14 +7,13 @@ package main
 
 import (
 	"context"
-	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"path/filepath"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
-	"github.com/plumbdyn/plumb/integrate"
 )
 
 // runsFlags are the flags of plumb trust that audit recorded runs.
@@ -183,78 +182,64 @@ func (f *trustFlags) runRecorded(ctx context.Context, cl *call) error {
 			settings.Periods[p.name] = p.value
 		}
 	}
-	start := now()
-	var rep *plumb.Report
-	var err error
-	var specs []runJSON
-	if cl.sh.given["exec"] {
-		rep, specs, err = f.runExec(ctx, cl, settings)
-	} else {
-		var runs []plumb.RecordedRun
-		runs, specs, err = r.readCtx(ctx, cl)
-		if err != nil {
-			return err
-		}
-		rep, err = plumb.TrustRuns(ctx, runs, settings)
-	}
-	if rep == nil {
-		if err == nil {
-			return nil
-		}
-		var ue *usageError
-		if errors.As(err, &ue) {
-			return err
-		}
-		if errors.Is(err, plumb.ErrRuns) || errors.Is(err, plumb.ErrHorizon) || errors.Is(err, plumb.ErrTolerance) ||
-			errors.Is(err, plumb.ErrUnknown) || errors.Is(err, integrate.ErrSettings) {
-			return usagef("the audit refused the runs: %v", err)
-		}
-		return fmt.Errorf("the audit of the runs could not start: %w", err)
-	}
 	observe, scales := settings.Distance.Observe, []scaleJSON{}
-	if len(observe) == 0 {
-		for _, c := range rep.Distance.Components {
-			observe = append(observe, c.Name)
-		}
-	}
 	for _, s := range settings.Distance.Scales {
 		scales = append(scales, scaleJSON{Name: s.Name, Value: s.Value})
 	}
-	out := runsJSON{
-		PlumbVersion: version, Arch: goarch, Command: "trust",
-		Settings: runsSettingsJSON{Runs: specs, Tol: f.tol, Relative: f.relative, Horizon: settings.Horizon, Every: r.every,
-			Observe: observe, Scales: scales},
-		Units:  trustUnits,
-		Report: rep,
-	}
+	echo := runsSettingsJSON{Tol: f.tol, Relative: f.relative, Horizon: settings.Horizon, Every: r.every, Scales: scales}
 	if cl.sh.given["exec"] {
-		out.Settings.Exec = r.exec.echo()
+		echo.Exec = r.exec.echo()
 	}
-	out.Status, out.Error = runStatus(err)
-	if rep.Verdict != plumb.Incomplete {
-		out.TrustedUntil = &rep.TrustedUntil
+	return cl.runJob(ctx, trustJob(auditJob{
+		what:     "the audit of the runs",
+		compared: "run",
+		part:     "run",
+		audit: func(ctx context.Context, _ func(plumb.Stage, int, int)) (*plumb.Report, error) {
+			var err error
+			var rep *plumb.Report
+			if cl.sh.given["exec"] {
+				rep, echo.Runs, err = f.runExec(ctx, cl, settings)
+				return rep, err
+			}
+			var runs []plumb.RecordedRun
+			if runs, echo.Runs, err = r.readCtx(ctx, cl); err != nil {
+				return nil, err
+			}
+			return plumb.TrustRuns(ctx, runs, settings)
+		},
+		wrap: func(rep *plumb.Report, runErr error) any {
+			e := echo
+			if e.Observe = observe; len(e.Observe) == 0 {
+				for _, c := range rep.Distance.Components {
+					e.Observe = append(e.Observe, c.Name)
+				}
+			}
+			return newTrustJSON(nil, e, trustUnits, rep, runErr)
+		},
+		head: func(w io.Writer) error {
+			_, err := fmt.Fprintf(w, "runs: %s\n", count(len(echo.Runs), "run"))
+			return err
+		},
+		warnings: runsWarnings,
+	}))
+}
+
+// runsWarnings are the warnings of an audit of recorded runs: a run equal
+// to the reference, a run that failed.
+func runsWarnings(rep *plumb.Report) []string {
+	if rep.Recorded == nil {
+		return nil
 	}
-	if werr := writeRuns(cl, &out); werr != nil {
-		return fmt.Errorf("writing the results failed: %w", werr)
-	}
-	if cl.sh.plot != "" && len(rep.Rungs) > 0 {
-		if perr := trustChart(rep).save(cl.sh.plot, cl.sh.plotSize); perr != nil {
-			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
-		}
-	}
+	var out []string
 	for _, rr := range rep.Recorded.Runs {
 		if rr.SameAsReference {
-			cl.warnf("run %q equals the reference to the last bit: what it varies (%s) probably did nothing", rr.Label, rr.Effect)
+			out = append(out, fmt.Sprintf("run %q equals the reference to the last bit: what it varies (%s) probably did nothing", rr.Label, rr.Effect))
 		}
 		if rr.Failure != nil {
-			cl.warnf("run %q failed: %s", rr.Label, rr.Failure.Why)
+			out = append(out, fmt.Sprintf("run %q failed: %s", rr.Label, rr.Failure.Why))
 		}
 	}
-	cl.wallTime(start, count(len(rep.Rungs)+1, "run")+" compared, verdict "+string(rep.Verdict))
-	if err != nil {
-		return fmt.Errorf("the audit of the runs %s (%s completed, written): %w", statusVerb(out.Status), count(len(rep.Rungs), "run"), err)
-	}
-	return nil
+	return out
 }
 
 // readCtx reads the --run files beside the command, so that Ctrl-C ends a
@@ -321,22 +306,6 @@ func runSpecText(s runSpec) string {
 	return e + ":" + s.label + "=" + s.path
 }
 
-// runsJSON is the --format json result of an audit of recorded runs: the
-// header, the settings, then every field of plumb.Report.
-type runsJSON struct {
-	PlumbVersion string           `json:"plumb_version"`
-	Arch         string           `json:"arch"`
-	Command      string           `json:"command"`
-	Settings     runsSettingsJSON `json:"settings"`
-	Units        trustUnitsJSON   `json:"units"`
-	Status       string           `json:"status"`
-	Error        errText          `json:"error"`
-	// TrustedUntil shadows the report's: null when the audit did not
-	// finish.
-	TrustedUntil *float64 `json:"trusted_until"`
-	*plumb.Report
-}
-
 // runsSettingsJSON echoes the settings of an audit of recorded runs.
 type runsSettingsJSON struct {
 	// Runs are the runs as given (--run), or as launched (--exec).
@@ -360,18 +329,4 @@ type runJSON struct {
 	Path   string `json:"path,omitempty"`
 	// Args is the command line of a launched run.
 	Args []string `json:"args,omitempty"`
-}
-
-// writeRuns writes the result in the chosen format.
-func writeRuns(cl *call, out *runsJSON) error {
-	switch cl.sh.format {
-	case "json":
-		return writeJSON(cl.stdout, out)
-	case "csv":
-		return trustCSV(cl.stdout, out.Report)
-	}
-	if _, err := fmt.Fprintf(cl.stdout, "runs: %s\n", count(len(out.Settings.Runs), "run")); err != nil {
-		return err
-	}
-	return out.Report.Write(cl.stdout)
 }

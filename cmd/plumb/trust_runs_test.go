@@ -27,6 +27,9 @@ func solveTo(t *testing.T, dir, name string, args ...string) string {
 	return path
 }
 
+// runsJSON is the JSON of an audit of recorded runs, as decoded.
+type runsJSON = trustJSON[runsSettingsJSON]
+
 // decodeRuns runs plumb trust with args and --format json.
 func decodeRuns(t *testing.T, args ...string) (runsJSON, map[string]json.RawMessage, result) {
 	t.Helper()

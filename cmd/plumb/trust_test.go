@@ -43,11 +43,14 @@ func TestTrustGolden(t *testing.T) {
 	}
 }
 
+// flowTrustJSON is the JSON of the audit of a system, as decoded.
+type flowTrustJSON = trustJSON[trustSettingsJSON]
+
 // decodeTrust runs plumb trust --format json and decodes the result.
-func decodeTrust(t *testing.T, args ...string) (trustJSON, map[string]json.RawMessage, result) {
+func decodeTrust(t *testing.T, args ...string) (flowTrustJSON, map[string]json.RawMessage, result) {
 	t.Helper()
 	r := plumbRun(t, append(append([]string{"trust"}, args...), "--format", "json", "--quiet")...)
-	var out trustJSON
+	var out flowTrustJSON
 	var raw map[string]json.RawMessage
 	if err := json.Unmarshal([]byte(r.stdout), &out); err != nil {
 		t.Fatalf("stdout is not one JSON object: %v\n%.400s", err, r.stdout)
@@ -367,7 +370,7 @@ func TestTrustCanceled(t *testing.T) {
 	if r.code != exitFailed || !strings.Contains(r.stderr, "canceled") {
 		t.Fatalf("canceled part way: exit %d, stderr %q", r.code, r.stderr)
 	}
-	var part trustJSON
+	var part flowTrustJSON
 	if err := json.Unmarshal([]byte(r.stdout), &part); err != nil {
 		t.Fatalf("a canceled audit wrote no JSON: %v", err)
 	}
@@ -397,23 +400,28 @@ func TestTrustCanceled(t *testing.T) {
 	}
 }
 
-// TestTrustProgress: with stderr a terminal a bar is drawn there, and
-// stdout is unchanged; --quiet draws nothing.
+// TestTrustProgress: with stderr a terminal a bar is drawn there, for a
+// flow and a map alike, and stdout is unchanged; --quiet draws nothing.
 func TestTrustProgress(t *testing.T) {
-	args := []string{"trust", "--horizon", "10", "--rungs", "tol", "--format", "csv"}
-	plain := plumbRun(t, args...)
-	saved := isTerminal
-	defer func() { isTerminal = saved }()
-	isTerminal = func(io.Writer) bool { return true }
-	bar := plumbRun(t, args...)
-	if bar.stdout != plain.stdout {
-		t.Error("the progress bar changed stdout")
-	}
-	if !strings.Contains(bar.stderr, "plumb trust [") || !strings.Contains(bar.stderr, "100%") {
-		t.Errorf("no progress bar on stderr: %q", bar.stderr)
-	}
-	if q := plumbRun(t, append(args, "--quiet")...); q.stderr != "" {
-		t.Errorf("--quiet still wrote %q", q.stderr)
+	for _, args := range [][]string{
+		{"trust", "--horizon", "10", "--rungs", "tol", "--format", "csv"},
+		{"trust", "--model", "henon", "--horizon", "40", "--format", "csv"},
+	} {
+		plain := plumbRun(t, args...)
+		saved := isTerminal
+		isTerminal = func(io.Writer) bool { return true }
+		bar := plumbRun(t, args...)
+		q := plumbRun(t, append(args, "--quiet")...)
+		isTerminal = saved
+		if bar.stdout != plain.stdout {
+			t.Errorf("%v: the progress bar changed stdout", args)
+		}
+		if !strings.Contains(bar.stderr, "plumb trust [") || !strings.Contains(bar.stderr, "100%") {
+			t.Errorf("%v: no progress bar on stderr: %q", args, bar.stderr)
+		}
+		if q.stderr != "" {
+			t.Errorf("%v: --quiet still wrote %q", args, q.stderr)
+		}
 	}
 }
 
