@@ -34,9 +34,11 @@ import (
 const guardBits = 64
 
 // maxReduceExp bounds the binary exponent of arguments reduced by π/2:
-// beyond 2^65536 the reduction would need more bits than is reasonable, and
-// sin, cos and tan return nil.
-const maxReduceExp = 1 << 16
+// the reduction is exact and needs π to as many bits as the exponent, so
+// beyond 2^4096 (four times float64's range, which no state compared with
+// a float64 run can reach) sin, cos and tan return nil rather than spend
+// seconds: tan(2^51650) would compute π to 52000 bits.
+const maxReduceExp = 1 << 12
 
 var constCache struct {
 	sync.Mutex

@@ -114,3 +114,20 @@ func TestBigIdentities(t *testing.T) {
 		check("tan(atan x) = x", BigTan(new(big.Float).SetPrec(prec), a), x)
 	}
 }
+
+// TestBigReduceBound: sin, cos and tan reduce exactly up to 2^4096 (past
+// float64's range, so sin(1e300) above keeps its exact reduction) and
+// refuse beyond it with nil instead of computing π to as many bits as the
+// exponent (exact identity of the documented bound, maxReduceExp).
+func TestBigReduceBound(t *testing.T) {
+	in := new(big.Float).SetMantExp(big.NewFloat(0.75), maxReduceExp)
+	if BigSin(new(big.Float).SetPrec(80), in) == nil || BigCos(new(big.Float).SetPrec(80), in) == nil {
+		t.Errorf("sin or cos of 0.75·2^%d refused; it is inside the bound", maxReduceExp)
+	}
+	out := new(big.Float).SetMantExp(big.NewFloat(0.75), maxReduceExp+1)
+	for name, f := range map[string]func(z, x *big.Float) *big.Float{"sin": BigSin, "cos": BigCos, "tan": BigTan} {
+		if got := f(new(big.Float).SetPrec(80), out); got != nil {
+			t.Errorf("%s(0.75·2^%d) = %v, want nil (beyond the bound)", name, maxReduceExp+1, got)
+		}
+	}
+}
