@@ -87,13 +87,21 @@ const (
 // the model, not the system the model describes.
 type Shadow struct {
 	// Dim is the state dimension; Iterates the given orbit's length in
-	// steps (it holds Iterates+1 states).
+	// steps (it holds Iterates+1 states; for a flow, the segments between
+	// joints).
 	Dim      int `json:"dim"`
 	Iterates int `json:"iterates"`
 	// Shadowed is the number of steps shadowed from the start: iterates
 	// 0..Shadowed of the given orbit lie within Distance of a refined
 	// orbit. It equals Iterates unless Glitch says why it stops.
 	Shadowed int `json:"shadowed"`
+	// Until is where the shadow ends: the iterate Shadowed for a map, the
+	// time of joint Shadowed for a flow.
+	Until float64 `json:"until"`
+	// TimeShift is, for a flow, the largest difference between the
+	// shadow's clock and the run's at a joint (the time rescaling); 0 for
+	// a map.
+	TimeShift float64 `json:"time_shift"`
 	// Distance is the largest correction over the shadowed part (the
 	// shadowing distance, Euclidean, angle components modulo their
 	// period), at iterate DistanceAt.

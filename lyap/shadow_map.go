@@ -103,7 +103,7 @@ func ShadowMap(ctx context.Context, m ShadowableMap, orbit []float64, s *ShadowS
 			return res, err
 		}
 		if g == nil {
-			res.Shadowed = length
+			res.Shadowed, res.Until = length, float64(length)
 			return res, nil
 		}
 		res.Glitch = g
