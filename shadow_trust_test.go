@@ -1,0 +1,55 @@
+package plumb
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+func TestTrustShadowFlow(t *testing.T) {
+	// The demo audit with Shadow: the default DP5(4) run of Lorenz to t =
+	// 50 is shadowed over the whole span, far closer than the tolerance at
+	// which the runs part (lyap.TestShadowFlowLorenz holds the method to
+	// its run's tolerance).
+	sys, err := Model("lorenz")
+	require.NoError(t, err)
+	rep, err := sys.Trust(context.Background(), 50, &TrustSettings{Tol: 1, Shadow: true, NoExact: true, NoReversal: true})
+	require.NoError(t, err)
+	sh := rep.Shadow
+	require.NotNil(t, sh)
+	require.Empty(t, sh.Error)
+	assert.True(t, sh.Whole, "glitch %+v", sh.Glitch)
+	assert.InDelta(t, 50, sh.Until, 1e-9)
+	assert.Less(t, sh.Distance, 1e-2, "a run at rtol 1e-6 is shadowed within 1e-2 (state units of order 10)")
+	assert.Less(t, sh.StepErrorAfter, sh.StepErrorBefore)
+	assert.Less(t, rep.TrustedUntil, 50.0, "the runs part pointwise before the end: the shadow says more than the horizon")
+	var b bytes.Buffer
+	require.NoError(t, rep.Write(&b))
+	assert.Contains(t, b.String(), "shadow: a true orbit of the model stays within")
+	js, err := json.Marshal(rep)
+	require.NoError(t, err)
+	assert.Contains(t, string(js), `"shadow":{"of":`)
+	t.Logf("%+v", *sh)
+}
+
+func TestTrustShadowMap(t *testing.T) {
+	sys, err := Model("henon")
+	require.NoError(t, err)
+	rep, err := sys.Trust(context.Background(), 5000, &TrustSettings{Tol: 0.1, Shadow: true})
+	require.NoError(t, err)
+	sh := rep.Shadow
+	require.NotNil(t, sh)
+	require.Empty(t, sh.Error)
+	assert.True(t, sh.Whole)
+	// Hammel, Yorke & Grebogi (1988): Hénon float64-like orbits shadowed
+	// within about 1e-8 over 1e7 iterates (from memory, REFERENCES.md §6).
+	assert.Less(t, sh.Distance, 1e-8)
+	assert.Equal(t, 5000.0, sh.Until)
+	off, err := sys.Trust(context.Background(), 5000, &TrustSettings{Tol: 0.1})
+	require.NoError(t, err)
+	assert.Nil(t, off.Shadow, "no shadow unless asked for")
+}
