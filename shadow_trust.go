@@ -164,7 +164,7 @@ func (rep *Report) writeShadow(b *strings.Builder, at, u string) {
 		fmt.Fprintf(b, "shadow: not found (%s)\n", sh.Error)
 		return
 	}
-	fmt.Fprintf(b, "shadow: a true orbit of the model stays within %.2g of %s up to %s%.6g%s", sh.Distance, sh.Of, at, sh.Until, u)
+	fmt.Fprintf(b, "shadow (of the model, not the real system): a true orbit stays within %.2g of %s up to %s%.6g%s", sh.Distance, sh.Of, at, sh.Until, u)
 	if sh.TimeShift > 0 {
 		fmt.Fprintf(b, " (its clock shifted by at most %.2g)", sh.TimeShift)
 	}

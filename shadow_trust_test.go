@@ -29,7 +29,7 @@ func TestTrustShadowFlow(t *testing.T) {
 	assert.Less(t, rep.TrustedUntil, 50.0, "the runs part pointwise before the end: the shadow says more than the horizon")
 	var b bytes.Buffer
 	require.NoError(t, rep.Write(&b))
-	assert.Contains(t, b.String(), "shadow: a true orbit of the model stays within")
+	assert.Contains(t, b.String(), "shadow (of the model, not the real system): a true orbit stays within")
 	js, err := json.Marshal(rep)
 	require.NoError(t, err)
 	assert.Contains(t, string(js), `"shadow":{"of":`)

@@ -449,7 +449,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 		return usagef("--horizon %d: too short for a restart rung; give --rungs precision or a longer horizon", steps)
 	}
 	start := now()
-	rep, err := sys.Trust(ctx, float64(steps), &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist})
+	rep, err := sys.Trust(ctx, float64(steps), &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist, Shadow: f.shadow})
 	if rep == nil {
 		if errors.Is(err, maps.ErrSteps) || errors.Is(err, plumb.ErrHorizon) || errors.Is(err, plumb.ErrTolerance) || errors.Is(err, integrate.ErrLadder) || errors.Is(err, integrate.ErrSettings) {
 			return usagef("the audit refused its input: %v", err)
