@@ -44,7 +44,8 @@ type ShadowReport struct {
 	Joints    int     `json:"joints,omitempty"`
 	TimeShift float64 `json:"time_shift,omitempty"`
 	// MinAngle is the smallest angle (radians) between stable and
-	// unstable directions met (map only).
+	// unstable directions met (a flow: between the expanding directions
+	// and the others, at the joints).
 	MinAngle float64 `json:"min_angle,omitempty"`
 	// Glitch says where and why the shadow stops before the end.
 	Glitch *lyap.Glitch `json:"glitch,omitempty"`
@@ -134,7 +135,7 @@ func (sys *System) shadowFlow(ctx context.Context, rep *Report, horizon float64,
 	sh, err := lyap.ShadowFlow(ctx, p, times, states, nil)
 	out.fill(sh, err, p.T0+horizon)
 	if sh != nil && err == nil {
-		out.TimeShift = sh.TimeShift
+		out.TimeShift, out.MinAngle = sh.TimeShift, sh.MinAngle
 	}
 	return out
 }

@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"github.com/plumbdyn/plumb/integrate"
+	"github.com/plumbdyn/plumb/internal/detmath"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -30,6 +31,11 @@ type FlowShadowSettings struct {
 	// state in the least-squares correction, in units of the run's
 	// root-mean-square speed (0: DefaultTimeWeight).
 	TimeWeight float64
+	// MinAngle is the smallest angle, in radians, between the expanding
+	// directions of the refined chain and the others at which the shadow
+	// is certified (0: DefaultMinAngle); below it the shadow stops at a
+	// glitch.
+	MinAngle float64
 	// Passes bounds the refinement passes (0: DefaultPasses).
 	Passes int
 }
@@ -124,6 +130,11 @@ func ShadowFlow(ctx context.Context, p integrate.Problem, times, states []float6
 		return nil, settingErr("FlowShadowSettings.TimeWeight", c.TimeWeight, "must be finite and >= 0")
 	case c.Passes < 0:
 		return nil, settingErr("FlowShadowSettings.Passes", c.Passes, "must be >= 0")
+	case !(c.MinAngle >= 0) || c.MinAngle >= math.Pi/2:
+		return nil, settingErr("FlowShadowSettings.MinAngle", c.MinAngle, "must be in [0, π/2)")
+	}
+	if c.MinAngle == 0 {
+		c.MinAngle = DefaultMinAngle
 	}
 	mag := 1.0
 	for _, v := range states {
@@ -294,6 +305,9 @@ func (fs *flowShadow) try(ctx context.Context, L int, res *Shadow, first bool) (
 		}
 		gap = g
 	}
+	if g, err := fs.flowAngles(ctx, L, fs.cfg.MinAngle, res); g != nil || err != nil {
+		return g, err
+	}
 	res.Distance, res.DistanceAt = far, farAt
 	res.StepErrorAfter, res.Passes = gap, passes
 	if res.StepErrorBefore > 0 {
@@ -309,7 +323,7 @@ func (fs *flowShadow) try(ctx context.Context, L int, res *Shadow, first bool) (
 }
 
 func (fs *flowShadow) glitch(k int, why string) *Glitch {
-	return &Glitch{Index: k, Time: fs.times[k], Reason: why + " (least-squares form: no angle measured)"}
+	return &Glitch{Index: k, Time: fs.times[k], Reason: why + " (no split measured: the chain did not converge)"}
 }
 
 // lss solves one least-squares correction: minimise Σ|c_k|² + α²Σ τ_k²
@@ -421,4 +435,51 @@ func (q *lss) solve(fs *flowShadow, L int) {
 			q.tau[k] = -s / a2
 		}
 	}
+}
+
+// flowAngles measures, on the refined chain of L segments, the split of
+// the tangent maps Φ_k into expanding directions and the rest (the flow
+// direction and the contracting ones), as ShadowMap does for a map: the
+// smallest angle between them and where. The expanding directions are
+// those whose growth per unit time exceeds the band the flow direction's
+// own growth can reach (ln of the speed's range over the span), so that
+// the neutral direction is not counted. A split below minAngle is a
+// glitch at that joint.
+func (fs *flowShadow) flowAngles(ctx context.Context, L int, minAngle float64, res *Shadow) (*Glitch, error) {
+	n := fs.n
+	sh := &shadower{n: n, steps: L, tangent: fs.phi[:L*n*n], jd: make([]float64, n*n),
+		cfg: ShadowSettings{MinAngle: minAngle}}
+	var span float64 // the refined chain's own duration
+	for _, d := range fs.dur[:L] {
+		span += d
+	}
+	lo, hi := math.Inf(1), 0.0
+	for k := 0; k <= L; k++ {
+		var ss float64
+		for _, v := range fs.f[k*n : (k+1)*n] {
+			ss += float64(v * v)
+		}
+		lo, hi = math.Min(lo, math.Sqrt(ss)), math.Max(hi, math.Sqrt(ss))
+	}
+	band := 2 * math.Abs(detmath.Log(math.Max(hi, 1e-300)/math.Max(lo, 1e-300))) / span
+	res.Exponents = sh.exponents()
+	for i := range res.Exponents {
+		res.Exponents[i] *= float64(L) / span // per unit time
+		if res.Exponents[i] > band {
+			sh.u++
+		}
+	}
+	res.Unstable = sh.u
+	if sh.u == 0 || sh.u == n {
+		return nil, nil
+	}
+	g, err := sh.directions(ctx, L)
+	res.MinAngle, res.MinAngleAt = sh.dirs.minAngle, sh.dirs.minAt
+	if g != nil {
+		sh.angleOf(g)
+		g.Time = fs.times[g.Index]
+		g.Reason = fmt.Sprintf("the expanding directions and the others are %.3g rad apart at joint %d (t = %g; below %.3g): a near-tangency",
+			g.Angle, g.Index, g.Time, minAngle)
+	}
+	return g, err
 }

@@ -23,6 +23,11 @@ func lorenzRun(t *testing.T, tol, span, every float64) (times, states []float64)
 	return times, states
 }
 
+// traceSumTol bounds the exponent sum's miss of the trace: the segments
+// are integrated at 1e-13, so their log-determinants err by about 1e-12
+// each, 1e-10 over a hundred of them per 50 time units; 1e-8 leaves room.
+const traceSumTol = 1e-8
+
 func TestShadowFlowLorenz(t *testing.T) {
 	// A float64 Lorenz run of 50 time units is shadowed, and more closely
 	// when its tolerance is tightened: the gaps between its joints and the
@@ -45,9 +50,16 @@ func TestShadowFlowLorenz(t *testing.T) {
 		// takes up drift along the orbit, not a change of orbit).
 		assert.Less(t, sh.TimeShift, 1e-3*every)
 		assert.Greater(t, sh.Distance, 0.0)
+		// One expanding direction (Lorenz: 0.9056, 0, −14.57; Sprott,
+		// REFERENCES.md §1a), and the exponents of the chain's tangent maps
+		// sum to the constant trace −(σ+1+β) (Liouville; exact identity, up
+		// to the segments' 1e-13 integration).
+		assert.Equal(t, 1, sh.Unstable)
+		assert.InDelta(t, -(10 + 1 + 8.0/3), sh.Exponents[0]+sh.Exponents[1]+sh.Exponents[2], traceSumTol)
+		assert.Greater(t, sh.MinAngle, DefaultMinAngle)
 		dist = append(dist, sh.Distance)
-		t.Logf("lorenz tol %g: distance %.3g at joint %d, gaps %.3g -> %.3g, passes %d, time shift %.3g, amplification %.3g",
-			tol, sh.Distance, sh.DistanceAt, sh.StepErrorBefore, sh.StepErrorAfter, sh.Passes, sh.TimeShift, sh.Amplification)
+		t.Logf("lorenz tol %g: distance %.3g at joint %d, gaps %.3g -> %.3g, passes %d, time shift %.3g, amplification %.3g, exponents %.4g, min angle %.3g at joint %d",
+			tol, sh.Distance, sh.DistanceAt, sh.StepErrorBefore, sh.StepErrorAfter, sh.Passes, sh.TimeShift, sh.Amplification, sh.Exponents, sh.MinAngle, sh.MinAngleAt)
 	}
 	// Three orders tighter: the shadow must come at least ten times closer.
 	assert.Less(t, dist[1], dist[0]/10, "distance shrinks with the tolerance")
@@ -65,4 +77,23 @@ func TestShadowFlowJump(t *testing.T) {
 	assert.ErrorIs(t, err, ErrDimension)
 	_, err = ShadowFlow(context.Background(), modelProblem(t, "lorenz"), []float64{0, 0}, states[:6], nil)
 	assert.ErrorIs(t, err, ErrSettings)
+}
+
+func TestShadowFlowNearTangency(t *testing.T) {
+	// The chain's smallest split angle made the threshold: the shadow must
+	// stop before that joint, and name its time and angle.
+	times, states := lorenzRun(t, 1e-8, 20, 0.5)
+	p := modelProblem(t, "lorenz")
+	full, err := ShadowFlow(context.Background(), p, times, states, nil)
+	require.NoError(t, err)
+	require.Nil(t, full.Glitch)
+	sh, err := ShadowFlow(context.Background(), p, times, states, &FlowShadowSettings{MinAngle: full.MinAngle * 1.0001})
+	require.NoError(t, err)
+	require.NotNil(t, sh.Glitch)
+	assert.Equal(t, full.MinAngleAt, sh.Glitch.Index)
+	assert.Equal(t, times[full.MinAngleAt], sh.Glitch.Time)
+	assert.InEpsilon(t, full.MinAngle, sh.Glitch.Angle, 1e-6)
+	assert.Less(t, sh.Shadowed, full.MinAngleAt)
+	assert.Contains(t, sh.Glitch.Reason, "near-tangency")
+	t.Logf("min angle %.3g at joint %d (t = %g); glitch: shadowed %d", full.MinAngle, full.MinAngleAt, times[full.MinAngleAt], sh.Shadowed)
 }

@@ -153,10 +153,11 @@ type shadower struct {
 	mag     float64   // max(1, largest |component|)
 	before  []float64 // |e_i| of the given orbit, i = 1..steps (index 0 unused)
 
-	jm *mat.Dense
-	jd []float64 // J row-major
-	xd []DoubleDouble
-	fx []DoubleDouble
+	jm      *mat.Dense
+	jd      []float64 // J row-major
+	tangent []float64 // a flow chain's tangent maps (n² per segment), in place of m
+	xd      []DoubleDouble
+	fx      []DoubleDouble
 
 	dirs splitDirs
 	q    []DoubleDouble // the refined orbit
@@ -184,9 +185,14 @@ func newShadower(m ShadowableMap, orbit []float64, n int, cfg ShadowSettings) *s
 	return sh
 }
 
-// jac evaluates the Jacobian at iterate i of the given orbit into sh.jd.
+// jac evaluates the Jacobian at iterate i of the given orbit into sh.jd
+// (for a flow's chain, the tangent map of segment i).
 func (sh *shadower) jac(i int) {
 	n := sh.n
+	if sh.tangent != nil {
+		copy(sh.jd, sh.tangent[i*n*n:(i+1)*n*n])
+		return
+	}
 	sh.m.Jacobian(sh.p0[i*n:(i+1)*n], sh.jm)
 	raw := sh.jm.RawMatrix()
 	for r := 0; r < n; r++ {
