@@ -115,7 +115,7 @@ func (sys *System) shadowFlow(ctx context.Context, rep *Report, horizon float64,
 	}
 	joints := 100
 	if e := rep.Exponent; e != nil && e.Value > 0 {
-		joints = int(math.Ceil(horizon * e.Value / shadowSegmentGrowth))
+		joints = int(math.Ceil(float64(horizon*e.Value) / shadowSegmentGrowth))
 	}
 	joints = min(max(joints, 10), 5000)
 	out.Joints = joints

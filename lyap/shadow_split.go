@@ -173,7 +173,7 @@ func invertSmall(m, inv, work []float64, u int) bool {
 				p = r
 			}
 		}
-		if !(math.Abs(a[p*u+c]) > 1e-300+scale*0x1p-52) {
+		if !(math.Abs(a[p*u+c]) > 1e-300+float64(scale*0x1p-52)) {
 			return false
 		}
 		if p != c {

@@ -322,3 +322,20 @@ func BenchmarkShadowHenon(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/steps, "ns/iterate")
 }
+
+func TestShadowMapAllocsDoNotGrow(t *testing.T) {
+	// The work per iterate allocates nothing: the slices are made once per
+	// attempt, so 10 times the iterates costs the same number of
+	// allocations.
+	m := ddHenon{henon{a: 1.4, b: 0.3}}
+	short, long := floatOrbit(m, []float64{0.1, 0.1}, 1000), floatOrbit(m, []float64{0.1, 0.1}, 10_000)
+	count := func(p []float64) float64 {
+		return testing.AllocsPerRun(3, func() {
+			if _, err := ShadowMap(context.Background(), m, p, nil); err != nil {
+				t.Fatal(err)
+			}
+		})
+	}
+	a, b := count(short), count(long)
+	assert.Equal(t, a, b, "allocations for 1000 and 10000 iterates")
+}
