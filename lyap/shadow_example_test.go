@@ -13,8 +13,8 @@ import (
 // logistic map), with its double-double form.
 type fishStock struct{}
 
-func (fishStock) Dim() int                              { return 1 }
-func (fishStock) Next(x, dst []float64)                 { dst[0] = 3.9 * x[0] * (1 - x[0]) }
+func (fishStock) Dim() int                             { return 1 }
+func (fishStock) Next(x, dst []float64)                { dst[0] = 3.9 * x[0] * (1 - x[0]) }
 func (fishStock) Jacobian(x []float64, dst *mat.Dense) { dst.Set(0, 0, 3.9*(1-2*x[0])) }
 func (fishStock) NextDD(x, dst []lyap.DoubleDouble) error {
 	dst[0] = dd.MulFloat(dd.Mul(x[0], dd.Sub(dd.From(1), x[0])), 3.9)
