@@ -90,7 +90,15 @@ const (
 //	Q. Wang, Convergence of the least squares shadowing method for
 //	  computing derivative of ergodic averages, SIAM J. Numer. Anal. 52
 //	  (2014) 156–170.
-func ShadowFlow(ctx context.Context, p integrate.Problem, times, states []float64, s *FlowShadowSettings) (*Shadow, error) {
+func ShadowFlow(ctx context.Context, p integrate.Problem, times, states []float64, s *FlowShadowSettings) (res *Shadow, err error) {
+	at := math.NaN()
+	defer func() {
+		// A panic in the caller's field outside the integrations (which
+		// recover their own) ends the work with a CallbackError.
+		if v := recover(); v != nil {
+			err = fmt.Errorf("lyap: ShadowFlow: %w", integrate.Recovered(integrate.CallbackField, at, v))
+		}
+	}()
 	if ctx == nil {
 		ctx = context.Background()
 	}
@@ -158,7 +166,8 @@ func ShadowFlow(ctx context.Context, p integrate.Problem, times, states []float6
 	p = p.Own()
 	fs := &flowShadow{p: p, cfg: c, n: n, times: times, y0: states, mag: mag,
 		jm: mat.NewDense(n, n, nil)}
-	res := &Shadow{Dim: n, Iterates: K, MinAngle: math.Pi / 2}
+	res = &Shadow{Dim: n, Iterates: K, MinAngle: math.Pi / 2}
+	at = times[0]
 	for length, attempt := K, 0; ; attempt++ {
 		if attempt == maxShadowAttempts || length < 1 {
 			res.Shadowed, res.Until = 0, times[0]

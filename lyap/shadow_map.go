@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/dd"
 	"gonum.org/v1/gonum/mat"
 )
@@ -52,7 +53,19 @@ import (
 //	C. Grebogi, S. M. Hammel, J. A. Yorke, T. Sauer, Shadowing of physical
 //	  trajectories in chaotic dynamics: containment and refinement, Phys.
 //	  Rev. Lett. 65 (1990) 1527–1530.
-func ShadowMap(ctx context.Context, m ShadowableMap, orbit []float64, s *ShadowSettings) (*Shadow, error) {
+func ShadowMap(ctx context.Context, m ShadowableMap, orbit []float64, s *ShadowSettings) (res *Shadow, err error) {
+	var sh *shadower
+	defer func() {
+		// A panic in the caller's map ends the work with a CallbackError
+		// naming the function and the iterate.
+		if v := recover(); v != nil {
+			name, at := integrate.CallbackMap, 0
+			if sh != nil {
+				name, at = sh.calling, sh.at
+			}
+			err = fmt.Errorf("lyap: ShadowMap: %w", integrate.Recovered(name, float64(at), v))
+		}
+	}()
 	if ctx == nil {
 		ctx = context.Background()
 	}
@@ -75,8 +88,8 @@ func ShadowMap(ctx context.Context, m ShadowableMap, orbit []float64, s *ShadowS
 	if err != nil {
 		return nil, err
 	}
-	sh := newShadower(m, orbit, n, cfg)
-	res := &Shadow{Dim: n, Iterates: sh.steps, MinAngle: math.Pi / 2}
+	sh = newShadower(m, orbit, n, cfg)
+	res = &Shadow{Dim: n, Iterates: sh.steps, MinAngle: math.Pi / 2}
 	if err := sh.measureBefore(res); err != nil {
 		return nil, err
 	}
@@ -153,6 +166,8 @@ type shadower struct {
 	mag     float64   // max(1, largest |component|)
 	before  []float64 // |e_i| of the given orbit, i = 1..steps (index 0 unused)
 
+	calling string // the caller's function running last, and at which iterate
+	at      int
 	jm      *mat.Dense
 	jd      []float64 // J row-major
 	tangent []float64 // a flow chain's tangent maps (n² per segment), in place of m
@@ -193,6 +208,7 @@ func (sh *shadower) jac(i int) {
 		copy(sh.jd, sh.tangent[i*n*n:(i+1)*n*n])
 		return
 	}
+	sh.calling, sh.at = integrate.CallbackMapJacobian, i
 	sh.m.Jacobian(sh.p0[i*n:(i+1)*n], sh.jm)
 	raw := sh.jm.RawMatrix()
 	for r := 0; r < n; r++ {
@@ -236,6 +252,7 @@ func (sh *shadower) stepErrors(ctx context.Context, x []DoubleDouble, L int) (bi
 				return 0, 0, 0, err
 			}
 		}
+		sh.calling, sh.at = integrate.CallbackMap, i
 		if err := sh.m.NextDD(x[i*n:(i+1)*n], sh.fx); err != nil {
 			return 0, 0, 0, fmt.Errorf("lyap: ShadowMap: the map at iterate %d: %w", i, err)
 		}
@@ -269,6 +286,7 @@ func (sh *shadower) measureBefore(res *Shadow) error {
 		for k := 0; k < n; k++ {
 			sh.xd[k] = dd.From(sh.p0[i*n+k])
 		}
+		sh.calling, sh.at = integrate.CallbackMap, i
 		if err := sh.m.NextDD(sh.xd, sh.fx); err != nil {
 			return fmt.Errorf("lyap: ShadowMap: the map at iterate %d: %w", i, err)
 		}

@@ -8,6 +8,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"github.com/plumbdyn/plumb/integrate"
 	"github.com/plumbdyn/plumb/internal/dd"
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
@@ -338,4 +339,30 @@ func TestShadowMapAllocsDoNotGrow(t *testing.T) {
 	}
 	a, b := count(short), count(long)
 	assert.Equal(t, a, b, "allocations for 1000 and 10000 iterates")
+}
+
+// panicky panics in its double-double form at x > 1.2 (a user's bug).
+type panicky struct{ ddHenon }
+
+func (m panicky) NextDD(x, dst []DoubleDouble) error {
+	if x[0].Hi > 1.2 {
+		panic("index out of range in the user's map")
+	}
+	return m.ddHenon.NextDD(x, dst)
+}
+
+func TestShadowMapPanicRecovered(t *testing.T) {
+	m := panicky{ddHenon{henon{a: 1.4, b: 0.3}}}
+	p := floatOrbit(m, []float64{0.1, 0.1}, 200)
+	var sh *Shadow
+	var err error
+	require.NotPanics(t, func() { sh, err = ShadowMap(context.Background(), m, p, nil) })
+	if sh != nil { // the partial result certifies nothing
+		assert.Zero(t, sh.Shadowed)
+	}
+	assert.ErrorContains(t, err, "index out of range in the user's map")
+	var ce *integrate.CallbackError
+	require.ErrorAs(t, err, &ce)
+	assert.Equal(t, integrate.CallbackMap, ce.Callback)
+	assert.Greater(t, p[2*int(ce.T)], 1.2, "the iterate named is where the map panicked")
 }
