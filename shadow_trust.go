@@ -19,7 +19,9 @@ import (
 // not the real system.
 type ShadowReport struct {
 	// Of names the run shadowed: a map's float64 orbit, or a flow's run
-	// (your run, or Dormand–Prince 5(4) at Solve's default tolerances).
+	// (your run — TrustSettings.Run, or the rung of kind
+	// integrate.KindRun in TrustSettings.Ladder — or else
+	// Dormand–Prince 5(4) at Solve's default tolerances).
 	Of string `json:"of"`
 	// Method is how the shadow was found: the refinement of Hammel, Yorke
 	// & Grebogi (a map, lyap.ShadowMap) or multiple shooting with time
@@ -95,7 +97,18 @@ func (sys *System) shadowFlow(ctx context.Context, rep *Report, horizon float64,
 	out := &ShadowReport{Method: "multiple shooting with time rescaling, least squares (Coomes, Koçak & Palmer; Wang)"}
 	method := integrate.DormandPrince54
 	set := integrate.Settings{RelTol: integrate.DefaultRelTol, AbsTol: integrate.DefaultAbsTol, MaxSteps: s.MaxSteps, DropSteps: true}
-	switch r := s.Run; {
+	r := s.Run
+	if r == nil && s.Ladder != nil { // your run inside a ladder built around it
+		for i := range s.Ladder.Rungs {
+			if s.Ladder.Rungs[i].Kind == integrate.KindRun {
+				r = &s.Ladder.Rungs[i]
+			}
+		}
+	}
+	switch {
+	case r != nil && r.Fixed != nil && !(r.Step > 0):
+		out.Error = "your fixed-step run has no step size"
+		return out
 	case r != nil && r.Fixed != nil:
 		method = r.Fixed(r.Step)
 		out.Of = fmt.Sprintf("your run (%s h=%g)", method.Name(), r.Step)

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"testing"
 
+	"github.com/plumbdyn/plumb/integrate"
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 )
@@ -52,4 +53,26 @@ func TestTrustShadowMap(t *testing.T) {
 	off, err := sys.Trust(context.Background(), 5000, &TrustSettings{Tol: 0.1})
 	require.NoError(t, err)
 	assert.Nil(t, off.Shadow, "no shadow unless asked for")
+}
+
+func TestTrustShadowYourRun(t *testing.T) {
+	// Your run, given as TrustSettings.Run or inside a ladder built around
+	// it, is the run shadowed; three orders tighter than the default run,
+	// it is shadowed closer.
+	sys, err := Model("lorenz")
+	require.NoError(t, err)
+	run := integrate.Rung{Method: integrate.DormandPrince54, RelTol: 1e-9, AbsTol: 1e-9}
+	rep, err := sys.Trust(context.Background(), 30, &TrustSettings{Tol: 1, Shadow: true, NoExact: true, NoReversal: true, Run: &run})
+	require.NoError(t, err)
+	require.NotNil(t, rep.Shadow)
+	require.Empty(t, rep.Shadow.Error)
+	assert.Contains(t, rep.Shadow.Of, "your run (Dormand–Prince 5(4) rtol 1e-09 atol 1e-09)")
+	ladder, err := integrate.RunLadder(0, 30, run)
+	require.NoError(t, err)
+	viaLadder, err := sys.Trust(context.Background(), 30, &TrustSettings{Tol: 1, Shadow: true, NoExact: true, NoReversal: true, Ladder: &ladder})
+	require.NoError(t, err)
+	assert.Equal(t, rep.Shadow, viaLadder.Shadow, "the same run either way")
+	def, err := sys.Trust(context.Background(), 30, &TrustSettings{Tol: 1, Shadow: true, NoExact: true, NoReversal: true})
+	require.NoError(t, err)
+	assert.Less(t, rep.Shadow.Distance, def.Shadow.Distance/10, "rtol 1e-9 against 1e-6")
 }
