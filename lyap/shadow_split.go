@@ -308,7 +308,7 @@ func (sh *shadower) try(ctx context.Context, L int, res *Shadow) (*Glitch, error
 	if err != nil {
 		return nil, err
 	}
-	passes := 0
+	passes, dist, distAt := 0, 0.0, 0
 	for rel > ShadowTarget {
 		if passes == sh.cfg.Passes {
 			return sh.glitchAt(at, fmt.Sprintf("the refinement did not reach one-step errors of %.3g in %d passes (%.3g relative)", ShadowTarget, passes, rel)), nil
@@ -340,12 +340,13 @@ func (sh *shadower) try(ctx context.Context, L int, res *Shadow) (*Glitch, error
 			return sh.glitchAt(at, fmt.Sprintf("the refinement stalled at one-step error %.3g (relative) at iterate %d", newRel, at)), nil
 		}
 		rel = newRel
-		res.Distance, res.DistanceAt = far, farAt
+		dist, distAt = far, farAt
 	}
 	after, _, _, err := sh.stepErrors(ctx, sh.q, L)
 	if err != nil {
 		return nil, err
 	}
+	res.Distance, res.DistanceAt = dist, distAt
 	res.StepErrorAfter = after
 	res.Passes = passes
 	res.MinAngle, res.MinAngleAt = sh.dirs.minAngle, sh.dirs.minAt
