@@ -76,7 +76,8 @@ const (
 // before it. A gap beyond MaxStepError is refused with a *JumpError. The
 // field must not depend on time (the rescaling moves the clock).
 //
-// Errors before any work (nil Shadow): a nil field (ErrSystem), no Jacobian
+// Errors before any work (nil Shadow): a nil field or one that depends on
+// time (ErrSystem), no Jacobian
 // (ErrNoJacobian), states not matching times (ErrDimension), times not
 // increasing or values not finite (ErrNonFinite or ErrSettings), invalid
 // settings (ErrSettings), a jump (ErrJump). A failed segment integration
@@ -164,6 +165,11 @@ func ShadowFlow(ctx context.Context, p integrate.Problem, times, states []float6
 		c.Passes = DefaultPasses
 	}
 	p = p.Own()
+	at = times[0]
+	if t, ok := timeDependent(p, times, states[:n]); ok {
+		return nil, fmt.Errorf("lyap: ShadowFlow: the vector field at the first state differs at t=%g from t=%g: it depends on time, and the shadow rescales time (an autonomous field only): %w",
+			t, times[0], ErrSystem)
+	}
 	fs := &flowShadow{p: p, cfg: c, n: n, times: times, y0: states, mag: mag,
 		jm: mat.NewDense(n, n, nil)}
 	res = &Shadow{Dim: n, Iterates: K, MinAngle: math.Pi / 2}
@@ -184,6 +190,24 @@ func ShadowFlow(ctx context.Context, p integrate.Problem, times, states []float6
 		res.Glitch = g
 		length = g.Index - 1
 	}
+}
+
+// timeDependent evaluates the field at y on the first, middle and last
+// joint's time: a field that differs is not autonomous (one that agrees at
+// these three times is taken to be).
+func timeDependent(p integrate.Problem, times, y []float64) (float64, bool) {
+	n := len(y)
+	ref, f := make([]float64, n), make([]float64, n)
+	p.F(times[0], y, ref)
+	for _, t := range []float64{times[len(times)/2], times[len(times)-1]} {
+		p.F(t, y, f)
+		for i := range f {
+			if f[i] != ref[i] && !(math.IsNaN(f[i]) && math.IsNaN(ref[i])) {
+				return t, true
+			}
+		}
+	}
+	return 0, false
 }
 
 // flowShadow is the workspace of ShadowFlow.

@@ -2,11 +2,13 @@ package lyap
 
 import (
 	"context"
+	"math"
 	"testing"
 
 	"github.com/plumbdyn/plumb/integrate"
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/mat"
 )
 
 // lorenzRun is a DormandPrince54 run of Lorenz at rtol = atol = tol over
@@ -96,4 +98,22 @@ func TestShadowFlowNearTangency(t *testing.T) {
 	assert.Less(t, sh.Shadowed, full.MinAngleAt)
 	assert.Contains(t, sh.Glitch.Reason, "near-tangency")
 	t.Logf("min angle %.3g at joint %d (t = %g); glitch: shadowed %d", full.MinAngle, full.MinAngleAt, times[full.MinAngleAt], sh.Shadowed)
+}
+
+func TestShadowFlowRefusesTimeDependence(t *testing.T) {
+	// A forced oscillator x'' = −x + cos t: the time rescaling would move
+	// the forcing, so the shadow refuses it.
+	p := integrate.Problem{
+		F: func(t float64, y, dy []float64) { dy[0], dy[1] = y[1], -y[0]+math.Cos(t) },
+		Jac: func(_ float64, _ []float64, dst *mat.Dense) {
+			dst.Set(0, 0, 0)
+			dst.Set(0, 1, 1)
+			dst.Set(1, 0, -1)
+			dst.Set(1, 1, 0)
+		},
+		Y0: []float64{1, 0},
+	}
+	_, err := ShadowFlow(context.Background(), p, []float64{0, 1, 2}, []float64{1, 0, 1, 0, 1, 0}, nil)
+	assert.ErrorIs(t, err, ErrSystem)
+	assert.ErrorContains(t, err, "depends on time")
 }
