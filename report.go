@@ -100,6 +100,9 @@ type Report struct {
 	Exact *ExactReference `json:"exact_reference,omitempty"`
 	// Reversal is the reversibility check, nil if skipped.
 	Reversal *ReversalReport `json:"reversal,omitempty"`
+	// Shadow is the shadow of the audited run (TrustSettings.Shadow), nil
+	// when not asked for.
+	Shadow *ShadowReport `json:"shadow,omitempty"`
 	// reach is the reference run's largest distance from its mean
 	// (integrate.AuditResult.Reach).
 	reach float64

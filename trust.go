@@ -92,6 +92,11 @@ type TrustSettings struct {
 	// run of Lorenz takes about 80 steps per time unit. Must be >= 0;
 	// otherwise integrate.ErrSettings.
 	MaxSteps int
+	// Shadow (System.Trust only) also looks for a true orbit near the
+	// audited run (a map's float64 orbit; a flow's run, TrustSettings.Run
+	// or Dormand–Prince 5(4) at Solve's tolerances) and reports how close
+	// and for how long in Report.Shadow.
+	Shadow bool
 	// Progress, if not nil, is called as work completes with the stage
 	// (StageAudit with runs done and total, StageExponent with 0 and 1,
 	// and 1 and 1 when done; the two may come in either order). It must

@@ -89,7 +89,9 @@ func (s *System) Trust(ctx context.Context, horizon float64, settings *TrustSett
 		if err := checkTolLambda("TrustSettings", set.Tol, set.Lambda); err != nil {
 			return nil, err
 		}
-		return s.trustMap(ctx, int(horizon), set)
+		rep, err := s.trustMap(ctx, int(horizon), set)
+		s.addShadow(ctx, rep, err, horizon, &set)
+		return rep, err
 	}
 	if set.MapRungs != nil {
 		return nil, misplaced("MapRungs", s.Name+" is a "+string(s.kind)+", audited with Ladder")
@@ -105,5 +107,6 @@ func (s *System) Trust(ctx context.Context, horizon float64, settings *TrustSett
 	if rep != nil {
 		rep.TimeUnit = s.TimeUnit()
 	}
+	s.addShadow(ctx, rep, err, horizon, &set)
 	return rep, err
 }

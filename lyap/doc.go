@@ -25,6 +25,8 @@
 //	                          partial spectrum gives only a lower bound
 //	                          (Bound), and whether lambda_max stands clear
 //	                          of its noise (NoiseFactor)
+//	ShadowMap, ShadowFlow     a true orbit near a computed one: how close,
+//	                          for how long, and where it stops (Shadow)
 //
 // Flows are integrate.Problem values (the Jacobian Problem.Jac is used when
 // given, central differences otherwise); maps satisfy the small Map interface
@@ -45,6 +47,15 @@
 // ratios far from 1/eps (Settings.MaxGrowth), unless the caller fixes it.
 // Covariant vectors follow Ginelli et al. (2007): the forward QR run is
 // stored, and upper-triangular coefficients are iterated backward.
+//
+// ShadowMap refines a float64 orbit in double-double after Hammel, Yorke &
+// Grebogi (1987, 1988) and Grebogi, Hammel, Yorke & Sauer (1990), the
+// correction split along stable (forward) and unstable (backward)
+// directions; ShadowFlow closes the gaps of a run cut at joints by multiple
+// shooting with time rescaling (Coomes, Koçak & Palmer 1995), each pass the
+// minimum-norm least-squares correction (after Wang 2014). Both stop at a
+// near-tangency or a failing refinement and say where (Glitch), and refuse
+// a jump (JumpError) rather than certify it.
 //
 // # Uncertainty
 //

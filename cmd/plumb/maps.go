@@ -409,7 +409,7 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	if slices.Contains(kinds, integrate.KindRestart) {
 		echo.RestartPlaces = f.restartPlaces
 	}
-	settings := &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist}
+	settings := &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist, Shadow: f.shadow}
 	return cl.runJob(ctx, f.systemJob(sys, float64(steps), settings, "orbit", func(rep *plumb.Report, runErr error) any {
 		e := echo
 		e.Exact = rep.Exact != nil // the double-double orbit

@@ -65,7 +65,7 @@ verdict, tol_used, growth, float64_horizon (when extrapolated),
 float64_per_bit (when extrapolated), exponent (when estimated or given),
 exponent_error (when the estimate failed), tightest, rungs, times,
 failed, exact_reference (when --exact applies), reversal (when checked),
-caution. tightest and each rung have a name for people, an id for
+shadow (when --shadow), caution. tightest and each rung have a name for people, an id for
 programs, their agrees_until and their divergence curve on times.
 --format csv writes the divergence curves: t, then one column per run,
 headed by its id, which stays the same from run to run: tightest (with
@@ -73,8 +73,17 @@ headed by its id, which stays the same from run to run: tightest (with
 method_dp853, method_rk4, precision_24bit, precision_40bit, restart. --plot draws them on a log axis with
 the tolerance and the Lyapunov prediction.
 
-A trust horizon is a statement about the numerical model, not a safety
-certificate for the real system; safety-critical use follows the field's
+--shadow also asks whether a true orbit of the model stays near the run
+audited, though the run is wrong pointwise: a map's float64 orbit is
+refined in double-double after Hammel, Yorke & Grebogi, a flow's run (your
+run, or dp54 at Solve's tolerances) by multiple shooting with a time
+rescaling in least squares. The report's shadow line (JSON: shadow)
+gives the distance, how far the shadow reaches, and, where it stops short,
+why (a near-tangency of stable and unstable directions, or a refinement
+that fails).
+
+A trust horizon, like a shadow, is a statement about the numerical model,
+not a safety certificate for the real system; safety-critical use follows the field's
 own codes and licensed review.
 
 A map (henon, logistic, standard, ikeda, or a system file of kind map) is
@@ -89,8 +98,8 @@ magnitude, distance, limited_by (when a rung departs), limiting_rung
 (when a rung departs), predicted_horizon (when predicted), verdict,
 tol_used, growth, exponent (when estimated), exponent_error (when the
 estimate failed), rungs, times, stride, failed, exact_reference (the
-double-double orbit), caution, time_unit (iterate: every time is an
-iterate). --format csv writes n, then
+double-double orbit), shadow (when --shadow), caution, time_unit
+(iterate: every time is an iterate). --format csv writes n, then
 one column per rung, headed by its id: precision_float64,
 precision_40bit, precision_24bit, restart. Past 4096 iterates each
 curve keeps at most 4096 points: a row (and a point of a rung's
@@ -178,6 +187,8 @@ type trustFlags struct {
 	h          float64
 	// recorded audits runs made by another program (trust_runs.go).
 	recorded runsFlags
+	// shadow asks for the shadow of the audited run (--shadow).
+	shadow bool
 }
 
 // yourRunFlags are the flags that name the caller's own run.
@@ -199,6 +210,7 @@ func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	finiteVar(fs, &f.h, "step", 0, "step size `H` of your own run's fixed-step method (-h is help)")
 	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps per run (long horizons need more: the reference takes about 80 per time unit on the demo)")
 	addRunsFlags(fs, &f.recorded)
+	fs.BoolVar(&f.shadow, "shadow", false, "also look for a true orbit of the model near the audited run, and say how close it stays and up to when")
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -313,6 +325,9 @@ const trustGrid = 1000
 
 func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	if f.recorded.active(cl) {
+		if f.shadow {
+			return usagef("--shadow: shadows a run plumb makes itself, not runs read with --run or made with --exec")
+		}
 		return f.runRecorded(ctx, cl)
 	}
 	if !(f.horizon > 0) {
@@ -345,7 +360,7 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	if f.maxSteps < 1 {
 		return usagef("--max-steps %d: must be >= 1", f.maxSteps)
 	}
-	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Distance: dist, MaxSteps: f.maxSteps, NoExact: !f.exact}
+	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Distance: dist, MaxSteps: f.maxSteps, NoExact: !f.exact, Shadow: f.shadow}
 	echo := trustSettingsJSON{
 		Horizon: f.horizon, Tol: f.tol, Relative: f.relative, Rungs: names,
 		Exact: f.exact && sys.HasFormulas(), Every: f.horizon / trustGrid,
