@@ -101,13 +101,22 @@ type ScanRow struct {
 	// iterates (the mean of ln|J v| for a tangent vector v renormalised
 	// every iterate; for a one-dimensional map the mean of ln|f'|): NaN
 	// for a map without a Jacobian or an orbit that escaped, -Inf where
-	// the orbit hits a critical point exactly (a superstable cycle).
+	// the orbit hits a critical point exactly (a superstable cycle). A
+	// Period with a positive Exponent means the float64 orbit landed
+	// exactly on an unstable cycle (the tent map at mu = 2 falls to 0 in
+	// about 55 iterates): an artefact of the arithmetic, not an attracting
+	// cycle (ArtefactCycle reports it).
 	Exponent float64
 	// Escaped is set when the orbit left the finite numbers (Values empty,
 	// Period 0); Err says where.
 	Escaped bool
 	Err     error
 }
+
+// ArtefactCycle reports a period found on an orbit whose exponent is
+// positive: the iterates sit exactly on an unstable cycle, which only
+// rounding can do.
+func (r *ScanRow) ArtefactCycle() bool { return r.Period > 0 && r.Exponent > 0 }
 
 // scanBatch is the number of rows per worker computed between two
 // emissions: it bounds the rows held in memory (scanBatch·Workers) while
