@@ -48,6 +48,9 @@ type outcome struct {
 	// chart, when not nil, draws the --plot picture; nil from it draws
 	// nothing (no curve to draw).
 	chart func() *lineChart
+	// picture, when not nil, draws a --plot that is not a lineChart (an
+	// orbit diagram) into the file name at the size.
+	picture func(name string, size plotSize) error
 	// warnings go to stderr after the result (unless --quiet).
 	warnings []string
 	// done says what was done, for the wall-time line ("" writes none).
@@ -82,6 +85,11 @@ func (cl *call) runJob(ctx context.Context, j job) error {
 			if perr := c.save(cl.sh.plot, cl.sh.plotSize); perr != nil {
 				return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 			}
+		}
+	}
+	if cl.sh.plot != "" && res.picture != nil {
+		if perr := res.picture(cl.sh.plot, cl.sh.plotSize); perr != nil {
+			return fmt.Errorf("drawing --plot %s failed: %w", cl.sh.plot, perr)
 		}
 	}
 	for _, w := range res.warnings {
