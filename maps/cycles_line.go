@@ -100,7 +100,7 @@ func (l *lineSearch) roots(ctx context.Context, s *CycleSettings) ([]float64, er
 			c := stack[len(stack)-1]
 			stack = stack[:len(stack)-1]
 			a, b := c[0], c[1]
-			mid := l.sample(a.x + (b.x-a.x)/2)
+			mid := l.sample(a.x + float64((b.x-a.x)/2))
 			if !a.ok || !b.ok || !mid.ok {
 				continue // the orbit leaves the finite numbers here: no cycle
 			}
@@ -159,9 +159,10 @@ func (l *lineSearch) resolved(a, mid, b sample) bool {
 		return false
 	}
 	rise := b.g - a.g
-	hermite := (a.g+b.g)/2 + float64(h*(a.dg-b.dg))/8
-	simpson := h / 6 * (a.dg + 4*mid.dg + b.dg)
-	return math.Abs(mid.g-hermite) <= 0.1*math.Abs(rise) && math.Abs(rise-simpson) <= 0.1*math.Abs(rise)
+	hermite := float64((a.g+b.g)/2) + float64(float64(h*(a.dg-b.dg))/8)
+	simpson := float64(h / 6 * (a.dg + float64(4*mid.dg) + b.dg))
+	tenth := float64(0.1 * math.Abs(rise))
+	return math.Abs(mid.g-hermite) <= tenth && math.Abs(rise-simpson) <= tenth
 }
 
 // root finds the zero of g in [a, b] when g changes sign there (not at a
@@ -178,7 +179,7 @@ func (l *lineSearch) root(a, b sample) (float64, bool) {
 	if a.g > 0 {
 		lo, hi = hi, lo // g(lo) < 0 < g(hi)
 	}
-	x := a.x + (b.x-a.x)/2
+	x := a.x + float64((b.x-a.x)/2)
 	for range 200 {
 		g, dg, ok := l.at(x)
 		if !ok {
@@ -194,7 +195,7 @@ func (l *lineSearch) root(a, b sample) (float64, bool) {
 		}
 		xn := x - g/dg
 		if !(xn > math.Min(lo, hi) && xn < math.Max(lo, hi)) {
-			xn = lo + (hi-lo)/2
+			xn = lo + float64((hi-lo)/2)
 		}
 		if math.Abs(xn-x) <= 2e-16*(1+math.Abs(x)) || math.Abs(hi-lo) <= 4e-16*(1+math.Abs(x)) {
 			return xn, true

@@ -96,7 +96,7 @@ func PeriodDoubling(ctx context.Context, fam Family, xc float64, guess [2]float6
 		switch k {
 		case 0, 1:
 			r0 = guess[k]
-			r1 = r0 + 1e-6*(1+math.Abs(r0))
+			r1 = r0 + float64(1e-6*(1+math.Abs(r0)))
 		default:
 			rs := c.Superstable
 			d := 4.669201609102990 // Feigenbaum's δ (Briggs 1991): only the start of the search
@@ -105,7 +105,7 @@ func PeriodDoubling(ctx context.Context, fam Family, xc float64, guess [2]float6
 			}
 			step := (rs[k-1] - rs[k-2]) / d
 			r0 = rs[k-1] + step
-			r1 = r0 + step*1e-3
+			r1 = r0 + float64(step*1e-3)
 		}
 		period := 1 << k
 		g := func(r float64) (float64, error) {

@@ -356,6 +356,9 @@ func cyclesCSV(dst io.Writer, sys *plumb.System, out cyclesJSON) error {
 func cyclesChart(sys *plumb.System, m *maps.Map, out cyclesJSON, steps int) *lineChart {
 	c := &lineChart{}
 	if m.Dim() != 1 {
+		if len(out.Cycles) == 0 {
+			return nil // no points to draw
+		}
 		c.Scatter = true
 		c.Title = fmt.Sprintf("%s: cycles of period %d", sys.Title, out.Settings.Period)
 		c.XLabel, c.YLabel = sys.States[0], sys.States[1]
