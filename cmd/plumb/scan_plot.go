@@ -80,7 +80,7 @@ func saveOrbitDiagram(name string, size plotSize, sys *plumb.System, out scanJSO
 
 	bottom := plot.New()
 	bottom.X.Label.Text = ax.Name
-	bottom.Y.Label.Text = "Lyapunov exponent per iterate"
+	bottom.Y.Label.Text = "exponent λ"
 	var pts plotter.XYs
 	for _, r := range rows {
 		if !math.IsNaN(r.Exponent) && !math.IsInf(r.Exponent, 0) {
@@ -109,10 +109,10 @@ func saveOrbitDiagram(name string, size plotSize, sys *plumb.System, out scanJSO
 	if err != nil {
 		return err
 	}
-	dc := draw.New(cw)
+	dc := draw.Crop(draw.New(cw), 0, -vg.Points(12), 0, 0) // room for the last tick label
 	// The diagram takes the upper 62 %, the exponent the rest.
 	split := vg.Length(0.38) * height
-	upper := draw.Crop(dc, 0, 0, split, 0)
+	upper := draw.Crop(dc, 0, 0, split, -vg.Points(4)) // room above the title
 	lower := draw.Crop(dc, 0, 0, 0, split-height)
 	plots := [][]*plot.Plot{{top}, {bottom}}
 	canvases := [][]draw.Canvas{{upper}, {lower}}
