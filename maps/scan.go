@@ -214,7 +214,7 @@ func Scan(ctx context.Context, fam Family, axes [][]float64, x0 []float64, s *Sc
 						failed.CompareAndSwap(nil, &err)
 						return
 					}
-					batch[i] = sw.row(m, x0, start+i, p)
+					batch[i] = sw.row(ctx, m, x0, start+i, p)
 				}
 			}(ws[w])
 		}
@@ -260,13 +260,19 @@ func newScanWork(n int, set *ScanSettings) *scanWork {
 		orbit: make([]float64, n*set.Keep), j: mat.NewDense(n, n, nil)}
 }
 
-// row iterates m from x0 and fills the row.
-func (sw *scanWork) row(m *Map, x0 []float64, index int, p []float64) ScanRow {
+// row iterates m from x0 and fills the row. A canceled ctx (checked every
+// 65536 iterates) ends it early with the context's error; Scan then drops
+// the batch.
+func (sw *scanWork) row(ctx context.Context, m *Map, x0 []float64, index int, p []float64) ScanRow {
 	set, n := sw.set, sw.n
 	r := ScanRow{Index: index, Params: p, Exponent: math.NaN()}
 	x := sw.x
 	copy(x, x0)
 	for it := 1; it <= set.Discard; it++ {
+		if it&0xffff == 0 && ctx.Err() != nil {
+			r.Err = ctx.Err()
+			return r
+		}
 		m.Next(x, x)
 		if i, v, bad := firstNonFinite(x); bad {
 			r.Escaped, r.Err = true, &NonFiniteError{Iterate: it, Component: i, Value: v}
@@ -281,6 +287,10 @@ func (sw *scanWork) row(m *Map, x0 []float64, index int, p []float64) ScanRow {
 	v[0] = 1
 	sum := 0.0
 	for k := range set.Keep {
+		if k&0xffff == 0xffff && ctx.Err() != nil {
+			r.Err = ctx.Err()
+			return r
+		}
 		if jac {
 			sum += sw.stretch(m, x)
 		}

@@ -149,7 +149,21 @@ func TestScanRowAllocs(t *testing.T) {
 	count := func(keep int) float64 {
 		set := (ScanSettings{Keep: keep, Discard: keep}).WithDefaults()
 		sw := newScanWork(1, &set)
-		return testing.AllocsPerRun(20, func() { sw.row(m, []float64{0.3}, 0, []float64{3.9}) })
+		return testing.AllocsPerRun(20, func() { sw.row(context.Background(), m, []float64{0.3}, 0, []float64{3.9}) })
 	}
 	assert.Equal(t, count(50), count(5000))
+}
+
+// TestScanCanceled: a canceled scan returns the context's error and emits
+// no row it did not finish.
+func TestScanCanceled(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	n := 0
+	err := Scan(ctx, logisticFamily, [][]float64{linspace(3, 4, 50)}, []float64{0.3}, &ScanSettings{Keep: 200000}, func(ScanRow) error {
+		n++
+		return nil
+	})
+	assert.ErrorIs(t, err, context.Canceled)
+	assert.Equal(t, 0, n)
 }
