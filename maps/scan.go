@@ -7,7 +7,6 @@ import (
 	"runtime"
 	"sort"
 	"sync"
-	"sync/atomic"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -118,9 +117,9 @@ type ScanRow struct {
 // rounding can do.
 func (r *ScanRow) ArtefactCycle() bool { return r.Period > 0 && r.Exponent > 0 }
 
-// scanBatch is the number of rows per worker computed between two
-// emissions: it bounds the rows held in memory (scanBatch·Workers) while
-// keeping the workers busy to the end of each batch.
+// scanBatch is the number of rows per worker that may be done or under
+// way ahead of the next row to emit: it bounds the rows held in memory
+// (scanBatch·Workers).
 const scanBatch = 32
 
 // Scan iterates the map fam gives at every point of the grid spanned by
@@ -185,54 +184,102 @@ func Scan(ctx context.Context, fam Family, axes [][]float64, x0 []float64, s *Sc
 		return fmt.Errorf("maps: scan settings: %w", err)
 	}
 	workers := min(set.Workers, total)
-	batch := make([]ScanRow, min(total, scanBatch*workers))
-	ws := make([]*scanWork, workers)
-	for w := range ws {
-		ws[w] = newScanWork(m0.Dim(), &set)
-	}
-	for start := 0; start < total; start += len(batch) {
-		if err := ctx.Err(); err != nil {
-			return fmt.Errorf("maps: scan canceled after %d of %d points: %w", start, total, err)
-		}
-		n := min(len(batch), total-start)
-		var next atomic.Int64
-		var failed atomic.Pointer[error]
-		var wg sync.WaitGroup
-		for w := range workers {
-			wg.Add(1)
-			go func(sw *scanWork) {
-				defer wg.Done()
-				for {
-					i := int(next.Add(1) - 1)
-					if i >= n || failed.Load() != nil || ctx.Err() != nil {
-						return
-					}
-					p := paramsAt(axes, start+i)
-					m, err := fam(p)
-					if err != nil {
-						err = fmt.Errorf("maps: the map at parameters %v: %w", p, err)
-						failed.CompareAndSwap(nil, &err)
-						return
-					}
-					batch[i] = sw.row(ctx, m, x0, start+i, p)
-				}
-			}(ws[w])
-		}
-		wg.Wait()
-		if e := failed.Load(); e != nil {
-			return *e
-		}
-		if err := ctx.Err(); err != nil {
-			return fmt.Errorf("maps: scan canceled after %d of %d points: %w", start, total, err)
-		}
-		for i := range n {
-			if err := emit(batch[i]); err != nil {
-				return err
+	return runScan(ctx, fam, axes, x0, &set, m0.Dim(), total, workers, emit)
+}
+
+// scanResult is one finished row, or the family's error at its point.
+type scanResult struct {
+	row ScanRow
+	err error
+}
+
+// runScan computes the rows on workers goroutines and emits them in index
+// order. A feeder hands out indices, each after taking one of window
+// slots; a slot is given back when its row is emitted. So at most window
+// rows are held, and no worker waits for a slow neighbour as long as the
+// rows ahead of the slowest fit in the window.
+func runScan(ctx context.Context, fam Family, axes [][]float64, x0 []float64, set *ScanSettings, dim, total, workers int,
+	emit func(ScanRow) error) error {
+	window := min(total, scanBatch*workers)
+	ctx2, cancel := context.WithCancel(ctx)
+	defer cancel()
+	slots := make(chan struct{}, window)
+	jobs := make(chan int)
+	results := make(chan scanResult, window)
+	go func() {
+		defer close(jobs)
+		for i := range total {
+			select {
+			case slots <- struct{}{}:
+			case <-ctx2.Done():
+				return
 			}
-			batch[i] = ScanRow{}
+			select {
+			case jobs <- i:
+			case <-ctx2.Done():
+				return
+			}
+		}
+	}()
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func(sw *scanWork) {
+			defer wg.Done()
+			for i := range jobs {
+				p := paramsAt(axes, i)
+				m, err := fam(p)
+				if err != nil {
+					results <- scanResult{row: ScanRow{Index: i}, err: fmt.Errorf("maps: the map at parameters %v: %w", p, err)}
+					continue
+				}
+				results <- scanResult{row: sw.row(ctx2, m, x0, i, p)}
+			}
+		}(newScanWork(dim, set))
+	}
+	go func() {
+		wg.Wait()
+		close(results)
+	}()
+	pending := make([]ScanRow, window)
+	have := make([]bool, window)
+	next := 0
+	var stop error
+	for res := range results {
+		if stop != nil {
+			continue // drain, so that every worker ends
+		}
+		if res.err != nil {
+			stop = res.err
+			cancel()
+			continue
+		}
+		k := res.row.Index % window
+		pending[k], have[k] = res.row, true
+		for have[next%window] {
+			k := next % window
+			r := pending[k]
+			pending[k], have[k] = ScanRow{}, false
+			if ctx.Err() != nil {
+				break // a row ended early by the cancellation is not emitted
+			}
+			if err := emit(r); err != nil {
+				stop = err
+				cancel()
+				break
+			}
+			next++
+			<-slots
+		}
+		if stop == nil && ctx.Err() != nil {
+			stop = fmt.Errorf("maps: scan canceled after %d of %d points: %w", next, total, ctx.Err())
+			cancel()
 		}
 	}
-	return nil
+	if stop == nil && ctx.Err() != nil {
+		stop = fmt.Errorf("maps: scan canceled after %d of %d points: %w", next, total, ctx.Err())
+	}
+	return stop
 }
 
 // paramsAt returns the parameter point with row-major index i over axes.
