@@ -19,7 +19,8 @@
 //	Scan              orbit diagrams and exponents over one or two
 //	                  parameter axes of a Family, in parallel, streamed
 //	                  (ScanSettings, ScanRow)
-//	PeriodDoubling    superstable parameters and Feigenbaum's ratios
+//	PeriodDoubling    superstable parameters, period-doubling points and
+//	                  Feigenbaum's ratios
 //	Onset             where a window opens (tangent bifurcation)
 //	SharkovskyBefore, Forces, ForcedPeriods, ConfirmForced
 //	                  Sharkovsky's order and its check on a map

@@ -32,6 +32,11 @@ type Cascade struct {
 	// Alpha[k] = -d_k / d_(k+1) for k = 1..n-1 (Alpha[0] is 0); it tends
 	// to Feigenbaum's α = 2.5029078750...
 	Alpha []float64
+	// Doubling[k] is the parameter r_k, between R_(k-1) and R_k, at which
+	// the cycle of period 2^(k-1) loses its stability to one of period 2^k
+	// (its multiplier passes -1), for k = 1..n (Doubling[0] is 0); NaN
+	// where Newton's method did not settle inside that interval.
+	Doubling []float64
 }
 
 // LastDelta and LastAlpha are the estimates from the deepest levels.
@@ -59,7 +64,9 @@ const MaxCascadeLevel = 13
 // the map has that form) near the extrapolation R_(k-1) + (R_(k-1) -
 // R_(k-2))/δ_k, found by the secant method, and must have least period
 // 2^k. guess holds rough values of R_0 and R_1 (the secant method starts
-// from them). From the R_k come the estimates of Feigenbaum's δ and α.
+// from them). From the R_k come the estimates of Feigenbaum's δ and α;
+// between R_(k-1) and R_k lies the period-doubling point r_k, solved for
+// by Newton's method on f^q(x) = x, (f^q)'(x) = -1 with q = 2^(k-1).
 //
 // Errors: n outside 2..MaxCascadeLevel (integrate.ErrSettings), a map of
 // dimension other than 1 (integrate.ErrDimension), fam's error, a level
@@ -139,6 +146,16 @@ func PeriodDoubling(ctx context.Context, fam Family, xc float64, guess [2]float6
 		c.Superstable = append(c.Superstable, r)
 	}
 	rs, ds := c.Superstable, c.Distances
+	c.Doubling = make([]float64, n+1)
+	for k := 1; k <= n; k++ {
+		// From the critical point at R_(k-1), where it lies on the cycle
+		// of period 2^(k-1) with multiplier 0.
+		r, _, err := birth(fam, 1<<(k-1), -1, xc, rs[k-1], rs[k-1], rs[k])
+		if err != nil || r < rs[k-1] || r > rs[k] {
+			r = math.NaN()
+		}
+		c.Doubling[k] = r
+	}
 	c.Delta = make([]float64, n)
 	c.Alpha = make([]float64, n)
 	for k := 1; k < n; k++ {
@@ -272,26 +289,26 @@ func Onset(ctx context.Context, fam Family, p int, from, to float64, steps int, 
 				}
 			}
 			rl := from + (to-from)*float64(i-1)/float64(steps)
-			return birth(fam, p, best.Points[0][0], ri, rl, ri)
+			return birth(fam, p, 1, best.Points[0][0], ri, rl, ri)
 		}
 		prev = cs
 	}
 	return 0, 0, fmt.Errorf("maps: no cycle of period %d appears in [%v, %v]: %w", p, from, to, ErrNoConvergence)
 }
 
-// birth solves f_r^p(x) = x, (f_r^p)'(x) = 1 for (x, r) by Newton's method
+// birth solves f_r^p(x) = x, (f_r^p)'(x) = mult for (x, r) by Newton's method
 // from (x, r), with the partial derivatives in r and the second derivative
 // in x by central differences (the root is still the exact one: only the
 // rate of convergence depends on them). The result must lie in [rl, rr],
 // widened by a step.
-func birth(fam Family, p int, x, r, rl, rr float64) (float64, float64, error) {
+func birth(fam Family, p int, mult, x, r, rl, rr float64) (float64, float64, error) {
 	eval := func(x, r float64) (g, dg float64, err error) {
 		m, err := fam([]float64{r})
 		if err != nil {
 			return 0, 0, err
 		}
 		fp, d := iterDeriv(m, x, p)
-		return fp - x, d - 1, nil
+		return fp - x, d - mult, nil
 	}
 	const hx, hr = 1e-7, 1e-7 // central differences: error h² ≈ 1e-14 against rounding ε/h ≈ 1e-9
 	for range 60 {
@@ -304,7 +321,7 @@ func birth(fam Family, p int, x, r, rl, rr float64) (float64, float64, error) {
 		grp, dgrp, _ := eval(x, r+hr)
 		grm, dgrm, _ := eval(x, r-hr)
 		// Jacobian of (g, dg) in (x, r).
-		a11, a12 := dg, (grp-grm)/(2*hr)
+		a11, a12 := dg+mult-1, (grp-grm)/(2*hr) // ∂(f^p(x) - x)/∂x = (f^p)' - 1
 		a21, a22 := (dgxp-dgxm)/(2*hx), (dgrp-dgrm)/(2*hr)
 		det := float64(a11*a22) - float64(a12*a21)
 		if det == 0 || math.IsNaN(det) {

@@ -37,6 +37,16 @@ func TestPeriodDoublingLogistic(t *testing.T) {
 		assert.InDeltaf(t, w, c.Superstable[k], rTol, "R_%d (REFERENCES.md §4, mpmath 40 digits)", k)
 	}
 	t.Logf("delta %.10f alpha %.10f", c.LastDelta(), c.LastAlpha())
+	// Period-doubling points r_1 = 3, r_2 = 1 + √6 (closed forms) and
+	// r_3..r_8 (REFERENCES.md §4, mpmath: Newton on f^p(x) = x,
+	// (f^p)'(x) = -1). Float64 iteration with difference quotients in
+	// Newton's method: 1e-12 leaves room for the 2^k-fold rounding.
+	const doublingTol = 1e-12
+	wantDoubling := []float64{3, 1 + math.Sqrt(6), 3.5440903595519228536, 3.5644072660954325978,
+		3.5687594195438264313, 3.5696916098013967143, 3.5698912593781204873, 3.5699340183739764012}
+	for k, w := range wantDoubling {
+		assert.InDeltaf(t, w, c.Doubling[k+1], doublingTol, "r_%d (REFERENCES.md §4)", k+1)
+	}
 	assert.InDeltaf(t, feigenbaumDelta, c.LastDelta(), deltaTol, "δ to 7 significant digits (Briggs 1991)")
 	assert.InDeltaf(t, feigenbaumAlpha, c.LastAlpha(), alphaTol, "α to 6 significant digits (Briggs 1991)")
 	_, err = PeriodDoubling(context.Background(), logisticFamily, 0.5, [2]float64{2, 3.2}, 1)
