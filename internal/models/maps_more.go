@@ -17,7 +17,8 @@ func init() {
 		Title: "Ricker map",
 		Doc:   "a fish stock's recruitment from its spawners, once a year: x -> x·exp(r(1 - x)); chaotic at r=3",
 		Source: "W. E. Ricker, Stock and recruitment, J. Fish. Res. Board Can. 11 (1954) 559–623; " +
-			"as a map with cycles and chaos: R. M. May, Nature 261 (1976) 459–467 (r=3)",
+			"its cycles and chaos as a map: R. M. May, Nature 261 (1976) 459–467; r=3 lies in the chaotic range " +
+			"(exponent about 0.38 per iterate, computed with plumb scan)",
 		Map:    true,
 		States: []string{"x"},
 		Params: []Param{{"r", 3, "growth rate at low stock"}},
