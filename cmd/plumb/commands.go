@@ -42,6 +42,8 @@ func init() {
 		solveCmd,
 		seriesCmd,
 		ensembleCmd,
+		scanCmd,
+		cyclesCmd,
 		modelsCmd,
 		versionCmd,
 		helpCmd,

@@ -85,6 +85,8 @@ func TestJSONKeysMatchHelp(t *testing.T) {
 		{"spectrum", false, true, []string{"--t1", "200"}},
 		{"spectrum", true, true, []string{"--model", "henon"}},
 		{"series", false, true, []string{"testdata/series_henon.csv", "--column", "x", "--surrogates", "5"}},
+		{"scan", true, true, []string{"--across", "r=3:4:5", "--keep", "50"}},
+		{"cycles", true, true, []string{"--period", "2", "--box", "x=0:1"}},
 		{"models", false, true, nil},
 		{"version", false, true, nil},
 	}

@@ -55,6 +55,12 @@ var Formulas = map[string][]string{
 	// Maps: the next value of each state.
 	"henon":    {"1 + y - a*x^2", "b*x"},
 	"logistic": {"r*x*(1 - x)"},
+	"ricker":   {"x*exp(r*(1 - x))"},
+	"tent":     {"mu*min(x, 1 - x)"},
+	"sine":     {"r*sin(pi*x)"},
+	"circle":   {"theta + omega - k/(2*pi)*sin(2*pi*theta)"},
+	"gauss":    {"exp(-alpha*x^2) + beta"},
+	"lozi":     {"1 + y - a*abs(x)", "b*x"},
 	"standard": {"theta + p + k*sin(theta)", "p + k*sin(theta)"},
 	"ikeda": {
 		"1 + u*(x*cos(0.4 - 6/(1 + x^2 + y^2)) - y*sin(0.4 - 6/(1 + x^2 + y^2)))",

@@ -74,7 +74,7 @@ func TestSeparableMatchesField(t *testing.T) {
 }
 
 func TestCatalog(t *testing.T) {
-	want := []string{"arenstorf", "double-pendulum", "henon", "henon-heiles", "ikeda", "kepler", "logistic", "lorenz", "lorenz96", "rossler", "standard", "vanderpol"}
+	want := []string{"arenstorf", "circle", "double-pendulum", "gauss", "henon", "henon-heiles", "ikeda", "kepler", "logistic", "lorenz", "lorenz96", "lozi", "ricker", "rossler", "sine", "standard", "tent", "vanderpol"}
 	got := Names()
 	if len(got) != len(want) {
 		t.Fatalf("Names() = %v, want %v", got, want)
