@@ -236,18 +236,32 @@ func (r *flowRun) field(t float64, y, dy []float64) {
 }
 
 // mulTangent sets dst = J·V for the n×n matrix J and the n×k matrix V,
-// both row-major (V holds the k tangent vectors as columns). O(n²k), no
-// allocation; the products are not fused (float64 conversions), so the
-// bits are the same on every architecture.
+// both row-major (V holds the k tangent vectors as columns), through the
+// nonzero entries of J only: row i of dst is the sum, l increasing, of
+// J_il times row l of V, so each tangent vector costs O(nonzeros of J)
+// after an O(n²) look at J, and rows of V are read whole (no strided
+// access). No allocation; the products are not fused (float64
+// conversions), so the bits are the same on every architecture.
+//
+// Skipping a zero entry changes no bit of the result while V is finite:
+// each sum starts at +0, which a sum of finite terms never turns into -0,
+// and s + (±0) = s for every other s. (With an infinite or NaN entry in V
+// the full product would give NaN where this one may not; the integrator
+// rejects such a state either way.)
 func mulTangent(dst, jd, v []float64, n, k int) {
 	for i := 0; i < n; i++ {
-		row := jd[i*n : i*n+n]
-		for j := 0; j < k; j++ {
-			var s float64
-			for l, a := range row {
-				s += float64(a * v[l*k+j])
+		d := dst[i*k : i*k+k : i*k+k]
+		for j := range d {
+			d[j] = 0
+		}
+		for l, a := range jd[i*n : i*n+n] {
+			if a == 0 {
+				continue
 			}
-			dst[i*k+j] = s
+			vl := v[l*k : l*k+k : l*k+k]
+			for j, x := range vl {
+				d[j] += float64(a * x)
+			}
 		}
 	}
 }
