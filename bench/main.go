@@ -14,9 +14,11 @@
 // Arenstorf orbit over one period; rtol = atol in {1e-6, 1e-8, 1e-10,
 // 1e-12}; DormandPrince54 and DormandPrince853, each keeping its steps
 // (Solve's default) and with DropSteps. A sample is the mean wall time of K
-// back-to-back solves, K chosen so that a sample lasts about SECONDS
-// (default 0.1), after one counted solve; the process first warms up for
-// 0.3 s.
+// back-to-back solves in CPU time of the process (the GC's threads
+// included), K chosen so that a sample lasts about SECONDS (default 0.1),
+// after one counted solve; the process first warms up for 0.3 s. (run.sh
+// builds the peers to time themselves in CPU time too: on a shared machine
+// wall time measures the other programs' load.)
 //
 // table: see table.go.
 package main
@@ -28,6 +30,7 @@ import (
 	"math"
 	"os"
 	"strconv"
+	"syscall"
 	"time"
 
 	"github.com/plumbdyn/plumb/integrate"
@@ -114,6 +117,15 @@ func problems() ([]problem, error) {
 	}, nil
 }
 
+// cpuSeconds is the CPU time of the whole process so far.
+func cpuSeconds() float64 {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return math.NaN()
+	}
+	return float64(ru.Utime.Nano()+ru.Stime.Nano()) * 1e-9
+}
+
 // sample is one JSON line, with the harness's field names.
 type sample struct {
 	Peer    string               `json:"peer"`
@@ -168,14 +180,14 @@ func runAll(w *os.File, target float64) error {
 					smp.Mids[strconv.FormatFloat(tm, 'g', -1, 64)] = mid.Final
 				}
 				k := max(1, int(math.Ceil(target/math.Max(single, 1e-7))))
-				t0 = time.Now()
+				c0 := cpuSeconds()
 				for range k {
 					again, err := integrate.Solve(ctx, pr, p.tEnd, v.m, s)
 					if err != nil || again.Final[0] != sol.Final[0] {
 						return fmt.Errorf("%s %s tol %g: a repeated solve differs (%v)", p.name, v.name, tol, err)
 					}
 				}
-				smp.Sec = time.Since(t0).Seconds() / float64(k)
+				smp.Sec = (cpuSeconds() - c0) / float64(k)
 				smp.Inner = k
 				if err := enc.Encode(smp); err != nil {
 					return err

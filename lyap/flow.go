@@ -50,7 +50,8 @@ import (
 // completes that way returns its estimate with ErrTooShort.
 //
 // Cost: per step, the method's evaluations of the augmented system, each one
-// evaluation of F and of the Jacobian plus O(n²k); per re-orthonormalisation
+// evaluation of F and of the Jacobian plus O(n² + nnz·k), nnz the nonzero
+// entries of the Jacobian (mulTangent); per re-orthonormalisation
 // O(nk²). After set-up the loop does not allocate (with an exact Jacobian).
 //
 // References:
