@@ -11,6 +11,8 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+
+	"github.com/plumbdyn/plumb/internal/detmath"
 )
 
 // The table: for every method on Lorenz, per tolerance, the harness's
@@ -163,8 +165,8 @@ func timeAt(c []point, e float64) float64 {
 		if e0 == e1 {
 			return math.Min(c[i].sec, c[i+1].sec)
 		}
-		u := (math.Log(e) - math.Log(e0)) / (math.Log(e1) - math.Log(e0))
-		return math.Exp(math.Log(c[i].sec) + u*(math.Log(c[i+1].sec)-math.Log(c[i].sec)))
+		u := (detmath.Log(e) - detmath.Log(e0)) / (detmath.Log(e1) - detmath.Log(e0))
+		return detmath.Exp(detmath.Log(c[i].sec) + u*(detmath.Log(c[i+1].sec)-detmath.Log(c[i].sec)))
 	}
 	return math.NaN()
 }
