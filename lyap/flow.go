@@ -264,6 +264,7 @@ func mulTangent(dst, jd, v []float64, n, k int) {
 				continue
 			}
 			vl := v[l*k : l*k+k : l*k+k]
+			vl = vl[:len(d)] // same length: no bounds checks below
 			for j, x := range vl {
 				d[j] += float64(a * x)
 			}
