@@ -209,7 +209,28 @@ func (w *dp54Work) compactSize(n int) int { return 3 * n }
 // compact copies r3..r5 of a full dense record into dst.
 func (w *dp54Work) compact(full, dst []float64) {
 	n := len(full) / 5
-	copy(dst, full[2*n:5*n])
+	// A loop, not copy: records are short, and the runtime's memmove
+	// costs more than the copy itself.
+	for i, x := range full[2*n : 5*n][:len(dst)] {
+		dst[i] = x
+	}
+}
+
+// denseCompact writes r3..r5 of the step's continuous extension straight
+// into dst, with the arithmetic of dense (the same bits) and without
+// forming r1 and r2, which a Solution rebuilds from its stored states.
+func (w *dp54Work) denseCompact(h float64, y, k1, y1, k7, dst []float64) {
+	n := len(y)
+	k1, y1, k7 = k1[:n], y1[:n], k7[:n]
+	k3, k4, k5, k6 := w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n]
+	r3, r4, r5 := dst[:n], dst[n:2*n], dst[2*n:3*n]
+	for i := range y {
+		yd := y1[i] - y[i]
+		bspl := float64(h*k1[i]) - yd
+		r3[i] = bspl
+		r4[i] = yd - float64(h*k7[i]) - bspl
+		r5[i] = float64(h * (float64(dpD1*k1[i]) + float64(dpD3*k3[i]) + float64(dpD4*k4[i]) + float64(dpD5*k5[i]) + float64(dpD6*k6[i]) + float64(dpD7*k7[i])))
+	}
 }
 
 // interpCompact is interp with r1 = y0 and r2 = y1 - y0 rebuilt from the

@@ -2,6 +2,7 @@ package integrate
 
 import (
 	"math"
+	"math/bits"
 	"sort"
 )
 
@@ -81,57 +82,61 @@ type Solution struct {
 type compactDense interface {
 	compactSize(n int) int
 	compact(full, dst []float64)
+	// denseCompact writes the kept part of the last step's extension
+	// (size h from y with derivative k1 to y1 with derivative k7) into
+	// dst, the same bits as dense followed by compact.
+	denseCompact(h float64, y, k1, y1, k7, dst []float64)
 	interpCompact(y0, y1, c []float64, theta float64, dst []float64)
 }
 
 // chunks stores a growing sequence of fixed-size records in blocks that
-// never move once full. The first block grows by doubling up to a full
-// block, so short solves stay small.
+// never move: block j holds first<<j records until a block reaches full
+// size (block records, at most maxBlockFloats floats), and every later
+// block holds block records. Short solves stay small, long ones allocate
+// about what they store, and nothing is copied while a solve runs.
 type chunks struct {
 	per   int // floats per record
-	block int // records per block
-	b     [][]float64
-	n     int // records stored
+	first int // records in block 0
+	grow  int // blocks that double; block grow and later hold block records
+	block int // records in a full block: first<<grow
+	// b holds the blocks at their full length; cur is the last of them
+	// and used the floats filled in it. Storing a record writes no
+	// pointer (a pointer write costs a write barrier while the GC runs).
+	b    [][]float64
+	cur  []float64
+	used int
+	n    int // records stored
 }
 
 // maxBlockFloats bounds a block to 512 KiB.
 const maxBlockFloats = 1 << 16
 
+// firstRecords is the first block's capacity, in records.
+const firstRecords = 64
+
 func newChunks(per int) chunks {
 	per = max(1, per)
-	return chunks{per: per, block: max(1, min(4096, maxBlockFloats/per))}
+	full := max(1, min(4096, maxBlockFloats/per))
+	c := chunks{per: per, first: min(firstRecords, full)}
+	for c.first<<(c.grow+1) <= full {
+		c.grow++
+	}
+	c.block = c.first << c.grow
+	return c
 }
-
-// firstRecords is the first block's starting capacity, in records; it
-// doubles (one copy each time, at most a block's worth in all) until it
-// reaches block, and every later block is allocated at full size, so a
-// short solve allocates little and a long one copies nothing after the
-// first block.
-const firstRecords = 64
 
 // next returns the slot of one more record (len per), to be filled by
 // the caller.
 func (c *chunks) next() []float64 {
-	k := len(c.b)
-	if k == 0 || len(c.b[k-1]) == c.block*c.per {
-		size := c.block * c.per
-		if k == 0 {
-			size = min(firstRecords, c.block) * c.per
-		}
-		c.b = append(c.b, make([]float64, 0, size))
-		k++
+	if c.used == len(c.cur) {
+		c.cur = make([]float64, (c.first<<min(len(c.b), c.grow))*c.per)
+		c.b = append(c.b, c.cur)
+		c.used = 0
 	}
-	last := &c.b[k-1]
-	l := len(*last)
-	if l == cap(*last) {
-		// Only the first block grows.
-		grown := make([]float64, l, min(2*cap(*last), c.block*c.per))
-		copy(grown, *last)
-		*last = grown
-	}
-	*last = (*last)[:l+c.per]
+	l := c.used
+	c.used += c.per
 	c.n++
-	return (*last)[l : l+c.per : l+c.per]
+	return c.cur[l : l+c.per : l+c.per]
 }
 
 // add appends one record (len(v) == per).
@@ -146,18 +151,27 @@ func (c *chunks) add(v []float64) {
 
 // at returns record k.
 func (c *chunks) at(k int) []float64 {
-	b := c.b[k/c.block]
-	o := (k % c.block) * c.per
+	var j, o int
+	if g := c.first * (1<<c.grow - 1); k >= g {
+		// Past the doubling blocks: full blocks.
+		j, o = c.grow+(k-g)/c.block, (k-g)%c.block
+	} else {
+		// Block j starts at record first·(2^j - 1).
+		j = bits.Len(uint(k/c.first+1)) - 1
+		o = k - c.first*(1<<j-1)
+	}
+	o *= c.per
+	b := c.b[j]
 	return b[o : o+c.per : o+c.per]
 }
 
 // flat returns all records in one slice of exactly the right length.
 func (c *chunks) flat() []float64 {
 	out := make([]float64, 0, c.n*c.per)
-	for _, b := range c.b {
+	for _, b := range c.b[:max(len(c.b)-1, 0)] {
 		out = append(out, b...)
 	}
-	return out
+	return append(out, c.cur[:c.used]...)
 }
 
 // seal moves the stored steps into T and Y.

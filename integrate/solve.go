@@ -134,13 +134,15 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 			grid.i++
 		}
 		if keep {
-			if st.sc.denseSize() > 0 {
+			switch {
+			case sol.cd != nil && !st.denseReady:
+				// Only the part the solution keeps, straight into place.
+				sol.cd.denseCompact(st.hLast, st.yPrev, st.fPrev, st.y, st.f0, sol.coef.next())
+			case sol.cd != nil:
+				sol.cd.compact(st.coef, sol.coef.next())
+			case st.sc.denseSize() > 0:
 				st.prepareDense()
-				if sol.cd != nil {
-					sol.cd.compact(st.coef, sol.coef.next())
-				} else {
-					sol.coef.add(st.coef)
-				}
+				sol.coef.add(st.coef)
 			}
 			tbv[0] = tb
 			sol.tBuf.add(tbv[:])

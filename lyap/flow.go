@@ -50,7 +50,8 @@ import (
 // completes that way returns its estimate with ErrTooShort.
 //
 // Cost: per step, the method's evaluations of the augmented system, each one
-// evaluation of F and of the Jacobian plus O(n²k); per re-orthonormalisation
+// evaluation of F and of the Jacobian plus O(n² + nnz·k), nnz the nonzero
+// entries of the Jacobian (mulTangent); per re-orthonormalisation
 // O(nk²). After set-up the loop does not allocate (with an exact Jacobian).
 //
 // References:
@@ -236,18 +237,57 @@ func (r *flowRun) field(t float64, y, dy []float64) {
 }
 
 // mulTangent sets dst = J·V for the n×n matrix J and the n×k matrix V,
-// both row-major (V holds the k tangent vectors as columns). O(n²k), no
-// allocation; the products are not fused (float64 conversions), so the
-// bits are the same on every architecture.
+// both row-major (V holds the k tangent vectors as columns), through the
+// nonzero entries of J only: row i of dst is the sum, l increasing, of
+// J_il times row l of V, so each tangent vector costs O(nonzeros of J)
+// after an O(n²) look at J, and rows of V are read whole (no strided
+// access). No allocation; the products are not fused (float64
+// conversions), so the bits are the same on every architecture.
+//
+// Skipping a zero entry changes no bit of the result while V is finite:
+// each sum starts at +0, which a sum of finite terms never turns into -0,
+// and s + (±0) = s for every other s. (With an infinite or NaN entry in V
+// the full product would give NaN where this one may not; the integrator
+// rejects such a state either way.)
 func mulTangent(dst, jd, v []float64, n, k int) {
+	if n == 3 {
+		mulTangent3(dst, jd, v, k)
+		return
+	}
 	for i := 0; i < n; i++ {
-		row := jd[i*n : i*n+n]
-		for j := 0; j < k; j++ {
-			var s float64
-			for l, a := range row {
-				s += float64(a * v[l*k+j])
+		d := dst[i*k : i*k+k : i*k+k]
+		for j := range d {
+			d[j] = 0
+		}
+		for l, a := range jd[i*n : i*n+n] {
+			if a == 0 {
+				continue
 			}
-			dst[i*k+j] = s
+			vl := v[l*k : l*k+k : l*k+k]
+			vl = vl[:len(d)] // same length: no bounds checks below
+			for j, x := range vl {
+				d[j] += float64(a * x)
+			}
+		}
+	}
+}
+
+// mulTangent3 is mulTangent for n = 3 (most flows of the catalog): each
+// entry is ((0 + a0·v0) + a1·v1) + a2·v2 with every term kept, the sum of
+// the general loop (where a zero term leaves the sum unchanged), without
+// its loop overhead, which dominates at this size.
+func mulTangent3(dst, jd, v []float64, k int) {
+	jd = jd[:9:9]
+	v0, v1, v2 := v[:k:k], v[k:2*k:2*k], v[2*k:3*k:3*k]
+	for i := 0; i < 3; i++ {
+		a0, a1, a2 := jd[3*i], jd[3*i+1], jd[3*i+2]
+		d := dst[i*k : i*k+k : i*k+k]
+		for j := range d {
+			var s float64
+			s += float64(a0 * v0[j])
+			s += float64(a1 * v1[j])
+			s += float64(a2 * v2[j])
+			d[j] = s
 		}
 	}
 }

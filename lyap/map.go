@@ -70,7 +70,8 @@ func hasJacobian(m Map) bool {
 // with the error. A run that completes fewer than two blocks returns its
 // estimate with ErrTooShort.
 //
-// Cost: per iteration one Next, one Jacobian and O(n²k) (O(n³) more for the
+// Cost: per iteration one Next, one Jacobian and O(n² + nnz·k), nnz the
+// nonzero entries of the Jacobian (O(n³) more for the
 // determinant when k = n); per re-orthonormalisation O(nk²). No allocation
 // after set-up.
 //
