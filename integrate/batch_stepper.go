@@ -398,26 +398,8 @@ func (st *BatchStepper) next() bool {
 			st.err = &StepError{T: st.t, H: st.h, Err: fmt.Errorf("%d steps: %w", c.maxSteps, ErrStepBudget)}
 			return false
 		}
-		h := st.h
-		if math.Abs(h) > c.hmax {
-			h = st.dir * c.hmax
-		}
-		last := false
-		if (st.t+float64(1.01*h)-st.t1)*st.dir >= 0 {
-			h = st.t1 - st.t
-			last = true
-		}
-		if math.Abs(h) < c.hmin && !last {
-			if st.rejected && math.Abs(st.hTried) <= c.hmin {
-				return st.underflow(h)
-			}
-			h = st.dir * c.hmin
-			if (st.t+float64(1.01*h)-st.t1)*st.dir >= 0 {
-				h = st.t1 - st.t
-				last = true
-			}
-		}
-		if 0.1*math.Abs(h) <= math.Abs(st.t)*epsRound || h == 0 {
+		h, last, under := c.stepSize(st.t, st.t1, st.dir, st.h, st.hTried, st.rejected)
+		if under {
 			return st.underflow(h)
 		}
 		st.hTried = h

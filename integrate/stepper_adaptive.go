@@ -5,6 +5,38 @@ import (
 	"math"
 )
 
+// stepSize is the size h of the next attempted step of an adaptive
+// stepper at t heading for t1 in direction dir, from the proposed size
+// prop: clipped to MaxStep, stretched to land on t1 when within 1% of it,
+// raised to MinStep when below it. last reports that the step lands on t1;
+// under that the step cannot be taken (a step of MinStep was rejected
+// already, or h is too small to move t), and the stepper stops with a step
+// underflow.
+func (c *config) stepSize(t, t1, dir, prop, hTried float64, rejected bool) (h float64, last, under bool) {
+	h = prop
+	if math.Abs(h) > c.hmax {
+		h = dir * c.hmax
+	}
+	if (t+float64(1.01*h)-t1)*dir >= 0 {
+		h, last = t1-t, true
+	}
+	if math.Abs(h) < c.hmin && !last {
+		// Below MinStep: try MinStep itself, and give up only when a
+		// step of that size was rejected.
+		if rejected && math.Abs(hTried) <= c.hmin {
+			return h, last, true
+		}
+		h = dir * c.hmin
+		if (t+float64(1.01*h)-t1)*dir >= 0 {
+			h, last = t1-t, true
+		}
+	}
+	if 0.1*math.Abs(h) <= math.Abs(t)*epsRound || h == 0 {
+		return h, last, true
+	}
+	return h, last, false
+}
+
 func (st *Stepper) nextAdaptive() bool {
 	c := st.cfg
 	for {
@@ -12,28 +44,8 @@ func (st *Stepper) nextAdaptive() bool {
 			st.err = &StepError{T: st.t, H: st.h, Err: fmt.Errorf("%d steps: %w", c.maxSteps, ErrStepBudget)}
 			return false
 		}
-		h := st.h
-		if math.Abs(h) > c.hmax {
-			h = st.dir * c.hmax
-		}
-		last := false
-		if (st.t+float64(1.01*h)-st.t1)*st.dir >= 0 {
-			h = st.t1 - st.t
-			last = true
-		}
-		if math.Abs(h) < c.hmin && !last {
-			// Below MinStep: try MinStep itself, and give up only when a
-			// step of that size was rejected.
-			if st.rejected && math.Abs(st.hTried) <= c.hmin {
-				return st.underflow(h)
-			}
-			h = st.dir * c.hmin
-			if (st.t+float64(1.01*h)-st.t1)*st.dir >= 0 {
-				h = st.t1 - st.t
-				last = true
-			}
-		}
-		if 0.1*math.Abs(h) <= math.Abs(st.t)*epsRound || h == 0 {
+		h, last, under := c.stepSize(st.t, st.t1, st.dir, st.h, st.hTried, st.rejected)
+		if under {
 			return st.underflow(h)
 		}
 		st.hTried = h
