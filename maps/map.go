@@ -58,7 +58,10 @@ func New(dim int, f Funcs, periods []float64) (*Map, error) {
 			return nil, fmt.Errorf("maps: periods[%d] = %v: must be finite and >= 0: %w", i, p, integrate.ErrSettings)
 		}
 	}
-	return &Map{n: dim, f: f, periods: append([]float64(nil), periods...), buf: make([]float64, dim)}, nil
+	// buf is written every iterate: a block of at least two cache lines,
+	// so that maps iterated on different goroutines (a scan's workers)
+	// never write to one line.
+	return &Map{n: dim, f: f, periods: append([]float64(nil), periods...), buf: make([]float64, dim, max(dim, 16))}, nil
 }
 
 // Dim returns the dimension of the state (0 for a nil or zero Map).
