@@ -142,7 +142,7 @@ func NewBatchStepper(p BatchProblem, t1 float64, s *BatchSettings) (st *BatchSte
 	st.h = st.dir * math.Min(h, cfg.hmax)
 	if nw > 1 {
 		for _, wk := range st.workers[1:] {
-			wk.start, wk.done = make(chan batchJob), make(chan any)
+			wk.start, wk.done = make(chan batchJob, 1), make(chan any, 1)
 			go wk.loop(st)
 		}
 	}
@@ -165,11 +165,15 @@ func firstNonFiniteBlock(b *batchBlock, v []float64) (int, int) {
 
 // loop is a worker goroutine: it runs jobs until jobStop.
 func (wk *batchWorker) loop(st *BatchStepper) {
-	for j := range wk.start {
-		if j == jobStop {
+	// The channels as they were when the goroutine started: Close clears
+	// the fields.
+	start, done := wk.start, wk.done
+	for {
+		j, ok := recvSpin(start)
+		if !ok || j == jobStop {
 			return
 		}
-		wk.done <- wk.run(st, j)
+		done <- wk.run(st, j)
 	}
 }
 
@@ -200,7 +204,7 @@ func (st *BatchStepper) do(j batchJob) {
 	}
 	pv := st.workers[0].run(st, j)
 	for _, wk := range st.workers[1:] {
-		if v := <-wk.done; v != nil && pv == nil {
+		if v, _ := recvSpin(wk.done); v != nil && pv == nil {
 			pv = v
 		}
 	}
