@@ -12,7 +12,7 @@ import "strconv"
 // References:
 //
 //	F. Takens, "Detecting strange attractors in turbulence", in Dynamical
-//	  Systems and Turbulence, Lecture Notes in Math. 898 (1981) 366–381.
+//	  Systems and Turbulence, Springer LNM 898 (1981) 366–381.
 //	T. Sauer, J. A. Yorke, M. Casdagli, "Embedology", J. Stat. Phys. 65
 //	  (1991) 579–616.
 type Embedding struct {
