@@ -306,8 +306,9 @@ type scanWork struct {
 func newScanWork(n int, set *ScanSettings) *scanWork {
 	// The state and tangent vectors are written every iterate; each gets
 	// a block of its own at least two cache lines long, so that two
-	// workers' vectors of a small map never share a line (false sharing
-	// cost a 2000-point diagram a quarter of its speed on two workers).
+	// workers' vectors of a small map never share a line (measured on a
+	// 2000-point diagram: two workers went from 1.45-1.52x to 1.59-1.65x
+	// the speed of one; buffering the feeder's channel did the rest).
 	own := func() []float64 { return make([]float64, n, max(n, 16)) }
 	return &scanWork{set: set, n: n, x: own(), v: own(), w: own(),
 		orbit: make([]float64, n*set.Keep), vals: make([]float64, set.Keep), j: mat.NewDense(n, n, make([]float64, n*n, max(n*n, 16)))}
