@@ -23,6 +23,11 @@ type shared struct {
 	// plotSize is --plot-size; zero means defaultPlotSize.
 	plotSize plotSize
 	quiet    bool
+	// out is --out: the file the results go to instead of stdout ("" for
+	// stdout), written whole through outFile.
+	out string
+	// progress is --progress: auto, bar, lines or none.
+	progress string
 	// given records which flags the command line set (filled after parsing).
 	given map[string]bool
 	// stdin is read for --file -.
@@ -33,7 +38,7 @@ type shared struct {
 }
 
 // sharedNames lists the shared flags; help prints them in their own block.
-var sharedNames = map[string]bool{"model": true, "file": true, "set": true, "start": true, "format": true, "plot": true, "plot-size": true, "quiet": true}
+var sharedNames = map[string]bool{"model": true, "file": true, "set": true, "start": true, "format": true, "plot": true, "plot-size": true, "quiet": true, "out": true, "progress": true}
 
 // addShared registers the shared flags on fs with the defaults of cmd.
 func addShared(fs *flag.FlagSet, cmd *command) *shared {
@@ -54,6 +59,8 @@ func addShared(fs *flag.FlagSet, cmd *command) *shared {
 	fs.StringVar(&sh.plot, "plot", "", plotDoc)
 	fs.Var(&sh.plotSize, "plot-size", "size `WxH` of the --plot picture in pixels (in SVG, CSS pixels at 96 to the inch)")
 	fs.BoolVar(&sh.quiet, "quiet", false, "no progress, warnings or wall time on stderr (errors still appear)")
+	fs.StringVar(&sh.out, "out", "", "write the results whole into `FILE` instead of stdout (a run that stops early leaves its marked partial result)")
+	fs.StringVar(&sh.progress, "progress", progressAuto, "progress on stderr: `MODE` auto (a bar on a terminal), bar, lines (JSON Lines) or none")
 	return sh
 }
 
@@ -90,6 +97,9 @@ func (sh *shared) check(cmd *command) error {
 	}
 	if sh.given["plot-size"] && sh.plot == "" {
 		return usagef("--plot-size %s: give --plot FILE too; the size is that picture's", sh.plotSize.String())
+	}
+	if sh.out != "" && sh.out == sh.plot {
+		return usagef("--out %s and --plot %s: give the results and the picture different files", sh.out, sh.plot)
 	}
 	if sh.given["file"] && sh.given["model"] {
 		return usagef("--model %s and --file %s: give one system, not both", sh.model, sh.file)

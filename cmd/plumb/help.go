@@ -60,9 +60,11 @@ commands:
 	tw.Flush()
 	b.WriteString(`
 Every command takes --model, --file, --set, --start, --format, --plot,
---plot-size and --quiet.
-Results go to stdout (--format table, json or csv); progress, warnings and
-wall time go to stderr. Flags are written --name value or --name=value.
+--plot-size, --quiet, --out and --progress.
+Results go to stdout (--format table, json or csv), or whole into --out FILE;
+progress, warnings and wall time go to stderr. With --format json an error
+that leaves no result is a JSON object on stdout too (docs/json.md). Flags
+are written --name value or --name=value.
 
 exit status: 0 done; 1 the computation failed (the message says which step
 and why; what was done is still written); 2 bad usage or input (the message

@@ -29,18 +29,31 @@ type call struct {
 	stdin  io.Reader // for commands that read data
 	stdout io.Writer // buffered; results only
 	stderr io.Writer // progress, warnings, wall time; never results
-	// progress reports whether a progress bar may be drawn on stderr: it is
-	// a terminal and --quiet is not set.
-	progress bool
+	// progress is how progress shows on stderr: progressBarOn,
+	// progressLines or progressNone (--progress and --quiet resolved).
+	progress string
+	// out is what the runner learnt while writing the result, for --out.
+	out outState
 }
 
 // usageError is bad usage or bad input: exit status 2.
-type usageError struct{ msg string }
+type usageError struct {
+	msg string
+	err error // the error the message wraps, if any
+}
 
 func (e *usageError) Error() string { return e.msg }
 
+// Unwrap returns the wrapped error (nil for none).
+func (e *usageError) Unwrap() error { return e.err }
+
 // usagef returns a usageError; the message must name the flag or field.
-func usagef(format string, a ...any) error { return &usageError{msg: fmt.Sprintf(format, a...)} }
+// A %w verb keeps the error it wraps reachable (errors.As finds a
+// plumb.FileError through it, for the place in a JSON error).
+func usagef(format string, a ...any) error {
+	e := fmt.Errorf(format, a...)
+	return &usageError{msg: e.Error(), err: errors.Unwrap(e)}
+}
 
 // Hooks replaced by tests: the clock for wall times, and terminal detection.
 var (
@@ -84,14 +97,29 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	cmd := lookup(args[0])
 	if cmd == nil {
 		fmt.Fprintf(stderr, "plumb: unknown command %q\nrun 'plumb help' for the commands\n", args[0])
+		if asksJSON(args[1:]) {
+			writeErrorJSON(stdout, args[0], nil, nil, nil, usagef("unknown command %q", args[0]), exitUsage)
+		}
 		return exitUsage
 	}
 	return execute(ctx, cmd, args[1:], stdin, stdout, stderr)
 }
 
-// execute parses the flags of cmd, runs it and maps its error to an exit status.
+// execute parses the flags of cmd, runs it and maps its error to an exit
+// status. With --format json an error that leaves no result on stdout is
+// written there as a JSON document too (errorJSON); with --out the result
+// goes to that file, whole or not at all (outFile).
 func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs, sh, work := newFlagSet(cmd)
+	// fail reports err, which ended the command before any result was
+	// written.
+	fail := func(err error, jsonAsked bool) int {
+		code := report(stderr, cmd, err)
+		if code != exitOK && jsonAsked {
+			writeErrorJSON(stdout, cmd.name, cmd, fs, sh, err, code)
+		}
+		return code
+	}
 	err := fs.Parse(args)
 	if errors.Is(err, flag.ErrHelp) {
 		if err := writeCommandHelp(stdout, cmd); err != nil {
@@ -100,28 +128,52 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 		return exitOK
 	}
 	if err != nil {
-		return report(stderr, cmd, &usageError{msg: flagMessage(err)})
+		return fail(&usageError{msg: flagMessage(err)}, asksJSON(args))
 	}
 	sh.stdin = stdin
 	sh.ctx = ctx
 	sh.given = map[string]bool{}
 	fs.Visit(func(f *flag.Flag) { sh.given[f.Name] = true })
+	jsonAsked := sh.format == "json"
 	if err := sh.check(cmd); err != nil {
-		return report(stderr, cmd, err)
+		return fail(err, jsonAsked)
 	}
 	if fs.NArg() > 0 && cmd.positional == "" {
-		return report(stderr, cmd, usagef("unexpected argument %q (flags start with --; see 'plumb help %s')", fs.Arg(0), cmd.name))
+		return fail(usagef("unexpected argument %q (flags start with --; see 'plumb help %s')", fs.Arg(0), cmd.name), jsonAsked)
 	}
-	bw := bufio.NewWriter(stdout)
+	mode, err := progressMode(sh, stderr)
+	if err != nil {
+		return fail(err, jsonAsked)
+	}
+	var out *outFile
+	dst := stdout
+	if sh.out != "" {
+		if out, err = createOut(sh.out); err != nil {
+			return fail(usagef("--out %s: %v", sh.out, err), jsonAsked)
+		}
+		dst = out
+	}
+	bw := bufio.NewWriter(dst)
 	cl := &call{
 		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, stderr: stderr,
-		progress: !sh.quiet && isTerminal(stderr),
+		progress: mode,
 	}
 	err = work(ctx, cl)
 	if ferr := bw.Flush(); ferr != nil && err == nil {
-		err = fmt.Errorf("writing the results to stdout: %w", ferr)
+		err = fmt.Errorf("writing the results to %s: %w", resultsPlace(sh), ferr)
 	}
-	return report(stderr, cmd, err)
+	if out != nil {
+		err = cl.finishOut(out, err)
+	}
+	return fail(err, jsonAsked && !cl.out.written)
+}
+
+// resultsPlace names where the results go: stdout or the --out file.
+func resultsPlace(sh *shared) string {
+	if sh.out != "" {
+		return "--out " + sh.out
+	}
+	return "stdout"
 }
 
 // report writes err (if any) on stderr as "plumb CMD: message" and returns

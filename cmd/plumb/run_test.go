@@ -21,6 +21,9 @@ func TestMain(m *testing.M) {
 	// real GOARCH is checked in TestJSONArch).
 	now = func() time.Time { return time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC) }
 	goarch = "golden-arch"
+	// The bar appears at once under the fixed clock (TestBarDelay checks
+	// the delay itself).
+	barDelay = 0
 	os.Exit(m.Run())
 }
 

@@ -63,6 +63,9 @@ type outcome struct {
 	// err is why the run stopped early, worded for the user; the result
 	// holds what was done before.
 	err error
+	// marked: the --format jsonl stream already ends with a record that
+	// says how the run ended, so a partial --out file needs no other mark.
+	marked bool
 }
 
 // extraFile is a file a command writes besides its result and --plot: the
@@ -76,21 +79,21 @@ type extraFile struct {
 // runJob runs j and writes its result; the error it returns decides the
 // exit status (see report).
 func (cl *call) runJob(ctx context.Context, j job) error {
-	var progress func(float64)
-	var bar *progressBar
-	if cl.progress && j.span != nil {
-		bar = newProgressBar(cl.stderr, "plumb "+cl.cmd.name, j.span[0], j.span[1])
-		progress = bar.at
-	}
 	start := now()
-	res, err := j.run(ctx, progress)
-	if bar != nil {
-		bar.clear()
+	prog := cl.startProgress(j.span, start)
+	res, err := j.run(ctx, prog.at())
+	if res != nil {
+		prog.finish(res.err)
+	} else {
+		prog.finish(err)
 	}
 	if res == nil {
 		return startFailure(j, err)
 	}
 	if werr := cl.writeResult(res); werr != nil {
+		return fmt.Errorf("writing the results failed: %w", werr)
+	}
+	if werr := cl.resultWritten(res); werr != nil {
 		return fmt.Errorf("writing the results failed: %w", werr)
 	}
 	if perr := cl.drawPlot(res); perr != nil {

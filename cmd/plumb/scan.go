@@ -273,6 +273,7 @@ func (f *scanFlags) scan(ctx context.Context, cl *call, sys *plumb.System, fam m
 		res.warnings = append(res.warnings, fmt.Sprintf("%d parameter points show a period with a positive exponent: the float64 orbit landed exactly on an unstable cycle (a rounding artefact, not an attracting cycle)", artefacts))
 	}
 	if stream {
+		res.marked = true
 		res.table = func(w io.Writer) error {
 			// The rows are on stdout already; the last line closes them.
 			return enc.Encode(struct {

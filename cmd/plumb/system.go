@@ -87,7 +87,7 @@ func (sh *shared) readFile() (*plumb.System, error) {
 	}
 	sys, err := plumb.LoadSystem(r)
 	if err != nil {
-		return nil, usagef("--file %s: %v", sh.file, err)
+		return nil, usagef("--file %s: %w", sh.file, err)
 	}
 	return sys, nil
 }

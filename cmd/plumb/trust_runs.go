@@ -282,7 +282,7 @@ func (r *runsFlags) read(cl *call) ([]plumb.RecordedRun, []runJSON, error) {
 			run, err = plumb.OpenRun(s.path, opt)
 		}
 		if err != nil {
-			return nil, nil, usagef("--run %s: %v", runSpecText(s), err)
+			return nil, nil, usagef("--run %s: %w", runSpecText(s), err)
 		}
 		run.Label, run.Effect, run.Reference = s.label, s.effect, s.ref
 		runs = append(runs, run)
