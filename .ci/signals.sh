@@ -59,4 +59,53 @@ for name in solve-int trust-term map-trust-int; do
     fi
   fi
 done
+
+# --out: the file in place after a signal is either the previous one (the
+# run computed nothing) or the whole partial result, marked: a CSV whose
+# last line is "# partial result: canceled: ...", a JSON object saying
+# canceled. No temporary file stays beside it, and stdout stays empty.
+prev='the previous result'
+mkdir "$tmp/out"
+for f in solve.csv solve.json trust.json fifo.csv; do echo "$prev" > "$tmp/out/$f"; done
+case_ out-solve-csv-int INT 1 solve --t1 1e7 --dt 1 --max-steps 2000000000 --format csv --out "$tmp/out/solve.csv" --quiet
+case_ out-solve-json-term TERM 1 solve --t1 1e7 --dt 1 --max-steps 2000000000 --format json --out "$tmp/out/solve.json" --quiet
+case_ out-trust-json-int INT 1 trust --horizon 5000 --max-steps 10000000 --format json --out "$tmp/out/trust.json" --quiet
+case_ out-fifo-int INT 0.5 solve --file "$tmp/waits.json" --format csv --out "$tmp/out/fifo.csv" --quiet
+for name in out-solve-csv-int out-solve-json-term out-trust-json-int out-fifo-int; do
+  if [ -s "$tmp/$name.out" ]; then echo "FAIL $name: stdout is not empty with --out"; fail=1; fi
+done
+check_csv() { # NAME FILE
+  local last; last=$(tail -n 1 "$2")
+  if [ "$(cat "$2")" = "$prev" ]; then
+    echo "ok   $1: the previous file stayed (nothing was computed)"
+  elif [[ "$last" != "# partial result: canceled: "* ]]; then
+    echo "FAIL $1: the last line is not the partial mark: $last"; fail=1
+  elif [ "$(head -n 1 "$2")" != "t,x,y,z" ] || [ -n "$(sed '1d;$d' "$2" | awk -F, 'NF != 4')" ]; then
+    echo "FAIL $1: the rows are not whole"; fail=1
+  else
+    echo "ok   $1: whole partial CSV, $(( $(wc -l < "$2") - 2 )) rows, marked canceled"
+  fi
+}
+check_json() { # NAME FILE
+  if [ "$(cat "$2")" = "$prev" ]; then
+    echo "ok   $1: the previous file stayed (nothing was computed)"
+  elif [ "$(head -c 1 "$2")" != "{" ] || [ "$(tail -c 2 "$2" | head -c 1)" != "}" ] || ! grep -q '"status": "canceled"' "$2"; then
+    echo "FAIL $1: the file is not one whole JSON object saying canceled"; fail=1
+  elif command -v python3 >/dev/null && ! python3 -c 'import json,sys; json.load(open(sys.argv[1]))' "$2"; then
+    echo "FAIL $1: the file does not parse as JSON"; fail=1
+  else
+    echo "ok   $1: whole partial JSON saying canceled ($(wc -c < "$2") bytes)"
+  fi
+}
+check_csv out-solve-csv-int "$tmp/out/solve.csv"
+check_json out-solve-json-term "$tmp/out/solve.json"
+check_json out-trust-json-int "$tmp/out/trust.json"
+if [ "$(cat "$tmp/out/fifo.csv")" != "$prev" ]; then
+  echo "FAIL out-fifo-int: a run that read no system changed the --out file"; fail=1
+else
+  echo "ok   out-fifo-int: the previous file stayed"
+fi
+if [ "$(ls -A "$tmp/out" | wc -l)" -ne 4 ]; then
+  echo "FAIL --out: files other than the results stayed:"; ls -A "$tmp/out"; fail=1
+fi
 exit $fail
