@@ -116,24 +116,40 @@ func writeErrorJSON(w io.Writer, name string, cmd *command, fs *flag.FlagSet, sh
 
 // asksJSON reports whether args ask for --format json, for the errors of
 // a command line that did not parse (so --format was perhaps never read).
-// The last --format before a "--" counts, as in the parser.
-func asksJSON(args []string) bool {
-	last := ""
-	for i, a := range args {
-		if a == "--" {
+// It reads args as the flag package does: flags up to the first argument
+// that is not one (or "--"), a flag's value in the next argument unless it
+// is a boolean flag or written --name=value, the last --format counting.
+// fs tells boolean flags and value flags apart; a name fs does not know
+// (an unknown flag, which stops the parser anyway) takes no value, and a
+// nil fs (an unknown command) is read as if every flag took one.
+func asksJSON(fs *flag.FlagSet, args []string) bool {
+	format := ""
+	for i := 0; i < len(args); i++ {
+		a := args[i]
+		if a == "--" || len(a) < 2 || a[0] != '-' {
 			break
 		}
-		name, val, hasVal := strings.Cut(strings.TrimLeft(a, "-"), "=")
-		if !strings.HasPrefix(a, "-") || name != "format" {
-			continue
-		}
+		name, val, hasVal := strings.Cut(strings.TrimPrefix(a[1:], "-"), "=")
 		if !hasVal {
+			takes := fs == nil
+			if fs != nil {
+				if f := fs.Lookup(name); f != nil {
+					b, isBool := f.Value.(interface{ IsBoolFlag() bool })
+					takes = !isBool || !b.IsBoolFlag()
+				}
+			}
+			if !takes {
+				continue
+			}
 			if i+1 >= len(args) {
 				break
 			}
-			val = args[i+1]
+			i++
+			val = args[i]
 		}
-		last = val
+		if name == "format" {
+			format = val
+		}
 	}
-	return last == "json"
+	return format == "json"
 }

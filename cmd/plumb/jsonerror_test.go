@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
@@ -124,8 +125,10 @@ func TestJSONErrorAfterPartialResult(t *testing.T) {
 }
 
 // asksJSON finds --format json in the spellings the flag package takes,
-// the last one counting, and none after "--".
+// the last one counting, none after "--" or the first positional argument,
+// and not in the value of another flag.
 func TestAsksJSON(t *testing.T) {
+	fs, _, _ := newFlagSet(solveCmd)
 	for _, c := range []struct {
 		args []string
 		want bool
@@ -138,9 +141,34 @@ func TestAsksJSON(t *testing.T) {
 		{[]string{"--", "--format", "json"}, false},
 		{[]string{"--format"}, false},
 		{[]string{"--plot", "json"}, false},
+		{[]string{"--quiet", "--format", "json"}, true},             // a boolean flag takes no value
+		{[]string{"--set", "--format", "json"}, false},              // --set's value is "--format"
+		{[]string{"--t1", "5", "extra", "--format", "json"}, false}, // parsing stops at "extra"
+		{[]string{"--bogus", "--format", "json"}, true},             // an unknown flag takes no value
 	} {
-		assert.Equal(t, c.want, asksJSON(c.args), "%q", c.args)
+		assert.Equal(t, c.want, asksJSON(fs, c.args), "%q", c.args)
 	}
+	assert.True(t, asksJSON(nil, []string{"--x", "1", "--format", "json"}))
+}
+
+// FuzzAsksJSON: on every command line the flag package parses, asksJSON
+// agrees with the --format it parsed; on any other it does not panic.
+func FuzzAsksJSON(f *testing.F) {
+	for _, seed := range []string{
+		"--format json", "--format=json --quiet", "--set --format json", "--quiet=false --format json",
+		"-format json -- x", "--t1 5 --format csv", "--format json --format=table", "--bogus --format json",
+		"--plot json.svg --format json", "--start x=1 - --format json",
+	} {
+		f.Add(seed)
+	}
+	f.Fuzz(func(t *testing.T, line string) {
+		args := strings.Fields(line)
+		fs, sh, _ := newFlagSet(solveCmd)
+		got := asksJSON(fs, args)
+		if err := fs.Parse(args); err == nil && got != (sh.format == "json") {
+			t.Errorf("%q: asksJSON %v, parsed --format %q", args, got, sh.format)
+		}
+	})
 }
 
 // The document of a usage error is what errorJSON declares, field for
@@ -154,4 +182,38 @@ func TestJSONErrorFields(t *testing.T) {
 	}
 	assert.Len(t, got, 12)
 	assert.True(t, bytes.Equal(got["hint"], []byte("null")))
+}
+
+// FuzzJSONErrorDocument: whatever follows --format json on a command line,
+// plumb does not panic, and a command that fails writes on stdout either
+// nothing (the command line took --format json back) or exactly one error
+// document whose exit_status is the exit status.
+func FuzzJSONErrorDocument(f *testing.F) {
+	for _, seed := range []string{
+		"", "--bogus", "extra", "--format csv", "--format table --bogus", "--quiet --progress lines",
+		"--set r=x", "--plot a.gif", "-- --x", "--progress dots", "--file",
+	} {
+		f.Add(seed)
+	}
+	f.Fuzz(func(t *testing.T, line string) {
+		if strings.Contains(line, "out") || strings.Contains(line, "plot") {
+			t.Skip("--out and --plot write files; TestOut* and the plot tests cover them")
+		}
+		ctx, cancel := context.WithTimeout(context.Background(), 5*time.Second)
+		defer cancel()
+		args := append([]string{"version", "--format", "json"}, strings.Fields(line)...)
+		var out, errb bytes.Buffer
+		code := run(ctx, args, strings.NewReader(""), &out, &errb)
+		if code == exitOK || out.Len() == 0 {
+			return
+		}
+		dec := json.NewDecoder(&out)
+		var doc errorJSON
+		if err := dec.Decode(&doc); err != nil || dec.More() {
+			t.Fatalf("%q: exit %d, stdout is not one JSON object (%v): %q", args, code, err, out.String())
+		}
+		if doc.ExitStatus != code || doc.Error == "" {
+			t.Errorf("%q: exit %d, document %+v", args, code, doc)
+		}
+	})
 }

@@ -97,7 +97,7 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	cmd := lookup(args[0])
 	if cmd == nil {
 		fmt.Fprintf(stderr, "plumb: unknown command %q\nrun 'plumb help' for the commands\n", args[0])
-		if asksJSON(args[1:]) {
+		if asksJSON(nil, args[1:]) {
 			writeErrorJSON(stdout, args[0], nil, nil, nil, usagef("unknown command %q", args[0]), exitUsage)
 		}
 		return exitUsage
@@ -128,7 +128,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 		return exitOK
 	}
 	if err != nil {
-		return fail(&usageError{msg: flagMessage(err)}, asksJSON(args))
+		return fail(&usageError{msg: flagMessage(err)}, asksJSON(fs, args))
 	}
 	sh.stdin = stdin
 	sh.ctx = ctx
