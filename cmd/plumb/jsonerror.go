@@ -120,8 +120,9 @@ func writeErrorJSON(w io.Writer, name string, cmd *command, fs *flag.FlagSet, sh
 // that is not one (or "--"), a flag's value in the next argument unless it
 // is a boolean flag or written --name=value, the last --format counting.
 // fs tells boolean flags and value flags apart; a name fs does not know
-// (an unknown flag, which stops the parser anyway) takes no value, and a
-// nil fs (an unknown command) is read as if every flag took one.
+// (an unknown flag, where the parser stopped) takes the next argument as
+// its value unless that looks like a flag, and a nil fs (an unknown
+// command) is read as if every flag took one.
 func asksJSON(fs *flag.FlagSet, args []string) bool {
 	format := ""
 	for i := 0; i < len(args); i++ {
@@ -131,12 +132,12 @@ func asksJSON(fs *flag.FlagSet, args []string) bool {
 		}
 		name, val, hasVal := strings.Cut(strings.TrimPrefix(a[1:], "-"), "=")
 		if !hasVal {
-			takes := fs == nil
-			if fs != nil {
-				if f := fs.Lookup(name); f != nil {
-					b, isBool := f.Value.(interface{ IsBoolFlag() bool })
-					takes = !isBool || !b.IsBoolFlag()
-				}
+			// An unknown flag (where the parser stopped) is taken to have
+			// a value when the next argument does not look like a flag.
+			takes := fs == nil || i+1 < len(args) && !strings.HasPrefix(args[i+1], "-")
+			if f := lookupFlag(fs, name); f != nil {
+				b, isBool := f.Value.(interface{ IsBoolFlag() bool })
+				takes = !isBool || !b.IsBoolFlag()
 			}
 			if !takes {
 				continue
@@ -152,4 +153,12 @@ func asksJSON(fs *flag.FlagSet, args []string) bool {
 		}
 	}
 	return format == "json"
+}
+
+// lookupFlag is fs.Lookup(name), nil for a nil fs.
+func lookupFlag(fs *flag.FlagSet, name string) *flag.Flag {
+	if fs == nil {
+		return nil
+	}
+	return fs.Lookup(name)
 }

@@ -144,7 +144,8 @@ func TestAsksJSON(t *testing.T) {
 		{[]string{"--quiet", "--format", "json"}, true},             // a boolean flag takes no value
 		{[]string{"--set", "--format", "json"}, false},              // --set's value is "--format"
 		{[]string{"--t1", "5", "extra", "--format", "json"}, false}, // parsing stops at "extra"
-		{[]string{"--bogus", "--format", "json"}, true},             // an unknown flag takes no value
+		{[]string{"--bogus", "--format", "json"}, true},             // an unknown flag before a flag takes no value
+		{[]string{"--tl", "5", "--format", "json"}, true},           // one before a word takes it as its value
 	} {
 		assert.Equal(t, c.want, asksJSON(fs, c.args), "%q", c.args)
 	}

@@ -40,15 +40,19 @@ func progressMode(sh *shared, stderr io.Writer) (string, error) {
 // progressRecord is one line of --progress lines: a JSON object on one
 // line of stderr. Every stderr line that starts with "{" is one of these;
 // warnings, the wall time and errors are plain text lines that start with
-// "plumb ". A run writes a "start" record, a "run" record whenever the
-// whole percentage done changes (at most 101), and an "end" record with
-// the status. done and total are in the run's own units (time for a flow,
+// "plumb ". A run writes a "start" event, a "progress" event whenever the
+// whole percentage done or the stage changes, and an "end" event with the
+// status. done and total are in the run's own units (time for a flow,
 // iterates for a map, parameter points for a scan, the fraction of the
 // audit for trust); both are null for a run that reports no progress.
 type progressRecord struct {
 	// Command is the plumb command running ("solve").
 	Command string `json:"command"`
-	// Stage is start, run or end.
+	// Event is start, progress or end.
+	Event string `json:"event"`
+	// Stage names the part of the run: "run" for a run of one part, the
+	// audit's "exponent" (the estimate of the largest exponent) and
+	// "audit" (the runs compared) for trust.
 	Stage string `json:"stage"`
 	// Done is how far the run got, Total where it ends.
 	Done  *float64 `json:"done"`
@@ -57,7 +61,7 @@ type progressRecord struct {
 	Fraction *float64 `json:"fraction"`
 	// ElapsedS is the wall time since the run began, in seconds.
 	ElapsedS float64 `json:"elapsed_s"`
-	// Status is on the end record only: completed, canceled or failed.
+	// Status is on the end event only: completed, canceled or failed.
 	Status string `json:"status,omitempty"`
 }
 
@@ -66,18 +70,31 @@ type progressLinesWriter struct {
 	w      io.Writer
 	cmd    string
 	span   *[2]float64
+	stage  func() string // nil: "run"
 	start  time.Time
-	shown  int // last whole percentage written, -1 before the first
+	shown  int    // last whole percentage written, -1 before the first
+	shownS string // the stage last written
 	done   float64
 	failed bool // a write to stderr failed: write no more
 }
 
-// record writes one record; stage end carries status.
-func (p *progressLinesWriter) record(stage, status string) {
+// stageName is the stage the run is in.
+func (p *progressLinesWriter) stageName() string {
+	if p.stage != nil {
+		if s := p.stage(); s != "" {
+			return s
+		}
+	}
+	return "run"
+}
+
+// record writes one record; the end event carries status.
+func (p *progressLinesWriter) record(event, status string) {
 	if p.failed {
 		return
 	}
-	r := progressRecord{Command: p.cmd, Stage: stage, Status: status,
+	p.shownS = p.stageName()
+	r := progressRecord{Command: p.cmd, Event: event, Stage: p.shownS, Status: status,
 		ElapsedS: now().Sub(p.start).Seconds()}
 	if p.span != nil {
 		done, total := p.done-p.span[0], p.span[1]-p.span[0]
@@ -102,11 +119,11 @@ func (p *progressLinesWriter) at(t float64) {
 	if total > 0 {
 		pct = int(math.Max(0, math.Min(1, (t-p.span[0])/total)) * 100)
 	}
-	if pct == p.shown {
+	if pct == p.shown && p.stageName() == p.shownS {
 		return
 	}
 	p.shown, p.done = pct, t
-	p.record("run", "")
+	p.record("progress", "")
 }
 
 // progress is the progress display of one run: a bar, lines or nothing.
@@ -116,8 +133,9 @@ type progress struct {
 }
 
 // startProgress begins the display of a run over span (nil: the run
-// reports no progress) that began at start.
-func (cl *call) startProgress(span *[2]float64, start time.Time) *progress {
+// reports no progress) that began at start; stage (nil: none) names the
+// stage it is in.
+func (cl *call) startProgress(span *[2]float64, stage func() string, start time.Time) *progress {
 	p := &progress{}
 	switch cl.progress {
 	case progressBarOn:
@@ -125,7 +143,7 @@ func (cl *call) startProgress(span *[2]float64, start time.Time) *progress {
 			p.bar = newProgressBar(cl.stderr, "plumb "+cl.cmd.name, span[0], span[1])
 		}
 	case progressLines:
-		p.lines = &progressLinesWriter{w: cl.stderr, cmd: cl.cmd.name, span: span, start: start, shown: -1}
+		p.lines = &progressLinesWriter{w: cl.stderr, cmd: cl.cmd.name, span: span, stage: stage, start: start, shown: -1}
 		if span != nil {
 			p.lines.done = span[0]
 		}

@@ -30,9 +30,9 @@ func progressRecords(t *testing.T, stderr string) []progressRecord {
 	return recs
 }
 
-// --progress lines writes a start record, run records with done rising to
-// the total, and an end record with the status; stdout is the same as
-// without it.
+// --progress lines writes a start event, progress events with done rising
+// to the total, and an end event with the status; trust names its stages.
+// stdout is the same as without it.
 func TestProgressLines(t *testing.T) {
 	for _, c := range []struct {
 		args   []string
@@ -53,11 +53,13 @@ func TestProgressLines(t *testing.T) {
 			recs := progressRecords(t, r.stderr)
 			require.GreaterOrEqual(t, len(recs), 3)
 			first, last := recs[0], recs[len(recs)-1]
-			assert.Equal(t, "start", first.Stage)
-			assert.Equal(t, "end", last.Stage)
+			assert.Equal(t, "start", first.Event)
+			assert.Equal(t, "end", last.Event)
 			assert.Equal(t, c.status, last.Status)
-			prev := -1.0
+			prev, prevStage := -1.0, ""
+			stages := map[string]bool{}
 			for _, rec := range recs {
+				stages[rec.Stage] = true
 				assert.Equal(t, c.args[0], rec.Command)
 				require.NotNil(t, rec.Done)
 				require.NotNil(t, rec.Total)
@@ -65,10 +67,16 @@ func TestProgressLines(t *testing.T) {
 				assert.Equal(t, c.total, *rec.Total)
 				// the fixed clock of the tests: no time passes
 				assert.Equal(t, 0.0, rec.ElapsedS)
-				if rec.Stage == "run" {
-					assert.Greater(t, *rec.Fraction, prev, "each run record is a new whole percentage")
-					prev = *rec.Fraction
+				if rec.Event == "progress" {
+					if rec.Stage == prevStage {
+						assert.Greater(t, *rec.Fraction, prev, "each progress record in a stage is a new whole percentage")
+					}
+					prev, prevStage = *rec.Fraction, rec.Stage
 				}
+			}
+			if c.args[0] == "trust" {
+				// plumb.StageExponent and plumb.StageAudit, as the SDK reports them
+				assert.True(t, stages["exponent"] && stages["audit"], "stages %v", stages)
 			}
 			if c.code == exitOK {
 				assert.Equal(t, 1.0, prev, "the last run record is at the end of the span")
@@ -84,8 +92,9 @@ func TestProgressLinesNoSpan(t *testing.T) {
 	require.Equal(t, exitOK, r.code, r.stderr)
 	recs := progressRecords(t, r.stderr)
 	require.Len(t, recs, 2)
-	assert.Equal(t, "start", recs[0].Stage)
-	assert.Equal(t, "end", recs[1].Stage)
+	assert.Equal(t, "start", recs[0].Event)
+	assert.Equal(t, "end", recs[1].Event)
+	assert.Equal(t, "run", recs[1].Stage)
 	assert.Equal(t, "completed", recs[1].Status)
 	assert.Nil(t, recs[1].Done)
 	assert.Nil(t, recs[1].Total)

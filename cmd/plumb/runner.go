@@ -31,6 +31,9 @@ type job struct {
 	// It returns the result to write, or nil and the error when nothing
 	// was computed.
 	run func(ctx context.Context, progress func(float64)) (*outcome, error)
+	// stage, when not nil, names the stage the run is in, for --progress
+	// lines ("" or nil: "run"); it is called from the progress callback.
+	stage func() string
 	// reword, when not nil, may turn the error of a run that computed
 	// nothing into the command's own usage error (a method that does not
 	// fit the model); nil from it leaves the error to the refusals table.
@@ -80,7 +83,7 @@ type extraFile struct {
 // exit status (see report).
 func (cl *call) runJob(ctx context.Context, j job) error {
 	start := now()
-	prog := cl.startProgress(j.span, start)
+	prog := cl.startProgress(j.span, j.stage, start)
 	res, err := j.run(ctx, prog.at())
 	if res != nil {
 		prog.finish(res.err)

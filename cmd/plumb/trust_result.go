@@ -137,11 +137,13 @@ type auditJob struct {
 // trustJob is the runner's job of audit a: the progress of its two stages,
 // the result in every format, the chart, the warnings.
 func trustJob(a auditJob) job {
+	var stage plumb.Stage // the stage last reported, for --progress lines
 	j := job{
 		what:    a.what,
 		refusal: "the audit refused its input",
+		stage:   func() string { return string(stage) },
 		run: func(ctx context.Context, progress func(float64)) (*outcome, error) {
-			rep, err := a.audit(ctx, stageProgress(progress))
+			rep, err := a.audit(ctx, stageProgress(progress, &stage))
 			if rep == nil {
 				return nil, err
 			}
@@ -158,13 +160,17 @@ func trustJob(a auditJob) job {
 // from 0 to 1: half for the audit runs, half for the exponent estimate,
 // which takes about as long. The stages may come in either order
 // (System.Trust estimates the exponent first, to choose the reference's
-// precision). Nil progress gives nil.
-func stageProgress(progress func(float64)) func(plumb.Stage, int, int) {
+// precision). current, when not nil, is set to each stage reported before
+// progress is called. Nil progress gives nil.
+func stageProgress(progress func(float64), current *plumb.Stage) func(plumb.Stage, int, int) {
 	if progress == nil {
 		return nil
 	}
 	var audit, expo float64
 	return func(stage plumb.Stage, done, total int) {
+		if current != nil {
+			*current = stage
+		}
 		switch stage {
 		case plumb.StageAudit:
 			if total > 0 {
