@@ -68,6 +68,21 @@ func (o *outFile) Write(p []byte) (int, error) {
 	return n, err
 }
 
+// Seek moves in the temporary file, so that a writer that patches what it
+// wrote first (the row count in a .npy header) can do so in an --out file:
+// outFile is an io.WriteSeeker. Whatever a caller buffered in front of it
+// must be flushed before.
+func (o *outFile) Seek(offset int64, whence int) (int64, error) {
+	if o.err != nil {
+		return 0, o.err
+	}
+	n, err := o.tmp.Seek(offset, whence)
+	if err != nil {
+		o.err = err
+	}
+	return n, err
+}
+
 // commit syncs and closes the temporary file and renames it to target.
 // On any failure the temporary file is removed and target is untouched.
 func (o *outFile) commit(target string) error {
@@ -118,11 +133,14 @@ type outState struct {
 // as such in the --out file. The mark, per format:
 //
 //   - json: none added; the document's own status and error say it.
-//   - jsonl: a last record {"status": "canceled"|"failed", "error": "..."}
-//     unless the command's stream ends with one already (res.marked).
+//   - jsonl: a last record {"status": "canceled"|"failed", "error": "..."}.
 //   - csv and table: a last line "# partial result: STATUS: MESSAGE".
 //   - any other format (a binary array): no mark fits inside, so the file
 //     is put beside the target as NAME.partial instead of in its place.
+//
+// A command whose output says how the run ended by itself (a stream that
+// ends with its own status record) sets res.marked: nothing is added and
+// the file goes in place, whatever the format.
 //
 // Without --out nothing is added: stdout stays as it always was, and the
 // exit status (1) says the run stopped early.
@@ -139,15 +157,15 @@ func (cl *call) resultWritten(res *outcome) error {
 
 // markPartial writes the mark of a partial result (see resultWritten).
 func (cl *call) markPartial(res *outcome) error {
+	if res.marked {
+		return nil
+	}
 	status, msg := runStatus(res.err)
 	line := strings.Join(strings.Fields(string(msg)), " ")
 	switch cl.sh.format {
 	case "json":
 		return nil
 	case "jsonl":
-		if res.marked {
-			return nil
-		}
 		return writeJSONLine(cl.stdout, struct {
 			Status string  `json:"status"`
 			Error  errText `json:"error"`

@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -245,4 +246,47 @@ func TestOutPartialAside(t *testing.T) {
 	require.NoError(t, err)
 	assert.Equal(t, "rows", string(part))
 	assert.Contains(t, stderr.String(), "the partial result is in "+name+partialSuffix)
+}
+
+// An --out file is an io.WriteSeeker: a writer that patches what it wrote
+// first (a .npy header's row count) can seek back in it before the commit.
+func TestOutFileSeeks(t *testing.T) {
+	name := filepath.Join(t.TempDir(), "r.npy")
+	o, err := createOut(name)
+	require.NoError(t, err)
+	var ws io.WriteSeeker = o
+	_, err = ws.Write([]byte("rows=?;0123456789"))
+	require.NoError(t, err)
+	at, err := ws.Seek(5, io.SeekStart)
+	require.NoError(t, err)
+	require.Equal(t, int64(5), at)
+	_, err = ws.Write([]byte("9"))
+	require.NoError(t, err)
+	_, err = ws.Seek(0, io.SeekEnd)
+	require.NoError(t, err)
+	_, err = ws.Write([]byte(";end"))
+	require.NoError(t, err)
+	require.NoError(t, o.commit(name))
+	got, err := os.ReadFile(name)
+	require.NoError(t, err)
+	assert.Equal(t, "rows=9;0123456789;end", string(got))
+}
+
+// A command whose output marks itself (outcome.marked) gets no other mark,
+// and its partial file goes in place in any format.
+func TestOutPartialSelfMarked(t *testing.T) {
+	dir := t.TempDir()
+	name := filepath.Join(dir, "r.bin")
+	o, err := createOut(name)
+	require.NoError(t, err)
+	var stderr strings.Builder
+	cl := &call{cmd: solveCmd, sh: &shared{format: "binary", out: name}, stdout: o, stderr: &stderr}
+	_, err = o.Write([]byte("rows and their own status"))
+	require.NoError(t, err)
+	require.NoError(t, cl.resultWritten(&outcome{err: context.Canceled, marked: true}))
+	assert.ErrorIs(t, cl.finishOut(o, context.Canceled), context.Canceled)
+	got, err := os.ReadFile(name)
+	require.NoError(t, err)
+	assert.Equal(t, "rows and their own status", string(got))
+	assert.Equal(t, []string{"r.bin"}, onlyFiles(t, dir))
 }

@@ -66,8 +66,9 @@ type outcome struct {
 	// err is why the run stopped early, worded for the user; the result
 	// holds what was done before.
 	err error
-	// marked: the --format jsonl stream already ends with a record that
-	// says how the run ended, so a partial --out file needs no other mark.
+	// marked: the written result says by itself how the run ended (a
+	// stream that ends with its own status record), so a partial --out
+	// file needs no other mark and goes in place, whatever the format.
 	marked bool
 }
 
