@@ -114,10 +114,15 @@ func (o *outFile) discard() {
 	os.Remove(o.tmp.Name())
 }
 
-// outState is what the runner learnt about the result while writing it,
-// for finishing --out: whether a result was written whole, and whether it
-// is partial and where its mark went.
+// outState is what the runner learnt about the result while writing it:
+// whether a result was written whole (then no JSON error document follows
+// it), and, for --out, whether it is partial and where its mark went. A
+// command that runs another command's work on its own stdout (a call made
+// inside a call) passes its *outState on, so that what the inner run wrote
+// counts for the outer file.
 type outState struct {
+	// toFile: the results go to an --out file (execute opened one).
+	toFile bool
 	// written: the result was written whole (all of it, or the part done
 	// before the run stopped, with its mark).
 	written bool
@@ -145,7 +150,10 @@ type outState struct {
 // Without --out nothing is added: stdout stays as it always was, and the
 // exit status (1) says the run stopped early.
 func (cl *call) resultWritten(res *outcome) error {
-	if cl.sh.out != "" && res.err != nil {
+	if cl.out == nil {
+		return nil // a call made without execute (a test)
+	}
+	if cl.out.toFile && res.err != nil {
 		if err := cl.markPartial(res); err != nil {
 			return err
 		}

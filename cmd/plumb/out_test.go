@@ -233,7 +233,7 @@ func TestOutPartialAside(t *testing.T) {
 	o, err := createOut(name)
 	require.NoError(t, err)
 	var stderr strings.Builder
-	cl := &call{cmd: solveCmd, sh: &shared{format: "binary", out: name}, stdout: o, stderr: &stderr}
+	cl := &call{cmd: solveCmd, sh: &shared{format: "binary", out: name}, stdout: o, stderr: &stderr, out: &outState{toFile: true}}
 	_, err = o.Write([]byte("rows"))
 	require.NoError(t, err)
 	stop := context.Canceled
@@ -280,7 +280,7 @@ func TestOutPartialSelfMarked(t *testing.T) {
 	o, err := createOut(name)
 	require.NoError(t, err)
 	var stderr strings.Builder
-	cl := &call{cmd: solveCmd, sh: &shared{format: "binary", out: name}, stdout: o, stderr: &stderr}
+	cl := &call{cmd: solveCmd, sh: &shared{format: "binary", out: name}, stdout: o, stderr: &stderr, out: &outState{toFile: true}}
 	_, err = o.Write([]byte("rows and their own status"))
 	require.NoError(t, err)
 	require.NoError(t, cl.resultWritten(&outcome{err: context.Canceled, marked: true}))

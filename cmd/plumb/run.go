@@ -32,8 +32,9 @@ type call struct {
 	// progress is how progress shows on stderr: progressBarOn,
 	// progressLines or progressNone (--progress and --quiet resolved).
 	progress string
-	// out is what the runner learnt while writing the result, for --out.
-	out outState
+	// out is what the runner learnt while writing the result (never nil
+	// in a call execute makes).
+	out *outState
 }
 
 // usageError is bad usage or bad input: exit status 2.
@@ -156,7 +157,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 	bw := bufio.NewWriter(dst)
 	cl := &call{
 		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, stderr: stderr,
-		progress: mode,
+		progress: mode, out: &outState{toFile: out != nil},
 	}
 	err = work(ctx, cl)
 	if ferr := bw.Flush(); ferr != nil && err == nil {
