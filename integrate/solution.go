@@ -77,15 +77,16 @@ type Solution struct {
 
 // compactDense is implemented by schemes whose continuous extension
 // partly consists of the step's end states: a Solution then keeps only the
-// rest (for DormandPrince54, 3 of 5 vectors per step), and rebuilds the
-// same bits from T and Y.
+// rest (for DormandPrince54, 3 of 5 vectors per step; for
+// DormandPrince853, 6 of 8), and rebuilds the same bits from T and Y.
 type compactDense interface {
 	compactSize(n int) int
 	compact(full, dst []float64)
 	// denseCompact writes the kept part of the last step's extension
-	// (size h from y with derivative k1 to y1 with derivative k7) into
-	// dst, the same bits as dense followed by compact.
-	denseCompact(h float64, y, k1, y1, k7, dst []float64)
+	// (size h from y at t with derivative k1 to y1 with derivative k7)
+	// into dst, the same bits as dense followed by compact, and returns
+	// the evaluations of F it made.
+	denseCompact(t, h float64, y, k1, y1, k7, dst []float64) int
 	interpCompact(y0, y1, c []float64, theta float64, dst []float64)
 }
 

@@ -137,7 +137,7 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 			switch {
 			case sol.cd != nil && !st.denseReady:
 				// Only the part the solution keeps, straight into place.
-				sol.cd.denseCompact(st.hLast, st.yPrev, st.fPrev, st.y, st.f0, sol.coef.next())
+				st.stats.Evaluations += sol.cd.denseCompact(ta, st.hLast, st.yPrev, st.fPrev, st.y, st.f0, sol.coef.next())
 			case sol.cd != nil:
 				sol.cd.compact(st.coef, sol.coef.next())
 			case st.sc.denseSize() > 0:
