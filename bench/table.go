@@ -187,11 +187,20 @@ func ratioTable(w io.Writer, curves map[key][]point, keys []key, es []float64) {
 					row += " out of range |"
 					continue
 				}
-				row += fmt.Sprintf(" %.2f |", a/b)
+				row += " " + fmtRatio(a/b) + " |"
 			}
 			fmt.Fprintln(w, row)
 		}
 	}
+}
+
+// fmtRatio prints a ratio with two decimals, or with two significant
+// digits when it is below 0.1 (where two decimals would print 0.00).
+func fmtRatio(r float64) string {
+	if r < 0.1 {
+		return fmt.Sprintf("%.2g", r)
+	}
+	return fmt.Sprintf("%.2f", r)
 }
 
 // timeAt interpolates log time linearly in log err@20 between the two

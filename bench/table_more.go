@@ -73,7 +73,7 @@ func equalTolRatios(pk key, p point, curves map[key][]point, keys []key) string 
 				if out != "" {
 					out += ", "
 				}
-				out += fmt.Sprintf("%.2f (%s)", p.sec/q.sec, qk)
+				out += fmtRatio(p.sec/q.sec) + " (" + qk.String() + ")"
 			}
 		}
 	}

@@ -25,6 +25,11 @@ func TestTimeAt(t *testing.T) {
 			t.Errorf("timeAt(%g) = %v, want %v", e, got, want)
 		}
 	}
+	for r, want := range map[float64]string{2: "2.00", 0.1: "0.10", 0.0046: "0.0046"} {
+		if got := fmtRatio(r); got != want {
+			t.Errorf("fmtRatio(%v) = %q, want %q", r, got, want)
+		}
+	}
 	for _, e := range []float64{1, 1e-9, math.NaN()} {
 		if got := timeAt(c, e); !math.IsNaN(got) {
 			t.Errorf("timeAt(%g) = %v, want NaN (outside the curve)", e, got)
