@@ -36,6 +36,8 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 	n := st.n
 	sol := &Solution{Method: m.Name(), Dim: n, T0: p.T0, End: p.T0, sc: st.sc,
 		coef: newChunks(st.sc.denseSize() * n), tBuf: newChunks(1), yBuf: newChunks(n)}
+	sol.tBuf.pool()
+	sol.yBuf.pool()
 	if cd, ok := st.sc.(compactDense); ok {
 		sol.cd = cd
 		sol.coef = newChunks(cd.compactSize(n))
