@@ -222,10 +222,28 @@ func (r *flowRun) field(t float64, y, dy []float64) {
 	r.evals++
 	r.calling, r.callT = integrate.CallbackField, t
 	r.p.F(t, x, dy[:n])
-	r.jacobian(t, x)
+	if r.exact {
+		// jacobian's exact branch, without the call.
+		r.jacs++
+		r.calling = integrate.CallbackJacobian
+		r.p.Jac(t, x, r.J)
+	} else {
+		r.jacobian(t, x)
+	}
+	jd := r.jd
+	if n == 3 && k == 3 {
+		// A full 3-D spectrum: mulTangent33 directly, and the trace as
+		// the loop below sums it, ((0 + J00) + J11) + J22.
+		mulTangent33(dy[3:12], jd, y[3:12])
+		var tr float64
+		tr += jd[0]
+		tr += jd[4]
+		tr += jd[8]
+		dy[r.volIx] = tr
+		return
+	}
 	v := y[n : n+n*k]
 	dv := dy[n : n+n*k]
-	jd := r.jd
 	mulTangent(dv, jd, v, n, k)
 	if r.vol {
 		var tr float64
