@@ -13,7 +13,8 @@
 // with the states at t = 10 and 20 from separate untimed solves, and the
 // Arenstorf orbit over one period; rtol = atol in {1e-6, 1e-8, 1e-10,
 // 1e-12}; DormandPrince54 and DormandPrince853, each keeping its steps
-// (Solve's default) and with DropSteps. A sample is the mean wall time of K
+// (Solve's default) and with DropSteps. Then Lorenz-96 and 1000 Lorenz
+// trajectories (see run_more.go). A sample is the mean wall time of K
 // back-to-back solves in CPU time of the process (the GC's threads
 // included), K chosen so that a sample lasts about SECONDS (default 0.1),
 // after one counted solve; the process first warms up for 0.3 s. (run.sh
@@ -140,6 +141,7 @@ type sample struct {
 	TEnd    float64              `json:"t_end"`
 	YEnd    []float64            `json:"y_end"`
 	Mids    map[string][]float64 `json:"mids,omitempty"`
+	Extra   map[string]float64   `json:"extra,omitempty"`
 }
 
 func runAll(w *os.File, target float64) error {
@@ -195,5 +197,5 @@ func runAll(w *os.File, target float64) error {
 			}
 		}
 	}
-	return nil
+	return runMore(w, target)
 }

@@ -41,27 +41,39 @@ type point struct {
 var orders = map[key]int{
 	{"plumb", "dp54"}: 5, {"plumb", "dp54-drop"}: 5, {"c_dp5", "dp5-I"}: 5,
 	{"boost", "dopri5"}: 5, {"gsl", "rkck"}: 5, {"gsl", "rkf45"}: 5,
+	{"scipy", "RK45"}: 5, {"plumb", "dp54-drop-loop"}: 5, {"plumb", "dp54-batch"}: 5, {"boost", "dopri5-loop"}: 5,
 	{"plumb", "dp853"}: 8, {"plumb", "dp853-drop"}: 8, {"boost", "rkf78"}: 8, {"gsl", "rk8pd"}: 8,
+	{"scipy", "DOP853"}: 8,
 }
 
-// targets are the errors at t = 20 the ratios are read at.
-var targets = []float64{1e-3, 1e-5}
+// targets are the errors at t = 20 the Lorenz ratios are read at;
+// arenstorfTargets the errors at the end of the Arenstorf period.
+var (
+	targets          = []float64{1e-3, 1e-5}
+	arenstorfTargets = []float64{1e-3, 1e-6}
+)
 
-func writeTable(w io.Writer, samplesPath, refPath string) error {
-	ref, err := readRef(refPath)
+// arenstorfStart is the Arenstorf orbit's initial state, which it returns
+// to after one period: the error of a solve is its distance from it then.
+var arenstorfStart = []float64{0.994, 0, 0, -2.00158510637908252240537862224}
+
+// runs holds the samples of one problem: every method's rounds per tolerance.
+type runs map[key]map[float64]*rounds
+
+// rounds is the rounds of one method at one tolerance.
+type rounds struct {
+	secs []float64
+	s    sample
+}
+
+// readSamples reads a samples file into runs per problem.
+func readSamples(path string) (map[string]runs, error) {
+	f, err := os.Open(path)
 	if err != nil {
-		return err
-	}
-	f, err := os.Open(samplesPath)
-	if err != nil {
-		return err
+		return nil, err
 	}
 	defer f.Close()
-	type acc struct {
-		secs []float64
-		s    sample
-	}
-	runs := map[key]map[float64]*acc{}
+	out := map[string]runs{}
 	sc := bufio.NewScanner(f)
 	sc.Buffer(make([]byte, 1<<20), 1<<20)
 	line := 0
@@ -69,35 +81,41 @@ func writeTable(w io.Writer, samplesPath, refPath string) error {
 		line++
 		var s sample
 		if err := json.Unmarshal(sc.Bytes(), &s); err != nil {
-			return fmt.Errorf("%s line %d: %w", samplesPath, line, err)
+			return nil, fmt.Errorf("%s line %d: %w", path, line, err)
 		}
-		if s.Problem != "lorenz" || !(s.Sec > 0) {
+		if !(s.Sec > 0) {
 			continue
 		}
 		k := key{s.Peer, s.Method}
-		if runs[k] == nil {
-			runs[k] = map[float64]*acc{}
+		if out[s.Problem] == nil {
+			out[s.Problem] = runs{}
 		}
-		a := runs[k][s.Tol]
+		if out[s.Problem][k] == nil {
+			out[s.Problem][k] = map[float64]*rounds{}
+		}
+		a := out[s.Problem][k][s.Tol]
 		if a == nil {
-			a = &acc{s: s}
-			runs[k][s.Tol] = a
+			a = &rounds{s: s}
+			out[s.Problem][k][s.Tol] = a
 		}
 		a.secs = append(a.secs, s.Sec)
 	}
-	if err := sc.Err(); err != nil {
-		return err
-	}
+	return out, sc.Err()
+}
+
+// curves turns runs into points sorted by falling tolerance, with the
+// errors errs gives for a sample, and the methods in table order.
+func (r runs) curves(errs func(sample) (e1, e2 float64)) (map[key][]point, []key) {
 	curves := map[key][]point{}
 	var keys []key
-	for k, byTol := range runs {
+	for k, byTol := range r {
 		keys = append(keys, k)
 		for tol, a := range byTol {
 			slices.Sort(a.secs)
 			med, fast := a.secs[len(a.secs)/2], a.secs[0]
 			p := point{tol: tol, acc: a.s.Acc, rej: a.s.Rej, nfev: a.s.Nfev, sec: fast, rounds: len(a.secs),
-				spread: (med - fast) / fast,
-				err10:  maxErr(a.s.Mids["10"], ref["10"]), err20: maxErr(a.s.Mids["20"], ref["20"])}
+				spread: (med - fast) / fast}
+			p.err10, p.err20 = errs(a.s)
 			p.nsStp = fast * 1e9 / float64(a.s.Acc+a.s.Rej)
 			curves[k] = append(curves[k], p)
 		}
@@ -108,6 +126,21 @@ func writeTable(w io.Writer, samplesPath, refPath string) error {
 			return orders[keys[i]] < orders[keys[j]]
 		}
 		return keys[i].String() < keys[j].String()
+	})
+	return curves, keys
+}
+
+func writeTable(w io.Writer, samplesPath, refPath string) error {
+	ref, err := readRef(refPath)
+	if err != nil {
+		return err
+	}
+	all, err := readSamples(samplesPath)
+	if err != nil {
+		return err
+	}
+	curves, keys := all["lorenz"].curves(func(s sample) (float64, float64) {
+		return maxErr(s.Mids["10"], ref["10"]), maxErr(s.Mids["20"], ref["20"])
 	})
 
 	fmt.Fprintln(w, "Lorenz on [0, 100]; time: the fastest round, in CPU time per solve; spread: how much slower the median round was.")
@@ -123,9 +156,17 @@ func writeTable(w io.Writer, samplesPath, refPath string) error {
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, "CPU time to reach an error at t = 20 (interpolated across tolerances), plumb against each peer of the same order; ratio > 1: plumb is slower.")
 	fmt.Fprintln(w)
+	ratioTable(w, curves, keys, targets)
+	return writeMore(w, all)
+}
+
+// ratioTable prints, for every plumb method and every peer method of the
+// same order, the ratio of their times to reach each error in es (the
+// errors in point.err20).
+func ratioTable(w io.Writer, curves map[key][]point, keys []key, es []float64) {
 	head := "| plumb | peer |"
 	rule := "| --- | --- |"
-	for _, e := range targets {
+	for _, e := range es {
 		head += fmt.Sprintf(" plumb / peer at %.0e |", e)
 		rule += " ---: |"
 	}
@@ -140,18 +181,26 @@ func writeTable(w io.Writer, samplesPath, refPath string) error {
 				continue
 			}
 			row := fmt.Sprintf("| %s | %s |", pk.method, qk)
-			for _, e := range targets {
+			for _, e := range es {
 				a, b := timeAt(curves[pk], e), timeAt(curves[qk], e)
 				if math.IsNaN(a) || math.IsNaN(b) {
 					row += " out of range |"
 					continue
 				}
-				row += fmt.Sprintf(" %.2f |", a/b)
+				row += " " + fmtRatio(a/b) + " |"
 			}
 			fmt.Fprintln(w, row)
 		}
 	}
-	return nil
+}
+
+// fmtRatio prints a ratio with two decimals, or with two significant
+// digits when it is below 0.1 (where two decimals would print 0.00).
+func fmtRatio(r float64) string {
+	if r < 0.1 {
+		return fmt.Sprintf("%.2g", r)
+	}
+	return fmt.Sprintf("%.2f", r)
 }
 
 // timeAt interpolates log time linearly in log err@20 between the two

@@ -124,7 +124,9 @@
 // that double up to 4096 steps and never move, so a solve allocates
 // O(log steps + steps/4096) times and copies its steps once, at the end,
 // into T and Y; DormandPrince54 keeps 3 of the 5 vectors of its continuous
-// extension per step (the other two are rebuilt from T and Y).
+// extension per step and DormandPrince853 6 of its 8 (the other two are
+// rebuilt from T and Y). The blocks that stage the times and states before
+// that copy go back to a pool (sync.Pool) that later solves draw from.
 //
 // # Determinism
 //

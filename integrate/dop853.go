@@ -419,12 +419,45 @@ func (w *dp853Work) stiffness(h float64, y1, f1 []float64) (float64, float64, bo
 // of order 7 as eight vectors (Hairer's cont(1..8)): 3 evaluations of F.
 func (w *dp853Work) dense(t, h float64, y, k1, y1, k13, coef []float64) int {
 	n := len(y)
+	r1, r2 := coef[:n], coef[n:2*n]
+	for i := range y[:n] {
+		r1[i] = y[i]
+		r2[i] = y1[i] - y[i]
+	}
+	return w.denseRest(t, h, y, k1, y1, k13, coef[2*n:8*n])
+}
+
+// compactSize is the number of floats per step a Solution keeps: r3..r8
+// (r1 = y and r2 = y1 - y are rebuilt from the stored states).
+func (w *dp853Work) compactSize(n int) int { return 6 * n }
+
+// compact copies r3..r8 of a full dense record into dst.
+func (w *dp853Work) compact(full, dst []float64) {
+	n := len(full) / 8
+	// A loop, not copy: records are short, and the runtime's memmove
+	// costs more than the copy itself.
+	for i, x := range full[2*n : 8*n][:len(dst)] {
+		dst[i] = x
+	}
+}
+
+// denseCompact writes r3..r8 of the last step's continuous extension
+// straight into dst, with the arithmetic of dense (the same bits): 3
+// evaluations of F.
+func (w *dp853Work) denseCompact(t, h float64, y, k1, y1, k13, dst []float64) int {
+	return w.denseRest(t, h, y, k1, y1, k13, dst)
+}
+
+// denseRest evaluates the three extra stages and writes r3..r8 of the
+// continuous extension into rest (6n floats).
+func (w *dp853Work) denseRest(t, h float64, y, k1, y1, k13, rest []float64) int {
+	n := len(y)
 	k1, y1, k13 = k1[:n], y1[:n], k13[:n]
 	k6, k7, k8, k9, k10 := w.k6[:n], w.k7[:n], w.k8[:n], w.k9[:n], w.k10[:n]
 	k11, k12 := w.k11[:n], w.k12[:n]
 	k14, k15, k16, ys := w.k2[:n], w.k3[:n], w.k4[:n], w.k5[:n]
-	r1, r2, r3, r4 := coef[:n], coef[n:2*n], coef[2*n:3*n], coef[3*n:4*n]
-	r5, r6, r7, r8 := coef[4*n:5*n], coef[5*n:6*n], coef[6*n:7*n], coef[7*n:8*n]
+	r3, r4 := rest[:n], rest[n:2*n]
+	r5, r6, r7, r8 := rest[2*n:3*n], rest[3*n:4*n], rest[4*n:5*n], rest[5*n:6*n]
 
 	for i := range ys {
 		ys[i] = y[i] + float64(h*(float64(d8A141*k1[i])+float64(d8A147*k7[i])+float64(d8A148*k8[i])+
@@ -448,8 +481,6 @@ func (w *dp853Work) dense(t, h float64, y, k1, y1, k13, coef []float64) int {
 	for i := range y {
 		yd := y1[i] - y[i]
 		bspl := float64(h*k1[i]) - yd
-		r1[i] = y[i]
-		r2[i] = yd
 		r3[i] = bspl
 		r4[i] = yd - float64(h*k13[i]) - bspl
 		r5[i] = float64(h * (float64(d8D41*k1[i]) + float64(d8D46*k6[i]) + float64(d8D47*k7[i]) +
@@ -485,5 +516,20 @@ func (w *dp853Work) interp(coef []float64, theta float64, dst []float64) {
 	for i := range dst {
 		p := r5[i] + float64(theta*(r6[i]+float64(t1*(r7[i]+float64(theta*r8[i])))))
 		dst[i] = r1[i] + float64(theta*(r2[i]+float64(t1*(r3[i]+float64(theta*(r4[i]+float64(t1*p)))))))
+	}
+}
+
+// interpCompact is interp with r1 = y0 and r2 = y1 - y0 rebuilt from the
+// step's end states (the same operations as dense, so the same bits).
+func (w *dp853Work) interpCompact(y0, y1, c []float64, theta float64, dst []float64) {
+	n := len(dst)
+	y0, y1 = y0[:n], y1[:n]
+	r3, r4 := c[:n], c[n:2*n]
+	r5, r6, r7, r8 := c[2*n:3*n], c[3*n:4*n], c[4*n:5*n], c[5*n:6*n]
+	t1 := 1 - theta
+	for i := range dst {
+		r2 := y1[i] - y0[i]
+		p := r5[i] + float64(theta*(r6[i]+float64(t1*(r7[i]+float64(theta*r8[i])))))
+		dst[i] = y0[i] + float64(theta*(r2+float64(t1*(r3[i]+float64(theta*(r4[i]+float64(t1*p)))))))
 	}
 }

@@ -219,7 +219,7 @@ func (w *dp54Work) compact(full, dst []float64) {
 // denseCompact writes r3..r5 of the step's continuous extension straight
 // into dst, with the arithmetic of dense (the same bits) and without
 // forming r1 and r2, which a Solution rebuilds from its stored states.
-func (w *dp54Work) denseCompact(h float64, y, k1, y1, k7, dst []float64) {
+func (w *dp54Work) denseCompact(_, h float64, y, k1, y1, k7, dst []float64) int {
 	n := len(y)
 	k1, y1, k7 = k1[:n], y1[:n], k7[:n]
 	k3, k4, k5, k6 := w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n]
@@ -231,6 +231,7 @@ func (w *dp54Work) denseCompact(h float64, y, k1, y1, k7, dst []float64) {
 		r4[i] = yd - float64(h*k7[i]) - bspl
 		r5[i] = float64(h * (float64(dpD1*k1[i]) + float64(dpD3*k3[i]) + float64(dpD4*k4[i]) + float64(dpD5*k5[i]) + float64(dpD6*k6[i]) + float64(dpD7*k7[i])))
 	}
+	return 0
 }
 
 // interpCompact is interp with r1 = y0 and r2 = y1 - y0 rebuilt from the

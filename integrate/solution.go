@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/bits"
 	"sort"
+	"sync"
 )
 
 // Status says why a solve ended.
@@ -77,15 +78,16 @@ type Solution struct {
 
 // compactDense is implemented by schemes whose continuous extension
 // partly consists of the step's end states: a Solution then keeps only the
-// rest (for DormandPrince54, 3 of 5 vectors per step), and rebuilds the
-// same bits from T and Y.
+// rest (for DormandPrince54, 3 of 5 vectors per step; for
+// DormandPrince853, 6 of 8), and rebuilds the same bits from T and Y.
 type compactDense interface {
 	compactSize(n int) int
 	compact(full, dst []float64)
 	// denseCompact writes the kept part of the last step's extension
-	// (size h from y with derivative k1 to y1 with derivative k7) into
-	// dst, the same bits as dense followed by compact.
-	denseCompact(h float64, y, k1, y1, k7, dst []float64)
+	// (size h from y at t with derivative k1 to y1 with derivative k7)
+	// into dst, the same bits as dense followed by compact, and returns
+	// the evaluations of F it made.
+	denseCompact(t, h float64, y, k1, y1, k7, dst []float64) int
 	interpCompact(y0, y1, c []float64, theta float64, dst []float64)
 }
 
@@ -106,6 +108,56 @@ type chunks struct {
 	cur  []float64
 	used int
 	n    int // records stored
+	// pooled: the blocks come from, and go back to, blockPools (for
+	// staging storage that is copied out and dropped, see release);
+	// boxes[j] points at b[j], the pool's handle, made once per block.
+	pooled bool
+	boxes  []*[]float64
+}
+
+// blockPools holds released blocks by length (a *sync.Pool per length):
+// the times and states a Solve stages before copying them into T and Y,
+// so that repeated solves reuse that memory instead of asking the heap
+// (and the operating system, page by page) for fresh memory each time.
+var blockPools sync.Map
+
+func blockPool(n int) *sync.Pool {
+	if p, ok := blockPools.Load(n); ok {
+		return p.(*sync.Pool)
+	}
+	p, _ := blockPools.LoadOrStore(n, &sync.Pool{})
+	return p.(*sync.Pool)
+}
+
+// pool makes c take its blocks from blockPools and give them back in
+// release. The handles' slice starts with room for 32 blocks (for T,
+// about 110 000 steps), so that it rarely grows.
+func (c *chunks) pool() {
+	c.pooled = true
+	c.boxes = make([]*[]float64, 0, 32)
+}
+
+// newBlock returns a block of n floats, from the pool when c is pooled.
+// Its contents are arbitrary: next hands out each slot to be filled whole.
+func (c *chunks) newBlock(n int) []float64 {
+	if !c.pooled {
+		return make([]float64, n)
+	}
+	box, ok := blockPool(n).Get().(*[]float64)
+	if !ok || len(*box) != n {
+		b := make([]float64, n)
+		box = &b
+	}
+	c.boxes = append(c.boxes, box)
+	return *box
+}
+
+// release gives a pooled chunks' blocks back to the pool and empties it.
+func (c *chunks) release() {
+	for _, box := range c.boxes {
+		blockPool(len(*box)).Put(box)
+	}
+	*c = chunks{}
 }
 
 // maxBlockFloats bounds a block to 512 KiB.
@@ -129,7 +181,7 @@ func newChunks(per int) chunks {
 // the caller.
 func (c *chunks) next() []float64 {
 	if c.used == len(c.cur) {
-		c.cur = make([]float64, (c.first<<min(len(c.b), c.grow))*c.per)
+		c.cur = c.newBlock((c.first << min(len(c.b), c.grow)) * c.per)
 		c.b = append(c.b, c.cur)
 		c.used = 0
 	}
@@ -178,7 +230,8 @@ func (c *chunks) flat() []float64 {
 func (s *Solution) seal() {
 	if s.tBuf.n > 0 {
 		s.T, s.Y = s.tBuf.flat(), s.yBuf.flat()
-		s.tBuf, s.yBuf = chunks{}, chunks{}
+		s.tBuf.release()
+		s.yBuf.release()
 	}
 }
 

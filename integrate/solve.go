@@ -36,6 +36,8 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 	n := st.n
 	sol := &Solution{Method: m.Name(), Dim: n, T0: p.T0, End: p.T0, sc: st.sc,
 		coef: newChunks(st.sc.denseSize() * n), tBuf: newChunks(1), yBuf: newChunks(n)}
+	sol.tBuf.pool()
+	sol.yBuf.pool()
 	if cd, ok := st.sc.(compactDense); ok {
 		sol.cd = cd
 		sol.coef = newChunks(cd.compactSize(n))
@@ -137,7 +139,7 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 			switch {
 			case sol.cd != nil && !st.denseReady:
 				// Only the part the solution keeps, straight into place.
-				sol.cd.denseCompact(st.hLast, st.yPrev, st.fPrev, st.y, st.f0, sol.coef.next())
+				st.stats.Evaluations += sol.cd.denseCompact(ta, st.hLast, st.yPrev, st.fPrev, st.y, st.f0, sol.coef.next())
 			case sol.cd != nil:
 				sol.cd.compact(st.coef, sol.coef.next())
 			case st.sc.denseSize() > 0:
