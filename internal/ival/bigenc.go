@@ -42,18 +42,50 @@ func (a benc) neg() benc {
 	return benc{new(big.Float).Neg(a.hi).SetMode(big.ToNegativeInf), new(big.Float).Neg(a.lo).SetMode(big.ToPositiveInf)}
 }
 
-// mul is the product; the extremes are among the four end products.
+// mul is the product, by the signs of the ends (Moore's case table): two
+// products unless both operands hold 0.
 func (a benc) mul(b benc, p uint) benc {
-	lo, hi := bLo(p).Mul(a.lo, b.lo), bHi(p).Mul(a.lo, b.lo)
-	for _, xy := range [3][2]*big.Float{{a.lo, b.hi}, {a.hi, b.lo}, {a.hi, b.hi}} {
-		if l := bLo(p).Mul(xy[0], xy[1]); l.Cmp(lo) < 0 {
-			lo = l
+	l := func(x, y *big.Float) *big.Float { return bLo(p).Mul(x, y) }
+	h := func(x, y *big.Float) *big.Float { return bHi(p).Mul(x, y) }
+	switch {
+	case a.lo.Sign() >= 0:
+		switch {
+		case b.lo.Sign() >= 0:
+			return benc{l(a.lo, b.lo), h(a.hi, b.hi)}
+		case b.hi.Sign() <= 0:
+			return benc{l(a.hi, b.lo), h(a.lo, b.hi)}
 		}
-		if h := bHi(p).Mul(xy[0], xy[1]); h.Cmp(hi) > 0 {
-			hi = h
+		return benc{l(a.hi, b.lo), h(a.hi, b.hi)}
+	case a.hi.Sign() <= 0:
+		switch {
+		case b.lo.Sign() >= 0:
+			return benc{l(a.lo, b.hi), h(a.hi, b.lo)}
+		case b.hi.Sign() <= 0:
+			return benc{l(a.hi, b.hi), h(a.lo, b.lo)}
 		}
+		return benc{l(a.lo, b.hi), h(a.lo, b.lo)}
+	}
+	switch {
+	case b.lo.Sign() >= 0:
+		return benc{l(a.lo, b.hi), h(a.hi, b.hi)}
+	case b.hi.Sign() <= 0:
+		return benc{l(a.hi, b.lo), h(a.lo, b.lo)}
+	}
+	lo, lo2 := l(a.lo, b.hi), l(a.hi, b.lo)
+	if lo2.Cmp(lo) < 0 {
+		lo = lo2
+	}
+	hi, hi2 := h(a.lo, b.lo), h(a.hi, b.hi)
+	if hi2.Cmp(hi) > 0 {
+		hi = hi2
 	}
 	return benc{lo, hi}
+}
+
+// divInt divides by the positive integer n (increasing in a).
+func (a benc) divInt(n int64, p uint) benc {
+	d := new(big.Float).SetInt64(n)
+	return benc{bLo(p).Quo(a.lo, d), bHi(p).Quo(a.hi, d)}
 }
 
 // sqr is {v*v}: never negative, tighter than mul(a, a) when a holds 0.
@@ -71,18 +103,28 @@ func (a benc) sqr(p uint) benc {
 	return benc{bLo(p), h1}
 }
 
-// quo is the quotient; b must not contain 0 (the caller ensures it).
+// quo is the quotient; b must not contain 0 (the caller ensures it). It is
+// a times the reciprocal's ends, by the signs of the ends.
 func (a benc) quo(b benc, p uint) benc {
-	lo, hi := bLo(p).Quo(a.lo, b.lo), bHi(p).Quo(a.lo, b.lo)
-	for _, xy := range [3][2]*big.Float{{a.lo, b.hi}, {a.hi, b.lo}, {a.hi, b.hi}} {
-		if l := bLo(p).Quo(xy[0], xy[1]); l.Cmp(lo) < 0 {
-			lo = l
+	l := func(x, y *big.Float) *big.Float { return bLo(p).Quo(x, y) }
+	h := func(x, y *big.Float) *big.Float { return bHi(p).Quo(x, y) }
+	if b.lo.Sign() > 0 {
+		switch {
+		case a.lo.Sign() >= 0:
+			return benc{l(a.lo, b.hi), h(a.hi, b.lo)}
+		case a.hi.Sign() <= 0:
+			return benc{l(a.lo, b.lo), h(a.hi, b.hi)}
 		}
-		if h := bHi(p).Quo(xy[0], xy[1]); h.Cmp(hi) > 0 {
-			hi = h
-		}
+		return benc{l(a.lo, b.lo), h(a.hi, b.lo)}
 	}
-	return benc{lo, hi}
+	// b < 0
+	switch {
+	case a.lo.Sign() >= 0:
+		return benc{l(a.hi, b.hi), h(a.lo, b.lo)}
+	case a.hi.Sign() <= 0:
+		return benc{l(a.hi, b.lo), h(a.lo, b.hi)}
+	}
+	return benc{l(a.hi, b.hi), h(a.lo, b.hi)}
 }
 
 // ldexp multiplies by 2^k (exact).

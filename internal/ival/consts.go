@@ -33,7 +33,7 @@ func atanInvEnc(n int64, p uint) benc {
 	pow := nn // n^(2k+1)
 	sum := bint(0, p)
 	for k := int64(0); ; k++ {
-		term := one.quo(pow.mul(bint(2*k+1, p), p), p)
+		term := one.quo(pow, p).divInt(2*k+1, p)
 		if term.hi.MantExp(nil) < -int(p)-2 {
 			// term encloses the first omitted term: remainder bound.
 			return sum.pad(term.hi, p)
@@ -52,7 +52,7 @@ func ln2Enc(p uint) benc {
 	one := bint(1, p)
 	sum := bint(0, p)
 	for k := int64(1); ; k++ {
-		term := one.quo(bint(k, p), p).ldexp(-int(k))
+		term := one.divInt(k, p).ldexp(-int(k))
 		sum = sum.add(term, p)
 		if k > int64(p)+2 {
 			// remainder 1/((k+1) 2^k) <= 2^-k

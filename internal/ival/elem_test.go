@@ -130,7 +130,7 @@ func twoUlps(x ival.Interval) bool {
 // bits, so only the final outward rounding widens them).
 func TestElementaryPointsContainReference(t *testing.T) {
 	rng := rand.New(rand.NewPCG(11, 12))
-	n := 3000
+	n := 1000
 	if testing.Short() {
 		n = 300
 	}
@@ -192,7 +192,7 @@ func TestElementaryHardPoints(t *testing.T) {
 // are drawn narrow (around turning points too) and wide.
 func TestElementaryIntervalsContainSubpoints(t *testing.T) {
 	rng := rand.New(rand.NewPCG(13, 14))
-	n := 1500
+	n := 600
 	if testing.Short() {
 		n = 150
 	}

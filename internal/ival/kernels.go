@@ -52,7 +52,7 @@ func expK(x *big.Float, p uint) benc {
 	// t >= |r'|^n/n!: the remainder after the terms of degree < n.
 	sum := bint(1, w)
 	for j := n - 1; j >= 1; j-- {
-		sum = bint(1, w).add(r.mul(sum, w).quo(bint(int64(j), w), w), w)
+		sum = bint(1, w).add(r.mul(sum, w).divInt(int64(j), w), w)
 	}
 	sum = sum.pad(bHi(w).Mul(t, big.NewFloat(2)), w)
 	for range s {
@@ -85,7 +85,7 @@ func logK(x *big.Float, p uint) benc {
 	t := z // z^(2k+1)
 	tol := tiny2(-int(w) - 4)
 	for k := int64(0); ; k++ {
-		term := t.quo(bint(2*k+1, w), w)
+		term := t.divInt(2*k+1, w)
 		if term.mag(w).Cmp(tol) < 0 {
 			sum = sum.pad(bHi(w).Mul(term.mag(w), big.NewFloat(3)), w)
 			break
@@ -146,8 +146,8 @@ func sinCosK(x *big.Float, p uint) (sin, cos benc) {
 	s, c := r, bint(1, w)
 	ts, tc := r, bint(1, w) // current terms r^(2j+1)/(2j+1)!, r^(2j)/(2j)!
 	for n := int64(1); ; n += 2 {
-		tc = tc.mul(r2, w).quo(bint(n*(n+1), w), w)     // degree n+1
-		ts = ts.mul(r2, w).quo(bint((n+1)*(n+2), w), w) // degree n+2
+		tc = tc.mul(r2, w).divInt(n*(n+1), w)     // degree n+1
+		ts = ts.mul(r2, w).divInt((n+1)*(n+2), w) // degree n+2
 		if tc.mag(w).Cmp(tol) < 0 && ts.mag(w).Cmp(tol) < 0 {
 			// tc, ts enclose the first omitted terms; |r|^d/d! <= their mags.
 			c = c.pad(tc.mag(w), w)
@@ -201,7 +201,7 @@ func atanK(x *big.Float, p uint) benc {
 	t := a
 	tol := bLo(w).Mul(tiny2(-int(w)-4), a.lo)
 	for j := int64(0); ; j++ {
-		term := t.quo(bint(2*j+1, w), w)
+		term := t.divInt(2*j+1, w)
 		if term.mag(w).Cmp(tol) < 0 {
 			sum = sum.pad(term.mag(w), w)
 			break
@@ -236,7 +236,7 @@ func sinhK(x *big.Float, p uint) benc {
 	sum, t := xx, xx
 	tol := bLo(w).Mul(tiny2(-int(w)-4), bLo(w).Abs(x))
 	for n := int64(1); ; n += 2 {
-		t = t.mul(x2, w).quo(bint((n+1)*(n+2), w), w)
+		t = t.mul(x2, w).divInt((n+1)*(n+2), w)
 		if t.mag(w).Cmp(tol) < 0 {
 			sum = sum.pad(bHi(w).Mul(t.mag(w), big.NewFloat(2)), w)
 			break
