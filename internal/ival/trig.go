@@ -16,10 +16,24 @@ const fullTurn = 7
 // integer); none inside is missing. x is bounded and narrower than
 // fullTurn, so there are at most 5 of them.
 func quarterRange(x Interval) []*big.Int {
-	qa, _ := halfPiQuotient(bigOf(x.Lo), kprec)
-	qb, _ := halfPiQuotient(bigOf(x.Hi), kprec)
-	first := ceilInt(qa.lo)
-	last := floorInt(qb.hi)
+	var first, last *big.Int
+	if math.Abs(x.Lo) <= fastLimit && math.Abs(x.Hi) <= fastLimit {
+		// float64 enclosures of x/(π/2) (|n| < 2^20, exact in float64);
+		// used only when neither straddles an integer, so that the answer
+		// is the same as with the exact quotients.
+		hp := fastConsts().halfPi
+		qa, qb := Div(Point(x.Lo), hp), Div(Point(x.Hi), hp)
+		if math.Ceil(qa.Lo) == math.Ceil(qa.Hi) && math.Floor(qb.Lo) == math.Floor(qb.Hi) {
+			first = big.NewInt(int64(math.Ceil(qa.Lo)))
+			last = big.NewInt(int64(math.Floor(qb.Hi)))
+		}
+	}
+	if first == nil {
+		qa, _ := halfPiQuotient(bigOf(x.Lo), kprec)
+		qb, _ := halfPiQuotient(bigOf(x.Hi), kprec)
+		first = ceilInt(qa.lo)
+		last = floorInt(qb.hi)
+	}
 	var ns []*big.Int
 	for n := first; n.Cmp(last) <= 0; n = new(big.Int).Add(n, big.NewInt(1)) {
 		ns = append(ns, n)
@@ -58,18 +72,17 @@ func sinCos(x Interval, cos bool) Interval {
 	if !x.IsBounded() || subDown(x.Hi, x.Lo) >= fullTurn {
 		return Interval{-1, 1}
 	}
-	pick := func(v float64) benc {
-		s, c := sinCosK(bigOf(v), kprec)
+	pick := func(v float64) Interval {
+		s, c := sinCosPoint(v)
 		if cos {
 			return c
 		}
 		return s
 	}
-	e := pick(x.Lo)
+	r := pick(x.Lo)
 	if x.Hi != x.Lo {
-		e = e.hull(pick(x.Hi))
+		r = Hull(r, pick(x.Hi))
 	}
-	r := e.toInterval()
 	if x.Hi != x.Lo {
 		for _, n := range quarterRange(x) {
 			m := mod4(n)
@@ -136,17 +149,32 @@ func Tan(x Interval) Interval {
 	if !okLo || !okHi {
 		return Entire()
 	}
-	return Interval{down64(lo.lo), up64(hi.hi)}
+	return Interval{lo.Lo, hi.Hi}
+}
+
+// sinCosPoint encloses sin v and cos v for a finite v: the fast path when
+// both are narrow enough, else the 128-bit kernel.
+func sinCosPoint(v float64) (sin, cos Interval) {
+	if s, c, ok := sinCosFast(v); ok && withinUlps(s, fastMaxUlps) && withinUlps(c, fastMaxUlps) {
+		return s, c
+	}
+	s, c := sinCosK(bigOf(v), kprec)
+	return s.toInterval(), c.toInterval()
 }
 
 // tanK encloses tan v; ok is false if the cosine enclosure holds 0.
-func tanK(v float64) (benc, bool) {
+func tanK(v float64) (Interval, bool) {
+	if s, c, ok := sinCosFast(v); ok && !c.Contains(0) {
+		if t := Div(s, c); withinUlps(t, fastMaxUlps) {
+			return t, true
+		}
+	}
 	w := uint(kprec + 32)
 	s, c := sinCosK(bigOf(v), w)
 	if c.containsZero() {
-		return benc{}, false
+		return Interval{}, false
 	}
-	return s.quo(c, w), true
+	return s.quo(c, w).toInterval(), true
 }
 
 // halfPiEnc returns an enclosure of π/2.
