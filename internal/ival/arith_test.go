@@ -269,3 +269,22 @@ func TestArithmeticDoesNotAllocate(t *testing.T) {
 		t.Errorf("basic arithmetic allocates %v times per run, want 0", allocs)
 	}
 }
+
+// TestFastPathsDoNotAllocate: the elementary functions on moderate
+// arguments take the float64 fast paths, which must not allocate (the
+// 128-bit kernels, for huge arguments and fall-backs, do).
+func TestFastPathsDoNotAllocate(t *testing.T) {
+	x, y := New(0.75, 0.7500001), New(1.5, 1.6)
+	fastConsts() // the one-time constant set-up allocates
+	var sink Interval
+	allocs := testing.AllocsPerRun(100, func() {
+		sink = Add(Sin(x), Cos(y))
+		sink = Add(sink, Add(Exp(x), Log(x)))
+		sink = Add(sink, Add(Atan(x), Atan2(x, y)))
+		sink = Add(sink, Add(Sinh(x), Cosh(x)))
+	})
+	if allocs != 0 {
+		t.Errorf("fast paths allocate %v times per run, want 0", allocs)
+	}
+	_ = sink
+}

@@ -22,10 +22,11 @@ var Kernel128 = map[string]func(float64) Interval{
 // Fast evaluates the float64 fast paths at a point; ok is false outside
 // their ranges.
 var Fast = map[string]func(float64) (Interval, bool){
-	"Exp": expFast,
-	"Log": logFast,
-	"Sin": func(v float64) (Interval, bool) { s, _, ok := sinCosFast(v); return s, ok },
-	"Cos": func(v float64) (Interval, bool) { _, c, ok := sinCosFast(v); return c, ok },
+	"Exp":  expFast,
+	"Log":  logFast,
+	"Atan": atanFast,
+	"Sin":  func(v float64) (Interval, bool) { s, _, ok := sinCosFast(v); return s, ok },
+	"Cos":  func(v float64) (Interval, bool) { _, c, ok := sinCosFast(v); return c, ok },
 	"Sinh": func(v float64) (Interval, bool) {
 		if v > -1 && v < 1 {
 			return sinhFastSeries(v), true

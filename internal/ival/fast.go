@@ -38,8 +38,9 @@ type splitConsts struct {
 	p1, p2   float64
 	p3       Interval
 	halfPi   Interval
-	invLn2   float64 // about 1/ln 2 (only picks k)
-	twoOverP float64 // about 2/π (only picks k)
+	invLn2   float64     // about 1/ln 2 (only picks k)
+	twoOverP float64     // about 2/π (only picks k)
+	atanC    [9]Interval // atan(i/8), i = 0..8
 }
 
 var (
@@ -67,6 +68,9 @@ func fastConsts() *splitConsts {
 		c.p3 = rest.sub(bf64(c.p2, p), p).toInterval()
 		c.invLn2 = 1 / c.l1
 		c.twoOverP = 1 / c.p1
+		for i := range c.atanC {
+			c.atanC[i] = atanK(bigOf(float64(i)/8), p).toInterval()
+		}
 	})
 	return &fastC
 }
@@ -191,4 +195,49 @@ func sinhFastSeries(x float64) Interval {
 		sp = Add(Point(1), Div(Mul(w, sp), Point(float64(2*j*(2*j+1)))))
 	}
 	return pad(Mul(Point(x), sp), mulUp(2, powFactBound(math.Abs(x), 2*trigFastN+1, 2*trigFastN+1)))
+}
+
+// atanFastN: with |t| <= 1/16 + tiny, w = t² < 0.0040, the alternating
+// tail after N = 8 terms is below w^8/17 < 2^-66 relative to t.
+const atanFastN = 8
+
+// atanSmallFast encloses atan a for 0 <= a <= 1:
+//
+//	atan a = atan c + atan t,  c = i/8 nearest a,  t = (a - c)/(1 + a c),
+//	|t| <= 1/16; atan t = t Q(t²), Q(w) = Σ_{j>=0} (-1)^j w^j/(2j+1), an
+//	alternating series with decreasing terms: the tail after N terms is at
+//	most w^N/(2N+1).
+func atanSmallFast(a float64) Interval {
+	c := fastConsts()
+	i := math.Round(a * 8)
+	ci := Point(i / 8)
+	t := Div(Sub(Point(a), ci), Add(Point(1), Mul(Point(a), ci)))
+	w := Sqr(t)
+	q := Div(Point(1), Point(2*atanFastN-1))
+	for j := atanFastN - 2; j >= 0; j-- {
+		q = Sub(Div(Point(1), Point(float64(2*j+1))), Mul(w, q))
+	}
+	q = pad(q, divUp(powFactBound(w.Hi, atanFastN, 1), 2*atanFastN+1))
+	return Add(c.atanC[int(i)], Mul(t, q))
+}
+
+// atanFast encloses atan x for finite x: atan(-x) = -atan x and, for
+// |x| > 1, atan|x| = π/2 - atan(1/|x|), with atan increasing applied to the
+// ends of the enclosure of 1/|x|.
+func atanFast(x float64) (Interval, bool) {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return Interval{}, false
+	}
+	a := math.Abs(x)
+	var r Interval
+	if a <= 1 {
+		r = atanSmallFast(a)
+	} else {
+		inv := Div(Point(1), Point(a)) // inside [0, 1]
+		r = Sub(fastConsts().halfPi, Interval{atanSmallFast(inv.Lo).Lo, atanSmallFast(inv.Hi).Hi})
+	}
+	if x < 0 {
+		r = Neg(r)
+	}
+	return r, true
 }

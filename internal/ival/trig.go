@@ -9,14 +9,14 @@ import (
 // which the range is all of [-1, 1] without further work.
 const fullTurn = 7
 
-// quarterRange returns the integers n for which x.Lo <= n π/2 <= x.Hi may
+// quarterRange describes the integers n for which x.Lo <= n π/2 <= x.Hi may
 // hold: every n from the ceiling of the lower end of the enclosure of
 // x.Lo/(π/2) to the floor of the upper end of the enclosure of x.Hi/(π/2).
-// Some returned n may lie just outside x (when an enclosure straddles an
-// integer); none inside is missing. x is bounded and narrower than
-// fullTurn, so there are at most 5 of them.
-func quarterRange(x Interval) []*big.Int {
-	var first, last *big.Int
+// Some may lie just outside x (when an enclosure straddles an integer);
+// none inside is missing. It returns the first such n modulo 4 and their
+// count (0 if none). x is bounded and narrower than fullTurn, so the count
+// is at most 6.
+func quarterRange(x Interval) (first4 int, count int) {
 	if math.Abs(x.Lo) <= fastLimit && math.Abs(x.Hi) <= fastLimit {
 		// float64 enclosures of x/(π/2) (|n| < 2^20, exact in float64);
 		// used only when neither straddles an integer, so that the answer
@@ -24,21 +24,15 @@ func quarterRange(x Interval) []*big.Int {
 		hp := fastConsts().halfPi
 		qa, qb := Div(Point(x.Lo), hp), Div(Point(x.Hi), hp)
 		if math.Ceil(qa.Lo) == math.Ceil(qa.Hi) && math.Floor(qb.Lo) == math.Floor(qb.Hi) {
-			first = big.NewInt(int64(math.Ceil(qa.Lo)))
-			last = big.NewInt(int64(math.Floor(qb.Hi)))
+			first, last := int64(math.Ceil(qa.Lo)), int64(math.Floor(qb.Hi))
+			return int(first & 3), int(max(last-first+1, 0))
 		}
 	}
-	if first == nil {
-		qa, _ := halfPiQuotient(bigOf(x.Lo), kprec)
-		qb, _ := halfPiQuotient(bigOf(x.Hi), kprec)
-		first = ceilInt(qa.lo)
-		last = floorInt(qb.hi)
-	}
-	var ns []*big.Int
-	for n := first; n.Cmp(last) <= 0; n = new(big.Int).Add(n, big.NewInt(1)) {
-		ns = append(ns, n)
-	}
-	return ns
+	qa, _ := halfPiQuotient(bigOf(x.Lo), kprec)
+	qb, _ := halfPiQuotient(bigOf(x.Hi), kprec)
+	first, last := ceilInt(qa.lo), floorInt(qb.hi)
+	n := new(big.Int).Sub(last, first).Int64() + 1
+	return int(mod4(first)), int(max(n, 0))
 }
 
 // floorInt returns floor(v) and ceilInt ceil(v) as big.Int.
@@ -84,8 +78,9 @@ func sinCos(x Interval, cos bool) Interval {
 		r = Hull(r, pick(x.Hi))
 	}
 	if x.Hi != x.Lo {
-		for _, n := range quarterRange(x) {
-			m := mod4(n)
+		first4, count := quarterRange(x)
+		for i := range count {
+			m := (first4 + i) % 4
 			if cos {
 				m = (m + 1) % 4 // cos a = sin(a + π/2): shift the quadrant
 			}
@@ -139,10 +134,8 @@ func Tan(x Interval) Interval {
 	if !x.IsBounded() || subDown(x.Hi, x.Lo) >= 4 {
 		return Entire()
 	}
-	for _, n := range quarterRange(x) {
-		if n.Bit(0) == 1 {
-			return Entire()
-		}
+	if first4, count := quarterRange(x); count >= 2 || count == 1 && first4%2 == 1 {
+		return Entire() // an odd n, a pole, may be inside
 	}
 	lo, okLo := tanK(x.Lo)
 	hi, okHi := tanK(x.Hi)
@@ -177,9 +170,6 @@ func tanK(v float64) (Interval, bool) {
 	return s.quo(c, w).toInterval(), true
 }
 
-// halfPiEnc returns an enclosure of π/2.
-func halfPiEnc(p uint) benc { return piEnc(p).ldexp(-1) }
-
 // Atan returns an enclosure of {atan a : a in x} (increasing, inside
 // (-π/2, π/2)).
 //
@@ -195,39 +185,60 @@ func Atan(x Interval) Interval {
 	if x.IsEmpty() {
 		return Empty()
 	}
-	hp := halfPiEnc(kprec)
-	lo, hi := down64(hp.neg().lo), up64(hp.hi)
+	hp := fastConsts().halfPi
+	lo, hi := -hp.Hi, hp.Hi
 	if !math.IsInf(x.Lo, 0) {
-		lo = down64(atanK(bigOf(x.Lo), kprec).lo)
+		lo = atanPoint(x.Lo).Lo
 	}
 	if !math.IsInf(x.Hi, 0) {
-		hi = up64(atanK(bigOf(x.Hi), kprec).hi)
+		hi = atanPoint(x.Hi).Hi
 	}
 	return Interval{lo, hi}
 }
 
-// atan2K encloses the angle of the point (x, y) != (0, 0) in (-π, π]:
+// atanPoint encloses atan v for a finite v: the fast path (fast.go) when
+// it is narrow enough, else the 128-bit kernel.
+func atanPoint(v float64) Interval {
+	if r, ok := atanFast(v); ok && withinUlps(r, fastMaxUlps) {
+		return r
+	}
+	return atanK(bigOf(v), kprec).toInterval()
+}
+
+// atan2Point encloses the angle of the point (x, y) != (0, 0) in (-π, π]:
 //
 //	x > 0: atan(y/x);  x < 0: atan(y/x) + π (y >= 0) or - π (y < 0);
 //	x = 0: π/2 or -π/2 by the sign of y.
-func atan2K(y, x float64) benc {
-	w := uint(kprec + 32)
-	hp := halfPiEnc(w)
+//
+// atan is increasing, so it is applied to the ends of the enclosure of y/x
+// (an end that overflows to ±Inf maps to ±π/2).
+func atan2Point(y, x float64) Interval {
+	hp := fastConsts().halfPi
 	if x == 0 {
 		if y > 0 {
 			return hp
 		}
-		return hp.neg()
+		return Neg(hp)
 	}
-	q := bf64(y, w).quo(bf64(x, w), w)
-	a := benc{atanK(q.lo, w).lo, atanK(q.hi, w).hi} // atan is increasing
+	end := func(v float64) Interval {
+		switch {
+		case math.IsInf(v, 1):
+			return hp
+		case math.IsInf(v, -1):
+			return Neg(hp)
+		}
+		return atanPoint(v)
+	}
+	q := Div(Point(y), Point(x))
+	a := Interval{end(q.Lo).Lo, end(q.Hi).Hi}
+	pi := Scale(hp, 2)
 	switch {
 	case x > 0:
 		return a
 	case y >= 0:
-		return a.add(hp.ldexp(1), w)
+		return Add(a, pi)
 	}
-	return a.sub(hp.ldexp(1), w)
+	return Sub(a, pi)
 }
 
 // Atan2 returns an enclosure of the angles {atan2(b, a) : b in y, a in x}
@@ -236,7 +247,8 @@ func atan2K(y, x float64) benc {
 // Where the box holds no point of the cut (the half-line b = 0, a < 0 is
 // not crossed: y >= 0 or y < 0 there) and not the origin, the angle is
 // continuous on the box and the box is convex, so its extremes are at the
-// corners, each enclosed by the atan kernel plus an enclosure of π.
+// corners, each enclosed by atan (fast path or kernel) of the enclosure of
+// b/a plus an enclosure of π.
 //
 // Special cases:
 //
@@ -248,8 +260,8 @@ func Atan2(y, x Interval) Interval {
 	if x.IsEmpty() || y.IsEmpty() {
 		return Empty()
 	}
-	pi := piEnc(kprec)
-	whole := Interval{down64(pi.neg().lo), up64(pi.hi)}
+	pi := Scale(fastConsts().halfPi, 2)
+	whole := Interval{-pi.Hi, pi.Hi}
 	switch {
 	case !x.IsBounded() || !y.IsBounded():
 		return whole
@@ -258,10 +270,9 @@ func Atan2(y, x Interval) Interval {
 	case x.Lo < 0 && y.Lo < 0 && y.Hi >= 0:
 		return whole
 	}
-	e := atan2K(y.Lo, x.Lo)
+	r := atan2Point(y.Lo, x.Lo)
 	for _, c := range [3][2]float64{{y.Lo, x.Hi}, {y.Hi, x.Lo}, {y.Hi, x.Hi}} {
-		e = e.hull(atan2K(c[0], c[1]))
+		r = Hull(r, atan2Point(c[0], c[1]))
 	}
-	r := e.toInterval()
 	return Interval{math.Max(r.Lo, whole.Lo), math.Min(r.Hi, whole.Hi)}
 }
