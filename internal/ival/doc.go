@@ -81,23 +81,24 @@
 // the jump ([-1, 1] and [0, 1]), the set-valued reading under which an
 // enclosure of a discontinuous right-hand side stays valid.
 //
-// Exp, Log, Sin, Cos, Sinh, Cosh and Tanh first try a fast path (fast.go):
-// the same reductions and series in this package's own float64 interval
-// arithmetic, with ln 2 and π/2 split into exact 32-bit leading parts and
-// an enclosed tail, and the same truncation bounds. Its result is an
-// enclosure by the inclusion property of the basic operations; it is kept
-// when at most 8 float64 steps wide, and otherwise (deep cancellation in
-// the reduction, huge arguments, results near underflow) the 128-bit
-// kernel decides, giving at most 2 steps.
+// Exp, Log, Sin, Cos, Atan, Atan2, Sinh, Cosh and Tanh first try a fast
+// path (fast.go): reductions and series in this package's own float64
+// interval arithmetic, with ln 2 and π/2 split into exact 32-bit leading
+// parts and an enclosed tail, a table of atan(i/8) enclosed once by the
+// 128-bit kernel, and the same kinds of truncation bounds. A fast result is
+// an enclosure by the inclusion property of the basic operations; it is
+// kept when at most 8 float64 steps wide, and otherwise (deep cancellation
+// in the reduction, huge arguments, results near underflow) the 128-bit
+// kernel decides, giving at most 2 steps. Tan and Pow use the kernels.
 //
 // # Cost
 //
 // The basic operations (Add through Sqrt, PowInt, Hull, Width, Mid, Rad)
 // allocate nothing and cost a few nanoseconds each. The fast paths allocate
-// nothing and take a few microseconds; the 128-bit kernels (Atan, Tan,
-// Atan2, Pow, huge arguments, fall-backs) allocate math/big temporaries and
-// take about 0.1 to 0.3 ms per call (BenchmarkElementary). An interval
-// Taylor method calls them once per function node and step, for the zeroth
+// nothing and take one to a few microseconds; the 128-bit kernels (Tan,
+// Pow, huge arguments, fall-backs) allocate math/big temporaries and take
+// about 0.1 to 0.3 ms per call (BenchmarkElementary). An interval Taylor
+// method calls them once per function node and step, for the zeroth
 // coefficient.
 //
 // # Caution

@@ -210,14 +210,15 @@ func tanhDown(v float64) float64 {
 	return math.Max(-1, tanhPoint(v).Lo)
 }
 
-// tanhPoint encloses tanh v for |v| < tanhCut: sinh/cosh for |v| < 1 and
-// ±(1 - 2/(e^(2|v|) + 1)) for larger |v| (the small quotient's rounding
+// tanhPoint encloses tanh v for |v| < tanhCut: M/(M+2) with M = e^(2|v|) - 1
+// from a cancellation-free series for |v| < 1, and ±(1 - 2/(e^(2|v|) + 1))
+// for larger |v| (the small quotient's rounding
 // barely shows next to 1), from the fast paths when narrow enough, else
 // the 128-bit kernel.
 func tanhPoint(v float64) Interval {
 	r := Empty()
 	if math.Abs(v) < 1 {
-		r = Div(sinhFastSeries(v), coshPoint(v))
+		r = tanhSmallFast(v)
 	} else if e, ok := expFast(2 * math.Abs(v)); ok {
 		r = Sub(Point(1), Div(Point(2), Add(e, Point(1))))
 		if v < 0 {

@@ -25,8 +25,14 @@ var Fast = map[string]func(float64) (Interval, bool){
 	"Exp":  expFast,
 	"Log":  logFast,
 	"Atan": atanFast,
-	"Sin":  func(v float64) (Interval, bool) { s, _, ok := sinCosFast(v); return s, ok },
-	"Cos":  func(v float64) (Interval, bool) { _, c, ok := sinCosFast(v); return c, ok },
+	"Tanh": func(v float64) (Interval, bool) {
+		if v > -1 && v < 1 {
+			return tanhSmallFast(v), true
+		}
+		return Interval{}, false
+	},
+	"Sin": func(v float64) (Interval, bool) { s, _, ok := sinCosFast(v); return s, ok },
+	"Cos": func(v float64) (Interval, bool) { _, c, ok := sinCosFast(v); return c, ok },
 	"Sinh": func(v float64) (Interval, bool) {
 		if v > -1 && v < 1 {
 			return sinhFastSeries(v), true

@@ -241,3 +241,34 @@ func atanFast(x float64) (Interval, bool) {
 	}
 	return r, true
 }
+
+// expm1FastN: for |u| <= 2 the tail of Σ_{n>=N} u^n/(n+1)! after N = 26
+// terms is below 2·2^26/27! < 2^-66, against a sum of at least 0.43.
+const expm1FastN = 26
+
+// expm1Fast encloses e^u - 1 for |u| <= 2 without the cancellation of
+// e^u - 1: u P(u), P(u) = Σ_{n>=0} u^n/(n+1)! = 1 + u/2 (1 + u/3 (1 + ...)),
+// whose tail after N terms is at most 2|u|^N/(N+1)! (each further term
+// shrinks by |u|/(n+2) <= 1/2).
+func expm1Fast(u float64) Interval {
+	ui := Point(u)
+	p := Point(1)
+	for n := expm1FastN; n >= 2; n-- {
+		p = Add(Point(1), Div(Mul(ui, p), Point(float64(n))))
+	}
+	p = pad(p, mulUp(2, powFactBound(math.Abs(u), expm1FastN, expm1FastN+1)))
+	return Mul(ui, p)
+}
+
+// tanhSmallFast encloses tanh v for |v| < 1: with M = e^(2|v|) - 1 >= 0,
+// tanh|v| = M/(M + 2), increasing in M, so it is evaluated at the two ends
+// of the enclosure of M; tanh is odd.
+func tanhSmallFast(v float64) Interval {
+	m := expm1Fast(2 * math.Abs(v))
+	f := func(e float64) Interval { return Div(Point(e), Add(Point(e), Point(2))) }
+	r := Interval{f(m.Lo).Lo, f(m.Hi).Hi}
+	if v < 0 {
+		r = Neg(r)
+	}
+	return r
+}
