@@ -40,10 +40,11 @@ func expUp(v *big.Float) float64 {
 
 // Exp returns an enclosure of {e^a : a in x}.
 //
-// It rests on the exp kernel: argument reduction by ln 2 (enclosed by a
-// series with a remainder bound), a Taylor series with its Lagrange
-// remainder, ten squarings, all in 128-bit interval arithmetic with
-// directed rounding, then outward rounding to float64.
+// It rests on argument reduction by ln 2 and a Taylor series with its
+// Lagrange remainder: in float64 interval arithmetic with ln 2 split into
+// an exact part and an enclosed tail (fast.go), or, when that result is
+// more than 8 steps wide or |a| > 700, in 128-bit interval arithmetic with
+// ten squarings (the exp kernel), then rounded outward to float64.
 //
 // Special cases:
 //
@@ -79,9 +80,10 @@ func expPoint(v float64) Interval {
 
 // Log returns an enclosure of {log a : a in x} (natural logarithm).
 //
-// It rests on the log kernel: x = m 2^e, log m = 2 atanh((m-1)/(m+1)) by
-// its series with a geometric remainder bound, plus e ln 2, in 128-bit
-// interval arithmetic.
+// It rests on x = m 2^e, log m = 2 atanh((m-1)/(m+1)) by its series with
+// a geometric remainder bound, plus e ln 2: in float64 interval arithmetic
+// (fast.go), or in 128-bit interval arithmetic when that is more than 8
+// steps wide.
 //
 // Special cases:
 //
@@ -142,9 +144,10 @@ func sinhUp(v float64) float64 { return -sinhDown(-v) }
 
 // Sinh returns an enclosure of {sinh a : a in x} (increasing).
 //
-// It rests on the sinh kernel: for |a| < 1 the odd Taylor series with a
-// remainder bound of twice the first omitted term, otherwise (e^a - e^-a)/2
-// from the exp kernel, in 128-bit interval arithmetic.
+// It rests on the odd Taylor series with a remainder bound of twice the
+// first omitted term for |a| < 1, and on (e^a - e^-a)/2 from Exp's
+// enclosures otherwise: in float64 interval arithmetic (fast.go), or at 128
+// bits when that is more than 8 steps wide or |a| > 700.
 func Sinh(x Interval) Interval {
 	if x.IsEmpty() {
 		return Empty()
@@ -181,8 +184,9 @@ func coshUp(v float64) float64 {
 // Cosh returns an enclosure of {cosh a : a in x}: decreasing below 0,
 // increasing above, with minimum cosh 0 = 1.
 //
-// It rests on the exp kernel: cosh a = (e^a + e^-a)/2 in 128-bit interval
-// arithmetic.
+// It rests on cosh a = (e^a + e^-a)/2 from Exp's enclosures, in float64
+// interval arithmetic (fast.go) or at 128 bits when that is more than 8
+// steps wide or |a| > 700.
 func Cosh(x Interval) Interval {
 	switch {
 	case x.IsEmpty():
@@ -236,8 +240,10 @@ func tanhUp(v float64) float64 { return -tanhDown(-v) }
 // Tanh returns an enclosure of {tanh a : a in x} (increasing, inside
 // [-1, 1]).
 //
-// It rests on the kernels: sinh/cosh for |a| < 1, (e^(2a)-1)/(e^(2a)+1)
-// for 1 <= |a| < 40, and the bound 1 - 2^-53 < tanh|a| < 1 beyond.
+// It rests on M/(M+2) with M = e^(2|a|) - 1 from a cancellation-free
+// series for |a| < 1, on 1 - 2/(e^(2|a|) + 1) for 1 <= |a| < 40 (float64
+// interval arithmetic, or the 128-bit kernel when more than 8 steps wide),
+// and on the bound 1 - 2^-53 < tanh|a| < 1 beyond.
 func Tanh(x Interval) Interval {
 	if x.IsEmpty() {
 		return Empty()

@@ -97,11 +97,14 @@ func sinCos(x Interval, cos bool) Interval {
 
 // Sin returns an enclosure of {sin a : a in x}.
 //
-// It rests on the sin/cos kernel: reduction x = k π/2 + r with π enclosed
-// to 192 bits plus the exponent of x (so r keeps its accuracy near the
-// zeros and at huge x), Taylor series with Lagrange remainder in interval
-// arithmetic; the turning points n π/2 inside x are found from enclosures
-// of x/(π/2), and an unsure one is included (wider, never wrong).
+// It rests on the reduction x = k π/2 + r and Taylor series with Lagrange
+// remainder: for |x| <= 2^20 in float64 interval arithmetic with π/2 split
+// into two exact parts and an enclosed tail (fast.go); otherwise, or when
+// that is more than 8 steps wide, in 128-bit interval arithmetic with π
+// enclosed to 192 bits plus the exponent of x (so r keeps its accuracy
+// near the zeros and at huge x). The turning points n π/2 inside x are
+// found from enclosures of x/(π/2), and an unsure one is included (wider,
+// never wrong).
 //
 // Special cases:
 //
@@ -173,10 +176,12 @@ func tanK(v float64) (Interval, bool) {
 // Atan returns an enclosure of {atan a : a in x} (increasing, inside
 // (-π/2, π/2)).
 //
-// It rests on the atan kernel: atan a = π/2 - atan(1/a) for a > 1, three
-// halvings a/(1+sqrt(1+a²)) with verified square roots, and the
-// alternating Taylor series, whose remainder is at most the first omitted
-// term, in 128-bit interval arithmetic.
+// It rests on atan a = π/2 - atan(1/a) for a > 1 and the alternating
+// Taylor series, whose remainder is at most the first omitted term: after
+// a reduction by a table of atan(i/8) in float64 interval arithmetic
+// (fast.go), or, when that is more than 8 steps wide, after three halvings
+// a/(1+sqrt(1+a²)) with verified square roots in 128-bit interval
+// arithmetic.
 //
 // Special cases:
 //
