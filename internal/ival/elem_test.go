@@ -194,6 +194,42 @@ func TestElementaryHardPoints(t *testing.T) {
 	}
 }
 
+// TestNearMultiplesOfHalfPi checks sin, cos and tan at the float64 values
+// nearest k π/2 (π from internal/expr's 300-bit BigPi) and their
+// neighbours, for k up to 2^12 and at k = 2^20 ± j and 2^40 + j, where the
+// reduction cancels most bits: the enclosure must hold the reference and,
+// for sin and cos, stay within maxUlps steps (relative accuracy near the
+// zeros).
+func TestNearMultiplesOfHalfPi(t *testing.T) {
+	halfPi := expr.BigPi(refPrec)
+	halfPi.SetMantExp(halfPi, -1)
+	var ks []int64
+	for k := int64(1); k <= 1<<12; k++ {
+		ks = append(ks, k)
+	}
+	for j := int64(-3); j <= 3; j++ {
+		ks = append(ks, 1<<20+j, 1<<40+j)
+	}
+	for _, k := range ks {
+		v, _ := new(big.Float).SetPrec(refPrec).Mul(halfPi, new(big.Float).SetInt64(k)).Float64()
+		for _, x := range []float64{v, math.Nextafter(v, 0), math.Nextafter(v, math.Inf(1)), -v} {
+			for _, f := range fns1[2:5] { // Sin, Cos, Tan
+				lo, hi, ok := reference(f.ref, x)
+				if !ok {
+					continue
+				}
+				got := f.f(ival.Point(x))
+				if !bigIn(got, lo, hi) {
+					t.Fatalf("%s(%v) (k = %d) = %v misses %s", f.name, x, k, got, lo.Text('g', 25))
+				}
+				if f.name != "Tan" && !narrow(got) {
+					t.Errorf("%s(%v) (k = %d) = %v wider than %d steps", f.name, x, k, got, maxUlps)
+				}
+			}
+		}
+	}
+}
+
 // TestElementaryIntervalsContainSubpoints: for random intervals x and random
 // points a in x (ends included), the reference f(a) lies in f(x). Intervals
 // are drawn narrow (around turning points too) and wide.
