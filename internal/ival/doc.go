@@ -89,14 +89,15 @@
 // an enclosure by the inclusion property of the basic operations; it is
 // kept when at most 8 float64 steps wide, and otherwise (deep cancellation
 // in the reduction, huge arguments, results near underflow) the 128-bit
-// kernel decides, giving at most 2 steps. Tan and Pow use the kernels.
+// kernel decides, giving at most 2 steps. Tan divides the fast sin and cos
+// and keeps results up to 16 steps wide; Pow uses the kernels.
 //
 // # Cost
 //
 // The basic operations (Add through Sqrt, PowInt, Hull, Width, Mid, Rad)
 // allocate nothing and cost a few nanoseconds each. The fast paths allocate
-// nothing and take one to a few microseconds; the 128-bit kernels (Tan,
-// Pow, huge arguments, fall-backs) allocate math/big temporaries and take
+// nothing and take one to a few microseconds; the 128-bit kernels (Pow,
+// huge arguments, fall-backs) allocate math/big temporaries and take
 // about 0.1 to 0.3 ms per call (BenchmarkElementary). An interval Taylor
 // method calls them once per function node and step, for the zeroth
 // coefficient.

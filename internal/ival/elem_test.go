@@ -122,10 +122,13 @@ func bigIn(x ival.Interval, lo, hi *big.Float) bool {
 // up to eight steps wide (fast.go), the 128-bit kernels give at most two.
 const maxUlps = 8
 
-// narrow reports whether x is at most maxUlps float64 steps wide.
-func narrow(x ival.Interval) bool {
+// narrow reports whether x is at most maxUlps float64 steps wide (Tan,
+// a quotient of two such enclosures, is allowed twice as many).
+func narrow(x ival.Interval) bool { return narrowN(x, maxUlps) }
+
+func narrowN(x ival.Interval, n int) bool {
 	v := x.Lo
-	for range maxUlps {
+	for range n {
 		v = math.Nextafter(v, math.Inf(1))
 	}
 	return x.Hi <= v
@@ -152,7 +155,7 @@ func TestElementaryPointsContainReference(t *testing.T) {
 			if !bigIn(got, lo, hi) {
 				t.Fatalf("%s(%v) = %v misses the reference %s", f.name, x, got, lo.Text('g', 30))
 			}
-			if v, _ := lo.Float64(); got.IsBounded() && math.Abs(v) > 0x1p-1020 && !narrow(got) {
+			if v, _ := lo.Float64(); got.IsBounded() && math.Abs(v) > 0x1p-1020 && !narrow(got) && !(f.name == "Tan" && narrowN(got, 2*maxUlps)) {
 				t.Errorf("%s(%v) = %v is wider than %d ulps", f.name, x, got, maxUlps)
 			}
 		}
