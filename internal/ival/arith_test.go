@@ -146,6 +146,12 @@ func TestOverflowUnderflow(t *testing.T) {
 		{"-max-max", Sub(Point(-math.MaxFloat64), Point(math.MaxFloat64)), -inf, -math.MaxFloat64},
 		{"max*2", Mul(Point(math.MaxFloat64), Point(2)), math.MaxFloat64, inf},
 		{"max/0.5", Div(Point(math.MaxFloat64), Point(-0.5)), -inf, -math.MaxFloat64},
+		// TwoSum's step s - a overflows here, so the side of the rounding is
+		// unknown and both ends move one step from s = -1.5979494532109474e308
+		// (found by FuzzDirectedRounding; the exact -1.5979494532109472850e308
+		// is inside).
+		{"sub near max", Sub(Point(1.9974368165136842e+307), Point(math.MaxFloat64)),
+			math.Nextafter(-1.5979494532109474e+308, -inf), math.Nextafter(-1.5979494532109474e+308, 0)},
 		{"tiny*0.25", Mul(Point(tiny), Point(0.25)), 0, tiny},
 		{"-tiny*0.25", Mul(Point(-tiny), Point(0.25)), -tiny, 0},
 		{"tiny/4", Div(Point(tiny), Point(4)), 0, tiny},

@@ -37,8 +37,10 @@
 // Each end of a result is the rounded result r, moved one ulp outward unless
 // an exact residual proves r is already on the right side:
 //
-//   - a+b: TwoSum's error e = (a+b) - r is exact for finite a, b, r (Knuth);
-//     e < 0 moves the lower end, e > 0 the upper end, e = 0 keeps r exact.
+//   - a+b: TwoSum's error e = (a+b) - r is exact when none of its steps
+//     overflows (Knuth); e < 0 moves the lower end, e > 0 the upper end,
+//     e = 0 keeps r exact. An overflowing step (possible within an ulp of
+//     ±MaxFloat64) leaves e infinite or NaN, and then both ends move.
 //   - a*b: e = math.FMA(a, b, -r) = RN(a*b - r) has, by fact 2, the sign of
 //     a*b - r when nonzero. When it is zero, a*b = r is proven only where
 //     a*b - r is itself a float64: with a = A*2^i, b = B*2^j for odd
