@@ -3,6 +3,7 @@ package ival
 import (
 	"math"
 	"math/big"
+	"math/rand/v2"
 	"testing"
 )
 
@@ -68,4 +69,31 @@ func FuzzDirectedRounding(f *testing.F) {
 		}
 		checkDirected(t, a, b)
 	})
+}
+
+// TestDirectedRoundingExtremes runs checkDirected on pairs drawn where the
+// error-free transformations are fragile: both operands within a factor
+// 2^8 of MaxFloat64 (TwoSum's intermediate steps can overflow), both in or
+// near the subnormal range (residuals underflow), and one of each.
+func TestDirectedRoundingExtremes(t *testing.T) {
+	rng := rand.New(rand.NewPCG(25, 26))
+	huge := func() float64 {
+		if rng.IntN(4) == 0 { // the last few float64 values below overflow
+			v := math.MaxFloat64
+			for range rng.IntN(4) {
+				v = math.Nextafter(v, 0)
+			}
+			return v * sign(rng)
+		}
+		return math.MaxFloat64 * math.Ldexp(rng.Float64(), -rng.IntN(8)) * sign(rng)
+	}
+	small := func() float64 {
+		return math.Ldexp(rng.Float64()+0.5, -1020-rng.IntN(60)) * sign(rng)
+	}
+	gens := [][2]func() float64{{huge, huge}, {small, small}, {huge, small}, {small, huge}}
+	for _, g := range gens {
+		for range 20000 {
+			checkDirected(t, g[0](), g[1]())
+		}
+	}
 }
