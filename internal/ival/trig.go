@@ -250,7 +250,9 @@ func atan2Point(y, x float64) Interval {
 }
 
 // Atan2 returns an enclosure of the angles {atan2(b, a) : b in y, a in x}
-// of the points (a, b) of the box x × y, in [-π, π].
+// of the points (a, b) of the box x × y, in [-π, π]. The ends are real
+// numbers, so -0 is 0: the angle of (a, 0) with a < 0 is π (where the
+// float64 function gives -π for b = -0).
 //
 // Where the box holds no point of the cut (the half-line b = 0, a < 0 is
 // not crossed: y >= 0 or y < 0 there) and not the origin, the angle is
