@@ -149,8 +149,17 @@ func (nw *NPYWriter) Close() error {
 	if err == nil {
 		_, err = nw.seek.Seek(nw.start, io.SeekStart)
 	}
+	head := npyHeaderBytes(nw.cols, nw.rows)
 	if err == nil {
-		_, err = nw.seek.Write(npyHeaderBytes(nw.cols, nw.rows))
+		_, err = nw.seek.Write(head)
+	}
+	if err == nil {
+		// A file opened for appending writes at its end whatever the
+		// position: the header would land after the data.
+		var at int64
+		if at, err = nw.seek.Seek(0, io.SeekCurrent); err == nil && at != nw.start+int64(len(head)) {
+			err = fmt.Errorf("the header went to byte %d, not %d (is the output opened for appending?)", at-int64(len(head)), nw.start)
+		}
 	}
 	if err == nil {
 		_, err = nw.seek.Seek(end, io.SeekStart)

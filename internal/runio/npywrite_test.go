@@ -130,6 +130,18 @@ type failWriter struct{}
 
 func (failWriter) Write([]byte) (int, error) { return 0, errFail }
 
+func TestNPYWriterAppendMode(t *testing.T) {
+	// A file opened for appending cannot be patched: Close says so.
+	p := filepath.Join(t.TempDir(), "a.npy")
+	f, err := os.OpenFile(p, os.O_CREATE|os.O_WRONLY|os.O_APPEND, 0o600)
+	require.NoError(t, err)
+	defer f.Close()
+	nw, err := NewNPYWriter(f, 2, -1)
+	require.NoError(t, err)
+	require.NoError(t, nw.Row([]float64{1, 2}))
+	assert.ErrorContains(t, nw.Close(), "appending")
+}
+
 func TestNPYWriterEmpty(t *testing.T) {
 	f, err := os.Create(filepath.Join(t.TempDir(), "e.npy"))
 	require.NoError(t, err)
