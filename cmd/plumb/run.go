@@ -32,6 +32,10 @@ type call struct {
 	// progress reports whether a progress bar may be drawn on stderr: it is
 	// a terminal and --quiet is not set.
 	progress bool
+
+	// rawStdout is the stdout under the buffer, for a result that seeks
+	// back into a file (the row count of a .npy header).
+	rawStdout io.Writer
 }
 
 // usageError is bad usage or bad input: exit status 2.
@@ -114,7 +118,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 	}
 	bw := bufio.NewWriter(stdout)
 	cl := &call{
-		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, stderr: stderr,
+		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, rawStdout: stdout, stderr: stderr,
 		progress: !sh.quiet && isTerminal(stderr),
 	}
 	err = work(ctx, cl)
