@@ -32,7 +32,7 @@ func (r *solveRun) newSink(cl *call, rows int) (solveSink, error) {
 	w := cl.stdout
 	switch cl.sh.format {
 	case "csv":
-		return &csvSink{r: r, w: csv.NewWriter(w), crossings: r.f.rows == "crossings"}, nil
+		return &csvSink{r: r, out: w, w: csv.NewWriter(w), crossings: r.f.rows == "crossings"}, nil
 	case "json":
 		return &jsonSink{r: r, w: w}, nil
 	case "jsonl":
@@ -44,13 +44,18 @@ func (r *solveRun) newSink(cl *call, rows int) (solveSink, error) {
 }
 
 // csvSink writes --format csv: the samples as they come, or with --rows
-// crossings only the crossings at the end.
+// crossings only the crossings at the end. The header and the crossings
+// go through encoding/csv (a name may need quotes); a sample's numbers
+// never do, so its row is formatted in place, the same bytes without an
+// allocation per value.
 type csvSink struct {
 	r         *solveRun
+	out       io.Writer
 	w         *csv.Writer
 	crossings bool
 	started   bool
 	rec       []string
+	buf       []byte
 	err       error
 }
 
@@ -60,7 +65,11 @@ func (s *csvSink) start() error {
 	if s.crossings {
 		s.rec = append(s.rec, "crossing", "sense")
 	}
-	return s.w.Write(s.rec)
+	if err := s.w.Write(s.rec); err != nil {
+		return err
+	}
+	s.w.Flush()
+	return s.w.Error()
 }
 
 func (s *csvSink) sample(t float64, y []float64) error {
@@ -72,11 +81,13 @@ func (s *csvSink) sample(t float64, y []float64) error {
 			return s.err
 		}
 	}
-	s.rec = append(s.rec[:0], formatFloat(t))
+	b := strconv.AppendFloat(s.buf[:0], t, 'g', -1, 64)
 	for _, v := range y {
-		s.rec = append(s.rec, formatFloat(v))
+		b = append(b, ',')
+		b = strconv.AppendFloat(b, v, 'g', -1, 64)
 	}
-	if err := s.w.Write(s.rec); err != nil {
+	s.buf = append(b, '\n')
+	if _, err := s.out.Write(s.buf); err != nil {
 		s.err = err
 		return err
 	}

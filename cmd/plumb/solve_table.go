@@ -13,7 +13,7 @@ import (
 // states fit many times over) is aligned as one block, exactly as
 // text/tabwriter aligns it; a longer one is written block by block, the
 // columns widening (never narrowing) where a later block needs it.
-const tableBlockCells = 1 << 17
+var tableBlockCells = 1 << 17 // a variable so that tests can make blocks small
 
 // tableSink writes the samples of --format table as aligned columns,
 // block by block, and then the crossings and the run's summary.

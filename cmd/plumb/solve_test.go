@@ -25,6 +25,7 @@ func TestSolveGolden(t *testing.T) {
 		{"table", "solve_lorenz.txt"},
 		{"csv", "solve_lorenz.csv"},
 		{"json", "solve_lorenz.json"},
+		{"jsonl", "solve_lorenz.jsonl"},
 	} {
 		t.Run(tt.format, func(t *testing.T) {
 			r := plumbRun(t, append(goldenSolve, "--format", tt.format)...)
