@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"strconv"
 
 	"github.com/plumbdyn/plumb/internal/runio"
@@ -343,14 +344,15 @@ type npySink struct {
 }
 
 func newNPYSink(cl *call, d, rows int) (*npySink, error) {
-	if isTerminal(cl.rawStdout) {
+	null := isDevNull(cl.rawStdout)
+	if isTerminal(cl.rawStdout) && !null {
 		return nil, usagef("--format npy writes binary data, not for a terminal: redirect stdout to a file (plumb solve --format npy > run.npy)")
 	}
 	s := &npySink{cols: 1 + d, rows: rows, row: make([]float64, 1+d), w: cl.stdout}
 	if bw, ok := cl.stdout.(*bufio.Writer); ok {
 		s.out = bw
 	}
-	if ws, ok := cl.rawStdout.(io.WriteSeeker); ok && s.out != nil && s.out.Buffered() == 0 {
+	if ws, ok := cl.rawStdout.(io.WriteSeeker); ok && !null && s.out != nil && s.out.Buffered() == 0 {
 		if _, err := ws.Seek(0, io.SeekCurrent); err == nil {
 			// A file: write it directly and patch the count at the end.
 			s.w, s.rows = ws, -1
@@ -360,6 +362,21 @@ func newNPYSink(cl *call, d, rows int) (*npySink, error) {
 		return nil, usagef("--format npy with --dt 0 writes every accepted step, a count known only at the end, which a pipe cannot take: redirect stdout to a file, or sample on a grid with --dt")
 	}
 	return s, nil
+}
+
+// isDevNull reports whether w is the null device, a character device that
+// is no terminal and whose seeks go nowhere (it takes the pipe's way).
+func isDevNull(w io.Writer) bool {
+	f, ok := w.(*os.File)
+	if !ok {
+		return false
+	}
+	fi, err := f.Stat()
+	if err != nil {
+		return false
+	}
+	null, err := os.Stat(os.DevNull)
+	return err == nil && os.SameFile(fi, null)
 }
 
 func (s *npySink) start() error {

@@ -382,3 +382,16 @@ func TestSolveSinksDoNotAllocate(t *testing.T) {
 
 // bufioDiscard is a buffered stdout that throws its bytes away.
 func bufioDiscard() *bufio.Writer { return bufio.NewWriter(io.Discard) }
+
+// TestSolveNPYToDevNull: the null device is a character device but no
+// terminal, and seeks there go nowhere: it takes the array as a pipe does.
+func TestSolveNPYToDevNull(t *testing.T) {
+	null, err := os.OpenFile(os.DevNull, os.O_WRONLY, 0)
+	if err != nil {
+		t.Skipf("no null device: %v", err)
+	}
+	defer null.Close()
+	var errb bytes.Buffer
+	code := run(context.Background(), []string{"solve", "--t1", "1", "--format", "npy"}, strings.NewReader(""), null, &errb)
+	assert.Equal(t, exitOK, code, errb.String())
+}
