@@ -47,8 +47,11 @@ A map (henon, logistic, standard, ikeda, or a system file of kind map) is
 iterated instead: --steps N writes the iterates n = 0..N (angles reduced to
 [0, period)); the table and CSV have the columns n and the states; map
 JSON keys: plumb_version, arch, command, system, settings, units, status,
-error, end, final, orbit; --plot draws the orbit as dots (the first two
-components against each other; for one component x_(n+1) against x_n).
+error, end, final, orbit; --format jsonl writes the keys before orbit on
+the first line, one line {"n": N, "x": [...]} per iterate, then the keys
+after it; --format npy the iterates as an N x (1+d) array, n first. --plot
+draws the orbit as dots (the first two components against each other; for
+one component x_(n+1) against x_n).
 The time and integrator flags are for flows only.
 
 On Ctrl-C, or when the integration fails, the samples computed so far are
@@ -75,6 +78,9 @@ type solveFlags struct {
 	// states against time.
 	axes     string
 	axisList []string
+	// format is --format, for the map side (maps.go), which writes
+	// jsonl and npy through orbitRows.
+	format string
 }
 
 // Defaults of plumb solve, echoed in every result.
@@ -296,8 +302,9 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 		return err
 	}
 	if sys.Kind() == plumb.KindMap {
-		if cl.sh.format == "jsonl" || cl.sh.format == "npy" {
-			return usagef("--format %s: the orbit of a map (%s) is written as table, json or csv", cl.sh.format, sys.Name)
+		f.format = cl.sh.format
+		if f.format == "npy" && isTerminal(cl.rawStdout) && !isDevNull(cl.rawStdout) {
+			return usagef("--format npy writes binary data, not for a terminal: redirect stdout to a file (plumb solve --format npy > orbit.npy)")
 		}
 		return f.runMap(ctx, cl, sys)
 	}

@@ -137,8 +137,6 @@ func TestSolveStreamRefusals(t *testing.T) {
 	}{
 		{"npy steps to a pipe", []string{"--format", "npy", "--dt", "0"}, []string{"--format npy", "--dt"}},
 		{"npy crossings", []string{"--format", "npy", "--cross-state", "x=0"}, []string{"--cross-state", "--format npy"}},
-		{"npy on a map", []string{"--format", "npy", "--model", "henon"}, []string{"--format npy", "henon"}},
-		{"jsonl on a map", []string{"--format", "jsonl", "--model", "henon"}, []string{"--format jsonl"}},
 		{"fixed step beyond the budget", []string{"--method", "rk4", "--step", "0.01", "--max-steps", "1000"}, []string{"--max-steps 1000", "2000 steps"}},
 	}
 	for _, c := range cases {
@@ -154,10 +152,12 @@ func TestSolveStreamRefusals(t *testing.T) {
 	saved := isTerminal
 	defer func() { isTerminal = saved }()
 	isTerminal = func(io.Writer) bool { return true }
-	r := plumbRun(t, "solve", "--format", "npy")
-	assert.Equal(t, exitUsage, r.code)
-	assert.Contains(t, r.stderr, "terminal")
-	assert.Empty(t, r.stdout)
+	for _, model := range []string{"lorenz", "henon"} {
+		r := plumbRun(t, "solve", "--format", "npy", "--model", model)
+		assert.Equal(t, exitUsage, r.code)
+		assert.Contains(t, r.stderr, "terminal")
+		assert.Empty(t, r.stdout)
+	}
 }
 
 // TestSolveJSONStreamIsEncoding: the streamed document is byte for byte
@@ -394,4 +394,42 @@ func TestSolveNPYToDevNull(t *testing.T) {
 	var errb bytes.Buffer
 	code := run(context.Background(), []string{"solve", "--t1", "1", "--format", "npy"}, strings.NewReader(""), null, &errb)
 	assert.Equal(t, exitOK, code, errb.String())
+}
+
+// TestSolveMapRows: a map's orbit in jsonl and npy holds the JSON result's
+// iterates bit for bit (exact identity), and each has a golden file.
+func TestSolveMapRows(t *testing.T) {
+	args := []string{"solve", "--model", "henon", "--steps", "20"}
+	js := plumbRun(t, append(args, "--format", "json")...)
+	require.Equal(t, exitOK, js.code, js.stderr)
+	var whole mapSolveJSON
+	require.NoError(t, json.Unmarshal([]byte(js.stdout), &whole))
+
+	lines := plumbRun(t, append(args, "--format", "jsonl")...)
+	require.Equal(t, exitOK, lines.code, lines.stderr)
+	golden(t, "solve_henon.jsonl", lines.stdout)
+	ls := strings.Split(strings.TrimSuffix(lines.stdout, "\n"), "\n")
+	require.Len(t, ls, 2+len(whole.Orbit))
+	var head mapHeadJSON
+	require.NoError(t, json.Unmarshal([]byte(ls[0]), &head))
+	assert.Equal(t, whole.System, head.System)
+	assert.Equal(t, whole.Settings, head.Settings)
+	var tail mapTailJSON
+	require.NoError(t, json.Unmarshal([]byte(ls[len(ls)-1]), &tail))
+	assert.Equal(t, mapTailJSON{Status: whole.Status, Error: whole.Error, End: whole.End, Final: whole.Final}, tail)
+	for i, l := range ls[1 : len(ls)-1] {
+		var it iterateJSON
+		require.NoError(t, json.Unmarshal([]byte(l), &it))
+		assert.Equal(t, whole.Orbit[i], it)
+	}
+
+	npy := plumbRun(t, append(args, "--format", "npy")...)
+	require.Equal(t, exitOK, npy.code, npy.stderr)
+	golden(t, "solve_henon.npy", npy.stdout)
+	rows, cols, data := npyShape(t, npy.stdout)
+	require.Equal(t, len(whole.Orbit), rows)
+	require.Equal(t, 3, cols)
+	for i, it := range whole.Orbit {
+		assert.True(t, sameBits(append([]float64{float64(it.N)}, it.X...), data[i*cols:(i+1)*cols]), "iterate %d", i)
+	}
 }
