@@ -419,9 +419,9 @@ func (f *solveFlags) budget(m method, span float64, given bool) error {
 // budget for the default span, per unit of time.
 const (
 	stepsPerTime = float64(integrate.DefaultMaxSteps) / solveT1
-	// maxBudget keeps the budget an int on every platform (and beyond
-	// any run that could finish).
-	maxBudget = 1 << 52
+	// maxBudget keeps the budget an exact int on every platform (and
+	// beyond any run that could finish).
+	maxBudget = min(1<<52, math.MaxInt)
 )
 
 // result is the run ready to finish writing: the error worded with what
