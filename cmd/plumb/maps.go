@@ -142,6 +142,7 @@ func (f *solveFlags) orbit(ctx context.Context, sys *plumb.System, m *maps.Map) 
 		csv:   func(w io.Writer) error { return orbitCSV(w, sys, out) },
 		chart: func() *lineChart { return orbitChart(sys, out, f.axisList) },
 		done:  count(end, "iterate"),
+		tail:  f.orbitRows(out),
 	}
 	if runErr != nil {
 		res.err = fmt.Errorf("iterating %s %s (iterates 0..%d written): %w", sys.Name, statusVerb(status), end, runErr)

@@ -35,6 +35,11 @@ type call struct {
 	// out is what the runner learnt while writing the result (never nil
 	// in a call execute makes).
 	out *outState
+
+	// rawStdout is the destination under the buffer (stdout, or the
+	// --out file's temporary), for a result that seeks back into a file
+	// (the row count of a .npy header).
+	rawStdout io.Writer
 }
 
 // usageError is bad usage or bad input: exit status 2.
@@ -156,7 +161,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 	}
 	bw := bufio.NewWriter(dst)
 	cl := &call{
-		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, stderr: stderr,
+		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, rawStdout: dst, stderr: stderr,
 		progress: mode, out: &outState{toFile: out != nil},
 	}
 	err = work(ctx, cl)
