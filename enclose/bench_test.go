@@ -1,0 +1,24 @@
+package enclose
+
+import (
+	"context"
+	"testing"
+)
+
+// BenchmarkLorenzEnclosure encloses Lorenz from (1, 1, 1) to t = 20 with
+// Lohner's method (order 20) and reports the width at t = 20 and the
+// steps taken.
+func BenchmarkLorenzEnclosure(b *testing.B) {
+	b.ReportAllocs()
+	f := lorenzFormulas()
+	var res *Result
+	for b.Loop() {
+		var err error
+		res, err = Flow(context.Background(), f, 0, []float64{1, 1, 1}, 20, nil)
+		if err != nil || res.Failure != nil {
+			b.Fatal(err, res.Failure)
+		}
+	}
+	b.ReportMetric(res.Steps[len(res.Steps)-1].Width, "width")
+	b.ReportMetric(float64(len(res.Steps)-1), "steps")
+}
