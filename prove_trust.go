@@ -193,8 +193,11 @@ func (rep *Report) writeProof(b *strings.Builder, at, u string) {
 	fmt.Fprintf(b, "; width %.3g at %s%.6g%s\n", p.End.Width, at, p.End.T, u)
 	if len(p.Times) > 1 {
 		b.WriteString("proof: width against time:")
-		for _, k := range proofRows(len(p.Times)) {
-			fmt.Fprintf(b, " %s%.4g%s %.2g;", at, p.Times[k], u, p.Widths[k])
+		for i, k := range proofRows(len(p.Times)) {
+			if i > 0 {
+				b.WriteString(",")
+			}
+			fmt.Fprintf(b, " %s%.4g%s: %.2g", at, p.Times[k], u, p.Widths[k])
 		}
 		b.WriteString("\n")
 	}

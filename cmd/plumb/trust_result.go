@@ -81,6 +81,9 @@ type trustSettingsJSON struct {
 	RelTol float64 `json:"rtol,omitempty"`
 	AbsTol float64 `json:"atol,omitempty"`
 	Step   float64 `json:"step,omitempty"`
+	// Prove is the width of the validated enclosure (--prove), absent
+	// without one.
+	Prove float64 `json:"prove,omitempty"`
 }
 
 // trustUnitsJSON says in what units the numbers of a trust result are.
