@@ -253,3 +253,19 @@ func TestSqrtContainsExact(t *testing.T) {
 		}
 	}
 }
+
+// TestArithmeticDoesNotAllocate: the basic operations are hot-loop code
+// (interval Taylor coefficients) and must not allocate.
+func TestArithmeticDoesNotAllocate(t *testing.T) {
+	x, y := New(1.25, 1.5), New(-0.3, 0.7)
+	var sink Interval
+	allocs := testing.AllocsPerRun(100, func() {
+		sink = Add(Mul(x, y), Div(x, Sqr(y)))
+		sink = Hull(sink, Sub(Sqrt(x), PowInt(y, 3)))
+		sink = Scale(sink, 0.5)
+		_ = sink.Width() + sink.Mid() + sink.Rad()
+	})
+	if allocs != 0 {
+		t.Errorf("basic arithmetic allocates %v times per run, want 0", allocs)
+	}
+}

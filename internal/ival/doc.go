@@ -58,6 +58,37 @@
 // so the compiler cannot fuse a multiply-add (.ci/fma.sh checks the arm64
 // build).
 //
+// # Elementary functions
+//
+// Exp, Log, Sin, Cos, Tan, Atan, Atan2, Sinh, Cosh, Tanh and Pow evaluate
+// each monotone piece of the function at its ends with a point kernel
+// written in math/big interval arithmetic (benc: every operation rounds the
+// lower end toward -Inf and the upper toward +Inf, which big.Float does
+// exactly for +, -, *, /; square roots are checked by exact squaring). Each
+// kernel reduces the argument, sums a Taylor or atanh series, and adds an
+// explicit bound of the truncation error (Lagrange's remainder, or the
+// first omitted term of an alternating series with decreasing terms), so
+// the 128-bit result is an enclosure by construction; it is then rounded
+// outward to float64, usually to two adjacent float64 values. π and ln 2
+// are themselves enclosed by series with remainder bounds, to as many bits
+// as the largest argument needs (about 1300 for sin near MaxFloat64). The
+// turning points of sin and cos and the poles of tan are found from
+// enclosures of x/(π/2); an integer that may or may not be inside x is
+// counted as inside, which widens a result but never makes it wrong. Each
+// function's doc comment says what its enclosure rests on.
+//
+// Sign and Step are jumps: on an interval holding 0 they return the hull of
+// the jump ([-1, 1] and [0, 1]), the set-valued reading under which an
+// enclosure of a discontinuous right-hand side stays valid.
+//
+// # Cost
+//
+// The basic operations (Add through Sqrt, PowInt, Hull, Width, Mid, Rad)
+// allocate nothing and cost a few nanoseconds each. The elementary
+// functions allocate math/big temporaries and take tens to hundreds of
+// microseconds per call (BenchmarkElementary); an interval Taylor method
+// calls them once per function node and step, for the zeroth coefficient.
+//
 // # Caution
 //
 // An enclosure is a statement about the numerical model as written, not

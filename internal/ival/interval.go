@@ -129,6 +129,45 @@ func (x Interval) Mag() float64 {
 	return math.Max(math.Abs(x.Lo), math.Abs(x.Hi))
 }
 
+// Mig returns min |v| over v in x (exact: 0 if x holds 0, else the end
+// nearer 0 in magnitude).
+//
+// Special cases:
+//
+//	Mig(Empty) = NaN
+func (x Interval) Mig() float64 {
+	switch {
+	case x.IsEmpty():
+		return math.NaN()
+	case x.Lo > 0:
+		return x.Lo
+	case x.Hi < 0:
+		return -x.Hi
+	}
+	return 0
+}
+
+// IsPoint reports whether x is a single real number (Lo == Hi).
+func (x Interval) IsPoint() bool { return x.Lo == x.Hi && !math.IsInf(x.Lo, 0) }
+
+// Inflate returns [Lo - r, Hi + r] rounded outward, for r >= 0: the
+// widening step of an a-priori enclosure search (a box that fails the
+// Interior test is inflated and tried again).
+//
+// Special cases:
+//
+//	Inflate(x, r) = x         for r <= 0
+//	Inflate(x, NaN) = Empty()
+func Inflate(x Interval, r float64) Interval {
+	switch {
+	case x.IsEmpty() || math.IsNaN(r):
+		return Empty()
+	case r <= 0:
+		return x
+	}
+	return Interval{subDown(x.Lo, r), addUp(x.Hi, r)}
+}
+
 // Contains reports whether the real number v is in x (false for NaN, ±Inf
 // and for an empty x).
 func (x Interval) Contains(v float64) bool {

@@ -111,3 +111,30 @@ func TestPredicates(t *testing.T) {
 		t.Errorf("String = %q", s)
 	}
 }
+
+// TestMigInflate checks Mig, IsPoint and Inflate (exact identities of
+// float64 arithmetic, and containment of the exact widened ends).
+func TestMigInflate(t *testing.T) {
+	if m := New(-2, 3).Mig(); m != 0 {
+		t.Errorf("Mig([-2,3]) = %g", m)
+	}
+	if m := New(-3, -2).Mig(); m != 2 {
+		t.Errorf("Mig([-3,-2]) = %g", m)
+	}
+	if !Point(1).IsPoint() || New(1, 2).IsPoint() || Empty().IsPoint() {
+		t.Error("IsPoint wrong")
+	}
+	if x := Inflate(New(1, 2), 0.5); x != New(0.5, 2.5) {
+		t.Errorf("Inflate([1,2], 0.5) = %v, want [0.5, 2.5] (exact)", x)
+	}
+	x := Inflate(Point(1), 1e-30)
+	lo, hi := bf(1), bf(1)
+	lo.Sub(lo, bf(1e-30))
+	hi.Add(hi, bf(1e-30))
+	if bf(x.Lo).Cmp(lo) > 0 || bf(x.Hi).Cmp(hi) < 0 || !Point(1).Interior(x) {
+		t.Errorf("Inflate(1, 1e-30) = %v, want 1 strictly inside, holding 1 ± 1e-30", x)
+	}
+	if !Inflate(Point(1), math.NaN()).IsEmpty() || Inflate(Point(1), -1) != Point(1) {
+		t.Error("Inflate special cases wrong")
+	}
+}
