@@ -24,8 +24,16 @@ func (fr *flowRun) apriori(t, tn float64, hI ival.Interval) error {
 	if err := fr.field(tI, fr.x, fr.fb); err != nil {
 		return err
 	}
+	// slack: room for every component on the scale of the step's motion
+	// (a component whose rate is near 0 over X still moves over B).
+	slack := 0.0
 	for i := range n {
-		fr.b[i] = widen(ival.Add(fr.x[i], ival.Mul(h0, fr.fb[i])))
+		fr.b[i] = ival.Add(fr.x[i], ival.Mul(h0, fr.fb[i]))
+		slack = max(slack, fr.b[i].Width())
+	}
+	slack *= picardInflate
+	for i := range n {
+		fr.b[i] = widen(fr.b[i], slack)
 	}
 	for range picardTries {
 		if err := fr.field(tI, fr.b, fr.fb); err != nil {
@@ -42,18 +50,19 @@ func (fr *flowRun) apriori(t, tn float64, hI ival.Interval) error {
 			copy(fr.b, fr.nb)
 			return nil
 		}
+
 		for i := range n {
-			fr.b[i] = widen(ival.Hull(fr.b[i], fr.nb[i]))
+			fr.b[i] = widen(ival.Hull(fr.b[i], fr.nb[i]), slack)
 		}
 	}
 	return errPicard
 }
 
-// widen returns x widened by picardInflate of its width on each side and
-// by a few units of its magnitude's last place, so that a thin box has
-// room for the test's strict inclusion.
-func widen(x ival.Interval) ival.Interval {
-	d := float64(picardInflate*x.Width()) + float64(1e-15*max(1, max(-x.Lo, x.Hi)))
+// widen returns x widened on each side by picardInflate of its width, by
+// slack, and by a few units of its magnitude's last place, so that a thin
+// box has room for the test's strict inclusion.
+func widen(x ival.Interval, slack float64) ival.Interval {
+	d := float64(picardInflate*x.Width()) + slack + float64(1e-15*max(1, max(-x.Lo, x.Hi)))
 	return ival.Add(x, ival.New(-d, d))
 }
 

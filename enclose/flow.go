@@ -41,7 +41,13 @@ import (
 //
 // The step size is the Taylor step of the point coefficients at c, whose
 // last two terms are about one rounding unit of the state (Jorba & Zou
-// 2005), shortened to land on Settings.Stops and t1.
+// 2005), capped at 0.5/L with L the row-sum norm of ∂f/∂y over the box
+// (the Picard operator contracts for h·L < 1), shortened to land on
+// Settings.Stops and t1, by 0.8 while the Picard test fails, and halved
+// (at most three times) while the remainder is wider than 16 units in the
+// last place of the state: the coefficient over the wide box B
+// overestimates, and a remainder above the rounding floor costs width at
+// every later step.
 //
 // The run stops early, with the partial result and Result.Failure set,
 // when the width passes Settings.GiveUp, the Picard test fails at every
@@ -272,6 +278,13 @@ const (
 	picardInflate = 0.1
 	minStepRel    = 1e-10
 	picardShrink  = 0.8
+	// picardLip caps the first trial step at picardLip/L (see step).
+	picardLip = 0.5
+	// remainderUlps: the remainder's width the step aims at, in units of
+	// the state's last place; remainderHalvings: the most halvings of a
+	// step to reach it.
+	remainderUlps     = 16
+	remainderHalvings = 3
 )
 
 // step advances the set from t by one step, landing on stop when within
@@ -285,39 +298,16 @@ func (fr *flowRun) step(t, stop float64) (float64, *Failure) {
 		return t, boxFailure(t, err)
 	}
 	h := min(fr.stepSize(), stop-t)
-	var tn float64
-	var hI ival.Interval
-	var lastErr error
-	for {
-		tn = t + h
-		if tn >= stop || stop-tn < 1e-3*h {
-			tn = stop
-		}
-		if tn <= t {
-			return t, &Failure{T: t, Kind: FailStepUnderflow, Reason: fmt.Sprintf("the step %g no longer advances the time %g", h, t)}
-		}
-		hI = ival.Sub(ival.Point(tn), ival.Point(t))
-		err := fr.apriori(t, tn, hI)
-		if err == nil {
-			break
-		}
-		lastErr = err
-		fr.shrunk++
-		h *= picardShrink
-		if h < minStepRel*max(1, math.Abs(t)) {
-			if f := boxFailure(t, lastErr); f != nil && lastErr != errPicard {
-				return t, f
-			}
-			return t, &Failure{T: t, Kind: FailPicard, Reason: fmt.Sprintf("no a-priori enclosure over a step down to h = %.3g", h/picardShrink)}
-		}
+	scale := 1.0
+	for _, v := range fr.cv {
+		scale = max(scale, math.Abs(v))
 	}
-	// Taylor coefficients over the box: the variational system (Lohner)
-	// or the field alone (Direct).
+	// Taylor coefficients over the box X, which do not depend on h: the
+	// variational system (Lohner) or the field alone (Direct; the point
+	// coefficients are then no longer needed).
 	var box *series
 	var slots []int
 	if fr.set.Direct {
-		// Horner of the point coefficients is not needed: the polynomial
-		// is evaluated over the box below.
 		if err := fr.pt.ode(true, ival.Point(t), fr.c.yslots, fr.x); err != nil {
 			return t, boxFailure(t, err)
 		}
@@ -334,28 +324,60 @@ func (fr *flowRun) step(t, stop float64) (float64, *Failure) {
 			return t, boxFailure(t, err)
 		}
 		box, slots = fr.vs, fr.c.vslots
-	}
-	// Narrow B with the Taylor polynomial over [0, h] and the remainder
-	// over B; then the remainder over the narrowed box.
-	tI := ival.Hull(ival.Point(t), ival.Point(tn))
-	h0 := ival.New(0, hI.Hi)
-	if err := fr.rem.ode(true, tI, fr.c.yslots, fr.b); err != nil {
-		return t, boxFailure(t, err)
-	}
-	for i := range n {
-		y := box.c[slots[i]]
-		acc := fr.rem.c[fr.c.yslots[i]][p+1]
-		for k := p; k >= 0; k-- {
-			acc = ival.Add(ival.Mul(acc, h0), y[k])
+		// The Picard operator contracts when h·L < 1, L a Lipschitz
+		// constant of f; V's first coefficient is ∂f/∂y over X, a
+		// first guess of L (the test itself decides).
+		lip := 0.0
+		for i := range n {
+			row := 0.0
+			for j := range n {
+				row += fr.vs.c[fr.c.vslots[n+i*n+j]][1].Mag()
+			}
+			lip = max(lip, row)
 		}
-		fr.b[i] = intersect(fr.b[i], acc)
+		if lip > 0 {
+			h = min(h, picardLip/lip)
+		}
 	}
-	if err := fr.rem.ode(true, tI, fr.c.yslots, fr.b); err != nil {
-		return t, boxFailure(t, err)
-	}
-	hq := ival.PowInt(hI, p+1)
-	for i := range n {
-		fr.z[i] = ival.Mul(fr.rem.c[fr.c.yslots[i]][p+1], hq)
+	var tn float64
+	var hI ival.Interval
+	for halved := 0; ; halved++ {
+		var fail *Failure
+		tn, hI, fail = fr.validate(t, stop, h)
+		if fail != nil {
+			return t, fail
+		}
+		h = hI.Hi
+		// Narrow B with the Taylor polynomial over [0, h] and the
+		// remainder over B; then the remainder over the narrowed box.
+		tI := ival.Hull(ival.Point(t), ival.Point(tn))
+		h0 := ival.New(0, hI.Hi)
+		if err := fr.rem.ode(true, tI, fr.c.yslots, fr.b); err != nil {
+			return t, boxFailure(t, err)
+		}
+		for i := range n {
+			y := box.c[slots[i]]
+			acc := fr.rem.c[fr.c.yslots[i]][p+1]
+			for k := p; k >= 0; k-- {
+				acc = ival.Add(ival.Mul(acc, h0), y[k])
+			}
+			fr.b[i] = intersect(fr.b[i], acc)
+		}
+		if err := fr.rem.ode(true, tI, fr.c.yslots, fr.b); err != nil {
+			return t, boxFailure(t, err)
+		}
+		hq := ival.PowInt(hI, p+1)
+		for i := range n {
+			fr.z[i] = ival.Mul(fr.rem.c[fr.c.yslots[i]][p+1], hq)
+		}
+		// A remainder far above the rounding of the state (the
+		// coefficient over the wide box B overestimates) costs width at
+		// every later step: halve the step, which divides it by 2^(p+1).
+		if widthOf(fr.z) <= remainderUlps*0x1p-52*scale || halved == remainderHalvings || tn == stop && halved > 0 {
+			break
+		}
+		fr.shrunk++
+		h /= 2
 	}
 	if fr.set.Direct {
 		for i := range n {
@@ -389,6 +411,35 @@ func (fr *flowRun) step(t, stop float64) (float64, *Failure) {
 	}
 	fr.lohner()
 	return tn, nil
+}
+
+// validate finds the step from t, at most h and landing on stop when
+// within reach, over which the Picard test proves an a-priori enclosure
+// (left in fr.b), shrinking h while it fails. It returns the step's end
+// and its length as an interval, or why no step was found.
+func (fr *flowRun) validate(t, stop, h float64) (float64, ival.Interval, *Failure) {
+	for {
+		tn := t + h
+		if tn >= stop || stop-tn < 1e-3*h {
+			tn = stop
+		}
+		if tn <= t {
+			return t, ival.Interval{}, &Failure{T: t, Kind: FailStepUnderflow, Reason: fmt.Sprintf("the step %g no longer advances the time %g", h, t)}
+		}
+		hI := ival.Sub(ival.Point(tn), ival.Point(t))
+		err := fr.apriori(t, tn, hI)
+		if err == nil {
+			return tn, hI, nil
+		}
+		fr.shrunk++
+		h *= picardShrink
+		if h < minStepRel*max(1, math.Abs(t)) {
+			if f := boxFailure(t, err); f != nil {
+				return t, ival.Interval{}, f
+			}
+			return t, ival.Interval{}, &Failure{T: t, Kind: FailPicard, Reason: fmt.Sprintf("no a-priori enclosure over a step down to h = %.3g", h/picardShrink)}
+		}
+	}
 }
 
 // lohner replaces (c, A, r) by their image under x -> s + J·(x - c), s
