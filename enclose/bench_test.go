@@ -19,6 +19,6 @@ func BenchmarkLorenzEnclosure(b *testing.B) {
 			b.Fatal(err, res.Failure)
 		}
 	}
-	b.ReportMetric(res.Steps[len(res.Steps)-1].Width, "width")
+	b.ReportMetric(res.Steps[len(res.Steps)-1].Width*1e9, "nano-width")
 	b.ReportMetric(float64(len(res.Steps)-1), "steps")
 }

@@ -43,6 +43,11 @@ type series struct {
 	au2  [][]ival.Interval
 	side []int8 // per instruction: the branch at a corner or jump (order 0)
 	fk   []ival.Interval
+	// deg[reg] is the highest coefficient of a register that can be
+	// nonzero: 0 for constants and parameters, n for the other variables,
+	// propagated through the tape (a product's degrees add). Coefficients
+	// above it are exact zeros, neither computed nor multiplied.
+	deg []int
 }
 
 // newSeries returns an interval series evaluator of order n.
@@ -67,6 +72,11 @@ func newSeries(p *expr.Program, n int) *series {
 			s.au2[i] = make([]ival.Interval, n+2)
 		}
 	}
+	s.deg = make([]int, nreg)
+	for i := range s.nvar {
+		s.deg[i] = n
+	}
+	s.propagate()
 	s.side = make([]int8, len(s.tape))
 	s.fk = make([]ival.Interval, n+2)
 	for k := range s.fk {
@@ -79,6 +89,41 @@ func newSeries(p *expr.Program, n int) *series {
 func (s *series) setConst(slot int, v ival.Interval) {
 	clear(s.c[slot])
 	s.c[slot][0] = v
+	if s.deg[slot] != 0 {
+		s.deg[slot] = 0
+		s.propagate()
+	}
+}
+
+// propagate sets the degree of every instruction's result from its
+// operands' (see series.deg).
+func (s *series) propagate() {
+	n := s.n
+	for _, in := range s.tape {
+		a := s.deg[in.A]
+		d := n
+		switch in.Op {
+		case expr.OpAdd, expr.OpSub, expr.OpMin, expr.OpMax:
+			d = max(a, s.deg[in.B])
+		case expr.OpNeg, expr.OpAbs:
+			d = a
+		case expr.OpMul:
+			d = min(n, a+s.deg[in.B])
+		case expr.OpSquare:
+			d = min(n, 2*a)
+		case expr.OpSign, expr.OpStep:
+			d = 0
+		case expr.OpDiv, expr.OpPow, expr.OpAtan2:
+			if a == 0 && s.deg[in.B] == 0 {
+				d = 0
+			}
+		default: // one-operand functions
+			if a == 0 {
+				d = 0
+			}
+		}
+		s.deg[in.Dst] = d
+	}
 }
 
 // out returns the coefficients of output i.
@@ -125,6 +170,13 @@ func (s *series) ode(timed bool, t0 ival.Interval, slots []int, y0 []ival.Interv
 
 // conv returns Σ_{j=lo..hi} a_j b_{k-j}.
 func conv(a, b []ival.Interval, k, lo, hi int) ival.Interval {
+	return convDeg(a, b, k, lo, hi, k, k)
+}
+
+// convDeg is conv for a of degree da and b of degree db: the terms with
+// a_j or b_{k-j} an exact zero are left out.
+func convDeg(a, b []ival.Interval, k, lo, hi, da, db int) ival.Interval {
+	lo, hi = max(lo, k-db), min(hi, da)
 	var s ival.Interval
 	for j := lo; j <= hi; j++ {
 		s = ival.Add(s, ival.Mul(a[j], b[k-j]))
@@ -172,6 +224,10 @@ func (s *series) order(k int) error {
 	for i, in := range s.tape {
 		u := c[in.A]
 		v := c[in.Dst]
+		if k > s.deg[in.Dst] {
+			v[k] = ival.Interval{}
+			continue
+		}
 		var w []ival.Interval
 		switch in.Op {
 		case expr.OpAdd, expr.OpSub, expr.OpMul, expr.OpDiv, expr.OpPow, expr.OpAtan2, expr.OpMin, expr.OpMax:
@@ -185,14 +241,14 @@ func (s *series) order(k int) error {
 		case expr.OpNeg:
 			v[k] = ival.Neg(u[k])
 		case expr.OpMul:
-			v[k] = conv(u, w, k, 0, k)
+			v[k] = convDeg(u, w, k, 0, k, s.deg[in.A], s.deg[in.B])
 		case expr.OpSquare:
 			v[k] = sqconv(u, k, 0)
 		case expr.OpDiv:
 			if k == 0 && hasZero(w[0]) {
 				return s.boxError(in, ErrDomain, "a divisor can be 0 in the box")
 			}
-			v[k] = ival.Div(ival.Sub(u[k], conv(v, w, k, 0, k-1)), w[0])
+			v[k] = ival.Div(ival.Sub(u[k], convDeg(v, w, k, 0, k-1, k, s.deg[in.B])), w[0])
 		case expr.OpPowInt:
 			if err := s.powi(i, in, u, v, in.N, k); err != nil {
 				return err
