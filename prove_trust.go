@@ -47,8 +47,9 @@ type ProofReport struct {
 }
 
 // ProofCaution is the caution every proof carries.
-const ProofCaution = "A proven enclosure is a statement about the model's equations as written and their float64 parameters, " +
-	"not about the real system they describe. Safety-critical use follows the field's own codes and licensed review."
+const ProofCaution = "A proven enclosure bounds the exact solution of the model's equations as written, with their float64 parameters: " +
+	"not the runs audited beside it, and not the real system they describe. " +
+	"Safety-critical use follows the field's own codes and licensed review."
 
 // proofPoints bounds the points of a proof's width curve.
 const proofPoints = 256
@@ -186,11 +187,11 @@ func (rep *Report) writeProof(b *strings.Builder, at, u string) {
 	if p == nil {
 		return
 	}
-	fmt.Fprintf(b, "proof (of the model's equations, not the real system): the enclosure (%s) stays narrower than %.3g up to %s%.6g%s", p.Method, p.Tol, at, p.ProvenUntil, u)
+	fmt.Fprintf(b, "proof: the exact solution of the model's equations lies in boxes narrower than %.3g up to %s%.6g%s", p.Tol, at, p.ProvenUntil, u)
 	if p.Whole {
 		b.WriteString(", the whole span")
 	}
-	fmt.Fprintf(b, "; width %.3g at %s%.6g%s\n", p.End.Width, at, p.End.T, u)
+	fmt.Fprintf(b, "; width %.3g at %s%.6g%s (enclosure: %s)\n", p.End.Width, at, p.End.T, u, p.Method)
 	if len(p.Times) > 1 {
 		b.WriteString("proof: width against time:")
 		for i, k := range proofRows(len(p.Times)) {

@@ -42,8 +42,8 @@ func TestTrustProve(t *testing.T) {
 	}
 	var b strings.Builder
 	rep.writeProof(&b, "t = ", "")
-	assert.Contains(t, b.String(), "stays narrower than 0.001 up to t = 20, the whole span")
-	assert.Contains(t, b.String(), "not about the real system")
+	assert.Contains(t, b.String(), "lies in boxes narrower than 0.001 up to t = 20, the whole span")
+	assert.Contains(t, b.String(), "not the runs audited beside it, and not the real system")
 }
 
 // TestProveMapAndRefusals: a map's proof counts iterates; bad widths,

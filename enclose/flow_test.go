@@ -256,3 +256,22 @@ func TestLorenzEnclosure(t *testing.T) {
 	// less than a fifth of its time (measured 1.83 against 27.3).
 	assert.Less(t, d1, t3/5, "the direct box blows up much earlier")
 }
+
+// TestFlowElementary: y' = exp(-y) from y(0) = 0 has y(t) = log(1 + t)
+// (exact: e^y y' = 1). Every step's box holds math.Log1p(t), correctly
+// rounded to within one ulp by Go's math library (common practice;
+// log1pSlack allows two ulps of values up to 2.4).
+func TestFlowElementary(t *testing.T) {
+	const log1pSlack = 1e-15
+	f := &Formulas{States: []string{"y"}, Rates: []string{"exp(-y)"}}
+	res, err := Flow(context.Background(), f, 0, []float64{0}, 10, nil)
+	require.NoError(t, err)
+	require.Nil(t, res.Failure)
+	for _, st := range res.Steps {
+		want := math.Log1p(st.T)
+		require.Truef(t, st.Lo[0]-log1pSlack <= want && want <= st.Hi[0]+log1pSlack, "t=%g: log(1+t) = %.17g outside [%.17g, %.17g]", st.T, want, st.Lo[0], st.Hi[0])
+	}
+	last := res.Steps[len(res.Steps)-1]
+	t.Logf("%d steps, width at t=10: %.3g", len(res.Steps)-1, last.Width)
+	assert.Less(t, last.Width, 1e-12, "a contracting flow keeps a narrow box")
+}

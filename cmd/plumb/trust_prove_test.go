@@ -22,14 +22,14 @@ func TestTrustProveFlag(t *testing.T) {
 		want  string // a line of the table
 		until float64
 	}{
-		{"flow", []string{"trust", "--horizon", "20", "--exact=false", "--rungs", "tol", "--prove", "1e-3"}, "stays narrower than 0.001 up to t = 20, the whole span", 20},
-		{"map", []string{"trust", "--model", "henon", "--horizon", "30", "--prove", "1e-3"}, "stays narrower than 0.001 up to iterate 30, the whole span", 30},
+		{"flow", []string{"trust", "--horizon", "20", "--exact=false", "--rungs", "tol", "--prove", "1e-3"}, "lies in boxes narrower than 0.001 up to t = 20, the whole span", 20},
+		{"map", []string{"trust", "--model", "henon", "--horizon", "30", "--prove", "1e-3"}, "lies in boxes narrower than 0.001 up to iterate 30, the whole span", 30},
 	} {
 		var out, errb bytes.Buffer
 		code := run(context.Background(), append(c.args, "--quiet"), strings.NewReader(""), &out, &errb)
 		require.Equalf(t, 0, code, "%s: %s", c.name, errb.String())
 		assert.Containsf(t, out.String(), c.want, "%s table", c.name)
-		assert.Containsf(t, out.String(), "proof caution: A proven enclosure is a statement about the model's equations as written", "%s table", c.name)
+		assert.Containsf(t, out.String(), "proof caution: A proven enclosure bounds the exact solution of the model's equations as written", "%s table", c.name)
 		out.Reset()
 		code = run(context.Background(), append(c.args, "--quiet", "--format", "json"), strings.NewReader(""), &out, &errb)
 		require.Equalf(t, 0, code, "%s json: %s", c.name, errb.String())
