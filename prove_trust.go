@@ -92,7 +92,11 @@ func (sys *System) addProof(ctx context.Context, rep *Report, err error, horizon
 	}
 	// Inputs were checked by System.Trust; a canceled proof keeps its
 	// partial report, whose failure says so.
-	rep.Proof, _ = sys.Prove(ctx, horizon, s.Prove)
+	var progress func(float64)
+	if s.Progress != nil {
+		progress = func(done float64) { s.Progress(StageProof, int(1000*done), 1000) }
+	}
+	rep.Proof, _ = sys.prove(ctx, horizon, s.Prove, progress)
 }
 
 // Prove encloses the system's trajectory from its start over horizon (time
@@ -117,6 +121,11 @@ func (sys *System) addProof(ctx context.Context, rep *Report, err error, horizon
 //
 // References: see package enclose.
 func (sys *System) Prove(ctx context.Context, horizon, tol float64) (*ProofReport, error) {
+	return sys.prove(ctx, horizon, tol, nil)
+}
+
+// prove is Prove reporting the fraction enclosed to progress (if not nil).
+func (sys *System) prove(ctx context.Context, horizon, tol float64, progress func(float64)) (*ProofReport, error) {
 	if err := sys.check("Prove"); err != nil {
 		return nil, err
 	}
@@ -137,7 +146,7 @@ func (sys *System) Prove(ctx context.Context, horizon, tol float64) (*ProofRepor
 		return nil, fmt.Errorf("plumb: Prove: %v: %w", err, integrate.ErrSettings)
 	}
 	out := &ProofReport{Tol: tol, Caution: ProofCaution}
-	set := &enclose.Settings{Tol: tol}
+	set := &enclose.Settings{Tol: tol, Progress: progress}
 	var res *enclose.Result
 	if sys.kind == KindMap {
 		res, err = enclose.Map(ctx, f, sys.Start(), int(horizon), set)

@@ -24,8 +24,17 @@ func TestTrustProve(t *testing.T) {
 	require.NoError(t, sys.SetStart([]float64{1, 1, 1}))
 	ladder := integrate.DefaultLadder(0, 20)
 	ladder.Rungs = ladder.Rungs[:1]
-	rep, err := sys.Trust(context.Background(), 20, &TrustSettings{Tol: 1, Prove: 1e-3, NoExact: true, Ladder: &ladder})
+	last := -1
+	progress := func(stage Stage, done, total int) {
+		if stage == StageProof {
+			require.Equal(t, 1000, total)
+			require.GreaterOrEqual(t, done, last, "the proof's progress never goes back")
+			last = done
+		}
+	}
+	rep, err := sys.Trust(context.Background(), 20, &TrustSettings{Tol: 1, Prove: 1e-3, NoExact: true, Ladder: &ladder, Progress: progress})
 	require.NoError(t, err)
+	assert.Equal(t, 1000, last, "the proof's progress ends at the whole span")
 	p := rep.Proof
 	require.NotNil(t, p)
 	assert.Nil(t, p.Failure)

@@ -21,6 +21,9 @@ const (
 	StageAudit Stage = "audit"
 	// StageExponent: the estimate of the largest Lyapunov exponent.
 	StageExponent Stage = "exponent"
+	// StageProof: the validated enclosure (TrustSettings.Prove), with
+	// thousandths of the span enclosed out of 1000.
+	StageProof Stage = "proof"
 )
 
 // Caution is the statement every trust report carries.
@@ -108,7 +111,8 @@ type TrustSettings struct {
 	Prove float64
 	// Progress, if not nil, is called as work completes with the stage
 	// (StageAudit with runs done and total, StageExponent with 0 and 1,
-	// and 1 and 1 when done; the two may come in either order). It must
+	// and 1 and 1 when done; the two may come in either order; then,
+	// with Prove, StageProof). It must
 	// not block for long; the CLI draws its progress bar from it.
 	Progress func(stage Stage, done, total int)
 }

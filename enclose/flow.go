@@ -239,6 +239,9 @@ func (fr *flowRun) run(ctx context.Context, t0 float64, y0 []float64, t1 float64
 		if t >= stops[si] {
 			si++
 		}
+		if set.Progress != nil {
+			set.Progress(float64(t-t0) / float64(t1-t0))
+		}
 		if !record(t) {
 			break
 		}

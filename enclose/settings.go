@@ -33,6 +33,10 @@ type Settings struct {
 	// by the wrapping effect far faster than the dynamics demand. For
 	// comparison only.
 	Direct bool
+	// Progress, if not nil, is called after every step with the fraction
+	// of the span (of the iterates) enclosed so far, from 0 to 1. It must
+	// not block for long.
+	Progress func(done float64)
 }
 
 // Defaults.

@@ -418,6 +418,7 @@ func (f *trustFlags) systemJob(sys *plumb.System, horizon float64, settings *plu
 		what:     "the audit of " + sys.Name,
 		compared: compared,
 		progress: true,
+		proof:    settings.Prove > 0,
 		audit: func(ctx context.Context, stage func(plumb.Stage, int, int)) (*plumb.Report, error) {
 			settings.Progress = stage
 			rep, err := sys.Trust(ctx, horizon, settings)
