@@ -146,6 +146,12 @@ func TestOverflowUnderflow(t *testing.T) {
 		{"-max-max", Sub(Point(-math.MaxFloat64), Point(math.MaxFloat64)), -inf, -math.MaxFloat64},
 		{"max*2", Mul(Point(math.MaxFloat64), Point(2)), math.MaxFloat64, inf},
 		{"max/0.5", Div(Point(math.MaxFloat64), Point(-0.5)), -inf, -math.MaxFloat64},
+		// TwoSum's step s - a overflows here, so the side of the rounding is
+		// unknown and both ends move one step from s = -1.5979494532109474e308
+		// (found by FuzzDirectedRounding; the exact -1.5979494532109472850e308
+		// is inside).
+		{"sub near max", Sub(Point(1.9974368165136842e+307), Point(math.MaxFloat64)),
+			math.Nextafter(-1.5979494532109474e+308, -inf), math.Nextafter(-1.5979494532109474e+308, 0)},
 		{"tiny*0.25", Mul(Point(tiny), Point(0.25)), 0, tiny},
 		{"-tiny*0.25", Mul(Point(-tiny), Point(0.25)), -tiny, 0},
 		{"tiny/4", Div(Point(tiny), Point(4)), 0, tiny},
@@ -268,4 +274,24 @@ func TestArithmeticDoesNotAllocate(t *testing.T) {
 	if allocs != 0 {
 		t.Errorf("basic arithmetic allocates %v times per run, want 0", allocs)
 	}
+}
+
+// TestFastPathsDoNotAllocate: the elementary functions on moderate
+// arguments take the float64 fast paths, which must not allocate (the
+// 128-bit kernels, for huge arguments and fall-backs, do).
+func TestFastPathsDoNotAllocate(t *testing.T) {
+	x, y := New(0.75, 0.7500001), New(1.5, 1.6)
+	fastConsts() // the one-time constant set-up allocates
+	var sink Interval
+	allocs := testing.AllocsPerRun(100, func() {
+		sink = Add(Sin(x), Cos(y))
+		sink = Add(sink, Add(Exp(x), Log(x)))
+		sink = Add(sink, Add(Atan(x), Atan2(x, y)))
+		sink = Add(sink, Add(Sinh(x), Cosh(x)))
+		sink = Add(sink, Add(Tan(x), Tanh(x)))
+	})
+	if allocs != 0 {
+		t.Errorf("fast paths allocate %v times per run, want 0", allocs)
+	}
+	_ = sink
 }

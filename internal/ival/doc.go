@@ -37,8 +37,10 @@
 // Each end of a result is the rounded result r, moved one ulp outward unless
 // an exact residual proves r is already on the right side:
 //
-//   - a+b: TwoSum's error e = (a+b) - r is exact for finite a, b, r (Knuth);
-//     e < 0 moves the lower end, e > 0 the upper end, e = 0 keeps r exact.
+//   - a+b: TwoSum's error e = (a+b) - r is exact when none of its steps
+//     overflows (Knuth); e < 0 moves the lower end, e > 0 the upper end,
+//     e = 0 keeps r exact. An overflowing step (possible within an ulp of
+//     ±MaxFloat64) leaves e infinite or NaN, and then both ends move.
 //   - a*b: e = math.FMA(a, b, -r) = RN(a*b - r) has, by fact 2, the sign of
 //     a*b - r when nonzero. When it is zero, a*b = r is proven only where
 //     a*b - r is itself a float64: with a = A*2^i, b = B*2^j for odd
@@ -69,7 +71,7 @@
 // explicit bound of the truncation error (Lagrange's remainder, or the
 // first omitted term of an alternating series with decreasing terms), so
 // the 128-bit result is an enclosure by construction; it is then rounded
-// outward to float64, usually to two adjacent float64 values. π and ln 2
+// outward to float64, to at most two float64 steps. π and ln 2
 // are themselves enclosed by series with remainder bounds, to as many bits
 // as the largest argument needs (about 1300 for sin near MaxFloat64). The
 // turning points of sin and cos and the poles of tan are found from
@@ -81,13 +83,26 @@
 // the jump ([-1, 1] and [0, 1]), the set-valued reading under which an
 // enclosure of a discontinuous right-hand side stays valid.
 //
+// Exp, Log, Sin, Cos, Atan, Atan2, Sinh, Cosh and Tanh first try a fast
+// path (fast.go): reductions and series in this package's own float64
+// interval arithmetic, with ln 2 and π/2 split into exact 32-bit leading
+// parts and an enclosed tail, a table of atan(i/8) enclosed once by the
+// 128-bit kernel, and the same kinds of truncation bounds. A fast result is
+// an enclosure by the inclusion property of the basic operations; it is
+// kept when at most 8 float64 steps wide, and otherwise (deep cancellation
+// in the reduction, huge arguments, results near underflow) the 128-bit
+// kernel decides, giving at most 2 steps. Tan divides the fast sin and cos
+// and keeps results up to 16 steps wide; Pow uses the kernels.
+//
 // # Cost
 //
 // The basic operations (Add through Sqrt, PowInt, Hull, Width, Mid, Rad)
-// allocate nothing and cost a few nanoseconds each. The elementary
-// functions allocate math/big temporaries and take tens to hundreds of
-// microseconds per call (BenchmarkElementary); an interval Taylor method
-// calls them once per function node and step, for the zeroth coefficient.
+// allocate nothing and cost tens of nanoseconds. The fast paths allocate
+// nothing and are about ten to a hundred times faster than the 128-bit
+// kernels (Pow, huge arguments, fall-backs), which allocate math/big
+// temporaries and take on the order of 0.1 ms per call
+// (BenchmarkElementary). An interval Taylor method calls them once per
+// function node and step, for the zeroth coefficient.
 //
 // # Caution
 //

@@ -53,9 +53,13 @@ func Entire() Interval { return Interval{math.Inf(-1), math.Inf(1)} }
 // a formula that is undefined somewhere in a box has no enclosure there.
 func Empty() Interval { return Interval{math.NaN(), math.NaN()} }
 
-// IsEmpty reports whether x is the empty set (or any value whose ends are
-// not ordered, which this package never produces).
-func (x Interval) IsEmpty() bool { return !(x.Lo <= x.Hi) }
+// IsEmpty reports whether x is the empty set. A struct literal that breaks
+// the invariant (ends not ordered, a NaN end, Lo = +Inf or Hi = -Inf)
+// describes no set of reals and also counts as empty, so that every
+// function returns Empty for it rather than a number.
+func (x Interval) IsEmpty() bool {
+	return !(x.Lo <= x.Hi) || math.IsInf(x.Lo, 1) || math.IsInf(x.Hi, -1)
+}
 
 // IsBounded reports whether both ends of a nonempty x are finite.
 func (x Interval) IsBounded() bool {

@@ -21,6 +21,11 @@ func TestConstructors(t *testing.T) {
 			t.Errorf("%s = %v, want empty", name, x)
 		}
 	}
+	for _, bad := range []Interval{{inf, inf}, {-inf, -inf}, {2, 1}, {math.NaN(), 1}} {
+		if !bad.IsEmpty() || !Add(bad, Point(1)).IsEmpty() || !Exp(bad).IsEmpty() {
+			t.Errorf("literal %v must count as empty", bad)
+		}
+	}
 	if x := New(-inf, 1); x.IsEmpty() || x.IsBounded() {
 		t.Errorf("New(-Inf, 1) = %v, want a nonempty unbounded interval", x)
 	}

@@ -59,10 +59,28 @@ func down(r float64) float64 { return math.Nextafter(r, math.Inf(-1)) }
 func up(r float64) float64   { return math.Nextafter(r, math.Inf(1)) }
 
 // twoSumErr returns the exact error (a+b) - s of s = RN(a+b) for finite a, b
-// and finite s (Knuth's TwoSum).
+// and finite s (Knuth's TwoSum), or a non-finite value when an intermediate
+// overflowed (near ±MaxFloat64 s - a can round to ±Inf): TwoSum is exact
+// when nothing overflows, and an overflow anywhere leaves ±Inf or NaN in
+// the result, so a finite result is the exact error.
 func twoSumErr(a, b, s float64) float64 {
 	bb := s - a
 	return (a - (s - bb)) + (b - bb)
+}
+
+// sumSide classifies a+b against s = RN(a+b) for finite a, b, s: +1 if
+// a+b > s, -1 if a+b < s, 0 if equal, 2 if unknown (TwoSum overflowed).
+func sumSide(a, b, s float64) int {
+	e := twoSumErr(a, b, s)
+	switch {
+	case math.IsNaN(e) || math.IsInf(e, 0):
+		return 2
+	case e > 0:
+		return 1
+	case e < 0:
+		return -1
+	}
+	return 0
 }
 
 // addDown returns a float64 <= a+b (a, b in [-Inf, +Inf], not both infinite
@@ -78,10 +96,11 @@ func addDown(a, b float64) float64 {
 		}
 		return s
 	}
-	if twoSumErr(a, b, s) < 0 {
-		return down(s)
+	switch sumSide(a, b, s) {
+	case 0, 1:
+		return s
 	}
-	return s
+	return down(s)
 }
 
 // addUp returns a float64 >= a+b.
@@ -96,10 +115,11 @@ func addUp(a, b float64) float64 {
 		}
 		return s
 	}
-	if twoSumErr(a, b, s) > 0 {
-		return up(s)
+	switch sumSide(a, b, s) {
+	case 0, -1:
+		return s
 	}
-	return s
+	return up(s)
 }
 
 func subDown(a, b float64) float64 { return addDown(a, -b) }
