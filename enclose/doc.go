@@ -62,10 +62,8 @@
 //
 // A step of formulas built from + - * /, integer powers, abs, min, max,
 // sign and step allocates nothing (TestStepAllocs); the enclosures of the
-// elementary functions (internal/ival, with math/big) allocate, and they
-// dominate the cost of formulas that use them (about three quarters of a
-// double pendulum's time in sin and cos). Each recorded step allocates
-// its box. Cost per flow step: O(p²) interval operations per instruction
+// elementary functions (internal/ival) may allocate where they fall back
+// from float64 to math/big. Each recorded step allocates its box. Cost per flow step: O(p²) interval operations per instruction
 // of the variational system, which has n + n² outputs.
 //
 // # Determinism
