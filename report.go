@@ -103,6 +103,9 @@ type Report struct {
 	// Shadow is the shadow of the audited run (TrustSettings.Shadow), nil
 	// when not asked for.
 	Shadow *ShadowReport `json:"shadow,omitempty"`
+	// Proof is the validated enclosure of the audited trajectory
+	// (TrustSettings.Prove), nil when not asked for.
+	Proof *ProofReport `json:"proof,omitempty"`
 	// reach is the reference run's largest distance from its mean
 	// (integrate.AuditResult.Reach).
 	reach float64

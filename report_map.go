@@ -128,6 +128,7 @@ func (rep *Report) writeMap(b *strings.Builder) error {
 		fmt.Fprintf(b, "verdict for iterate %d: %s (largest divergence %.2g of the tolerance)\n", rep.Steps, verdict, rep.TolUsed)
 	}
 	rep.writeShadow(b, "iterate ", "")
+	rep.writeProof(b, "iterate ", "")
 	fmt.Fprintf(b, "caution: %s\n", rep.Caution)
 	return nil
 }

@@ -139,6 +139,7 @@ func (rep *Report) Write(w io.Writer) error {
 		fmt.Fprintf(&b, "verdict for t = %.4g%s: %s (largest divergence %.2g of the tolerance)\n", rep.T0+rep.Horizon, u, verdict, rep.TolUsed)
 	}
 	rep.writeShadow(&b, "t = ", u)
+	rep.writeProof(&b, "t = ", u)
 	fmt.Fprintf(&b, "caution: %s\n", rep.Caution)
 	_, err := io.WriteString(w, b.String())
 	return err

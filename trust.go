@@ -21,6 +21,9 @@ const (
 	StageAudit Stage = "audit"
 	// StageExponent: the estimate of the largest Lyapunov exponent.
 	StageExponent Stage = "exponent"
+	// StageProof: the validated enclosure (TrustSettings.Prove), with
+	// thousandths of the span enclosed out of 1000.
+	StageProof Stage = "proof"
 )
 
 // Caution is the statement every trust report carries.
@@ -97,9 +100,19 @@ type TrustSettings struct {
 	// or Dormand–Prince 5(4) at Solve's tolerances) and reports how close
 	// and for how long in Report.Shadow.
 	Shadow bool
+	// Prove (System.Trust only, systems with formulas: every built-in
+	// model that has them and every system file) also encloses the
+	// audited trajectory in intervals (package enclose: Lohner's method)
+	// over the horizon and reports in Report.Proof the width against
+	// time, where it stays below Prove (a width in state units, the
+	// proven horizon) and where and why it stops. Zero: no proof. Must
+	// be positive and finite, and the system must have formulas;
+	// otherwise integrate.ErrSettings.
+	Prove float64
 	// Progress, if not nil, is called as work completes with the stage
 	// (StageAudit with runs done and total, StageExponent with 0 and 1,
-	// and 1 and 1 when done; the two may come in either order). It must
+	// and 1 and 1 when done; the two may come in either order; then,
+	// with Prove, StageProof). It must
 	// not block for long; the CLI draws its progress bar from it.
 	Progress func(stage Stage, done, total int)
 }

@@ -62,6 +62,9 @@ func (s *System) Trust(ctx context.Context, horizon float64, settings *TrustSett
 		return nil, fmt.Errorf("plumb: TrustSettings is nil (Tol is required): %w", ErrTolerance)
 	}
 	set := *settings
+	if err := s.checkProve(set.Prove); err != nil {
+		return nil, err
+	}
 	misplaced := func(field, why string) error {
 		return fmt.Errorf("plumb: TrustSettings.%s: %s: %w", field, why, integrate.ErrSettings)
 	}
@@ -91,6 +94,7 @@ func (s *System) Trust(ctx context.Context, horizon float64, settings *TrustSett
 		}
 		rep, err := s.trustMap(ctx, int(horizon), set)
 		s.addShadow(ctx, rep, err, horizon, &set)
+		s.addProof(ctx, rep, err, horizon, &set)
 		return rep, err
 	}
 	if set.MapRungs != nil {
@@ -108,5 +112,6 @@ func (s *System) Trust(ctx context.Context, horizon float64, settings *TrustSett
 		rep.TimeUnit = s.TimeUnit()
 	}
 	s.addShadow(ctx, rep, err, horizon, &set)
+	s.addProof(ctx, rep, err, horizon, &set)
 	return rep, err
 }

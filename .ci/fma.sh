@@ -14,7 +14,7 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 pkgs=("$@")
 if [ ${#pkgs[@]} -eq 0 ]; then
-  pkgs=(./integrate ./internal/models ./internal/expr ./internal/dd ./internal/detmath ./internal/runio ./internal/bigadd ./internal/ival ./lyap ./maps ./embed .)
+  pkgs=(./enclose ./integrate ./internal/models ./internal/expr ./internal/dd ./internal/detmath ./internal/runio ./internal/bigadd ./internal/ival ./lyap ./maps ./embed .)
 fi
 status=0
 for pkg in "${pkgs[@]}"; do

@@ -76,8 +76,8 @@ func TestJSONKeysMatchHelp(t *testing.T) {
 		{"trust", false, true, nil}, // the demo: its precision rungs give float64_horizon
 		{"trust", false, true, []string{"--horizon", "20", "--exact=false"}},
 		{"trust", true, true, []string{"--model", "logistic", "--horizon", "60"}},
-		{"trust", false, true, []string{"--horizon", "20", "--exact=false", "--shadow"}},
-		{"trust", true, true, []string{"--model", "logistic", "--horizon", "60", "--shadow"}},
+		{"trust", false, true, []string{"--horizon", "20", "--exact=false", "--shadow", "--prove", "1e-3"}},
+		{"trust", true, true, []string{"--model", "logistic", "--horizon", "60", "--shadow", "--prove", "1e-3"}},
 		{"solve", false, true, []string{"--t1", "1"}},
 		{"solve", false, false, []string{"--t1", "1", "--max-steps", "5"}},
 		{"solve", true, true, []string{"--model", "henon", "--steps", "10"}},

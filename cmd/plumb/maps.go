@@ -405,12 +405,12 @@ func (f *trustFlags) runMap(ctx context.Context, cl *call, sys *plumb.System, di
 	if len(rungs) == 0 {
 		return usagef("--horizon %d: too short for a restart rung; give --rungs precision or a longer horizon", steps)
 	}
-	echo := trustSettingsJSON{Horizon: float64(steps), Tol: tol, Relative: f.relative, Rungs: want, RestartAt: float64(restartAt)}
+	echo := trustSettingsJSON{Horizon: float64(steps), Tol: tol, Relative: f.relative, Rungs: want, RestartAt: float64(restartAt), Prove: f.prove}
 	echo.Observe, echo.Scales = echoDistance(sys, dist)
 	if slices.Contains(kinds, integrate.KindRestart) {
 		echo.RestartPlaces = f.restartPlaces
 	}
-	settings := &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist, Shadow: f.shadow}
+	settings := &plumb.TrustSettings{Tol: tol, Relative: f.relative, MapRungs: rungs, Distance: dist, Shadow: f.shadow, Prove: f.prove}
 	return cl.runJob(ctx, f.systemJob(sys, float64(steps), settings, "orbit", func(rep *plumb.Report, runErr error) any {
 		e := echo
 		e.Exact = rep.Exact != nil // the double-double orbit

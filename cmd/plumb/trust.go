@@ -65,7 +65,7 @@ verdict, tol_used, growth, float64_horizon (when extrapolated),
 float64_per_bit (when extrapolated), exponent (when estimated or given),
 exponent_error (when the estimate failed), tightest, rungs, times,
 failed, exact_reference (when --exact applies), reversal (when checked),
-shadow (when --shadow), caution. tightest and each rung have a name for people, an id for
+shadow (when --shadow), proof (when --prove), caution. tightest and each rung have a name for people, an id for
 programs, their agrees_until and their divergence curve on times.
 --format csv writes the divergence curves: t, then one column per run,
 headed by its id, which stays the same from run to run: tightest (with
@@ -81,6 +81,18 @@ rescaling in least squares. The report's shadow line (JSON: shadow)
 gives the distance, how far the shadow reaches, and, where it stops short,
 why (a near-tangency of stable and unstable directions, or a refinement
 that fails).
+
+--prove WIDTH also proves where the model's exact solution lies: boxes
+in interval arithmetic around the audited start, carried by Taylor
+series of the formulas with a rigorous remainder and Lohner's wrapping
+control (a map: its formulas and their Jacobian in intervals). The
+report's proof lines (JSON: proof) give the width against time, the
+proven horizon (proven_until: the width stays below WIDTH at every step
+up to it) beside the estimated one, and where and why the enclosure
+stopped (width blow-up, Picard test, step underflow, a kink or jump
+of the formulas in the box). Systems with formulas only: every
+built-in model and every system file. A proof concerns the model's
+equations as written and their float64 parameters, not the real system.
 
 A trust horizon, like a shadow, is a statement about the numerical model,
 not a safety certificate for the real system; safety-critical use follows the field's
@@ -98,7 +110,7 @@ magnitude, distance, limited_by (when a rung departs), limiting_rung
 (when a rung departs), predicted_horizon (when predicted), verdict,
 tol_used, growth, exponent (when estimated), exponent_error (when the
 estimate failed), rungs, times, stride, failed, exact_reference (the
-double-double orbit), shadow (when --shadow), caution, time_unit
+double-double orbit), shadow (when --shadow), proof (when --prove), caution, time_unit
 (iterate: every time is an iterate). --format csv writes n, then
 one column per rung, headed by its id: precision_float64,
 precision_40bit, precision_24bit, restart. Past 4096 iterates each
@@ -189,6 +201,9 @@ type trustFlags struct {
 	recorded runsFlags
 	// shadow asks for the shadow of the audited run (--shadow).
 	shadow bool
+	// prove is the width of the validated enclosure asked for (--prove),
+	// 0 for none.
+	prove float64
 }
 
 // yourRunFlags are the flags that name the caller's own run.
@@ -211,6 +226,7 @@ func setupTrust(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps per run (long horizons need more: the reference takes about 80 per time unit on the demo)")
 	addRunsFlags(fs, &f.recorded)
 	fs.BoolVar(&f.shadow, "shadow", false, "also look for a true orbit of the model near the audited run, and say how close it stays and up to when")
+	finiteVar(fs, &f.prove, "prove", 0, "also enclose the audited trajectory in intervals and prove up to when its width stays below `WIDTH` (state units, > 0; systems with formulas)")
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -328,6 +344,9 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 		if f.shadow {
 			return usagef("--shadow: shadows a run plumb makes itself, not runs read with --run or made with --exec")
 		}
+		if cl.sh.given["prove"] {
+			return usagef("--prove: encloses a system's formulas, not runs read with --run or made with --exec")
+		}
 		return f.runRecorded(ctx, cl)
 	}
 	if !(f.horizon > 0) {
@@ -335,6 +354,9 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	}
 	if !(f.tol > 0) {
 		return usagef("--tol %s: must be > 0", formatFloat(f.tol))
+	}
+	if cl.sh.given["prove"] && !(f.prove > 0) {
+		return usagef("--prove %s: must be > 0", formatFloat(f.prove))
 	}
 	sys, err := cl.sh.loadSystem(cl.sh.model)
 	if err != nil {
@@ -360,10 +382,10 @@ func (f *trustFlags) run(ctx context.Context, cl *call) error {
 	if f.maxSteps < 1 {
 		return usagef("--max-steps %d: must be >= 1", f.maxSteps)
 	}
-	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Distance: dist, MaxSteps: f.maxSteps, NoExact: !f.exact, Shadow: f.shadow}
+	settings := &plumb.TrustSettings{Tol: f.tol, Relative: f.relative, Ladder: &ladder, Distance: dist, MaxSteps: f.maxSteps, NoExact: !f.exact, Shadow: f.shadow, Prove: f.prove}
 	echo := trustSettingsJSON{
 		Horizon: f.horizon, Tol: f.tol, Relative: f.relative, Rungs: names,
-		Exact: f.exact && sys.HasFormulas(), Every: f.horizon / trustGrid,
+		Exact: f.exact && sys.HasFormulas(), Every: f.horizon / trustGrid, Prove: f.prove,
 	}
 	echo.Observe, echo.Scales = echoDistance(sys, dist)
 	for _, r := range ladder.Rungs {
@@ -396,6 +418,7 @@ func (f *trustFlags) systemJob(sys *plumb.System, horizon float64, settings *plu
 		what:     "the audit of " + sys.Name,
 		compared: compared,
 		progress: true,
+		proof:    settings.Prove > 0,
 		audit: func(ctx context.Context, stage func(plumb.Stage, int, int)) (*plumb.Report, error) {
 			settings.Progress = stage
 			rep, err := sys.Trust(ctx, horizon, settings)

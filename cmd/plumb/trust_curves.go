@@ -119,6 +119,10 @@ func trustChart(rep *plumb.Report) *lineChart {
 			top = math.Max(top, d)
 		}
 	}
+	if p := rep.Proof; p != nil && len(p.Times) > 0 {
+		// --prove: the enclosure's width, in state units.
+		c.Series = append(c.Series, series{Name: "proven enclosure width", X: slices.Clone(p.Times), Y: slices.Clone(p.Widths)})
+	}
 	c.Series = append(c.Series, toleranceSeries(rep.TolAbs, rep.T0, t1))
 	if rep.Verdict != plumb.Incomplete && rep.LimitedBy != "" {
 		c.Marks = append(c.Marks, mark{X: rep.TrustedUntil, Label: until})

@@ -81,6 +81,9 @@ type trustSettingsJSON struct {
 	RelTol float64 `json:"rtol,omitempty"`
 	AbsTol float64 `json:"atol,omitempty"`
 	Step   float64 `json:"step,omitempty"`
+	// Prove is the width of the validated enclosure (--prove), absent
+	// without one.
+	Prove float64 `json:"prove,omitempty"`
 }
 
 // trustUnitsJSON says in what units the numbers of a trust result are.
@@ -120,8 +123,10 @@ type auditJob struct {
 	// part is what the message of an audit that stopped counts as
 	// completed ("run"; "" for "rung").
 	part string
-	// progress: the audit reports its stages (plumb.TrustSettings.Progress).
+	// progress: the audit reports its stages (plumb.TrustSettings.Progress);
+	// proof: one of them is the enclosure of --prove.
 	progress bool
+	proof    bool
 	// audit runs it; stage, when not nil, takes its progress.
 	audit func(ctx context.Context, stage func(plumb.Stage, int, int)) (*plumb.Report, error)
 	// wrap makes the JSON of a report that ended with runErr (a
@@ -143,7 +148,7 @@ func trustJob(a auditJob) job {
 		refusal: "the audit refused its input",
 		stage:   func() string { return string(stage) },
 		run: func(ctx context.Context, progress func(float64)) (*outcome, error) {
-			rep, err := a.audit(ctx, stageProgress(progress, &stage))
+			rep, err := a.audit(ctx, stageProgress(progress, a.proof, &stage))
 			if rep == nil {
 				return nil, err
 			}
@@ -156,17 +161,18 @@ func trustJob(a auditJob) job {
 	return j
 }
 
-// stageProgress maps the audit's two stages onto the runner's progress
-// from 0 to 1: half for the audit runs, half for the exponent estimate,
-// which takes about as long. The stages may come in either order
+// stageProgress maps the audit's stages onto the runner's progress from 0
+// to 1: half for the audit runs, half for the exponent estimate, which
+// takes about as long; with proof, a third each and a third for the
+// enclosure, which comes last. The first two may come in either order
 // (System.Trust estimates the exponent first, to choose the reference's
 // precision). current, when not nil, is set to each stage reported before
 // progress is called. Nil progress gives nil.
-func stageProgress(progress func(float64), current *plumb.Stage) func(plumb.Stage, int, int) {
+func stageProgress(progress func(float64), proof bool, current *plumb.Stage) func(plumb.Stage, int, int) {
 	if progress == nil {
 		return nil
 	}
-	var audit, expo float64
+	var audit, expo, prove float64
 	return func(stage plumb.Stage, done, total int) {
 		if current != nil {
 			*current = stage
@@ -178,6 +184,14 @@ func stageProgress(progress func(float64), current *plumb.Stage) func(plumb.Stag
 			}
 		case plumb.StageExponent:
 			expo = float64(done)
+		case plumb.StageProof:
+			if total > 0 {
+				prove = float64(done) / float64(total)
+			}
+		}
+		if proof {
+			progress((audit + expo + prove) / 3)
+			return
 		}
 		progress(0.5*audit + 0.5*expo)
 	}
