@@ -125,11 +125,11 @@ func TestJSONDocumented(t *testing.T) {
 		"trust": {
 			nil,
 			{"--horizon", "20", "--exact=false"},
-			{"--horizon", "20", "--exact=false", "--shadow"},
+			{"--horizon", "20", "--exact=false", "--shadow", "--prove", "1e-3"},
 			{"--horizon", "20", "--exact=false", "--observe", "x,z", "--scale", "x=2"},
 			{"--horizon", "20", "--exact=false", "--method", "dp853", "--rtol", "1e-9", "--rungs", "tol"},
 			{"--model", "logistic", "--horizon", "60"},
-			{"--model", "logistic", "--horizon", "60", "--shadow"},
+			{"--model", "logistic", "--horizon", "60", "--shadow", "--prove", "1e-3"},
 			{"--run", "ref=" + ref, "--run", "tol:loose=" + loose},
 		},
 		"solve": {
