@@ -32,6 +32,11 @@ type call struct {
 	// progress reports whether a progress bar may be drawn on stderr: it is
 	// a terminal and --quiet is not set.
 	progress bool
+	// raw is the command line after the command's name (a --shard run
+	// records it in its shard file); merge, when not nil, holds the shard
+	// files plumb merge joins, which the command reads instead of computing.
+	raw   []string
+	merge *mergeInput
 }
 
 // usageError is bad usage or bad input: exit status 2.
@@ -115,7 +120,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 	bw := bufio.NewWriter(stdout)
 	cl := &call{
 		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, stderr: stderr,
-		progress: !sh.quiet && isTerminal(stderr),
+		progress: !sh.quiet && isTerminal(stderr), raw: args,
 	}
 	err = work(ctx, cl)
 	if ferr := bw.Flush(); ferr != nil && err == nil {

@@ -183,6 +183,7 @@ var refusals = []error{
 	plumb.ErrTolerance,
 	plumb.ErrRuns,
 	plumb.ErrUnknown,
+	plumb.ErrShard,
 	embed.ErrEmbedding,
 	embed.ErrSettings,
 }

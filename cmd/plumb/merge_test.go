@@ -1,0 +1,154 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+// shardScanArgs is a small orbit diagram split four ways in the tests.
+var shardScanArgs = []string{"scan", "--across", "r=2.8:4:25", "--keep", "200", "--discard", "2000", "--quiet"}
+
+// runShards runs args with --shard i/n for i = 1..n and returns the shard
+// files, written to dir.
+func runShards(t *testing.T, dir string, n int, args ...string) []string {
+	t.Helper()
+	var files []string
+	for i := 1; i <= n; i++ {
+		r := plumbRun(t, append(append([]string(nil), args...), "--shard", strings.Join([]string{itoa(i), itoa(n)}, "/"))...)
+		require.Equalf(t, exitOK, r.code, "shard %d/%d: stderr %q", i, n, r.stderr)
+		name := filepath.Join(dir, "shard-"+itoa(i)+".jsonl")
+		require.NoError(t, os.WriteFile(name, []byte(r.stdout), 0o644))
+		files = append(files, name)
+	}
+	return files
+}
+
+func itoa(i int) string { return strconv.Itoa(i) }
+
+// TestMergeScanEveryFormat: the merge of 4 shards of a scan is the
+// unsharded scan's output byte for byte, in every format (an exact
+// identity: each row depends only on its parameters), whatever order the
+// files are given in.
+func TestMergeScanEveryFormat(t *testing.T) {
+	for _, format := range []string{"table", "csv", "json", "jsonl", "npy"} {
+		t.Run(format, func(t *testing.T) {
+			args := append(append([]string(nil), shardScanArgs...), "--format", format)
+			whole := plumbRun(t, args...)
+			require.Equal(t, exitOK, whole.code, whole.stderr)
+			require.NotEmpty(t, whole.stdout)
+			files := runShards(t, t.TempDir(), 4, args...)
+			m := plumbRun(t, "merge", files[2], files[0], files[3], files[1])
+			require.Equalf(t, exitOK, m.code, "stderr %q", m.stderr)
+			assert.Equal(t, whole.stdout, m.stdout, "merged %s differs from the unsharded scan", format)
+		})
+	}
+}
+
+// TestMergeFormatOverride: merge --format writes another format than the
+// shards' command line named, as that format's unsharded run does.
+func TestMergeFormatOverride(t *testing.T) {
+	files := runShards(t, t.TempDir(), 3, append(shardScanArgs, "--format", "csv")...)
+	whole := plumbRun(t, append(shardScanArgs, "--format", "json")...)
+	m := plumbRun(t, append([]string{"merge", "--format", "json"}, files...)...)
+	require.Equal(t, exitOK, m.code, m.stderr)
+	assert.Equal(t, whole.stdout, m.stdout)
+}
+
+// TestMergeRefuses: missing, repeated, mismatched, unfinished and foreign
+// shard files are refused with exit 2 and a message naming them; nothing
+// is written on stdout.
+func TestMergeRefuses(t *testing.T) {
+	dir := t.TempDir()
+	files := runShards(t, t.TempDir(), 4, shardScanArgs...)
+	other := runShards(t, t.TempDir(), 4, append(append([]string(nil), shardScanArgs...), "--tol", "1e-7")...)
+	eight := runShards(t, t.TempDir(), 8, shardScanArgs...)
+	full, err := os.ReadFile(files[1])
+	require.NoError(t, err)
+	lines := strings.SplitAfter(strings.TrimSuffix(string(full), "\n"), "\n")
+	cut := filepath.Join(dir, "cut.jsonl")
+	require.NoError(t, os.WriteFile(cut, []byte(strings.Join(lines[:len(lines)-1], "")), 0o644))
+	junk := filepath.Join(dir, "junk.jsonl")
+	require.NoError(t, os.WriteFile(junk, []byte("t,x\n0,1\n"), 0o644))
+	for _, c := range []struct {
+		name  string
+		files []string
+		want  string
+	}{
+		{"missing", []string{files[0], files[1], files[3]}, "shard 3/4 missing"},
+		{"repeated", []string{files[0], files[1], files[1], files[2], files[3]}, "shard 2/4 given twice"},
+		{"mismatched settings", []string{files[0], files[1], other[2], files[3]}, "differ in settings"},
+		{"mismatched count", []string{files[0], files[1], files[2], eight[3]}, "differ in shard count"},
+		{"unfinished", []string{files[0], cut, files[2], files[3]}, "did not finish"},
+		{"not a shard file", []string{junk}, "not a shard file header"},
+		{"no files", nil, "no shard files"},
+		{"no such file", []string{filepath.Join(dir, "nope.jsonl")}, "nope.jsonl"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			r := plumbRun(t, append([]string{"merge"}, c.files...)...)
+			assert.Equal(t, exitUsage, r.code, r.stderr)
+			assert.Contains(t, r.stderr, c.want)
+			assert.Empty(t, r.stdout)
+		})
+	}
+}
+
+// withEnv makes lookupEnv see env alone for the rest of the test.
+func withEnv(t *testing.T, env map[string]string) {
+	t.Helper()
+	old := lookupEnv
+	lookupEnv = func(k string) (string, bool) { v, ok := env[k]; return v, ok }
+	t.Cleanup(func() { lookupEnv = old })
+}
+
+// TestShardAutoKubernetes: the README's Kubernetes indexed Job runs
+// --shard auto with JOB_COMPLETION_INDEX (0-based, set by Kubernetes) and
+// PLUMB_SHARD_COUNT (set in the manifest): index 2 of 4 is shard 3/4, says
+// so on stderr, and writes the same file as --shard 3/4.
+func TestShardAutoKubernetes(t *testing.T) {
+	withEnv(t, map[string]string{"JOB_COMPLETION_INDEX": "2", "PLUMB_SHARD_COUNT": "4"})
+	args := []string{"scan", "--model", "logistic", "--across", "r=2.5:4:40", "--keep", "100", "--discard", "500", "--format", "csv"}
+	auto := plumbRun(t, append(args, "--shard", "auto")...)
+	require.Equal(t, exitOK, auto.code, auto.stderr)
+	assert.Contains(t, auto.stderr, "plumb scan: shard 3/4 (from JOB_COMPLETION_INDEX=2, PLUMB_SHARD_COUNT=4)")
+	fixed := plumbRun(t, append(args, "--shard", "3/4")...)
+	require.Equal(t, exitOK, fixed.code, fixed.stderr)
+	assert.Equal(t, fixed.stdout, auto.stdout)
+	assert.Contains(t, auto.stdout, `"first":20,"end":30`, "shard 3 of 4 of 40 points: the block 20..30 (blocks of 10)")
+}
+
+// TestShardAutoSlurm: a Slurm array --array=1-4 (IDs from 1) gives task
+// ID 1 the first shard; the environment is read only with --shard auto.
+func TestShardAutoSlurm(t *testing.T) {
+	withEnv(t, map[string]string{"SLURM_ARRAY_TASK_ID": "1", "SLURM_ARRAY_TASK_MIN": "1", "SLURM_ARRAY_TASK_MAX": "4", "SLURM_ARRAY_TASK_COUNT": "4"})
+	auto := plumbRun(t, append(shardScanArgs[:len(shardScanArgs)-1:len(shardScanArgs)-1], "--shard", "auto")...)
+	require.Equal(t, exitOK, auto.code, auto.stderr)
+	assert.Contains(t, auto.stderr, "shard 1/4 (from SLURM_ARRAY_TASK_ID=1, SLURM_ARRAY_TASK_MIN=1, SLURM_ARRAY_TASK_COUNT=4)")
+	plain := plumbRun(t, shardScanArgs...)
+	require.Equal(t, exitOK, plain.code, plain.stderr)
+	assert.NotContains(t, plain.stdout, "plumb shard file", "without --shard the environment is not read")
+	assert.Empty(t, plain.stderr)
+}
+
+// TestShardFlagRefused: bad --shard values and an environment without a
+// scheduler's variables are usage errors naming --shard.
+func TestShardFlagRefused(t *testing.T) {
+	withEnv(t, map[string]string{})
+	for _, c := range []struct{ value, want string }{
+		{"0/4", "--shard 0/4"},
+		{"5/4", "--shard 5/4"},
+		{"2", "want i/n"},
+		{"a/b", "whole numbers"},
+		{"auto", "neither SLURM_ARRAY_TASK_ID"},
+	} {
+		r := plumbRun(t, append(shardScanArgs, "--shard", c.value)...)
+		assert.Equal(t, exitUsage, r.code, c.value)
+		assert.Contains(t, r.stderr, c.want, c.value)
+		assert.Empty(t, r.stdout, c.value)
+	}
+}
