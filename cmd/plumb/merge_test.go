@@ -2,6 +2,7 @@ package main
 
 import (
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -151,4 +152,49 @@ func TestShardFlagRefused(t *testing.T) {
 		assert.Contains(t, r.stderr, c.want, c.value)
 		assert.Empty(t, r.stdout, c.value)
 	}
+}
+
+// execLadderArgs is an --exec ladder of six runs of a small sh/awk program
+// (x = (1 + perturb + 100·rtol)·e^(0.9 t), mode b adding a slow drift,
+// mode c failing), for the merge tests.
+func execLadderArgs(t *testing.T) []string {
+	t.Helper()
+	if _, err := os.Stat("/bin/sh"); err != nil {
+		t.Skip("no /bin/sh: the launch test needs a POSIX shell")
+	}
+	if _, err := exec.LookPath("awk"); err != nil {
+		t.Skip("no awk: the ladder's program is an awk script")
+	}
+	script := filepath.Join(t.TempDir(), "ladder.sh")
+	require.NoError(t, os.WriteFile(script, []byte(`[ "$4" = c ] && { echo "mode c stops" >&2; exit 5; }
+awk -v r="$1" -v p="$2" -v m="$4" 'BEGIN { print "t,x"; for (i = 0; i <= 40; i++) { t = i * 0.25; x = (1 + p + r * 100) * exp(0.9 * t); if (m == "b") x = x * (1 + 1e-7 * t); printf "%g,%.17g\n", t, x } }' > "$3"
+`), 0o644))
+	return []string{"trust", "--exec", "/bin/sh " + script + " {rtol} {perturb} {out} {mode}",
+		"--vary", "mode=other:a,b,c", "--tol", "1e-3", "--jobs", "2", "--quiet"}
+}
+
+// TestMergeExecLadder: the merge of 4 shards of an --exec ladder (6 runs:
+// blocks of 2, 2, 1, 1) audits the joined runs into the unsharded audit's
+// output byte for byte, in every format, a failed run included (an exact
+// identity: the audit sees the same runs in the same order).
+func TestMergeExecLadder(t *testing.T) {
+	for _, format := range []string{"table", "json", "csv"} {
+		t.Run(format, func(t *testing.T) {
+			args := append(execLadderArgs(t), "--format", format)
+			whole := plumbRun(t, args...)
+			require.Equal(t, exitOK, whole.code, whole.stderr)
+			require.NotEmpty(t, whole.stdout)
+			files := runShards(t, t.TempDir(), 4, args...)
+			data, err := os.ReadFile(files[3])
+			require.NoError(t, err)
+			assert.Contains(t, string(data), `"first":5,"end":6`, "shard 4/4 of 6 runs is the last run")
+			assert.Contains(t, string(data), `"exit_status":5`, "the failed run is recorded with its status")
+			m := plumbRun(t, "merge", files[3], files[1], files[0], files[2])
+			require.Equalf(t, exitOK, m.code, "stderr %q", m.stderr)
+			assert.Equal(t, whole.stdout, m.stdout, "merged %s differs from the unsharded audit", format)
+		})
+	}
+	r := plumbRun(t, "trust", "--shard", "1/2", "--quiet")
+	assert.Equal(t, exitUsage, r.code)
+	assert.Contains(t, r.stderr, "--shard 1/2: applies to --exec runs only")
 }
