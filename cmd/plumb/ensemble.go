@@ -52,6 +52,12 @@ lightly and the members marked at the --at times). --animate FILE.gif
 writes the members moving across two components (--axes X,Y), the
 control in black, at most 120 frames of at most 800x500 pixels.
 
+--lockstep N integrates the members in groups of N, each group with one
+step size beside its own copy of the control (default: all in one
+group); --shard I/N computes only the I-th of N contiguous blocks of the
+work (the releases, then the groups) and writes a shard file, from which
+'plumb merge' computes exactly the output of the whole ensemble.
+
 This is a statement about the numerical model, not the real system;
 safety-critical use follows the field's codes and licensed review.`,
 	model:   "lorenz",
@@ -72,6 +78,8 @@ type ensembleFlags struct {
 	membersFile         string
 	view, axes, at      string
 	animate             string
+	lockstep            int
+	shard               string
 	dist                distanceFlags
 	alongList, axisList []string
 	atList              []float64
@@ -114,6 +122,8 @@ func setupEnsemble(fs *flag.FlagSet, sh *shared) func(context.Context, *call) er
 	fs.StringVar(&f.axes, "axes", "", "state `NAMES` of the picture's axes: one for --view members, two (X,Y) for projection (default: the first one or two)")
 	fs.StringVar(&f.at, "at", "", "comma-separated `TIMES` at which --view projection marks the members (default: t1/4, t1/2, 3t1/4, t1)")
 	fs.StringVar(&f.animate, "animate", "", "write an animated GIF `FILE` of the members moving across two components (--axes X,Y, default the first two)")
+	fs.IntVar(&f.lockstep, "lockstep", 0, "integrate the members in groups of `N`, each with its own step size and copy of the control (0: all in one group); the units --shard splits")
+	addShardFlag(fs, &f.shard)
 	addDistanceFlags(fs, &f.dist)
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
@@ -149,6 +159,7 @@ type ensembleSettingsJSON struct {
 	Releases     int         `json:"releases"`
 	ReleaseEvery float64     `json:"release_every"`
 	Ratio        float64     `json:"ratio"`
+	Lockstep     int         `json:"lockstep"`
 	Observe      []string    `json:"observe"`
 	Scales       []scaleJSON `json:"scales"`
 }
@@ -204,11 +215,18 @@ func (f *ensembleFlags) run(ctx context.Context, cl *call) error {
 	}
 	s := f.settings
 	s.Distance = dist
+	sh, err := cl.resolveShard(f.shard)
+	if err != nil {
+		return err
+	}
+	if !sh.Whole() {
+		return f.runShard(ctx, cl, sh, sys, &s)
+	}
 	return cl.runJob(ctx, job{
 		what:    "the ensemble of " + sys.Name,
 		refusal: "the ensemble's settings were refused",
 		run: func(ctx context.Context, _ func(float64)) (*outcome, error) {
-			rep, err := plumb.Ensemble(ctx, sys, f.t1, &s)
+			rep, err := f.ensemble(ctx, cl, sys, &s)
 			if rep == nil {
 				return nil, err
 			}
@@ -282,6 +300,8 @@ func (f *ensembleFlags) check(cl *call, sys *plumb.System) error {
 		return usagef("--ratio %s: must be in (1, 100]", formatFloat(f.ratio))
 	case f.workers < 0:
 		return usagef("--workers %d: must be >= 0", f.workers)
+	case f.lockstep < 0:
+		return usagef("--lockstep %d: must be >= 0", f.lockstep)
 	}
 	var err error
 	if f.alongList, err = nameList("along", f.along, sys); err != nil {
@@ -326,7 +346,7 @@ func (f *ensembleFlags) check(cl *call, sys *plumb.System) error {
 	}
 	f.settings = plumb.EnsembleSettings{Members: f.members, Delta: f.delta, Spread: f.spreadKind, Along: f.alongList,
 		Seed: f.seed, Tol: f.tol, Every: f.dt, RelTol: f.rtol, AbsTol: f.atol, MaxSteps: f.maxSteps,
-		Ratio: f.ratio, Releases: releases, ReleaseEvery: f.releaseEvery, Workers: f.workers}
+		Ratio: f.ratio, Releases: releases, ReleaseEvery: f.releaseEvery, Workers: f.workers, Lockstep: f.lockstep}
 	if f.membersFile != "" {
 		return f.readMembers(cl, sys)
 	}
@@ -387,7 +407,7 @@ func (f *ensembleFlags) json(sys *plumb.System, dist plumb.Distance, rep *plumb.
 		Settings: ensembleSettingsJSON{T1: f.t1, Members: f.members, Delta: f.delta, Spread: f.spread,
 			Along: rep.Along, Seed: f.seed, Tol: rep.Tol, Dt: f.settingsDt(), RelTol: f.rtol, AbsTol: f.atol,
 			MaxSteps: f.maxSteps, Releases: f.releases, ReleaseEvery: rep.ReleaseEvery, Ratio: f.ratio,
-			Observe: obs, Scales: scales},
+			Lockstep: f.lockstep, Observe: obs, Scales: scales},
 		Units: ensembleUnitsJSON{
 			Time:     describe(sys).timeUnit("the model's time unit (t1, dt, times, parting_times, predictability_time)"),
 			Distance: rep.Distance.String() + " (delta, tol, spread, largest_pair, saturation, extent, scales[].delta)",
@@ -526,7 +546,7 @@ func (f *ensembleFlags) table(w io.Writer, sys *plumb.System, rep *plumb.Ensembl
 		fmt.Fprintf(tw, "members\t%d around the start, %s spread, delta %s along %s, seed %d\n", rep.Members, rep.Spread, fmtSig(rep.Delta), strings.Join(rep.Along, ", "), rep.Seed)
 	}
 	fmt.Fprintf(tw, "distance\t%s\n", rep.Distance.String())
-	fmt.Fprintf(tw, "method\t%s, rtol %s, atol %s\n", rep.Method, formatFloat(rep.RelTol), formatFloat(rep.AbsTol))
+	fmt.Fprintf(tw, "method\t%s, rtol %s, atol %s%s\n", rep.Method, formatFloat(rep.RelTol), formatFloat(rep.AbsTol), lockstepNote(rep))
 	fmt.Fprintf(tw, "tol\t%s\n", fmtSig(rep.Tol))
 	fmt.Fprintf(tw, "parted\t%s\n", partingSummary(rep, tu))
 	if rep.Releases > 0 {

@@ -198,3 +198,31 @@ func TestMergeExecLadder(t *testing.T) {
 	assert.Equal(t, exitUsage, r.code)
 	assert.Contains(t, r.stderr, "--shard 1/2: applies to --exec runs only")
 }
+
+// shardEnsembleArgs is a small ensemble in 4 lockstep groups of 2: with
+// the releases, 5 units for 4 pieces.
+var shardEnsembleArgs = []string{"ensemble", "--t1", "4", "--members", "8", "--lockstep", "2", "--releases", "6", "--quiet"}
+
+// TestMergeEnsembleEveryFormat: the merge of 4 shards of an ensemble
+// computes the unsharded ensemble's output byte for byte, in every format
+// (an exact identity: each lockstep group's run depends on its own
+// members only, and merge runs the same reduction on the same numbers).
+func TestMergeEnsembleEveryFormat(t *testing.T) {
+	for _, format := range []string{"table", "json", "csv", "jsonl"} {
+		t.Run(format, func(t *testing.T) {
+			args := append(append([]string(nil), shardEnsembleArgs...), "--format", format)
+			whole := plumbRun(t, args...)
+			require.Equal(t, exitOK, whole.code, whole.stderr)
+			require.NotEmpty(t, whole.stdout)
+			files := runShards(t, t.TempDir(), 4, args...)
+			m := plumbRun(t, "merge", files[1], files[3], files[2], files[0])
+			require.Equalf(t, exitOK, m.code, "stderr %q", m.stderr)
+			assert.Equal(t, whole.stdout, m.stdout, "merged %s differs from the unsharded ensemble", format)
+		})
+	}
+	other := runShards(t, t.TempDir(), 4, append(append([]string(nil), shardEnsembleArgs...), "--seed", "2")...)
+	files := runShards(t, t.TempDir(), 4, shardEnsembleArgs...)
+	r := plumbRun(t, "merge", files[0], files[1], other[2], files[3])
+	assert.Equal(t, exitUsage, r.code)
+	assert.Contains(t, r.stderr, "differ in settings")
+}
