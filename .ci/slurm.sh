@@ -2,9 +2,9 @@
 # A real Slurm array job: install Slurm from Debian's packages (slurm-wlm,
 # munge), start a one-node cluster on this machine (munged, slurmctld,
 # slurmd, each with its files in a temporary directory), submit an array of
-# 4 tasks each running one --shard of a plumb scan, wait for them, join the
-# shard files with plumb merge and compare the bytes with the unsharded
-# scan (cmp). The job script is the README's.
+# 4 tasks each running one --shard of a plumb scan (the README's job
+# script, taken from README.md), wait for them, join the shard files with
+# plumb merge and compare the bytes with the unsharded scan (cmp).
 #
 # Usage: bash .ci/slurm.sh [PLUMB_BINARY]   (default: build ./cmd/plumb)
 #
@@ -120,17 +120,17 @@ for _ in $(seq 120); do
 done
 case "$state" in idle*|mix*|alloc*) echo "== one-node cluster up: $host is $state" ;; *) echo "the node did not come up (sinfo: '$state')"; exit 1 ;; esac
 
-# The README's job script: one shard of the scan per array task.
-scan_args=(--model logistic --across r=2.5:4:2000 --keep 500 --discard 1000 --format csv)
-cat > "$tmp/scan.sbatch" <<EOF
-#!/bin/bash
-#SBATCH --job-name=orbit-diagram
-#SBATCH --array=0-3
-#SBATCH --cpus-per-task=1
-#SBATCH --output=$tmp/out/task-%a.log
-$bin scan ${scan_args[*]} --shard auto > $tmp/out/shard-\$SLURM_ARRAY_TASK_ID.jsonl
-EOF
-job=$(sbatch --parsable "$tmp/scan.sbatch")
+# The README's job script (between its "slurm job script" markers): one
+# shard of the scan per array task, run in $tmp/out with plumb on PATH.
+script="$tmp/diagram.sbatch"
+awk '/<!-- slurm job script -->/ { f = 1; next } /<!-- end slurm job script -->/ { f = 0 } f' README.md | sed '/^```/d' > "$script"
+scan_line=$(grep -m1 '^plumb scan .* --shard auto' "$script" || true)
+if [ -z "$scan_line" ]; then
+  echo "README.md has no job script with a 'plumb scan ... --shard auto' line between its slurm job script markers"; exit 1
+fi
+grep -q -- '--array=0-3' "$script" || { echo "the README's job script is not an array of the 4 tasks 0-3"; exit 1; }
+whole_cmd=${scan_line%% --shard auto*}
+job=$(sbatch --parsable --chdir="$tmp/out" --export=ALL,PATH="$tmp:$PATH" "$script")
 job=${job%%;*}
 echo "== submitted array job $job (4 tasks)"
 deadline=$(( $(date +%s) + 300 ))
@@ -148,7 +148,8 @@ for i in 0 1 2 3; do
 done
 echo "== each task said which shard it was, e.g. $(grep -h 'from SLURM' "$tmp/out/task-2.log")"
 "$bin" merge "$tmp"/out/shard-*.jsonl > "$tmp/merged.csv" 2> "$tmp/merge.err" || { cat "$tmp/merge.err"; exit 1; }
-"$bin" scan "${scan_args[@]}" --quiet > "$tmp/whole.csv"
+echo "\$ $whole_cmd   # unsharded"
+(cd "$tmp" && PATH="$tmp:$PATH" bash -c "$whole_cmd --quiet") > "$tmp/whole.csv"
 if ! cmp "$tmp/whole.csv" "$tmp/merged.csv"; then
   echo "FAIL: the merged array job differs from the unsharded scan"; exit 1
 fi
