@@ -77,6 +77,10 @@ func ParseShard(text string) (Shard, error) {
 		return Shard{}, fmt.Errorf("plumb: shard %q: i and n must be whole numbers: %w", text, ErrShard)
 	}
 	s := Shard{Index: i, Count: n}
+	if s.Whole() {
+		// The zero Shard is the whole run, which "i/n" never names.
+		return Shard{}, fmt.Errorf("plumb: shard %q: want i/n with 1 <= i <= n: %w", text, ErrShard)
+	}
 	if err := s.Validate(); err != nil {
 		return Shard{}, err
 	}

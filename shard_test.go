@@ -38,7 +38,7 @@ func TestParseShard(t *testing.T) {
 	require.NoError(t, err)
 	assert.Equal(t, Shard{Index: 2, Count: 4}, s)
 	assert.Equal(t, "2/4", s.String())
-	for _, bad := range []string{"", "2", "0/4", "5/4", "-1/4", "1/0", "a/4", "1/b", "1/2/3", "1/2000000"} {
+	for _, bad := range []string{"", "2", "0/4", "5/4", "-1/4", "1/0", "a/4", "1/b", "1/2/3", "1/2000000", "0/0"} {
 		_, err := ParseShard(bad)
 		assert.Truef(t, errors.Is(err, ErrShard), "%q: %v", bad, err)
 	}
@@ -105,6 +105,10 @@ func FuzzReadShardPiece(f *testing.F) {
 	f.Add(head + "\n{\"status\":\"canceled\",\"error\":\"x\",\"done\":0}\n")
 	f.Add("")
 	f.Add("{}\n")
+	ens := strings.Replace(head, "parameter points", "ensemble units", 1)
+	f.Add(ens + "\n{\"unit\":0,\"releases\":{\"times\":[0,1],\"separations\":[[1,2]]}}\n{\"unit\":1,\"group\":{\"index\":0,\"first\":1,\"count\":1,\"dim\":1,\"times\":[0],\"states\":[[1,2]],\"status\":\"completed\"}}\n{\"status\":\"completed\",\"error\":\"\",\"done\":2}\n")
+	f.Add(head + "\n{\"unit\":0,\"releases\":null}\n{\"unit\":1,\"group\":{\"index\":0,\"times\":[0],\"states\":[]}}\n{\"status\":\"completed\",\"error\":\"\",\"done\":2}\n")
+	f.Add(head + "\n{\"index\":0,\"label\":\"reference\",\"t\":[0],\"y\":[1,2],\"names\":[\"x\"]}\n{\"index\":1,\"params\":[1,2]}\n{\"status\":\"completed\",\"error\":\"\",\"done\":2}\n")
 	f.Fuzz(func(t *testing.T, text string) {
 		p, err := ReadShardPiece("f", strings.NewReader(text))
 		if err != nil {
@@ -115,6 +119,44 @@ func FuzzReadShardPiece(f *testing.F) {
 		}
 		if len(p.Records) != p.Header.End-p.Header.First {
 			t.Fatalf("%d records for %d..%d", len(p.Records), p.Header.First, p.Header.End)
+		}
+		// The decoders of each command's records refuse what is not
+		// theirs, without a panic.
+		set, err := JoinShards([]*ShardPiece{p})
+		if err != nil {
+			return
+		}
+		if _, err := ScanRows(set, 1); err != nil && !errors.Is(err, ErrShard) {
+			t.Fatalf("scan rows: %v", err)
+		}
+		if _, err := ProgramRuns(set, nil); err != nil && !errors.Is(err, ErrShard) {
+			t.Fatalf("runs: %v", err)
+		}
+		if _, err := EnsembleParts(set); err != nil && !errors.Is(err, ErrShard) {
+			t.Fatalf("ensemble parts: %v", err)
+		}
+	})
+}
+
+// FuzzShardFromEnv: no environment panics ShardFromEnv; a shard it
+// returns is valid.
+func FuzzShardFromEnv(f *testing.F) {
+	f.Add("2", "0", "3", "4", "", "", "")
+	f.Add("8", "0", "12", "4", "4", "", "")
+	f.Add("", "", "", "", "", "1", "3")
+	f.Add("3", "1", "7", "3", "", "", "")
+	f.Fuzz(func(t *testing.T, id, lo, hi, count, step, kube, kcount string) {
+		env := map[string]string{SlurmTaskIDEnv: id, SlurmTaskMinEnv: lo, SlurmTaskMaxEnv: hi, SlurmTaskCountEnv: count,
+			SlurmTaskStepEnv: step, KubeIndexEnv: kube, ShardCountEnv: kcount}
+		s, _, err := ShardFromEnv(func(k string) (string, bool) { v := env[k]; return v, v != "" })
+		if err != nil {
+			if !errors.Is(err, ErrShard) {
+				t.Fatalf("error without ErrShard: %v", err)
+			}
+			return
+		}
+		if s.Whole() || s.Validate() != nil {
+			t.Fatalf("invalid shard %v", s)
 		}
 	})
 }

@@ -1,6 +1,9 @@
 package main
 
 import (
+	"context"
+	"encoding/binary"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -142,6 +145,7 @@ func TestShardFlagRefused(t *testing.T) {
 	withEnv(t, map[string]string{})
 	for _, c := range []struct{ value, want string }{
 		{"0/4", "--shard 0/4"},
+		{"0/0", "--shard 0/0"},
 		{"5/4", "--shard 5/4"},
 		{"2", "want i/n"},
 		{"a/b", "whole numbers"},
@@ -225,4 +229,67 @@ func TestMergeEnsembleEveryFormat(t *testing.T) {
 	r := plumbRun(t, "merge", files[0], files[1], other[2], files[3])
 	assert.Equal(t, exitUsage, r.code)
 	assert.Contains(t, r.stderr, "differ in settings")
+}
+
+// TestScanNPY: --format npy is a NumPy v1.0 '<f8' C-order array whose
+// header is padded to 64 bytes, with the CSV's columns and rows: every
+// value is the CSV's to the bit (CSV writes the shortest decimal that
+// reads back to the same float64).
+func TestScanNPY(t *testing.T) {
+	args := []string{"scan", "--across", "r=2:3.2:4", "--keep", "8", "--discard", "100", "--quiet"}
+	csvOut := plumbRun(t, append(args, "--format", "csv")...)
+	require.Equal(t, exitOK, csvOut.code, csvOut.stderr)
+	npy := plumbRun(t, append(args, "--format", "npy")...)
+	require.Equal(t, exitOK, npy.code, npy.stderr)
+	b := []byte(npy.stdout)
+	require.Equal(t, "\x93NUMPY\x01\x00", string(b[:8]))
+	hlen := int(binary.LittleEndian.Uint16(b[8:10]))
+	require.Zero(t, (10+hlen)%64, "the header ends on a 64-byte boundary (NEP 1)")
+	head := string(b[10 : 10+hlen])
+	rows := strings.Split(strings.TrimSpace(csvOut.stdout), "\n")[1:]
+	assert.Equal(t, "{'descr': '<f8', 'fortran_order': False, 'shape': ("+itoa(len(rows))+", 4), }", strings.TrimRight(head, " \n"))
+	body := b[10+hlen:]
+	require.Len(t, body, len(rows)*4*8)
+	for i, line := range rows {
+		for j, cell := range strings.Split(line, ",") {
+			got := math.Float64frombits(binary.LittleEndian.Uint64(body[(i*4+j)*8:]))
+			want, err := strconv.ParseFloat(cell, 64)
+			require.NoError(t, err, cell)
+			assert.Equalf(t, math.Float64bits(want), math.Float64bits(got), "row %d column %d: %s", i, j, cell)
+		}
+	}
+}
+
+// TestShardCanceled: a piece stopped by Ctrl-C writes a closing line that
+// says canceled (exit 1), and merge refuses it, naming the piece.
+func TestShardCanceled(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r := plumbRunCtx(t, ctx, append(shardScanArgs, "--shard", "2/2")...)
+	assert.Equal(t, exitFailed, r.code, r.stderr)
+	assert.Contains(t, r.stdout, `"status":"canceled"`)
+	dir := t.TempDir()
+	files := runShards(t, dir, 2, shardScanArgs...)
+	require.NoError(t, os.WriteFile(files[1], []byte(r.stdout), 0o644))
+	m := plumbRun(t, append([]string{"merge"}, files...)...)
+	assert.Equal(t, exitUsage, m.code)
+	assert.Contains(t, m.stderr, "shard 2/2 ended canceled")
+}
+
+// TestMergeChangedInput: merge refuses pieces whose --members-file has
+// changed since they read it (its SHA-256 is in every shard file).
+func TestMergeChangedInput(t *testing.T) {
+	dir := t.TempDir()
+	members := filepath.Join(dir, "members.csv")
+	require.NoError(t, os.WriteFile(members, []byte("x,y,z\n1.000001,1,1\n1,1.000001,1\n"), 0o644))
+	args := []string{"ensemble", "--members-file", members, "--t1", "1", "--releases", "0", "--tol", "1", "--dt", "0.5", "--lockstep", "1", "--quiet"}
+	files := runShards(t, dir, 2, args...)
+	whole := plumbRun(t, args...)
+	ok := plumbRun(t, append([]string{"merge"}, files...)...)
+	require.Equal(t, exitOK, ok.code, ok.stderr)
+	assert.Equal(t, whole.stdout, ok.stdout)
+	require.NoError(t, os.WriteFile(members, []byte("x,y,z\n1.000002,1,1\n1,1.000001,1\n"), 0o644))
+	m := plumbRun(t, append([]string{"merge"}, files...)...)
+	assert.Equal(t, exitUsage, m.code)
+	assert.Contains(t, m.stderr, "--members-file "+members+" has changed since the pieces read it")
 }
