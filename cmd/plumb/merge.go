@@ -20,16 +20,18 @@ bytes the same command without --shard writes: its table, CSV, JSON, JSON
 Lines or .npy, and its --plot picture. The settings come from the files:
 every piece must come from the same plumb version, command line and input
 files (--file, --members-file: their SHA-256 is checked against the files
-as they are now), and each piece 1..N must be given once and have
+as they are now, by the names the pieces were given, so run merge where
+the pieces ran), and each piece 1..N must be given once and have
 finished; otherwise merge names the missing, repeated or mismatched files
-and writes nothing. --format and --quiet, when given, replace the
-recorded ones.
+and writes nothing. --format recorded (the default) writes the format the
+pieces' command line asked for; another --format replaces it, and --quiet
+adds itself.
 
 A scan's and a ladder's pieces hold their rows and runs; an ensemble's
 pieces hold the members' states at the report times, and merge computes
 the spread, the parting times and the finite-size exponents from them;
 the --exec audit runs on the joined runs.`,
-	formats:    []string{"table", "csv", "json", "jsonl", "npy"},
+	formats:    []string{"recorded", "table", "csv", "json", "jsonl", "npy"},
 	positional: "FILES...",
 	setup:      setupMerge,
 }
@@ -88,7 +90,7 @@ func runMerge(ctx context.Context, cl *call) error {
 		}
 	}
 	args := append([]string(nil), h.Args...)
-	if cl.sh.given["format"] {
+	if cl.sh.format != "recorded" {
 		args = append(args, "--format", cl.sh.format)
 	}
 	if cl.sh.quiet {
