@@ -24,8 +24,8 @@ as they are now, by the names the pieces were given, so run merge where
 the pieces ran), and each piece 1..N must be given once and have
 finished; otherwise merge names the missing, repeated or mismatched files
 and writes nothing. --format recorded (the default) writes the format the
-pieces' command line asked for; another --format replaces it, and --quiet
-adds itself.
+pieces' command line asked for; another --format replaces it, and
+--quiet silences the merged command's stderr too.
 
 A scan's and a ladder's pieces hold their rows and runs; an ensemble's
 pieces hold the members' states at the report times, and merge computes
