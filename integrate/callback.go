@@ -17,6 +17,7 @@ const (
 	CallbackJacobian    = "Jacobian"
 	CallbackCrossing    = "crossing function"
 	CallbackProgress    = "progress function"
+	CallbackSample      = "sample function"
 	CallbackMap         = "map"
 	CallbackMapJacobian = "map Jacobian"
 )

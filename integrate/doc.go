@@ -7,8 +7,12 @@
 // Solve integrates a Problem over [T0, t1] with a Method and Settings and
 // returns a Solution: the accepted steps, a continuous extension (At),
 // samples on a grid (Settings.Every, Settings.Times), located crossings
-// (Settings.Crossings), work counts (Stats) and why it ended (Status). A
-// Stepper takes one accepted step at a time for callers that own their loop.
+// (Settings.Crossings), work counts (Stats) and why it ended (Status).
+// Stream runs the same loop but hands each sample (or each accepted step)
+// to a function as it is computed and keeps none, for runs whose output is
+// larger than memory; SampleCount says up front how many samples a grid
+// gives. A Stepper takes one accepted step at a time for callers that own
+// their loop.
 // A nil Method means DormandPrince54; a nil *Settings means the documented
 // defaults.
 //

@@ -21,7 +21,14 @@ import (
 // function, the progress function) is recovered, once per call of Solve,
 // into a *CallbackError (wrapping ErrCallback) that names the callback and
 // the time, returned with the partial solution.
-func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (out *Solution, err error) {
+func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (*Solution, error) {
+	return solve(ctx, p, t1, m, s, nil)
+}
+
+// solve is Solve, or with each != nil Stream: every sample (or, with no
+// grid, every accepted step) goes to each as it is computed and none is
+// kept.
+func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, each func(t float64, y []float64) error) (out *Solution, err error) {
 	if ctx == nil {
 		ctx = context.Background()
 	}
@@ -42,9 +49,14 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 	}
 	defer sol.seal()
 	var cf *crossFinder
+	inEach := false
 	defer func() {
 		if v := recover(); v != nil {
-			out, err = sol, st.recovered(v, cf)
+			if inEach {
+				out, err = sol, Recovered(CallbackSample, st.t, v)
+			} else {
+				out, err = sol, st.recovered(v, cf)
+			}
 			sol.Stats = st.stats
 			sol.Status = Failed
 			// The solution ends at the last point whose results are
@@ -59,11 +71,37 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 			}
 		}
 	}()
-	keep := !c.drop
+	keep := !c.drop && each == nil
 	var tbv [1]float64
 	if keep {
 		sol.tBuf.add([]float64{p.T0})
 		sol.yBuf.add(p.Y0)
+	}
+	if len(c.crossings) > 0 {
+		cf = newCrossFinder(c.crossings, p.T0, p.Y0)
+		if cf.err != nil {
+			return nil, cf.err
+		}
+	}
+	// emit passes one point to each; an error from it stops the run at
+	// the start of the current step, the last point all of whose samples
+	// were delivered.
+	var ebuf []float64
+	emit := func(t float64, y []float64) error {
+		inEach = true
+		err := each(t, y)
+		inEach = false
+		return err
+	}
+	stopped := func(err error) (*Solution, error) {
+		sol.Stats = st.stats
+		sol.End = st.tPrev
+		sol.Final = append([]float64(nil), st.yPrev...)
+		if st.stats.Accepted == 0 {
+			sol.End, sol.Final = p.T0, append([]float64(nil), p.Y0...)
+		}
+		sol.Status = Failed
+		return sol, err
 	}
 
 	// The sampling grid: t0 + i·Every, then t1; or the caller's Times.
@@ -73,19 +111,31 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 	} else if c.times != nil {
 		grid = gridIter{times: c.times, n: len(c.times)}
 	}
+	if each != nil {
+		ebuf = make([]float64, n)
+		if grid.n == 0 {
+			// The steps: the start first.
+			copy(ebuf, p.Y0)
+			if err := emit(p.T0, ebuf); err != nil {
+				return stopped(err)
+			}
+		}
+	}
 	if grid.n > 0 {
 		// Samples at t0.
 		for grid.i < grid.n && grid.at(grid.i) == p.T0 {
+			if each != nil {
+				copy(ebuf, p.Y0)
+				if err := emit(p.T0, ebuf); err != nil {
+					return stopped(err)
+				}
+				grid.i++
+				continue
+			}
 			smp := sol.newSample(n, grid.n)
 			smp.T = p.T0
 			copy(smp.Y, p.Y0)
 			grid.i++
-		}
-	}
-	if len(c.crossings) > 0 {
-		cf = newCrossFinder(c.crossings, p.T0, p.Y0)
-		if cf.err != nil {
-			return nil, cf.err
 		}
 	}
 	eval := func(theta float64, dst []float64) {
@@ -124,6 +174,18 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 			if (tg-end)*st.dir > 0 {
 				break
 			}
+			if each != nil {
+				if tg == tb {
+					copy(ebuf, st.y)
+				} else {
+					eval((tg-ta)/h, ebuf)
+				}
+				if err := emit(tg, ebuf); err != nil {
+					return stopped(err)
+				}
+				grid.i++
+				continue
+			}
 			smp := sol.newSample(n, grid.n)
 			smp.T = tg
 			if tg == tb {
@@ -132,6 +194,18 @@ func Solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings) (o
 				eval((tg-ta)/h, smp.Y)
 			}
 			grid.i++
+		}
+		if each != nil && grid.n == 0 {
+			// The step's end, or the stopping crossing within it.
+			te, ye := tb, st.y
+			if stop {
+				hit := sol.Hits[len(sol.Hits)-1]
+				te, ye = hit.T, hit.Y
+			}
+			copy(ebuf, ye)
+			if err := emit(te, ebuf); err != nil {
+				return stopped(err)
+			}
 		}
 		if keep {
 			switch {

@@ -115,7 +115,7 @@ func runRecorded(ctx context.Context, outer *call, cmd *command, args []string, 
 	if err := sh.check(cmd); err != nil {
 		return err
 	}
-	cl := &call{cmd: cmd, sh: sh, args: fs.Args(), stdin: outer.stdin, stdout: outer.stdout, stderr: outer.stderr,
+	cl := &call{cmd: cmd, sh: sh, args: fs.Args(), stdin: outer.stdin, stdout: outer.stdout, rawStdout: outer.rawStdout, stderr: outer.stderr,
 		progress: !sh.quiet && outer.progress, raw: args, merge: in}
 	return work(ctx, cl)
 }

@@ -37,6 +37,10 @@ type call struct {
 	// files plumb merge joins, which the command reads instead of computing.
 	raw   []string
 	merge *mergeInput
+
+	// rawStdout is the stdout under the buffer, for a result that seeks
+	// back into a file (the row count of a .npy header).
+	rawStdout io.Writer
 }
 
 // usageError is bad usage or bad input: exit status 2.
@@ -119,7 +123,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 	}
 	bw := bufio.NewWriter(stdout)
 	cl := &call{
-		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, stderr: stderr,
+		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, rawStdout: stdout, stderr: stderr,
 		progress: !sh.quiet && isTerminal(stderr), raw: args,
 	}
 	err = work(ctx, cl)

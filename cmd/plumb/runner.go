@@ -48,6 +48,9 @@ type outcome struct {
 	table func(w io.Writer) error
 	csv   func(w io.Writer) error
 	jsonl func(w io.Writer) error
+	// tail, when not nil, finishes a result whose start the run has
+	// already written as it went (in every format), instead of the above.
+	tail func(w io.Writer) error
 	// chart, when not nil, draws the --plot picture; nil from it draws
 	// nothing (no curve to draw). draw, for a picture that is not one
 	// chart (panels, a projection), saves it to the --plot file instead.
@@ -129,6 +132,8 @@ func (cl *call) drawPlot(res *outcome) error {
 // writeResult writes res in the chosen --format.
 func (cl *call) writeResult(res *outcome) error {
 	switch {
+	case res.tail != nil:
+		return res.tail(cl.stdout)
 	case cl.sh.format == "json":
 		return writeJSON(cl.stdout, res.json())
 	case cl.sh.format == "csv" && res.csv != nil:

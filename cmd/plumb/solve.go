@@ -2,12 +2,12 @@ package main
 
 import (
 	"context"
-	"encoding/csv"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
@@ -21,11 +21,27 @@ var solveCmd = &command{
 state every --dt (or at every accepted step with --dt 0), with the times at
 which a state component crosses a value (--cross-state x=0).
 
-The table and CSV give 10 and 17 significant digits; JSON and CSV hold the
-shortest decimals that read back to the same bits. --format json writes one
-object; JSON keys: plumb_version, arch, command, system (with the
-parameters as used), settings (echoed), units, status, error (null unless
-the run failed or was canceled), end, final, stats, samples, crossings.
+Rows are written as they are computed, in every format, so memory stays
+flat whatever the span (crossings, far fewer, are kept until the end; --plot
+keeps the samples to draw them). The table and CSV give 10 and 17
+significant digits; JSON, JSON Lines and CSV hold the shortest decimals that
+read back to the same bits. --format json writes one object, what is known
+at the end last; JSON keys: plumb_version, arch, command, system (with the
+parameters as used), settings (echoed), units, samples, crossings, status,
+error (null unless the run failed or was canceled), end, final, stats.
+--format jsonl writes one line of the keys before samples, then one line
+{"t": T, "y": [...]} per sample, then one line of the keys after them.
+--format npy writes NumPy's .npy: the samples as an N x (1+d) float64 array,
+the time first; the status and error go to stderr (with the exit status),
+crossings are refused (write them with csv, json or jsonl). On a file the
+row count is set at the end; on a pipe it is the grid's, announced up
+front, and rows a run did not reach are NaN; --dt 0 (a count known only at
+the end) needs a file.
+
+The step budget (--max-steps) follows the span unless given: the default
+run's budget per unit of time, so a longer span never stops short for want
+of steps; a fixed step that cannot finish within a given budget is refused
+before the run.
 
 A map (henon, logistic, standard, ikeda, or a system file of kind map) is
 iterated instead: --steps N writes the iterates n = 0..N (angles reduced to
@@ -38,7 +54,7 @@ The time and integrator flags are for flows only.
 On Ctrl-C, or when the integration fails, the samples computed so far are
 still written; the exit status is then 1.`,
 	model:   "lorenz",
-	formats: []string{"table", "json", "csv"},
+	formats: []string{"table", "json", "csv", "jsonl", "npy"},
 	plots:   true,
 	setup:   setupSolve,
 }
@@ -87,7 +103,7 @@ func setupSolve(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 	finiteVar(fs, &f.atol, "atol", solveAtol, "absolute tolerance `ATOL` of the local error test, in state units; 0 means the SDK's "+formatFloat(integrate.DefaultAbsTol))
 	fs.StringVar(&f.method, "method", methods[0].name, methodHelp())
 	finiteVar(fs, &f.h, "step", 0, "step size `H` of a fixed-step method (-h is help)")
-	fs.IntVar(&f.maxSteps, "max-steps", integrate.DefaultMaxSteps, "at most `N` attempted steps; the run fails beyond them (0 means the SDK's default, raised for a fixed step to what its span needs)")
+	fs.IntVar(&f.maxSteps, "max-steps", 0, "at most `N` attempted steps; the run fails beyond them (default 0: the budget follows the span, "+formatFloat(stepsPerTime)+" steps per unit of time, at least "+strconv.Itoa(integrate.DefaultMaxSteps)+", and for a fixed step at least the steps its span needs; a fixed step that cannot finish within a given N is refused before the run)")
 	fs.Var(&f.cross, "cross-state", "find the times at which a state crosses a value, given as `NAME=VALUE` (repeatable)")
 	fs.StringVar(&f.sense, "cross-sense", "either", "`SENSE` of the crossings that count: rising, falling or either")
 	fs.StringVar(&f.rows, "rows", "samples", "`ROWS` that --format csv writes: samples or crossings")
@@ -139,8 +155,19 @@ func (c crossSpec) label() string { return c.state + "=" + formatFloat(c.value) 
 
 var senses = map[string]integrate.Sense{"either": integrate.Either, "rising": integrate.Rising, "falling": integrate.Falling}
 
-// solveJSON is the --format json result of plumb solve.
+// solveJSON is the --format json result of plumb solve: what is known
+// before the run, the samples as they are computed, then what is known
+// at the end. The keys come in that order so that the document streams.
 type solveJSON struct {
+	solveHeadJSON
+	// Samples holds the state at the sampling times (or accepted steps).
+	Samples []sampleJSON `json:"samples"`
+	solveTailJSON
+}
+
+// solveHeadJSON opens a solve result: what is known before the run (the
+// first line of --format jsonl).
+type solveHeadJSON struct {
 	header
 	// System is the system integrated, with the parameters as used.
 	System systemJSON `json:"system"`
@@ -148,6 +175,13 @@ type solveJSON struct {
 	Settings solveSettingsJSON `json:"settings"`
 	// Units says in what units the numbers are.
 	Units solveUnitsJSON `json:"units"`
+}
+
+// solveTailJSON closes a solve result: what is known at the end (the last
+// line of --format jsonl).
+type solveTailJSON struct {
+	// Crossings holds the located crossings in time order.
+	Crossings []crossingJSON `json:"crossings"`
 	// Status is completed, canceled or failed.
 	Status string `json:"status"`
 	// Error says why a run that did not complete stopped (null when it
@@ -158,10 +192,6 @@ type solveJSON struct {
 	Final []float64 `json:"final"`
 	// Stats counts the work done.
 	Stats statsJSON `json:"stats"`
-	// Samples holds the state at the sampling times (or accepted steps).
-	Samples []sampleJSON `json:"samples"`
-	// Crossings holds the located crossings in time order.
-	Crossings []crossingJSON `json:"crossings"`
 }
 
 // solveSettingsJSON echoes the settings of a solve, defaults included.
@@ -231,14 +261,17 @@ type crossingJSON struct {
 	Y        []float64 `json:"y"`
 }
 
-// solveRun is a finished (or partly finished) solve, ready to write.
+// solveRun is a solve: its settings, then as it runs the samples written,
+// and at the end the solution and why it stopped.
 type solveRun struct {
 	f     *solveFlags
 	sys   *plumb.System
 	m     method
+	im    integrate.Method
 	sol   *integrate.Solution
 	cross []crossSpec
-	rows  []integrate.Sample // samples, or the accepted steps with --dt 0
+	n     int                // samples (or accepted steps with --dt 0) written
+	rows  []integrate.Sample // the samples, kept only for --plot
 	err   error              // why the run did not complete
 }
 
@@ -263,6 +296,9 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 		return err
 	}
 	if sys.Kind() == plumb.KindMap {
+		if cl.sh.format == "jsonl" || cl.sh.format == "npy" {
+			return usagef("--format %s: the orbit of a map (%s) is written as table, json or csv", cl.sh.format, sys.Name)
+		}
 		return f.runMap(ctx, cl, sys)
 	}
 	if cl.sh.given["steps"] {
@@ -282,6 +318,12 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	if f.dt > 0 && span/f.dt > maxSamples {
 		return usagef("--dt %s: would write %.3g samples over a span of %s (at most %d)", formatFloat(f.dt), span/f.dt, formatFloat(span), maxSamples)
 	}
+	if err := f.budget(m, span, cl.sh.given["max-steps"]); err != nil {
+		return err
+	}
+	if cl.sh.format == "npy" && len(f.cross) > 0 {
+		return usagef("--cross-state %s: --format npy holds the samples only; write the crossings with --format csv --rows crossings, json or jsonl", f.cross.String())
+	}
 	var crossings []integrate.Crossing
 	for _, c := range f.cross {
 		i := stateIndex(sys, c.state)
@@ -300,7 +342,7 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	p.T0 = f.t0
 	s := &integrate.Settings{
 		RelTol: f.rtol, AbsTol: f.atol, MaxSteps: f.maxSteps,
-		Every: f.dt, DropSteps: f.dt > 0, Crossings: crossings,
+		Every: f.dt, DropSteps: true, Crossings: crossings,
 	}
 	if err := s.Validate(); err != nil {
 		return settingUsage(err, solveSettingFlags)
@@ -308,6 +350,12 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 	// Echo the tolerances the run uses (0 stands for the SDK's default).
 	eff := s.WithDefaults()
 	f.rtol, f.atol = eff.RelTol, eff.AbsTol
+	r := &solveRun{f: f, sys: sys, m: m, im: im, cross: f.cross}
+	sink, err := r.newSink(cl, integrate.SampleCount(f.t0, f.t1, s))
+	if err != nil {
+		return err
+	}
+	keep := cl.sh.plot != ""
 	return cl.runJob(ctx, job{
 		what:    "the integration of " + sys.Name,
 		refusal: "the integrator refused the settings",
@@ -315,46 +363,85 @@ func (f *solveFlags) run(ctx context.Context, cl *call) error {
 		reword:  m.reword(sys),
 		run: func(ctx context.Context, progress func(float64)) (*outcome, error) {
 			s.Progress = progress
-			sol, err := integrate.Solve(ctx, p, f.t1, im, s)
+			sol, err := integrate.Stream(ctx, p, f.t1, im, s, func(t float64, y []float64) error {
+				r.n++
+				if keep {
+					r.rows = append(r.rows, integrate.Sample{T: t, Y: append([]float64(nil), y...)})
+				}
+				return sink.sample(t, y)
+			})
 			if sol == nil {
 				// Nothing was stepped: the input was refused or the field failed at the start.
 				return nil, err
 			}
-			r := &solveRun{f: f, sys: sys, m: m, sol: sol, cross: f.cross, err: err}
-			return r.result(span), nil
+			r.sol, r.err = sol, err
+			return r.result(span, sink), nil
 		},
 	})
 }
 
-// result is the run ready to write: the samples (or the accepted steps
-// with --dt 0), and the error worded with what was written; span is
-// |t1 - t0|.
-func (r *solveRun) result(span float64) *outcome {
-	f, sol := r.f, r.sol
-	r.rows = sol.Samples
-	if f.dt == 0 {
-		r.rows = make([]integrate.Sample, len(sol.T))
-		for i := range sol.T {
-			r.rows[i] = integrate.Sample{T: sol.T[i], Y: sol.Y[i*sol.Dim : (i+1)*sol.Dim]}
-		}
+// budget sets --max-steps when it was not given (or given as 0) so that
+// it follows the span: the default run's budget per unit of time, and for
+// a fixed step at least the steps its span needs. A budget given that a
+// fixed step cannot finish within is refused before any work.
+func (f *solveFlags) budget(m method, span float64, given bool) error {
+	if f.maxSteps < 0 {
+		return nil // the settings' check words it
 	}
+	need := 0.0
+	if m.fixed {
+		need = math.Ceil(span / f.h)
+	}
+	if given && f.maxSteps > 0 {
+		if m.fixed && need > float64(f.maxSteps) {
+			return usagef("--max-steps %d: a fixed step of %s takes %.0f steps over the span of %s; raise --max-steps to at least that, take a larger --step, or leave --max-steps out", f.maxSteps, formatFloat(f.h), need, formatFloat(span))
+		}
+		return nil
+	}
+	need++ // a last step of a sliver, where rounding leaves one
+	b := math.Max(float64(integrate.DefaultMaxSteps), math.Ceil(span*stepsPerTime))
+	b = math.Max(b, need)
+	if b > maxBudget {
+		return usagef("--t1 %s: a span of %s needs a step budget beyond %.3g steps; integrate a shorter span", formatFloat(f.t1), formatFloat(span), float64(maxBudget))
+	}
+	f.maxSteps = int(b)
+	return nil
+}
+
+// The default step budget of a flow follows the span: the SDK's default
+// budget for the default span, per unit of time.
+const (
+	stepsPerTime = float64(integrate.DefaultMaxSteps) / solveT1
+	// maxBudget keeps the budget an int on every platform (and beyond
+	// any run that could finish).
+	maxBudget = 1 << 52
+)
+
+// result is the run ready to finish writing: the error worded with what
+// was written; span is |t1 - t0|.
+func (r *solveRun) result(span float64, sink solveSink) *outcome {
+	f, sol := r.f, r.sol
+	finish := func(w io.Writer) error { return sink.finish(r) }
 	res := &outcome{
-		json:  func() any { return r.json() },
-		table: r.table,
-		csv:   r.csv,
+		tail:  finish,
 		chart: r.chart,
-		done:  count(len(r.rows), "sample") + ", " + count(len(sol.Hits), "crossing") + ", " + count(sol.Stats.Accepted, "step"),
+		done:  count(r.n, "sample") + ", " + count(len(sol.Hits), "crossing") + ", " + count(sol.Stats.Accepted, "step"),
 	}
 	if sol.Stats.Stiff {
 		res.warnings = append(res.warnings, fmt.Sprintf("the run looks stiff from t=%g on: the step size is limited by stability, not accuracy", sol.Stats.StiffAt))
 	}
 	if err := r.err; err != nil {
+		if werr := sink.failed(); werr != nil {
+			// The output broke: say that, not that the integration failed.
+			res.err = fmt.Errorf("writing the results failed at t=%g: %w", sol.End, werr)
+			return res
+		}
 		what := "failed"
 		if sol.Status == integrate.Canceled {
 			what = "was canceled"
 		}
 		err = fmt.Errorf("integrating %s from t=%g to %g %s at t=%g (%s up to there written): %w",
-			r.sys.Name, f.t0, f.t1, what, sol.End, count(len(r.rows), "sample"), err)
+			r.sys.Name, f.t0, f.t1, what, sol.End, count(r.n, "sample"), err)
 		if r.m.fixed && errors.Is(err, integrate.ErrStepBudget) {
 			// A fixed step has no tolerance to loosen: the span fixes the count.
 			need := math.Ceil(span / f.h)
@@ -375,26 +462,18 @@ func stateIndex(sys *plumb.System, name string) int {
 	return -1
 }
 
-func (r *solveRun) json() solveJSON {
-	sol := r.sol
-	out := solveJSON{
+// head is what a solve result says before the run.
+func (r *solveRun) head() solveHeadJSON {
+	out := solveHeadJSON{
 		header: newHeader("solve"),
 		System: describe(r.sys),
 		Settings: solveSettingsJSON{
 			T0: r.f.t0, T1: r.f.t1, Dt: r.f.dt, Sampling: "grid",
 			RelTol: r.f.rtol, AbsTol: r.f.atol,
-			Method: r.m.name, MethodName: sol.Method, Step: r.f.h,
+			Method: r.m.name, MethodName: r.im.Name(), Step: r.f.h,
 			MaxSteps: r.f.maxSteps, CrossState: []crossStateJSON{}, CrossSense: r.f.sense,
 		},
-		Units:  solveUnits,
-		Status: sol.Status.String(),
-		End:    sol.End, Final: sol.Final,
-		Stats: statsJSON{
-			Evaluations: sol.Stats.Evaluations, Accepted: sol.Stats.Accepted,
-			Rejected: sol.Stats.Rejected, NonFinite: sol.Stats.NonFinite, Stiff: sol.Stats.Stiff,
-		},
-		Samples:   make([]sampleJSON, len(r.rows)),
-		Crossings: make([]crossingJSON, len(sol.Hits)),
+		Units: solveUnits,
 	}
 	out.Units.Time = out.System.timeUnit(solveUnits.Time)
 	if r.f.dt == 0 {
@@ -403,6 +482,21 @@ func (r *solveRun) json() solveJSON {
 	for _, c := range r.cross {
 		out.Settings.CrossState = append(out.Settings.CrossState, crossStateJSON{State: c.state, Value: c.value})
 	}
+	return out
+}
+
+// tail is what a solve result says at the end.
+func (r *solveRun) tail() solveTailJSON {
+	sol := r.sol
+	out := solveTailJSON{
+		Status: sol.Status.String(),
+		End:    sol.End, Final: sol.Final,
+		Stats: statsJSON{
+			Evaluations: sol.Stats.Evaluations, Accepted: sol.Stats.Accepted,
+			Rejected: sol.Stats.Rejected, NonFinite: sol.Stats.NonFinite, Stiff: sol.Stats.Stiff,
+		},
+		Crossings: make([]crossingJSON, len(sol.Hits)),
+	}
 	if r.err != nil {
 		out.Error = errText(r.err.Error())
 	}
@@ -410,102 +504,10 @@ func (r *solveRun) json() solveJSON {
 		at := sol.Stats.StiffAt
 		out.Stats.StiffAt = &at
 	}
-	for i, s := range r.rows {
-		out.Samples[i] = sampleJSON{T: s.T, Y: s.Y}
-	}
 	for i, h := range sol.Hits {
 		out.Crossings[i] = crossingJSON{Crossing: r.cross[h.Which].label(), Sense: h.Sense.String(), T: h.T, Y: h.Y}
 	}
 	return out
-}
-
-func (r *solveRun) csv(out io.Writer) error {
-	w := csv.NewWriter(out)
-	rec := make([]string, 0, 3+len(r.sys.States))
-	if r.f.rows == "crossings" {
-		rec = append(append(append(rec, "t"), r.sys.States...), "crossing", "sense")
-		if err := w.Write(rec); err != nil {
-			return err
-		}
-		for _, h := range r.sol.Hits {
-			rec = append(rec[:0], formatFloat(h.T))
-			for _, v := range h.Y {
-				rec = append(rec, formatFloat(v))
-			}
-			rec = append(rec, r.cross[h.Which].label(), h.Sense.String())
-			if err := w.Write(rec); err != nil {
-				return err
-			}
-		}
-	} else {
-		rec = append(append(rec, "t"), r.sys.States...)
-		if err := w.Write(rec); err != nil {
-			return err
-		}
-		for _, s := range r.rows {
-			rec = append(rec[:0], formatFloat(s.T))
-			for _, v := range s.Y {
-				rec = append(rec, formatFloat(v))
-			}
-			if err := w.Write(rec); err != nil {
-				return err
-			}
-		}
-	}
-	w.Flush()
-	return w.Error()
-}
-
-func (r *solveRun) table(w io.Writer) error {
-	tw := newTable(w)
-	d := describe(r.sys)
-	heads := make([]string, len(d.States))
-	for i, st := range d.States {
-		heads[i] = withUnit(st.Name, st.Unit)
-	}
-	fmt.Fprintf(tw, "%s\t%s\n", withUnit("t", d.TimeUnit), strings.Join(heads, "\t"))
-	for _, s := range r.rows {
-		fmt.Fprint(tw, tableFloat(s.T))
-		for _, v := range s.Y {
-			fmt.Fprint(tw, "\t", tableFloat(v))
-		}
-		fmt.Fprintln(tw)
-	}
-	if err := tw.Flush(); err != nil {
-		return err
-	}
-	sol := r.sol
-	if len(r.cross) > 0 {
-		fmt.Fprintf(w, "\ncrossings (%s)\n", r.f.sense)
-		tw = newTable(w)
-		fmt.Fprintf(tw, "crossing\tsense\tt\t%s\n", strings.Join(r.sys.States, "\t"))
-		for _, h := range sol.Hits {
-			fmt.Fprintf(tw, "%s\t%s\t%s", r.cross[h.Which].label(), h.Sense, tableFloat(h.T))
-			for _, v := range h.Y {
-				fmt.Fprint(tw, "\t", tableFloat(v))
-			}
-			fmt.Fprintln(tw)
-		}
-		if len(sol.Hits) == 0 {
-			fmt.Fprintln(tw, "(none)")
-		}
-		if err := tw.Flush(); err != nil {
-			return err
-		}
-	}
-	fmt.Fprintln(w)
-	tw = newTable(w)
-	fmt.Fprintf(tw, "system\t%s\n", describe(r.sys).heading())
-	meth := sol.Method
-	if r.m.fixed {
-		meth += ", step " + formatFloat(r.f.h)
-	} else {
-		meth += ", rtol " + formatFloat(r.f.rtol) + ", atol " + formatFloat(r.f.atol)
-	}
-	fmt.Fprintf(tw, "method\t%s\n", meth)
-	fmt.Fprintf(tw, "status\t%s at t=%s\n", sol.Status, tableFloat(sol.End))
-	fmt.Fprintf(tw, "work\t%d accepted steps, %d rejected, %d evaluations\n", sol.Stats.Accepted, sol.Stats.Rejected, sol.Stats.Evaluations)
-	return tw.Flush()
 }
 
 // pickAxes checks --axes: two distinct states of sys, and a --plot to

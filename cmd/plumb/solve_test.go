@@ -25,6 +25,7 @@ func TestSolveGolden(t *testing.T) {
 		{"table", "solve_lorenz.txt"},
 		{"csv", "solve_lorenz.csv"},
 		{"json", "solve_lorenz.json"},
+		{"jsonl", "solve_lorenz.jsonl"},
 	} {
 		t.Run(tt.format, func(t *testing.T) {
 			r := plumbRun(t, append(goldenSolve, "--format", tt.format)...)
@@ -247,24 +248,33 @@ func TestSolveFailureKeepsPartial(t *testing.T) {
 
 // TestSolveStepBudgetHint: the hint after an exhausted step budget names
 // what the user can change: the tolerances of an adaptive method, but the
-// step and the budget of a fixed-step one (which has no tolerance).
+// step and the budget of a fixed-step one (which has no tolerance); a
+// fixed step that cannot finish within the budget given is refused before
+// the run (exit 2), since its count is known.
 func TestSolveStepBudgetHint(t *testing.T) {
 	cases := []struct {
 		name      string
 		args      []string
+		code      int
 		want, not []string
 	}{
-		{"adaptive", []string{"--max-steps", "40"}, []string{"--max-steps", "--rtol"}, nil},
+		{"adaptive", []string{"--max-steps", "40"}, exitFailed, []string{"--max-steps", "--rtol"}, nil},
 		// rk4 at h = 0.001 over 10 time units takes 10000 steps (exact).
-		{"fixed step", []string{"--method", "rk4", "--step", "0.001", "--t1", "10", "--max-steps", "100"}, []string{"--step", "--max-steps", "10000 steps"}, []string{"--rtol", "--atol"}},
+		{"fixed step", []string{"--method", "rk4", "--step", "0.001", "--t1", "10", "--max-steps", "100"}, exitUsage, []string{"--step", "--max-steps", "10000 steps"}, []string{"--rtol", "--atol"}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			r := plumbRun(t, append([]string{"solve", "--format", "csv", "--quiet"}, c.args...)...)
-			if r.code != exitFailed {
-				t.Fatalf("exit %d, want 1; stderr %q", r.code, r.stderr)
+			if r.code != c.code {
+				t.Fatalf("exit %d, want %d; stderr %q", r.code, c.code, r.stderr)
 			}
-			_, hint, _ := strings.Cut(r.stderr, "hint: ")
+			if c.code == exitUsage && r.stdout != "" {
+				t.Errorf("a run refused up front wrote %q", r.stdout)
+			}
+			hint := r.stderr
+			if c.code == exitFailed {
+				_, hint, _ = strings.Cut(r.stderr, "hint: ")
+			}
 			for _, w := range c.want {
 				if !strings.Contains(hint, w) {
 					t.Errorf("hint %q does not name %s", hint, w)

@@ -23,7 +23,11 @@
 //
 // Each reader takes an io.Reader (a file, a pipe, stdin); Open chooses the
 // reader by the file's extension (.csv, .npy, .jsonl or .ndjson). WriteCSV
-// writes a run that ReadCSV reads back to the same bits.
+// writes a run that ReadCSV reads back to the same bits. NPYWriter writes
+// a 2-D float64 .npy array row by row without holding the rows; ReadNPY
+// reads it back to the same bits. Its header's row count is either given
+// up front or, on a file, patched in on Close; a pipe with no count given
+// is refused (ErrNoSeek).
 //
 // Only finite numbers are accepted: NaN, Inf, text, an empty cell, a
 // number beyond the float64 range are errors, as are rows of the wrong
@@ -46,7 +50,8 @@
 // apply, the Line (CSV, JSON Lines), the Row and byte Offset (.npy), the
 // 1-based Column and the Field (column name or JSON field), and wraps a
 // sentinel for errors.Is: ErrSyntax, ErrNumber, ErrRagged, ErrTimeOrder,
-// ErrColumn, ErrUnsupported, ErrTruncated, ErrEmpty, ErrOptions, ErrSpan.
+// ErrColumn, ErrUnsupported, ErrTruncated, ErrEmpty, ErrOptions, ErrSpan;
+// the writer's own are ErrNoSeek and ErrRowCount (plain wrapped errors).
 // A reader that fails after its header returns the rows read before the
 // failure with the error (for .npy in Fortran order, none: every row
 // misses a later column). Nothing in the input can make a reader panic;

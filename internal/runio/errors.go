@@ -37,6 +37,13 @@ var (
 	// ErrSpan: runs cannot be compared on a common span (disjoint spans,
 	// too few points, grid times outside the common span).
 	ErrSpan = errors.New("no common span")
+	// ErrNoSeek: NewNPYWriter was given no row count and an output that
+	// cannot seek back to patch the header (a pipe, a terminal). Give the
+	// count up front or write to a file.
+	ErrNoSeek = errors.New(".npy output of unknown length needs a seekable file (a pipe or terminal cannot be patched)")
+	// ErrRowCount: an NPYWriter was given more or fewer rows than the
+	// count it announced.
+	ErrRowCount = errors.New("row count differs from the announced shape")
 )
 
 // Error says where an input went wrong. Fields that do not apply are zero.
