@@ -225,6 +225,9 @@ func (f *scanFlags) run(ctx context.Context, cl *call) error {
 	if err != nil {
 		return err
 	}
+	if err := checkNPYOut(cl); err != nil {
+		return err
+	}
 	if !sh.Whole() {
 		return f.runShard(ctx, cl, sh, sys, fam, axes, set)
 	}

@@ -9,6 +9,7 @@ import (
 	"io"
 
 	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/internal/runio"
 	"github.com/plumbdyn/plumb/maps"
 )
 
@@ -71,7 +72,7 @@ func scanNPY(w io.Writer, out scanJSON, rows []maps.ScanRow) error {
 		n += len(r.Values)
 	}
 	cols := len(out.Settings.Across) + 3
-	nw, err := newNPYWriter(w, n, cols)
+	nw, err := runio.NewNPYWriter(w, cols, n)
 	if err != nil {
 		return err
 	}
@@ -80,10 +81,18 @@ func scanNPY(w io.Writer, out scanJSON, rows []maps.ScanRow) error {
 		for _, v := range r.Values {
 			k := copy(rec, r.Params)
 			rec[k], rec[k+1], rec[k+2] = v, float64(r.Period), r.Exponent
-			if err := nw.row(rec...); err != nil {
+			if err := nw.Row(rec); err != nil {
 				return err
 			}
 		}
 	}
-	return nw.close()
+	return nw.Close()
+}
+
+// checkNPYOut refuses --format npy on a terminal: the array is binary.
+func checkNPYOut(cl *call) error {
+	if cl.sh.format == "npy" && isTerminal(cl.rawStdout) && !isDevNull(cl.rawStdout) {
+		return usagef("--format npy writes binary data, not for a terminal: redirect stdout to a file (plumb %s --format npy > out.npy)", cl.cmd.name)
+	}
+	return nil
 }
