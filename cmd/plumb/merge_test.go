@@ -293,3 +293,24 @@ func TestMergeChangedInput(t *testing.T) {
 	assert.Equal(t, exitUsage, m.code)
 	assert.Contains(t, m.stderr, "--members-file "+members+" has changed since the pieces read it")
 }
+
+// TestRecordedArgs: a shard file's command line leaves out the flags that
+// do not change the result (the piece, --quiet, --workers, an output file,
+// progress), in both spellings, and keeps every other argument.
+func TestRecordedArgs(t *testing.T) {
+	got := recordedArgs([]string{"--across", "r=1:2:3", "--shard", "2/4", "--quiet", "--workers=3", "--out", "a.jsonl",
+		"--progress=lines", "-shard=auto", "--keep", "5", "--workers", "2", "x"})
+	assert.Equal(t, []string{"--across", "r=1:2:3", "--keep", "5", "x"}, got)
+	// Pieces run with different --workers and --quiet still join.
+	a := plumbRun(t, append(shardScanArgs, "--shard", "1/2", "--workers", "1")...)
+	b := plumbRun(t, append(shardScanArgs[:len(shardScanArgs)-1:len(shardScanArgs)-1], "--shard", "2/2", "--workers", "2")...)
+	require.Equal(t, exitOK, a.code, a.stderr)
+	require.Equal(t, exitOK, b.code, b.stderr)
+	dir := t.TempDir()
+	fa, fb := filepath.Join(dir, "a.jsonl"), filepath.Join(dir, "b.jsonl")
+	require.NoError(t, os.WriteFile(fa, []byte(a.stdout), 0o644))
+	require.NoError(t, os.WriteFile(fb, []byte(b.stdout), 0o644))
+	m := plumbRun(t, "merge", "--quiet", fa, fb)
+	require.Equal(t, exitOK, m.code, m.stderr)
+	assert.Equal(t, plumbRun(t, shardScanArgs...).stdout, m.stdout)
+}

@@ -65,23 +65,34 @@ func (cl *call) resolveShard(text string) (plumb.Shard, error) {
 	return sh, nil
 }
 
-// withoutShard returns args without --shard and its value.
-func withoutShard(args []string) []string {
+// unrecorded are the flags a shard file leaves out of its command line:
+// they change where and how a piece runs (its piece, its output file, its
+// progress, its goroutines), never the result, so pieces that differ in
+// them still join, and merge does not inherit them. The value says
+// whether the flag takes a value.
+var unrecorded = map[string]bool{"shard": true, "out": true, "progress": true, "workers": true, "quiet": false}
+
+// recordedArgs returns args without the unrecorded flags and their values.
+func recordedArgs(args []string) []string {
 	var out []string
 	for i := 0; i < len(args); i++ {
 		a := args[i]
-		name, _, hasValue := strings.Cut(strings.TrimLeft(a, "-"), "=")
-		if strings.HasPrefix(a, "-") && name == "shard" {
-			if !hasValue {
-				i++ // the value is the next argument
+		if a == "--" || a == "-" || !strings.HasPrefix(a, "-") {
+			if a == "--" {
+				return append(out, args[i:]...)
 			}
+			out = append(out, a)
 			continue
 		}
-		if a == "--" {
-			out = append(out, args[i:]...)
-			break
+		name, _, hasValue := strings.Cut(strings.TrimLeft(a, "-"), "=")
+		takesValue, skip := unrecorded[name]
+		if !skip {
+			out = append(out, a)
+			continue
 		}
-		out = append(out, a)
+		if takesValue && !hasValue {
+			i++ // the value is the next argument
+		}
 	}
 	return out
 }
@@ -134,7 +145,7 @@ func (cl *call) shardWriter(sh plumb.Shard, units string, total int, more map[st
 	if lo == hi {
 		cl.warnf("shard %s has no %s: %d %s split %d ways", sh, units, total, units, sh.Count)
 	}
-	h := plumb.ShardHeader{Version: version, Command: cl.cmd.name, Args: withoutShard(cl.raw), Inputs: inputs,
+	h := plumb.ShardHeader{Version: version, Command: cl.cmd.name, Args: recordedArgs(cl.raw), Inputs: inputs,
 		Shard: plumb.ShardJSON{Index: sh.Index, Count: sh.Count}, Units: units, Total: total, First: lo, End: hi}
 	return plumb.NewShardWriter(cl.stdout, h)
 }
