@@ -202,7 +202,7 @@ func EnsembleParts(set *ShardSet) ([]*EnsemblePart, error) {
 			return nil, fmt.Errorf("plumb: shard file %s holds %s, not %s: %w", p.Name, h.Units, EnsembleUnitsName, ErrShard)
 		}
 		part := &EnsemblePart{Shard: Shard{Index: h.Shard.Index, Count: h.Shard.Count}, First: h.First, End: h.End, Total: h.Total}
-		for k, raw := range p.Records {
+		err := p.EachRecord(func(k int, raw json.RawMessage) error {
 			bad := func(why string) error {
 				return fmt.Errorf("plumb: shard file %s, record %d: %s: %w", p.Name, k+1, why, ErrShard)
 			}
@@ -210,22 +210,22 @@ func EnsembleParts(set *ShardSet) ([]*EnsemblePart, error) {
 			dec := json.NewDecoder(bytes.NewReader(raw))
 			dec.DisallowUnknownFields()
 			if err := dec.Decode(&u); err != nil {
-				return nil, bad(err.Error())
+				return bad(err.Error())
 			}
 			if want := h.First + k; u.Unit != want || (u.Unit == 0) != (u.Group == nil) {
-				return nil, bad(fmt.Sprintf("unit %d where unit %d belongs", u.Unit, want))
+				return bad(fmt.Sprintf("unit %d where unit %d belongs", u.Unit, want))
 			}
 			if u.Unit == 0 {
 				part.Releases = u.Releases
-				continue
+				return nil
 			}
 			g := u.Group
 			if g.Index != u.Unit-1 || len(g.Times) != len(g.States) {
-				return nil, bad(fmt.Sprintf("group %d in unit %d, %d times for %d samples", g.Index, u.Unit, len(g.Times), len(g.States)))
+				return bad(fmt.Sprintf("group %d in unit %d, %d times for %d samples", g.Index, u.Unit, len(g.Times), len(g.States)))
 			}
 			status, ok := map[string]integrate.Status{"completed": integrate.Completed, "canceled": integrate.Canceled, "failed": integrate.Failed}[g.Status]
 			if !ok {
-				return nil, bad(fmt.Sprintf("status %q", g.Status))
+				return bad(fmt.Sprintf("status %q", g.Status))
 			}
 			run := &integrate.BatchSolution{Method: g.Method, Dim: g.Dim, Members: g.Count + 1, T0: g.T0, End: g.End, Final: g.Final,
 				Samples: make([]integrate.Sample, len(g.Times)), Status: status,
@@ -234,6 +234,10 @@ func EnsembleParts(set *ShardSet) ([]*EnsemblePart, error) {
 				run.Samples[j] = integrate.Sample{T: g.Times[j], Y: g.States[j]}
 			}
 			part.Groups = append(part.Groups, &EnsembleGroup{Index: g.Index, First: g.First, Count: g.Count, Run: run})
+			return nil
+		})
+		if err != nil {
+			return nil, err
 		}
 		parts = append(parts, part)
 	}

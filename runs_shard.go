@@ -59,7 +59,7 @@ func ProgramRuns(set *ShardSet, plan []PlannedRun) ([]RecordedRun, error) {
 	}
 	var runs []RecordedRun
 	for _, p := range set.Pieces {
-		for k, raw := range p.Records {
+		err := p.EachRecord(func(k int, raw json.RawMessage) error {
 			bad := func(why string) error {
 				return fmt.Errorf("plumb: shard file %s, record %d: %s: %w", p.Name, k+1, why, ErrShard)
 			}
@@ -67,18 +67,22 @@ func ProgramRuns(set *ShardSet, plan []PlannedRun) ([]RecordedRun, error) {
 			dec := json.NewDecoder(bytes.NewReader(raw))
 			dec.DisallowUnknownFields()
 			if err := dec.Decode(&rec); err != nil {
-				return nil, bad(err.Error())
+				return bad(err.Error())
 			}
 			want := p.Header.First + k
 			switch {
 			case rec.Index != want:
-				return nil, bad(fmt.Sprintf("run %d where run %d belongs", rec.Index, want))
+				return bad(fmt.Sprintf("run %d where run %d belongs", rec.Index, want))
 			case plan != nil && rec.Label != plan[want].Label:
-				return nil, bad(fmt.Sprintf("run %q where the plan has %q", rec.Label, plan[want].Label))
+				return bad(fmt.Sprintf("run %q where the plan has %q", rec.Label, plan[want].Label))
 			case rec.Failure == nil && len(rec.Names) > 0 && len(rec.Y) != len(rec.T)*len(rec.Names):
-				return nil, bad(fmt.Sprintf("%d values for %d times of %d columns", len(rec.Y), len(rec.T), len(rec.Names)))
+				return bad(fmt.Sprintf("%d values for %d times of %d columns", len(rec.Y), len(rec.T), len(rec.Names)))
 			}
 			runs = append(runs, rec.Run())
+			return nil
+		})
+		if err != nil {
+			return nil, err
 		}
 	}
 	return runs, nil

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"os"
 	"slices"
 	"strings"
 )
@@ -113,11 +114,68 @@ func (sw *ShardWriter) Close(status string, err error) error {
 }
 
 // ShardPiece is one shard file as read: its header, its records (raw
-// JSON, one per unit of work) and its name.
+// JSON, one per unit of work; nil when the piece was read by
+// ReadShardFile, which reads them again from the file when asked) and its
+// name.
 type ShardPiece struct {
 	Name    string
 	Header  ShardHeader
 	Records []json.RawMessage
+	// count is the number of records; path, when not empty, the file they
+	// are read again from.
+	count int
+	path  string
+}
+
+// EachRecord hands the piece's records to fn in order: the kept ones, or
+// those read again from the file (which must still be the one checked:
+// the same records, then the closing line).
+func (p *ShardPiece) EachRecord(fn func(k int, raw json.RawMessage) error) error {
+	if p.path == "" {
+		for k, raw := range p.Records {
+			if err := fn(k, raw); err != nil {
+				return err
+			}
+		}
+		return nil
+	}
+	f, err := os.Open(p.path)
+	if err != nil {
+		return fmt.Errorf("plumb: shard file %s: %v: %w", p.Name, err, ErrShard)
+	}
+	defer f.Close()
+	k := 0
+	_, err = readShard(p.Name, f, func(raw json.RawMessage) error {
+		if k >= p.count {
+			return fmt.Errorf("more records than when it was checked")
+		}
+		if err := fn(k, raw); err != nil {
+			return err
+		}
+		k++
+		return nil
+	})
+	if err == nil && k != p.count {
+		err = fmt.Errorf("plumb: shard file %s: %d records, %d when it was checked: %w", p.Name, k, p.count, ErrShard)
+	}
+	return err
+}
+
+// ReadShardFile reads and checks the shard file at path as ReadShardPiece
+// does, without keeping its records: EachRecord reads them again, so that
+// joining pieces never holds more than one record of a scan.
+func ReadShardFile(path string) (*ShardPiece, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("plumb: shard file %s: %v: %w", path, err, ErrShard)
+	}
+	defer f.Close()
+	p, err := readShard(path, f, func(json.RawMessage) error { return nil })
+	if err != nil {
+		return nil, err
+	}
+	p.path = path
+	return p, nil
 }
 
 // ShardSet is a complete set of shard files, checked: one piece per index
@@ -135,15 +193,6 @@ func (s *ShardSet) Header() ShardHeader {
 	return h
 }
 
-// Records returns every piece's records in order.
-func (s *ShardSet) Records() []json.RawMessage {
-	var out []json.RawMessage
-	for _, p := range s.Pieces {
-		out = append(out, p.Records...)
-	}
-	return out
-}
-
 // NamedReader is a shard file to read and the name errors call it by.
 type NamedReader struct {
 	Name string
@@ -159,6 +208,21 @@ const maxShardLine = 1 << 30
 // block its shard takes, no trailer (the piece did not finish), a trailer
 // that is not completed, or a record count that differs from the header's.
 func ReadShardPiece(name string, r io.Reader) (*ShardPiece, error) {
+	var records []json.RawMessage
+	p, err := readShard(name, r, func(raw json.RawMessage) error {
+		records = append(records, raw)
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	p.Records = records
+	return p, nil
+}
+
+// readShard reads and checks a shard file, handing each record to keep as
+// it is read (an error from keep stops the read and is returned).
+func readShard(name string, r io.Reader, keep func(json.RawMessage) error) (*ShardPiece, error) {
 	bad := func(line int, format string, a ...any) error {
 		where := name
 		if line > 0 {
@@ -191,7 +255,10 @@ func ReadShardPiece(name string, r io.Reader) (*ShardPiece, error) {
 					return nil, bad(line, "not a JSON object")
 				}
 				if last != nil {
-					p.Records = append(p.Records, last)
+					if err := keep(last); err != nil {
+						return nil, err
+					}
+					p.count++
 				}
 				last = append([]byte(nil), b...)
 			}
@@ -219,11 +286,11 @@ func ReadShardPiece(name string, r io.Reader) (*ShardPiece, error) {
 		}
 		return nil, bad(line, "shard %s ended %s after %d of its %d %s; run it again", p.Header.Shard.String(), msg, t.Done, p.Header.End-p.Header.First, p.Header.Units)
 	}
-	if t.Done != len(p.Records) {
-		return nil, bad(line, "the closing line counts %d records, the file holds %d", t.Done, len(p.Records))
+	if t.Done != p.count {
+		return nil, bad(line, "the closing line counts %d records, the file holds %d", t.Done, p.count)
 	}
-	if len(p.Records) != p.Header.End-p.Header.First {
-		return nil, bad(line, "%d records for the %d %s %d..%d", len(p.Records), p.Header.End-p.Header.First, p.Header.Units, p.Header.First, p.Header.End)
+	if p.count != p.Header.End-p.Header.First {
+		return nil, bad(line, "%d records for the %d %s %d..%d", p.count, p.Header.End-p.Header.First, p.Header.Units, p.Header.First, p.Header.End)
 	}
 	return p, nil
 }

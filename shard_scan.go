@@ -121,7 +121,7 @@ func EachScanRow(set *ShardSet, axes int, emit func(maps.ScanRow) error) error {
 		return fmt.Errorf("plumb: shard files of %q, not of a scan: %w", set.Pieces[0].Header.Command, ErrShard)
 	}
 	for _, p := range set.Pieces {
-		for k, raw := range p.Records {
+		err := p.EachRecord(func(k int, raw json.RawMessage) error {
 			var rec ScanRecord
 			dec := json.NewDecoder(bytes.NewReader(raw))
 			dec.DisallowUnknownFields()
@@ -137,9 +137,10 @@ func EachScanRow(set *ShardSet, axes int, emit func(maps.ScanRow) error) error {
 			case len(rec.Params) != axes:
 				return bad(fmt.Sprintf("%d parameters, the scan has %d axes", len(rec.Params), axes))
 			}
-			if err := emit(rec.Row()); err != nil {
-				return err
-			}
+			return emit(rec.Row())
+		})
+		if err != nil {
+			return err
 		}
 	}
 	return nil

@@ -5,7 +5,6 @@ import (
 	"errors"
 	"flag"
 	"fmt"
-	"os"
 	"strings"
 
 	"github.com/plumbdyn/plumb"
@@ -57,12 +56,7 @@ func runMerge(ctx context.Context, cl *call) error {
 	}
 	var pieces []*plumb.ShardPiece
 	for _, name := range cl.args {
-		f, err := os.Open(name)
-		if err != nil {
-			return usagef("%s: %v", name, err)
-		}
-		p, err := plumb.ReadShardPiece(name, f)
-		f.Close()
+		p, err := plumb.ReadShardFile(name)
 		if err != nil {
 			return usagef("%s", strings.TrimPrefix(err.Error(), "plumb: "))
 		}
