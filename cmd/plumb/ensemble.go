@@ -52,16 +52,16 @@ lightly and the members marked at the --at times). --animate FILE.gif
 writes the members moving across two components (--axes X,Y), the
 control in black, at most 120 frames of at most 800x500 pixels.
 
---lockstep N integrates the members in groups of N, each group with one
-step size beside its own copy of the control (default: all in one
-group); --shard I/N computes only the I-th of N contiguous blocks of the
-work (the releases, then the groups) and writes a shard file, from which
-'plumb merge' computes exactly the output of the whole ensemble.
+--format npy writes the CSV's rows as a NumPy float64 array (NaN where
+CSV is empty). --lockstep N integrates the members in groups of N, each
+with one step size beside its own copy of the control (default: one
+group); --shard I/N computes the I-th of N contiguous blocks of the work
+(the releases, the groups) as a shard file that 'plumb merge' joins.
 
 This is a statement about the numerical model, not the real system;
 safety-critical use follows the field's codes and licensed review.`,
 	model:   "lorenz",
-	formats: []string{"table", "json", "csv", "jsonl"},
+	formats: []string{"table", "json", "csv", "jsonl", "npy"},
 	plots:   true,
 	setup:   setupEnsemble,
 }
@@ -117,7 +117,7 @@ func setupEnsemble(fs *flag.FlagSet, sh *shared) func(context.Context, *call) er
 	finiteVar(fs, &f.releaseEvery, "release-every", 0, "time `T` between releases along the orbit; 0: t1/4")
 	finiteVar(fs, &f.ratio, "ratio", math.Sqrt2, "growth factor `R` between the scales of lambda(delta)")
 	fs.IntVar(&f.workers, "workers", 0, "`N` goroutines sharing the members; 0: one per CPU (results do not depend on it)")
-	fs.StringVar(&f.rows, "rows", "curves", "`ROWS` that --format csv writes: curves or scales")
+	fs.StringVar(&f.rows, "rows", "curves", "`ROWS` that --format csv and npy write: curves or scales")
 	fs.StringVar(&f.view, "view", "members", "`VIEW` that --plot draws: members, spread or projection")
 	fs.StringVar(&f.axes, "axes", "", "state `NAMES` of the picture's axes: one for --view members, two (X,Y) for projection (default: the first one or two)")
 	fs.StringVar(&f.at, "at", "", "comma-separated `TIMES` at which --view projection marks the members (default: t1/4, t1/2, 3t1/4, t1)")
@@ -181,8 +181,8 @@ func (f *ensembleFlags) run(ctx context.Context, cl *call) error {
 	if err := choice("view", f.view, "members", "spread", "projection"); err != nil {
 		return err
 	}
-	if cl.sh.given["rows"] && cl.sh.format != "csv" {
-		return usagef("--rows %s: only --format csv chooses its rows", f.rows)
+	if cl.sh.given["rows"] && cl.sh.format != "csv" && cl.sh.format != "npy" {
+		return usagef("--rows %s: only --format csv and npy choose their rows", f.rows)
 	}
 	for _, v := range []string{"view", "at"} {
 		if cl.sh.given[v] && cl.sh.plot == "" {
@@ -230,7 +230,7 @@ func (f *ensembleFlags) run(ctx context.Context, cl *call) error {
 			if rep == nil {
 				return nil, err
 			}
-			return f.outcome(cl, sys, dist, rep, err), nil
+			return f.withNPY(cl, f.outcome(cl, sys, dist, rep, err), rep), nil
 		},
 	})
 }

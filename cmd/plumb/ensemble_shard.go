@@ -7,12 +7,17 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 
 	"github.com/plumbdyn/plumb"
+	"github.com/plumbdyn/plumb/internal/runio"
 )
 
 // ensemble computes the ensemble, or joins the pieces in a merge.
 func (f *ensembleFlags) ensemble(ctx context.Context, cl *call, sys *plumb.System, s *plumb.EnsembleSettings) (*plumb.EnsembleReport, error) {
+	if err := checkNPYOut(cl); err != nil {
+		return nil, err
+	}
 	if cl.merge == nil {
 		return plumb.Ensemble(ctx, sys, f.t1, s)
 	}
@@ -67,4 +72,51 @@ func lockstepNote(rep *plumb.EnsembleReport) string {
 		return ""
 	}
 	return fmt.Sprintf(", members in lockstep groups of %d", rep.Lockstep)
+}
+
+// withNPY makes res write --format npy: the rows of the CSV (the curves,
+// or with --rows scales the finite-size exponents) as a float64 array,
+// NaN where the CSV leaves a cell empty. The array goes out through the
+// default writer, the table's.
+func (f *ensembleFlags) withNPY(cl *call, res *outcome, rep *plumb.EnsembleReport) *outcome {
+	if cl.sh.format != "npy" {
+		return res
+	}
+	res.table = func(w io.Writer) error {
+		opt := func(v *float64) float64 {
+			if v == nil {
+				return math.NaN()
+			}
+			return *v
+		}
+		var rows [][]float64
+		if f.rows == "scales" {
+			for _, sc := range rep.Scales {
+				rows = append(rows, []float64{sc.Delta, opt(sc.Lambda), opt(sc.StdErr), float64(sc.Pairs), float64(sc.Unfinished), sc.MeanTime})
+			}
+		} else {
+			for i, t := range rep.Times {
+				lp := math.NaN()
+				if i < len(rep.LargestPair) {
+					lp = rep.LargestPair[i]
+				}
+				rows = append(rows, []float64{t, rep.MeanSpread[i], lp, rep.Within[i]})
+			}
+		}
+		cols := 4
+		if f.rows == "scales" {
+			cols = 6
+		}
+		nw, err := runio.NewNPYWriter(w, cols, len(rows))
+		if err != nil {
+			return err
+		}
+		for _, r := range rows {
+			if err := nw.Row(r); err != nil {
+				return err
+			}
+		}
+		return nw.Close()
+	}
+	return res
 }

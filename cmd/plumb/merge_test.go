@@ -212,7 +212,7 @@ var shardEnsembleArgs = []string{"ensemble", "--t1", "4", "--members", "8", "--l
 // (an exact identity: each lockstep group's run depends on its own
 // members only, and merge runs the same reduction on the same numbers).
 func TestMergeEnsembleEveryFormat(t *testing.T) {
-	for _, format := range []string{"table", "json", "csv", "jsonl"} {
+	for _, format := range []string{"table", "json", "csv", "jsonl", "npy"} {
 		t.Run(format, func(t *testing.T) {
 			args := append(append([]string(nil), shardEnsembleArgs...), "--format", format)
 			whole := plumbRun(t, args...)
@@ -231,33 +231,60 @@ func TestMergeEnsembleEveryFormat(t *testing.T) {
 	assert.Contains(t, r.stderr, "differ in settings")
 }
 
-// TestScanNPY: --format npy is a NumPy v1.0 '<f8' C-order array whose
-// header is padded to 64 bytes (NEP 1), with the CSV's columns and rows: every
-// value is the CSV's to the bit (CSV writes the shortest decimal that
-// reads back to the same float64).
+// npyMatchesCSV checks that the .npy array npy holds the cells of the
+// CSV csvText, bit for bit (CSV writes the shortest decimal that reads back
+// to the same float64; an empty cell is NaN in the array), and returns
+// the .npy header.
+func npyMatchesCSV(t *testing.T, npy, csvText string) string {
+	t.Helper()
+	b := []byte(npy)
+	require.Greater(t, len(b), 10)
+	require.Equal(t, "\x93NUMPY\x01\x00", string(b[:8]))
+	hlen := int(binary.LittleEndian.Uint16(b[8:10]))
+	require.Zero(t, (10+hlen)%64, "the header ends on a 64-byte boundary (NEP 1)")
+	rows := strings.Split(strings.TrimSpace(csvText), "\n")[1:]
+	cols := len(strings.Split(rows[0], ","))
+	body := b[10+hlen:]
+	require.Len(t, body, len(rows)*cols*8)
+	for i, line := range rows {
+		for j, cell := range strings.Split(line, ",") {
+			got := math.Float64frombits(binary.LittleEndian.Uint64(body[(i*cols+j)*8:]))
+			if cell == "" {
+				assert.Truef(t, math.IsNaN(got), "row %d column %d: empty in CSV, %v in npy", i, j, got)
+				continue
+			}
+			want, err := strconv.ParseFloat(cell, 64)
+			require.NoError(t, err, cell)
+			assert.Equalf(t, math.Float64bits(want), math.Float64bits(got), "row %d column %d: %s", i, j, cell)
+		}
+	}
+	return string(b[10 : 10+hlen])
+}
+
+// TestEnsembleNPY: an ensemble's --format npy holds its CSV's rows, the
+// curves and (--rows scales) the finite-size exponents.
+func TestEnsembleNPY(t *testing.T) {
+	for _, rows := range []string{"curves", "scales"} {
+		args := append(append([]string(nil), shardEnsembleArgs...), "--rows", rows)
+		c := plumbRun(t, append(args, "--format", "csv")...)
+		require.Equal(t, exitOK, c.code, c.stderr)
+		n := plumbRun(t, append(args, "--format", "npy")...)
+		require.Equal(t, exitOK, n.code, n.stderr)
+		npyMatchesCSV(t, n.stdout, c.stdout)
+	}
+}
+
+// TestScanNPY: --format npy is a NumPy v1.0 '<f8' C-order array of the
+// CSV's columns and rows, every value the CSV's to the bit.
 func TestScanNPY(t *testing.T) {
 	args := []string{"scan", "--across", "r=2:3.2:4", "--keep", "8", "--discard", "100", "--quiet"}
 	csvOut := plumbRun(t, append(args, "--format", "csv")...)
 	require.Equal(t, exitOK, csvOut.code, csvOut.stderr)
 	npy := plumbRun(t, append(args, "--format", "npy")...)
 	require.Equal(t, exitOK, npy.code, npy.stderr)
-	b := []byte(npy.stdout)
-	require.Equal(t, "\x93NUMPY\x01\x00", string(b[:8]))
-	hlen := int(binary.LittleEndian.Uint16(b[8:10]))
-	require.Zero(t, (10+hlen)%64, "the header ends on a 64-byte boundary (NEP 1)")
-	head := string(b[10 : 10+hlen])
-	rows := strings.Split(strings.TrimSpace(csvOut.stdout), "\n")[1:]
-	assert.Regexp(t, `^\{'descr': '<f8', 'fortran_order': False, 'shape': \(`+itoa(len(rows))+` *, 4\), \} *\n$`, head)
-	body := b[10+hlen:]
-	require.Len(t, body, len(rows)*4*8)
-	for i, line := range rows {
-		for j, cell := range strings.Split(line, ",") {
-			got := math.Float64frombits(binary.LittleEndian.Uint64(body[(i*4+j)*8:]))
-			want, err := strconv.ParseFloat(cell, 64)
-			require.NoError(t, err, cell)
-			assert.Equalf(t, math.Float64bits(want), math.Float64bits(got), "row %d column %d: %s", i, j, cell)
-		}
-	}
+	head := npyMatchesCSV(t, npy.stdout, csvOut.stdout)
+	rows := len(strings.Split(strings.TrimSpace(csvOut.stdout), "\n")) - 1
+	assert.Regexp(t, `^\{'descr': '<f8', 'fortran_order': False, 'shape': \(`+itoa(rows)+` *, 4\), \} *\n$`, head)
 }
 
 // TestShardCanceled: a piece stopped by Ctrl-C writes a closing line that
