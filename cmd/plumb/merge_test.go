@@ -341,3 +341,23 @@ func TestRecordedArgs(t *testing.T) {
 	require.Equal(t, exitOK, m.code, m.stderr)
 	assert.Equal(t, plumbRun(t, shardScanArgs...).stdout, m.stdout)
 }
+
+// FuzzRecordedArgs: no command line panics recordedArgs, and what it
+// keeps names none of the unrecorded flags (before a "--").
+func FuzzRecordedArgs(f *testing.F) {
+	f.Add("--across\x00r=1:2:3\x00--shard\x002/4\x00--quiet")
+	f.Add("--out=x\x00--progress\x00lines\x00--\x00--shard")
+	f.Add("-shard\x00")
+	f.Fuzz(func(t *testing.T, joined string) {
+		out := recordedArgs(strings.Split(joined, "\x00"))
+		for _, a := range out {
+			if a == "--" {
+				return
+			}
+			name, _, _ := strings.Cut(strings.TrimLeft(a, "-"), "=")
+			if _, bad := unrecorded[name]; bad && strings.HasPrefix(a, "-") {
+				t.Fatalf("%q kept in %q", a, out)
+			}
+		}
+	})
+}
