@@ -56,6 +56,12 @@ type EnsembleSettings struct {
 	// Workers is the number of goroutines (zero: GOMAXPROCS); results do
 	// not depend on it.
 	Workers int
+	// Lockstep is the number of members integrated together with one step
+	// size, each group beside its own copy of the control (whose distance
+	// to them it measures); zero means all members in one group. The
+	// groups are what a split ensemble (EnsembleShard) hands to its
+	// pieces: the results depend on Lockstep, never on the split.
+	Lockstep int
 }
 
 // EnsembleReport is what Ensemble measured.
@@ -119,6 +125,9 @@ type EnsembleReport struct {
 	ReleaseEvery float64 `json:"release_every"`
 	ReleaseDelta float64 `json:"release_delta"`
 	Ratio        float64 `json:"ratio"`
+	// Lockstep is the number of members integrated together with one step
+	// size (the members of the last group may be fewer).
+	Lockstep int `json:"lockstep"`
 
 	// Status is "completed", "canceled" or "failed".
 	Status string `json:"status"`
@@ -170,38 +179,68 @@ func Ensemble(ctx context.Context, sys *System, t1 float64, s *EnsembleSettings)
 	if ctx == nil {
 		ctx = context.Background()
 	}
-	if err := sys.check("Ensemble"); err != nil {
-		return nil, err
-	}
-	if sys.kind == KindMap {
-		return nil, fmt.Errorf("plumb: Ensemble: %s is a map; ensembles integrate flows: %w", sys.Name, ErrKind)
-	}
-	var es EnsembleSettings
-	if s != nil {
-		es = *s
-	}
-	cfg, err := resolveEnsemble(sys, t1, &es)
+	es, cfg, rep, err := ensembleSetup(sys, t1, s)
 	if err != nil {
 		return nil, err
+	}
+	return ensembleFinish(es, cfg, rep, ensembleSource{
+		releases: func() (*EnsembleReleases, string, error) { return ensembleReleases(ctx, sys, t1, es, cfg) },
+		group:    func(g int) (*EnsembleGroup, error) { return ensembleGroup(ctx, sys, t1, es, cfg, g) },
+	})
+}
+
+// ensembleSetup checks the system and the settings and returns the
+// settings with their defaults, the resolved set-up and the report's
+// opening fields.
+func ensembleSetup(sys *System, t1 float64, s *EnsembleSettings) (*EnsembleSettings, *ensembleConfig, *EnsembleReport, error) {
+	if err := sys.check("Ensemble"); err != nil {
+		return nil, nil, nil, err
+	}
+	if sys.kind == KindMap {
+		return nil, nil, nil, fmt.Errorf("plumb: Ensemble: %s is a map; ensembles integrate flows: %w", sys.Name, ErrKind)
+	}
+	es := &EnsembleSettings{}
+	if s != nil {
+		*es = *s
+	}
+	cfg, err := resolveEnsemble(sys, t1, es)
+	if err != nil {
+		return nil, nil, nil, err
 	}
 	rep := &EnsembleReport{System: sys.Name, States: append([]string(nil), sys.States...), Delta: es.Delta,
 		Spread: es.Spread.String(), Seed: es.Seed, T0: 0, T1: t1, Method: integrate.DormandPrince54.Name(),
 		RelTol: es.RelTol, AbsTol: es.AbsTol, Distance: newDistanceReport(sys.States, cfg.m.scales, cfg.m.periods),
-		Ratio: es.Ratio, Caution: ensembleCaution, Status: integrate.Failed.String()}
+		Ratio: es.Ratio, Lockstep: cfg.lockstep, Caution: ensembleCaution, Status: integrate.Failed.String()}
 	for _, i := range cfg.along {
 		rep.Along = append(rep.Along, sys.States[i])
 	}
-	starts := cfg.starts
-	rep.Members = len(starts) - 1
+	rep.Members = len(cfg.starts) - 1
 	if es.Starts != nil {
 		rep.Spread, rep.Along = "given", nil
 	}
+	return es, cfg, rep, nil
+}
 
+// ensembleSource gives the units of an ensemble's work: the releases and
+// each lockstep group, computed here (Ensemble) or read from the pieces
+// of a split run (MergeEnsemble).
+type ensembleSource struct {
+	releases func() (*EnsembleReleases, string, error)
+	group    func(g int) (*EnsembleGroup, error)
+}
+
+// ensembleFinish takes the releases and the groups from src, in order, and
+// makes the report: the saturation level and λ(δ), the tolerance, the
+// predictability time, the members' curves and parting times.
+func ensembleFinish(es *EnsembleSettings, cfg *ensembleConfig, rep *EnsembleReport, src ensembleSource) (*EnsembleReport, error) {
 	// Releases along the control's orbit: saturation level and λ(δ).
 	if es.Releases > 0 {
-		if err := ensembleReleases(ctx, sys, t1, &es, cfg, rep); err != nil {
+		rel, status, err := src.releases()
+		if err != nil {
+			rep.Status = status
 			return rep, err
 		}
+		applyReleases(es, cfg, rep, rel)
 	}
 	if es.Tol == 0 {
 		es.Tol = rep.Saturation / 10
@@ -213,19 +252,28 @@ func Ensemble(ctx context.Context, sys *System, t1 float64, s *EnsembleSettings)
 	if es.Releases > 0 {
 		fillPredictability(rep, cfg)
 	}
-
-	bp, err := sys.BatchProblem(starts)
-	if err != nil {
-		return rep, err
+	var groups []*EnsembleGroup
+	var runErr error
+	for g := range cfg.groups() {
+		grp, err := src.group(g)
+		if grp == nil {
+			if len(groups) == 0 {
+				return rep, err
+			}
+			runErr = err
+			break
+		}
+		groups = append(groups, grp)
+		if err != nil {
+			runErr = err
+			break
+		}
 	}
-	sol, err := integrate.SolveBatch(ctx, bp, t1, cfg.batchSettings(&es, t1))
-	if sol == nil {
-		return rep, err
-	}
+	sol, ctrl := joinGroups(groups)
 	rep.Run = sol
 	rep.Status = sol.Status.String()
-	ensembleCurves(rep, sol, cfg.m, es.Tol)
-	return rep, err
+	ensembleCurves(rep, sol, cfg.m, es.Tol, ctrl)
+	return rep, runErr
 }
 
 // ensembleConfig is the resolved set-up of an ensemble.
@@ -233,6 +281,8 @@ type ensembleConfig struct {
 	m      ensMetric
 	along  []int
 	starts [][]float64
+	// lockstep is the number of members per lockstep group.
+	lockstep int
 	// After the releases: the passage times of each pair through levels.
 	levels []float64
 	pass   [][]float64
@@ -323,6 +373,9 @@ func resolveEnsemble(sys *System, t1 float64, es *EnsembleSettings) (*ensembleCo
 	if es.Workers < 0 {
 		return nil, bad("Workers", es.Workers, "must be >= 0")
 	}
+	if es.Lockstep < 0 {
+		return nil, bad("Lockstep", es.Lockstep, "must be >= 0")
+	}
 	names := es.Along
 	if names == nil {
 		names = es.Distance.Observe
@@ -363,6 +416,10 @@ func resolveEnsemble(sys *System, t1 float64, es *EnsembleSettings) (*ensembleCo
 	} else {
 		cfg.starts = perturbedStarts(start, es.Members, es.Delta, es.Spread, cfg.along, es.Seed, cfg.m)
 	}
+	cfg.lockstep = len(cfg.starts) - 1
+	if es.Lockstep > 0 && es.Lockstep < cfg.lockstep {
+		cfg.lockstep = es.Lockstep
+	}
 	// The members' samples are kept: bound their memory.
 	if bytes := (t1/es.Every + 2) * float64(len(cfg.starts)*n) * 8; bytes > maxEnsembleBytes {
 		return nil, bad("Every", es.Every, fmt.Sprintf("with %d members of %d components the samples would take %.3g GB (at most %g): report fewer times or run fewer members",
@@ -372,8 +429,10 @@ func resolveEnsemble(sys *System, t1 float64, es *EnsembleSettings) (*ensembleCo
 }
 
 // ensembleCurves fills the curves and parting times from the members'
-// samples.
-func ensembleCurves(rep *EnsembleReport, sol *integrate.BatchSolution, m ensMetric, tol float64) {
+// samples. ctrl, when not nil, gives the state of member k's own copy of
+// the control at sample j (members integrated in several lockstep
+// groups); nil takes member 0 of each sample.
+func ensembleCurves(rep *EnsembleReport, sol *integrate.BatchSolution, m ensMetric, tol float64, ctrl func(j, k int) []float64) {
 	n, mem := sol.Dim, sol.Members
 	dev := make([]float64, mem*n) // differences from the control, wrapped and scaled
 	obs := make([]bool, n)
@@ -383,10 +442,13 @@ func ensembleCurves(rep *EnsembleReport, sol *integrate.BatchSolution, m ensMetr
 	dist := make([][]float64, mem-1)
 	for j, smp := range sol.Samples {
 		rep.Times = append(rep.Times, smp.T)
-		ctrl := smp.Y[:n]
+		c := smp.Y[:n]
 		for k := 0; k < mem; k++ {
+			if ctrl != nil {
+				c = ctrl(j, k)
+			}
 			for i := 0; i < n; i++ {
-				d, _ := m.diff(i, smp.Y[k*n+i], ctrl[i])
+				d, _ := m.diff(i, smp.Y[k*n+i], c[i])
 				dev[k*n+i] = d
 			}
 		}

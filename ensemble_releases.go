@@ -8,11 +8,30 @@ import (
 	"github.com/plumbdyn/plumb/integrate"
 )
 
+// EnsembleReleases is what the pairs released along the control's orbit
+// measured, before any exponent is fitted: the piece of a split ensemble
+// that holds them hands it to the join.
+type EnsembleReleases struct {
+	// Saturation and Extent are the mean and the largest distance between
+	// the release points.
+	Saturation float64 `json:"saturation"`
+	Extent     float64 `json:"extent"`
+	// Delta is the ensemble's Delta (measured from the given starts when
+	// the settings left it 0); ReleaseDelta the pairs' first separation.
+	Delta        float64 `json:"delta"`
+	ReleaseDelta float64 `json:"release_delta"`
+	// Times are the sample times; Separations[i][j] pair i's separation at
+	// Times[j].
+	Times       []float64   `json:"times"`
+	Separations [][]float64 `json:"separations"`
+}
+
 // ensembleReleases runs the control's orbit to the release points, then
-// the pairs released there, and fills the saturation level and λ(δ).
-func ensembleReleases(ctx context.Context, sys *System, t1 float64, es *EnsembleSettings, cfg *ensembleConfig, rep *EnsembleReport) error {
+// the pairs released there, and returns what they measured; on failure,
+// the status of the run that failed with its error.
+func ensembleReleases(ctx context.Context, sys *System, t1 float64, es *EnsembleSettings, cfg *ensembleConfig) (*EnsembleReleases, string, error) {
 	k := es.Releases
-	rep.Releases, rep.ReleaseEvery = k, es.ReleaseEvery
+	rel := &EnsembleReleases{Delta: es.Delta}
 	times := make([]float64, k)
 	for i := range times {
 		times[i] = float64(float64(i+1) * es.ReleaseEvery)
@@ -21,10 +40,11 @@ func ensembleReleases(ctx context.Context, sys *System, t1 float64, es *Ensemble
 	orbit, err := integrate.Solve(ctx, p, times[k-1], integrate.DormandPrince54,
 		&integrate.Settings{RelTol: es.RelTol, AbsTol: es.AbsTol, Times: times, DropSteps: true, MaxSteps: es.MaxSteps})
 	if err != nil {
+		status := integrate.Failed.String()
 		if orbit != nil {
-			rep.Status = orbit.Status.String()
+			status = orbit.Status.String()
 		}
-		return fmt.Errorf("plumb: Ensemble: the control's orbit to the release points: %w", err)
+		return nil, status, fmt.Errorf("plumb: Ensemble: the control's orbit to the release points: %w", err)
 	}
 	// Saturation: the mean distance between release points.
 	var sum float64
@@ -33,12 +53,12 @@ func ensembleReleases(ctx context.Context, sys *System, t1 float64, es *Ensemble
 		for b := a + 1; b < k; b++ {
 			d := cfg.m.dist(orbit.Samples[a].Y, orbit.Samples[b].Y)
 			sum += d
-			rep.Extent = math.Max(rep.Extent, d)
+			rel.Extent = math.Max(rel.Extent, d)
 			cnt++
 		}
 	}
 	if cnt > 0 {
-		rep.Saturation = sum / float64(cnt)
+		rel.Saturation = sum / float64(cnt)
 	}
 	// Pairs: the release point and a partner Delta/releaseAlign away.
 	d0 := es.Delta / releaseAlign
@@ -47,14 +67,13 @@ func ensembleReleases(ctx context.Context, sys *System, t1 float64, es *Ensemble
 		for _, y := range cfg.starts[1:] {
 			d0 = math.Max(d0, cfg.m.dist(y, cfg.starts[0]))
 		}
-		es.Delta = d0
-		rep.Delta = d0
+		rel.Delta = d0
 		d0 /= releaseAlign
 	}
 	if !(d0 > 0) {
-		return fmt.Errorf("plumb: Ensemble: the given members coincide with the start: no scale to begin at: %w", integrate.ErrSettings)
+		return nil, integrate.Failed.String(), fmt.Errorf("plumb: Ensemble: the given members coincide with the start: no scale to begin at: %w", integrate.ErrSettings)
 	}
-	rep.ReleaseDelta = d0
+	rel.ReleaseDelta = d0
 	dirs := unitDirections(es.Seed^0x72656c65617365, k, len(sys.States), cfg.along) // "release"
 	starts := make([][]float64, 0, 2*k)
 	for i := 0; i < k; i++ {
@@ -67,33 +86,47 @@ func ensembleReleases(ctx context.Context, sys *System, t1 float64, es *Ensemble
 	}
 	bp, err := sys.BatchProblem(starts)
 	if err != nil {
-		return err
+		return nil, integrate.Failed.String(), err
 	}
 	sol, err := integrate.SolveBatch(ctx, bp, t1, cfg.batchSettings(es, t1))
 	if err != nil {
+		status := integrate.Failed.String()
 		if sol != nil {
-			rep.Status = sol.Status.String()
+			status = sol.Status.String()
 		}
-		return fmt.Errorf("plumb: Ensemble: the released pairs: %w", err)
+		return nil, status, fmt.Errorf("plumb: Ensemble: the released pairs: %w", err)
 	}
 	n := sol.Dim
-	cfg.ts = make([]float64, len(sol.Samples))
-	cfg.seps = make([][]float64, k)
-	for i := range cfg.seps {
-		cfg.seps[i] = make([]float64, len(sol.Samples))
+	rel.Times = make([]float64, len(sol.Samples))
+	rel.Separations = make([][]float64, k)
+	for i := range rel.Separations {
+		rel.Separations[i] = make([]float64, len(sol.Samples))
 	}
 	for j, smp := range sol.Samples {
-		cfg.ts[j] = smp.T
+		rel.Times[j] = smp.T
 		for i := 0; i < k; i++ {
-			cfg.seps[i][j] = cfg.m.dist(smp.Y[2*i*n:(2*i+1)*n], smp.Y[(2*i+1)*n:(2*i+2)*n])
+			rel.Separations[i][j] = cfg.m.dist(smp.Y[2*i*n:(2*i+1)*n], smp.Y[(2*i+1)*n:(2*i+2)*n])
 		}
 	}
+	return rel, "", nil
+}
+
+// applyReleases fills the report's saturation level and λ(δ) from what
+// the releases measured (and es.Delta, when it was measured from given
+// starts).
+func applyReleases(es *EnsembleSettings, cfg *ensembleConfig, rep *EnsembleReport, rel *EnsembleReleases) {
+	rep.Releases, rep.ReleaseEvery = es.Releases, es.ReleaseEvery
+	rep.Saturation, rep.Extent, rep.ReleaseDelta = rel.Saturation, rel.Extent, rel.ReleaseDelta
+	if es.Delta == 0 {
+		es.Delta, rep.Delta = rel.Delta, rel.Delta
+	}
+	cfg.ts, cfg.seps = rel.Times, rel.Separations
 	// Levels Delta·r^n up to the attractor's extent.
 	for lv := es.Delta; lv <= rep.Extent && len(cfg.levels) < 10000; lv *= es.Ratio {
 		cfg.levels = append(cfg.levels, lv)
 	}
 	if len(cfg.levels) < 2 {
-		return nil
+		return
 	}
 	cfg.pass = passageTimes(cfg.ts, cfg.seps, cfg.levels)
 	rep.Scales = scaleExponents(cfg.pass, cfg.levels)
@@ -109,7 +142,6 @@ func ensembleReleases(ctx context.Context, sys *System, t1 float64, es *Ensemble
 		}
 		rep.SmallScaleTo = cfg.levels[b]
 	}
-	return nil
 }
 
 // fillPredictability sets the mean time for the pairs to grow from Delta

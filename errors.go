@@ -38,4 +38,8 @@ var (
 	// (exited non-zero, timed out, wrote nothing readable): with nothing
 	// to compare with, the audit cannot be made.
 	ErrProgram = errors.New("program failed")
+	// ErrShard reports a shard that cannot be used: a bad "i/n", an
+	// environment that names no task or an irregular one, shard files that
+	// are missing, repeated, incomplete or made with other settings.
+	ErrShard = errors.New("unusable shard")
 )

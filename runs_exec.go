@@ -239,6 +239,12 @@ func (p Program) Argv(r PlannedRun, out string) []string { return p.argv(r, out)
 // failed, and the runs so far come back with ctx's error. Outputs go to a
 // fresh temporary directory, removed before RunProgram returns.
 func RunProgram(ctx context.Context, p Program) ([]RecordedRun, []PlannedRun, error) {
+	return runProgramRange(ctx, p, Shard{})
+}
+
+// runProgramRange is RunProgram of the runs sh takes of the plan; the
+// runs returned are those, in plan order.
+func runProgramRange(ctx context.Context, p Program, sh Shard) ([]RecordedRun, []PlannedRun, error) {
 	if ctx == nil {
 		ctx = context.Background()
 	}
@@ -246,6 +252,10 @@ func RunProgram(ctx context.Context, p Program) ([]RecordedRun, []PlannedRun, er
 	if err != nil {
 		return nil, nil, err
 	}
+	if err := sh.Validate(); err != nil {
+		return nil, plan, err
+	}
+	lo, hi := sh.Range(len(plan))
 	if p.Jobs < 0 || p.Timeout < 0 {
 		return nil, plan, fmt.Errorf("plumb: Program.Jobs = %d, Timeout = %v: must be >= 0: %w", p.Jobs, p.Timeout, ErrRuns)
 	}
@@ -262,23 +272,25 @@ func RunProgram(ctx context.Context, p Program) ([]RecordedRun, []PlannedRun, er
 	}
 	defer os.RemoveAll(dir)
 	jobs := max(p.Jobs, 1)
-	runs := make([]RecordedRun, len(plan))
+	runs := make([]RecordedRun, hi-lo)
 	sem := make(chan struct{}, jobs)
 	var wg sync.WaitGroup
-	for i, pr := range plan {
-		runs[i] = RecordedRun{Label: pr.Label, Reference: pr.Reference, Effect: pr.Effect, Source: strings.Join(p.argv(pr, "{out}"), " ")}
+	for k, pr := range plan[lo:hi] {
+		i := lo + k
+		runs := runs[k : k+1]
+		runs[0] = RecordedRun{Label: pr.Label, Reference: pr.Reference, Effect: pr.Effect, Source: strings.Join(p.argv(pr, "{out}"), " ")}
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			select {
 			case sem <- struct{}{}:
 			case <-ctx.Done():
-				runs[i].Failure = &RunFailure{Why: "not started: " + ctx.Err().Error(), ExitStatus: -1}
+				runs[0].Failure = &RunFailure{Why: "not started: " + ctx.Err().Error(), ExitStatus: -1}
 				return
 			}
 			defer func() { <-sem }()
 			out := filepath.Join(dir, fmt.Sprintf("run-%d%s", i+1, ext))
-			p.launch(ctx, &runs[i], p.argv(pr, out), out)
+			p.launch(ctx, &runs[0], p.argv(pr, out), out)
 		}()
 	}
 	wg.Wait()
@@ -392,23 +404,39 @@ func TrustProgram(ctx context.Context, p Program, s *RecordedSettings) (*Report,
 	if runs == nil {
 		return nil, plan, err
 	}
+	rep, err := TrustProgramRuns(ctx, runs, s, err)
+	return rep, plan, err
+}
+
+// TrustProgramRuns is TrustProgram's audit of the runs a Program made
+// (RunProgram, or the joined pieces of RunProgramShard), runErr being the
+// error that ended the launching: a failed reference fails the audit
+// (ErrProgram); with runErr, the report's verdict is Incomplete.
+func TrustProgramRuns(ctx context.Context, runs []RecordedRun, s *RecordedSettings, runErr error) (*Report, error) {
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	if len(runs) == 0 {
+		return nil, fmt.Errorf("plumb: no runs to audit: %w", ErrRuns)
+	}
+	err := runErr
 	if ref := runs[0].Failure; ref != nil {
 		why := fmt.Sprintf("the reference run (%s) failed: %s", runs[0].Source, ref.Why)
 		if ref.StderrTail != "" {
 			why += "; its stderr ends: " + ref.StderrTail
 		}
 		if err != nil {
-			return nil, plan, fmt.Errorf("plumb: %s: %w", why, err)
+			return nil, fmt.Errorf("plumb: %s: %w", why, err)
 		}
-		return nil, plan, fmt.Errorf("plumb: %s: %w", why, ErrProgram)
+		return nil, fmt.Errorf("plumb: %s: %w", why, ErrProgram)
 	}
 	rep, terr := TrustRuns(context.WithoutCancel(ctx), runs, s)
 	if terr != nil {
-		return rep, plan, terr
+		return rep, terr
 	}
 	if err != nil {
 		rep.Verdict = Incomplete
-		return rep, plan, fmt.Errorf("plumb: the program's runs: %w", err)
+		return rep, fmt.Errorf("plumb: the program's runs: %w", err)
 	}
-	return rep, plan, nil
+	return rep, nil
 }

@@ -144,6 +144,11 @@ const scanBatch = 32
 //	G. Benettin, L. Galgani, A. Giorgilli, J.-M. Strelcyn, Meccanica 15
 //	  (1980) 9–20 (the largest exponent from one renormalised vector).
 func Scan(ctx context.Context, fam Family, axes [][]float64, x0 []float64, s *ScanSettings, emit func(ScanRow) error) error {
+	return scanRange(ctx, fam, axes, x0, s, 0, -1, emit)
+}
+
+// scanRange is Scan of the rows [lo, hi); hi < 0 means all of them.
+func scanRange(ctx context.Context, fam Family, axes [][]float64, x0 []float64, s *ScanSettings, lo, hi int, emit func(ScanRow) error) error {
 	if ctx == nil {
 		ctx = context.Background()
 	}
@@ -183,8 +188,26 @@ func Scan(ctx context.Context, fam Family, axes [][]float64, x0 []float64, s *Sc
 	if err := set.Validate(m0.Dim()); err != nil {
 		return fmt.Errorf("maps: scan settings: %w", err)
 	}
-	workers := min(set.Workers, total)
-	return runScan(ctx, fam, axes, x0, &set, m0.Dim(), total, workers, emit)
+	if hi < 0 {
+		hi = total
+	}
+	if lo < 0 || lo > hi || hi > total {
+		return fmt.Errorf("maps: rows %d..%d of a scan of %d points: %w", lo, hi, total, integrate.ErrSettings)
+	}
+	if lo == hi {
+		return nil
+	}
+	workers := min(set.Workers, hi-lo)
+	return runScan(ctx, fam, axes, x0, &set, m0.Dim(), lo, hi, workers, emit)
+}
+
+// ScanRange is Scan restricted to the rows lo <= Index < hi of the grid
+// (one piece of a scan split across machines): the rows are the same, bit
+// for bit, as Scan's rows of those indices, and emit sees them in index
+// order. lo == hi scans nothing. Errors: those of Scan, and a range
+// outside the grid (integrate.ErrSettings).
+func ScanRange(ctx context.Context, fam Family, axes [][]float64, x0 []float64, s *ScanSettings, lo, hi int, emit func(ScanRow) error) error {
+	return scanRange(ctx, fam, axes, x0, s, lo, hi, emit)
 }
 
 // scanResult is one finished row, or the family's error at its point.
@@ -198,8 +221,9 @@ type scanResult struct {
 // slots; a slot is given back when its row is emitted. So at most window
 // rows are held, and no worker waits for a slow neighbour as long as the
 // rows ahead of the slowest fit in the window.
-func runScan(ctx context.Context, fam Family, axes [][]float64, x0 []float64, set *ScanSettings, dim, total, workers int,
+func runScan(ctx context.Context, fam Family, axes [][]float64, x0 []float64, set *ScanSettings, dim, lo, hi, workers int,
 	emit func(ScanRow) error) error {
+	total := hi - lo
 	window := min(total, scanBatch*workers)
 	ctx2, cancel := context.WithCancel(ctx)
 	defer cancel()
@@ -208,7 +232,7 @@ func runScan(ctx context.Context, fam Family, axes [][]float64, x0 []float64, se
 	results := make(chan scanResult, window)
 	go func() {
 		defer close(jobs)
-		for i := range total {
+		for i := lo; i < hi; i++ {
 			select {
 			case slots <- struct{}{}:
 			case <-ctx2.Done():
@@ -254,7 +278,7 @@ func runScan(ctx context.Context, fam Family, axes [][]float64, x0 []float64, se
 			cancel()
 			continue
 		}
-		k := res.row.Index % window
+		k := (res.row.Index - lo) % window
 		pending[k], have[k] = res.row, true
 		for have[next%window] {
 			k := next % window

@@ -44,6 +44,7 @@ func init() {
 		ensembleCmd,
 		scanCmd,
 		cyclesCmd,
+		mergeCmd,
 		modelsCmd,
 		versionCmd,
 		helpCmd,

@@ -151,7 +151,9 @@ func TestJSONDocumented(t *testing.T) {
 	}
 	for _, cmd := range commands {
 		for _, f := range cmd.formats {
-			if f == "json" && runs[cmd.name] == nil {
+			// plumb merge writes the JSON of the command it joins,
+			// checked under that command's name.
+			if f == "json" && runs[cmd.name] == nil && cmd != mergeCmd {
 				t.Errorf("plumb %s writes JSON but this test does not run it", cmd.name)
 			}
 		}

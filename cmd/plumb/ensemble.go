@@ -52,10 +52,16 @@ lightly and the members marked at the --at times). --animate FILE.gif
 writes the members moving across two components (--axes X,Y), the
 control in black, at most 120 frames of at most 800x500 pixels.
 
+--format npy writes the CSV's rows as a NumPy float64 array (NaN where
+CSV is empty). --lockstep N integrates the members in groups of N, each
+with one step size beside its own copy of the control (default: one
+group); --shard I/N computes the I-th of N contiguous blocks of the work
+(the releases, the groups) as a shard file that 'plumb merge' joins.
+
 This is a statement about the numerical model, not the real system;
 safety-critical use follows the field's codes and licensed review.`,
 	model:   "lorenz",
-	formats: []string{"table", "json", "csv", "jsonl"},
+	formats: []string{"table", "json", "csv", "jsonl", "npy"},
 	plots:   true,
 	setup:   setupEnsemble,
 }
@@ -72,6 +78,8 @@ type ensembleFlags struct {
 	membersFile         string
 	view, axes, at      string
 	animate             string
+	lockstep            int
+	shard               string
 	dist                distanceFlags
 	alongList, axisList []string
 	atList              []float64
@@ -109,11 +117,13 @@ func setupEnsemble(fs *flag.FlagSet, sh *shared) func(context.Context, *call) er
 	finiteVar(fs, &f.releaseEvery, "release-every", 0, "time `T` between releases along the orbit; 0: t1/4")
 	finiteVar(fs, &f.ratio, "ratio", math.Sqrt2, "growth factor `R` between the scales of lambda(delta)")
 	fs.IntVar(&f.workers, "workers", 0, "`N` goroutines sharing the members; 0: one per CPU (results do not depend on it)")
-	fs.StringVar(&f.rows, "rows", "curves", "`ROWS` that --format csv writes: curves or scales")
+	fs.StringVar(&f.rows, "rows", "curves", "`ROWS` that --format csv and npy write: curves or scales")
 	fs.StringVar(&f.view, "view", "members", "`VIEW` that --plot draws: members, spread or projection")
 	fs.StringVar(&f.axes, "axes", "", "state `NAMES` of the picture's axes: one for --view members, two (X,Y) for projection (default: the first one or two)")
 	fs.StringVar(&f.at, "at", "", "comma-separated `TIMES` at which --view projection marks the members (default: t1/4, t1/2, 3t1/4, t1)")
 	fs.StringVar(&f.animate, "animate", "", "write an animated GIF `FILE` of the members moving across two components (--axes X,Y, default the first two)")
+	fs.IntVar(&f.lockstep, "lockstep", 0, "integrate the members in groups of `N`, each with its own step size and copy of the control (0: all in one group); the units --shard splits")
+	addShardFlag(fs, &f.shard)
 	addDistanceFlags(fs, &f.dist)
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
@@ -149,6 +159,7 @@ type ensembleSettingsJSON struct {
 	Releases     int         `json:"releases"`
 	ReleaseEvery float64     `json:"release_every"`
 	Ratio        float64     `json:"ratio"`
+	Lockstep     int         `json:"lockstep"`
 	Observe      []string    `json:"observe"`
 	Scales       []scaleJSON `json:"scales"`
 }
@@ -170,8 +181,8 @@ func (f *ensembleFlags) run(ctx context.Context, cl *call) error {
 	if err := choice("view", f.view, "members", "spread", "projection"); err != nil {
 		return err
 	}
-	if cl.sh.given["rows"] && cl.sh.format != "csv" {
-		return usagef("--rows %s: only --format csv chooses its rows", f.rows)
+	if cl.sh.given["rows"] && cl.sh.format != "csv" && cl.sh.format != "npy" {
+		return usagef("--rows %s: only --format csv and npy choose their rows", f.rows)
 	}
 	for _, v := range []string{"view", "at"} {
 		if cl.sh.given[v] && cl.sh.plot == "" {
@@ -204,15 +215,22 @@ func (f *ensembleFlags) run(ctx context.Context, cl *call) error {
 	}
 	s := f.settings
 	s.Distance = dist
+	sh, err := cl.resolveShard(f.shard)
+	if err != nil {
+		return err
+	}
+	if !sh.Whole() {
+		return f.runShard(ctx, cl, sh, sys, &s)
+	}
 	return cl.runJob(ctx, job{
 		what:    "the ensemble of " + sys.Name,
 		refusal: "the ensemble's settings were refused",
 		run: func(ctx context.Context, _ func(float64)) (*outcome, error) {
-			rep, err := plumb.Ensemble(ctx, sys, f.t1, &s)
+			rep, err := f.ensemble(ctx, cl, sys, &s)
 			if rep == nil {
 				return nil, err
 			}
-			return f.outcome(cl, sys, dist, rep, err), nil
+			return f.withNPY(cl, f.outcome(cl, sys, dist, rep, err), rep), nil
 		},
 	})
 }
@@ -282,6 +300,8 @@ func (f *ensembleFlags) check(cl *call, sys *plumb.System) error {
 		return usagef("--ratio %s: must be in (1, 100]", formatFloat(f.ratio))
 	case f.workers < 0:
 		return usagef("--workers %d: must be >= 0", f.workers)
+	case f.lockstep < 0:
+		return usagef("--lockstep %d: must be >= 0", f.lockstep)
 	}
 	var err error
 	if f.alongList, err = nameList("along", f.along, sys); err != nil {
@@ -326,7 +346,7 @@ func (f *ensembleFlags) check(cl *call, sys *plumb.System) error {
 	}
 	f.settings = plumb.EnsembleSettings{Members: f.members, Delta: f.delta, Spread: f.spreadKind, Along: f.alongList,
 		Seed: f.seed, Tol: f.tol, Every: f.dt, RelTol: f.rtol, AbsTol: f.atol, MaxSteps: f.maxSteps,
-		Ratio: f.ratio, Releases: releases, ReleaseEvery: f.releaseEvery, Workers: f.workers}
+		Ratio: f.ratio, Releases: releases, ReleaseEvery: f.releaseEvery, Workers: f.workers, Lockstep: f.lockstep}
 	if f.membersFile != "" {
 		return f.readMembers(cl, sys)
 	}
@@ -387,7 +407,7 @@ func (f *ensembleFlags) json(sys *plumb.System, dist plumb.Distance, rep *plumb.
 		Settings: ensembleSettingsJSON{T1: f.t1, Members: f.members, Delta: f.delta, Spread: f.spread,
 			Along: rep.Along, Seed: f.seed, Tol: rep.Tol, Dt: f.settingsDt(), RelTol: f.rtol, AbsTol: f.atol,
 			MaxSteps: f.maxSteps, Releases: f.releases, ReleaseEvery: rep.ReleaseEvery, Ratio: f.ratio,
-			Observe: obs, Scales: scales},
+			Lockstep: f.lockstep, Observe: obs, Scales: scales},
 		Units: ensembleUnitsJSON{
 			Time:     describe(sys).timeUnit("the model's time unit (t1, dt, times, parting_times, predictability_time)"),
 			Distance: rep.Distance.String() + " (delta, tol, spread, largest_pair, saturation, extent, scales[].delta)",
@@ -526,7 +546,7 @@ func (f *ensembleFlags) table(w io.Writer, sys *plumb.System, rep *plumb.Ensembl
 		fmt.Fprintf(tw, "members\t%d around the start, %s spread, delta %s along %s, seed %d\n", rep.Members, rep.Spread, fmtSig(rep.Delta), strings.Join(rep.Along, ", "), rep.Seed)
 	}
 	fmt.Fprintf(tw, "distance\t%s\n", rep.Distance.String())
-	fmt.Fprintf(tw, "method\t%s, rtol %s, atol %s\n", rep.Method, formatFloat(rep.RelTol), formatFloat(rep.AbsTol))
+	fmt.Fprintf(tw, "method\t%s, rtol %s, atol %s%s\n", rep.Method, formatFloat(rep.RelTol), formatFloat(rep.AbsTol), lockstepNote(rep))
 	fmt.Fprintf(tw, "tol\t%s\n", fmtSig(rep.Tol))
 	fmt.Fprintf(tw, "parted\t%s\n", partingSummary(rep, tu))
 	if rep.Releases > 0 {

@@ -99,7 +99,9 @@ func TestJSONKeysMatchHelp(t *testing.T) {
 		for _, r := range runs {
 			seen = seen || r.cmd == cmd.name
 		}
-		if json && !seen {
+		// plumb merge writes the JSON of the command its shard files
+		// record, whose keys that command's runs check.
+		if json && !seen && cmd != mergeCmd {
 			t.Errorf("plumb %s writes JSON but this test does not run it", cmd.name)
 		}
 	}

@@ -35,6 +35,11 @@ type call struct {
 	// out is what the runner learnt while writing the result (never nil
 	// in a call execute makes).
 	out *outState
+	// raw is the command line after the command's name (a --shard run
+	// records it in its shard file); merge, when not nil, holds the shard
+	// files plumb merge joins, which the command reads instead of computing.
+	raw   []string
+	merge *mergeInput
 
 	// rawStdout is the destination under the buffer (stdout, or the
 	// --out file's temporary), for a result that seeks back into a file
@@ -162,7 +167,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 	bw := bufio.NewWriter(dst)
 	cl := &call{
 		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, rawStdout: dst, stderr: stderr,
-		progress: mode, out: &outState{toFile: out != nil},
+		progress: mode, out: &outState{toFile: out != nil}, raw: args,
 	}
 	err = work(ctx, cl)
 	if ferr := bw.Flush(); ferr != nil && err == nil {

@@ -195,6 +195,7 @@ var refusals = []error{
 	plumb.ErrTolerance,
 	plumb.ErrRuns,
 	plumb.ErrUnknown,
+	plumb.ErrShard,
 	embed.ErrEmbedding,
 	embed.ErrSettings,
 }

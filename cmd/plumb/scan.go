@@ -36,12 +36,20 @@ units, status, error, rows. --format jsonl streams one JSON object per line
 as rows are done, for scans too big to hold: first the header (the keys of
 json but rows), then one row per line, then {status, error}. A row's
 exponent is null where it is not finite (superstable is then true: the
-orbit hits the critical point exactly).
+orbit hits the critical point exactly). --format npy writes the CSV's
+columns as a NumPy float64 array, one row per point of the diagram (the
+exponent NaN where it is unknown, -Inf where superstable).
+
+--shard I/N computes only the I-th of N contiguous blocks of the
+parameter points and writes a shard file instead; 'plumb merge' joins the
+N files into exactly the output of the whole scan, in its --format, and
+draws its --plot. --shard auto takes the block from a Slurm array job or a
+Kubernetes indexed Job (see --shard below).
 
 --plot FILE.png draws the orbit diagram, every point alpha-blended, with
 the exponent beneath it on the same parameter axis (one axis only).`,
 	model:   "logistic",
-	formats: []string{"table", "csv", "json", "jsonl"},
+	formats: []string{"table", "csv", "json", "jsonl", "npy"},
 	plots:   true,
 	setup:   setupScan,
 }
@@ -55,6 +63,7 @@ type scanFlags struct {
 	tol       float64
 	component string
 	workers   int
+	shard     string
 }
 
 // Defaults of plumb scan.
@@ -76,6 +85,7 @@ func setupScan(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error 
 	finiteVar(fs, &f.tol, "tol", maps.DefaultPeriodTol, "iterates within `TOL` (relative to 1+|x|) are the same point")
 	fs.StringVar(&f.component, "component", "", "state component `NAME` recorded (default: the first)")
 	fs.IntVar(&f.workers, "workers", 0, "parameter points computed at once, `N` goroutines (0: one per core)")
+	addShardFlag(fs, &f.shard)
 	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
@@ -211,6 +221,16 @@ func (f *scanFlags) run(ctx context.Context, cl *call) error {
 	for _, a := range f.across {
 		out.Settings.Across = append(out.Settings.Across, scanAxisJSON{Name: a.name, From: a.from, To: a.to, Count: a.n})
 	}
+	sh, err := cl.resolveShard(f.shard)
+	if err != nil {
+		return err
+	}
+	if err := checkNPYOut(cl); err != nil {
+		return err
+	}
+	if !sh.Whole() {
+		return f.runShard(ctx, cl, sh, sys, fam, axes, set)
+	}
 	span := [2]float64{0, float64(points)}
 	return cl.runJob(ctx, job{
 		what:    "the scan of " + sys.Name,
@@ -237,7 +257,7 @@ func (f *scanFlags) scan(ctx context.Context, cl *call, sys *plumb.System, fam m
 	}
 	var rows []maps.ScanRow
 	done, escaped, artefacts := 0, 0, 0
-	runErr := maps.Scan(ctx, fam, axes, sys.Start(), &set, func(r maps.ScanRow) error {
+	runErr := scanRows(ctx, cl, fam, axes, sys.Start(), &set, func(r maps.ScanRow) error {
 		done++
 		if r.Escaped {
 			escaped++
@@ -293,6 +313,10 @@ func (f *scanFlags) scan(ctx context.Context, cl *call, sys *plumb.System, fam m
 		}
 		res.table = func(w io.Writer) error { return scanTable(w, sys, out, rows) }
 		res.csv = func(w io.Writer) error { return scanCSV(w, out, rows) }
+		if cl.sh.format == "npy" {
+			// The array goes out through the default writer, the table's.
+			res.table = func(w io.Writer) error { return scanNPY(w, out, rows) }
+		}
 	}
 	if cl.sh.plot != "" {
 		res.draw = func(name string, size plotSize) error { return saveOrbitDiagram(name, size, sys, out, rows) }

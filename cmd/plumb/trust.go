@@ -340,6 +340,9 @@ func givenOf(cl *call, names []string) []string {
 const trustGrid = 1000
 
 func (f *trustFlags) run(ctx context.Context, cl *call) error {
+	if cl.sh.given["shard"] && !cl.sh.given["exec"] {
+		return usagef("--shard %s: applies to --exec runs only (the built-in audit is not split)", f.recorded.exec.shard)
+	}
 	if f.recorded.active(cl) {
 		if f.shadow {
 			return usagef("--shadow: shadows a run plumb makes itself, not runs read with --run or made with --exec")

@@ -24,10 +24,11 @@ type execFlags struct {
 	jobs     int
 	limit    time.Duration
 	outExt   string
+	shard    string
 }
 
 // execOnly are the flags that apply to --exec only.
-var execOnly = []string{"tols", "perturb", "vary", "jobs", "time-limit", "out-ext"}
+var execOnly = []string{"tols", "perturb", "vary", "jobs", "time-limit", "out-ext", "shard"}
 
 // Defaults of --exec.
 const (
@@ -45,6 +46,7 @@ func addExecFlags(fs *flag.FlagSet, e *execFlags) {
 	fs.IntVar(&e.jobs, "jobs", execJobs, "run at most `N` --exec programs at a time")
 	fs.DurationVar(&e.limit, "time-limit", execLimit, "stop an --exec run after the duration `D` (e.g. 90s, 10m); it is then a failed rung")
 	fs.StringVar(&e.outExt, "out-ext", ".csv", "the extension `EXT` of the {out} file, which chooses how plumb reads it: .csv, .npy or .jsonl")
+	addShardFlag(fs, &e.shard)
 }
 
 // checkUnused refuses --exec's flags without --exec.
@@ -122,45 +124,27 @@ type varyJSON struct {
 	Values []string `json:"values"`
 }
 
-// runExec launches the program and audits its runs.
+// runExec launches the program and audits its runs (in a merge: audits
+// the runs of the joined shard files).
 func (f *trustFlags) runExec(ctx context.Context, cl *call, settings *plumb.RecordedSettings) (*plumb.Report, []runJSON, error) {
 	e := &f.recorded.exec
-	argv, err := splitWords(e.template)
+	p, plan, specs, err := f.program(cl)
 	if err != nil {
-		return nil, nil, usagef("--exec %q: %v", e.template, err)
+		return nil, nil, err
 	}
-	if len(argv) == 0 {
-		return nil, nil, usagef("--exec %q: no command", e.template)
-	}
-	if _, err := exec.LookPath(argv[0]); err != nil {
-		return nil, nil, usagef("--exec %q: %v", e.template, err)
-	}
-	tols, err := parseTols(e.tols)
-	if err != nil {
-		return nil, nil, usagef("--tols %s: %v", e.tols, err)
-	}
-	if e.jobs < 1 {
-		return nil, nil, usagef("--jobs %d: must be >= 1", e.jobs)
-	}
-	if e.limit <= 0 {
-		return nil, nil, usagef("--time-limit %v: must be > 0", e.limit)
-	}
-	if e.perturb == 0 {
-		return nil, nil, usagef("--perturb 0: the nudged-start rung needs a nudge (or leave {perturb} out of --exec)")
-	}
-	p := plumb.Program{Args: argv, Tols: tols, Perturb: e.perturb, Vary: e.vary, OutExt: e.outExt,
-		Read: f.recorded.readOptions(), Jobs: e.jobs, Timeout: e.limit}
-	plan, err := p.Plan()
-	if err != nil {
-		return nil, nil, usagef("--exec %q: %v", e.template, err)
-	}
-	specs := make([]runJSON, len(plan))
-	for i, r := range plan {
-		eff := string(r.Effect)
-		if r.Reference {
-			eff = "reference"
+	if cl.merge != nil {
+		runs, err := plumb.ProgramRuns(cl.merge.set, plan)
+		if err != nil {
+			return nil, specs, err
 		}
-		specs[i] = runJSON{Label: r.Label, Effect: eff, Args: p.Argv(r, "{out}")}
+		if !cl.sh.quiet {
+			fmt.Fprintf(cl.stderr, "plumb trust: auditing %s from %s\n", count(len(runs), "run"), count(len(cl.merge.set.Pieces), "shard file"))
+		}
+		rep, err := plumb.TrustProgramRuns(ctx, runs, settings, nil)
+		if rep == nil && err != nil && errors.Is(err, plumb.ErrProgram) {
+			return nil, specs, fmt.Errorf("--exec: %w", err)
+		}
+		return rep, specs, err
 	}
 	if !cl.sh.quiet {
 		fmt.Fprintf(cl.stderr, "plumb trust: launching %s, %d at a time\n", count(len(plan), "run"), e.jobs)
@@ -170,6 +154,51 @@ func (f *trustFlags) runExec(ctx context.Context, cl *call, settings *plumb.Reco
 		return nil, specs, fmt.Errorf("--exec: %w", err)
 	}
 	return rep, specs, err
+}
+
+// program checks --exec and its flags and returns the program, its plan
+// and the runs as echoed. In a merge the program is not looked up: the
+// runs come from the shard files.
+func (f *trustFlags) program(cl *call) (plumb.Program, []plumb.PlannedRun, []runJSON, error) {
+	e := &f.recorded.exec
+	argv, err := splitWords(e.template)
+	if err != nil {
+		return plumb.Program{}, nil, nil, usagef("--exec %q: %v", e.template, err)
+	}
+	if len(argv) == 0 {
+		return plumb.Program{}, nil, nil, usagef("--exec %q: no command", e.template)
+	}
+	if _, err := exec.LookPath(argv[0]); err != nil && cl.merge == nil {
+		return plumb.Program{}, nil, nil, usagef("--exec %q: %v", e.template, err)
+	}
+	tols, err := parseTols(e.tols)
+	if err != nil {
+		return plumb.Program{}, nil, nil, usagef("--tols %s: %v", e.tols, err)
+	}
+	if e.jobs < 1 {
+		return plumb.Program{}, nil, nil, usagef("--jobs %d: must be >= 1", e.jobs)
+	}
+	if e.limit <= 0 {
+		return plumb.Program{}, nil, nil, usagef("--time-limit %v: must be > 0", e.limit)
+	}
+	if e.perturb == 0 {
+		return plumb.Program{}, nil, nil, usagef("--perturb 0: the nudged-start rung needs a nudge (or leave {perturb} out of --exec)")
+	}
+	p := plumb.Program{Args: argv, Tols: tols, Perturb: e.perturb, Vary: e.vary, OutExt: e.outExt,
+		Read: f.recorded.readOptions(), Jobs: e.jobs, Timeout: e.limit}
+	plan, err := p.Plan()
+	if err != nil {
+		return plumb.Program{}, nil, nil, usagef("--exec %q: %v", e.template, err)
+	}
+	specs := make([]runJSON, len(plan))
+	for i, r := range plan {
+		eff := string(r.Effect)
+		if r.Reference {
+			eff = "reference"
+		}
+		specs[i] = runJSON{Label: r.Label, Effect: eff, Args: p.Argv(r, "{out}")}
+	}
+	return p, plan, specs, nil
 }
 
 // parseTols parses the --tols list.

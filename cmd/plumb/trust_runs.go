@@ -189,6 +189,13 @@ func (f *trustFlags) runRecorded(ctx context.Context, cl *call) error {
 	echo := runsSettingsJSON{Tol: f.tol, Relative: f.relative, Horizon: settings.Horizon, Every: r.every, Scales: scales}
 	if cl.sh.given["exec"] {
 		echo.Exec = r.exec.echo()
+		sh, err := cl.resolveShard(r.exec.shard)
+		if err != nil {
+			return err
+		}
+		if !sh.Whole() {
+			return f.runExecShard(ctx, cl, sh)
+		}
 	}
 	return cl.runJob(ctx, trustJob(auditJob{
 		what:     "the audit of the runs",
