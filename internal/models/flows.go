@@ -32,6 +32,13 @@ func init() {
 		Jac: func(p []float64) func(float64, []float64, *mat.Dense) {
 			s, r, b := p[0], p[1], p[2]
 			return func(_ float64, y []float64, j *mat.Dense) {
+				if e := entries3(j); e != nil {
+					x0, y1, z2 := y[0], y[1], y[2]
+					e[0], e[1], e[2] = -s, s, 0
+					e[3], e[4], e[5] = r-z2, -1, -x0
+					e[6], e[7], e[8] = y1, x0, -b
+					return
+				}
 				j.Set(0, 0, -s)
 				j.Set(0, 1, s)
 				j.Set(0, 2, 0)
@@ -63,6 +70,13 @@ func init() {
 		Jac: func(p []float64) func(float64, []float64, *mat.Dense) {
 			a, c := p[0], p[2]
 			return func(_ float64, y []float64, j *mat.Dense) {
+				if e := entries3(j); e != nil {
+					x0, z2 := y[0], y[2]
+					e[0], e[1], e[2] = 0, -1, -1
+					e[3], e[4], e[5] = 1, a, 0
+					e[6], e[7], e[8] = z2, 0, x0-c
+					return
+				}
 				j.Set(0, 0, 0)
 				j.Set(0, 1, -1)
 				j.Set(0, 2, -1)
