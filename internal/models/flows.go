@@ -32,11 +32,11 @@ func init() {
 		Jac: func(p []float64) func(float64, []float64, *mat.Dense) {
 			s, r, b := p[0], p[1], p[2]
 			return func(_ float64, y []float64, j *mat.Dense) {
-				if e := entries3(j); e != nil {
+				if e0, e1, e2, ok := rows3(j); ok {
 					x0, y1, z2 := y[0], y[1], y[2]
-					e[0], e[1], e[2] = -s, s, 0
-					e[3], e[4], e[5] = r-z2, -1, -x0
-					e[6], e[7], e[8] = y1, x0, -b
+					e0[0], e0[1], e0[2] = -s, s, 0
+					e1[0], e1[1], e1[2] = r-z2, -1, -x0
+					e2[0], e2[1], e2[2] = y1, x0, -b
 					return
 				}
 				j.Set(0, 0, -s)
@@ -70,11 +70,11 @@ func init() {
 		Jac: func(p []float64) func(float64, []float64, *mat.Dense) {
 			a, c := p[0], p[2]
 			return func(_ float64, y []float64, j *mat.Dense) {
-				if e := entries3(j); e != nil {
+				if e0, e1, e2, ok := rows3(j); ok {
 					x0, z2 := y[0], y[2]
-					e[0], e[1], e[2] = 0, -1, -1
-					e[3], e[4], e[5] = 1, a, 0
-					e[6], e[7], e[8] = z2, 0, x0-c
+					e0[0], e0[1], e0[2] = 0, -1, -1
+					e1[0], e1[1], e1[2] = 1, a, 0
+					e2[0], e2[1], e2[2] = z2, 0, x0-c
 					return
 				}
 				j.Set(0, 0, 0)

@@ -2,16 +2,15 @@ package models
 
 import "gonum.org/v1/gonum/mat"
 
-// entries3 returns the nine entries of j, row-major, as an array the caller
-// may write, when j is a 3×3 matrix stored without gaps between its rows;
-// otherwise nil, and the caller writes through Set. Writing the entries
-// directly costs a fraction of nine calls of Set, which check their
-// indices one by one: the Jacobians of 3-D flows are written at every
-// evaluation of a tangent-space run.
-func entries3(j *mat.Dense) *[9]float64 {
-	m := j.RawMatrix()
-	if m.Rows != 3 || m.Cols != 3 || m.Stride != 3 || len(m.Data) < 9 {
-		return nil
+// rows3 returns the three rows of j as arrays the caller may write, when j
+// is a 3×3 matrix; otherwise ok is false, and the caller writes through
+// Set. Writing the rows directly costs a fraction of nine calls of Set,
+// each of which checks its indices: the Jacobians of 3-D flows are written
+// at every evaluation of a tangent-space run. (RawRowView rather than
+// RawMatrix, whose struct the compiler copies through the stack twice.)
+func rows3(j *mat.Dense) (r0, r1, r2 *[3]float64, ok bool) {
+	if r, c := j.Dims(); r != 3 || c != 3 {
+		return nil, nil, nil, false
 	}
-	return (*[9]float64)(m.Data[:9])
+	return (*[3]float64)(j.RawRowView(0)), (*[3]float64)(j.RawRowView(1)), (*[3]float64)(j.RawRowView(2)), true
 }
