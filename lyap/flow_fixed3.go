@@ -25,21 +25,21 @@ func (r *flowRun) field33(t float64, y, dy []float64) {
 // the same order, the +0 start of each sum kept (a -0 product gives +0, as
 // there).
 func tangent33(d *[13]float64, j *[9]float64, v *[13]float64) {
-	v00, v01, v02 := v[3], v[4], v[5]
-	v10, v11, v12 := v[6], v[7], v[8]
-	v20, v21, v22 := v[9], v[10], v[11]
+	// The entries of V are read where they are used rather than held in
+	// variables: nine of them and the row's three entries of J do not fit
+	// in the registers, and the spills cost more than the loads.
 	for i := 0; i < 9; i += 3 {
 		a0, a1, a2 := j[i], j[i+1], j[i+2]
 		var s0, s1, s2 float64
-		s0 += float64(a0 * v00)
-		s1 += float64(a0 * v01)
-		s2 += float64(a0 * v02)
-		s0 += float64(a1 * v10)
-		s1 += float64(a1 * v11)
-		s2 += float64(a1 * v12)
-		s0 += float64(a2 * v20)
-		s1 += float64(a2 * v21)
-		s2 += float64(a2 * v22)
+		s0 += float64(a0 * v[3])
+		s1 += float64(a0 * v[4])
+		s2 += float64(a0 * v[5])
+		s0 += float64(a1 * v[6])
+		s1 += float64(a1 * v[7])
+		s2 += float64(a1 * v[8])
+		s0 += float64(a2 * v[9])
+		s1 += float64(a2 * v[10])
+		s2 += float64(a2 * v[11])
 		d[3+i], d[4+i], d[5+i] = s0, s1, s2
 	}
 	var tr float64
