@@ -16,18 +16,14 @@ func (r *flowRun) field33(t float64, y, dy []float64) {
 	r.jacs++
 	r.calling = integrate.CallbackJacobian
 	r.p.Jac(t, x, r.J)
-	tangent33((*[13]float64)(dy), (*[9]float64)(r.jd), (*[13]float64)(y))
-}
-
-// tangent33 writes J·V into d[3:12] and tr J into d[12] for the 3×3
-// Jacobian j and the tangent vectors v[3:12] (row-major, one vector per
-// column): the sums of mulTangent33 and of field's trace, term by term in
-// the same order, the +0 start of each sum kept (a -0 product gives +0, as
-// there).
-func tangent33(d *[13]float64, j *[9]float64, v *[13]float64) {
-	// The entries of V are read where they are used rather than held in
-	// variables: nine of them and the row's three entries of J do not fit
-	// in the registers, and the spills cost more than the loads.
+	// J·V into dy[3:12] and tr J into dy[12]: the sums of mulTangent33
+	// and of field's trace, term by term in the same order, the +0 start
+	// of each sum kept (a -0 product gives +0, as there). Written out
+	// here, not called: a call more per evaluation cost 2% of a Lorenz
+	// spectrum run. The entries of V are read where they are used rather
+	// than held in variables: nine of them and a row of J do not fit in
+	// the registers, and the spills cost more than the loads.
+	d, j, v := (*[13]float64)(dy), (*[9]float64)(r.jd), (*[13]float64)(y)
 	for i := 0; i < 9; i += 3 {
 		a0, a1, a2 := j[i], j[i+1], j[i+2]
 		var s0, s1, s2 float64
