@@ -11,7 +11,7 @@ import (
 // TestJacobianStorage checks that every flow's Jacobian writes the same bits
 // into a compact matrix and into a view of a larger matrix (the 3-D flows
 // write the rows of either directly) as through Set (into the leading block
-// of an (n+1)×(n+1) matrix, which rows3 turns down): an exact identity, the
+// of an (n+1)×(n+1) matrix, which the direct path turns down): an exact identity, the
 // same expressions every way.
 func TestJacobianStorage(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 4))
@@ -42,25 +42,5 @@ func TestJacobianStorage(t *testing.T) {
 				}
 			}
 		}
-	}
-}
-
-// TestRows3 checks which matrices rows3 writes directly, and that it
-// hands out the rows of a view (a wider stride), not its backing array.
-func TestRows3(t *testing.T) {
-	big := mat.NewDense(4, 4, nil)
-	r0, r1, r2, ok := rows3(big.Slice(1, 4, 1, 4).(*mat.Dense))
-	if !ok {
-		t.Fatal("a 3×3 view with stride 4: want its rows")
-	}
-	r0[0], r1[1], r2[2] = 1, 2, 3
-	if big.At(1, 1) != 1 || big.At(2, 2) != 2 || big.At(3, 3) != 3 || big.At(1, 0) != 0 || big.At(0, 1) != 0 {
-		t.Errorf("wrote the wrong entries:\n%v", mat.Formatted(big))
-	}
-	if _, _, _, ok := rows3(mat.NewDense(2, 2, nil)); ok {
-		t.Error("a 2×2 matrix: want ok = false")
-	}
-	if _, _, _, ok := rows3(mat.NewDense(3, 4, nil)); ok {
-		t.Error("a 3×4 matrix: want ok = false")
 	}
 }
