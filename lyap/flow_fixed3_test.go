@@ -2,6 +2,7 @@ package lyap
 
 import (
 	"context"
+	"errors"
 	"math"
 	"testing"
 
@@ -101,6 +102,45 @@ func TestFixedSizeBits(t *testing.T) {
 				if !same(ha[i], hb[i]) {
 					t.Fatalf("re-orthonormalisation %d: fixed %v, general %v", i, ha[i], hb[i])
 				}
+			}
+		})
+	}
+}
+
+// TestFixedSizePanics: a panic in the caller's field or Jacobian on the
+// fixed-size path ends the run with a CallbackError naming that function
+// and a time at or after the panic's, as on the general path.
+func TestFixedSizePanics(t *testing.T) {
+	const tPanic = 1.5
+	for _, which := range []string{integrate.CallbackField, integrate.CallbackJacobian} {
+		t.Run(which, func(t *testing.T) {
+			p := modelProblem(t, "lorenz")
+			f, jac := p.F, p.Jac
+			if which == integrate.CallbackField {
+				p.F = func(tt float64, y, d []float64) {
+					if tt > tPanic {
+						panic("field broke")
+					}
+					f(tt, y, d)
+				}
+			} else {
+				p.Jac = func(tt float64, y []float64, j *mat.Dense) {
+					if tt > tPanic {
+						panic("Jacobian broke")
+					}
+					jac(tt, y, j)
+				}
+			}
+			sp, err := Exponents(context.Background(), p, 3, &Settings{Duration: 10, Transient: 1})
+			if sp == nil {
+				t.Fatal("no partial spectrum")
+			}
+			var ce *integrate.CallbackError
+			if !errors.As(err, &ce) {
+				t.Fatalf("err = %v, want a CallbackError", err)
+			}
+			if ce.Callback != which || ce.T <= tPanic || ce.T > tPanic+1 {
+				t.Errorf("CallbackError names %q at t=%v, want %q just after t=%v", ce.Callback, ce.T, which, tPanic)
 			}
 		})
 	}
