@@ -12,6 +12,7 @@ import "github.com/plumbdyn/plumb/integrate"
 // goes through a wrapper, one call more per evaluation).
 func (r *flowRun) field33() integrate.Func {
 	return func(t float64, y, dy []float64) {
+		d, v := (*[13]float64)(dy), (*[13]float64)(y)
 		x := y[:3]
 		r.evals++
 		r.calling, r.callT = integrate.CallbackField, t
@@ -26,7 +27,7 @@ func (r *flowRun) field33() integrate.Func {
 		// spectrum run. The entries of V are read where they are used rather
 		// than held in variables: nine of them and a row of J do not fit in
 		// the registers, and the spills cost more than the loads.
-		d, j, v := (*[13]float64)(dy), (*[9]float64)(r.jd), (*[13]float64)(y)
+		j := (*[9]float64)(r.jd)
 		for i := 0; i < 9; i += 3 {
 			a0, a1, a2 := j[i], j[i+1], j[i+2]
 			var s0, s1, s2 float64
