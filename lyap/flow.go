@@ -176,6 +176,9 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 	r.avg = newAverager(cfg, k, p.T0)
 	r.t1 = r.avg.t1
 	aug := integrate.Problem{F: r.field, T0: p.T0, Y0: y0}
+	if n == 3 && k == 3 && r.exact && fixedSize {
+		aug.F = r.field33()
+	}
 	st, err := integrate.NewStepper(aug, r.t1, cfg.Method, &integrate.Settings{RelTol: cfg.RelTol, AbsTol: cfg.AbsTol, MaxSteps: cfg.MaxSteps})
 	var ce *integrate.CallbackError
 	if errors.As(err, &ce) {

@@ -32,6 +32,18 @@ func init() {
 		Jac: func(p []float64) func(float64, []float64, *mat.Dense) {
 			s, r, b := p[0], p[1], p[2]
 			return func(_ float64, y []float64, j *mat.Dense) {
+				// The rows written directly (any stride): nine calls of
+				// Set, each checking its indices, cost twice as much, at
+				// every evaluation of a tangent-space run. Set serves
+				// any other shape, as before.
+				if nr, nc := j.Dims(); nr == 3 && nc == 3 {
+					e0, e1, e2 := (*[3]float64)(j.RawRowView(0)), (*[3]float64)(j.RawRowView(1)), (*[3]float64)(j.RawRowView(2))
+					x0, y1, z2 := y[0], y[1], y[2]
+					e0[0], e0[1], e0[2] = -s, s, 0
+					e1[0], e1[1], e1[2] = r-z2, -1, -x0
+					e2[0], e2[1], e2[2] = y1, x0, -b
+					return
+				}
 				j.Set(0, 0, -s)
 				j.Set(0, 1, s)
 				j.Set(0, 2, 0)
@@ -63,6 +75,14 @@ func init() {
 		Jac: func(p []float64) func(float64, []float64, *mat.Dense) {
 			a, c := p[0], p[2]
 			return func(_ float64, y []float64, j *mat.Dense) {
+				if nr, nc := j.Dims(); nr == 3 && nc == 3 {
+					e0, e1, e2 := (*[3]float64)(j.RawRowView(0)), (*[3]float64)(j.RawRowView(1)), (*[3]float64)(j.RawRowView(2))
+					x0, z2 := y[0], y[2]
+					e0[0], e0[1], e0[2] = 0, -1, -1
+					e1[0], e1[1], e1[2] = 1, a, 0
+					e2[0], e2[1], e2[2] = z2, 0, x0-c
+					return
+				}
 				j.Set(0, 0, 0)
 				j.Set(0, 1, -1)
 				j.Set(0, 2, -1)
