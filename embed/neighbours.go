@@ -2,6 +2,7 @@ package embed
 
 import (
 	"math"
+	"slices"
 
 	"gonum.org/v1/gonum/spatial/kdtree"
 )
@@ -190,9 +191,15 @@ func (t *tree) countIn(n *kdtree.Node, q, theiler int, edges []float64, hist []i
 }
 
 // within appends to dst the points j with |j-q| > theiler, j < limit, whose
-// distance to q is at most r, and returns dst.
+// distance to q is at most r, in increasing order of j, and returns dst.
+// The order matters: a caller that sums over the points gets the same bits
+// whatever the tree's random shape (the search visits them in an order that
+// depends on it).
 func (t *tree) within(q, theiler, limit int, r float64, dst []int) []int {
-	return t.withinIn(t.root, q, theiler, limit, r, dst)
+	n := len(dst)
+	dst = t.withinIn(t.root, q, theiler, limit, r, dst)
+	slices.Sort(dst[n:])
+	return dst
 }
 
 func (t *tree) withinIn(n *kdtree.Node, q, theiler, limit int, r float64, dst []int) []int {
