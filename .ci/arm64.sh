@@ -96,4 +96,9 @@ for suite in "${suites[@]}"; do
   echo "ok $pkg on linux/arm64: $ran tests passed in $(( $(date +%s) - t0 )) s ($tests)"
 done
 echo "arm64 checks took $(( $(date +%s) - start )) s"
+if [ "$fail" -ne 0 ]; then
+  echo "A golden file that amd64 matches and arm64 does not means the arithmetic differs between"
+  echo "the architectures: do not refresh it with -update; look for a product the compiler fused"
+  echo "(bash .ci/fma.sh) or a standard-library elementary function (bash .ci/stdmath.sh)."
+fi
 exit $fail
