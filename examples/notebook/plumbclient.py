@@ -28,6 +28,8 @@ floats; "npy" a NumPy array; "table" the text. A run that fails raises
 PlumbError carrying plumb's message, the flag it names, the exit status
 and, when the run stopped part way, the partial result (error.result).
 progress=callable receives each --progress lines record as a dict.
+out=PATH (where plumb has --out) has plumb write the result whole into PATH;
+the client reads it back from there, and only when this run wrote it.
 
 Results describe the numerical model, not the real system it stands for:
 a trust horizon is not a safety certificate, and safety-critical use
@@ -278,12 +280,17 @@ class Client:
         args += flag_args(flags, repeatable)
         tmpdir = None
         out_path = None
-        if format == "npy" and "out" in names:
+        if flags.get("out") is not None:
+            # Your own --out file: the result is read back from it, when
+            # this run wrote it (a refused run leaves an older file as it was).
+            out_path = os.fspath(flags["out"])
+        elif format == "npy" and "out" in names:
             # A file, not a pipe: the row count is then exact, and a run
             # that stops part way leaves its rows in FILE.partial.
             tmpdir = tempfile.mkdtemp(prefix="plumb-")
             out_path = os.path.join(tmpdir, "result.npy")
             args.append(f"--out={out_path}")
+        before = (_stamp(out_path), _stamp(out_path + ".partial")) if out_path else None
         if positional:
             if any(str(p).startswith("-") and str(p) != "-" for p in positional):
                 args.append("--")
@@ -291,7 +298,16 @@ class Client:
         try:
             code, out, err = self._exec(args, stdin, progress)
             self.last_stderr = err
-            return self._result(command, format, code, out, err, out_path)
+            written = partial_path = None
+            if out_path:
+                if _stamp(out_path) not in (None, before[0]):
+                    written = out_path
+                if _stamp(out_path + ".partial") not in (None, before[1]):
+                    partial_path = out_path + ".partial"
+                if written and format != "npy" and not out.strip():
+                    with open(written, "rb") as f:
+                        out = f.read()
+            return self._result(command, format, code, out, err, written, partial_path)
         finally:
             if tmpdir:
                 shutil.rmtree(tmpdir, ignore_errors=True)
@@ -360,8 +376,13 @@ class Client:
                         pass
         return code, b"".join(chunks), "".join(kept)
 
-    def _result(self, command, format, code, out, err, out_path):
-        """Read the output in its format, or raise PlumbError."""
+    def _result(self, command, format, code, out, err, out_path, partial_path):
+        """Read the output in its format, or raise PlumbError.
+
+        out_path is the --out file this run wrote (None: none), and
+        partial_path the FILE.partial it left, where a binary result of a
+        run that stopped part way goes.
+        """
         text = None
         doc = None
         if format != "npy":
@@ -382,7 +403,7 @@ class Client:
                 return _csv_rows(text)
             if format == "npy":
                 return _load_npy(out_path, out)
-            return text
+            return text if text is not None else out
         partial = None
         try:
             if format == "jsonl" and text:
@@ -392,9 +413,9 @@ class Client:
             elif format == "csv" and text:
                 partial = _csv_rows(text)
             elif format == "npy":
-                if out_path and os.path.exists(out_path + ".partial"):
-                    partial = _load_npy(out_path + ".partial", b"")
-                elif out and out_path is None:
+                if partial_path:
+                    partial = _load_npy(partial_path, b"")
+                elif out:
                     partial = _load_npy(None, out)
             elif format not in ("json", "jsonl", "csv") and text:
                 partial = text
@@ -444,6 +465,15 @@ class Client:
     def version(self):
         """plumb version, as a dict."""
         return self.run("version")
+
+
+def _stamp(path):
+    """What tells a file rewritten (renamed into place) from an old one; None if absent."""
+    try:
+        st = os.stat(path)
+    except OSError:
+        return None
+    return (st.st_ino, st.st_mtime_ns, st.st_size)
 
 
 def _load_npy(path, data):

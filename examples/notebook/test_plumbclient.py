@@ -234,6 +234,24 @@ class ClientTest(unittest.TestCase):
         self.assertTrue(e.result["samples"], "the samples computed before the failure are kept")
         self.assertLess(e.result["end"], 100)
 
+    def test_your_own_out_file(self):
+        if "out" not in self.c.flags("solve"):
+            self.skipTest("plumb solve has no --out here")
+        with tempfile.TemporaryDirectory() as d:
+            path = os.path.join(d, "loop.json")
+            got = self.c.solve(t1=0.03, out=path)
+            with open(path) as f:
+                self.assertEqual(got, json.load(f))
+            self.assertEqual(got["status"], "completed")
+            # A refused run leaves the file as it was; the client must not
+            # hand the older result back as this run's.
+            with self.assertRaises(pc.PlumbError) as cm:
+                self.c.solve(t1=0.03, out=path, format="csv", rtol=-1)
+            self.assertEqual(cm.exception.exit_status, 2)
+            self.assertIsNone(cm.exception.result)
+            with open(path) as f:
+                self.assertEqual(json.load(f), got)
+
     def test_format_refused_before_running(self):
         with self.assertRaises(pc.PlumbError) as cm:
             self.c.solve(format="xml")

@@ -59,6 +59,18 @@ class NpyTest(unittest.TestCase):
         self.assertTrue(np.array_equal(as_bits(piped), as_bits(got)))
         self.assertEqual(got.shape[0], 21)  # t = 0, 0.05, ..., 1: 21 grid points (exact count)
 
+    def test_solve_npy_into_your_own_file(self):
+        self.need("solve")
+        if "out" not in self.c.flags("solve"):
+            self.skipTest("plumb solve has no --out here")
+        import os
+        import tempfile
+        with tempfile.TemporaryDirectory() as d:
+            path = os.path.join(d, "loop.npy")
+            got = self.c.solve(format="npy", t1=1, dt=0.05, out=path)
+            self.assertTrue(np.array_equal(as_bits(got), as_bits(np.load(path))))
+            self.assertTrue(np.array_equal(as_bits(got), as_bits(self.c.solve(format="npy", t1=1, dt=0.05))))
+
     def test_scan_npy_equals_csv(self):
         self.need("scan")
         flags = dict(across=["r=3.4:4:25"], keep=40, discard=300)
