@@ -265,8 +265,8 @@ class ClientTest(unittest.TestCase):
         out = self.c.solve(t1=5, dt=0.01, progress=records.append)
         self.assertEqual(out["status"], "completed")
         self.assertGreaterEqual(len(records), 2, records)
-        self.assertEqual(records[0]["stage"], "start")
-        self.assertEqual(records[-1]["stage"], "end")
+        self.assertEqual(records[0]["event"], "start")
+        self.assertEqual(records[-1]["event"], "end")
         self.assertEqual(records[-1]["status"], "completed")
         fractions = [r["fraction"] for r in records if r.get("fraction") is not None]
         self.assertEqual(fractions, sorted(fractions))
@@ -293,7 +293,7 @@ class ClientTest(unittest.TestCase):
             self.skipTest("plumb solve has no --progress here")
 
         def interrupt(record):
-            if record["stage"] == "run":
+            if record["event"] == "progress":
                 raise KeyboardInterrupt
         with self.assertRaises(KeyboardInterrupt):
             self.c.solve(t1=5000, dt=0.01, progress=interrupt)
