@@ -31,7 +31,10 @@ var goldenFormats = []struct {
 	{"ensemble_lorenz.npy", goldenEnsemble},
 	{"cycles_logistic.csv", cyclesArgs},
 	{"cycles_logistic.json", cyclesArgs},
-	{"series_henon.json", []string{"series", seriesFile, "--column", "x", "--surrogates", "9"}},
+	// Without surrogates: they go through gonum's FFT, whose last bits may
+	// differ between amd64 and arm64 (embed's package doc says so), and this
+	// file is compared on both.
+	{"series_henon.json", []string{"series", seriesFile, "--column", "x", "--surrogates", "0"}},
 }
 
 func TestGoldenFormats(t *testing.T) {
