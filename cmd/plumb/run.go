@@ -131,7 +131,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 		}
 		return code
 	}
-	err := fs.Parse(args)
+	positional, err := parseArgs(fs, args, cmd.positional != "")
 	if errors.Is(err, flag.ErrHelp) {
 		if err := writeCommandHelp(stdout, cmd); err != nil {
 			return exitFailed
@@ -149,8 +149,8 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 	if err := sh.check(cmd); err != nil {
 		return fail(err, jsonAsked)
 	}
-	if fs.NArg() > 0 && cmd.positional == "" {
-		return fail(usagef("unexpected argument %q (flags start with --; see 'plumb help %s')", fs.Arg(0), cmd.name), jsonAsked)
+	if len(positional) > 0 && cmd.positional == "" {
+		return fail(usagef("unexpected argument %q (flags start with --; see 'plumb help %s')", positional[0], cmd.name), jsonAsked)
 	}
 	mode, err := progressMode(sh, stderr)
 	if err != nil {
@@ -166,7 +166,7 @@ func execute(ctx context.Context, cmd *command, args []string, stdin io.Reader, 
 	}
 	bw := bufio.NewWriter(dst)
 	cl := &call{
-		cmd: cmd, sh: sh, args: fs.Args(), stdin: stdin, stdout: bw, rawStdout: dst, stderr: stderr,
+		cmd: cmd, sh: sh, args: positional, stdin: stdin, stdout: bw, rawStdout: dst, stderr: stderr,
 		progress: mode, out: &outState{toFile: out != nil}, raw: args,
 	}
 	err = work(ctx, cl)
@@ -264,4 +264,28 @@ func (cl *call) warnf(format string, a ...any) {
 		return
 	}
 	fmt.Fprintf(cl.stderr, "plumb %s: warning: %s\n", cl.cmd.name, fmt.Sprintf(format, a...))
+}
+
+// parseArgs parses args with fs and returns the arguments that are not
+// flags. Go's flag package stops at the first of those; for a command that
+// takes positional arguments (interspersed), parsing goes on after each,
+// so that "plumb merge a.shard b.shard --quiet" and "plumb series data.csv
+// --out report.json" set their flags before the run starts. "--" ends the
+// flags: everything after it is positional.
+func parseArgs(fs *flag.FlagSet, args []string, interspersed bool) ([]string, error) {
+	var positional []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			return nil, err
+		}
+		rest := fs.Args()
+		if !interspersed || len(rest) == 0 {
+			return append(positional, rest...), nil
+		}
+		if n := len(args) - len(rest); n > 0 && args[n-1] == "--" {
+			return append(positional, rest...), nil
+		}
+		positional = append(positional, rest[0])
+		args = rest[1:]
+	}
 }
