@@ -41,3 +41,19 @@ func TestFlagsAfterArguments(t *testing.T) {
 	require.Equal(t, exitUsage, r.code)
 	require.Contains(t, r.stderr, "--quiet", "the file named --quiet is what merge could not open")
 }
+
+// TestUnsplitInArrayJob: a scan without --shard inside a Slurm array task
+// computes the whole run, as outside one, and says on stderr how to split it.
+func TestUnsplitInArrayJob(t *testing.T) {
+	args := []string{"scan", "--across", "r=3.5:4:10", "--keep", "10", "--format", "csv"}
+	outside := plumbRun(t, args...)
+	require.Equal(t, exitOK, outside.code, outside.stderr)
+	require.NotContains(t, outside.stderr, "--shard")
+	withEnv(t, map[string]string{"SLURM_ARRAY_TASK_ID": "2", "SLURM_ARRAY_TASK_MIN": "0", "SLURM_ARRAY_TASK_COUNT": "4"})
+	inside := plumbRun(t, args...)
+	require.Equal(t, exitOK, inside.code, inside.stderr)
+	require.Equal(t, outside.stdout, inside.stdout, "the whole scan, unsplit")
+	require.Contains(t, inside.stderr, "SLURM_ARRAY_TASK_ID=2 is set but --shard is not")
+	quiet := plumbRun(t, append(args, "--quiet")...)
+	require.Empty(t, quiet.stderr, "--quiet silences the warning")
+}

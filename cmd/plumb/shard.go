@@ -25,7 +25,7 @@ const shardAuto = "auto"
 // shardFlagDoc is the help of --shard, shared by the commands that take it.
 const shardFlagDoc = "compute only piece `I/N` (1 <= I <= N: contiguous blocks of the work) and write a shard file for 'plumb merge'; " +
 	"auto reads the piece of a Slurm array task (SLURM_ARRAY_TASK_ID, _MIN, _COUNT or _MAX) or a Kubernetes indexed Job " +
-	"(JOB_COMPLETION_INDEX, with the count in PLUMB_SHARD_COUNT); without --shard the environment is never read"
+	"(JOB_COMPLETION_INDEX, with the count in PLUMB_SHARD_COUNT); without --shard the run is never split (inside such a task it says so on stderr)"
 
 // addShardFlag registers --shard on fs.
 func addShardFlag(fs *flag.FlagSet, p *string) {
@@ -36,6 +36,9 @@ func addShardFlag(fs *flag.FlagSet, p *string) {
 // this run is and where that came from. "" (no --shard) is the whole run.
 func (cl *call) resolveShard(text string) (plumb.Shard, error) {
 	if !cl.sh.given["shard"] {
+		if cl.merge == nil {
+			cl.warnUnsplit()
+		}
 		return plumb.Shard{}, nil
 	}
 	if cl.merge != nil {
@@ -63,6 +66,20 @@ func (cl *call) resolveShard(text string) (plumb.Shard, error) {
 		fmt.Fprintf(cl.stderr, "plumb %s: shard %s (from %s)\n", cl.cmd.name, sh, from)
 	}
 	return sh, nil
+}
+
+// warnUnsplit warns when a run without --shard runs inside a Slurm array
+// task or a Kubernetes indexed Job. The whole run is computed: the
+// environment is read only with --shard auto, so that a program started
+// once per task for reasons of its own is never cut silently; but in an
+// array job meant to split this run, every task would do all the work.
+func (cl *call) warnUnsplit() {
+	for _, name := range []string{plumb.SlurmTaskIDEnv, plumb.KubeIndexEnv} {
+		if v, ok := lookupEnv(name); ok {
+			cl.warnf("%s=%s is set but --shard is not: this task computes the whole run (give --shard auto to compute only its piece)", name, v)
+			return
+		}
+	}
 }
 
 // unrecorded are the flags a shard file leaves out of its command line:
