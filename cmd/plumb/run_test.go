@@ -9,6 +9,7 @@ import (
 	"runtime"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 	"time"
 )
@@ -192,15 +193,20 @@ func TestFixedStepNeedsStep(t *testing.T) {
 
 // stepCtx is a context canceled after n checks: integrate watches Done once
 // per accepted step (others may call Err), so this cancels mid-run at a fixed
-// step, as Ctrl-C does at an arbitrary one.
+// step, as Ctrl-C does at an arbitrary one. It may be checked from several
+// goroutines (a scan's workers, context.WithCancel's watcher), so the count
+// is kept under a lock.
 type stepCtx struct {
 	context.Context
+	mu   sync.Mutex
 	n    int
 	done chan struct{}
 }
 
 // tick counts one check and reports whether the context is now canceled.
 func (c *stepCtx) tick() bool {
+	c.mu.Lock()
+	defer c.mu.Unlock()
 	if c.done == nil {
 		c.done = make(chan struct{})
 	}
@@ -218,17 +224,12 @@ func (c *stepCtx) tick() bool {
 
 func (c *stepCtx) Done() <-chan struct{} {
 	c.tick()
+	c.mu.Lock()
+	defer c.mu.Unlock()
 	return c.done
 }
 
 func (c *stepCtx) Err() error {
-	if c.done != nil {
-		select {
-		case <-c.done:
-			return context.Canceled
-		default:
-		}
-	}
 	if c.tick() {
 		return context.Canceled
 	}
