@@ -79,32 +79,21 @@ func setupSeries(fs *flag.FlagSet, sh *shared) func(context.Context, *call) erro
 	finiteVar(fs, &f.fraction, "fraction", embed.DefaultForecastFraction, "forecast error, as a fraction `F` of the standard deviation, that ends the forecast horizon")
 	fs.IntVar(&f.surrogates, "surrogates", embed.DefaultSurrogates, "number `N` of IAAFT surrogates for the rank test (0 skips it)")
 	fs.Uint64Var(&f.seed, "seed", 1, "`SEED` of the surrogates and the 0-1 test's frequencies")
-	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl, fs) }
+	return func(ctx context.Context, cl *call) error { return f.run(ctx, cl) }
 }
 
-// parseAfterFile parses the flags that follow FILE (Go's flag package stops
-// at the first argument that is not a flag) and checks the shared ones
-// again.
-func parseAfterFile(fs *flag.FlagSet, cl *call) (string, error) {
-	if len(cl.args) == 0 {
+// fileArg returns the one FILE argument (execute has parsed the flags
+// before and after it) and refuses the system flags, which a measured
+// series has no use for.
+func fileArg(cl *call) (string, error) {
+	switch len(cl.args) {
+	case 0:
 		return "", usagef("want a FILE to analyse (a CSV file, or - for stdin)")
+	case 1:
+	default:
+		return "", usagef("unexpected argument %q after FILE %s (one FILE at a time)", cl.args[1], cl.args[0])
 	}
 	file := cl.args[0]
-	if rest := cl.args[1:]; len(rest) > 0 {
-		if err := fs.Parse(rest); err != nil {
-			if errors.Is(err, flag.ErrHelp) {
-				return "", usagef("-h after FILE: run 'plumb help series'")
-			}
-			return "", &usageError{msg: flagMessage(err)}
-		}
-		if fs.NArg() > 0 {
-			return "", usagef("unexpected argument %q after FILE %s (one FILE at a time)", fs.Arg(0), file)
-		}
-		fs.Visit(func(f *flag.Flag) { cl.sh.given[f.Name] = true })
-		if err := cl.sh.check(cl.cmd); err != nil {
-			return "", err
-		}
-	}
 	for _, name := range []string{"model", "file", "set", "start"} {
 		if cl.sh.given[name] {
 			return "", usagef("--%s: plumb series analyses a measured series, not a system", name)
@@ -135,8 +124,8 @@ func (f *seriesFlags) check(cl *call) error {
 	return nil
 }
 
-func (f *seriesFlags) run(ctx context.Context, cl *call, fs *flag.FlagSet) error {
-	file, err := parseAfterFile(fs, cl)
+func (f *seriesFlags) run(ctx context.Context, cl *call) error {
+	file, err := fileArg(cl)
 	if err != nil {
 		return err
 	}
