@@ -24,8 +24,8 @@ func TestChunksRecords(t *testing.T) {
 				firstFull = &c.at(c.block)[0]
 			}
 		}
-		if c.n != total {
-			t.Fatalf("per %d: %d records stored, want %d", per, c.n, total)
+		if c.len() != total {
+			t.Fatalf("per %d: %d records stored, want %d", per, c.len(), total)
 		}
 		if firstFull != nil && firstFull != &c.at(c.block)[0] {
 			t.Errorf("per %d: a full block moved", per)

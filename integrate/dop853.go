@@ -432,7 +432,7 @@ func (w *dp853Work) dense(t, h float64, y, k1, y1, k13, coef []float64) int {
 func (w *dp853Work) compactSize(n int) int { return 6 * n }
 
 // compact copies r3..r8 of a full dense record into dst.
-func (w *dp853Work) compact(full, dst []float64) {
+func (w *dp853Work) compact(_ *Stepper, full, dst []float64) {
 	n := len(full) / 8
 	// A loop, not copy: records are short, and the runtime's memmove
 	// costs more than the copy itself.
@@ -444,8 +444,8 @@ func (w *dp853Work) compact(full, dst []float64) {
 // denseCompact writes r3..r8 of the last step's continuous extension
 // straight into dst, with the arithmetic of dense (the same bits): 3
 // evaluations of F.
-func (w *dp853Work) denseCompact(t, h float64, y, k1, y1, k13, dst []float64) int {
-	return w.denseRest(t, h, y, k1, y1, k13, dst)
+func (w *dp853Work) denseCompact(st *Stepper, dst []float64) int {
+	return w.denseRest(st.tPrev, st.hLast, st.yPrev, st.fPrev, st.y, st.f0, dst)
 }
 
 // denseRest evaluates the three extra stages and writes r3..r8 of the
@@ -521,7 +521,7 @@ func (w *dp853Work) interp(coef []float64, theta float64, dst []float64) {
 
 // interpCompact is interp with r1 = y0 and r2 = y1 - y0 rebuilt from the
 // step's end states (the same operations as dense, so the same bits).
-func (w *dp853Work) interpCompact(y0, y1, c []float64, theta float64, dst []float64) {
+func (w *dp853Work) interpCompact(y0, y1, _, c []float64, theta float64, dst []float64) {
 	n := len(dst)
 	y0, y1 = y0[:n], y1[:n]
 	r3, r4 := c[:n], c[n:2*n]

@@ -202,48 +202,57 @@ func (w *dp54Work) dense(t, h float64, y, k1, y1, k7, coef []float64) int {
 	return 0
 }
 
-// compactSize is the number of floats per step a Solution keeps: r3, r4,
-// r5 (r1 = y and r2 = y1 - y are rebuilt from the stored states).
-func (w *dp54Work) compactSize(n int) int { return 3 * n }
+// compactSize is the number of floats per step a Solution keeps: the end
+// derivative k7, r5 and the step size h. r1 = y and r2 = y1 - y come from
+// the stored states, and r3, r4 from h and the derivatives at both ends
+// (k1 is the previous step's k7: the first same as last property), with
+// the arithmetic of dense, so the same bits.
+func (w *dp54Work) compactSize(n int) int { return 2*n + 1 }
 
-// compact copies r3..r5 of a full dense record into dst.
-func (w *dp54Work) compact(full, dst []float64) {
+// compact writes k7, r5 and h of st's last step into dst, r5 taken from
+// the full dense record.
+func (w *dp54Work) compact(st *Stepper, full, dst []float64) {
 	n := len(full) / 5
-	// A loop, not copy: records are short, and the runtime's memmove
+	// Loops, not copy: records are short, and the runtime's memmove
 	// costs more than the copy itself.
-	for i, x := range full[2*n : 5*n][:len(dst)] {
+	for i, x := range st.f0[:n] {
 		dst[i] = x
 	}
+	for i, x := range full[4*n : 5*n] {
+		dst[n+i] = x
+	}
+	dst[2*n] = st.hLast
 }
 
-// denseCompact writes r3..r5 of the step's continuous extension straight
-// into dst, with the arithmetic of dense (the same bits) and without
-// forming r1 and r2, which a Solution rebuilds from its stored states.
-func (w *dp54Work) denseCompact(_, h float64, y, k1, y1, k7, dst []float64) int {
-	n := len(y)
-	k1, y1, k7 = k1[:n], y1[:n], k7[:n]
+// denseCompact writes k7, r5 (with the arithmetic of dense) and h of st's
+// last step into dst.
+func (w *dp54Work) denseCompact(st *Stepper, dst []float64) int {
+	h, k1 := st.hLast, st.fPrev
+	n := len(k1)
+	k7 := st.f0[:n]
 	k3, k4, k5, k6 := w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n]
-	r3, r4, r5 := dst[:n], dst[n:2*n], dst[2*n:3*n]
-	for i := range y {
-		yd := y1[i] - y[i]
-		bspl := float64(h*k1[i]) - yd
-		r3[i] = bspl
-		r4[i] = yd - float64(h*k7[i]) - bspl
+	d7, r5 := dst[:n], dst[n:2*n]
+	for i := range k1 {
+		d7[i] = k7[i]
 		r5[i] = float64(h * (float64(dpD1*k1[i]) + float64(dpD3*k3[i]) + float64(dpD4*k4[i]) + float64(dpD5*k5[i]) + float64(dpD6*k6[i]) + float64(dpD7*k7[i])))
 	}
+	dst[2*n] = h
 	return 0
 }
 
-// interpCompact is interp with r1 = y0 and r2 = y1 - y0 rebuilt from the
-// step's end states (the same operations as dense, so the same bits).
-func (w *dp54Work) interpCompact(y0, y1, c []float64, theta float64, dst []float64) {
+// interpCompact is interp on a compact record c, prev[:n] holding the
+// step's start derivative k1: r1..r4 are rebuilt with the operations of
+// dense, so the result has the same bits.
+func (w *dp54Work) interpCompact(y0, y1, prev, c []float64, theta float64, dst []float64) {
 	n := len(dst)
-	y0, y1 = y0[:n], y1[:n]
-	r3, r4, r5 := c[:n], c[n:2*n], c[2*n:3*n]
+	y0, y1, k1 := y0[:n], y1[:n], prev[:n]
+	k7, r5, h := c[:n], c[n:2*n], c[2*n]
 	t1 := 1 - theta
 	for i := range dst {
-		r2 := y1[i] - y0[i]
-		dst[i] = y0[i] + float64(theta*(r2+float64(t1*(r3[i]+float64(theta*(r4[i]+float64(t1*r5[i])))))))
+		yd := y1[i] - y0[i]
+		bspl := float64(h*k1[i]) - yd
+		r4 := yd - float64(h*k7[i]) - bspl
+		dst[i] = y0[i] + float64(theta*(yd+float64(t1*(bspl+float64(theta*(r4+float64(t1*r5[i])))))))
 	}
 }
 

@@ -70,6 +70,7 @@ type Solution struct {
 
 	sc   scheme
 	cd   compactDense // sc, when it rebuilds part of its dense output from T, Y
+	d0   []float64    // with cd: F at T0, the start derivative of the first step
 	coef chunks       // dense output per step (full, or compact when cd != nil)
 	// During a solve the times and states go to chunks (no copying as the
 	// solution grows); seal copies them into T and Y once at the end.
@@ -78,17 +79,24 @@ type Solution struct {
 
 // compactDense is implemented by schemes whose continuous extension
 // partly consists of the step's end states: a Solution then keeps only the
-// rest (for DormandPrince54, 3 of 5 vectors per step; for
-// DormandPrince853, 6 of 8), and rebuilds the same bits from T and Y.
+// rest per step (for DormandPrince54, the step size, the end derivative
+// and one vector; for DormandPrince853, 6 of its 8 vectors), and rebuilds
+// the same bits from T and Y.
 type compactDense interface {
 	compactSize(n int) int
-	compact(full, dst []float64)
-	// denseCompact writes the kept part of the last step's extension
-	// (size h from y at t with derivative k1 to y1 with derivative k7)
-	// into dst, the same bits as dense followed by compact, and returns
-	// the evaluations of F it made.
-	denseCompact(t, h float64, y, k1, y1, k7, dst []float64) int
-	interpCompact(y0, y1, c []float64, theta float64, dst []float64)
+	// compact writes into dst the kept part of the extension of st's last
+	// step, from the full dense record of that step.
+	compact(st *Stepper, full, dst []float64)
+	// denseCompact writes the kept part of the extension of st's last
+	// step into dst, the same bits as dense followed by compact, and
+	// returns the evaluations of F it made. (It takes the stepper rather
+	// than its six vectors: on a small system, passing them cost more
+	// than the arithmetic.)
+	denseCompact(st *Stepper, dst []float64) int
+	// interpCompact evaluates the extension of the step from y0 to y1
+	// whose record is c at theta; prev is the previous step's record, or
+	// for the first step the derivative at T0 (see Solution.d0).
+	interpCompact(y0, y1, prev, c []float64, theta float64, dst []float64)
 }
 
 // chunks stores a growing sequence of fixed-size records in blocks that
@@ -107,7 +115,7 @@ type chunks struct {
 	b    [][]float64
 	cur  []float64
 	used int
-	n    int // records stored
+	full int // records in the blocks before cur
 	// pooled: the blocks come from, and go back to, blockPools (for
 	// staging storage that is copied out and dropped, see release);
 	// boxes[j] points at b[j], the pool's handle, made once per block.
@@ -180,15 +188,21 @@ func newChunks(per int) chunks {
 // next returns the slot of one more record (len per), to be filled by
 // the caller.
 func (c *chunks) next() []float64 {
-	if c.used == len(c.cur) {
-		c.cur = c.newBlock((c.first << min(len(c.b), c.grow)) * c.per)
-		c.b = append(c.b, c.cur)
-		c.used = 0
+	l, e := c.used, c.used+c.per
+	if e > len(c.cur) {
+		c.grow1()
+		l, e = 0, c.per
 	}
-	l := c.used
-	c.used += c.per
-	c.n++
-	return c.cur[l : l+c.per : l+c.per]
+	c.used = e
+	return c.cur[l:e:e]
+}
+
+// grow1 starts the next block (the rare case, out of next's way).
+func (c *chunks) grow1() {
+	c.full += c.used / c.per
+	c.cur = c.newBlock((c.first << min(len(c.b), c.grow)) * c.per)
+	c.b = append(c.b, c.cur)
+	c.used = 0
 }
 
 // add appends one record (len(v) == per).
@@ -217,9 +231,17 @@ func (c *chunks) at(k int) []float64 {
 	return b[o : o+c.per : o+c.per]
 }
 
+// len is the number of records stored.
+func (c *chunks) len() int {
+	if c.per == 0 {
+		return 0
+	}
+	return c.full + c.used/c.per
+}
+
 // flat returns all records in one slice of exactly the right length.
 func (c *chunks) flat() []float64 {
-	out := make([]float64, 0, c.n*c.per)
+	out := make([]float64, 0, c.len()*c.per)
 	for _, b := range c.b[:max(len(c.b)-1, 0)] {
 		out = append(out, b...)
 	}
@@ -228,7 +250,7 @@ func (c *chunks) flat() []float64 {
 
 // seal moves the stored steps into T and Y.
 func (s *Solution) seal() {
-	if s.tBuf.n > 0 {
+	if s.tBuf.len() > 0 {
 		s.T, s.Y = s.tBuf.flat(), s.yBuf.flat()
 		s.tBuf.release()
 		s.yBuf.release()
@@ -291,7 +313,11 @@ func (s *Solution) At(t float64, dst []float64) []float64 {
 	theta := (t - s.T[k]) / (s.T[k+1] - s.T[k])
 	if s.cd != nil {
 		d := s.Dim
-		s.cd.interpCompact(s.Y[k*d:(k+1)*d], s.Y[(k+1)*d:(k+2)*d], s.coef.at(k), theta, dst)
+		prev := s.d0
+		if k > 0 {
+			prev = s.coef.at(k - 1)
+		}
+		s.cd.interpCompact(s.Y[k*d:(k+1)*d], s.Y[(k+1)*d:(k+2)*d], prev, s.coef.at(k), theta, dst)
 		return dst
 	}
 	s.sc.interp(s.coef.at(k), theta, dst)

@@ -48,6 +48,7 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 	if cd, ok := st.sc.(compactDense); ok {
 		sol.cd = cd
 		sol.coef = newChunks(cd.compactSize(n))
+		sol.d0 = append([]float64(nil), st.f0...)
 	}
 	defer sol.seal()
 	var cf *crossFinder
@@ -213,9 +214,9 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 			switch {
 			case sol.cd != nil && !st.denseReady:
 				// Only the part the solution keeps, straight into place.
-				st.stats.Evaluations += sol.cd.denseCompact(ta, st.hLast, st.yPrev, st.fPrev, st.y, st.f0, sol.coef.next())
+				st.stats.Evaluations += sol.cd.denseCompact(st, sol.coef.next())
 			case sol.cd != nil:
-				sol.cd.compact(st.coef, sol.coef.next())
+				sol.cd.compact(st, st.coef, sol.coef.next())
 			case st.sc.denseSize() > 0:
 				st.prepareDense()
 				sol.coef.add(st.coef)
