@@ -21,6 +21,12 @@ type command struct {
 	formats []string
 	// plots reports whether --plot draws anything for this command.
 	plots bool
+	// refuses lists shared flags the command does not take: help leaves
+	// them out, and the command refuses a command line that gives one.
+	refuses []string
+	// refuseWhy says why, in the error (empty: that the command does not
+	// take the flag).
+	refuseWhy string
 	// positional describes the positional arguments for help ("[COMMAND]");
 	// empty means the command takes none and any is a usage error.
 	positional string

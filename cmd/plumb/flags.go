@@ -77,6 +77,15 @@ func newFlagSet(cmd *command) (*flag.FlagSet, *shared, func(context.Context, *ca
 
 // check validates the shared flags for cmd after parsing.
 func (sh *shared) check(cmd *command) error {
+	for _, name := range cmd.refuses {
+		if sh.given[name] {
+			why := cmd.refuseWhy
+			if why == "" {
+				why = "plumb " + cmd.name + " does not take it"
+			}
+			return usagef("--%s: %s", name, why)
+		}
+	}
 	if sh.format == "" {
 		sh.format = cmd.formats[0]
 	}

@@ -6,6 +6,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 	"unicode/utf8"
 )
@@ -89,6 +90,9 @@ func writeCommandHelp(w io.Writer, c *command) error {
 	fs, _, _ := newFlagSet(c)
 	var own, common []*flag.Flag
 	fs.VisitAll(func(f *flag.Flag) {
+		if slices.Contains(c.refuses, f.Name) {
+			return
+		}
 		if sharedNames[f.Name] {
 			common = append(common, f)
 		} else {

@@ -4,6 +4,7 @@ import (
 	"flag"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -35,11 +36,22 @@ func TestHelpOnStdout(t *testing.T) {
 		if c.name == "help" {
 			continue
 		}
-		// Every flag the command accepts is documented.
+		// Every flag the command accepts is documented, and none it refuses.
 		fs, _, _ := newFlagSet(c)
 		fs.VisitAll(func(f *flag.Flag) {
-			if !strings.Contains(h.stdout, "  --"+f.Name+" ") && !strings.Contains(h.stdout, "  --"+f.Name+"\n") {
-				t.Errorf("plumb help %s does not document --%s", c.name, f.Name)
+			listed := strings.Contains(h.stdout, "  --"+f.Name+" ") || strings.Contains(h.stdout, "  --"+f.Name+"\n")
+			refused := slices.Contains(c.refuses, f.Name)
+			if listed == refused {
+				t.Errorf("plumb help %s: --%s listed %v, refused %v", c.name, f.Name, listed, refused)
+			}
+			if refused {
+				arg := "--" + f.Name + "=x"
+				if f.Name == "quiet" {
+					arg = "--quiet"
+				}
+				if r := plumbRun(t, c.name, arg); r.code != exitUsage || !strings.Contains(r.stderr, "--"+f.Name) {
+					t.Errorf("plumb %s %s: exit %d, stderr %q; want a usage error naming the flag", c.name, arg, r.code, r.stderr)
+				}
 			}
 		})
 	}

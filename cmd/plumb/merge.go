@@ -11,8 +11,10 @@ import (
 )
 
 var mergeCmd = &command{
-	name:    "merge",
-	summary: "join the shard files of a split scan, ensemble or --exec ladder into one run's output",
+	name:      "merge",
+	summary:   "join the shard files of a split scan, ensemble or --exec ladder into one run's output",
+	refuses:   []string{"model", "file", "set", "start", "plot", "plot-size"},
+	refuseWhy: "the settings of a merge come from the shard files",
 	doc: `Join the shard files that the pieces of a split run wrote (plumb scan,
 plumb ensemble or plumb trust --exec with --shard I/N) and write exactly the
 bytes the same command without --shard writes: its table, CSV, JSON, JSON
@@ -46,11 +48,6 @@ func setupMerge(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error
 
 // runMerge reads the shard files and runs the recorded command on them.
 func runMerge(ctx context.Context, cl *call) error {
-	for _, name := range []string{"model", "file", "set", "start", "plot", "plot-size"} {
-		if cl.sh.given[name] {
-			return usagef("--%s: the settings of a merge come from the shard files", name)
-		}
-	}
 	if len(cl.args) == 0 {
 		return usagef("no shard files: give the files the pieces wrote (plumb merge FILES...)")
 	}

@@ -23,6 +23,7 @@ the same line.
 --format json writes one object; JSON keys: plumb_version, arch, command,
 status, error, os, go_version.`,
 	formats: []string{"table", "json"},
+	refuses: []string{"model", "file", "set", "start", "plot", "plot-size"},
 	setup: func(fs *flag.FlagSet, sh *shared) func(context.Context, *call) error {
 		return runVersion
 	},
