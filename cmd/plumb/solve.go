@@ -43,16 +43,17 @@ run's budget per unit of time, so a longer span never stops short for want
 of steps; a fixed step that cannot finish within a given budget is refused
 before the run.
 
-A map (henon, logistic, standard, ikeda, or a system file of kind map) is
-iterated instead: --steps N writes the iterates n = 0..N (angles reduced to
-[0, period)); the table and CSV have the columns n and the states; map
-JSON keys: plumb_version, arch, command, system, settings, units, status,
-error, end, final, orbit; --format jsonl writes the keys before orbit on
-the first line, one line {"n": N, "x": [...]} per iterate, then the keys
-after it; --format npy the iterates as an N x (1+d) array, n first. --plot
-draws the orbit as dots (the first two components against each other; for
-one component x_(n+1) against x_n).
-The time and integrator flags are for flows only.
+A map (a built-in model of kind map, such as henon or logistic: 'plumb
+models' lists them all; or a system file of kind map) is iterated instead:
+--steps N writes the iterates n = 0..N (angles reduced to [0, period)); the
+table and CSV have the columns n and the states; map JSON keys:
+plumb_version, arch, command, system, settings, units, status, error, end,
+final, orbit; --format jsonl writes the keys before orbit on the first
+line, one line {"n": N, "x": [...]} per iterate, then the keys after it;
+--format npy the iterates as an N x (1+d) array, n first. --plot draws the
+orbit as dots (the first two components against each other; for one
+component x_(n+1) against x_n). The time and integrator flags are for flows
+only.
 
 On Ctrl-C, or when the integration fails, the samples computed so far are
 still written; the exit status is then 1.`,

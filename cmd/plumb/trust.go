@@ -98,24 +98,25 @@ A trust horizon, like a shadow, is a statement about the numerical model,
 not a safety certificate for the real system; safety-critical use follows the field's
 own codes and licensed review.
 
-A map (henon, logistic, standard, ikeda, or a system file of kind map) is
-audited iterate by iterate instead: the reference is its orbit in
-double-double arithmetic (about 32 digits), the rungs are float64 itself,
-storage at 40 and 24 bits (precision) and a restart at 0.8 of the horizon
-(restart); --horizon counts iterates (default 100), --tol defaults to 0.1,
---restart-at is an iterate, and the exponent is per iterate; map JSON
-keys: plumb_version, arch, command, system, settings, units, status,
-error, trusted_until, t0, horizon, steps, tol, relative, tol_abs, spread,
-magnitude, distance, limited_by (when a rung departs), limiting_rung
-(when a rung departs), predicted_horizon (when predicted), verdict,
-tol_used, growth, exponent (when estimated), exponent_error (when the
-estimate failed), rungs, times, stride, failed, exact_reference (the
-double-double orbit), shadow (when --shadow), proof (when --prove), caution, time_unit
-(iterate: every time is an iterate). --format csv writes n, then
-one column per rung, headed by its id: precision_float64,
-precision_40bit, precision_24bit, restart. Past 4096 iterates each
-curve keeps at most 4096 points: a row (and a point of a rung's
-divergence in JSON) is the largest distance over stride iterates from n.
+A map (a built-in model of kind map, such as henon or logistic: 'plumb
+models' lists them all; or a system file of kind map) is audited iterate by
+iterate instead: the reference is its orbit in double-double arithmetic
+(about 32 digits), the rungs are float64 itself, storage at 40 and 24 bits
+(precision) and a restart at 0.8 of the horizon (restart); --horizon counts
+iterates (default 100), --tol defaults to 0.1, --restart-at is an iterate,
+and the exponent is per iterate; map JSON keys: plumb_version, arch,
+command, system, settings, units, status, error, trusted_until, t0,
+horizon, steps, tol, relative, tol_abs, spread, magnitude, distance,
+limited_by (when a rung departs), limiting_rung (when a rung departs),
+predicted_horizon (when predicted), verdict, tol_used, growth, exponent
+(when estimated), exponent_error (when the estimate failed), rungs, times,
+stride, failed, exact_reference (the double-double orbit), shadow (when
+--shadow), proof (when --prove), caution, time_unit (iterate: every time is
+an iterate). --format csv writes n, then one column per rung, headed by its
+id: precision_float64, precision_40bit, precision_24bit, restart. Past 4096
+iterates each curve keeps at most 4096 points: a row (and a point of a
+rung's divergence in JSON) is the largest distance over stride iterates
+from n.
 
 On Ctrl-C, or when the reference run fails, the rungs completed so far are
 still written; the exit status is then 1.
