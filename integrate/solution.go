@@ -264,7 +264,10 @@ func (s *Solution) State(i int, dst []float64) []float64 {
 // two steps used last are kept. The field must stay valid and compute
 // what it computed during the solve (it must not depend on state changed
 // since): At checks that the step taken again ends on the stored state,
-// bit for bit, and otherwise returns nil (AtErr: ErrFieldChanged). At
+// bit for bit, and otherwise returns nil (AtErr: ErrFieldChanged); a
+// caller who changes the field after the solve (one closure whose
+// parameters the next solve reuses) samples with Settings.Every or Times
+// instead, which builds the extension while the solve runs. At
 // calls the field under a lock, never concurrently for one Solution; a
 // field the caller supplied (not made by Forkable) that other running
 // code also calls must be safe for concurrent use. AtEvaluations counts
