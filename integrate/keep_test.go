@@ -11,8 +11,8 @@ import (
 // returns the bits of Stepper.Dense on the same step (exact identity: the
 // solution stores the compact part of the same continuous extension,
 // formed by the same operations), over enough steps to fill several
-// storage blocks, for DormandPrince54 (compact storage) and
-// DormandPrince853 (steps rebuilt in At).
+// storage blocks, for DormandPrince54 and DormandPrince853 (both with
+// compact storage).
 func TestKeptStepsAreStepperDense(t *testing.T) {
 	p := Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}
 	for _, m := range []Method{DormandPrince54, DormandPrince853} {

@@ -16,9 +16,10 @@ import (
 // step size h of each step (T's differences round it), and At rebuilds a
 // step when first asked: it takes the step again from (T[k], Y[k]) with h,
 // which gives the solve's stages bit for bit (the field being the same
-// function), and then builds the extension with dp853Work.denseRest, the
-// function of the eager path, on the same inputs. The bits are those of
-// a solve that built the extension eagerly.
+// function), and then builds the extension with dp853Work.dense, as
+// Stepper.Dense does, on the same inputs. The bits are those of a solve
+// that built the extension eagerly (its kept r3..r8 are dense's, and r1 =
+// y0, r2 = y1 - y0 are formed from T and Y by the same operations).
 //
 // A rebuild costs 16 evaluations of F: F(T[k], Y[k]) (stage 1; the
 // stepper evaluated the same call at the end of step k-1, or at the start
@@ -49,10 +50,11 @@ type lazyDense struct {
 	err   error       // the first failure of a rebuild
 }
 
-// lazySlot is one built step: r3..r8 of its continuous extension.
+// lazySlot is one built step: its continuous extension as dense writes
+// it (r1..r8).
 type lazySlot struct {
 	step int // -1: empty
-	rest []float64
+	coef []float64
 }
 
 // newLazyDense returns the lazy dense output of a DormandPrince853 solve
@@ -61,10 +63,10 @@ type lazySlot struct {
 func newLazyDense(w *dp853Work, rtol, atol []float64) *lazyDense {
 	n := len(rtol)
 	l := &lazyDense{h: newChunks(1), rtol: rtol, atol: atol, w: w}
-	buf := make([]float64, 15*n)
+	buf := make([]float64, 19*n)
 	l.k1, l.k13, l.y1 = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n]
-	l.slots[0] = lazySlot{step: -1, rest: buf[3*n : 9*n : 9*n]}
-	l.slots[1] = lazySlot{step: -1, rest: buf[9*n : 15*n : 15*n]}
+	l.slots[0] = lazySlot{step: -1, coef: buf[3*n : 11*n : 11*n]}
+	l.slots[1] = lazySlot{step: -1, coef: buf[11*n : 19*n : 19*n]}
 	return l
 }
 
@@ -82,7 +84,7 @@ func (l *lazyDense) interp(k int, t0 float64, y0, y1 []float64, theta float64, d
 	if s == nil {
 		return nil
 	}
-	l.w.interpCompact(y0, y1, s.rest, theta, dst)
+	l.w.interp(s.coef, theta, dst)
 	return dst
 }
 
@@ -109,7 +111,7 @@ func (l *lazyDense) slot(k int, t0 float64, y0, y1 []float64) (s *lazySlot) {
 	}()
 	w, h := l.w, l.h.at(k)[0]
 	// The calls and arguments of the stepper: Stepper.nextAdaptive, then
-	// denseCompact in solve.
+	// Stepper.prepareDense.
 	w.f(t0, y0, l.k1)
 	_, ev := w.attemptSq(t0, h, y0, l.k1, l.y1, l.k13, l.rtol, l.atol)
 	w.f(t0+h, l.y1, l.k13)
@@ -122,7 +124,7 @@ func (l *lazyDense) slot(k int, t0 float64, y0, y1 []float64) (s *lazySlot) {
 			return nil
 		}
 	}
-	l.evals += w.denseRest(t0, h, y0, l.k1, y1, l.k13, s.rest)
+	l.evals += w.dense(t0, h, y0, l.k1, y1, l.k13, s.coef)
 	s.step = k
 	return s
 }
