@@ -20,7 +20,8 @@
 //
 //	DormandPrince54    explicit 5(4) pair, FSAL (6 evaluations a step), dense output of order 4
 //	DormandPrince853   explicit 8(5,3) pair, 11 evaluations an attempt plus 1 an accepted
-//	                   step; dense output of order 7 (3 more evaluations, only when used)
+//	                   step; dense output of order 7 (3 more evaluations, only when used;
+//	                   Solution.At rebuilds a kept step when first asked, see below)
 //	BogackiShampine32  explicit 3(2) pair, FSAL (3 evaluations a step), Hermite dense output
 //	RK4(h), Euler(h)   fixed step (4 and 1 evaluations), Hermite and linear dense output,
 //	                   for step-size audits
@@ -129,8 +130,14 @@
 // O(log steps + steps/4096) times and copies its steps once, at the end,
 // into T and Y; DormandPrince54 keeps 3 of the 5 vectors of its continuous
 // extension per step and DormandPrince853 6 of its 8 (the other two are
-// rebuilt from T and Y). The blocks that stage the times and states before
-// that copy go back to a pool (sync.Pool) that later solves draw from.
+// rebuilt from T and Y). A DormandPrince853 solve that needs no dense
+// output while it runs (no Every, Times or Crossings) keeps only the step
+// size of each step beside T and Y: Solution.At takes a step again from
+// its start when first asked (16 evaluations of the field, after Solve
+// has returned; the same bits as a solve that built the extension while
+// it ran) and keeps the two steps used last. The blocks that stage the
+// times and states before that copy go back to a pool (sync.Pool) that
+// later solves draw from.
 //
 // # Determinism
 //

@@ -28,6 +28,10 @@ var (
 	// ErrNoDense reports a request for dense output from a Solution that did
 	// not keep its steps.
 	ErrNoDense = errors.New("dense output not kept")
+	// ErrFieldChanged reports that Solution.At, rebuilding a step after
+	// Solve returned, found that the vector field no longer computes what
+	// it computed during the solve (it depends on state changed since).
+	ErrFieldChanged = errors.New("vector field changed since the solve")
 )
 
 // StepError says where stepping failed: the time reached, the step size

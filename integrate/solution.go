@@ -72,6 +72,7 @@ type Solution struct {
 	cd   compactDense // sc, when it rebuilds part of its dense output from T, Y
 	d0   []float64    // with cd: F at T0, the start derivative of the first step
 	coef chunks       // dense output per step (full, or compact when cd != nil)
+	lazy *lazyDense   // DormandPrince853's stages, when no dense output was needed during the solve
 	// During a solve the times and states go to chunks (no copying as the
 	// solution grows); seal copies them into T and Y once at the end.
 	tBuf, yBuf chunks
@@ -274,10 +275,33 @@ func (s *Solution) State(i int, dst []float64) []float64 {
 // using the method's continuous extension on the step that contains t; at a
 // step's own time it returns the stored state exactly.
 //
+// At is safe for concurrent use by several goroutines.
+//
+// For DormandPrince853, when the solve kept its steps and needed no dense
+// output while it ran (no Settings.Every, Times or Crossings), the solve
+// keeps only each step's size, and At rebuilds a step when first asked:
+// it takes the step again from its start and builds the continuous
+// extension, 16 evaluations of the problem's field after Solve has
+// returned, with the same bits as a solve that built it while it ran; the
+// two steps used last are kept. The field must stay valid and compute
+// what it computed during the solve (it must not depend on state changed
+// since): At checks that the step taken again ends on the stored state,
+// bit for bit, and otherwise returns nil (AtErr: ErrFieldChanged); a
+// caller who changes the field after the solve (one closure whose
+// parameters the next solve reuses) samples with Settings.Every or Times
+// instead, which builds the extension while the solve runs. At
+// calls the field under a lock, never concurrently for one Solution; a
+// field the caller supplied (not made by Forkable) that other running
+// code also calls must be safe for concurrent use. AtEvaluations counts
+// these calls. A panic of the field there is recovered: At returns nil,
+// and AtErr returns it as a *CallbackError.
+//
 // Special cases:
 //
-//	t outside [T0, End] (or NaN): returns nil
-//	Settings.DropSteps was set:   returns nil
+//	t outside [T0, End] (or NaN):             returns nil
+//	Settings.DropSteps was set:               returns nil
+//	a DormandPrince853 step could not be
+//	rebuilt (the field panicked or changed):  returns nil
 func (s *Solution) At(t float64, dst []float64) []float64 {
 	if len(s.T) == 0 || s.sc == nil || math.IsNaN(t) {
 		return nil
@@ -311,6 +335,10 @@ func (s *Solution) At(t float64, dst []float64) []float64 {
 	}
 	dst = dst[:s.Dim]
 	theta := (t - s.T[k]) / (s.T[k+1] - s.T[k])
+	if s.lazy != nil {
+		d := s.Dim
+		return s.lazy.interp(k, s.T[k], s.Y[k*d:(k+1)*d], s.Y[(k+1)*d:(k+2)*d], theta, dst)
+	}
 	if s.cd != nil {
 		d := s.Dim
 		prev := s.d0

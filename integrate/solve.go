@@ -114,6 +114,11 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 	} else if c.times != nil {
 		grid = gridIter{times: c.times, n: len(c.times)}
 	}
+	if w, ok := st.sc.(*dp853Work); ok && keep && grid.n == 0 && cf == nil {
+		// Nothing needs the dense output during the solve: keep the
+		// stages, and let At build a step's extension when asked.
+		sol.lazy = newLazyDense(w, c.rtol, c.atol)
+	}
 	if each != nil {
 		ebuf = make([]float64, n)
 		if grid.n == 0 {
@@ -212,6 +217,8 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 		}
 		if keep {
 			switch {
+			case sol.lazy != nil:
+				sol.lazy.store(st.hLast)
 			case sol.cd != nil && !st.denseReady:
 				// Only the part the solution keeps, straight into place.
 				st.stats.Evaluations += sol.cd.denseCompact(st, sol.coef.next())

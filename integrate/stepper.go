@@ -62,7 +62,10 @@ type Stepper struct {
 // Stats counts the work of a solve. It holds counts only, so results are
 // deterministic.
 type Stats struct {
-	Evaluations int // calls of the vector field
+	// Evaluations counts the calls of the vector field during the solve
+	// or the stepping. Calls made afterwards, by Solution.At rebuilding
+	// DormandPrince853 steps, are counted by Solution.AtEvaluations.
+	Evaluations int
 	Accepted    int // accepted steps
 	Rejected    int // rejected steps (error too large or non-finite)
 	NonFinite   int // rejected steps whose estimate was NaN or Inf
