@@ -176,8 +176,20 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 	r.avg = newAverager(cfg, k, p.T0)
 	r.t1 = r.avg.t1
 	aug := integrate.Problem{F: r.field, T0: p.T0, Y0: y0}
+	tf := cfg.Tangent3
+	if n != 3 || k != 3 || !r.exact {
+		tf = nil // a fused evaluation serves full 3-D spectra only
+	}
+	if tf != nil {
+		if err := checkTangent3(p, tf); err != nil {
+			return nil, err
+		}
+	}
 	if n == 3 && k == 3 && r.exact && fixedSize {
 		aug.F = r.field33()
+		if tf != nil {
+			aug.F = r.tangent33(tf)
+		}
 	}
 	st, err := integrate.NewStepper(aug, r.t1, cfg.Method, &integrate.Settings{RelTol: cfg.RelTol, AbsTol: cfg.AbsTol, MaxSteps: cfg.MaxSteps})
 	var ce *integrate.CallbackError
