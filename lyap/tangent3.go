@@ -41,10 +41,9 @@ type Tangent3 func(t float64, x, dx *[3]float64, v, dv *[9]float64) (trace float
 // tangent33 is field33 through the caller's fused evaluation tf: the
 // same bits and counts. The caller's function running is always tf (the
 // vector field, for a recovered panic): it is named once here, and only
-// the time is stored per call (the store of a string, with its write
-// barrier check, cost 7 instructions an evaluation).
+// the time is stored per call.
 func (r *flowRun) tangent33(tf Tangent3) integrate.Func {
-	r.calling = integrate.CallbackField
+	r.calling = calleeField
 	return func(t float64, y, dy []float64) {
 		d, v := (*[13]float64)(dy), (*[13]float64)(y)
 		r.evals++

@@ -23,6 +23,7 @@ func init() {
 		Field: func(p []float64) func(float64, []float64, []float64) {
 			s, r, b := p[0], p[1], p[2]
 			return func(_ float64, y, d []float64) {
+				_, _ = y[2], d[2] // one bounds check each, not three
 				x, yy, z := y[0], y[1], y[2]
 				d[0] = s * (yy - x)
 				d[1] = float64(x*(r-z)) - yy
@@ -101,6 +102,7 @@ func init() {
 		Field: func(p []float64) func(float64, []float64, []float64) {
 			a, b, c := p[0], p[1], p[2]
 			return func(_ float64, y, d []float64) {
+				_, _ = y[2], d[2] // one bounds check each, not three
 				d[0] = -y[1] - y[2]
 				d[1] = y[0] + float64(a*y[1])
 				d[2] = b + float64(y[2]*(y[0]-c))
