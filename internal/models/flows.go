@@ -77,7 +77,7 @@ func init() {
 					s0 += float64(ns * v0)
 					s0 += float64(s * v1)
 					s1 += float64(j10 * v0)
-					s1 += -v1 // (-1)·v1, exactly
+					s1 -= v1 // + (-1)·v1: x - y is x + (-y), exactly (IEEE 754)
 					s1 += float64(j12 * v2)
 					s2 += float64(y1 * v0)
 					s2 += float64(x0 * v1)
@@ -142,8 +142,8 @@ func init() {
 				dx[2] = b + float64(z2*(x0-c))
 				j22 := x0 - c
 				col := func(v0, v1, v2 float64) (s0, s1, s2 float64) {
-					s0 += -v1 // (-1)·v1, exactly
-					s0 += -v2
+					s0 -= v1 // + (-1)·v1: x - y is x + (-y), exactly (IEEE 754)
+					s0 -= v2
 					s1 += v0 // 1·v0, exactly
 					s1 += float64(a * v1)
 					s2 += float64(z2 * v0)
