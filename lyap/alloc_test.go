@@ -25,6 +25,13 @@ func TestLoopsDoNotAllocate(t *testing.T) {
 			}
 			return func() bool { return r.step(ctx) }
 		}()},
+		{"flow fused", func() func() bool {
+			r, err := newFlowRun(lorenz, 3, &Settings{Duration: 1e4, Transient: 1, Blocks: 1e4, Tangent3: modelTangent3(t, "lorenz", nil)})
+			if err != nil {
+				t.Fatal(err)
+			}
+			return func() bool { return r.step(ctx) }
+		}()},
 		{"flow every step", func() func() bool {
 			r, err := newFlowRun(lorenz, 2, &Settings{Duration: 1e4, Transient: 0.5, Interval: 1e-9, Blocks: 1e4})
 			if err != nil {

@@ -31,7 +31,9 @@
 // Flows are integrate.Problem values (the Jacobian Problem.Jac is used when
 // given, central differences otherwise); maps satisfy the small Map interface
 // defined here. Every entry point takes a context first and a *Settings
-// last, nil meaning the documented defaults.
+// last, nil meaning the documented defaults. A full spectrum of a 3-D flow
+// may take a fused evaluation of the field and the tangent product
+// (Tangent3, in Settings.Tangent3): the same bits at lower cost.
 //
 // # Methods
 //

@@ -114,8 +114,27 @@ type flowRun struct {
 	onQR        func(t float64, q, r []float64) bool
 	// calling and callT name the caller's function running last and the
 	// time it was called at, for a recovered panic.
-	calling string
+	calling callee
 	callT   float64
+}
+
+// callee names the caller's function a flow run called last: a byte that
+// stands for integrate's CallbackField or CallbackJacobian, so that the two
+// stores an evaluation makes are single bytes (a string's are two words and
+// a write-barrier check, about 7 instructions each).
+type callee uint8
+
+const (
+	calleeField callee = iota
+	calleeJacobian
+)
+
+// name is the integrate.CallbackError name of c.
+func (c callee) name() string {
+	if c == calleeJacobian {
+		return integrate.CallbackJacobian
+	}
+	return integrate.CallbackField
 }
 
 func validateProblem(p integrate.Problem) error {
@@ -176,14 +195,26 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 	r.avg = newAverager(cfg, k, p.T0)
 	r.t1 = r.avg.t1
 	aug := integrate.Problem{F: r.field, T0: p.T0, Y0: y0}
+	tf := cfg.Tangent3
+	if n != 3 || k != 3 || !r.exact {
+		tf = nil // a fused evaluation serves full 3-D spectra only
+	}
+	if tf != nil {
+		if err := checkTangent3(p, tf); err != nil {
+			return nil, err
+		}
+	}
 	if n == 3 && k == 3 && r.exact && fixedSize {
 		aug.F = r.field33()
+		if tf != nil {
+			aug.F = r.tangent33(tf)
+		}
 	}
 	st, err := integrate.NewStepper(aug, r.t1, cfg.Method, &integrate.Settings{RelTol: cfg.RelTol, AbsTol: cfg.AbsTol, MaxSteps: cfg.MaxSteps})
 	var ce *integrate.CallbackError
 	if errors.As(err, &ce) {
 		// The integrator saw the augmented field; name the caller's function.
-		ce.Callback, ce.T = r.calling, r.callT
+		ce.Callback, ce.T = r.calling.name(), r.callT
 		return nil, fmt.Errorf("lyap: at the start: %w", ce)
 	}
 	if err != nil {
@@ -210,7 +241,7 @@ func newFlowRun(p integrate.Problem, k int, s *Settings) (*flowRun, error) {
 func (r *flowRun) jacobian(t float64, x []float64) {
 	r.jacs++
 	if r.exact {
-		r.calling = integrate.CallbackJacobian
+		r.calling = calleeJacobian
 		r.p.Jac(t, x, r.J)
 		return
 	}
@@ -223,12 +254,12 @@ func (r *flowRun) field(t float64, y, dy []float64) {
 	n, k := r.n, r.k
 	x := y[:n]
 	r.evals++
-	r.calling, r.callT = integrate.CallbackField, t
+	r.calling, r.callT = calleeField, t
 	r.p.F(t, x, dy[:n])
 	if r.exact {
 		// jacobian's exact branch, without the call.
 		r.jacs++
-		r.calling = integrate.CallbackJacobian
+		r.calling = calleeJacobian
 		r.p.Jac(t, x, r.J)
 	} else {
 		r.jacobian(t, x)
@@ -351,7 +382,7 @@ func (r *flowRun) run(ctx context.Context) (err error) {
 	}
 	defer func() {
 		if v := recover(); v != nil {
-			r.err = fmt.Errorf("lyap: %w", integrate.Recovered(r.calling, r.callT, v))
+			r.err = fmt.Errorf("lyap: %w", integrate.Recovered(r.calling.name(), r.callT, v))
 			r.done = true
 			err = r.err
 		}

@@ -10,9 +10,12 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// TestFixedSizeBits runs full 3-D spectra with the fixed-size field and
-// with the general one, and requires the same bits everywhere (an exact
-// identity: both compute the same sums in the same order): exponents,
+// TestFixedSizeBits runs full 3-D spectra with the fixed-size field, with
+// the general one and, where the model has one, with its fused evaluation
+// (Settings.Tangent3), and requires the same bits everywhere (an exact
+// identity: all compute the same sums in the same order, the fused one
+// leaving out only terms of zero Jacobian entries, which change no bit):
+// exponents,
 // standard errors, final state, the history of every
 // re-orthonormalisation, and the counts. The runs are long (hundreds of
 // thousands of evaluations) so that a difference in a last bit anywhere
@@ -40,20 +43,24 @@ func TestFixedSizeBits(t *testing.T) {
 		Y0: []float64{-3, 2, 40},
 	}
 	cases := []struct {
-		name string
-		p    integrate.Problem
-		s    Settings
+		name  string
+		p     integrate.Problem
+		s     Settings
+		fused Tangent3 // the model's fused evaluation, run as a third variant
 	}{
-		{"lorenz", modelProblem(t, "lorenz"), Settings{Duration: 300, Transient: 20}},
-		{"lorenz-tight", modelProblem(t, "lorenz"), Settings{Duration: 100, Transient: 10, RelTol: 1e-11, AbsTol: 1e-11}},
-		{"rossler", modelProblem(t, "rossler"), Settings{Duration: 1500, Transient: 50}},
-		{"lorenz-set-rho60", lorenzSet, Settings{Duration: 200, Transient: 10, Interval: 0.05}},
+		{"lorenz", modelProblem(t, "lorenz"), Settings{Duration: 300, Transient: 20}, modelTangent3(t, "lorenz", nil)},
+		{"lorenz-tight", modelProblem(t, "lorenz"), Settings{Duration: 100, Transient: 10, RelTol: 1e-11, AbsTol: 1e-11}, modelTangent3(t, "lorenz", nil)},
+		{"rossler", modelProblem(t, "rossler"), Settings{Duration: 1500, Transient: 50}, modelTangent3(t, "rossler", nil)},
+		{"lorenz-set-rho60", lorenzSet, Settings{Duration: 200, Transient: 10, Interval: 0.05}, modelTangent3(t, "lorenz", []float64{10, 60, 8.0 / 3})},
 	}
 	run := func(p integrate.Problem, s Settings, fixed bool) (*Spectrum, [][]float64) {
 		t.Helper()
 		old := fixedSize
 		fixedSize = fixed
 		defer func() { fixedSize = old }()
+		if !fixed {
+			s.Tangent3 = nil
+		}
 		r, err := newFlowRun(p, 3, &s)
 		if err != nil {
 			t.Fatal(err)
@@ -82,25 +89,36 @@ func TestFixedSizeBits(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			a, ha := run(c.p, c.s, true)
 			b, hb := run(c.p, c.s, false)
-			if a.Stats != b.Stats {
-				t.Errorf("stats: fixed %+v, general %+v", a.Stats, b.Stats)
-			}
-			if a.Stats.Evaluations < 100000 {
-				t.Errorf("only %d evaluations: the run is too short to show a last-bit difference", a.Stats.Evaluations)
-			}
-			for _, pair := range [][2][]float64{{a.Exponents, b.Exponents}, {a.StdErr, b.StdErr}, {a.Final, b.Final}} {
-				if !same(pair[0], pair[1]) {
-					t.Errorf("fixed %v, general %v", pair[0], pair[1])
+			variants := []struct {
+				name string
+				tf   Tangent3
+			}{{"fixed", nil}, {"fused", c.fused}}
+			for _, v := range variants {
+				if v.name == "fused" && v.tf == nil {
+					t.Fatalf("no fused evaluation for %s", c.name)
 				}
-			}
-			if len(ha) != len(hb) {
-				t.Fatalf("%d re-orthonormalisations fixed, %d general", len(ha), len(hb))
-			}
-			for i := range ha {
-				if !same(ha[i], hb[i]) {
-					t.Fatalf("re-orthonormalisation %d: fixed %v, general %v", i, ha[i], hb[i])
+				s := c.s
+				s.Tangent3 = v.tf
+				a, ha := run(c.p, s, true)
+				if a.Stats != b.Stats {
+					t.Errorf("stats: %s %+v, general %+v", v.name, a.Stats, b.Stats)
+				}
+				if a.Stats.Evaluations < 100000 {
+					t.Errorf("only %d evaluations: the run is too short to show a last-bit difference", a.Stats.Evaluations)
+				}
+				for _, pair := range [][2][]float64{{a.Exponents, b.Exponents}, {a.StdErr, b.StdErr}, {a.Final, b.Final}} {
+					if !same(pair[0], pair[1]) {
+						t.Errorf("%s %v, general %v", v.name, pair[0], pair[1])
+					}
+				}
+				if len(ha) != len(hb) {
+					t.Fatalf("%d re-orthonormalisations %s, %d general", len(ha), v.name, len(hb))
+				}
+				for i := range ha {
+					if !same(ha[i], hb[i]) {
+						t.Fatalf("re-orthonormalisation %d: %s %v, general %v", i, v.name, ha[i], hb[i])
+					}
 				}
 			}
 		})

@@ -26,3 +26,20 @@ func modelProblem(t testing.TB, name string) integrate.Problem {
 	}
 	return pr
 }
+
+// modelTangent3 returns the fused evaluation of the built-in flow name at
+// parameters p (its defaults when p is nil), or nil when it has none.
+func modelTangent3(t testing.TB, name string, p []float64) Tangent3 {
+	t.Helper()
+	f, err := models.Lookup(name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if f.Tangent3 == nil {
+		return nil
+	}
+	if p == nil {
+		p = f.Defaults()
+	}
+	return f.Tangent3(p)
+}

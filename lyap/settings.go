@@ -101,6 +101,14 @@ type Settings struct {
 	// pairing check. A flow with Problem.Split set is taken as Hamiltonian.
 	Hamiltonian bool
 
+	// Tangent3, if not nil, is the flow's vector field and Jacobian product
+	// in one call (see Tangent3), which a full spectrum (k = n = 3) of a
+	// flow with Problem.Jac uses in place of F, Jac and the product: the
+	// same bits at lower cost. Other runs ignore it. Set-up compares its
+	// bits with those of F and Jac at the start and refuses a Tangent3 that
+	// disagrees (an error wrapping ErrSettings).
+	Tangent3 Tangent3
+
 	// Progress, if not nil, is called after every re-orthonormalisation with
 	// the work done and the total (time units for flows, iterations for
 	// maps, both counted from the start, transient included). It must not

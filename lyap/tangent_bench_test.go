@@ -39,10 +39,25 @@ func BenchmarkLorenz96Spectrum(b *testing.B) {
 // (bench/run.sh builds it so), every iteration runs it too, in alternating
 // order with the Go run, and the benchmark reports go/c, the ratio of the
 // fastest runs, and go/c-median, the median of the per-iteration ratios.
-// Times are CPU times (the machines it runs on are shared).
+// Times are CPU times (the machines it runs on are shared). The sub-benchmark
+// jac evaluates the field, the Jacobian and the product apart (a Problem
+// alone); fused passes the model's Tangent3 in Settings (the same bits).
 func BenchmarkLorenzSpectrumC(b *testing.B) {
+	for _, fused := range []bool{false, true} {
+		name := "jac"
+		if fused {
+			name = "fused"
+		}
+		b.Run(name, func(b *testing.B) { benchLorenzSpectrumC(b, fused) })
+	}
+}
+
+func benchLorenzSpectrumC(b *testing.B, fused bool) {
 	p := modelProblem(b, "lorenz")
 	s := &Settings{Duration: 1000, Transient: 100, RelTol: 1e-9, AbsTol: 1e-9}
+	if fused {
+		s.Tangent3 = modelTangent3(b, "lorenz", nil)
+	}
 	cprog := os.Getenv("PLUMB_BENETTIN")
 	var tg, tc []float64
 	var st Stats

@@ -44,6 +44,14 @@ type Flow struct {
 	Field func(p []float64) func(t float64, y, dydt []float64)
 	// Jac, if not nil, returns the Jacobian df/dy for parameters p.
 	Jac func(p []float64) func(t float64, y []float64, dst *mat.Dense)
+	// Tangent3, if not nil (3-D flows with a Jacobian), returns for
+	// parameters p the vector field and the Jacobian's product with three
+	// tangent vectors in one call, with the bits of Field, Jac and the
+	// product a tangent-space run takes (the contract of lyap.Tangent3):
+	// dx = f(t, x), dv = J·v (3×3 row-major, tangent vectors as columns,
+	// each entry ((0 + J[i][0]·v[c]) + J[i][1]·v[3+c]) + J[i][2]·v[6+c]
+	// with the terms of zero entries left out), and tr J returned.
+	Tangent3 func(p []float64) func(t float64, x, dx *[3]float64, v, dv *[9]float64) float64
 	// Period, for components that are angles, gives their period (0 for the
 	// others); nil when no component is periodic.
 	Period []float64
