@@ -36,7 +36,8 @@ suites=(
   "./integrate TestGoldenBits"
   "./internal/detmath TestBitsGolden"
   "./internal/expr TestFusedBits TestFieldFuncBits"
-  "./lyap TestMulTangentBits"
+  "./lyap TestMulTangentBits TestFixedSizeBits"
+  "./internal/models TestTangent3Bits"
 )
 
 exec_flag=()

@@ -246,7 +246,7 @@ func (f *spectrumFlags) run(ctx context.Context, cl *call) error {
 	}
 	p := sys.Problem()
 	p.T0 = f.t0
-	s := &lyap.Settings{Method: im, RelTol: f.rtol, AbsTol: f.atol, Duration: dur, Transient: f.transient}
+	s := &lyap.Settings{Method: im, RelTol: f.rtol, AbsTol: f.atol, Duration: dur, Transient: f.transient, Tangent3: sys.Tangent3()}
 	if err := s.Validate(); err != nil {
 		return settingUsage(err, spectrumSettingFlags)
 	}
