@@ -19,6 +19,16 @@ func setSparse(dst *mat.Dense, n int, at []int, vals []float64) {
 		return
 	}
 	raw := dst.RawMatrix()
+	if raw.Rows == n && raw.Cols == n && raw.Stride == n {
+		// The usual case, dst n×n and contiguous: at holds the offsets,
+		// and one clear does for the rows.
+		d := raw.Data[:n*n]
+		clear(d)
+		for k, ij := range at {
+			d[ij] = vals[k]
+		}
+		return
+	}
 	r, c := min(n, raw.Rows), min(n, raw.Cols)
 	for i := 0; i < r; i++ {
 		clear(raw.Data[i*raw.Stride : i*raw.Stride+c])
