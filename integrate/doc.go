@@ -128,14 +128,15 @@
 // what the Solution keeps (steps, samples, hits). Kept steps go to blocks
 // that double up to 4096 steps and never move, so a solve allocates
 // O(log steps + steps/4096) times and copies its steps once, at the end,
-// into T and Y; DormandPrince54 keeps 3 of the 5 vectors of its continuous
-// extension per step and DormandPrince853 6 of its 8 (the other two are
-// rebuilt from T and Y). A DormandPrince853 solve that needs no dense
-// output while it runs (no Every, Times or Crossings) keeps only the step
-// size of each step beside T and Y: Solution.At takes a step again from
-// its start when first asked (16 evaluations of the field, after Solve
-// has returned; the same bits as a solve that built the extension while
-// it ran) and keeps the two steps used last. The blocks that stage the
+// into T and Y. A DormandPrince54 or DormandPrince853 solve that needs no
+// dense output while it runs (no Every, Times or Crossings) keeps only the
+// step size of each step beside T and Y: Solution.At takes a step again
+// from its start when first asked (7 or 16 evaluations of the field, after
+// Solve has returned; the same bits as a solve that built the extension
+// while it ran) and keeps the two steps used last. With a grid or
+// crossings they keep the part of each step's continuous extension that T
+// and Y do not give: for DormandPrince54 the step size, the end derivative
+// and one vector; for DormandPrince853 6 of its 8 vectors. The blocks that stage the
 // times and states before that copy go back to a pool (sync.Pool) that
 // later solves draw from.
 //

@@ -72,7 +72,7 @@ type Solution struct {
 	cd   compactDense // sc, when it rebuilds part of its dense output from T, Y
 	d0   []float64    // with cd: F at T0, the start derivative of the first step
 	coef chunks       // dense output per step (full, or compact when cd != nil)
-	lazy *lazyDense   // DormandPrince853's stages, when no dense output was needed during the solve
+	lazy *lazyDense   // the step sizes, when no dense output was needed during the solve
 	// During a solve the times and states go to chunks (no copying as the
 	// solution grows); seal copies them into T and Y once at the end.
 	tBuf, yBuf chunks
@@ -277,12 +277,12 @@ func (s *Solution) State(i int, dst []float64) []float64 {
 //
 // At is safe for concurrent use by several goroutines.
 //
-// For DormandPrince853, when the solve kept its steps and needed no dense
-// output while it ran (no Settings.Every, Times or Crossings), the solve
-// keeps only each step's size, and At rebuilds a step when first asked:
-// it takes the step again from its start and builds the continuous
-// extension, 16 evaluations of the problem's field after Solve has
-// returned, with the same bits as a solve that built it while it ran; the
+// For DormandPrince54 and DormandPrince853, when the solve kept its steps
+// and needed no dense output while it ran (no Settings.Every, Times or
+// Crossings), the solve keeps only each step's size, and At rebuilds a
+// step when first asked: it takes the step again from its start and
+// builds the continuous extension, 7 (DormandPrince54) or 16 evaluations
+// of the problem's field after Solve has returned, with the same bits as a solve that built it while it ran; the
 // two steps used last are kept. The field must stay valid and compute
 // what it computed during the solve (it must not depend on state changed
 // since): At checks that the step taken again ends on the stored state,
@@ -300,8 +300,8 @@ func (s *Solution) State(i int, dst []float64) []float64 {
 //
 //	t outside [T0, End] (or NaN):             returns nil
 //	Settings.DropSteps was set:               returns nil
-//	a DormandPrince853 step could not be
-//	rebuilt (the field panicked or changed):  returns nil
+//	a step could not be rebuilt
+//	(the field panicked or changed):          returns nil
 func (s *Solution) At(t float64, dst []float64) []float64 {
 	if len(s.T) == 0 || s.sc == nil || math.IsNaN(t) {
 		return nil

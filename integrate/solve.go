@@ -114,10 +114,10 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 	} else if c.times != nil {
 		grid = gridIter{times: c.times, n: len(c.times)}
 	}
-	if w, ok := st.sc.(*dp853Work); ok && keep && grid.n == 0 && cf == nil {
+	if lazyScheme(st.sc) && keep && grid.n == 0 && cf == nil {
 		// Nothing needs the dense output during the solve: keep the
-		// stages, and let At build a step's extension when asked.
-		sol.lazy = newLazyDense(w, c.rtol, c.atol)
+		// step sizes, and let At take a step again when asked.
+		sol.lazy = newLazyDense(st)
 	}
 	if each != nil {
 		ebuf = make([]float64, n)

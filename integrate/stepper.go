@@ -64,7 +64,7 @@ type Stepper struct {
 type Stats struct {
 	// Evaluations counts the calls of the vector field during the solve
 	// or the stepping. Calls made afterwards, by Solution.At rebuilding
-	// DormandPrince853 steps, are counted by Solution.AtEvaluations.
+	// steps, are counted by Solution.AtEvaluations.
 	Evaluations int
 	Accepted    int // accepted steps
 	Rejected    int // rejected steps (error too large or non-finite)

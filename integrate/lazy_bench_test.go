@@ -7,18 +7,24 @@ import (
 	"time"
 )
 
-// BenchmarkLazyAtSweep measures what rebuilding DormandPrince853 steps in
-// At costs a caller who reads the whole solution: Lorenz, y0 = (1,1,1),
+// BenchmarkLazyAtSweep measures what rebuilding DormandPrince54 and
+// DormandPrince853 steps in At costs a caller who reads the whole solution: Lorenz, y0 = (1,1,1),
 // [0, 100], rtol = atol = 1e-10, At at four times in every step (its start
 // and three interior points), in increasing order. Every iteration solves
 // and sweeps two ways, in alternating order: the default solve, whose At
-// rebuilds each step (16 evaluations), and a solve with Times = {t1},
-// which builds every step's extension while it runs (the eager path, 3
-// evaluations a step). Metrics: the median solve+sweep time of each, per
+// rebuilds each step (7 or 16 evaluations), and a solve with Times = {t1},
+// which builds every step's extension while it runs (the eager path, 0 or
+// 3 evaluations a step). Metrics: the median solve+sweep time of each, per
 // kept step, and their ratio (median of the per-iteration ratios, and of
 // the fastest runs). The two sweeps must give the same sum, bit for bit
 // (TestLazyAtBits compares every value).
 func BenchmarkLazyAtSweep(b *testing.B) {
+	for _, lm := range lazyMethods {
+		b.Run(lm.name, func(b *testing.B) { lazyAtSweep(b, lm.m) })
+	}
+}
+
+func lazyAtSweep(b *testing.B, m Method) {
 	p := Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}
 	sLazy := &Settings{RelTol: 1e-10, AbsTol: 1e-10}
 	sEager := &Settings{RelTol: 1e-10, AbsTol: 1e-10, Times: []float64{100}}
@@ -28,7 +34,7 @@ func BenchmarkLazyAtSweep(b *testing.B) {
 	var sumL, sumE float64
 	run := func(s *Settings) (float64, float64) {
 		t0 := time.Now()
-		sol, err := Solve(ctx, p, 100, DormandPrince853, s)
+		sol, err := Solve(ctx, p, 100, m, s)
 		if err != nil {
 			b.Fatal(err)
 		}

@@ -12,10 +12,21 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-// rebuildEvals is what Solution.At spends to rebuild one DormandPrince853
-// step: F at the step's start, 11 for the attempt, F at its end, 3 for the
-// extension (exact count of the code path, see lazyDense).
-const rebuildEvals = 16
+// lazyMethods are the methods whose solves keep only their step sizes
+// when nothing needs dense output during the solve. rebuild is what
+// Solution.At spends to rebuild one step: F at the step's start, then for
+// DormandPrince54 the 6 evaluations of the attempt (the last is F at its
+// end), for DormandPrince853 11 for the attempt, F at its end and 3 for
+// the extension; eager is what the eager path spends per kept step on the
+// extension (exact counts of the code paths, see lazyDense).
+var lazyMethods = []struct {
+	name           string
+	m              Method
+	rebuild, eager int
+}{
+	{"dp54", DormandPrince54, 7, 0},
+	{"dp853", DormandPrince853, 16, 3},
+}
 
 // forcedOscillator is a driven double-well oscillator, x” = -0.3x' + x -
 // x³ + 0.5·cos(1.2t): a field that depends on t, so that a wrong time
@@ -28,18 +39,18 @@ func forcedOscillator() Func {
 	}
 }
 
-// eagerLazyPair solves p to t1 twice with DormandPrince853 and s: once as
+// eagerLazyPair solves p to t1 twice with method m and s: once as
 // given (the lazy path: no grid, no crossings) and once with Times = {t1},
 // which builds every kept step's extension during the solve (the eager
 // path) without changing the steps.
-func eagerLazyPair(t *testing.T, p Problem, t1 float64, s Settings) (lazy, eager *Solution) {
+func eagerLazyPair(t *testing.T, m Method, p Problem, t1 float64, s Settings) (lazy, eager *Solution) {
 	t.Helper()
 	ctx := context.Background()
-	lazy, err := Solve(ctx, p, t1, DormandPrince853, &s)
+	lazy, err := Solve(ctx, p, t1, m, &s)
 	require.NoError(t, err)
 	se := s
 	se.Times = []float64{t1}
-	eager, err = Solve(ctx, p, t1, DormandPrince853, &se)
+	eager, err = Solve(ctx, p, t1, m, &se)
 	require.NoError(t, err)
 	require.NotNil(t, lazy.lazy, "the solve without grid or crossings took the lazy path")
 	require.Nil(t, eager.lazy, "the solve with a grid took the eager path")
@@ -61,15 +72,17 @@ func probeTimes(sol *Solution) []float64 {
 	return append(ts, sol.End)
 }
 
-// TestLazyAtBits: At on a DormandPrince853 solution that rebuilds its steps
+// TestLazyAtBits: At on a DormandPrince54 or DormandPrince853 solution that
+// rebuilds its steps
 // when asked returns the bits of a solve that built the extension while it
 // ran, at the start and inside every step (the first and the last
 // included) and at End, forwards and backwards, for an autonomous and a
 // time-dependent field, for a one-step solve and for one long enough to
 // fill the doubling blocks of stored step sizes and two full ones (8128 +
-// 2·4096 steps) (exact identity: the rebuild
-// repeats the solve's operations). The solve itself makes 3 evaluations
-// fewer per step, and a sweep over increasing t rebuilds each step once.
+// 2·4096 steps) (exact identity: the rebuild repeats the solve's
+// operations). The solve itself makes the eager path's extension
+// evaluations fewer per step (3 for DormandPrince853, none for
+// DormandPrince54), and a sweep over increasing t rebuilds each step once.
 func TestLazyAtBits(t *testing.T) {
 	cases := []struct {
 		name    string
@@ -85,32 +98,37 @@ func TestLazyAtBits(t *testing.T) {
 		{name: "one step", p: Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, t1: 1e-3, tol: 1e-6, atLeast: 1},
 		{name: "lorenz long", p: Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, t1: 450, tol: 1e-10, atLeast: 17000},
 	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			if testing.Short() && c.atLeast > 1000 {
-				t.Skip("long solve")
-			}
-			lazy, eager := eagerLazyPair(t, c.p, c.t1, Settings{RelTol: c.tol, AbsTol: c.tol})
-			steps := len(lazy.T) - 1
-			require.GreaterOrEqual(t, steps, c.atLeast)
-			// The eager solve builds every kept step's extension: 3
-			// evaluations a step (exact count of denseRest).
-			require.Equal(t, eager.Stats.Evaluations, lazy.Stats.Evaluations+3*steps)
-			require.Equal(t, eager.Stats.Accepted, lazy.Stats.Accepted)
-			require.Equal(t, eager.Stats.Rejected, lazy.Stats.Rejected)
-			var a, b []float64
-			for _, tt := range probeTimes(lazy) {
-				a = lazy.At(tt, a)
-				b = eager.At(tt, b)
-				if a == nil || b == nil || !bitsEqual(a, b) {
-					t.Fatalf("t = %v: lazy At %v, eager At %v", tt, a, b)
+	for _, lm := range lazyMethods {
+		for _, c := range cases {
+			t.Run(lm.name+" "+c.name, func(t *testing.T) {
+				if testing.Short() && c.atLeast > 1000 {
+					t.Skip("long solve")
 				}
-			}
-			require.Equal(t, rebuildEvals*steps, lazy.AtEvaluations(), "one rebuild per step in an increasing sweep")
-			require.Zero(t, eager.AtEvaluations())
-			require.NoError(t, lazy.AtErr())
-		})
+				lazyAtBits(t, lm.m, lm.rebuild, lm.eager, c.p, c.t1, c.tol, c.atLeast)
+			})
+		}
 	}
+}
+
+func lazyAtBits(t *testing.T, m Method, rebuild, extra int, p Problem, t1, tol float64, atLeast int) {
+	lazy, eager := eagerLazyPair(t, m, p, t1, Settings{RelTol: tol, AbsTol: tol})
+	steps := len(lazy.T) - 1
+	require.GreaterOrEqual(t, steps, atLeast)
+	// The eager solve builds every kept step's extension.
+	require.Equal(t, eager.Stats.Evaluations, lazy.Stats.Evaluations+extra*steps)
+	require.Equal(t, eager.Stats.Accepted, lazy.Stats.Accepted)
+	require.Equal(t, eager.Stats.Rejected, lazy.Stats.Rejected)
+	var a, b []float64
+	for _, tt := range probeTimes(lazy) {
+		a = lazy.At(tt, a)
+		b = eager.At(tt, b)
+		if a == nil || b == nil || !bitsEqual(a, b) {
+			t.Fatalf("t = %v: lazy At %v, eager At %v", tt, a, b)
+		}
+	}
+	require.Equal(t, rebuild*steps, lazy.AtEvaluations(), "one rebuild per step in an increasing sweep")
+	require.Zero(t, eager.AtEvaluations())
+	require.NoError(t, lazy.AtErr())
 }
 
 // TestLazyAtStoppingCrossing: a solve that stops at a crossing builds its
@@ -119,13 +137,19 @@ func TestLazyAtBits(t *testing.T) {
 // rebuilds them in At, with the same bits at every probed time up to the
 // stop (exact identity).
 func TestLazyAtStoppingCrossing(t *testing.T) {
+	for _, lm := range lazyMethods {
+		t.Run(lm.name, func(t *testing.T) { lazyAtStoppingCrossing(t, lm.m) })
+	}
+}
+
+func lazyAtStoppingCrossing(t *testing.T, m Method) {
 	p := Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}
 	s := Settings{RelTol: 1e-10, AbsTol: 1e-10}
-	lazy, err := Solve(context.Background(), p, 40, DormandPrince853, &s)
+	lazy, err := Solve(context.Background(), p, 40, m, &s)
 	require.NoError(t, err)
 	sc := s
 	sc.Crossings = []Crossing{{Name: "x=-15", G: func(_ float64, y []float64) float64 { return y[0] + 15 }, Sense: Falling, Stop: true}}
-	stopped, err := Solve(context.Background(), p, 40, DormandPrince853, &sc)
+	stopped, err := Solve(context.Background(), p, 40, m, &sc)
 	require.NoError(t, err)
 	require.Equal(t, Stopped, stopped.Status)
 	require.NotNil(t, lazy.lazy)
@@ -152,9 +176,15 @@ func TestLazyAtStoppingCrossing(t *testing.T) {
 }
 
 // TestLazyAtCache: the two steps used last are kept; a third replaces the
-// one used less recently (exact counts of rebuildEvals per rebuild).
+// one used less recently (exact counts of evaluations per rebuild).
 func TestLazyAtCache(t *testing.T) {
-	lazy, err := Solve(context.Background(), Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, 5, DormandPrince853, &Settings{RelTol: 1e-9, AbsTol: 1e-9})
+	for _, lm := range lazyMethods {
+		t.Run(lm.name, func(t *testing.T) { lazyAtCache(t, lm.m, lm.rebuild) })
+	}
+}
+
+func lazyAtCache(t *testing.T, m Method, rebuildEvals int) {
+	lazy, err := Solve(context.Background(), Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, 5, m, &Settings{RelTol: 1e-9, AbsTol: 1e-9})
 	require.NoError(t, err)
 	mid := func(k int) float64 { return lazy.T[k] + float64(0.5*(lazy.T[k+1]-lazy.T[k])) }
 	dst := make([]float64, 3)
@@ -173,7 +203,13 @@ func TestLazyAtCache(t *testing.T) {
 // TestLazyAtAllocations: At with a long enough dst does not allocate, when
 // it rebuilds a step or reuses it.
 func TestLazyAtAllocations(t *testing.T) {
-	lazy, err := Solve(context.Background(), Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, 10, DormandPrince853, &Settings{RelTol: 1e-9, AbsTol: 1e-9})
+	for _, lm := range lazyMethods {
+		t.Run(lm.name, func(t *testing.T) { lazyAtAllocations(t, lm.m, lm.rebuild) })
+	}
+}
+
+func lazyAtAllocations(t *testing.T, m Method, rebuildEvals int) {
+	lazy, err := Solve(context.Background(), Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, 10, m, &Settings{RelTol: 1e-9, AbsTol: 1e-9})
 	require.NoError(t, err)
 	ts := probeTimes(lazy)
 	dst := make([]float64, 3)
@@ -192,6 +228,12 @@ func TestLazyAtAllocations(t *testing.T) {
 // goroutines at once (a counter of calls in progress per field copy).
 // Run under the race detector in CI.
 func TestLazyAtConcurrent(t *testing.T) {
+	for _, lm := range lazyMethods {
+		t.Run(lm.name, func(t *testing.T) { lazyAtConcurrent(t, lm.m) })
+	}
+}
+
+func lazyAtConcurrent(t *testing.T, m Method) {
 	var overlap atomic.Bool
 	p := Forkable(func() Problem {
 		var inCall atomic.Int32
@@ -207,8 +249,8 @@ func TestLazyAtConcurrent(t *testing.T) {
 		}}
 	})
 	s := Settings{RelTol: 1e-9, AbsTol: 1e-9}
-	lazy, eager := eagerLazyPair(t, p, 20, s)
-	other, err := Solve(context.Background(), p, 20, DormandPrince853, &s)
+	lazy, eager := eagerLazyPair(t, m, p, 20, s)
+	other, err := Solve(context.Background(), p, 20, m, &s)
 	require.NoError(t, err)
 	ts := probeTimes(eager)
 	want := make([][]float64, len(ts))
@@ -245,7 +287,7 @@ func TestLazyAtConcurrent(t *testing.T) {
 	wg.Add(1)
 	go func() {
 		defer wg.Done()
-		if _, err := Solve(context.Background(), p, 20, DormandPrince853, &s); err != nil {
+		if _, err := Solve(context.Background(), p, 20, m, &s); err != nil {
 			errs <- err.Error()
 		}
 	}()
@@ -263,6 +305,12 @@ func TestLazyAtConcurrent(t *testing.T) {
 // step's start); the step is not kept, so a later call with a field that
 // no longer panics answers with the eager bits.
 func TestLazyAtFieldPanics(t *testing.T) {
+	for _, lm := range lazyMethods {
+		t.Run(lm.name, func(t *testing.T) { lazyAtFieldPanics(t, lm.m) })
+	}
+}
+
+func lazyAtFieldPanics(t *testing.T, m Method) {
 	var boom atomic.Bool
 	lf := lorenzField()
 	p := Problem{Y0: []float64{1, 1, 1}, F: func(t float64, y, dy []float64) {
@@ -271,7 +319,7 @@ func TestLazyAtFieldPanics(t *testing.T) {
 		}
 		lf(t, y, dy)
 	}}
-	lazy, eager := eagerLazyPair(t, p, 5, Settings{RelTol: 1e-9, AbsTol: 1e-9})
+	lazy, eager := eagerLazyPair(t, m, p, 5, Settings{RelTol: 1e-9, AbsTol: 1e-9})
 	k := 7
 	tt := lazy.T[k] + float64(0.25*(lazy.T[k+1]-lazy.T[k]))
 	boom.Store(true)
@@ -295,13 +343,19 @@ func TestLazyAtFieldPanics(t *testing.T) {
 // longer takes the solve's steps; At refuses (nil, ErrFieldChanged) rather
 // than answer from other stages.
 func TestLazyAtFieldChanged(t *testing.T) {
+	for _, lm := range lazyMethods {
+		t.Run(lm.name, func(t *testing.T) { lazyAtFieldChanged(t, lm.m) })
+	}
+}
+
+func lazyAtFieldChanged(t *testing.T, m Method) {
 	rho := 28.0
 	p := Problem{Y0: []float64{1, 1, 1}, F: func(_ float64, y, dy []float64) {
 		dy[0] = 10 * (y[1] - y[0])
 		dy[1] = float64(y[0]*(rho-y[2])) - y[1]
 		dy[2] = float64(y[0]*y[1]) - float64(8.0/3*y[2])
 	}}
-	lazy, err := Solve(context.Background(), p, 3, DormandPrince853, &Settings{RelTol: 1e-9, AbsTol: 1e-9})
+	lazy, err := Solve(context.Background(), p, 3, m, &Settings{RelTol: 1e-9, AbsTol: 1e-9})
 	require.NoError(t, err)
 	tt := lazy.T[10] + float64(0.5*(lazy.T[11]-lazy.T[10]))
 	require.NotNil(t, lazy.At(tt, nil))
@@ -312,8 +366,9 @@ func TestLazyAtFieldChanged(t *testing.T) {
 	require.False(t, errors.Is(lazy.AtErr(), ErrCallback))
 }
 
-// TestLazyAtOtherSolves: only DormandPrince853 without grid or crossings
-// rebuilds steps; other methods and DropSteps report no At evaluations.
+// TestLazyAtOtherSolves: only DormandPrince54 and DormandPrince853 without
+// grid or crossings rebuild steps; other methods, grids and DropSteps
+// report no At evaluations.
 func TestLazyAtOtherSolves(t *testing.T) {
 	p := Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}
 	for _, c := range []struct {
@@ -321,7 +376,9 @@ func TestLazyAtOtherSolves(t *testing.T) {
 		m    Method
 		s    Settings
 	}{
-		{"dp54", DormandPrince54, Settings{}},
+		{"bs32", BogackiShampine32, Settings{}},
+		{"rk4", RK4(0.01), Settings{}},
+		{"dp54 every", DormandPrince54, Settings{Every: 0.1}},
 		{"dp853 every", DormandPrince853, Settings{Every: 0.1}},
 		{"dp853 drop", DormandPrince853, Settings{DropSteps: true}},
 	} {
