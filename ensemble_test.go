@@ -16,7 +16,7 @@ import (
 // lorenzLambda1 is the largest Lyapunov exponent of Lorenz (10, 28, 8/3),
 // with the uncertainty of its last digit: J. C. Sprott, Common Chaotic
 // Systems (1998, rev. 2004) and Chaos and Time-Series Analysis (2003),
-// App. A, as in ../shared/REFERENCES.md.
+// App. A.
 const (
 	lorenzLambda1    = 0.9056
 	lorenzLambda1Err = 0.0001 // Sprott: "the least significant digit is only a best estimate"
