@@ -91,6 +91,7 @@ type dp54Work struct {
 	ysti                   []float64 // the argument of stage 6, for the stiffness test
 	sqrtInvN               float64   // 1/√n, for the mean of squares
 	pw, ew                 []float64 // error terms without k7, and e_7 weights
+	kern                   dp54Kern  // the vector kernels' arguments (amd64)
 }
 
 func (*dp54Work) fsal() bool     { return true }
@@ -118,6 +119,9 @@ func (w *dp54Work) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (f
 // NaN or Inf (y1 - y1 is NaN exactly then; k7 enters every term).
 func (w *dp54Work) attemptSq(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
 	n := len(y)
+	if dp54KernAsm && n >= dp54KernMin && n > 0 {
+		return w.attemptKern(t, h, y, k1, y1, k7, rtol, atol) // the same bits, two components at a time
+	}
 	k2, k3, k4, k5, k6, ys, ysti := w.k2[:n], w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n], w.ys[:n], w.ysti[:n]
 	pw, ew := w.pw[:n], w.ew[:n]
 	k1, y1, k7, rtol, atol = k1[:n], y1[:n], k7[:n], rtol[:n], atol[:n]
