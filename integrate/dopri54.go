@@ -37,7 +37,7 @@ func (dopri54) newScheme(p *Problem, n int) (scheme, error) {
 	w.k2, w.k3, w.k4, w.k5, w.k6, w.ys, w.ysti = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n],
 		buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n], buf[6*n:7*n:7*n]
 	w.pw, w.ew = buf[7*n:8*n:8*n], buf[8*n:9*n:9*n]
-	return w, nil
+	return dp54Scheme(w, n), nil // w, or w with vector kernels (amd64)
 }
 
 // Dormand–Prince 5(4) coefficients (Hairer, Nørsett & Wanner 1993, Table 5.2).
@@ -91,7 +91,6 @@ type dp54Work struct {
 	ysti                   []float64 // the argument of stage 6, for the stiffness test
 	sqrtInvN               float64   // 1/√n, for the mean of squares
 	pw, ew                 []float64 // error terms without k7, and e_7 weights
-	kern                   dp54Kern  // the vector kernels' arguments (amd64)
 }
 
 func (*dp54Work) fsal() bool     { return true }
@@ -119,9 +118,6 @@ func (w *dp54Work) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (f
 // NaN or Inf (y1 - y1 is NaN exactly then; k7 enters every term).
 func (w *dp54Work) attemptSq(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
 	n := len(y)
-	if dp54KernAsm && n >= dp54KernMin && n > 0 {
-		return w.attemptKern(t, h, y, k1, y1, k7, rtol, atol) // the same bits, two components at a time
-	}
 	k2, k3, k4, k5, k6, ys, ysti := w.k2[:n], w.k3[:n], w.k4[:n], w.k5[:n], w.k6[:n], w.ys[:n], w.ysti[:n]
 	pw, ew := w.pw[:n], w.ew[:n]
 	k1, y1, k7, rtol, atol = k1[:n], y1[:n], k7[:n], rtol[:n], atol[:n]

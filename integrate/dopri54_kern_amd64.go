@@ -2,6 +2,8 @@
 
 package integrate
 
+import "math"
+
 // This file and dopri54_kern_amd64.s are the SSE2 form of the element-wise
 // loops of dp54Work.attemptSq: the stage arguments Y_2..Y_6, the new state
 // y1 with the error weights, and the error sum, two components per
@@ -15,14 +17,33 @@ package integrate
 // two together. Every other architecture, and builds with the purego tag,
 // run the Go loops (dopri54_kern_other.go).
 
-// dp54KernAsm reports that the kernels below are assembly.
-const dp54KernAsm = true
-
-// dp54KernMin is the smallest dimension that takes the vector kernels. Below
-// it the seven calls into assembly cost more than two-wide arithmetic saves
-// (measured with BenchmarkDP54Kern). A variable so that tests and
-// benchmarks can force either path.
+// dp54KernMin is the smallest dimension that takes the vector kernels.
+// Below it the seven calls into assembly cost more than two-wide
+// arithmetic saves (measured with BenchmarkDP54Kern). A variable so that
+// tests can choose either path.
 var dp54KernMin = 8
+
+// dp54Scheme returns the scheme DormandPrince54 runs on w: from dimension
+// dp54KernMin on, w with its trial step through the vector kernels. Below,
+// w itself, so that small systems run attemptSq exactly as elsewhere.
+func dp54Scheme(w *dp54Work, n int) scheme {
+	if n < dp54KernMin || n < 1 {
+		return w
+	}
+	v := &dp54Vec{dp54Work: w}
+	k := &v.kern
+	k.k2, k.k3, k.k4, k.k5, k.k6 = &w.k2[0], &w.k3[0], &w.k4[0], &w.k5[0], &w.k6[0]
+	k.ys, k.ysti, k.pw, k.ew = &w.ys[0], &w.ysti[0], &w.pw[0], &w.ew[0]
+	k.n = n
+	return v
+}
+
+// dp54Vec is a dp54Work whose trial step runs through the vector kernels;
+// every other method is dp54Work's.
+type dp54Vec struct {
+	*dp54Work
+	kern dp54Kern
+}
 
 // dp54Kern is what the kernels read: one pointer to it per call, rather
 // than a dozen slices. The pointers are the first elements of slices of
@@ -78,33 +99,33 @@ func dp54Stage7(k *dp54Kern) float64
 //go:noescape
 func dp54ErrSum(k *dp54Kern, sum float64) float64
 
-// attemptKern is attemptSq through the vector kernels: the same trial
-// step, the same evaluations, the same bits. len(y) must be at least 1.
-func (w *dp54Work) attemptKern(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
-	n := len(y)
-	k := &w.kern
-	if k.n != n {
-		// The work space's own vectors, once.
-		k.k2, k.k3, k.k4, k.k5, k.k6 = &w.k2[:n][0], &w.k3[:n][0], &w.k4[:n][0], &w.k5[:n][0], &w.k6[:n][0]
-		k.ys, k.ysti, k.pw, k.ew = &w.ys[:n][0], &w.ysti[:n][0], &w.pw[:n][0], &w.ew[:n][0]
-		k.n = n
-	}
-	k.y, k.k1, k.y1, k.k7, k.rtol, k.atol = &y[0], &k1[:n][0], &y1[:n][0], &k7[:n][0], &rtol[:n][0], &atol[:n][0]
+func (v *dp54Vec) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
+	e2, ev := v.attemptSq(t, h, y, k1, y1, k7, rtol, atol)
+	return math.Sqrt(e2), ev
+}
+
+// attemptSq is dp54Work.attemptSq through the vector kernels: the same
+// trial step, the same evaluations of F, the same bits.
+func (v *dp54Vec) attemptSq(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
+	w, k := v.dp54Work, &v.kern
+	n := k.n
+	y, k1, y1, k7, rtol, atol = y[:n], k1[:n], y1[:n], k7[:n], rtol[:n], atol[:n]
+	k.y, k.k1, k.y1, k.k7, k.rtol, k.atol = &y[0], &k1[0], &y1[0], &k7[0], &rtol[0], &atol[0]
 	k.h, k.hs = h, float64(h*w.sqrtInvN)
-	ys, ysti := w.ys[:n], w.ysti[:n]
+	ys, ysti := w.ys, w.ysti
 	dp54Stage2(k)
-	w.f(t+float64(dpC2*h), ys, w.k2[:n])
+	w.f(t+float64(dpC2*h), ys, w.k2)
 	dp54Stage3(k)
-	w.f(t+float64(dpC3*h), ys, w.k3[:n])
+	w.f(t+float64(dpC3*h), ys, w.k3)
 	dp54Stage4(k)
-	w.f(t+float64(dpC4*h), ys, w.k4[:n])
+	w.f(t+float64(dpC4*h), ys, w.k4)
 	dp54Stage5(k)
-	w.f(t+float64(dpC5*h), ys, w.k5[:n])
+	w.f(t+float64(dpC5*h), ys, w.k5)
 	dp54Stage6(k)
 	th := t + h
-	w.f(th, ysti, w.k6[:n])
+	w.f(th, ysti, w.k6)
 	sum := dp54Stage7(k)
-	w.f(th, y1[:n], k7[:n])
+	w.f(th, y1, k7)
 	return dp54ErrSum(k, sum), 6
 }
 

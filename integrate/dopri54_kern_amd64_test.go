@@ -32,10 +32,10 @@ type dp54KernRun struct {
 	ysti, k6 []float64
 }
 
-// runDP54 takes one trial step of c through attemptSq with the vector
-// kernels from dimension min on. F hands out c.ks in turn and records its
-// arguments.
-func runDP54(c *dp54KernCase, min int) dp54KernRun {
+// runDP54 takes one trial step of c through attemptSq, with the vector
+// kernels when vec and through the Go loops otherwise, and reports which
+// ran. F hands out c.ks in turn and records its arguments.
+func runDP54(c *dp54KernCase, vec bool) (dp54KernRun, bool) {
 	n := len(c.y)
 	var r dp54KernRun
 	call := 0
@@ -44,20 +44,27 @@ func runDP54(c *dp54KernCase, min int) dp54KernRun {
 		copy(dx, c.ks[call])
 		call++
 	}
+	old := dp54KernMin
+	dp54KernMin = math.MaxInt
+	if vec {
+		dp54KernMin = 1
+	}
+	defer func() { dp54KernMin = old }()
 	sc, err := dopri54{}.newScheme(&Problem{F: f, Y0: c.y}, n)
 	if err != nil {
 		panic(err)
 	}
-	w := sc.(*dp54Work)
-	old := dp54KernMin
-	dp54KernMin = min
-	defer func() { dp54KernMin = old }()
+	w, _ := sc.(*dp54Work)
+	kern := false
+	if v, ok := sc.(*dp54Vec); ok {
+		w, kern = v.dp54Work, true
+	}
 	r.y1 = make([]float64, n)
 	k7 := make([]float64, n)
-	r.sum, _ = w.attemptSq(0.5, c.h, c.y, c.k1, r.y1, k7, c.rtol, c.atol)
+	r.sum, _ = sc.(sqAttempter).attemptSq(0.5, c.h, c.y, c.k1, r.y1, k7, c.rtol, c.atol)
 	r.pw, r.ew = w.pw[:n], w.ew[:n]
 	r.ysti, r.k6 = w.ysti[:n], w.k6[:n]
-	return r
+	return r, kern
 }
 
 // sameFloat reports whether a and b have the same bits, or are both NaN.
@@ -73,9 +80,15 @@ func sameFloat(a, b float64) bool {
 // attemptSq, value by value (exact identity: same operations, same order).
 func checkDP54Kern(t *testing.T, c *dp54KernCase) {
 	t.Helper()
-	goRun := runDP54(c, math.MaxInt)
-	asm := runDP54(c, 1)
 	n := len(c.y)
+	goRun, kern := runDP54(c, false)
+	if kern {
+		t.Fatalf("n=%d: the Go loops were asked for, the kernels ran", n)
+	}
+	asm, kern := runDP54(c, true)
+	if kern != (n > 0) {
+		t.Fatalf("n=%d: the kernels ran: %v, want %v (from n = 1 on)", n, kern, n > 0)
+	}
 	if !sameFloat(goRun.sum, asm.sum) {
 		t.Fatalf("n=%d h=%v: err² %v (%#x) from the kernels, %v (%#x) from the Go loops",
 			n, c.h, asm.sum, math.Float64bits(asm.sum), goRun.sum, math.Float64bits(goRun.sum))
@@ -223,10 +236,10 @@ func TestDP54KernNoAlloc(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	w := sc.(*dp54Work)
-	old := dp54KernMin
-	dp54KernMin = 1
-	defer func() { dp54KernMin = old }()
+	w, ok := sc.(*dp54Vec)
+	if !ok {
+		t.Fatalf("n=%d: DormandPrince54's scheme is %T, want the vector kernels (dp54KernMin = %d)", n, sc, dp54KernMin)
+	}
 	k1, y1, k7 := make([]float64, n), make([]float64, n), make([]float64, n)
 	tol := make([]float64, n)
 	for i := range tol {
@@ -300,25 +313,31 @@ func BenchmarkDP54Kern(b *testing.B) {
 			for i := range y {
 				y[i] = 1 + float64(i)/8
 			}
+			old := dp54KernMin
+			dp54KernMin = math.MaxInt
 			sc, err := dopri54{}.newScheme(&Problem{F: f, Y0: y}, n)
+			dp54KernMin = 1
 			if err != nil {
 				b.Fatal(err)
 			}
 			w := sc.(*dp54Work)
+			v := dp54Scheme(w, n).(*dp54Vec)
+			dp54KernMin = old
 			k1, y1, k7 := make([]float64, n), make([]float64, n), make([]float64, n)
 			tol := make([]float64, n)
 			for i := range tol {
 				tol[i] = 1e-9
 			}
 			f(0, y, k1)
-			old := dp54KernMin
-			defer func() { dp54KernMin = old }()
 			const steps = 1000
-			round := func(min int) float64 {
-				dp54KernMin = min
+			round := func(vec bool) float64 {
+				var sq sqAttempter = w
+				if vec {
+					sq = v
+				}
 				t0 := time.Now()
 				for range steps {
-					w.attemptSq(0, 0.01, y, k1, y1, k7, tol, tol)
+					sq.attemptSq(0, 0.01, y, k1, y1, k7, tol, tol)
 				}
 				return float64(time.Since(t0).Nanoseconds()) / steps
 			}
@@ -327,9 +346,9 @@ func BenchmarkDP54Kern(b *testing.B) {
 			for b.Loop() {
 				var g, k float64
 				if i%2 == 0 {
-					g, k = round(math.MaxInt), round(1)
+					g, k = round(false), round(true)
 				} else {
-					k, g = round(1), round(math.MaxInt)
+					k, g = round(true), round(false)
 				}
 				i++
 				tg, tk, ratio = append(tg, g), append(tk, k), append(ratio, k/g)

@@ -2,19 +2,9 @@
 
 package integrate
 
-// On every architecture but amd64 (and with the purego tag) attemptSq runs
-// its Go loops only; dopri54_kern_amd64.go says what the amd64 kernels are.
+// On every architecture but amd64 (and with the purego tag) DormandPrince54
+// runs the Go loops of dp54Work.attemptSq only; dopri54_kern_amd64.go says
+// what the amd64 kernels are.
 
-// dp54KernAsm reports that there are no assembly kernels here.
-const dp54KernAsm = false
-
-// dp54KernMin is unused without the kernels.
-const dp54KernMin = 0
-
-// dp54Kern holds nothing without the kernels.
-type dp54Kern struct{}
-
-// attemptKern is never called: attemptSq calls it only when dp54KernAsm.
-func (w *dp54Work) attemptKern(_, _ float64, _, _, _, _, _, _ []float64) (float64, int) {
-	panic("integrate: no vector kernels on this architecture")
-}
+// dp54Scheme returns w: there are no vector kernels here.
+func dp54Scheme(w *dp54Work, _ int) scheme { return w }
