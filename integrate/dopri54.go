@@ -37,7 +37,7 @@ func (dopri54) newScheme(p *Problem, n int) (scheme, error) {
 	w.k2, w.k3, w.k4, w.k5, w.k6, w.ys, w.ysti = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n],
 		buf[3*n:4*n:4*n], buf[4*n:5*n:5*n], buf[5*n:6*n:6*n], buf[6*n:7*n:7*n]
 	w.pw, w.ew = buf[7*n:8*n:8*n], buf[8*n:9*n:9*n]
-	return w, nil
+	return dp54Scheme(w, n), nil // w, or w with vector kernels (amd64)
 }
 
 // Dormand–Prince 5(4) coefficients (Hairer, Nørsett & Wanner 1993, Table 5.2).

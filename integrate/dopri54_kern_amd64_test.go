@@ -1,0 +1,362 @@
+//go:build amd64 && !purego
+
+package integrate
+
+import (
+	"context"
+	"encoding/binary"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"strconv"
+	"testing"
+	"time"
+)
+
+// dp54KernCase is one trial step's inputs: y, k1, rtol, atol and the six
+// values F returns (k2..k7), each of length n, and h.
+type dp54KernCase struct {
+	h                 float64
+	y, k1, rtol, atol []float64
+	ks                [6][]float64
+}
+
+// dp54KernRun is what one trial step produced: the err² it returned, y1,
+// the six arguments F saw (Y_2..Y_5, the stiffness argument, y1) and the
+// error terms it left in the work space.
+type dp54KernRun struct {
+	sum      float64
+	y1       []float64
+	args     [6][]float64
+	pw, ew   []float64
+	ysti, k6 []float64
+}
+
+// runDP54 takes one trial step of c through attemptSq, with the vector
+// kernels when vec and through the Go loops otherwise, and reports which
+// ran. F hands out c.ks in turn and records its arguments.
+func runDP54(c *dp54KernCase, vec bool) (dp54KernRun, bool) {
+	n := len(c.y)
+	var r dp54KernRun
+	call := 0
+	f := func(_ float64, x, dx []float64) {
+		r.args[call] = append([]float64(nil), x...)
+		copy(dx, c.ks[call])
+		call++
+	}
+	old := dp54KernMin
+	dp54KernMin = math.MaxInt
+	if vec {
+		dp54KernMin = 1
+	}
+	defer func() { dp54KernMin = old }()
+	sc, err := dopri54{}.newScheme(&Problem{F: f, Y0: c.y}, n)
+	if err != nil {
+		panic(err)
+	}
+	w, _ := sc.(*dp54Work)
+	kern := false
+	if v, ok := sc.(*dp54Vec); ok {
+		w, kern = v.dp54Work, true
+	}
+	r.y1 = make([]float64, n)
+	k7 := make([]float64, n)
+	r.sum, _ = sc.(sqAttempter).attemptSq(0.5, c.h, c.y, c.k1, r.y1, k7, c.rtol, c.atol)
+	r.pw, r.ew = w.pw[:n], w.ew[:n]
+	r.ysti, r.k6 = w.ysti[:n], w.k6[:n]
+	return r, kern
+}
+
+// sameFloat reports whether a and b have the same bits, or are both NaN.
+// NaN payloads are not compared: which operand's payload an x86 addition
+// of two NaNs keeps depends on the order of its operands, which the Go
+// compiler chooses freely for a commutative operation (and arm64 keeps
+// other payloads again), so the Go loops themselves do not define them.
+func sameFloat(a, b float64) bool {
+	return math.Float64bits(a) == math.Float64bits(b) || (math.IsNaN(a) && math.IsNaN(b))
+}
+
+// checkDP54Kern compares the vector kernels with the Go loops of
+// attemptSq, value by value (exact identity: same operations, same order).
+func checkDP54Kern(t *testing.T, c *dp54KernCase) {
+	t.Helper()
+	n := len(c.y)
+	goRun, kern := runDP54(c, false)
+	if kern {
+		t.Fatalf("n=%d: the Go loops were asked for, the kernels ran", n)
+	}
+	asm, kern := runDP54(c, true)
+	if kern != (n > 0) {
+		t.Fatalf("n=%d: the kernels ran: %v, want %v (from n = 1 on)", n, kern, n > 0)
+	}
+	if !sameFloat(goRun.sum, asm.sum) {
+		t.Fatalf("n=%d h=%v: err² %v (%#x) from the kernels, %v (%#x) from the Go loops",
+			n, c.h, asm.sum, math.Float64bits(asm.sum), goRun.sum, math.Float64bits(goRun.sum))
+	}
+	cmp := func(what string, got, want []float64) {
+		t.Helper()
+		if len(got) != len(want) {
+			t.Fatalf("n=%d: %s has %d values from the kernels, %d from the Go loops", n, what, len(got), len(want))
+		}
+		for i := range want {
+			if !sameFloat(got[i], want[i]) {
+				t.Fatalf("n=%d h=%v: %s[%d] = %v (%#x) from the kernels, %v (%#x) from the Go loops",
+					n, c.h, what, i, got[i], math.Float64bits(got[i]), want[i], math.Float64bits(want[i]))
+			}
+		}
+	}
+	cmp("y1", asm.y1, goRun.y1)
+	for j, name := range []string{"Y2", "Y3", "Y4", "Y5", "Y6", "F's argument y1"} {
+		cmp(name, asm.args[j], goRun.args[j])
+	}
+	cmp("pw", asm.pw, goRun.pw)
+	cmp("ew", asm.ew, goRun.ew)
+	cmp("ysti", asm.ysti, goRun.ysti)
+	cmp("k6", asm.k6, goRun.k6)
+}
+
+// kernValue draws a value for the kernel tests: mostly everyday sizes,
+// sometimes any bit pattern, and the special values NaN (two payloads),
+// ±Inf, ±0, subnormals and the largest finite values.
+func kernValue(rng *rand.Rand) float64 {
+	switch rng.IntN(16) {
+	case 0:
+		return math.Float64frombits(rng.Uint64())
+	case 1:
+		specials := []float64{math.NaN(), math.Float64frombits(0x7ff0000000000001), math.Float64frombits(0xfff8000000000123),
+			math.Inf(1), math.Inf(-1), 0, math.Copysign(0, -1), math.MaxFloat64, -math.MaxFloat64}
+		return specials[rng.IntN(len(specials))]
+	case 2:
+		return math.Float64frombits(rng.Uint64()&(1<<52-1) | rng.Uint64()&(1<<63)) // subnormal
+	default:
+		return (rng.Float64() - 0.5) * float64(uint64(1)<<rng.IntN(20)) / 1024
+	}
+}
+
+// kernTolerance draws a tolerance: usually positive and small, sometimes
+// any value kernValue gives.
+func kernTolerance(rng *rand.Rand) float64 {
+	if rng.IntN(8) == 0 {
+		return kernValue(rng)
+	}
+	return math.Ldexp(1, -rng.IntN(40))
+}
+
+// TestDP54KernBits runs the assembly kernels and the Go loops of attemptSq
+// on the same random inputs, every length from 0 to 40 (pairs and an odd
+// last component), special values included, and requires the same bits in
+// every output (exact identity).
+func TestDP54KernBits(t *testing.T) {
+	rng := rand.New(rand.NewPCG(54, 2))
+	for n := 0; n <= 40; n++ {
+		for trial := range 40 {
+			c := &dp54KernCase{h: math.Ldexp(rng.Float64()-0.5, -rng.IntN(12))}
+			if trial%10 == 9 {
+				c.h = kernValue(rng)
+			}
+			draw := func(tol bool) []float64 {
+				v := make([]float64, n)
+				for i := range v {
+					if tol {
+						v[i] = kernTolerance(rng)
+					} else {
+						v[i] = kernValue(rng)
+					}
+				}
+				return v
+			}
+			c.y, c.k1, c.rtol, c.atol = draw(false), draw(false), draw(true), draw(true)
+			for j := range c.ks {
+				c.ks[j] = draw(false)
+			}
+			checkDP54Kern(t, c)
+		}
+	}
+}
+
+// TestDP54KernSolve solves Lorenz-96 (Lorenz 1996, forcing F = 8) in 13
+// and 16 dimensions (an odd last component and none) to t = 20 at
+// rtol = atol = 1e-9, with and without the kernels, keeping every step,
+// and requires the same steps and the same bits in every stored state
+// (exact identity: the kernels repeat the Go loops' operations).
+func TestDP54KernSolve(t *testing.T) {
+	const forcing = 8.0 // Lorenz (1996)
+	for _, n := range []int{13, 16} {
+		f := func(_ float64, x, dx []float64) {
+			m := len(x)
+			for i := range x {
+				dx[i] = float64((x[(i+1)%m]-x[(i+m-2)%m])*x[(i+m-1)%m]) - x[i] + forcing
+			}
+		}
+		y0 := make([]float64, n)
+		for i := range y0 {
+			y0[i] = forcing
+		}
+		y0[0] += 0.01
+		solve := func(min int) *Solution {
+			old := dp54KernMin
+			dp54KernMin = min
+			defer func() { dp54KernMin = old }()
+			sol, err := Solve(context.Background(), Problem{F: f, Y0: y0}, 20, DormandPrince54, &Settings{RelTol: 1e-9, AbsTol: 1e-9})
+			if err != nil {
+				t.Fatal(err)
+			}
+			return sol
+		}
+		goSol, kern := solve(math.MaxInt), solve(1)
+		if goSol.Stats != kern.Stats {
+			t.Fatalf("n=%d: %+v through the kernels, %+v through the Go loops", n, kern.Stats, goSol.Stats)
+		}
+		if len(kern.Y) != len(goSol.Y) || len(goSol.Y) != n*len(goSol.T) {
+			t.Fatalf("n=%d: %d stored values through the kernels, %d through the Go loops", n, len(kern.Y), len(goSol.Y))
+		}
+		for i := range goSol.Y {
+			if math.Float64bits(kern.Y[i]) != math.Float64bits(goSol.Y[i]) {
+				t.Fatalf("n=%d: step %d (t=%v) component %d: %v through the kernels, %v through the Go loops",
+					n, i/n, goSol.T[i/n], i%n, kern.Y[i], goSol.Y[i])
+			}
+		}
+	}
+}
+
+// TestDP54KernNoAlloc checks that a trial step through the kernels does
+// not allocate (the kernel arguments stay on the stack).
+func TestDP54KernNoAlloc(t *testing.T) {
+	const n = 13 // a Lorenz spectrum's size: 3 + 9 + 1
+	f := func(_ float64, x, dx []float64) {
+		for i := range dx {
+			dx[i] = float64(0.5 * x[i])
+		}
+	}
+	y := make([]float64, n)
+	for i := range y {
+		y[i] = float64(i + 1)
+	}
+	sc, err := dopri54{}.newScheme(&Problem{F: f, Y0: y}, n)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w, ok := sc.(*dp54Vec)
+	if !ok {
+		t.Fatalf("n=%d: DormandPrince54's scheme is %T, want the vector kernels (dp54KernMin = %d)", n, sc, dp54KernMin)
+	}
+	k1, y1, k7 := make([]float64, n), make([]float64, n), make([]float64, n)
+	tol := make([]float64, n)
+	for i := range tol {
+		tol[i] = 1e-9
+	}
+	f(0, y, k1)
+	if a := testing.AllocsPerRun(100, func() { w.attemptSq(0, 0.01, y, k1, y1, k7, tol, tol) }); a != 0 {
+		t.Fatalf("attemptSq through the kernels allocates %v times per step, want 0", a)
+	}
+}
+
+// FuzzDP54KernBits is TestDP54KernBits on inputs the fuzzer builds: the
+// bytes are read as float64 bit patterns (h first, then 10n values), so
+// every NaN, infinity and subnormal can turn up.
+func FuzzDP54KernBits(f *testing.F) {
+	seed := func(vals ...float64) []byte {
+		b := make([]byte, 8*len(vals))
+		for i, v := range vals {
+			binary.LittleEndian.PutUint64(b[8*i:], math.Float64bits(v))
+		}
+		return b
+	}
+	nan, inf, sub, negz := math.NaN(), math.Inf(1), math.SmallestNonzeroFloat64, math.Copysign(0, -1)
+	f.Add(seed(0.01, 1, 2, 3, 1e-9, 1e-9, 1e-9, 1e-9, 1e-9, 1e-9, 4, 5, 6, 7, 8, 9, 1, 2, 3, 4, 5, 6, 7, 8, 9, 1, 2, 3, 4, 5, 6))
+	f.Add(seed(0.1, nan, 1, -inf, 2, 1e-6, 1e-6, 1e-6, 1e-6, 1, 2, inf, 3, 4, nan, 5, 6, 7, 8, 9, negz, 1, 2))
+	f.Add(seed(-0.25, sub, negz, 0, sub, -sub, 1e-300, 1, 1, 1, 1, 1, 1, sub, sub, 0, 0, negz, negz, 1e308, -1e308, 3, 3))
+	f.Add(seed(1e-3, 1, 2, 3, 4, 5, 1, 2, 3, 4, 5, 1e-9, 0, -1e-9, nan, inf, 0, 0, 0, 0, 0,
+		1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 18, 19, 20, 21, 22, 23, 24, 25, 26, 27, 28, 29, 30))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		vals := make([]float64, len(data)/8)
+		for i := range vals {
+			vals[i] = math.Float64frombits(binary.LittleEndian.Uint64(data[8*i:]))
+		}
+		if len(vals) == 0 {
+			return
+		}
+		n := (len(vals) - 1) / 10
+		if n > 64 {
+			n = 64
+		}
+		c := &dp54KernCase{h: vals[0]}
+		next := vals[1:]
+		take := func() []float64 {
+			v := next[:n:n]
+			next = next[n:]
+			return v
+		}
+		c.y, c.k1, c.rtol, c.atol = take(), take(), take(), take()
+		for j := range c.ks {
+			c.ks[j] = take()
+		}
+		checkDP54Kern(t, c)
+	})
+}
+
+// BenchmarkDP54Kern times one trial step of attemptSq (six evaluations of a
+// cheap linear field, dx_i = -x_i/(i+1)) through the Go loops and through
+// the vector kernels, interleaved within every iteration (1000 steps of
+// each), for several dimensions. Metrics: go-ns/step and kern-ns/step
+// (fastest round) and kern/go (median of the per-round ratios); the
+// dimension from which kern/go stays below 1 sets dp54KernMin.
+func BenchmarkDP54Kern(b *testing.B) {
+	for _, n := range []int{2, 3, 4, 5, 6, 8, 10, 13, 20, 40} {
+		b.Run("n="+strconv.Itoa(n), func(b *testing.B) {
+			f := func(_ float64, x, dx []float64) {
+				for i := range dx {
+					dx[i] = -x[i] / float64(i+1)
+				}
+			}
+			y := make([]float64, n)
+			for i := range y {
+				y[i] = 1 + float64(i)/8
+			}
+			old := dp54KernMin
+			dp54KernMin = math.MaxInt
+			sc, err := dopri54{}.newScheme(&Problem{F: f, Y0: y}, n)
+			dp54KernMin = 1
+			if err != nil {
+				b.Fatal(err)
+			}
+			w := sc.(*dp54Work)
+			v := dp54Scheme(w, n).(*dp54Vec)
+			dp54KernMin = old
+			k1, y1, k7 := make([]float64, n), make([]float64, n), make([]float64, n)
+			tol := make([]float64, n)
+			for i := range tol {
+				tol[i] = 1e-9
+			}
+			f(0, y, k1)
+			const steps = 1000
+			round := func(vec bool) float64 {
+				var sq sqAttempter = w
+				if vec {
+					sq = v
+				}
+				t0 := time.Now()
+				for range steps {
+					sq.attemptSq(0, 0.01, y, k1, y1, k7, tol, tol)
+				}
+				return float64(time.Since(t0).Nanoseconds()) / steps
+			}
+			var tg, tk, ratio []float64
+			i := 0
+			for b.Loop() {
+				var g, k float64
+				if i%2 == 0 {
+					g, k = round(false), round(true)
+				} else {
+					k, g = round(true), round(false)
+				}
+				i++
+				tg, tk, ratio = append(tg, g), append(tk, k), append(ratio, k/g)
+			}
+			slices.Sort(ratio)
+			b.ReportMetric(slices.Min(tg), "go-ns/step")
+			b.ReportMetric(slices.Min(tk), "kern-ns/step")
+			b.ReportMetric(ratio[len(ratio)/2], "kern/go")
+		})
+	}
+}
