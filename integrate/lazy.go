@@ -61,12 +61,16 @@ type lazyDense struct {
 // step sizes and let At rebuild the steps: the two Dormand–Prince pairs,
 // whose attempt depends on nothing but (t, y, F(t, y), h).
 func lazyScheme(sc scheme) bool {
-	switch sc.(type) {
-	case *dp54Work, *dp853Work:
-		return true
-	}
-	return false
+	_, ok := sc.(rebuildable)
+	return ok
 }
+
+// rebuildable marks the schemes lazyScheme accepts (and those that embed
+// one, such as the amd64 form of DormandPrince54's step).
+type rebuildable interface{ rebuildable() }
+
+func (*dp54Work) rebuildable()  {}
+func (*dp853Work) rebuildable() {}
 
 // lazySlot is one built step: its continuous extension as dense writes
 // it (r1..r8).

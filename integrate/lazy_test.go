@@ -58,6 +58,17 @@ func eagerLazyPair(t *testing.T, m Method, p Problem, t1 float64, s Settings) (l
 	return lazy, eager
 }
 
+// lorenz96 is Lorenz-96 with forcing f (Lorenz 1996): dx_i = (x_(i+1) -
+// x_(i-2))·x_(i-1) - x_i + f, cyclic.
+func lorenz96(f float64) Func {
+	return func(_ float64, x, dx []float64) {
+		m := len(x)
+		for i := range x {
+			dx[i] = float64((x[(i+1)%m]-x[(i+m-2)%m])*x[(i+m-1)%m]) - x[i] + f
+		}
+	}
+}
+
 // probeTimes returns, for every kept step, its start and three interior
 // times, then End: increasing in the direction of time.
 func probeTimes(sol *Solution) []float64 {
@@ -97,6 +108,8 @@ func TestLazyAtBits(t *testing.T) {
 		{name: "forced backward", p: Problem{F: forcedOscillator(), T0: 3, Y0: []float64{1, -0.2}}, t1: -10.1, tol: 1e-8, atLeast: 50},
 		{name: "one step", p: Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, t1: 1e-3, tol: 1e-6, atLeast: 1},
 		{name: "lorenz long", p: Problem{F: lorenzField(), Y0: []float64{1, 1, 1}}, t1: 450, tol: 1e-10, atLeast: 17000},
+		// 10 components: on amd64, DormandPrince54 takes its vector step.
+		{name: "lorenz-96", p: Problem{F: lorenz96(8), Y0: []float64{8.01, 8, 8, 8, 8, 8, 8, 8, 8, 8}}, t1: 10, tol: 1e-9, atLeast: 200},
 	}
 	for _, lm := range lazyMethods {
 		for _, c := range cases {
