@@ -17,9 +17,10 @@ import (
 var cyclesCmd = &command{
 	name:    "cycles",
 	summary: "every cycle of a period of a map, with its multipliers and stability",
-	doc: `Find every cycle of least period --period of a map whose points lie in
-the box (--box x=0:1, one per state; by default the range an orbit from the
-start visits, widened by a tenth). A one-dimensional map is searched by
+	doc: `Find every cycle of least period --period of a map whose points lie in the
+box (--box x=0:1, one per state; by default the range an orbit from the
+start visits, widened by a tenth, which holds the attractor but may leave
+out repelling cycles off it). A one-dimensional map is searched by
 bracketing f^p(x) - x on a partition of --cells cells refined until f^p is
 resolved, so that no crossing is missed except a cycle that only touches
 the diagonal (at the parameter of its birth); a map of higher dimension by
@@ -323,6 +324,11 @@ func cyclesTable(w io.Writer, sys *plumb.System, out cyclesJSON) error {
 		box = append(box, fmt.Sprintf("%s in [%s, %s]", s, tableFloat(out.Settings.Low[i]), tableFloat(out.Settings.High[i])))
 	}
 	fmt.Fprintf(tw, "searched\t%s (%s)\n", strings.Join(box, ", "), out.Settings.BoxFrom)
+	if out.Settings.BoxFrom != "--box" {
+		// The orbit's range holds the attractor; a repelling cycle (the
+		// logistic map's x = 0, say) may lie outside it.
+		fmt.Fprintf(tw, "\tcycles outside this range, repelling ones typically, were not searched: give --box to widen it\n")
+	}
 	fmt.Fprintf(tw, "status\t%s, %s of least period %d\n", out.Status, count(len(out.Cycles), "cycle"), out.Settings.Period)
 	return tw.Flush()
 }

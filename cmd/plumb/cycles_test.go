@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"sort"
 	"strings"
 	"testing"
 
@@ -94,4 +95,30 @@ func TestCyclesBadInput(t *testing.T) {
 			}
 		})
 	}
+}
+
+// TestCyclesDefaultBoxNote: the default box is the orbit's range, which at
+// r = 3.7 leaves out the logistic map's repelling fixed point x = 0 (exact:
+// f(0) = 0 for every r); the table says so and names --box, and with
+// --box x=0:1 both fixed points, 0 and 1 - 1/r (exact), are found.
+func TestCyclesDefaultBoxNote(t *testing.T) {
+	const pointTol = 1e-9 // polished fixed points, common practice
+	r := plumbRun(t, "cycles", "--set", "r=3.7", "--quiet")
+	require.Equal(t, exitOK, r.code, r.stderr)
+	assert.Contains(t, r.stdout, "were not searched: give --box to widen it")
+	assert.Contains(t, r.stdout, "1 cycle of least period 1")
+	r = plumbRun(t, "cycles", "--set", "r=3.7", "--box", "x=0:1", "--format", "json", "--quiet")
+	require.Equal(t, exitOK, r.code, r.stderr)
+	var out cyclesJSON
+	require.NoError(t, json.Unmarshal([]byte(r.stdout), &out))
+	require.Len(t, out.Cycles, 2)
+	var xs []float64
+	for _, c := range out.Cycles {
+		xs = append(xs, c.Points[0][0])
+	}
+	sort.Float64s(xs)
+	assert.InDeltaf(t, 0, xs[0], pointTol, "f(0) = 0 (exact identity)")
+	assert.InDeltaf(t, 1-1/3.7, xs[1], pointTol, "x* = 1 - 1/r (exact identity)")
+	r = plumbRun(t, "cycles", "--set", "r=3.7", "--box", "x=0:1", "--quiet")
+	assert.NotContains(t, r.stdout, "were not searched")
 }
