@@ -48,7 +48,6 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 	if cd, ok := st.sc.(compactDense); ok {
 		sol.cd = cd
 		sol.coef = newChunks(cd.compactSize(n))
-		sol.d0 = append([]float64(nil), st.f0...)
 	}
 	defer sol.seal()
 	var cf *crossFinder
@@ -118,6 +117,9 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 		// Nothing needs the dense output during the solve: keep the
 		// step sizes, and let At take a step again when asked.
 		sol.lazy = newLazyDense(st)
+	} else if sol.cd != nil && keep {
+		// The compact records: the first step's start derivative.
+		sol.d0 = append([]float64(nil), st.f0...)
 	}
 	if each != nil {
 		ebuf = make([]float64, n)
