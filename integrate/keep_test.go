@@ -11,8 +11,8 @@ import (
 // TestKeptStepsAreStepperDense: a Solution's At inside every kept step
 // returns the bits of Stepper.Dense on the same step (exact identity: the
 // solution keeps the compact part of the same continuous extension, or
-// for DormandPrince853 without a grid takes the step again and builds it,
-// by the same operations), over enough steps to fill several storage
+// without a grid takes the step again and builds it, by the same
+// operations), over enough steps to fill several storage
 // blocks, for DormandPrince54 and DormandPrince853. With a sampling grid
 // (every 0.05), the records of steps with samples are cut from the full
 // extension the samples needed, the others formed directly: both must

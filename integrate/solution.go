@@ -279,22 +279,22 @@ func (s *Solution) State(i int, dst []float64) []float64 {
 //
 // For DormandPrince54 and DormandPrince853, when the solve kept its steps
 // and needed no dense output while it ran (no Settings.Every, Times or
-// Crossings), the solve keeps only each step's size, and At rebuilds a
-// step when first asked: it takes the step again from its start and
-// builds the continuous extension, 7 (DormandPrince54) or 16 evaluations
-// of the problem's field after Solve has returned, with the same bits as a solve that built it while it ran; the
-// two steps used last are kept. The field must stay valid and compute
-// what it computed during the solve (it must not depend on state changed
-// since): At checks that the step taken again ends on the stored state,
-// bit for bit, and otherwise returns nil (AtErr: ErrFieldChanged); a
-// caller who changes the field after the solve (one closure whose
-// parameters the next solve reuses) samples with Settings.Every or Times
-// instead, which builds the extension while the solve runs. At
-// calls the field under a lock, never concurrently for one Solution; a
-// field the caller supplied (not made by Forkable) that other running
-// code also calls must be safe for concurrent use. AtEvaluations counts
-// these calls. A panic of the field there is recovered: At returns nil,
-// and AtErr returns it as a *CallbackError.
+// Crossings), the solve keeps only each step's size, and At rebuilds a step
+// when first asked: it takes the step again from its start and builds the
+// continuous extension, 7 (DormandPrince54) or 16 evaluations of the
+// problem's field after Solve has returned, with the same bits as a solve
+// that built it while it ran; the two steps used last are kept. The field
+// must stay valid and compute what it computed during the solve (it must not
+// depend on state changed since): At checks that the step taken again ends
+// on the stored state, bit for bit, and otherwise returns nil (AtErr:
+// ErrFieldChanged); a caller who changes the field after the solve (one
+// closure whose parameters the next solve reuses) samples with
+// Settings.Every or Times instead, which builds the extension while the
+// solve runs. At calls the field under a lock, never concurrently for one
+// Solution; a field the caller supplied (not made by Forkable) that other
+// running code also calls must be safe for concurrent use. AtEvaluations
+// counts these calls. A panic of the field there is recovered: At returns
+// nil, and AtErr returns it as a *CallbackError.
 //
 // Special cases:
 //
