@@ -182,12 +182,7 @@ func TestDP54KernBits(t *testing.T) {
 func TestDP54KernSolve(t *testing.T) {
 	const forcing = 8.0 // Lorenz (1996)
 	for _, n := range []int{13, 16} {
-		f := func(_ float64, x, dx []float64) {
-			m := len(x)
-			for i := range x {
-				dx[i] = float64((x[(i+1)%m]-x[(i+m-2)%m])*x[(i+m-1)%m]) - x[i] + forcing
-			}
-		}
+		f := lorenz96(forcing)
 		y0 := make([]float64, n)
 		for i := range y0 {
 			y0[i] = forcing
