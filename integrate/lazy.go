@@ -40,7 +40,7 @@ import (
 // used last, so that a sweep of At over increasing t builds each step
 // once.
 type lazyDense struct {
-	h          chunks // per step: the method's step size
+	h          []float64 // per step: the method's step size (set when the solve ends)
 	rtol, atol []float64
 
 	mu    sync.Mutex
@@ -84,17 +84,13 @@ type lazySlot struct {
 // tolerances are not modified afterwards).
 func newLazyDense(st *Stepper) *lazyDense {
 	n, m := st.n, st.sc.denseSize()
-	l := &lazyDense{h: newChunks(1), rtol: st.cfg.rtol, atol: st.cfg.atol, sc: st.sc, sq: st.sq, f: st.p.F, fsal: st.fsal}
+	l := &lazyDense{rtol: st.cfg.rtol, atol: st.cfg.atol, sc: st.sc, sq: st.sq, f: st.p.F, fsal: st.fsal}
 	buf := make([]float64, (3+2*m)*n)
 	l.k1, l.kEnd, l.y1 = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n]
 	l.slots[0] = lazySlot{step: -1, coef: buf[3*n : (3+m)*n : (3+m)*n]}
 	l.slots[1] = lazySlot{step: -1, coef: buf[(3+m)*n : (3+2*m)*n : (3+2*m)*n]}
 	return l
 }
-
-// store keeps the size h of the step just accepted (the method's h, before
-// t+h was rounded or replaced by t1).
-func (l *lazyDense) store(h float64) { l.h.next()[0] = h }
 
 // interp writes the extension of step k (from T[k], y0 to T[k+1], y1) at
 // theta into dst and returns dst, or nil when the step could not be
@@ -131,7 +127,7 @@ func (l *lazyDense) slot(k int, t0 float64, y0, y1 []float64) (s *lazySlot) {
 			s = nil
 		}
 	}()
-	h := l.h.at(k)[0]
+	h := l.h[k]
 	// The calls and arguments of the stepper: Stepper.nextAdaptive, then
 	// Stepper.prepareDense.
 	l.f(t0, y0, l.k1)

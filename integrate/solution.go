@@ -73,8 +73,11 @@ type Solution struct {
 	d0   []float64    // with cd: F at T0, the start derivative of the first step
 	coef chunks       // dense output per step (full, or compact when cd != nil)
 	lazy *lazyDense   // the step sizes, when no dense output was needed during the solve
-	// During a solve the times and states go to chunks (no copying as the
-	// solution grows); seal copies them into T and Y once at the end.
+	// During a solve each kept step goes to two staging stores: its
+	// time (and, for a lazy solution, the size of the step that ended
+	// there) to tBuf, its state to yBuf; a slot each per step, no copying
+	// as the solution grows. seal copies them into T, Y (and lazy's step
+	// sizes) once at the end.
 	tBuf, yBuf chunks
 }
 
@@ -189,14 +192,23 @@ func newChunks(per int) chunks {
 // next returns the slot of one more record (len per), to be filled by
 // the caller.
 func (c *chunks) next() []float64 {
-	l, e := c.used, c.used+c.per
-	if e > len(c.cur) {
+	if c.used+c.per > len(c.cur) {
 		c.grow1()
-		l, e = 0, c.per
 	}
-	c.used = e
-	return c.cur[l:e:e]
+	return c.take()
 }
+
+// take is next when the current block has room (c.room()): short
+// enough to be inlined, for the callers that store a record at every
+// step.
+func (c *chunks) take() []float64 {
+	l := c.used
+	c.used += c.per
+	return c.cur[l:c.used:c.used]
+}
+
+// room reports whether the current block has room for one more record.
+func (c *chunks) room() bool { return c.used+c.per <= len(c.cur) }
 
 // grow1 starts the next block (the rare case, out of next's way).
 func (c *chunks) grow1() {
@@ -240,22 +252,48 @@ func (c *chunks) len() int {
 	return c.full + c.used/c.per
 }
 
-// flat returns all records in one slice of exactly the right length.
-func (c *chunks) flat() []float64 {
-	out := make([]float64, 0, c.len()*c.per)
-	for _, b := range c.b[:max(len(c.b)-1, 0)] {
-		out = append(out, b...)
-	}
-	return append(out, c.cur[:c.used]...)
-}
-
-// seal moves the stored steps into T and Y.
+// seal moves the staged steps into T and Y, and for a lazy solution the
+// step sizes into lazy.h (time record k+1 holds the size of step k;
+// record 0's slot is unused), then gives the staging blocks back.
 func (s *Solution) seal() {
-	if s.tBuf.len() > 0 {
-		s.T, s.Y = s.tBuf.flat(), s.yBuf.flat()
-		s.tBuf.release()
-		s.yBuf.release()
+	m := s.tBuf.len()
+	if m == 0 {
+		return
 	}
+	T, Y := make([]float64, m), make([]float64, 0, m*s.Dim)
+	for j, b := range s.yBuf.b {
+		if j == len(s.yBuf.b)-1 {
+			b = b[:s.yBuf.used]
+		}
+		Y = append(Y, b...)
+	}
+	var H []float64
+	if s.lazy != nil {
+		H = make([]float64, m-1)
+	}
+	k := 0
+	for j, b := range s.tBuf.b {
+		if j == len(s.tBuf.b)-1 {
+			b = b[:s.tBuf.used]
+		}
+		if H == nil {
+			k += copy(T[k:], b)
+			continue
+		}
+		for ; len(b) >= 2; b = b[2:] {
+			T[k] = b[0]
+			if k > 0 {
+				H[k-1] = b[1]
+			}
+			k++
+		}
+	}
+	s.T, s.Y = T, Y
+	if s.lazy != nil {
+		s.lazy.h = H
+	}
+	s.tBuf.release()
+	s.yBuf.release()
 }
 
 // State returns the state at T[i] in dst (grown if short).

@@ -42,9 +42,7 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 	c := st.cfg
 	n := st.n
 	sol := &Solution{Method: m.Name(), Dim: n, T0: p.T0, End: p.T0, sc: st.sc,
-		coef: newChunks(st.sc.denseSize() * n), tBuf: newChunks(1), yBuf: newChunks(n)}
-	sol.tBuf.pool()
-	sol.yBuf.pool()
+		coef: newChunks(st.sc.denseSize() * n)}
 	if cd, ok := st.sc.(compactDense); ok {
 		sol.cd = cd
 		sol.coef = newChunks(cd.compactSize(n))
@@ -74,11 +72,6 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 		}
 	}()
 	keep := !c.drop && each == nil
-	var tbv [1]float64
-	if keep {
-		sol.tBuf.add([]float64{p.T0})
-		sol.yBuf.add(p.Y0)
-	}
 	if len(c.crossings) > 0 {
 		cf = newCrossFinder(c.crossings, p.T0, p.Y0)
 		if cf.err != nil {
@@ -120,6 +113,17 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 	} else if sol.cd != nil && keep {
 		// The compact records: the first step's start derivative.
 		sol.d0 = append([]float64(nil), st.f0...)
+	}
+	if keep {
+		per := 1
+		if sol.lazy != nil {
+			per = 2
+		}
+		sol.tBuf, sol.yBuf = newChunks(per), newChunks(n)
+		sol.tBuf.pool()
+		sol.yBuf.pool()
+		sol.tBuf.next()[0] = p.T0
+		copy(sol.yBuf.next(), p.Y0)
 	}
 	if each != nil {
 		ebuf = make([]float64, n)
@@ -220,7 +224,7 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 		if keep {
 			switch {
 			case sol.lazy != nil:
-				sol.lazy.store(st.hLast)
+				// Nothing to build: the step's size goes into its record.
 			case sol.cd != nil && !st.denseReady:
 				// Only the part the solution keeps, straight into place.
 				st.stats.Evaluations += sol.cd.denseCompact(st, sol.coef.next())
@@ -230,9 +234,25 @@ func solve(ctx context.Context, p Problem, t1 float64, m Method, s *Settings, ea
 				st.prepareDense()
 				sol.coef.add(st.coef)
 			}
-			tbv[0] = tb
-			sol.tBuf.add(tbv[:])
-			sol.yBuf.add(st.y)
+			// The record last, after the dense output that may call F (and
+			// panic): T and Y never hold a step whose extension is missing.
+			// The slots, written out (not a call: this runs at every step).
+			if !sol.tBuf.room() {
+				sol.tBuf.grow1()
+			}
+			if !sol.yBuf.room() {
+				sol.yBuf.grow1()
+			}
+			tr, y := sol.tBuf.take(), sol.yBuf.take()
+			tr[0] = tb
+			if sol.lazy != nil {
+				tr[1] = st.hLast // the method's h, before t+h was rounded or replaced by t1
+			}
+			// A loop, not copy: states are often short, and the
+			// runtime's memmove costs more than the copy itself.
+			for i, x := range st.y[:len(y)] {
+				y[i] = x
+			}
 		}
 		sol.End = end
 		if stop {
