@@ -134,7 +134,7 @@ func (st *Stepper) nextAdaptive() bool {
 			fac = 1
 		}
 		st.sB = sBNext // errold = max(err, 1e-4), as Hairer's FACOLD
-		if st.cfg.stiffEvery >= 0 && !st.stats.Stiff {
+		if st.stiffDue() {
 			st.stiffTest(h)
 		}
 		tNew := st.t + h
