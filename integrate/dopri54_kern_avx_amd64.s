@@ -24,16 +24,18 @@
 	MOVQ BX, R8; \
 	ANDQ $-4, R8
 
-// A vector F has just written with 8-byte stores is read 8 bytes at a
-// time (as LDF2 in the SSE2 kernels), so that each load is forwarded from
-// one store; a 32-byte load across four pending stores waits for all of
-// them to reach the cache.
-#define LDF4(base, y, x) \
-	VMOVSD (base)(CX*8), x; \
-	VMOVHPD 8(base)(CX*8), x, x; \
-	VMOVSD 16(base)(CX*8), X15; \
-	VMOVHPD 24(base)(CX*8), X15, X15; \
-	VINSERTF128 $1, X15, y, y
+// A vector F has just written with 8-byte stores (the newest k of each
+// stage) is read with plain 32-byte loads. The SSE2 kernels read such a
+// vector 8 bytes at a time (LDF2) so that each load is forwarded from one
+// store; the analogue here (two VMOVSD/VMOVHPD pairs and a VINSERTF128)
+// was measured against plain loads on a Zen 3 and was not faster:
+// BenchmarkDP54Kern avx2/sse2 0.85 both ways at n = 13 and 0.80 (split)
+// against 0.77 (plain) at n = 40; a Lorenz spectrum
+// (BenchmarkLorenzSpectrumC/fused, five alternating runs of each build)
+// avx2/sse2 median 0.883 (split) against 0.866 (plain). By the time a
+// kernel reads the vector, the call's return has given F's stores time to
+// reach the cache.
+#define LDF4(base, y, x) VMOVUPD (base)(CX*8), y
 #define LDF1(base, y, x) VMOVSD (base)(CX*8), x
 
 // The coefficient h·a at off(·dp54KernA) into the four lanes of y (x its

@@ -10,6 +10,8 @@ import (
 	"slices"
 	"syscall"
 	"testing"
+
+	"github.com/plumbdyn/plumb/internal/simd"
 )
 
 // BenchmarkLorenz96Spectrum times all 40 exponents of the built-in
@@ -42,6 +44,11 @@ func BenchmarkLorenz96Spectrum(b *testing.B) {
 // Times are CPU times (the machines it runs on are shared). The sub-benchmark
 // jac evaluates the field, the Jacobian and the product apart (a Problem
 // alone); fused passes the model's Tangent3 in Settings (the same bits).
+// On a CPU with AVX2 the Go run takes the AVX2 kernels of the integrator
+// (the default there), and every iteration also runs it with the SSE2
+// kernels (same bits), the three runs in rotated order: sse2-cpu-s,
+// sse2/c and sse2/c-median are those runs' figures, and avx2/sse2 the
+// median of the per-iteration ratios of the two Go runs.
 func BenchmarkLorenzSpectrumC(b *testing.B) {
 	for _, fused := range []bool{false, true} {
 		name := "jac"
@@ -59,15 +66,25 @@ func benchLorenzSpectrumC(b *testing.B, fused bool) {
 		s.Tangent3 = modelTangent3(b, "lorenz", nil)
 	}
 	cprog := os.Getenv("PLUMB_BENETTIN")
-	var tg, tc []float64
-	var st Stats
-	runGo := func() {
+	both := simd.HasAVX2() // time the SSE2 kernels beside the default AVX2 ones
+	var tg, ts, tc []float64
+	var st, sts Stats
+	runGo := func(sse2 bool) {
+		if sse2 {
+			simd.AVX2 = false
+			defer func() { simd.AVX2 = true }()
+		}
 		c0 := cpuSeconds()
 		sp, err := Exponents(context.Background(), p, 3, s)
-		tg = append(tg, cpuSeconds()-c0)
+		c := cpuSeconds() - c0
 		if err != nil {
 			b.Fatal(err)
 		}
+		if sse2 {
+			ts, sts = append(ts, c), sp.Stats
+			return
+		}
+		tg = append(tg, c)
 		st = sp.Stats
 	}
 	runC := func() {
@@ -86,28 +103,42 @@ func benchLorenzSpectrumC(b *testing.B, fused bool) {
 		}
 		tc = append(tc, rec.Sec)
 	}
+	runs := []func(){func() { runGo(false) }, runC}
+	if both {
+		runs = append(runs, func() { runGo(true) })
+	}
 	i := 0
 	for b.Loop() {
-		if i%2 == 0 {
-			runGo()
-			runC()
-		} else {
-			runC()
-			runGo()
+		for j := range runs {
+			runs[(i+j)%len(runs)]()
 		}
 		i++
 	}
+	if both && sts != st {
+		b.Fatalf("the SSE2 kernels took %+v, the AVX2 kernels %+v", sts, st)
+	}
+	median := func(num, den []float64) float64 {
+		r := make([]float64, len(num))
+		for j := range num {
+			r[j] = num[j] / den[j]
+		}
+		slices.Sort(r)
+		return r[len(r)/2]
+	}
 	b.ReportMetric(slices.Min(tg), "go-cpu-s")
 	b.ReportMetric(float64(st.Evaluations), "evals/op")
+	if both {
+		b.ReportMetric(slices.Min(ts), "sse2-cpu-s")
+		b.ReportMetric(median(tg, ts), "avx2/sse2")
+	}
 	if len(tc) > 0 {
-		ratios := make([]float64, len(tg))
-		for j := range tg {
-			ratios[j] = tg[j] / tc[j]
-		}
-		slices.Sort(ratios)
 		b.ReportMetric(slices.Min(tc), "c-cpu-s")
 		b.ReportMetric(slices.Min(tg)/slices.Min(tc), "go/c")
-		b.ReportMetric(ratios[len(ratios)/2], "go/c-median")
+		b.ReportMetric(median(tg, tc), "go/c-median")
+		if both {
+			b.ReportMetric(slices.Min(ts)/slices.Min(tc), "sse2/c")
+			b.ReportMetric(median(ts, tc), "sse2/c-median")
+		}
 	}
 }
 
