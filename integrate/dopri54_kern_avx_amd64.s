@@ -2,8 +2,8 @@
 
 // AVX2 kernels of the Dormand–Prince 5(4) trial step: the SSE2 kernels of
 // dopri54_kern_amd64.s four components per instruction (VEX 256-bit) over
-// the quads, then one component at a time (VEX scalar) for the last one to
-// three. No FMA instruction anywhere: every product is rounded before it is
+// the quads, then for the last one to three components a pair (VEX
+// 128-bit) and a single one (VEX scalar) as needed. No FMA instruction anywhere: every product is rounded before it is
 // added, as in the Go loops of attemptSq, whose operations and grouping
 // these repeat element by element; the error sum is added one term at a
 // time in index order. The products h·a_ij are formed here (VMULSD, as
@@ -17,8 +17,9 @@
 #include "textflag.h"
 #include "go_asm.h"
 
-// Loop skeleton: CX counts from 0 over the quads below R8 = n &^ 3, then
-// one component at a time up to BX = n.
+// Loop skeleton: CX counts from 0 over the quads below R8 = n &^ 3; then
+// (at rest) a pair when two or three components are left, and (at one) a
+// single component when one is.
 #define QUADS \
 	XORQ CX, CX; \
 	MOVQ BX, R8; \
@@ -59,18 +60,22 @@ TEXT ·dp54Stage2AVX(SB), NOSPLIT, $0-8
 	MOVQ dp54Kern_n(AX), BX
 	COEF(0, Y0, X0)
 	QUADS
-	JZ tail
+	JZ rest
 quad:
 	VSTAGE2(VMULPD, VADDPD, VMOVUPD, Y0, Y1)
 	ADDQ $4, CX
 	CMPQ CX, R8
 	JLT quad
-tail:
+rest:
+	LEAQ 2(CX), R8
+	CMPQ R8, BX
+	JGT one
+	VSTAGE2(VMULPD, VADDPD, VMOVUPD, X0, X1)
+	MOVQ R8, CX
+one:
 	CMPQ CX, BX
 	JGE done
 	VSTAGE2(VMULSD, VADDSD, VMOVSD, X0, X1)
-	INCQ CX
-	JMP tail
 done:
 	VZEROUPPER
 	RET
@@ -95,18 +100,22 @@ TEXT ·dp54Stage3AVX(SB), NOSPLIT, $0-8
 	COEF(8, Y0, X0)
 	COEF(16, Y1, X1)
 	QUADS
-	JZ tail
+	JZ rest
 quad:
 	VSTAGE3(VMULPD, VADDPD, VMOVUPD, LDF4, Y0, Y1, Y2, Y3, X3)
 	ADDQ $4, CX
 	CMPQ CX, R8
 	JLT quad
-tail:
+rest:
+	LEAQ 2(CX), R8
+	CMPQ R8, BX
+	JGT one
+	VSTAGE3(VMULPD, VADDPD, VMOVUPD, LDF4, X0, X1, X2, X3, X3)
+	MOVQ R8, CX
+one:
 	CMPQ CX, BX
 	JGE done
 	VSTAGE3(VMULSD, VADDSD, VMOVSD, LDF1, X0, X1, X2, X3, X3)
-	INCQ CX
-	JMP tail
 done:
 	VZEROUPPER
 	RET
@@ -136,18 +145,22 @@ TEXT ·dp54Stage4AVX(SB), NOSPLIT, $0-8
 	COEF(32, Y1, X1)
 	COEF(40, Y2, X2)
 	QUADS
-	JZ tail
+	JZ rest
 quad:
 	VSTAGE4(VMULPD, VADDPD, VMOVUPD, LDF4, Y0, Y1, Y2, Y3, Y4, X4)
 	ADDQ $4, CX
 	CMPQ CX, R8
 	JLT quad
-tail:
+rest:
+	LEAQ 2(CX), R8
+	CMPQ R8, BX
+	JGT one
+	VSTAGE4(VMULPD, VADDPD, VMOVUPD, LDF4, X0, X1, X2, X3, X4, X4)
+	MOVQ R8, CX
+one:
 	CMPQ CX, BX
 	JGE done
 	VSTAGE4(VMULSD, VADDSD, VMOVSD, LDF1, X0, X1, X2, X3, X4, X4)
-	INCQ CX
-	JMP tail
 done:
 	VZEROUPPER
 	RET
@@ -181,18 +194,22 @@ TEXT ·dp54Stage5AVX(SB), NOSPLIT, $0-8
 	COEF(64, Y2, X2)
 	COEF(72, Y3, X3)
 	QUADS
-	JZ tail
+	JZ rest
 quad:
 	VSTAGE5(VMULPD, VADDPD, VMOVUPD, LDF4, Y0, Y1, Y2, Y3, Y4, Y5, X5)
 	ADDQ $4, CX
 	CMPQ CX, R8
 	JLT quad
-tail:
+rest:
+	LEAQ 2(CX), R8
+	CMPQ R8, BX
+	JGT one
+	VSTAGE5(VMULPD, VADDPD, VMOVUPD, LDF4, X0, X1, X2, X3, X4, X5, X5)
+	MOVQ R8, CX
+one:
 	CMPQ CX, BX
 	JGE done
 	VSTAGE5(VMULSD, VADDSD, VMOVSD, LDF1, X0, X1, X2, X3, X4, X5, X5)
-	INCQ CX
-	JMP tail
 done:
 	VZEROUPPER
 	RET
@@ -230,18 +247,22 @@ TEXT ·dp54Stage6AVX(SB), NOSPLIT, $0-8
 	COEF(104, Y3, X3)
 	COEF(112, Y4, X4)
 	QUADS
-	JZ tail
+	JZ rest
 quad:
 	VSTAGE6(VMULPD, VADDPD, VMOVUPD, LDF4, Y0, Y1, Y2, Y3, Y4, Y5, Y6, X6, Y7)
 	ADDQ $4, CX
 	CMPQ CX, R8
 	JLT quad
-tail:
+rest:
+	LEAQ 2(CX), R8
+	CMPQ R8, BX
+	JGT one
+	VSTAGE6(VMULPD, VADDPD, VMOVUPD, LDF4, X0, X1, X2, X3, X4, X5, X6, X6, X7)
+	MOVQ R8, CX
+one:
 	CMPQ CX, BX
 	JGE done
 	VSTAGE6(VMULSD, VADDSD, VMOVSD, LDF1, X0, X1, X2, X3, X4, X5, X6, X6, X7)
-	INCQ CX
-	JMP tail
 done:
 	VZEROUPPER
 	RET
@@ -340,20 +361,25 @@ quad:
 	CMPQ CX, R14
 	JLT quad
 fold:
-	// The four lanes of the sum into X6 (the comment above VSTAGE7 says
-	// why any grouping gives the Go loops' result).
+	// The sum's four lanes into two (X6), then, after a pair, into one
+	// (the comment above VSTAGE7 says why any grouping gives the Go
+	// loops' result). R14: the components left, 0 to 3.
 	VEXTRACTF128 $1, Y6, X7
 	VADDPD X7, X6, X6
-	VPERMILPD $1, X6, X7
-	VADDSD X7, X6, X6
 	MOVQ k+0(FP), R14
 	MOVQ dp54Kern_n(R14), R14
-tail:
-	CMPQ CX, R14
-	JGE done
+	SUBQ CX, R14
+	CMPQ R14, $2
+	JLT one
+	VSTAGE7(VMOVUPD, VADDPD, VSUBPD, VMULPD, VDIVPD, VMAXPD, LDF4, X0, X1, X2, X3, X4, X5, X6, X7, X8, X9, X10, X11, X11, X12, X13, X14)
+	ADDQ $2, CX
+	SUBQ $2, R14
+one:
+	VPERMILPD $1, X6, X7
+	VADDSD X7, X6, X6
+	TESTQ R14, R14
+	JZ done
 	VSTAGE7(VMOVSD, VADDSD, VSUBSD, VMULSD, VDIVSD, VMAXSD, LDF1, X0, X1, X2, X3, X4, X5, X6, X7, X8, X9, X10, X11, X11, X12, X13, X14)
-	INCQ CX
-	JMP tail
 done:
 	VMOVSD X6, ret+8(FP)
 	VZEROUPPER
@@ -377,7 +403,7 @@ TEXT ·dp54ErrSumAVX(SB), NOSPLIT, $0-24
 	MOVQ dp54Kern_n(AX), BX
 	VMOVSD sum+8(FP), X0
 	QUADS
-	JZ tail
+	JZ rest
 quad:
 	VERRSQ(VMULPD, VADDPD, LDF4, Y1, X1)
 	VADDSD X1, X0, X0
@@ -390,13 +416,20 @@ quad:
 	ADDQ $4, CX
 	CMPQ CX, R8
 	JLT quad
-tail:
+rest:
+	LEAQ 2(CX), R8
+	CMPQ R8, BX
+	JGT one
+	VERRSQ(VMULPD, VADDPD, LDF4, X1, X1)
+	VADDSD X1, X0, X0
+	VPERMILPD $1, X1, X2
+	VADDSD X2, X0, X0
+	MOVQ R8, CX
+one:
 	CMPQ CX, BX
 	JGE done
 	VERRSQ(VMULSD, VADDSD, LDF1, X1, X1)
 	VADDSD X1, X0, X0
-	INCQ CX
-	JMP tail
 done:
 	VMOVSD X0, ret+16(FP)
 	VZEROUPPER
