@@ -398,7 +398,7 @@ func BenchmarkDP54Kern(b *testing.B) {
 	} else {
 		b.Log("this CPU has no AVX2: only the Go loops and the SSE2 kernels are timed")
 	}
-	for _, n := range []int{2, 3, 4, 5, 6, 8, 10, 13, 20, 40} {
+	for _, n := range []int{2, 3, 4, 5, 6, 8, 10, 11, 12, 13, 16, 20, 40} {
 		b.Run("n="+strconv.Itoa(n), func(b *testing.B) {
 			f := func(_ float64, x, dx []float64) {
 				for i := range dx {

@@ -12,9 +12,12 @@ import "math"
 // otherwise); TestDP54KernBits and FuzzDP54KernBits check both widths
 // against the Go loops.
 
-// dp54KernMinAVX2 is the smallest dimension that takes the AVX2 kernels
-// (measured with BenchmarkDP54Kern). A variable so that tests can choose
-// either path.
+// dp54KernMinAVX2 is the smallest dimension that takes the AVX2 kernels.
+// Measured with BenchmarkDP54Kern on a Zen 3 (fastest rounds, ns per
+// step, Go loops, SSE2, AVX2): 116, 123, 133 at n = 6; 146, 141, 136 at
+// n = 8; 235, 207, 175 at n = 13; 724, 586, 478 at n = 40. Below 8 the
+// seven calls cost more than the wider arithmetic saves, as for SSE2. A
+// variable so that tests can choose either path.
 var dp54KernMinAVX2 = 8
 
 // The AVX2 kernels: each computes what the SSE2 kernel of the same name

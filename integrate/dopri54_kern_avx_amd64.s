@@ -26,17 +26,25 @@
 	ANDQ $-4, R8
 
 // A vector F has just written with 8-byte stores (the newest k of each
-// stage) is read with plain 32-byte loads. The SSE2 kernels read such a
-// vector 8 bytes at a time (LDF2) so that each load is forwarded from one
-// store; the analogue here (two VMOVSD/VMOVHPD pairs and a VINSERTF128)
-// was measured against plain loads on a Zen 3 and was not faster:
-// BenchmarkDP54Kern avx2/sse2 0.85 both ways at n = 13 and 0.80 (split)
-// against 0.77 (plain) at n = 40; a Lorenz spectrum
-// (BenchmarkLorenzSpectrumC/fused, five alternating runs of each build)
-// avx2/sse2 median 0.883 (split) against 0.866 (plain). By the time a
-// kernel reads the vector, the call's return has given F's stores time to
-// reach the cache.
-#define LDF4(base, y, x) VMOVUPD (base)(CX*8), y
+// stage) is read 8 bytes at a time, as LDF2 in the SSE2 kernels: each load
+// is then forwarded from one store, where a 32-byte load across four
+// pending 8-byte stores waits for all of them to reach the cache. Measured
+// against plain 32-byte loads on a Zen 3 (BenchmarkDP54Kern, fastest
+// round, ns per step, split against plain): 125 against 142 at n = 4, 136
+// against 151 at n = 8, 175 against 179 at n = 13, 198 against 199 at
+// n = 16, 477 against 456 at n = 40. The split loads win where F's stores
+// are still pending (short vectors, a Lorenz spectrum's 13 components) and
+// lose a little on long ones, whose first stores have long reached the
+// cache when the kernel reads them.
+#define LDF4(base, y, x) \
+	VMOVSD (base)(CX*8), x; \
+	VMOVHPD 8(base)(CX*8), x, x; \
+	VMOVSD 16(base)(CX*8), X15; \
+	VMOVHPD 24(base)(CX*8), X15, X15; \
+	VINSERTF128 $1, X15, y, y
+#define LDF2(base, y, x) \
+	VMOVSD (base)(CX*8), x; \
+	VMOVHPD 8(base)(CX*8), x, x
 #define LDF1(base, y, x) VMOVSD (base)(CX*8), x
 
 // The coefficient h·a at off(·dp54KernA) into the four lanes of y (x its
@@ -110,7 +118,7 @@ rest:
 	LEAQ 2(CX), R8
 	CMPQ R8, BX
 	JGT one
-	VSTAGE3(VMULPD, VADDPD, VMOVUPD, LDF4, X0, X1, X2, X3, X3)
+	VSTAGE3(VMULPD, VADDPD, VMOVUPD, LDF2, X0, X1, X2, X3, X3)
 	MOVQ R8, CX
 one:
 	CMPQ CX, BX
@@ -155,7 +163,7 @@ rest:
 	LEAQ 2(CX), R8
 	CMPQ R8, BX
 	JGT one
-	VSTAGE4(VMULPD, VADDPD, VMOVUPD, LDF4, X0, X1, X2, X3, X4, X4)
+	VSTAGE4(VMULPD, VADDPD, VMOVUPD, LDF2, X0, X1, X2, X3, X4, X4)
 	MOVQ R8, CX
 one:
 	CMPQ CX, BX
@@ -204,7 +212,7 @@ rest:
 	LEAQ 2(CX), R8
 	CMPQ R8, BX
 	JGT one
-	VSTAGE5(VMULPD, VADDPD, VMOVUPD, LDF4, X0, X1, X2, X3, X4, X5, X5)
+	VSTAGE5(VMULPD, VADDPD, VMOVUPD, LDF2, X0, X1, X2, X3, X4, X5, X5)
 	MOVQ R8, CX
 one:
 	CMPQ CX, BX
@@ -257,7 +265,7 @@ rest:
 	LEAQ 2(CX), R8
 	CMPQ R8, BX
 	JGT one
-	VSTAGE6(VMULPD, VADDPD, VMOVUPD, LDF4, X0, X1, X2, X3, X4, X5, X6, X6, X7)
+	VSTAGE6(VMULPD, VADDPD, VMOVUPD, LDF2, X0, X1, X2, X3, X4, X5, X6, X6, X7)
 	MOVQ R8, CX
 one:
 	CMPQ CX, BX
@@ -371,7 +379,7 @@ fold:
 	SUBQ CX, R14
 	CMPQ R14, $2
 	JLT one
-	VSTAGE7(VMOVUPD, VADDPD, VSUBPD, VMULPD, VDIVPD, VMAXPD, LDF4, X0, X1, X2, X3, X4, X5, X6, X7, X8, X9, X10, X11, X11, X12, X13, X14)
+	VSTAGE7(VMOVUPD, VADDPD, VSUBPD, VMULPD, VDIVPD, VMAXPD, LDF2, X0, X1, X2, X3, X4, X5, X6, X7, X8, X9, X10, X11, X11, X12, X13, X14)
 	ADDQ $2, CX
 	SUBQ $2, R14
 one:
@@ -420,7 +428,7 @@ rest:
 	LEAQ 2(CX), R8
 	CMPQ R8, BX
 	JGT one
-	VERRSQ(VMULPD, VADDPD, LDF4, X1, X1)
+	VERRSQ(VMULPD, VADDPD, LDF2, X1, X1)
 	VADDSD X1, X0, X0
 	VPERMILPD $1, X1, X2
 	VADDSD X2, X0, X0
