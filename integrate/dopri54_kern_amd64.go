@@ -150,7 +150,27 @@ func (v *dp54Vec) bind(h float64, y, k1, y1, k7, rtol, atol []float64) *dp54Kern
 	k := &v.kern
 	n := k.n
 	y, k1, y1, k7, rtol, atol = y[:n], k1[:n], y1[:n], k7[:n], rtol[:n], atol[:n]
-	k.y, k.k1, k.y1, k.k7, k.rtol, k.atol = &y[0], &k1[0], &y1[0], &k7[0], &rtol[0], &atol[0]
+	// The stepper copies its vectors in place rather than swapping them
+	// (for short ones), so the pointers rarely change: storing only a
+	// changed one skips the write barrier's check.
+	if p := &y[0]; k.y != p {
+		k.y = p
+	}
+	if p := &k1[0]; k.k1 != p {
+		k.k1 = p
+	}
+	if p := &y1[0]; k.y1 != p {
+		k.y1 = p
+	}
+	if p := &k7[0]; k.k7 != p {
+		k.k7 = p
+	}
+	if p := &rtol[0]; k.rtol != p {
+		k.rtol = p
+	}
+	if p := &atol[0]; k.atol != p {
+		k.atol = p
+	}
 	k.h, k.hs = h, float64(h*v.sqrtInvN)
 	return k
 }
