@@ -13,9 +13,10 @@ import (
 // y1 with the error weights, and the error sum, two components per
 // instruction. SSE2 is part of the amd64 baseline (GOAMD64=v1): no FMA, no
 // AVX. Each component goes through the same IEEE operations, in the same
-// order and grouping, as the Go loops of attemptSq, and the two sums
-// (Σ (y1_i - y1_i) and Σ r_i²) are added one term at a time in index order,
-// so the results have the same bits as the Go loops (NaN payloads aside,
+// order and grouping, as the Go loops of attemptSq, and Σ r_i² is added
+// one term at a time in index order (Σ (y1_i - y1_i), whose terms are +0
+// or NaN, lane by lane: the same +0 or NaN in any grouping), so the
+// results have the same bits as the Go loops (NaN payloads aside,
 // which Go itself leaves to the compiler's choice of operands): the Go
 // loops define the bits, and TestDP54KernBits and FuzzDP54KernBits hold the
 // two together. Every other architecture, and builds with the purego tag,
@@ -107,7 +108,7 @@ func dp54Stage5(k *dp54Kern)
 func dp54Stage6(k *dp54Kern)
 
 // y1, pw and ew as in attemptSq's last loop before F(t+h, y1); returns
-// Σ (y1_i - y1_i) summed in index order from 0.
+// Σ (y1_i - y1_i) from 0 (+0, or NaN when a y1_i is infinite or NaN).
 //
 //go:noescape
 func dp54Stage7(k *dp54Kern) float64
