@@ -7,8 +7,11 @@ import (
 	"encoding/binary"
 	"math"
 	"math/rand/v2"
+	"os"
+	"regexp"
 	"slices"
 	"strconv"
+	"strings"
 	"testing"
 	"time"
 
@@ -331,6 +334,31 @@ func TestDP54KernNoAlloc(t *testing.T) {
 				t.Fatalf("attemptSq through the %v kernels allocates %v times per step, want 0", p, a)
 			}
 		})
+	}
+}
+
+// fmaMnemonic matches the start of any x86 fused multiply-add mnemonic.
+var fmaMnemonic = regexp.MustCompile(`(?i)\bVF(N)?M(ADD|SUB)`)
+
+// TestDP54KernNoFMA reads the kernels' assembly and fails on any fused
+// multiply-add mnemonic (VFMADD..., VFMSUB..., VFNMADD..., VFNMSUB...): a
+// fused product is rounded once with its sum, not as the Go loops round
+// it (float64(x*y) + z), and the bits would change with the CPU's width.
+func TestDP54KernNoFMA(t *testing.T) {
+	if fmaMnemonic.FindString("\tVSTAGE3(VFMADD231PD, VADDPD") == "" || fmaMnemonic.FindString("\tVMULPD Y1, Y2, Y3") != "" {
+		t.Fatal("the FMA pattern does not tell a fused mnemonic inside a macro call from a product")
+	}
+	for _, file := range []string{"dopri54_kern_amd64.s", "dopri54_kern_avx_amd64.s"} {
+		src, err := os.ReadFile(file)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i, line := range strings.Split(string(src), "\n") {
+			code, _, _ := strings.Cut(line, "//")
+			if m := fmaMnemonic.FindString(code); m != "" {
+				t.Errorf("%s:%d: %s...: the kernels must not fuse (the Go loops round every product)", file, i+1, m)
+			}
+		}
 	}
 }
 
