@@ -10,6 +10,7 @@ import (
 	"slices"
 	"syscall"
 	"testing"
+	"time"
 
 	"github.com/plumbdyn/plumb/internal/simd"
 )
@@ -33,6 +34,55 @@ func BenchmarkLorenz96Spectrum(b *testing.B) {
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(steps), "ns/step")
 }
 
+// BenchmarkLorenz96SpectrumWidths is BenchmarkLorenz96Spectrum with the
+// integrator's AVX2 and SSE2 kernels (the same bits) alternating within
+// every iteration, their order swapped from one iteration to the next. It
+// reports avx2-ns/step and sse2-ns/step (fastest runs, wall time) and
+// avx2/sse2 (median of the per-iteration ratios), and fails when the two
+// take different steps. It skips, saying so, on a CPU without AVX2.
+func BenchmarkLorenz96SpectrumWidths(b *testing.B) {
+	if !simd.HasAVX2() {
+		b.Skip("this CPU has no AVX2: there is only the SSE2 width to time")
+	}
+	p := modelProblem(b, "lorenz96")
+	s := &Settings{Duration: 30, Transient: 3}
+	var tw [2][]float64 // per step: SSE2, AVX2
+	var stats [2]Stats
+	run := func(avx bool) {
+		simd.AVX2 = avx
+		defer func() { simd.AVX2 = true }()
+		t0 := time.Now()
+		sp, err := Exponents(context.Background(), p, len(p.Y0), s)
+		el := time.Since(t0)
+		if err != nil && sp == nil {
+			b.Fatal(err)
+		}
+		j := 0
+		if avx {
+			j = 1
+		}
+		stats[j] = sp.Stats
+		tw[j] = append(tw[j], float64(el.Nanoseconds())/float64(sp.Stats.Steps))
+	}
+	i := 0
+	for b.Loop() {
+		run(i%2 == 0)
+		run(i%2 != 0)
+		i++
+	}
+	if stats[0] != stats[1] {
+		b.Fatalf("the SSE2 kernels took %+v, the AVX2 kernels %+v", stats[0], stats[1])
+	}
+	r := make([]float64, len(tw[0]))
+	for j := range r {
+		r[j] = tw[1][j] / tw[0][j]
+	}
+	slices.Sort(r)
+	b.ReportMetric(slices.Min(tw[1]), "avx2-ns/step")
+	b.ReportMetric(slices.Min(tw[0]), "sse2-ns/step")
+	b.ReportMetric(r[len(r)/2], "avx2/sse2")
+}
+
 // BenchmarkLorenzSpectrumC times all three Lorenz exponents over t = 1100
 // (transient 100, then 1000 averaged) at rtol = atol = 1e-9, the run of the
 // plain C Benettin loop benettin.c of the peers' harness (DP5(4), the
@@ -48,7 +98,8 @@ func BenchmarkLorenz96Spectrum(b *testing.B) {
 // (the default there), and every iteration also runs it with the SSE2
 // kernels (same bits), the three runs in rotated order: sse2-cpu-s,
 // sse2/c and sse2/c-median are those runs' figures, and avx2/sse2 the
-// median of the per-iteration ratios of the two Go runs.
+// median of the per-iteration ratios of the two Go runs (with -tags
+// purego both take the Go loops, and the ratio is near 1).
 func BenchmarkLorenzSpectrumC(b *testing.B) {
 	for _, fused := range []bool{false, true} {
 		name := "jac"
