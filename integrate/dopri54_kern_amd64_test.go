@@ -206,10 +206,22 @@ func kernPlain(rng *rand.Rand) float64 {
 	return (2*rng.Float64() - 1) * float64(uint64(1)<<rng.IntN(4))
 }
 
+// dp54KernLengths are the lengths the bit tests try: every one from 0 to
+// 40 (whole pairs and quads and every remainder; from 20 on the AVX2
+// kernels read their first quads with plain loads and the last 16 to 19
+// components split, SPLITAT in the .s file), and longer ones.
+func dp54KernLengths() []int {
+	var ns []int
+	for n := 0; n <= 40; n++ {
+		ns = append(ns, n)
+	}
+	return append(ns, 64, 67, 68, 69, 70, 71, 72, 73, 131, 134)
+}
+
 // TestDP54KernBits runs the assembly kernels of both widths (SSE2 and,
 // where the CPU has it, AVX2) and the Go loops of attemptSq on the same
-// random inputs, every length from 0 to 40 (whole pairs and quads and every
-// remainder), and requires the same bits in every output (exact identity).
+// random inputs of the lengths dp54KernLengths, and requires the same bits
+// in every output (exact identity).
 // Of every ten trials three draw everyday values only (so that err² is
 // finite and a term added out of order changes its last bits) and seven
 // mix in NaN, ±Inf, -0, subnormals and arbitrary bit patterns.
@@ -218,7 +230,7 @@ func TestDP54KernBits(t *testing.T) {
 		t.Run(p.String(), func(t *testing.T) {
 			skipWithoutAVX2(t, p)
 			rng := rand.New(rand.NewPCG(54, 2))
-			for n := 0; n <= 40; n++ {
+			for _, n := range dp54KernLengths() {
 				for trial := range 40 {
 					c := &dp54KernCase{h: math.Ldexp(rng.Float64()-0.5, -rng.IntN(12))}
 					if trial%10 == 9 {
@@ -251,9 +263,9 @@ func TestDP54KernBits(t *testing.T) {
 	}
 }
 
-// TestDP54KernSolve solves Lorenz-96 (Lorenz 1996, forcing F = 8) in 13
-// and 16 dimensions (an odd last component and none; for AVX2 one
-// component after the quads and none) to t = 20 at rtol = atol = 1e-9,
+// TestDP54KernSolve solves Lorenz-96 (Lorenz 1996, forcing F = 8) in 13,
+// 16 and 83 dimensions (an odd last component and none; for AVX2 one
+// component after the quads, none, and three after quads read both ways) to t = 20 at rtol = atol = 1e-9,
 // through the Go loops and through each width of kernels, keeping every
 // step, and requires the same steps and the same bits in every stored
 // state (exact identity: the kernels repeat the Go loops' operations).
@@ -270,7 +282,7 @@ func TestDP54KernSolve(t *testing.T) {
 	for _, p := range dp54KernPaths {
 		t.Run(p.String(), func(t *testing.T) {
 			skipWithoutAVX2(t, p)
-			for _, n := range []int{13, 16} {
+			for _, n := range []int{13, 16, 83} {
 				y0 := make([]float64, n)
 				for i := range y0 {
 					y0[i] = forcing
@@ -363,8 +375,8 @@ func TestDP54KernNoFMA(t *testing.T) {
 }
 
 // FuzzDP54KernBits is TestDP54KernBits on inputs the fuzzer builds: the
-// bytes are read as float64 bit patterns (h first, then 10n values), so
-// every NaN, infinity and subnormal can turn up. Each input goes through
+// bytes are read as float64 bit patterns (h first, then 10n values, n up
+// to 160), so every NaN, infinity and subnormal can turn up. Each input goes through
 // the SSE2 kernels, then the AVX2 ones (skipped, saying so, on a CPU
 // without AVX2).
 func FuzzDP54KernBits(f *testing.F) {
@@ -381,6 +393,19 @@ func FuzzDP54KernBits(f *testing.F) {
 	f.Add(seed(-0.25, sub, negz, 0, sub, -sub, 1e-300, 1, 1, 1, 1, 1, 1, sub, sub, 0, 0, negz, negz, 1e308, -1e308, 3, 3))
 	f.Add(seed(1e-3, 1, 2, 3, 4, 5, 1, 2, 3, 4, 5, 1e-9, 0, -1e-9, nan, inf, 0, 0, 0, 0, 0,
 		1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 18, 19, 20, 21, 22, 23, 24, 25, 26, 27, 28, 29, 30))
+	// 71 components: quads read with plain loads, then split ones, then
+	// three left over (the AVX2 kernels' every loop), one of them NaN.
+	const long = 71
+	vals := make([]float64, 1+10*long)
+	vals[0] = 0.02
+	for i := 1; i < len(vals); i++ {
+		vals[i] = float64((i*37)%101)/16 - 3
+		if i > 2*long && i <= 4*long {
+			vals[i] = 1e-8 // rtol and atol
+		}
+	}
+	vals[1+long-2] = nan
+	f.Add(seed(vals...))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		vals := make([]float64, len(data)/8)
 		for i := range vals {
@@ -390,8 +415,8 @@ func FuzzDP54KernBits(f *testing.F) {
 			return
 		}
 		n := (len(vals) - 1) / 10
-		if n > 64 {
-			n = 64
+		if n > 160 {
+			n = 160
 		}
 		c := &dp54KernCase{h: vals[0]}
 		next := vals[1:]

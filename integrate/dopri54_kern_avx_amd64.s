@@ -25,23 +25,35 @@
 	MOVQ BX, R8; \
 	ANDQ $-4, R8
 
+// The quads of a kernel that reads a vector F has just written run in two
+// loops: plain 32-byte loads (LDFP) below R14 = max(n - 16, 0) &^ 3, and
+// split ones (LDF4, see below) for the last 16 to 19 components. BX = n.
+#define SPLITAT \
+	MOVQ BX, R14; \
+	SUBQ $16, R14; \
+	JGE  splitat; \
+	XORQ R14, R14; \
+splitat: \
+	ANDQ $-4, R14
+
 // A vector F has just written with 8-byte stores (the newest k of each
-// stage) is read 8 bytes at a time, as LDF2 in the SSE2 kernels: each load
-// is then forwarded from one store, where a 32-byte load across four
-// pending 8-byte stores waits for all of them to reach the cache. Measured
-// against plain 32-byte loads on a Zen 3 (BenchmarkDP54Kern, fastest
-// round, ns per step, split against plain): 125 against 142 at n = 4, 136
-// against 151 at n = 8, 175 against 179 at n = 13, 198 against 199 at
-// n = 16, 477 against 456 at n = 40. The split loads win where F's stores
-// are still pending (short vectors, a Lorenz spectrum's 13 components) and
-// lose a little on long ones, whose first stores have long reached the
-// cache when the kernel reads them.
+// stage) is read 8 bytes at a time near its end (LDF4, LDF2, as LDF2 in
+// the SSE2 kernels): each load is then forwarded from one store, where a
+// 32-byte load across four 8-byte stores still on their way to the cache
+// waits for all of them. Only F's last stores can still be on their way,
+// so the quads before the last 16 components are read with plain 32-byte
+// loads (LDFP). Measured on a Zen 3 with BenchmarkDP54Kern (fastest
+// round, ns per step; split loads throughout / plain throughout / plain
+// then split for the last 16): n = 8: 135 / 151 / 134; n = 13: 173 / 177
+// / 171; n = 40: 478 / 451 / 455; n = 100: 1190 / 1137 / 1142; n = 1640:
+// 21700 / 20750 / 20500 (the last 32 or 64 split: in between).
 #define LDF4(base, y, x) \
 	VMOVSD (base)(CX*8), x; \
 	VMOVHPD 8(base)(CX*8), x, x; \
 	VMOVSD 16(base)(CX*8), X15; \
 	VMOVHPD 24(base)(CX*8), X15, X15; \
 	VINSERTF128 $1, X15, y, y
+#define LDFP(base, y, x) VMOVUPD (base)(CX*8), y
 #define LDF2(base, y, x) \
 	VMOVSD (base)(CX*8), x; \
 	VMOVHPD 8(base)(CX*8), x, x
@@ -109,6 +121,13 @@ TEXT ·dp54Stage3AVX(SB), NOSPLIT, $0-8
 	COEF(16, Y1, X1)
 	QUADS
 	JZ rest
+	SPLITAT
+plain:
+	CMPQ CX, R14
+	JGE quad
+	VSTAGE3(VMULPD, VADDPD, VMOVUPD, LDFP, Y0, Y1, Y2, Y3, X3)
+	ADDQ $4, CX
+	JMP plain
 quad:
 	VSTAGE3(VMULPD, VADDPD, VMOVUPD, LDF4, Y0, Y1, Y2, Y3, X3)
 	ADDQ $4, CX
@@ -154,6 +173,13 @@ TEXT ·dp54Stage4AVX(SB), NOSPLIT, $0-8
 	COEF(40, Y2, X2)
 	QUADS
 	JZ rest
+	SPLITAT
+plain:
+	CMPQ CX, R14
+	JGE quad
+	VSTAGE4(VMULPD, VADDPD, VMOVUPD, LDFP, Y0, Y1, Y2, Y3, Y4, X4)
+	ADDQ $4, CX
+	JMP plain
 quad:
 	VSTAGE4(VMULPD, VADDPD, VMOVUPD, LDF4, Y0, Y1, Y2, Y3, Y4, X4)
 	ADDQ $4, CX
@@ -203,6 +229,13 @@ TEXT ·dp54Stage5AVX(SB), NOSPLIT, $0-8
 	COEF(72, Y3, X3)
 	QUADS
 	JZ rest
+	SPLITAT
+plain:
+	CMPQ CX, R14
+	JGE quad
+	VSTAGE5(VMULPD, VADDPD, VMOVUPD, LDFP, Y0, Y1, Y2, Y3, Y4, Y5, X5)
+	ADDQ $4, CX
+	JMP plain
 quad:
 	VSTAGE5(VMULPD, VADDPD, VMOVUPD, LDF4, Y0, Y1, Y2, Y3, Y4, Y5, X5)
 	ADDQ $4, CX
@@ -256,6 +289,13 @@ TEXT ·dp54Stage6AVX(SB), NOSPLIT, $0-8
 	COEF(112, Y4, X4)
 	QUADS
 	JZ rest
+	SPLITAT
+plain:
+	CMPQ CX, R14
+	JGE quad
+	VSTAGE6(VMULPD, VADDPD, VMOVUPD, LDFP, Y0, Y1, Y2, Y3, Y4, Y5, Y6, X6, Y7)
+	ADDQ $4, CX
+	JMP plain
 quad:
 	VSTAGE6(VMULPD, VADDPD, VMOVUPD, LDF4, Y0, Y1, Y2, Y3, Y4, Y5, Y6, X6, Y7)
 	ADDQ $4, CX
@@ -347,8 +387,8 @@ TEXT ·dp54Stage7AVX(SB), NOSPLIT, $0-16
 	COEF(152, Y4, X4)
 	VBROADCASTSD dp54Kern_hs(AX), Y5
 	VXORPD Y6, Y6, Y6
-	MOVQ dp54Kern_n(AX), R14
-	ANDQ $-4, R14
+	MOVQ dp54Kern_n(AX), BX
+	SPLITAT
 	MOVQ dp54Kern_y(AX), SI
 	MOVQ dp54Kern_k1(AX), DI
 	MOVQ dp54Kern_k3(AX), R10
@@ -361,8 +401,19 @@ TEXT ·dp54Stage7AVX(SB), NOSPLIT, $0-16
 	MOVQ dp54Kern_ew(AX), R8
 	MOVQ dp54Kern_atol(AX), AX
 	XORQ CX, CX
-	TESTQ R14, R14
-	JZ fold
+plain:
+	CMPQ CX, R14
+	JGE split
+	VSTAGE7(VMOVUPD, VADDPD, VSUBPD, VMULPD, VDIVPD, VMAXPD, LDFP, Y0, Y1, Y2, Y3, Y4, Y5, Y6, Y7, Y8, Y9, Y10, Y11, X11, Y12, Y13, Y14)
+	ADDQ $4, CX
+	JMP plain
+split:
+	// No register is free for both bounds: R14 becomes n &^ 3 now.
+	MOVQ k+0(FP), R14
+	MOVQ dp54Kern_n(R14), R14
+	ANDQ $-4, R14
+	CMPQ CX, R14
+	JGE fold
 quad:
 	VSTAGE7(VMOVUPD, VADDPD, VSUBPD, VMULPD, VDIVPD, VMAXPD, LDF4, Y0, Y1, Y2, Y3, Y4, Y5, Y6, Y7, Y8, Y9, Y10, Y11, X11, Y12, Y13, Y14)
 	ADDQ $4, CX
@@ -400,6 +451,17 @@ done:
 	ADD (SI)(CX*8), a, a; \
 	MUL a, a, a
 
+// X0 += the four lanes of Y1 (r² of four components), one at a time in
+// index order.
+#define ADDLANES \
+	VADDSD X1, X0, X0; \
+	VPERMILPD $1, X1, X2; \
+	VADDSD X2, X0, X0; \
+	VEXTRACTF128 $1, Y1, X2; \
+	VADDSD X2, X0, X0; \
+	VPERMILPD $1, X2, X2; \
+	VADDSD X2, X0, X0
+
 // func dp54ErrSumAVX(k *dp54Kern, sum float64) float64
 // sum + Σ r_i², one term at a time in index order: the four lanes of a quad
 // are taken out in order and added to X0 one by one.
@@ -412,15 +474,17 @@ TEXT ·dp54ErrSumAVX(SB), NOSPLIT, $0-24
 	VMOVSD sum+8(FP), X0
 	QUADS
 	JZ rest
+	SPLITAT
+plain:
+	CMPQ CX, R14
+	JGE quad
+	VERRSQ(VMULPD, VADDPD, LDFP, Y1, X1)
+	ADDLANES
+	ADDQ $4, CX
+	JMP plain
 quad:
 	VERRSQ(VMULPD, VADDPD, LDF4, Y1, X1)
-	VADDSD X1, X0, X0
-	VPERMILPD $1, X1, X2
-	VADDSD X2, X0, X0
-	VEXTRACTF128 $1, Y1, X2
-	VADDSD X2, X0, X0
-	VPERMILPD $1, X2, X2
-	VADDSD X2, X0, X0
+	ADDLANES
 	ADDQ $4, CX
 	CMPQ CX, R8
 	JLT quad
