@@ -3,7 +3,8 @@
 // AVX2 kernels of the Dormand–Prince 5(4) trial step: the SSE2 kernels of
 // dopri54_kern_amd64.s four components per instruction (VEX 256-bit) over
 // the quads, then for the last one to three components a pair (VEX
-// 128-bit) and a single one (VEX scalar) as needed. No FMA instruction anywhere: every product is rounded before it is
+// 128-bit) and a single one (VEX scalar) as needed. No FMA instruction
+// anywhere (TestDP54KernNoFMA): every product is rounded before it is
 // added, as in the Go loops of attemptSq, whose operations and grouping
 // these repeat element by element; the error sum is added one term at a
 // time in index order. The products h·a_ij are formed here (VMULSD, as
