@@ -1,9 +1,10 @@
 module github.com/plumbdyn/plumb
 
-go 1.26
+go 1.26.0
 
 require (
 	github.com/stretchr/testify v1.12.1
+	golang.org/x/sys v0.50.0
 	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/plot v0.17.0
 )

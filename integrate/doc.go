@@ -144,9 +144,10 @@
 //
 // Kernels write products as float64(x*y) so that no architecture fuses them
 // into FMA instructions: the same input gives the same bits on amd64 and arm64.
-// On amd64, DormandPrince54's trial step runs SSE2 assembly from dimension 8
-// on (two components per instruction), with the operations, their grouping
-// and the order of every sum of the Go loops, and so their bits.
+// On amd64, DormandPrince54's trial step runs assembly from dimension 8 on:
+// AVX2 (four components per instruction, never FMA) where the CPU has it,
+// SSE2 (two) otherwise, with the operations, their grouping and the order
+// of the error sum of the Go loops, and so their bits whichever runs.
 //
 // # Notation
 //

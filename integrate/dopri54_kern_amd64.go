@@ -2,16 +2,21 @@
 
 package integrate
 
-import "math"
+import (
+	"math"
+
+	"github.com/plumbdyn/plumb/internal/simd"
+)
 
 // This file and dopri54_kern_amd64.s are the SSE2 form of the element-wise
 // loops of dp54Work.attemptSq: the stage arguments Y_2..Y_6, the new state
 // y1 with the error weights, and the error sum, two components per
 // instruction. SSE2 is part of the amd64 baseline (GOAMD64=v1): no FMA, no
 // AVX. Each component goes through the same IEEE operations, in the same
-// order and grouping, as the Go loops of attemptSq, and the two sums
-// (Σ (y1_i - y1_i) and Σ r_i²) are added one term at a time in index order,
-// so the results have the same bits as the Go loops (NaN payloads aside,
+// order and grouping, as the Go loops of attemptSq, and Σ r_i² is added
+// one term at a time in index order (Σ (y1_i - y1_i), whose terms are +0
+// or NaN, lane by lane: the same +0 or NaN in any grouping), so the
+// results have the same bits as the Go loops (NaN payloads aside,
 // which Go itself leaves to the compiler's choice of operands): the Go
 // loops define the bits, and TestDP54KernBits and FuzzDP54KernBits hold the
 // two together. Every other architecture, and builds with the purego tag,
@@ -26,15 +31,29 @@ var dp54KernMin = 8
 // dp54Scheme returns the scheme DormandPrince54 runs on w: from dimension
 // dp54KernMin on, w with its trial step through the vector kernels. Below,
 // w itself, so that small systems run attemptSq exactly as elsewhere.
+// With simd.AVX2 set the kernels are the AVX2 ones (dp54AVX, from
+// dimension dp54KernMinAVX2 on), otherwise the SSE2 ones.
 func dp54Scheme(w *dp54Work, n int) scheme {
-	if n < dp54KernMin || n < 1 {
+	avx, least := simd.AVX2, dp54KernMin
+	if avx {
+		least = dp54KernMinAVX2
+	}
+	if n < least || n < 1 {
 		return w
 	}
+	var a *dp54AVX
 	v := &dp54Vec{dp54Work: w}
+	if avx {
+		a = &dp54AVX{dp54Vec{dp54Work: w}}
+		v = &a.dp54Vec
+	}
 	k := &v.kern
 	k.k2, k.k3, k.k4, k.k5, k.k6 = &w.k2[0], &w.k3[0], &w.k4[0], &w.k5[0], &w.k6[0]
 	k.ys, k.ysti, k.pw, k.ew = &w.ys[0], &w.ysti[0], &w.pw[0], &w.ew[0]
 	k.n = n
+	if avx {
+		return a
+	}
 	return v
 }
 
@@ -89,7 +108,7 @@ func dp54Stage5(k *dp54Kern)
 func dp54Stage6(k *dp54Kern)
 
 // y1, pw and ew as in attemptSq's last loop before F(t+h, y1); returns
-// Σ (y1_i - y1_i) summed in index order from 0.
+// Σ (y1_i - y1_i) from 0 (+0, or NaN when a y1_i is infinite or NaN).
 //
 //go:noescape
 func dp54Stage7(k *dp54Kern) float64
@@ -107,11 +126,7 @@ func (v *dp54Vec) attempt(t, h float64, y, k1, y1, k7, rtol, atol []float64) (fl
 // attemptSq is dp54Work.attemptSq through the vector kernels: the same
 // trial step, the same evaluations of F, the same bits.
 func (v *dp54Vec) attemptSq(t, h float64, y, k1, y1, k7, rtol, atol []float64) (float64, int) {
-	w, k := v.dp54Work, &v.kern
-	n := k.n
-	y, k1, y1, k7, rtol, atol = y[:n], k1[:n], y1[:n], k7[:n], rtol[:n], atol[:n]
-	k.y, k.k1, k.y1, k.k7, k.rtol, k.atol = &y[0], &k1[0], &y1[0], &k7[0], &rtol[0], &atol[0]
-	k.h, k.hs = h, float64(h*w.sqrtInvN)
+	w, k := v.dp54Work, v.bind(h, y, k1, y1, k7, rtol, atol)
 	ys, ysti := w.ys, w.ysti
 	dp54Stage2(k)
 	w.f(t+float64(dpC2*h), ys, w.k2)
@@ -125,8 +140,40 @@ func (v *dp54Vec) attemptSq(t, h float64, y, k1, y1, k7, rtol, atol []float64) (
 	th := t + h
 	w.f(th, ysti, w.k6)
 	sum := dp54Stage7(k)
-	w.f(th, y1, k7)
+	w.f(th, y1[:k.n], k7[:k.n])
 	return dp54ErrSum(k, sum), 6
+}
+
+// bind points the kernel arguments at the step's vectors (each taken to
+// length n, so that a short one panics here rather than in a kernel) and
+// sets h and h/√n.
+func (v *dp54Vec) bind(h float64, y, k1, y1, k7, rtol, atol []float64) *dp54Kern {
+	k := &v.kern
+	n := k.n
+	y, k1, y1, k7, rtol, atol = y[:n], k1[:n], y1[:n], k7[:n], rtol[:n], atol[:n]
+	// The stepper copies its vectors in place rather than swapping them
+	// (for short ones), so the pointers rarely change: storing only a
+	// changed one skips the write barrier's check.
+	if p := &y[0]; k.y != p {
+		k.y = p
+	}
+	if p := &k1[0]; k.k1 != p {
+		k.k1 = p
+	}
+	if p := &y1[0]; k.y1 != p {
+		k.y1 = p
+	}
+	if p := &k7[0]; k.k7 != p {
+		k.k7 = p
+	}
+	if p := &rtol[0]; k.rtol != p {
+		k.rtol = p
+	}
+	if p := &atol[0]; k.atol != p {
+		k.atol = p
+	}
+	k.h, k.hs = h, float64(h*v.sqrtInvN)
+	return k
 }
 
 // Constants for the assembly: the stage coefficients a_ij (in the order

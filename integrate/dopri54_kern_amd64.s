@@ -240,7 +240,13 @@ done:
 	RET
 
 // The last loop before F(t+h, y1), in two halves around the sum of
-// y1_i - y1_i (which the caller adds lane by lane, in order).
+// y1_i - y1_i. That sum is kept lane by lane (X11) and its two lanes added
+// after the pairs, not term by term in index order as in Go, with the same
+// result: each term is +0 (for finite y1_i, x - x is +0 in
+// round-to-nearest) or NaN (for an infinite or NaN y1_i), never -0 or
+// anything else. A sum of +0 terms from +0 is +0 in any grouping, and a
+// sum with a NaN term is NaN in any grouping, so Go's +0-or-NaN comes out
+// either way (NaN payloads aside, which the Go loops do not define either).
 // SI y, DI k1, R10 k3, R11 k4, R12 k5, R13 k6, DX y1, R9 rtol, AX atol,
 // BX pw, R8 ew; X0..X4 h71, h73, h74, h75, h76; X5 hs; X6..X10 e1, e3, e4,
 // e5, e6; X11 the sum. STAGE7A leaves y1 in X13 and y1 - y1 in X12.
@@ -334,14 +340,17 @@ TEXT ·dp54Stage7(SB), NOSPLIT, $0-16
 	JZ tail
 pair:
 	STAGE7A(MOVUPD, LDF2, ADDPD, SUBPD, MULPD)
-	ADDSD X12, X11
-	UNPCKHPD X12, X12
-	ADDSD X12, X11
+	ADDPD X12, X11
 	STAGE7B(MOVUPD, LDF2, ADDPD, MULPD, DIVPD, MAXPD)
 	ADDQ $2, CX
 	CMPQ CX, R14
 	JLT pair
 tail:
+	// The sum's two lanes into one (the comment above STAGE7A says why
+	// any grouping gives the Go loops' result).
+	MOVAPD X11, X12
+	UNPCKHPD X12, X12
+	ADDSD X12, X11
 	MOVQ k+0(FP), R14
 	CMPQ CX, dp54Kern_n(R14)
 	JGE done
