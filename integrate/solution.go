@@ -269,7 +269,7 @@ func (s *Solution) seal() {
 	}
 	var H []float64
 	if s.lazy != nil {
-		H = make([]float64, m-1)
+		H = make([]float64, m) // H[0], record 0's unused slot, is dropped below
 	}
 	k := 0
 	for j, b := range s.tBuf.b {
@@ -280,17 +280,15 @@ func (s *Solution) seal() {
 			k += copy(T[k:], b)
 			continue
 		}
-		for ; len(b) >= 2; b = b[2:] {
-			T[k] = b[0]
-			if k > 0 {
-				H[k-1] = b[1]
-			}
-			k++
+		t, h := T[k:k+len(b)/2], H[k:k+len(b)/2]
+		for i := range t {
+			t[i], h[i] = b[2*i], b[2*i+1]
 		}
+		k += len(t)
 	}
 	s.T, s.Y = T, Y
 	if s.lazy != nil {
-		s.lazy.h = H
+		s.lazy.h = H[1:]
 	}
 	s.tBuf.release()
 	s.yBuf.release()
