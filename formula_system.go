@@ -95,12 +95,16 @@ func (f *formulaSystem) jacFunc(params []float64) func(float64, []float64, *mat.
 	f.setParams(vars, params)
 	state := vars[1 : 1+f.n]
 	buf := make([]float64, len(f.jacAt))
-	n, at := f.n, f.jacAt
+	sp := newSparseJac(f.n, f.jacAt)
 	return func(t float64, y []float64, dst *mat.Dense) {
 		vars[0] = t
-		copy(state, y)
+		// A loop, not copy: the state is often short, and the runtime's
+		// memmove costs more than the copy itself.
+		for i, x := range y[:min(len(y), len(state))] {
+			state[i] = x
+		}
 		ev.Run(buf)
-		setSparse(dst, n, at, buf)
+		sp.set(dst, buf)
 	}
 }
 

@@ -49,11 +49,11 @@ func (s *System) Map() (*maps.Map, error) {
 			// the formulas' symbolic one is the fallback.
 			jac := fs.jacProg.NewFloat64()
 			fs.setParams(jac.Vars(), s.params)
-			jbuf, at := make([]float64, len(fs.jacAt)), fs.jacAt
+			jbuf, sp := make([]float64, len(fs.jacAt)), newSparseJac(n, fs.jacAt)
 			f.Jacobian = func(x []float64, dst *mat.Dense) {
 				copy(jac.Vars()[1:1+n], x)
 				jac.Run(jbuf)
-				setSparse(dst, n, at, jbuf)
+				sp.set(dst, jbuf)
 			}
 		}
 		ev := fs.fieldProg.NewDD()
