@@ -23,7 +23,8 @@ cd "$(dirname "$0")/.."
 # architecture). The packages: the hash of two Lorenz solves and their
 # crossings (integrate), the elementary functions' bits (internal/detmath),
 # the compiled field's and its fused tape's bits (internal/expr), the sparse
-# tangent product's bits (lyap).
+# tangent product's bits (lyap), the Fourier transform's and the
+# surrogates' bits (embed).
 golden_tests=$(awk '
   /^func Test[A-Za-z0-9_]*\(t \*testing\.T\)/ { match($0, /Test[A-Za-z0-9_]*/); fn = substr($0, RSTART, RLENGTH) }
   /^}/ { fn = "" }
@@ -38,6 +39,7 @@ suites=(
   "./internal/expr TestFusedBits TestFieldFuncBits"
   "./lyap TestMulTangentBits TestFixedSizeBits"
   "./internal/models TestTangent3Bits"
+  "./embed TestSurrogateBits"
 )
 
 exec_flag=()

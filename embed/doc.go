@@ -45,8 +45,9 @@
 // searched exactly (ties broken towards the smaller index), so results do
 // not depend on the tree's random pivots. Sums run in index order and
 // elementary functions come from internal/detmath, so results are
-// bit-identical on every architecture, with one exception: surrogates use
-// gonum's FFT, whose last bits may differ between amd64 and arm64.
+// bit-identical on every architecture, surrogates included: their Fourier
+// transform is the package's own, with every product rounded before it is
+// added.
 //
 // What tells chaos from noise: the 0-1 test gives K near 1 for white
 // noise as well as for chaos; Cao's E2 (near 1 at every dimension for

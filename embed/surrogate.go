@@ -8,7 +8,6 @@ import (
 	"slices"
 
 	"github.com/plumbdyn/plumb/internal/detmath"
-	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // SurrogateKind chooses how surrogate series are made.
@@ -78,7 +77,7 @@ func FFTLength(n int) int {
 // surrogateMaker holds the transform and workspaces for one series.
 type surrogateMaker struct {
 	x      []float64
-	fft    *fourier.FFT
+	fft    *realFFT
 	amp    []float64    // |X_k|
 	sorted []float64    // x sorted
 	coef   []complex128 // workspace
@@ -93,7 +92,7 @@ func newSurrogateMaker(x []float64) (*surrogateMaker, error) {
 		return nil, shortf("surrogates: %d values (want at least %d)", len(x), MinLen)
 	}
 	x = x[:n]
-	g := &surrogateMaker{x: x, fft: fourier.NewFFT(n)}
+	g := &surrogateMaker{x: x, fft: newRealFFT(n)}
 	g.coef = g.fft.Coefficients(nil, x)
 	g.amp = make([]float64, len(g.coef))
 	for k, c := range g.coef {
@@ -222,10 +221,10 @@ func (g *surrogateMaker) spectrumErr(s []float64) float64 {
 
 // Surrogates returns count surrogates of x of the given kind, made from the
 // first FFTLength(len(x)) values with the random stream seeded by seed.
-// The transforms are gonum's dsp/fourier (pure Go, not checked for fused
-// multiply-adds): surrogate values may differ in the last bits between
-// amd64 and arm64; IAAFT's final rank-ordering step makes its values
-// exact copies of the series' values.
+// The transforms are the package's own (fft.go: every product rounded
+// before it is added, twiddles from internal/detmath), so surrogates have
+// the same bits on every architecture; IAAFT's final rank-ordering step
+// makes its values exact copies of the series' values.
 //
 // References:
 //
