@@ -44,6 +44,30 @@ func newSparseJac(n int, at []int) sparseJac {
 	return s
 }
 
+// contiguous returns dst's entries when dst is n×n and stored contiguously
+// (the usual case: the offsets of s then index it directly), nil otherwise.
+func (s sparseJac) contiguous(dst *mat.Dense) []float64 {
+	if dst == nil {
+		return nil
+	}
+	raw := dst.RawMatrix()
+	if n := s.n; raw.Rows == n && raw.Cols == n && raw.Stride == n {
+		return raw.Data[:n*n]
+	}
+	return nil
+}
+
+// zeros writes the structurally zero entries of d (from contiguous).
+func (s sparseJac) zeros(d []float64) {
+	if s.zero == nil {
+		clear(d) // the entries given are written after
+		return
+	}
+	for _, ij := range s.zero {
+		d[ij] = 0
+	}
+}
+
 // set writes the n×n matrix with the entries vals at the places s.at and
 // zeros elsewhere into dst; a dst of another size gets the overlapping
 // block, a nil dst nothing.
@@ -52,23 +76,14 @@ func (s sparseJac) set(dst *mat.Dense, vals []float64) {
 		return
 	}
 	n, at := s.n, s.at
-	raw := dst.RawMatrix()
-	if raw.Rows == n && raw.Cols == n && raw.Stride == n {
-		// The usual case, dst n×n and contiguous: the offsets index it
-		// directly.
-		d := raw.Data[:n*n]
-		if s.zero != nil {
-			for _, ij := range s.zero {
-				d[ij] = 0
-			}
-		} else {
-			clear(d)
-		}
+	if d := s.contiguous(dst); d != nil {
+		s.zeros(d)
 		for k, ij := range at {
 			d[ij] = vals[k]
 		}
 		return
 	}
+	raw := dst.RawMatrix()
 	r, c := min(n, raw.Rows), min(n, raw.Cols)
 	for i := 0; i < r; i++ {
 		clear(raw.Data[i*raw.Stride : i*raw.Stride+c])

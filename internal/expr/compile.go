@@ -282,6 +282,32 @@ func (e *Float64) Run(dst []float64) error {
 	return nil
 }
 
+// RunScatter executes the program at the current variables and writes
+// output k into dst[at[k]]: the values Run gives, placed where the caller
+// wants them (a Jacobian's entries into its matrix) without a copy in
+// between. at must have length NumOut and its entries must index dst; an
+// at of another length is an error, an entry out of dst's range panics.
+func (e *Float64) RunScatter(dst []float64, at []int) error {
+	if len(at) != len(e.p.outs) {
+		return fmt.Errorf("expr: %d places given, the program has %d outputs", len(at), len(e.p.outs))
+	}
+	if rs := e.rs; rs != nil {
+		runFast(rs, e.p.fast)
+		outs := e.p.fastOuts
+		at = at[:len(outs)]
+		for k, o := range outs {
+			dst[at[k]] = rs[o]
+		}
+		return nil
+	}
+	e.run()
+	r := e.r
+	for k, o := range e.p.outs {
+		dst[at[k]] = r[o]
+	}
+	return nil
+}
+
 // Eval sets the variables to vars (which must have length NumVars) and runs
 // the program into dst.
 func (e *Float64) Eval(vars, dst []float64) error {
