@@ -103,15 +103,7 @@ func (f *formulaSystem) jacFunc(params []float64) func(float64, []float64, *mat.
 		for i, x := range y[:min(len(y), len(state))] {
 			state[i] = x
 		}
-		if d := sp.contiguous(dst); d != nil {
-			// The usual matrix: the entries straight from the
-			// evaluator's registers into place.
-			sp.zeros(d)
-			ev.RunScatter(d, sp.at)
-			return
-		}
-		ev.Run(buf)
-		sp.set(dst, buf)
+		sp.fill(dst, ev, buf)
 	}
 }
 

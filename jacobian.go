@@ -1,6 +1,10 @@
 package plumb
 
-import "gonum.org/v1/gonum/mat"
+import (
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/plumbdyn/plumb/internal/expr"
+)
 
 // rateError is an error in the Jacobian of rate row.
 type rateError struct {
@@ -23,8 +27,9 @@ type sparseJac struct {
 // sparseZeroMax is the largest n*n for which set writes the structurally
 // zero entries one by one rather than clearing the matrix first: for a
 // small matrix a clear is a call into the runtime that costs more than
-// the stores (Lorenz from formulas: 14 of 350 instructions per
-// evaluation of F and J), for a large one the offsets would cost memory.
+// the stores (Lorenz from formulas, callgrind: the clear took 28
+// instructions per evaluation, for one structural zero), for a large one
+// the offsets would cost memory.
 const sparseZeroMax = 64
 
 func newSparseJac(n int, at []int) sparseJac {
@@ -65,6 +70,22 @@ func (s sparseJac) zeros(d []float64) {
 	}
 	for _, ij := range s.zero {
 		d[ij] = 0
+	}
+}
+
+// fill runs ev, a compiled Jacobian whose outputs are the entries at
+// s.at, and writes the matrix into dst as set does: on the usual n×n
+// contiguous matrix straight from the evaluator's registers into place,
+// otherwise through buf (len(s.at)).
+func (s sparseJac) fill(dst *mat.Dense, ev *expr.Float64, buf []float64) {
+	if d := s.contiguous(dst); d != nil {
+		s.zeros(d)
+		ev.RunScatter(d, s.at)
+		return
+	}
+	if dst != nil {
+		ev.Run(buf)
+		s.set(dst, buf)
 	}
 }
 

@@ -2,6 +2,7 @@ package plumb
 
 import (
 	"math"
+	"os"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -56,4 +57,45 @@ func TestSparseJacSet(t *testing.T) {
 		require.Truef(t, math.IsNaN(big.At(0, 0)) && math.IsNaN(big.At(n+1, n+2)), "n = %d: set wrote outside the view", n)
 	}
 	newSparseJac(3, []int{0}).set(nil, []float64{1}) // a nil dst: nothing, no panic
+}
+
+// TestSparseJacFill: a formula system's Jacobian gives the same bits into
+// a contiguous 3×3 matrix (the entries scattered from the evaluator's
+// registers) as into a view of a larger matrix (through the buffer and
+// set): both paths run the same compiled program, so the check is an
+// exact identity; the structural zero of the lab-loop equations,
+// d(rate 0)/d(profile), must be +0.
+func TestSparseJacFill(t *testing.T) {
+	f, err := os.Open("examples/systems/lab-loop.json")
+	require.NoError(t, err)
+	defer f.Close()
+	sys, err := LoadSystem(f)
+	require.NoError(t, err)
+	p := sys.Problem()
+	y := []float64{1.5, -2.25, 30.125}
+	full := mat.NewDense(3, 3, nil)
+	big := mat.NewDense(5, 6, nil)
+	for _, m := range []*mat.Dense{full, big} {
+		r, c := m.Dims()
+		for i := 0; i < r; i++ {
+			for j := 0; j < c; j++ {
+				m.Set(i, j, math.NaN())
+			}
+		}
+	}
+	view := big.Slice(1, 4, 2, 5).(*mat.Dense)
+	p.Jac(0.5, y, full)
+	p.Jac(0.5, y, view)
+	for i := 0; i < 3; i++ {
+		for j := 0; j < 3; j++ {
+			require.Equalf(t, math.Float64bits(full.At(i, j)), math.Float64bits(view.At(i, j)), "entry (%d, %d)", i, j)
+		}
+	}
+	require.Equal(t, uint64(0), math.Float64bits(full.At(0, 2)), "d(prandtl*(across - speed))/d(profile) is a structural +0")
+	// The exact entries of J = [[-σ, σ, 0], [ρ - z, -1, -x], [y, x, -β]]
+	// (exact identity: each is one operation on exact inputs).
+	require.Equal(t, 28-30.125, full.At(1, 0))
+	require.Equal(t, -1.5, full.At(1, 2))
+	require.Equal(t, -2.25, full.At(2, 0))
+	p.Jac(0.5, y, nil) // a nil matrix: nothing written, no panic
 }

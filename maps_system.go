@@ -52,8 +52,7 @@ func (s *System) Map() (*maps.Map, error) {
 			jbuf, sp := make([]float64, len(fs.jacAt)), newSparseJac(n, fs.jacAt)
 			f.Jacobian = func(x []float64, dst *mat.Dense) {
 				copy(jac.Vars()[1:1+n], x)
-				jac.Run(jbuf)
-				sp.set(dst, jbuf)
+				sp.fill(dst, jac, jbuf)
 			}
 		}
 		ev := fs.fieldProg.NewDD()
